@@ -1,3 +1,26 @@
 """Pinch targeting: problem table, composite curves, utility placement (installed as heatloom.pinch)."""
 
-__all__: list[str] = []
+from .curves import Curve, cold_composite, grand_composite, hot_composite
+from .problem_table import ProblemTable, net_heat_capacity_flow, problem_table, shifted_ranges, zero_tolerance
+from .targets import Pinch, Targets, Threshold, target
+from .utilities import UtilityDuty, UtilityPlacement, place_utilities, utility_shifted_range
+
+__all__ = [
+    "Curve",
+    "cold_composite",
+    "grand_composite",
+    "hot_composite",
+    "ProblemTable",
+    "net_heat_capacity_flow",
+    "problem_table",
+    "shifted_ranges",
+    "zero_tolerance",
+    "Pinch",
+    "Targets",
+    "Threshold",
+    "target",
+    "UtilityDuty",
+    "UtilityPlacement",
+    "place_utilities",
+    "utility_shifted_range",
+]

@@ -1,0 +1,117 @@
+"""Figures in heatloom's own visual style.
+
+One style for every plot: white background, a thin frame on two sides, labelled axes with units, hot
+quantities in a dark brick red with solid lines, cold quantities in a slate blue with long dashes (so the
+curves stay apart when printed in greyscale), the pinch as a dotted grey line with its temperatures written
+beside it, and the utility targets as hatched bands.  Functions return matplotlib figures; writing them is
+:class:`heatloom.io.export.OutputDirectory`'s job.
+"""
+
+from __future__ import annotations
+
+import matplotlib
+
+matplotlib.use("Agg")  # no screen on servers and CI; figures go to files
+
+import matplotlib.pyplot as plt  # noqa: E402
+import numpy as np  # noqa: E402
+
+__all__ = ["STYLE", "composite_figure", "grand_composite_figure"]
+
+STYLE = {
+    "hot": {"color": "#8c2d19", "linestyle": "-", "linewidth": 2.2},
+    "cold": {"color": "#2f4b7c", "linestyle": (0, (7, 3)), "linewidth": 2.2},
+    "net": {"color": "#303030", "linestyle": "-", "linewidth": 2.0},
+    "pinch": {"color": "#7a7a7a", "linestyle": ":", "linewidth": 1.4},
+    "font_size": 10,
+    "figure_size": (7.0, 4.6),
+}
+
+
+def _axes(title: str, xlabel: str, ylabel: str):
+    fig, ax = plt.subplots(figsize=STYLE["figure_size"])
+    ax.set_title(title, fontsize=STYLE["font_size"] + 1, loc="left")
+    ax.set_xlabel(xlabel, fontsize=STYLE["font_size"])
+    ax.set_ylabel(ylabel, fontsize=STYLE["font_size"])
+    ax.spines[["top", "right"]].set_visible(False)
+    ax.tick_params(labelsize=STYLE["font_size"] - 1)
+    ax.grid(True, color="#e4e4e4", linewidth=0.6)
+    ax.set_axisbelow(True)
+    return fig, ax
+
+
+def composite_figure(targets, *, shifted: bool = False, title: str | None = None):
+    """Hot and cold composite curves with the utility targets and the pinch.
+
+    Parameters
+    ----------
+    targets : heatloom.pinch.Targets
+    shifted : bool
+        Plot the shifted composites instead of the real ones.
+    """
+    hot = targets.shifted_hot_composite() if shifted else targets.hot_composite()
+    cold = targets.shifted_cold_composite() if shifted else targets.cold_composite()
+    what = "Shifted composite curves" if shifted else "Composite curves"
+    fig, ax = _axes(title or f"{what}, ΔTmin = {targets.dt_min:g} K", "Heat flow [kW]",
+                    "Shifted temperature [°C]" if shifted else "Temperature [°C]")
+    if hot.enthalpy.size:
+        ax.plot(hot.enthalpy, hot.temperature, label="hot composite", **STYLE["hot"])
+    if cold.enthalpy.size:
+        ax.plot(cold.enthalpy, cold.temperature, label="cold composite", **STYLE["cold"])
+    ys = np.concatenate([hot.temperature, cold.temperature])
+    y0, y1 = float(ys.min()), float(ys.max())
+    qc, qh = targets.cold_utility, targets.hot_utility
+    h_top = max(hot.enthalpy[-1] if hot.enthalpy.size else 0.0, cold.enthalpy[-1] if cold.enthalpy.size else 0.0)
+    if qc > 0:
+        ax.axvspan(0, qc, color=STYLE["cold"]["color"], alpha=0.10, hatch="\\\\", linewidth=0)
+        ax.text(qc / 2, y0, f"cold utility\n{qc:,.0f} kW", ha="center", va="bottom",
+                fontsize=STYLE["font_size"] - 1)
+    if qh > 0:
+        ax.axvspan(h_top - qh, h_top, color=STYLE["hot"]["color"], alpha=0.10, hatch="//", linewidth=0)
+        ax.text(h_top - qh / 2, y1, f"hot utility\n{qh:,.0f} kW", ha="center", va="top",
+                fontsize=STYLE["font_size"] - 1)
+    for p in targets.pinches[:1]:
+        x = float(np.interp(p.hot, hot.temperature, hot.enthalpy)) if hot.temperature.size else 0.0
+        if shifted:
+            x = float(np.interp(p.shifted, hot.temperature, hot.enthalpy))
+        ax.axvline(x, **STYLE["pinch"])
+        ax.annotate(f"pinch {p.hot:g} / {p.cold:g} °C", (x, p.shifted), xytext=(6, -14),
+                    textcoords="offset points", fontsize=STYLE["font_size"] - 1, color="#505050")
+    ax.legend(frameon=False, fontsize=STYLE["font_size"] - 1, loc="center right")
+    fig.tight_layout()
+    return fig
+
+
+def grand_composite_figure(targets, *, title: str | None = None):
+    """Grand composite curve, with the duties of the utility levels when they were placed.
+
+    Parameters
+    ----------
+    targets : heatloom.pinch.Targets
+    """
+    g = targets.grand_composite()
+    fig, ax = _axes(title or f"Grand composite curve, ΔTmin = {targets.dt_min:g} K", "Net heat flow [kW]",
+                    "Shifted temperature [°C]")
+    ax.plot(g.enthalpy, g.temperature, label="grand composite", **STYLE["net"])
+    ax.fill_betweenx(g.temperature, 0, g.enthalpy, color="#bdbdbd", alpha=0.25, linewidth=0)
+    for p in targets.pinches:
+        ax.axhline(p.shifted, **STYLE["pinch"])
+        ax.annotate(f"pinch {p.shifted:g} °C shifted", (0, p.shifted), xytext=(6, 4),
+                    textcoords="offset points", fontsize=STYLE["font_size"] - 1, color="#505050")
+    if targets.placement is not None:
+        from ..pinch.utilities import utility_shifted_range
+
+        for d in targets.placement.duties:
+            if d.duty <= 0:
+                continue
+            hi, lo = utility_shifted_range(d.utility, targets.dt_min)
+            style = STYLE["hot"] if d.utility.is_hot else STYLE["cold"]
+            ys = [hi, lo] if d.utility.is_hot else [lo, hi]
+            ax.plot([0, d.duty], ys if hi != lo else [hi, hi], color=style["color"], linewidth=1.2,
+                    linestyle=style["linestyle"])
+            ax.annotate(f"{d.utility.name}: {d.duty:,.0f} kW", (d.duty, hi), xytext=(4, 2),
+                        textcoords="offset points", fontsize=STYLE["font_size"] - 1, color=style["color"])
+    ax.set_xlim(left=0)
+    ax.legend(frameon=False, fontsize=STYLE["font_size"] - 1, loc="lower right")
+    fig.tight_layout()
+    return fig
