@@ -129,11 +129,13 @@ def _diagnose(table: ProblemTable, utilities: Sequence[Utility], dt_min: float) 
         if not cold:
             return (f"the process needs {table.cold_utility:.6g} kW of cooling but no cold utility was given")
         bottom = min(utility_shifted_range(u, dt_min)[1] for u in cold)
-        flow = table.heat_flow
-        below = flow[t < bottom]
+        # heat released below a temperature, net of what process cold streams there absorb, has nowhere
+        # to go when every cold utility is hotter than that temperature
+        released = table.cold_utility - table.heat_flow
+        below = released[t < bottom]
         if below.size and below.max() > tol:
-            return (f"the process must reject {below.max():.6g} kW of heat below "
-                    f"{bottom - 0.5 * dt_min:g} °C, colder than any cold utility given can take at ΔTmin "
+            return (f"the process releases {below.max():.6g} kW of heat below {bottom - 0.5 * dt_min:g} °C "
+                    f"(shifted {bottom:g} °C), colder than any cold utility given can take at ΔTmin "
                     f"{dt_min:g} K")
     return "the utilities given cannot balance the heat cascade at any duties"
 
@@ -229,7 +231,7 @@ def place_utilities(table: ProblemTable, utilities: Sequence[Utility]) -> Utilit
     residual = r0 + (frac * sign) @ q
     tol = table.tolerance
     process_pinches = set(table.shifted_temperatures[table.heat_flow <= tol].tolist())
-    inner = (points > points[0]) & (points < points[-1])
+    inner = (points > t_proc[0]) & (points < t_proc[-1])   # inside the process range only
     utility_pinches = tuple(float(x) for x, r in zip(points[inner], residual[inner])
                             if abs(r) <= tol * 10 and x not in process_pinches)
     return UtilityPlacement(tuple(UtilityDuty(u, float(v)) for u, v in zip(utilities, q)), utility_pinches)
