@@ -13,8 +13,6 @@ import pkgutil
 import pytest
 from _pytest.doctest import _get_checker, get_optionflags  # noqa: F401  (NUMBER flag registration)
 
-import heatloom
-
 SUBPACKAGES = ("heatloom.pinch", "heatloom.network", "heatloom.io")
 
 

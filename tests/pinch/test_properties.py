@@ -11,7 +11,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from heatloom.model import Segment, Stream, StreamTable
-from heatloom.pinch import grand_composite, problem_table, target
+from heatloom.pinch import grand_composite, target
 
 SETTINGS = settings(max_examples=60, derandomize=True, deadline=None)
 

@@ -1,0 +1,374 @@
+"""A heat-exchanger network with temperatures: exchangers, heaters, coolers, and the checks every one passes.
+
+The result objects of design (:class:`Network`, :class:`Exchanger`, :class:`Heater`, :class:`Cooler`) are
+frozen dataclasses whose ``to_dict`` gives the stable JSON shape of ``heatloom design --json`` (see
+DEVELOPERS.md).  :func:`check_network` verifies the energy balance of every stream and of every unit and
+the minimum approach at both ends of every unit; a network that fails it is never returned by design.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass, field, replace
+
+import numpy as np
+
+from ..errors import InfeasibleError
+from ..model import Stream, StreamTable, Utility
+
+__all__ = [
+    "Exchanger",
+    "Heater",
+    "Cooler",
+    "Network",
+    "stream_enthalpy",
+    "stream_temperature",
+    "check_network",
+    "approach_violations",
+]
+
+
+def _segments_profile(stream: Stream) -> tuple[np.ndarray, np.ndarray]:
+    """Breakpoint temperatures and cumulative duty from the supply end [°C], [kW]."""
+    temps = [stream.supply_temperature]
+    duty = [0.0]
+    for g in stream.segments:
+        temps.append(g.target_temperature)
+        duty.append(duty[-1] + g.duty)
+    return np.array(temps), np.array(duty)
+
+
+def stream_enthalpy(stream: Stream, temperature: float) -> float:
+    """Heat exchanged by a stream between its supply temperature and ``temperature`` [kW].
+
+    Piecewise linear over the stream's segments; outside its range the value is clamped.
+
+    Examples
+    --------
+    >>> from heatloom.model import Segment
+    >>> s = Stream("vapour", (Segment(120, 110, 2.0), Segment(110, 109, 100.0)))
+    >>> stream_enthalpy(s, 109.5)
+    70.0
+    """
+    t, h = _segments_profile(stream)
+    if stream.is_hot:
+        return float(np.interp(-temperature, -t, h))
+    return float(np.interp(temperature, t, h))
+
+
+def stream_temperature(stream: Stream, enthalpy: float) -> float:
+    """Temperature of a stream after exchanging ``enthalpy`` [kW] from its supply end [°C].
+
+    Examples
+    --------
+    >>> from heatloom.model import Segment
+    >>> s = Stream("vapour", (Segment(120, 110, 2.0), Segment(110, 109, 100.0)))
+    >>> stream_temperature(s, 70.0)
+    109.5
+    """
+    t, h = _segments_profile(stream)
+    return float(np.interp(enthalpy, h, t))
+
+
+@dataclass(frozen=True)
+class Exchanger:
+    """A process-to-process exchanger (counter-current unless sized otherwise).
+
+    Attributes
+    ----------
+    hot, cold : str
+        Stream names.
+    duty : float
+        [kW]
+    hot_in, hot_out, cold_in, cold_out : float
+        Terminal temperatures [°C].
+    hot_fraction, cold_fraction : float
+        Share of the stream's flow through this unit [-]; 1 when the stream is not split here.
+    area : float or None
+        Heat-transfer area [m²]; None when film coefficients are not known.
+    cost : float or None
+        Capital cost [money per year when annualised, else money].
+    stage : int
+        Position index used by design (hot end first) [-].
+    region : str
+        Pinch subnetwork the unit belongs to ("above", "below" or "whole").
+    """
+
+    hot: str
+    cold: str
+    duty: float
+    hot_in: float
+    hot_out: float
+    cold_in: float
+    cold_out: float
+    hot_fraction: float = 1.0
+    cold_fraction: float = 1.0
+    area: float | None = None
+    cost: float | None = None
+    stage: int = 0
+    region: str = "whole"
+    u: float | None = None
+    lmtd: float | None = None
+    shells: int | None = None
+    f_factor: float | None = None
+
+    def to_dict(self) -> dict:
+        return {"hot": self.hot, "cold": self.cold, "duty": self.duty, "hot_in": self.hot_in,
+                "hot_out": self.hot_out, "cold_in": self.cold_in, "cold_out": self.cold_out,
+                "hot_fraction": self.hot_fraction, "cold_fraction": self.cold_fraction,
+                "area": self.area, "cost": self.cost, "u": self.u, "lmtd": self.lmtd,
+                "shells": self.shells, "f_factor": self.f_factor, "region": self.region,
+                "stage": self.stage}
+
+
+@dataclass(frozen=True)
+class Heater:
+    """A utility heater on a cold stream."""
+
+    cold: str
+    utility: str
+    duty: float
+    cold_in: float
+    cold_out: float
+    utility_in: float
+    utility_out: float
+    cold_fraction: float = 1.0
+    area: float | None = None
+    cost: float | None = None
+    region: str = "above"
+    u: float | None = None
+    lmtd: float | None = None
+
+    def to_dict(self) -> dict:
+        return {"cold": self.cold, "utility": self.utility, "duty": self.duty, "cold_in": self.cold_in,
+                "cold_out": self.cold_out, "utility_in": self.utility_in, "utility_out": self.utility_out,
+                "cold_fraction": self.cold_fraction, "area": self.area, "cost": self.cost, "u": self.u,
+                "lmtd": self.lmtd, "region": self.region}
+
+
+@dataclass(frozen=True)
+class Cooler:
+    """A utility cooler on a hot stream."""
+
+    hot: str
+    utility: str
+    duty: float
+    hot_in: float
+    hot_out: float
+    utility_in: float
+    utility_out: float
+    hot_fraction: float = 1.0
+    area: float | None = None
+    cost: float | None = None
+    region: str = "below"
+    u: float | None = None
+    lmtd: float | None = None
+
+    def to_dict(self) -> dict:
+        return {"hot": self.hot, "utility": self.utility, "duty": self.duty, "hot_in": self.hot_in,
+                "hot_out": self.hot_out, "utility_in": self.utility_in, "utility_out": self.utility_out,
+                "hot_fraction": self.hot_fraction, "area": self.area, "cost": self.cost, "u": self.u,
+                "lmtd": self.lmtd, "region": self.region}
+
+
+@dataclass(frozen=True, eq=False)
+class Network:
+    """A designed network.
+
+    Attributes
+    ----------
+    exchangers, heaters, coolers : tuple
+    dt_min : float
+        Minimum approach every unit keeps [K].
+    capital_cost, operating_cost, total_annual_cost : float or None
+        [money per year]; None when areas could not be computed (no film coefficients).
+    currency : str
+    notes : tuple of str
+        Assumptions and defaults in force, in plain words.
+    solves : tuple
+        Solver reports of the models solved to build the network.
+    """
+
+    exchangers: tuple[Exchanger, ...]
+    heaters: tuple[Heater, ...]
+    coolers: tuple[Cooler, ...]
+    dt_min: float
+    capital_cost: float | None = None
+    operating_cost: float | None = None
+    total_annual_cost: float | None = None
+    currency: str = ""
+    notes: tuple[str, ...] = ()
+    solves: tuple = field(default=(), compare=False)
+    unit_target: int | None = None
+
+    @property
+    def units(self) -> int:
+        """Number of units: exchangers + heaters + coolers [-]."""
+        return len(self.exchangers) + len(self.heaters) + len(self.coolers)
+
+    @property
+    def hot_utility(self) -> float:
+        """[kW]"""
+        return float(sum(h.duty for h in self.heaters))
+
+    @property
+    def cold_utility(self) -> float:
+        """[kW]"""
+        return float(sum(c.duty for c in self.coolers))
+
+    @property
+    def heat_recovery(self) -> float:
+        """[kW]"""
+        return float(sum(e.duty for e in self.exchangers))
+
+    def with_costs(self, **changes) -> Network:
+        return replace(self, **changes)
+
+    def to_dict(self) -> dict:
+        return {
+            "exchangers": [e.to_dict() for e in self.exchangers],
+            "heaters": [h.to_dict() for h in self.heaters],
+            "coolers": [c.to_dict() for c in self.coolers],
+            "capital_cost": self.capital_cost,
+            "operating_cost": self.operating_cost,
+            "total_annual_cost": self.total_annual_cost,
+            "units": self.units,
+            "unit_target": self.unit_target,
+            "hot_utility": self.hot_utility,
+            "cold_utility": self.cold_utility,
+            "heat_recovery": self.heat_recovery,
+            "dtmin": self.dt_min,
+            "currency": self.currency,
+            "notes": list(self.notes),
+            "solves": [s.to_dict() if hasattr(s, "to_dict") else s for s in self.solves],
+        }
+
+    def to_frame(self):
+        import pandas as pd
+
+        rows = []
+        for e in self.exchangers:
+            rows.append({"unit": f"E{len(rows) + 1}", "type": "exchanger", "hot": e.hot, "cold": e.cold,
+                         "duty [kW]": e.duty, "hot in [°C]": e.hot_in, "hot out [°C]": e.hot_out,
+                         "cold in [°C]": e.cold_in, "cold out [°C]": e.cold_out,
+                         "hot fraction [-]": e.hot_fraction, "cold fraction [-]": e.cold_fraction,
+                         "area [m²]": e.area, "cost [money/yr]": e.cost})
+        for h in self.heaters:
+            rows.append({"unit": f"H{sum(r['type'] == 'heater' for r in rows) + 1}", "type": "heater",
+                         "hot": h.utility, "cold": h.cold, "duty [kW]": h.duty, "hot in [°C]": h.utility_in,
+                         "hot out [°C]": h.utility_out, "cold in [°C]": h.cold_in, "cold out [°C]": h.cold_out,
+                         "hot fraction [-]": 1.0, "cold fraction [-]": h.cold_fraction,
+                         "area [m²]": h.area, "cost [money/yr]": h.cost})
+        for c in self.coolers:
+            rows.append({"unit": f"C{sum(r['type'] == 'cooler' for r in rows) + 1}", "type": "cooler",
+                         "hot": c.hot, "cold": c.utility, "duty [kW]": c.duty, "hot in [°C]": c.hot_in,
+                         "hot out [°C]": c.hot_out, "cold in [°C]": c.utility_in,
+                         "cold out [°C]": c.utility_out, "hot fraction [-]": c.hot_fraction,
+                         "cold fraction [-]": 1.0, "area [m²]": c.area, "cost [money/yr]": c.cost})
+        return pd.DataFrame(rows)
+
+
+def _side_duty(stream: Stream, t_in: float, t_out: float, fraction: float) -> float:
+    return fraction * abs(stream_enthalpy(stream, t_out) - stream_enthalpy(stream, t_in))
+
+
+def _min_approach_inside(hot: Stream | None, cold: Stream | None, e, hot_frac: float, cold_frac: float,
+                         hot_temps: tuple[float, float], cold_temps: tuple[float, float]) -> float:
+    """Smallest hot − cold temperature difference along a counter-current unit [K].
+
+    Both sides are piecewise linear in duty; the minimum lies at a breakpoint of either side.
+    """
+    (h_in, h_out), (c_in, c_out) = hot_temps, cold_temps
+    q = e.duty
+    pts = {0.0, q}
+
+    def hot_t(x):  # temperature of the hot side after giving x kW from its inlet
+        if hot is None:
+            return h_in + (h_out - h_in) * (x / q if q > 0 else 0.0)
+        return stream_temperature(hot, stream_enthalpy(hot, h_in) + x / hot_frac)
+
+    def cold_t(x):  # cold side temperature at the same cross-section (it leaves at the hot inlet end)
+        if cold is None:
+            return c_out - (c_out - c_in) * (x / q if q > 0 else 0.0)
+        return stream_temperature(cold, stream_enthalpy(cold, c_out) - x / cold_frac)
+
+    if hot is not None:
+        base = stream_enthalpy(hot, h_in)
+        for g_t in (g.target_temperature for g in hot.segments):
+            x = (stream_enthalpy(hot, g_t) - base) * hot_frac
+            if 0 < x < q:
+                pts.add(x)
+    if cold is not None:
+        base = stream_enthalpy(cold, c_out)
+        for g_t in (g.target_temperature for g in cold.segments):
+            x = (base - stream_enthalpy(cold, g_t)) * cold_frac
+            if 0 < x < q:
+                pts.add(x)
+    return min(hot_t(x) - cold_t(x) for x in sorted(pts))
+
+
+def approach_violations(network: Network, streams: StreamTable, utilities: Sequence[Utility] = (), *,
+                        dt_min: float | None = None, tol: float = 1e-6) -> list[str]:
+    """Every unit whose smallest approach (ends and inner breakpoints) is below ΔTmin, in words."""
+    dt = network.dt_min if dt_min is None else dt_min
+    by_name = {s.name: s for s in streams}
+    problems = []
+    for e in network.exchangers:
+        d = _min_approach_inside(by_name[e.hot], by_name[e.cold], e, e.hot_fraction, e.cold_fraction,
+                                 (e.hot_in, e.hot_out), (e.cold_in, e.cold_out))
+        if d < dt - tol:
+            problems.append(f"exchanger {e.hot}→{e.cold}: smallest approach {d:.4g} K < ΔTmin {dt:g} K")
+    for h in network.heaters:
+        d = _min_approach_inside(None, by_name[h.cold], h, 1.0, h.cold_fraction, (h.utility_in, h.utility_out),
+                                 (h.cold_in, h.cold_out))
+        if d < dt - tol:
+            problems.append(f"heater {h.utility}→{h.cold}: smallest approach {d:.4g} K < ΔTmin {dt:g} K")
+    for c in network.coolers:
+        d = _min_approach_inside(by_name[c.hot], None, c, c.hot_fraction, 1.0, (c.hot_in, c.hot_out),
+                                 (c.utility_in, c.utility_out))
+        if d < dt - tol:
+            problems.append(f"cooler {c.hot}→{c.utility}: smallest approach {d:.4g} K < ΔTmin {dt:g} K")
+    return problems
+
+
+def check_network(network: Network, streams: StreamTable, utilities: Sequence[Utility] = (), *,
+                  dt_min: float | None = None, rtol: float = 1e-6) -> None:
+    """Raise :class:`InfeasibleError` unless every balance and approach of the network holds.
+
+    Checks (tolerances relative to the stream's duty, ``rtol``):
+
+    * each unit's duty equals the heat its hot side gives and its cold side takes at its temperatures and
+      flow fractions;
+    * each stream's units add up to its duty (hot: exchangers + coolers; cold: exchangers + heaters);
+    * every unit keeps at least ΔTmin at both ends and at every inner breakpoint of a segmented stream.
+    """
+    by_name = {s.name: s for s in streams}
+    problems: list[str] = []
+    scale = max((s.duty for s in streams), default=1.0)
+    tol = rtol * max(scale, 1.0)
+    for e in network.exchangers:
+        qh = _side_duty(by_name[e.hot], e.hot_in, e.hot_out, e.hot_fraction)
+        qc = _side_duty(by_name[e.cold], e.cold_in, e.cold_out, e.cold_fraction)
+        if abs(qh - e.duty) > tol or abs(qc - e.duty) > tol:
+            problems.append(f"exchanger {e.hot}→{e.cold}: duty {e.duty:.6g} kW but hot side gives {qh:.6g} "
+                            f"and cold side takes {qc:.6g} kW")
+    for h in network.heaters:
+        qc = _side_duty(by_name[h.cold], h.cold_in, h.cold_out, h.cold_fraction)
+        if abs(qc - h.duty) > tol:
+            problems.append(f"heater on {h.cold}: duty {h.duty:.6g} kW but the stream takes {qc:.6g} kW")
+    for c in network.coolers:
+        qh = _side_duty(by_name[c.hot], c.hot_in, c.hot_out, c.hot_fraction)
+        if abs(qh - c.duty) > tol:
+            problems.append(f"cooler on {c.hot}: duty {c.duty:.6g} kW but the stream gives {qh:.6g} kW")
+    for s in streams:
+        if s.is_hot:
+            total = sum(e.duty for e in network.exchangers if e.hot == s.name) + \
+                sum(c.duty for c in network.coolers if c.hot == s.name)
+        else:
+            total = sum(e.duty for e in network.exchangers if e.cold == s.name) + \
+                sum(h.duty for h in network.heaters if h.cold == s.name)
+        if abs(total - s.duty) > tol:
+            problems.append(f"stream {s.name}: units exchange {total:.6g} kW but its duty is {s.duty:.6g} kW")
+    problems += approach_violations(network, streams, utilities, dt_min=dt_min)
+    if problems:
+        raise InfeasibleError("network check failed: " + "; ".join(problems))
