@@ -134,9 +134,9 @@ def _note(args, text: str) -> None:
 
 
 def _read_inputs(args):
-    from .io import parse_column_map, read_streams, read_utilities
+    from .io import parse_column_mapping, read_streams, read_utilities
 
-    columns = parse_column_map(args.columns) if args.columns else None
+    columns = parse_column_mapping(args.columns) if args.columns else None
     streams = read_streams(args.file, sheet=args.sheet, columns=columns, fit_tolerance=args.fit_tolerance)
     utilities = None
     if args.utilities:
@@ -145,7 +145,7 @@ def _read_inputs(args):
 
 
 def _fmt(x: float, unit: str = "kW") -> str:
-    return f"{x:,.1f} {unit}".replace(",", " ")
+    return f"{x:,.1f} {unit}"
 
 
 def format_targets(targets, source: str, dt_min_note: str) -> str:

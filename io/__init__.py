@@ -1,3 +1,49 @@
 """Reading stream, utility and cost tables; writing results, figures and reports (installed as heatloom.io)."""
 
-__all__: list[str] = []
+from .costs import costs_from_mapping, read_costs
+from .export import OutputDirectory, to_jsonable
+from .points import DEFAULT_FIT_TOLERANCE, fit_points, fit_vertices
+from .streams import POINT_COLUMNS, SEGMENT_COLUMNS, read_streams
+from .tables import (
+    ALIASES,
+    COLUMN_KINDS,
+    Cells,
+    Table,
+    TableColumn,
+    find_header,
+    load_cells,
+    parse_column_mapping,
+    read_table,
+)
+from .units import UNIT_REGISTRY, QuantityKind, UnitConversion, from_canonical, parse_unit, to_canonical
+from .utilities import UTILITY_COLUMNS, read_utilities
+
+__all__ = [
+    "read_streams",
+    "read_utilities",
+    "read_costs",
+    "costs_from_mapping",
+    "OutputDirectory",
+    "to_jsonable",
+    "fit_points",
+    "fit_vertices",
+    "DEFAULT_FIT_TOLERANCE",
+    "SEGMENT_COLUMNS",
+    "POINT_COLUMNS",
+    "UTILITY_COLUMNS",
+    "ALIASES",
+    "COLUMN_KINDS",
+    "Cells",
+    "Table",
+    "TableColumn",
+    "load_cells",
+    "read_table",
+    "find_header",
+    "parse_column_mapping",
+    "QuantityKind",
+    "UnitConversion",
+    "UNIT_REGISTRY",
+    "parse_unit",
+    "to_canonical",
+    "from_canonical",
+]

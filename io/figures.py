@@ -93,7 +93,6 @@ def grand_composite_figure(targets, *, title: str | None = None):
     fig, ax = _axes(title or f"Grand composite curve, ΔTmin = {targets.dt_min:g} K", "Net heat flow [kW]",
                     "Shifted temperature [°C]")
     ax.plot(g.enthalpy, g.temperature, label="grand composite", **STYLE["net"])
-    ax.fill_betweenx(g.temperature, 0, g.enthalpy, color="#bdbdbd", alpha=0.25, linewidth=0)
     for p in targets.pinches:
         ax.axhline(p.shifted, **STYLE["pinch"])
         ax.annotate(f"pinch {p.shifted:g} °C shifted", (0, p.shifted), xytext=(6, 4),
@@ -101,18 +100,24 @@ def grand_composite_figure(targets, *, title: str | None = None):
     if targets.placement is not None:
         from ..pinch.utilities import utility_shifted_range
 
-        for d in targets.placement.duties:
-            if d.duty <= 0:
-                continue
-            hi, lo = utility_shifted_range(d.utility, targets.dt_min)
-            style = STYLE["hot"] if d.utility.is_hot else STYLE["cold"]
-            ys = [hi, lo] if d.utility.is_hot else [lo, hi]
-            ax.plot([0, d.duty], ys if hi != lo else [hi, hi], color=style["color"], linewidth=1.2,
-                    linestyle=style["linestyle"])
-            ax.annotate(f"{d.utility.name}: {d.duty:,.0f} kW", (d.duty, hi), xytext=(4, 2),
-                        textcoords="offset points", fontsize=STYLE["font_size"] - 1, color=style["color"])
+        # Levels stacked from the axis outwards, the mildest first: each is a line from (start, lower
+        # shifted temperature) to (start + duty, upper shifted temperature), flat when isothermal.
+        for hot in (True, False):
+            placed = [d for d in targets.placement.duties if d.utility.is_hot == hot and d.duty > 0]
+            placed.sort(key=lambda d: d.utility.coldest if hot else -d.utility.hottest)
+            if not hot:
+                placed.reverse()   # cold levels: the coldest sits at the axis, at the bottom of the curve
+            start = 0.0
+            for d in placed:
+                hi, lo = utility_shifted_range(d.utility, targets.dt_min)
+                style = STYLE["hot"] if hot else STYLE["cold"]
+                ax.plot([start, start + d.duty], [lo, hi], color=style["color"], linewidth=1.6,
+                        linestyle=style["linestyle"])
+                ax.annotate(f"{d.utility.name}: {d.duty:,.0f} kW", (start + d.duty, hi), xytext=(4, 3),
+                            textcoords="offset points", fontsize=STYLE["font_size"] - 1, color=style["color"])
+                start += d.duty
     ax.set_xlim(left=0)
-    ax.legend(frameon=False, fontsize=STYLE["font_size"] - 1, loc="lower right")
+    ax.legend(frameon=False, fontsize=STYLE["font_size"] - 1, loc="best")
     fig.tight_layout()
     return fig
 

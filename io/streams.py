@@ -1,0 +1,281 @@
+"""Reading process stream tables (CSV, XLSX) into a :class:`heatloom.model.StreamTable`.
+
+Two layouts are read, told apart by their columns:
+
+**Segment table** (the usual one), one row per linear segment::
+
+    name,T_supply,T_target,CP
+    H1,180,60,3.0
+    C1,20,135,2.0
+
+``T_supply``, ``T_target`` in °C and ``CP`` in kW/K unless a unit is written in the header
+(``T_supply [degF]``, ``CP (MW/K)``) or in a units row under it.  Optional columns: ``duty`` [kW]
+instead of CP (CP = duty/|T_supply − T_target|; when both are given they must agree within a relative
+1e-6), ``h`` [kW/(m²·K)], ``dT_min_contrib`` [K], ``kind`` (``hot``/``cold``, checked against the
+temperatures).  Consecutive rows with one name are the segments of one stream; they must chain.
+
+**Temperature–duty table** (as simulators export heating and cooling curves), one row per point, from
+the supply state to the target state::
+
+    name,T [°C],Q_cumulative [kW]
+    condenser feed,120,0
+    condenser feed,95,800
+    ...
+
+detected when there are ``T`` and cumulative-duty columns (``Q_cumulative``, ``Q``, ``duty``,
+``heat flow``, ``enthalpy``...) but no ``T_supply``/``T_target``.  Each stream is fitted with the
+fewest linear segments that stay within ``fit_tolerance`` kelvin of the data on the safe side (see
+:mod:`heatloom.io.points`).  Optional ``h`` and ``dT_min_contrib`` columns hold one value per stream.
+
+Column names, title lines, units rows and file formats are handled by :mod:`heatloom.io.tables`.
+Every problem raises :class:`~heatloom.errors.InputError` naming the file, row and column.
+"""
+
+from __future__ import annotations
+
+import os
+from collections.abc import Mapping
+
+import numpy as np
+
+from ..errors import InputError
+from ..model import Segment, Stream, StreamTable
+from .points import DEFAULT_FIT_TOLERANCE, _tolerance, fit_vertices, point_problem
+from .tables import IGNORE, Cells, Table, find_header, load_cells, parse_column_mapping, read_table
+
+__all__ = ["SEGMENT_COLUMNS", "POINT_COLUMNS", "read_streams"]
+
+SEGMENT_COLUMNS = ("name", "T_supply", "T_target", "CP", "duty", "h", "dT_min_contrib", "kind")
+"""Canonical columns of a segment table."""
+POINT_COLUMNS = ("name", "T", "Q_cumulative", "h", "dT_min_contrib")
+"""Canonical columns of a temperature–duty table."""
+
+_CP_DUTY_RTOL = 1e-6
+_HOT = {"hot", "h", "hot stream"}
+_COLD = {"cold", "c", "cold stream"}
+
+
+def read_streams(path: str | os.PathLike, *, sheet: str | None = None,
+                 columns: Mapping[str, str] | str | None = None,
+                 fit_tolerance: float = DEFAULT_FIT_TOLERANCE) -> StreamTable:
+    """Read a stream table from a CSV file or an Excel workbook.
+
+    Parameters
+    ----------
+    path : str or path-like
+        ``.csv`` (comma, semicolon or tab separated) or ``.xlsx`` file; never modified.
+    sheet : str, optional
+        Worksheet name; default the first sheet.
+    columns : mapping or str, optional
+        Foreign header → canonical column name, e.g. ``{"Stream": "name", "Tin": "T_supply"}`` or
+        ``"Stream=name,Tin=T_supply"``; ``"-"`` ignores a column.
+    fit_tolerance : float, optional
+        Temperature–duty tables only: largest deviation of the fitted segments from the data [K];
+        default 0.5 K.  The fit is always on the safe side.
+
+    Returns
+    -------
+    StreamTable
+        Canonical units (°C, kW/K, kW/(m²·K), K); ``source`` is the file (and sheet).
+
+    Raises
+    ------
+    InputError
+        One line naming file, row and column: missing/unreadable/empty file, missing columns, text
+        or NaN/inf in a number cell, CP or duty <= 0, supply = target, CP and duty that disagree,
+        segments that do not chain, repeated names that are not consecutive, temperatures below
+        absolute zero, unknown units, unknown sheet.
+
+    Examples
+    --------
+    >>> import pathlib, tempfile
+    >>> f = pathlib.Path(tempfile.mkdtemp()) / "streams.csv"
+    >>> _ = f.write_text("name,T_supply [degF],T_target [degF],CP [kW/K]\\nH1,212,32,2\\n")
+    >>> s = read_streams(f)["H1"]
+    >>> s.supply_temperature, s.target_temperature, s.duty
+    (100.0, 0.0, 200.0)
+    """
+    tolerance = _tolerance(fit_tolerance)
+    mapping = parse_column_mapping(columns)
+    cells = load_cells(path, sheet=sheet)
+    if _is_point_layout(cells, mapping):
+        table = read_table(cells, POINT_COLUMNS, required=("name", "T", "Q_cumulative"), columns=mapping)
+        streams = _point_streams(table, tolerance)
+    else:
+        table = read_table(cells, SEGMENT_COLUMNS, required=("name", "T_supply", "T_target", ("CP", "duty")),
+                           columns=mapping,
+                           hint=" (a temperature–duty table needs columns name, T and Q_cumulative instead)")
+        streams = _segment_streams(table)
+    try:
+        return StreamTable(tuple(streams), source=table.label)
+    except InputError as e:
+        raise table.locate(e) from None
+
+
+def _is_point_layout(cells: Cells, mapping: Mapping[str, str]) -> bool:
+    targets = set(mapping.values()) - {IGNORE}
+    if targets & {"T", "Q_cumulative"}:
+        return True
+    if targets & {"T_supply", "T_target", "CP"}:
+        return False
+    pt_index, pts = find_header(cells, POINT_COLUMNS, mapping)
+    if pt_index is None or not {"T", "Q_cumulative"} <= {m[0] for m in pts.values()}:
+        return False
+    seg_index, seg = find_header(cells, SEGMENT_COLUMNS, mapping)
+    if seg_index is None or seg_index > pt_index:
+        return True
+    return seg_index == pt_index and not ({"T_supply", "T_target"} & {m[0] for m in seg.values()})
+
+
+def _as_written(table: Table, name: str, i: int) -> str:
+    col = table.columns[name]
+    cell = col.cells[i]
+    text = (str(int(cell)) if cell.is_integer() else repr(cell)) if isinstance(cell, float) else str(cell).strip()
+    unit = col.unit or (col.conversion.kind.canonical if col.conversion is not None else "")
+    return f"{text} {unit}".strip()
+
+
+def _first(mask: np.ndarray) -> int | None:
+    return int(np.argmax(mask)) if mask.any() else None
+
+
+def _optional(table: Table, name: str, what: str, n: int) -> np.ndarray:
+    return table.numbers(name, required=False, what=what) if name in table else np.full(n, np.nan)
+
+
+def _groups(table: Table, names: list[str]) -> list[tuple[int, int]]:
+    """Runs of consecutive equal names as (start, stop); a name may not come back later."""
+    for i, nm in enumerate(names):
+        if not nm:
+            raise table.error("stream name is empty", index=i, column="name")
+    runs: list[tuple[int, int]] = []
+    start = 0
+    for i in range(1, len(names) + 1):
+        if i == len(names) or names[i] != names[start]:
+            runs.append((start, i))
+            start = i
+    seen: dict[str, int] = {}
+    for a, _ in runs:
+        nm = names[a]
+        if nm in seen:
+            first_row = int(table.rows[seen[nm]])
+            raise table.error(f"stream name '{nm}' was used before, in row {first_row}, with other streams "
+                              f"in between; the rows of one stream must be consecutive (or use another name)",
+                              index=a, column="name")
+        seen[nm] = a
+    return runs
+
+
+def _segment_streams(table: Table) -> list[Stream]:
+    n = len(table)
+    names = table.text("name")
+    ts = table.numbers("T_supply", what="supply temperature")
+    tt = table.numbers("T_target", what="target temperature")
+    cp = _optional(table, "CP", "heat capacity flow rate CP", n)
+    duty = _optional(table, "duty", "duty", n)
+    h = _optional(table, "h", "film coefficient h", n)
+    dtc = _optional(table, "dT_min_contrib", "ΔTmin contribution", n)
+    runs = _groups(table, names)
+
+    if (i := _first(ts == tt)) is not None:
+        raise table.error(f"supply and target temperatures are equal ({_as_written(table, 'T_target', i)}): a "
+                          "stream must change temperature (give a phase change a small glide, e.g. 0.1 K)",
+                          index=i, column="T_target")
+    if (i := _first(np.isnan(cp) & np.isnan(duty))) is not None:
+        raise table.error("empty cell: give CP or duty", index=i, column="CP" if "CP" in table else "duty")
+    if (i := _first(~np.isnan(cp) & ~(cp > 0))) is not None:
+        raise table.error(f"heat capacity flow rate CP must be > 0, got {_as_written(table, 'CP', i)}",
+                          index=i, column="CP")
+    if (i := _first(~np.isnan(duty) & ~(duty > 0))) is not None:
+        raise table.error(f"duty must be > 0 (the heat removed from a hot stream or added to a cold one, "
+                          f"without sign), got {_as_written(table, 'duty', i)}", index=i, column="duty")
+    span = np.abs(ts - tt)
+    cp_from_duty = duty / span
+    both = ~np.isnan(cp) & ~np.isnan(duty)
+    disagree = both & (np.abs(cp - cp_from_duty) > _CP_DUTY_RTOL * np.maximum(np.abs(cp), np.abs(cp_from_duty)))
+    if (i := _first(disagree)) is not None:
+        raise table.error(f"duty {duty[i]:.6g} kW disagrees with CP × |T_supply − T_target| = "
+                          f"{cp[i] * span[i]:.6g} kW (more than {_CP_DUTY_RTOL:g} relative); give one of "
+                          "them or make them agree", index=i, column="duty")
+    cp = np.where(np.isnan(cp), cp_from_duty, cp)
+    if (i := _first(~np.isnan(h) & ~(h > 0))) is not None:
+        raise table.error(f"film coefficient h must be > 0, got {_as_written(table, 'h', i)}", index=i,
+                          column="h")
+    if (i := _first(~np.isnan(dtc) & ~(dtc >= 0))) is not None:
+        raise table.error(f"ΔTmin contribution must be >= 0, got {_as_written(table, 'dT_min_contrib', i)}",
+                          index=i, column="dT_min_contrib")
+    if "kind" in table:
+        for i, k in enumerate(table.text("kind")):
+            if not k:
+                continue
+            key = k.casefold()
+            if key not in _HOT and key not in _COLD:
+                raise table.error(f"kind must be 'hot' or 'cold', got {k!r}", index=i, column="kind")
+            if (key in _HOT) != bool(ts[i] > tt[i]):
+                raise table.error(f"stream '{names[i]}' is declared {k} but runs from {ts[i]:g} to {tt[i]:g} °C",
+                                  index=i, column="kind")
+
+    rows = table.rows
+    hs = [None if x != x else float(x) for x in h.tolist()]
+    ds = [None if x != x else float(x) for x in dtc.tolist()]
+    tsl, ttl, cpl, rl = ts.tolist(), tt.tolist(), cp.tolist(), rows.tolist()
+    segments = []
+    for i in range(n):
+        try:
+            segments.append(Segment(tsl[i], ttl[i], cpl[i], hs[i], ds[i], row=rl[i]))
+        except InputError as e:
+            raise table.locate(e, i) from None
+    streams = []
+    for a, b in runs:
+        try:
+            streams.append(Stream(names[a], tuple(segments[a:b])))
+        except InputError as e:
+            raise table.locate(e, a) from None
+    return streams
+
+
+def _per_stream(table: Table, values: np.ndarray, name: str, what: str, a: int, b: int) -> float | None:
+    given = [(i, v) for i, v in enumerate(values[a:b].tolist(), a) if v == v]
+    if not given:
+        return None
+    if any(v != given[0][1] for _, v in given):
+        i = next(i for i, v in given if v != given[0][1])
+        raise table.error(f"{what} must be the same on every row of a temperature–duty stream (got "
+                          f"{given[0][1]:g} in row {int(table.rows[given[0][0]])})", index=i, column=name)
+    return float(given[0][1])
+
+
+def _point_streams(table: Table, tolerance: float) -> list[Stream]:
+    n = len(table)
+    names = table.text("name")
+    t = table.numbers("T", what="temperature")
+    q = table.numbers("Q_cumulative", what="cumulative duty")
+    h = _optional(table, "h", "film coefficient h", n)
+    dtc = _optional(table, "dT_min_contrib", "ΔTmin contribution", n)
+    if (i := _first(~np.isnan(h) & ~(h > 0))) is not None:
+        raise table.error(f"film coefficient h must be > 0, got {_as_written(table, 'h', i)}", index=i, column="h")
+    if (i := _first(~np.isnan(dtc) & ~(dtc >= 0))) is not None:
+        raise table.error(f"ΔTmin contribution must be >= 0, got {_as_written(table, 'dT_min_contrib', i)}",
+                          index=i, column="dT_min_contrib")
+    streams = []
+    for a, b in _groups(table, names):
+        tg, qg = t[a:b], q[a:b]
+        problem = point_problem(tg, qg)
+        if problem is not None:
+            k, column, message = problem
+            raise table.error(f"stream '{names[a]}': {message}", index=a + k, column=column)
+        hh = _per_stream(table, h, "h", "film coefficient h", a, b)
+        dd = _per_stream(table, dtc, "dT_min_contrib", "ΔTmin contribution", a, b)
+        vertices = fit_vertices(tg, qg, tolerance=tolerance).tolist()
+        segments = []
+        for u, v in zip(vertices[:-1], vertices[1:]):
+            try:
+                segments.append(Segment(float(tg[u]), float(tg[v]), float(abs(qg[v] - qg[u]) / abs(tg[v] - tg[u])),
+                                        hh, dd, row=int(table.rows[a + u])))
+            except InputError as e:
+                raise table.locate(e, a + u) from None
+        try:
+            streams.append(Stream(names[a], tuple(segments)))
+        except InputError as e:
+            raise table.locate(e, a) from None
+    return streams

@@ -1,0 +1,697 @@
+"""Plant tables in: CSV and XLSX files read into named columns in canonical units.
+
+The readers of stream, utility and temperature–duty tables all go through here.  What is handled:
+
+* **Files.** CSV (or any text table) with comma, semicolon, tab or ``|`` delimiters, sniffed from the
+  file; UTF-8 with or without BOM, UTF-16 with BOM, else Windows-1252 / Latin-1.  With a semicolon
+  delimiter a decimal comma (``2,5``) is accepted.  Excel workbooks ``.xlsx``/``.xlsm`` (a named
+  sheet, else the first); stored values are read, formulas are not evaluated.  The file is only read,
+  never written.
+* **Header.** Title lines above the header are skipped: the header is the first row (among the first
+  100) with at least two recognisable column names.  A *units row* right under the header (cells
+  such as ``°C``, ``[kW/K]``, ``-``) is recognised and used.  Units may also be written in the header
+  itself: ``T_supply [degF]``, ``CP (MW/K)``, ``duty, MW``.
+* **Column names.** :data:`ALIASES` lists the accepted names of each canonical column; matching
+  ignores case, spaces, underscores, hyphens and dots.  A user mapping ``{foreign header: canonical
+  name}`` (or ``"-"`` to ignore a column) handles foreign layouts; :func:`parse_column_mapping` reads
+  the command-line form ``"Stream=name,Tin=T_supply"``.  Other columns are ignored.
+* **Rows.** Rows whose recognised cells are all empty are skipped.  Every problem is an
+  :class:`~heatloom.errors.InputError` naming the file (and sheet), the row as a spreadsheet shows it
+  (1-based, title lines and header counted) and the column header as the user wrote it.
+"""
+
+from __future__ import annotations
+
+import codecs
+import csv
+import datetime as _dt
+import io as _io
+import os
+import re
+import unicodedata
+import zipfile
+from collections import Counter
+from collections.abc import Iterable, Mapping, Sequence
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+
+from ..errors import InputError
+from ..model import ABSOLUTE_ZERO
+from .units import QuantityKind, UnitConversion, parse_unit
+
+__all__ = [
+    "ALIASES",
+    "COLUMN_KINDS",
+    "IGNORE",
+    "Cells",
+    "TableColumn",
+    "Table",
+    "load_cells",
+    "read_table",
+    "find_header",
+    "parse_column_mapping",
+    "split_header",
+    "normalise_name",
+]
+
+IGNORE = "-"
+"""Mapping target that tells the readers to ignore a column."""
+
+COLUMN_KINDS: dict[str, QuantityKind | None] = {
+    "name": None,
+    "kind": None,
+    "T_supply": QuantityKind.TEMPERATURE,
+    "T_target": QuantityKind.TEMPERATURE,
+    "CP": QuantityKind.HEAT_CAPACITY_FLOW,
+    "duty": QuantityKind.DUTY,
+    "h": QuantityKind.FILM_COEFFICIENT,
+    "dT_min_contrib": QuantityKind.TEMPERATURE_DIFFERENCE,
+    "cost": QuantityKind.COST_RATE,
+    "T": QuantityKind.TEMPERATURE,
+    "Q_cumulative": QuantityKind.DUTY,
+}
+"""Canonical column names and the quantity each holds (``None``: text)."""
+
+ALIASES: dict[str, tuple[str, ...]] = {
+    "name": ("name", "stream", "stream name", "tag", "stream tag", "utility", "utility name"),
+    "kind": ("kind", "type", "hot/cold", "hot or cold"),
+    "T_supply": ("T_supply", "Ts", "T in", "Tin", "T_in", "T inlet", "supply temperature", "inlet temperature",
+                 "supply T", "T supply", "T start", "start temperature"),
+    "T_target": ("T_target", "Tt", "T out", "Tout", "T_out", "T outlet", "target temperature",
+                 "outlet temperature", "target T", "T target", "T end", "end temperature"),
+    "CP": ("CP", "mCp", "FCp", "MCp", "heat capacity flow rate", "heat capacity flowrate", "heat capacity flow",
+           "heat capacity rate"),
+    "duty": ("duty", "Q", "heat load", "heat duty", "load"),
+    "h": ("h", "film coefficient", "htc", "heat transfer coefficient", "film heat transfer coefficient",
+          "film htc"),
+    "dT_min_contrib": ("dT_min_contrib", "dT contribution", "delta T contribution", "ΔT contribution",
+                       "dTmin contribution", "ΔTmin contribution", "dT_contrib", "dT_min contribution"),
+    "cost": ("cost", "price", "unit cost", "utility cost", "specific cost"),
+    "T": ("T", "temperature", "temp"),
+    "Q_cumulative": ("Q_cumulative", "Q cumulative", "cumulative Q", "Q cum", "Qcum", "cumulative duty",
+                     "cumulative heat", "cumulative heat load", "heat flow", "enthalpy flow", "enthalpy",
+                     "Q", "duty"),
+}
+"""Accepted names of each canonical column (compared after :func:`normalise_name`).
+
+Each reader uses its own set of columns, so ``Q`` is a duty in a stream table and a cumulative duty in
+a temperature–duty table."""
+
+_HEADER_SCAN_ROWS = 100
+_UNIT_LABEL = re.compile(r"^[\[(]?\s*(?:-|–|—|units?|uom|dim\.?|)\s*:?\s*[\])]?$", re.IGNORECASE)
+_SEPARATORS = re.compile(r"[\s_\-.]+")
+_XLSX_SUFFIXES = (".xlsx", ".xlsm", ".xltx", ".xltm")
+_CONTROL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f]")
+_OLE2 = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
+
+
+def normalise_name(text: str) -> str:
+    """Key used to compare column names: case, spaces, underscores, hyphens and dots ignored.
+
+    Examples
+    --------
+    >>> normalise_name(" T_Supply "), normalise_name("T in") == normalise_name("Tin")
+    ('tsupply', True)
+    """
+    return _SEPARATORS.sub("", unicodedata.normalize("NFKC", str(text)).casefold())
+
+
+def _lookup(vocabulary: Iterable[str]) -> dict[str, str]:
+    out: dict[str, str] = {}
+    for canonical in vocabulary:
+        for alias in (canonical, *ALIASES[canonical]):
+            key = normalise_name(alias)
+            if out.get(key, canonical) != canonical:
+                raise AssertionError(f"alias {alias!r} used by {out[key]} and {canonical}")
+            out[key] = canonical
+    return out
+
+
+def split_header(text: str) -> list[tuple[str, str | None]]:
+    """Ways of reading a header cell as *name* plus *unit*, most specific first.
+
+    A trailing bracket group is the unit (``CP (MW/K)``, ``h [W/(m2 K)]``); otherwise the part after
+    the last comma (``duty, MW``) or the last space (``Tin °C``) may be.
+
+    Examples
+    --------
+    >>> split_header("T_supply [degF]")[0]
+    ('T_supply', 'degF')
+    """
+    s = str(text).strip()
+    out: list[tuple[str, str | None]] = []
+    if s and s[-1] in ")]}":
+        depth = 0
+        for i in range(len(s) - 1, -1, -1):
+            if s[i] in ")]}":
+                depth += 1
+            elif s[i] in "([{":
+                depth -= 1
+                if depth == 0:
+                    name, unit = s[:i].strip().rstrip(",").strip(), s[i + 1:-1].strip()
+                    if name:
+                        out.append((name, unit))
+                    break
+    out.append((s, None))
+    if "," in s:
+        name, unit = s.rsplit(",", 1)
+        out.append((name.strip(), unit.strip()))
+    if " " in s:
+        name, unit = s.rsplit(" ", 1)
+        out.append((name.strip(), unit.strip()))
+    return out
+
+
+def parse_column_mapping(text: str | Mapping[str, str] | None) -> dict[str, str]:
+    """Read a column mapping ``"Stream=name,Tin=T_supply"`` (foreign header = canonical name).
+
+    Pairs are separated by commas or semicolons; a target of ``-`` ignores that column.  Canonical
+    names are checked against :data:`ALIASES` (case and underscores do not matter).
+
+    Parameters
+    ----------
+    text : str, mapping or None
+        The command-line form, or a mapping already (validated the same way).
+
+    Returns
+    -------
+    dict
+        Foreign header → canonical column name (or ``"-"``).
+
+    Examples
+    --------
+    >>> parse_column_mapping("Stream=name, Tin=t_supply")
+    {'Stream': 'name', 'Tin': 'T_supply'}
+    """
+    if text is None:
+        return {}
+    if isinstance(text, Mapping):
+        pairs = [(str(k), "" if v is None else str(v)) for k, v in text.items()]
+    else:
+        pairs = []
+        for part in re.split(r"[,;]", str(text)):
+            if not part.strip():
+                continue
+            if "=" not in part:
+                raise InputError(f"column mapping: '{part.strip()}' is not of the form header=column "
+                                 "(e.g. 'Stream=name,Tin=T_supply')")
+            k, v = part.rsplit("=", 1)
+            pairs.append((k, v))
+    canon = {normalise_name(c): c for c in ALIASES}
+    out: dict[str, str] = {}
+    targets: dict[str, str] = {}
+    for k, v in pairs:
+        k, v = k.strip(), v.strip()
+        if not k:
+            raise InputError(f"column mapping: empty header before '={v}'")
+        if v in ("", IGNORE):
+            target = IGNORE
+        else:
+            target = canon.get(normalise_name(v))
+            if target is None:
+                raise InputError(f"column mapping: unknown column name '{v}' for '{k}'; allowed: "
+                                 f"{', '.join(ALIASES)} (or '-' to ignore the column)")
+        if normalise_name(k) in {normalise_name(x) for x in out}:
+            raise InputError(f"column mapping: header '{k}' is mapped twice")
+        if target != IGNORE and target in targets:
+            raise InputError(f"column mapping: both '{targets[target]}' and '{k}' are mapped to '{target}'")
+        targets[target] = k
+        out[k] = target
+    return out
+
+
+@dataclass(frozen=True, eq=False)
+class Cells:
+    """The raw grid of a text table or worksheet: ``rows[i]`` is spreadsheet row ``i + 1``.
+
+    Cells are strings (text files, text cells) or floats (numeric workbook cells); empty cells are ``""``.
+    """
+
+    source: str
+    rows: list[list]
+    sheet: str | None = None
+    decimal_comma: bool = False
+
+    @property
+    def label(self) -> str:
+        """File (and sheet) as named in messages."""
+        return self.source if self.sheet is None else f"{self.source}, sheet '{self.sheet}'"
+
+
+def _decode(data: bytes, source: str) -> str:
+    if data.startswith(codecs.BOM_UTF8):
+        data = data[len(codecs.BOM_UTF8):]
+    elif data.startswith((codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE)):
+        try:
+            return data.decode("utf-16")
+        except UnicodeDecodeError:
+            raise InputError("cannot read the file: it starts like UTF-16 text but is not", file=source) from None
+    if b"\x00" in data:
+        raise InputError("this is not a text table (binary content); give a CSV file or an .xlsx workbook",
+                         file=source)
+    text = None
+    for encoding in ("utf-8", "cp1252", "latin-1"):
+        try:
+            text = data.decode(encoding)
+            break
+        except UnicodeDecodeError:
+            continue
+    assert text is not None  # latin-1 decodes any bytes
+    control = len(_CONTROL.findall(text))
+    if control > max(2, len(text) // 100):
+        raise InputError("this is not a text table (binary content); give a CSV file or an .xlsx workbook",
+                         file=source)
+    return text
+
+
+def _sniff(text: str) -> str:
+    lines = [line for line in text[:65536].splitlines() if line.strip()][:60]
+    best, best_score = ",", (0, 0)
+    for delimiter in (",", ";", "\t", "|"):
+        counts = [len(r) for r in csv.reader(lines, delimiter=delimiter)]
+        multi = [c for c in counts if c > 1]
+        if not multi:
+            continue
+        mode, freq = Counter(multi).most_common(1)[0]
+        if (freq, mode) > best_score:
+            best, best_score = delimiter, (freq, mode)
+    return best
+
+
+def _load_text(data: bytes, source: str) -> Cells:
+    text = _decode(data, source)
+    if not text.strip():
+        raise InputError("the file is empty", file=source)
+    delimiter = _sniff(text)
+    try:
+        rows = list(csv.reader(_io.StringIO(text, newline=""), delimiter=delimiter))
+    except csv.Error as e:
+        raise InputError(f"cannot read the file as a delimited text table: {e}", file=source) from None
+    return Cells(source, rows, None, decimal_comma=delimiter == ";")
+
+
+def _excel_value(v):
+    if v is None:
+        return ""
+    if isinstance(v, bool):
+        return "TRUE" if v else "FALSE"
+    if isinstance(v, (int, float)):
+        return float(v)
+    if isinstance(v, (_dt.datetime, _dt.date, _dt.time)):
+        return v.isoformat()
+    return str(v)
+
+
+def _load_workbook(data: bytes, source: str, sheet: str | None) -> Cells:
+    import openpyxl
+    from openpyxl.utils.exceptions import InvalidFileException
+
+    try:
+        wb = openpyxl.load_workbook(_io.BytesIO(data), read_only=True, data_only=True)
+    except (zipfile.BadZipFile, InvalidFileException, KeyError, ValueError, OSError, EOFError, TypeError) as e:
+        why = "it is not a zip archive" if isinstance(e, zipfile.BadZipFile) else str(e) or type(e).__name__
+        raise InputError(f"cannot read the file as an .xlsx workbook ({why}); save it again as .xlsx or CSV",
+                         file=source) from None
+    try:
+        names = list(wb.sheetnames)
+        if sheet is None:
+            sheets = [ws for ws in wb.worksheets if hasattr(ws, "iter_rows")]
+            if not sheets:
+                raise InputError("the workbook has no worksheet", file=source)
+            ws = sheets[0]
+        else:
+            wanted = str(sheet).strip()
+            match = [n for n in names if n == wanted] or [n for n in names if n.strip().casefold() == wanted.casefold()]
+            if not match:
+                raise InputError(f"no sheet named '{sheet}'; sheets: {', '.join(repr(n) for n in names)}",
+                                 file=source)
+            ws = wb[match[0]]
+            if not hasattr(ws, "iter_rows"):
+                raise InputError(f"sheet '{match[0]}' is a chart, not a table", file=source)
+        title = ws.title
+        rows = [[_excel_value(v) for v in row] for row in ws.iter_rows(values_only=True)]
+    finally:
+        wb.close()
+    cells = Cells(source, rows, title)
+    if not any(c != "" for row in rows for c in row):
+        raise InputError("the sheet is empty", file=cells.label)
+    return cells
+
+
+def load_cells(path: str | os.PathLike, *, sheet: str | None = None) -> Cells:
+    """Read the raw grid of a CSV file or a worksheet (no interpretation of headers or units).
+
+    Parameters
+    ----------
+    path : str or path-like
+        A text table (``.csv``, ``.txt``, ``.tsv``...) or an ``.xlsx``/``.xlsm`` workbook; the type
+        is taken from the content (a zip archive is a workbook), not only from the suffix.
+    sheet : str, optional
+        Worksheet name (workbooks only); default the first worksheet.
+
+    Raises
+    ------
+    InputError
+        Missing file, a directory, unreadable or binary content, an old ``.xls`` file, an empty file,
+        an unknown sheet (the message lists the sheets), a sheet given for a text file.
+    """
+    source = os.fspath(path)
+    p = Path(source)
+    if not p.exists():
+        raise InputError("file not found", file=source)
+    if p.is_dir():
+        raise InputError("this is a directory, not a table file", file=source)
+    try:
+        data = p.read_bytes()
+    except OSError as e:
+        raise InputError(f"cannot read the file ({e.strerror or e})", file=source) from None
+    if not data.strip():
+        raise InputError("the file is empty", file=source)
+    suffix = p.suffix.lower()
+    if data.startswith(b"PK\x03\x04") or suffix in _XLSX_SUFFIXES:
+        return _load_workbook(data, source, sheet)
+    if data.startswith(_OLE2) or suffix == ".xls":
+        raise InputError("old binary Excel files (.xls) are not read; save the sheet as .xlsx or CSV",
+                         file=source)
+    if sheet is not None:
+        raise InputError(f"a sheet ('{sheet}') was given but this is a text table, which has no sheets",
+                         file=source)
+    return _load_text(data, source)
+
+
+@dataclass(frozen=True, eq=False)
+class TableColumn:
+    """One recognised column: canonical name, header as written, unit and raw cells."""
+
+    name: str
+    header: str
+    position: int
+    unit: str | None
+    conversion: UnitConversion | None
+    cells: list = field(repr=False)
+
+
+def _cell_text(value) -> str:
+    if isinstance(value, float):
+        return str(int(value)) if value.is_integer() and abs(value) < 1e15 else repr(value)
+    return str(value).strip()
+
+
+def _filled(value) -> bool:
+    return bool(value.strip()) if isinstance(value, str) else True
+
+
+def _looks_number(text: str) -> bool:
+    try:
+        float(text.replace(",", "."))
+    except ValueError:
+        return False
+    return True
+
+
+@dataclass(frozen=True, eq=False)
+class Table:
+    """A table read from a file: recognised columns, data rows and where each came from.
+
+    ``rows[i]`` is the spreadsheet row of data row ``i`` (1-based, title lines and header counted).
+    """
+
+    source: str
+    sheet: str | None
+    header_row: int
+    units_row: int | None
+    columns: dict[str, TableColumn]
+    rows: np.ndarray
+    headers: tuple[str, ...]
+    decimal_comma: bool = False
+
+    def __len__(self) -> int:
+        return len(self.rows)
+
+    def __contains__(self, name: str) -> bool:
+        return name in self.columns
+
+    @property
+    def label(self) -> str:
+        """File (and sheet) as named in messages."""
+        return self.source if self.sheet is None else f"{self.source}, sheet '{self.sheet}'"
+
+    def header(self, name: str | None) -> str | None:
+        """The header as the user wrote it for canonical column `name` (else `name` itself)."""
+        if name in self.columns:
+            return self.columns[name].header
+        return name
+
+    def error(self, message: str, *, index: int | None = None, column: str | None = None,
+              row: int | None = None) -> InputError:
+        """An InputError located at data row `index` (or spreadsheet `row`) and canonical `column`."""
+        if index is not None:
+            row = int(self.rows[index])
+        return InputError(message, file=self.label, row=row, column=self.header(column))
+
+    def locate(self, err: InputError, index: int | None = None) -> InputError:
+        """Re-home an error raised by the data model: file, row and the user's header for its column."""
+        row = err.row if err.row is not None else (int(self.rows[index]) if index is not None else None)
+        return type(err)(err.message, file=err.file or self.label, row=row, column=self.header(err.column))
+
+    def text(self, name: str) -> list[str]:
+        """Cells of a text column, stripped (``""`` where empty)."""
+        return [_cell_text(c) for c in self.columns[name].cells]
+
+    def numbers(self, name: str, *, required: bool = True, what: str | None = None) -> np.ndarray:
+        """Cells of a numeric column, converted to the canonical unit of the column.
+
+        Empty cells are NaN when not `required`; text, NaN and infinite values are errors, and so
+        are temperatures below absolute zero (the message quotes the value and unit as written).
+        """
+        col = self.columns[name]
+        n = len(col.cells)
+        what = what or name
+        values = np.empty(n)
+        empty = np.zeros(n, dtype=bool)
+        comma = self.decimal_comma
+        for i, c in enumerate(col.cells):
+            if isinstance(c, float):
+                values[i] = c
+                continue
+            s = c.strip()
+            if not s:
+                empty[i] = True
+                values[i] = np.nan
+                continue
+            if comma and "," in s and "." not in s:
+                s = s.replace(",", ".")
+            try:
+                values[i] = float(s)
+            except ValueError:
+                hint = " (write numbers without thousands separators)" if "," in s else ""
+                raise self.error(f"{what} must be a number, got {c.strip()!r}{hint}", index=i,
+                                 column=name) from None
+        bad = ~empty & ~np.isfinite(values)
+        if bad.any():
+            i = int(np.argmax(bad))
+            raise self.error(f"{what} must be a finite number, got {_cell_text(col.cells[i])!r}", index=i,
+                             column=name)
+        if required and empty.any():
+            i = int(np.argmax(empty))
+            hint = ("" if self.sheet is None else
+                    " (a formula cell counts as empty unless the workbook was saved by a spreadsheet program)")
+            raise self.error(f"empty cell: {what} is required{hint}", index=i, column=name)
+        conv = col.conversion
+        out = values if conv is None or conv.is_identity else conv.to_canonical(values)
+        if conv is not None and conv.kind is QuantityKind.TEMPERATURE:
+            below = out < ABSOLUTE_ZERO - 1e-9
+            if below.any():
+                i = int(np.argmax(below))
+                unit = col.unit or "°C"
+                raise self.error(f"{what} {_cell_text(col.cells[i])} {unit} is below absolute zero "
+                                 f"({ABSOLUTE_ZERO} °C = 0 K = -459.67 °F)", index=i, column=name)
+        return out
+
+
+def _match(cell: str, lookup: Mapping[str, str], mapping: Mapping[str, str]) -> tuple[str | None, str | None]:
+    """(canonical name or IGNORE or None, unit text) for a header cell."""
+    readings = split_header(cell)
+    keys = {normalise_name(k): v for k, v in mapping.items()}
+    for name, unit in readings:
+        target = keys.get(normalise_name(name))
+        if target is not None:
+            return target, unit
+    for name, unit in readings:
+        target = lookup.get(normalise_name(name))
+        if target is not None:
+            return target, unit
+    return None, None
+
+
+def _affine(c: UnitConversion) -> tuple[float, float, float, float]:
+    return c.subtract, c.multiply, c.divide, c.add
+
+
+def _row_texts(row: list) -> list[str]:
+    return [_cell_text(c) for c in row]
+
+
+def find_header(cells: Cells, vocabulary: Sequence[str], columns: Mapping[str, str] | str | None = None
+                ) -> tuple[int | None, dict[int, tuple[str, str | None]]]:
+    """Locate the header row: the first of the first 100 rows with two or more recognised column names.
+
+    Parameters
+    ----------
+    cells : Cells
+    vocabulary : sequence of str
+        Canonical column names to recognise.
+    columns : mapping or str, optional
+        User mapping foreign header → canonical name (see :func:`parse_column_mapping`).
+
+    Returns
+    -------
+    (int or None, dict)
+        0-based index of the header row (``None`` if none found) and ``{position: (canonical name,
+        unit written in the header or None)}`` for the recognised cells (``"-"`` for ignored ones).
+    """
+    mapping = parse_column_mapping(columns)
+    lookup = _lookup(vocabulary)
+    for i, row in enumerate(cells.rows[:_HEADER_SCAN_ROWS]):
+        found = {j: _match(t, lookup, mapping) for j, t in enumerate(_row_texts(row)) if t}
+        found = {j: m for j, m in found.items() if m[0] is not None}
+        if sum(1 for m in found.values() if m[0] != IGNORE) >= 2:
+            return i, found
+    return None, {}
+
+
+def read_table(source: str | os.PathLike | Cells, vocabulary: Sequence[str], *,
+               required: Sequence[str | tuple[str, ...]] = (), sheet: str | None = None,
+               columns: Mapping[str, str] | str | None = None, hint: str = "") -> Table:
+    """Find the header, units and data rows of a table and bind its columns to canonical names.
+
+    Parameters
+    ----------
+    source : str, path-like or Cells
+        The file (see :func:`load_cells`) or a grid already loaded.
+    vocabulary : sequence of str
+        Canonical column names this table may hold (keys of :data:`COLUMN_KINDS`).
+    required : sequence
+        Canonical names that must be present; a tuple means "one of these".
+    sheet : str, optional
+        Worksheet of a workbook.
+    columns : mapping or str, optional
+        User mapping foreign header → canonical name (``"-"`` ignores a column); see
+        :func:`parse_column_mapping`.
+    hint : str, optional
+        Appended to the missing-column message.
+
+    Returns
+    -------
+    Table
+    """
+    cells = source if isinstance(source, Cells) else load_cells(source, sheet=sheet)
+    label = cells.label
+    mapping = parse_column_mapping(columns)
+    vocabulary = list(vocabulary)
+    for foreign, target in mapping.items():
+        if target != IGNORE and target not in vocabulary:
+            raise InputError(f"column mapping: '{foreign}' is mapped to '{target}', which this table does not "
+                             f"use; allowed: {', '.join(vocabulary)} (or '-' to ignore it)", file=label)
+    lookup = _lookup(vocabulary)
+    rows = cells.rows
+
+    header_index, matches = find_header(cells, vocabulary, mapping)
+    if header_index is None:
+        first = next((i for i, r in enumerate(rows) if any(_cell_text(c) for c in r)), None)
+        if first is None:
+            raise InputError("the file holds no table", file=label)
+        header_index = first
+        found = {j: _match(t, lookup, mapping) for j, t in enumerate(_row_texts(rows[first])) if t}
+        matches = {j: m for j, m in found.items() if m[0] is not None}
+    header_cells = [" ".join(t.split()) for t in _row_texts(rows[header_index])]  # one line each
+    header_row = header_index + 1
+    headers = tuple(t for t in header_cells if t)
+
+    # the user's mapping must name columns that exist
+    for foreign in mapping:
+        key = normalise_name(foreign)
+        if not any(key == normalise_name(name) for t in headers for name, _ in split_header(t)):
+            raise InputError(f"column mapping: there is no column '{foreign}'; columns found: "
+                             f"{', '.join(headers)}", file=label, row=header_row)
+
+    bound: dict[str, tuple[int, str, str | None]] = {}
+    for j, (target, unit) in sorted(matches.items()):
+        if target == IGNORE:
+            continue
+        if target in bound:
+            other = header_cells[bound[target][0]]
+            raise InputError(f"two columns give {target}: '{other}' and '{header_cells[j]}'; keep one (or "
+                             f"map one to '-' to ignore it)", file=label, row=header_row, column=header_cells[j])
+        bound[target] = (j, header_cells[j], unit)
+
+    missing = []
+    for need in required:
+        alternatives = (need,) if isinstance(need, str) else tuple(need)
+        if not any(a in bound for a in alternatives):
+            missing.append(" or ".join(alternatives))
+    if missing:
+        raise InputError(f"missing required column(s) {', '.join(missing)}; columns found: "
+                         f"{', '.join(headers) or 'none'}{hint}", file=label, row=header_row)
+
+    # units row right under the header
+    data_start = header_index + 1
+    units_row = None
+    units: dict[str, str | None] = {}
+    if data_start < len(rows):
+        cand = _row_texts(rows[data_start])
+        is_units, any_unit = True, False
+        for target, (j, _, _) in bound.items():
+            t = cand[j] if j < len(cand) else ""
+            if not t:
+                continue
+            if COLUMN_KINDS[target] is None:
+                if not _UNIT_LABEL.match(t):
+                    is_units = False
+                    break
+            elif _looks_number(t):
+                is_units = False
+                break
+            else:
+                any_unit = True
+        if is_units and any_unit:
+            units_row = data_start + 1
+            units = {target: (cand[j] if j < len(cand) else "") or None for target, (j, _, _) in bound.items()}
+            data_start += 1
+
+    columns_out: dict[str, TableColumn] = {}
+    data_rows = rows[data_start:]
+    positions = [j for j, _, _ in bound.values()]
+    keep = [k for k, row in enumerate(data_rows)
+            if any(_filled(row[j]) for j in positions if j < len(row))]
+    if not keep:
+        raise InputError("no data rows under the header", file=label,
+                         row=units_row or header_row)
+    kept = [data_rows[k] for k in keep] if len(keep) != len(data_rows) else data_rows
+    for target, (j, header, head_unit) in bound.items():
+        kind = COLUMN_KINDS[target]
+        unit = head_unit
+        conversion = None
+        if kind is not None:
+            row_unit = units.get(target)
+            try:
+                conversion = parse_unit(unit, kind)
+            except InputError as e:
+                raise e.located(file=label, row=header_row, column=header) from None
+            if row_unit is not None:
+                try:
+                    row_conv = parse_unit(row_unit, kind)
+                except InputError as e:
+                    raise e.located(file=label, row=units_row, column=header) from None
+                if unit is None:
+                    unit, conversion = row_unit, row_conv
+                elif _affine(row_conv) != _affine(conversion):
+                    raise InputError(f"the header gives unit '{unit}' but the units row gives '{row_unit}'",
+                                     file=label, row=units_row, column=header)
+        cells_j = [row[j] if j < len(row) else "" for row in kept]
+        columns_out[target] = TableColumn(target, header, j, unit, conversion, cells_j)
+    row_numbers = np.asarray(keep, dtype=np.int64) + (data_start + 1)
+    return Table(cells.source, cells.sheet, header_row, units_row, columns_out, row_numbers, headers,
+                 cells.decimal_comma)
