@@ -10,33 +10,28 @@ from .cost import (
     price_per_kw_year,
     total_annual_cost,
 )
-from .sizing import (
+from .geometry import (
     DoublePipeSizing,
     ExchangerType,
-    FlowArrangement,
-    Rating,
-    SegmentedSizing,
     ShellAndTubeSizing,
+    size_double_pipe,
+    size_exchanger,
+    size_shell_and_tube,
+)
+from .rating import Rating, effectiveness_from_ntu, max_effectiveness, ntu_from_effectiveness, rate_exchanger
+from .segments import SegmentedSizing, SizingInterval, cut_profile, size_segments
+from .sizing import (
+    FlowArrangement,
     ShellDesign,
-    SizingInterval,
     area_from_duty,
-    cut_profile,
     duty_from_area,
-    effectiveness_from_ntu,
     f_factor,
     f_factor_from_temperatures,
     lmtd,
     log_mean,
-    max_effectiveness,
-    ntu_from_effectiveness,
     overall_coefficient,
     p_max,
-    rate_exchanger,
     shell_design,
-    size_double_pipe,
-    size_exchanger,
-    size_segments,
-    size_shell_and_tube,
 )
 from .structure import Cooler, Exchanger, Heater, Network, approach_violations, check_network
 

@@ -1,4 +1,4 @@
-"""Exchanger sizing: overall coefficient, LMTD, F-factor and shells, ε-NTU rating, segment-wise area.
+"""Exchanger sizing: overall coefficient, LMTD, area, F-factor and 1-2 shells.
 
 Pure functions on floats (and numpy arrays where natural) in canonical units: °C, K for differences,
 kW, kW/K, kW/(m²·K), m²·K/kW for fouling resistances, m².  Conventions used throughout:
@@ -7,9 +7,7 @@ kW, kW/K, kW/(m²·K), m²·K/kW for fouling resistances, m².  Conventions used
   ΔT₁ = T_hot,in − T_cold,out and ΔT₂ = T_hot,out − T_cold,in;
 * for the 1-2 shell-and-tube F-factor, R = (T_hot,in − T_hot,out)/(T_cold,out − T_cold,in) and
   P = (T_cold,out − T_cold,in)/(T_hot,in − T_cold,in); the result does not depend on which fluid is in
-  the shell;
-* in ε-NTU, NTU = UA/C_min and C_r = C_min/C_max ∈ [0, 1]; several 1-2 shells in series share the
-  total area equally.
+  the shell.
 
 Where the two ends of a log mean are nearly equal, the log mean is written
 (ΔT₁ + ΔT₂)/2 · r/artanh(r) with r = (ΔT₁ − ΔT₂)/(ΔT₁ + ΔT₂) and a series for small r, so it is exact
@@ -17,6 +15,21 @@ Where the two ends of a log mean are nearly equal, the log mean is written
 relations are likewise written with ``log1p``/``expm1`` ratios that stay exact at R = 1 and C_r = 1.
 
 The limits X_P and the minimum F are defined once in :mod:`heatloom.network.data`.
+
+ε-NTU rating is in :mod:`heatloom.network.rating`, segment-wise area in
+:mod:`heatloom.network.segments` and exchanger geometry in :mod:`heatloom.network.geometry`; they use
+the private helpers of this module.
+
+References
+----------
+Underwood, A.J.V. (1934) The calculation of the mean temperature difference in multi-pass heat
+exchangers, J. Inst. Petroleum Technologists 20, 145-158.
+Bowman, R.A., Mueller, A.C., Nagle, W.M. (1940) Mean temperature difference in design,
+Trans. ASME 62, 283-294.
+Fakheri, A. (2003) A general expression for the determination of the log mean temperature
+correction factor for shell and tube heat exchangers, J. Heat Transfer 125(3), 527-530.
+Ahmad, S., Linnhoff, B., Smith, R. (1988) Design of multipass heat exchangers: an alternative
+approach, J. Heat Transfer 110(2), 304-309.
 
 Sizing results are screening estimates: fouling, design margins, pressure and temperature limits
 and any temperature cross must be checked, and designs checked against local codes and standards by
@@ -27,18 +40,15 @@ from __future__ import annotations
 
 import enum
 import math
-from collections.abc import Sequence
-from dataclasses import asdict, dataclass, field
+from dataclasses import asdict, dataclass
 
 import numpy as np
 
 from ..errors import InputError, TemperatureCrossError
-from ..model import Segment
 from . import data
 
 __all__ = [
     "FlowArrangement",
-    "ExchangerType",
     "overall_coefficient",
     "log_mean",
     "lmtd",
@@ -49,20 +59,6 @@ __all__ = [
     "p_max",
     "ShellDesign",
     "shell_design",
-    "effectiveness_from_ntu",
-    "ntu_from_effectiveness",
-    "max_effectiveness",
-    "Rating",
-    "rate_exchanger",
-    "SizingInterval",
-    "SegmentedSizing",
-    "cut_profile",
-    "size_segments",
-    "DoublePipeSizing",
-    "ShellAndTubeSizing",
-    "size_double_pipe",
-    "size_shell_and_tube",
-    "size_exchanger",
 ]
 
 
@@ -73,15 +69,6 @@ class FlowArrangement(enum.Enum):
     CO_CURRENT = "co_current"
     SHELL_AND_TUBE_1_2 = "shell_and_tube_1_2"
     """One shell pass, an even number of tube passes; N such shells may be in series."""
-
-
-class ExchangerType(enum.Enum):
-    """Kinds of exchanger that :func:`size_exchanger` sizes with their geometry."""
-
-    DOUBLE_PIPE = "double_pipe"
-    """Counter-current double pipe (hairpins)."""
-    SHELL_AND_TUBE_1_2 = "shell_and_tube_1_2"
-    """1-2 shell and tube, shells in series as needed."""
 
 
 # --------------------------------------------------------------------------------------------------
@@ -192,6 +179,16 @@ def _arrangement(arrangement) -> FlowArrangement:
     except ValueError:
         allowed = ", ".join(a.value for a in FlowArrangement)
         raise InputError(f"unknown flow arrangement {arrangement!r}; allowed: {allowed}") from None
+
+
+def _finite(x, what, unit) -> float:
+    try:
+        v = float(x)
+    except (TypeError, ValueError):
+        raise InputError(f"{what} must be a number [{unit}], got {x!r}") from None
+    if not math.isfinite(v):
+        raise InputError(f"{what} must be a finite number [{unit}], got {v!r}")
+    return v
 
 
 # --------------------------------------------------------------------------------------------------
@@ -696,613 +693,3 @@ def shell_design(hot_in, hot_out, cold_in, cold_out, *, x_p=data.X_P, min_f=data
         f = float(f_factor(r, p, n))
     return ShellDesign(n, f, r, p, float(_series_unit(p, r, n)), float(_p_max_1_2(r)), n_real, x_p, min_f,
                        set_by)
-
-
-# --------------------------------------------------------------------------------------------------
-# ε-NTU
-
-
-def _check_cr(cr):
-    cr = _array(cr, "capacity ratio C_r")
-    _require((cr >= 0) & (cr <= 1), cr, "capacity ratio C_r = C_min/C_max must be in [0, 1], got {}")
-    return cr
-
-
-def effectiveness_from_ntu(ntu, capacity_ratio, arrangement=FlowArrangement.COUNTER_CURRENT, *, shells=1):
-    """Thermal effectiveness ε = Q/[C_min(T_h,in − T_c,in)] from NTU = UA/C_min and C_r = C_min/C_max.
-
-    Counter-current: ε = [1 − e^{−NTU(1−C_r)}]/[1 − C_r e^{−NTU(1−C_r)}] (NTU/(1 + NTU) at C_r = 1,
-    reached continuously).  Co-current: ε = [1 − e^{−NTU(1+C_r)}]/(1 + C_r).  One 1-2 shell:
-    ε₁ = 2/[1 + C_r + S·coth(NTU₁·S/2)], S = √(1 + C_r²); N shells in series, each with NTU₁ = NTU/N:
-    ε = (Wᴺ − 1)/(Wᴺ − C_r), W = (1 − ε₁C_r)/(1 − ε₁) (Nε₁/[1 + (N−1)ε₁] at C_r = 1).  These are the
-    standard closed forms, e.g. Incropera, DeWitt, Bergman & Lavine (2007), Fundamentals of Heat and
-    Mass Transfer, 6th ed., Wiley, Table 11.3.
-
-    Parameters
-    ----------
-    ntu : float or array
-        NTU [-], >= 0.
-    capacity_ratio : float or array
-        C_r [-], in [0, 1].
-    arrangement : FlowArrangement, optional
-    shells : int, optional
-        Shells in series, for ``SHELL_AND_TUBE_1_2`` only [-].
-
-    Returns
-    -------
-    float or ndarray
-        ε [-].
-
-    Examples
-    --------
-    >>> round(effectiveness_from_ntu(1.0, 1.0), 6)
-    0.5
-    >>> round(effectiveness_from_ntu(1.0, 0.5, FlowArrangement.CO_CURRENT), 4)
-    0.5179
-    """
-    arrangement = _arrangement(arrangement)
-    n = _check_shells(shells)
-    ntu = _array(ntu, "NTU")
-    _require((ntu >= 0) & np.isfinite(ntu), ntu, "NTU must be >= 0 and finite, got {}")
-    cr = _check_cr(capacity_ratio)
-    if arrangement is FlowArrangement.COUNTER_CURRENT:
-        return _out(_cc_effectiveness(ntu, cr))
-    if arrangement is FlowArrangement.CO_CURRENT:
-        return _out(-np.expm1(-ntu * (1.0 + cr)) / (1.0 + cr))
-    s = np.sqrt(1.0 + cr * cr)
-    t = np.tanh(ntu / n * s / 2)
-    e1 = 2.0 * t / ((1.0 + cr) * t + s)
-    return _out(e1 if n == 1 else _series_total(e1, cr, n))
-
-
-def max_effectiveness(capacity_ratio, arrangement=FlowArrangement.COUNTER_CURRENT, *, shells=1):
-    """Effectiveness reached with infinite area [-] (the supremum; never reached).
-
-    Counter-current 1; co-current 1/(1 + C_r); 1-2 shells: :func:`p_max`.
-
-    Examples
-    --------
-    >>> max_effectiveness(1.0, FlowArrangement.CO_CURRENT)
-    0.5
-    """
-    arrangement = _arrangement(arrangement)
-    n = _check_shells(shells)
-    cr = _check_cr(capacity_ratio)
-    if arrangement is FlowArrangement.COUNTER_CURRENT:
-        return _out(np.ones_like(cr))
-    if arrangement is FlowArrangement.CO_CURRENT:
-        return _out(1.0 / (1.0 + cr))
-    return _out(_series_total(_p_max_1_2(cr), cr, n))
-
-
-def ntu_from_effectiveness(effectiveness, capacity_ratio, arrangement=FlowArrangement.COUNTER_CURRENT, *,
-                           shells=1):
-    """NTU needed for an effectiveness: the inverse of :func:`effectiveness_from_ntu`.
-
-    Counter-current: NTU = ln[(1 − εC_r)/(1 − ε)]/(1 − C_r) (ε/(1 − ε) at C_r = 1, reached continuously).
-    Co-current: NTU = −ln[1 − ε(1 + C_r)]/(1 + C_r).  1-2 shells: ε₁ of each shell from the series
-    relation, then NTU₁ = ln{[2 − ε₁(1 + C_r − S)]/[2 − ε₁(1 + C_r + S)]}/S and NTU = N·NTU₁.
-
-    Parameters
-    ----------
-    effectiveness : float or array
-        ε [-], 0 <= ε < :func:`max_effectiveness`.
-    capacity_ratio : float or array
-        C_r [-], in [0, 1].
-    arrangement : FlowArrangement, optional
-    shells : int, optional
-
-    Returns
-    -------
-    float or ndarray
-        NTU [-].
-
-    Raises
-    ------
-    InputError
-        If ε is not reachable by the arrangement (the message gives the maximum).
-
-    Examples
-    --------
-    >>> round(ntu_from_effectiveness(0.5, 1.0), 6)
-    1.0
-    """
-    arrangement = _arrangement(arrangement)
-    n = _check_shells(shells)
-    eps = _array(effectiveness, "effectiveness")
-    cr = _check_cr(capacity_ratio)
-    _require(eps >= 0, eps, "effectiveness must be >= 0, got {}")
-    top = _array(max_effectiveness(cr, arrangement, shells=n), "maximum effectiveness")
-    ok = eps < top
-    if not np.all(ok):
-        e, c, m = (np.broadcast_to(x, ok.shape)[~ok].flat[0] for x in np.broadcast_arrays(eps, cr, top))
-        extra = f" with {n} shell(s)" if arrangement is FlowArrangement.SHELL_AND_TUBE_1_2 else ""
-        raise InputError(f"effectiveness {e:g} is not reachable by a {arrangement.value.replace('_', '-')} "
-                         f"exchanger{extra} at C_r = {c:g}: it must be below {m:.6g}")
-    if arrangement is FlowArrangement.COUNTER_CURRENT:
-        return _out(_cc_ntu(eps, cr))
-    if arrangement is FlowArrangement.CO_CURRENT:
-        return _out(-np.log1p(-eps * (1.0 + cr)) / (1.0 + cr))
-    e1 = eps if n == 1 else _series_unit(eps, cr, n)
-    return _out(n * _ntu_1_2(e1, cr))
-
-
-@dataclass(frozen=True)
-class Rating:
-    """Performance of an exchanger of known area (see :func:`rate_exchanger`).
-
-    Attributes: ``duty`` [kW], ``hot_out``, ``cold_out`` [°C], ``effectiveness`` [-], ``ntu`` [-]
-    (on C_min), ``capacity_ratio`` [-], ``arrangement``, ``shells``.
-    """
-
-    duty: float
-    hot_out: float
-    cold_out: float
-    effectiveness: float
-    ntu: float
-    capacity_ratio: float
-    arrangement: FlowArrangement
-    shells: int
-
-    def to_dict(self) -> dict:
-        d = asdict(self)
-        d["arrangement"] = self.arrangement.value
-        return d
-
-
-def rate_exchanger(hot_in, cold_in, hot_heat_capacity_flow, cold_heat_capacity_flow, u, area,
-                   arrangement=FlowArrangement.COUNTER_CURRENT, *, shells=1) -> Rating:
-    """Duty and outlet temperatures of an exchanger of known area (ε-NTU rating).
-
-    .. math:: NTU = UA/C_{min},\\quad Q = \\varepsilon\\,C_{min}\\,(T_{h,in} - T_{c,in}),\\quad
-              T_{h,out} = T_{h,in} - Q/C_h,\\quad T_{c,out} = T_{c,in} + Q/C_c
-
-    Parameters
-    ----------
-    hot_in, cold_in : float
-        Inlet temperatures [°C]; hot_in >= cold_in.
-    hot_heat_capacity_flow, cold_heat_capacity_flow : float
-        CP of each side [kW/K], > 0.
-    u : float
-        [kW/(m²·K)], > 0.
-    area : float
-        [m²], >= 0 (for ``shells`` > 1, the total area of all shells).
-    arrangement : FlowArrangement, optional
-    shells : int, optional
-
-    Returns
-    -------
-    Rating
-
-    Raises
-    ------
-    TemperatureCrossError
-        If the hot inlet is colder than the cold inlet.
-
-    Examples
-    --------
-    >>> r = rate_exchanger(150.0, 30.0, 2.0, 2.0, 0.5, 8.0)
-    >>> round(r.duty, 3), round(r.hot_out, 3), round(r.cold_out, 3)
-    (160.0, 70.0, 110.0)
-    """
-    arrangement = _arrangement(arrangement)
-    n = _check_shells(shells)
-    th, tc = _finite(hot_in, "hot inlet temperature", "°C"), _finite(cold_in, "cold inlet temperature", "°C")
-    ch = _finite(hot_heat_capacity_flow, "hot heat capacity flow rate", "kW/K")
-    cc = _finite(cold_heat_capacity_flow, "cold heat capacity flow rate", "kW/K")
-    uu, a = _finite(u, "overall coefficient U", "kW/(m²·K)"), _finite(area, "area", "m²")
-    for v, name, unit in ((ch, "hot heat capacity flow rate", "kW/K"), (cc, "cold heat capacity flow rate", "kW/K"),
-                          (uu, "overall coefficient U", "kW/(m²·K)")):
-        if not v > 0:
-            raise InputError(f"{name} must be > 0 {unit}, got {v:g}")
-    if not a >= 0:
-        raise InputError(f"area must be >= 0 m², got {a:g}")
-    if th < tc:
-        raise TemperatureCrossError(f"hot inlet {th:g} °C is below cold inlet {tc:g} °C: the exchanger "
-                                    "would heat the hot side; swap the sides or drop the match")
-    cmin, cmax = min(ch, cc), max(ch, cc)
-    cr, ntu = cmin / cmax, uu * a / cmin
-    eps = float(effectiveness_from_ntu(ntu, cr, arrangement, shells=n))
-    q = eps * cmin * (th - tc)
-    return Rating(q, th - q / ch, tc + q / cc, eps, ntu, cr, arrangement, n)
-
-
-def _finite(x, what, unit) -> float:
-    try:
-        v = float(x)
-    except (TypeError, ValueError):
-        raise InputError(f"{what} must be a number [{unit}], got {x!r}") from None
-    if not math.isfinite(v):
-        raise InputError(f"{what} must be a finite number [{unit}], got {v!r}")
-    return v
-
-
-# --------------------------------------------------------------------------------------------------
-# streams of several segments
-
-
-@dataclass(frozen=True)
-class SizingInterval:
-    """One interval of a segment-wise sizing: both sides linear, one U.
-
-    Temperatures [°C] are those at the interval's hot end (``hot_in``, ``cold_out``) and cold end
-    (``hot_out``, ``cold_in``); ``duty`` [kW], ``lmtd`` [K], ``u`` [kW/(m²·K)], ``area`` [m²].
-    """
-
-    duty: float
-    hot_in: float
-    hot_out: float
-    cold_in: float
-    cold_out: float
-    lmtd: float
-    u: float
-    area: float
-
-    def to_dict(self) -> dict:
-        return asdict(self)
-
-
-@dataclass(frozen=True)
-class SegmentedSizing:
-    """Area of a counter-current match between piecewise-linear sides (see :func:`size_segments`)."""
-
-    area: float
-    duty: float
-    intervals: tuple[SizingInterval, ...] = field(default=())
-
-    def to_dict(self) -> dict:
-        return {"area": self.area, "duty": self.duty, "intervals": [i.to_dict() for i in self.intervals]}
-
-    def to_frame(self):
-        import pandas as pd
-
-        return pd.DataFrame([i.to_dict() for i in self.intervals])
-
-
-def _check_side(segments: Sequence[Segment], hot: bool) -> tuple[Segment, ...]:
-    side = "hot" if hot else "cold"
-    segs = tuple(segments)
-    if not segs:
-        raise InputError(f"the {side} side has no segments")
-    for i, s in enumerate(segs):
-        if not isinstance(s, Segment):
-            raise InputError(f"{side} side item {i} must be a heatloom.model.Segment, got {type(s).__name__}")
-        if s.is_hot != hot:
-            raise InputError(f"{side} side segment {s.supply_temperature:g} → {s.target_temperature:g} °C "
-                             f"runs the wrong way: a {side} side must {'cool down' if hot else 'heat up'}")
-    for a, b in zip(segs, segs[1:], strict=False):
-        if not math.isclose(b.supply_temperature, a.target_temperature, rel_tol=0, abs_tol=1e-9):
-            raise InputError(f"{side} side segments do not chain: one ends at {a.target_temperature:g} °C, "
-                             f"the next starts at {b.supply_temperature:g} °C")
-    return segs
-
-
-def cut_profile(segments: Sequence[Segment], start: float, end: float) -> tuple[Segment, ...]:
-    """The part of a chained profile between two temperatures, as segments.
-
-    Parameters
-    ----------
-    segments : sequence of Segment
-        A chained hot (cooling) or cold (heating) profile, e.g. ``Stream.segments``.
-    start, end : float
-        Where the exchanger's side starts and ends [°C], inside the profile and in its direction.
-
-    Returns
-    -------
-    tuple of Segment
-
-    Examples
-    --------
-    >>> segs = (Segment(200, 150, 1.0), Segment(150, 149, 300.0), Segment(149, 100, 2.0))
-    >>> [(s.supply_temperature, s.target_temperature) for s in cut_profile(segs, 180, 120)]
-    [(180.0, 150.0), (150.0, 149.0), (149.0, 120.0)]
-    """
-    segs = tuple(segments)
-    hot = bool(segs) and segs[0].is_hot
-    segs = _check_side(segs, hot)
-    t0, t1 = float(start), float(end)
-    lo, hi = min(segs[0].supply_temperature, segs[-1].target_temperature), \
-        max(segs[0].supply_temperature, segs[-1].target_temperature)
-    if not (t0 > t1 if hot else t0 < t1):
-        raise InputError(f"cut from {t0:g} to {t1:g} °C runs against the profile "
-                         f"({segs[0].supply_temperature:g} → {segs[-1].target_temperature:g} °C)")
-    for t in (t0, t1):
-        if not (lo - 1e-9 <= t <= hi + 1e-9):
-            raise InputError(f"cut temperature {t:g} °C is outside the profile ({lo:g} to {hi:g} °C)")
-    out = []
-    for s in segs:
-        a, b = s.supply_temperature, s.target_temperature
-        if hot:
-            a2, b2 = min(a, t0), max(b, t1)
-            keep = a2 > b2
-        else:
-            a2, b2 = max(a, t0), min(b, t1)
-            keep = a2 < b2
-        if keep:
-            out.append(Segment(a2, b2, s.heat_capacity_flow, s.film_coefficient, s.dt_min_contribution, s.row))
-    return tuple(out)
-
-
-def size_segments(hot_segments: Sequence[Segment], cold_segments: Sequence[Segment], *, u=None,
-                  hot_fouling=0.0, cold_fouling=0.0, rel_tol=1e-6) -> SegmentedSizing:
-    """Area of a counter-current match whose sides are piecewise linear, interval by interval.
-
-    The duty is split at every breakpoint of either side; in each interval both sides are linear, so
-
-    .. math:: A = \\sum_k \\frac{Q_k}{U_k\\,\\Delta T_{lm,k}},\\qquad
-              1/U_k = 1/h_{hot,k} + 1/h_{cold,k} + R_{f,hot} + R_{f,cold}
-
-    with each interval's own film coefficients (from ``Segment.film_coefficient``).
-
-    Parameters
-    ----------
-    hot_segments : sequence of Segment
-        The hot side, from the hot inlet down to the hot outlet (use :func:`cut_profile` to take part
-        of a stream).
-    cold_segments : sequence of Segment
-        The cold side, from the cold inlet up to the cold outlet.
-    u : float, optional
-        One clean overall coefficient [kW/(m²·K)] for every interval instead of the film
-        coefficients; the fouling resistances are still added to it.
-    hot_fouling, cold_fouling : float, optional
-        [m²·K/kW]
-    rel_tol : float, optional
-        Allowed relative mismatch of the two sides' duties [-].
-
-    Returns
-    -------
-    SegmentedSizing
-
-    Raises
-    ------
-    TemperatureCrossError
-        If ΔT <= 0 at either end or at any breakpoint.
-    InputError
-        If the duties differ, a segment lacks a film coefficient, or the sides are malformed.
-
-    Examples
-    --------
-    >>> hot = [Segment(200, 150, 2.0, 1.0), Segment(150, 100, 4.0, 0.5)]
-    >>> cold = [Segment(40, 140, 3.0, 1.0)]
-    >>> res = size_segments(hot, cold)
-    >>> len(res.intervals), round(res.area, 3)
-    (2, 15.62)
-    """
-    hot = _check_side(hot_segments, True)
-    cold = _check_side(cold_segments, False)
-    q_hot = sum(s.duty for s in hot)
-    q_cold = sum(s.duty for s in cold)
-    if not math.isclose(q_hot, q_cold, rel_tol=rel_tol, abs_tol=0.0):
-        raise InputError(f"the hot side gives {q_hot:g} kW but the cold side takes {q_cold:g} kW; "
-                         f"a match needs equal duties (tolerance {rel_tol:g} relative)")
-    u_fixed = None
-    if u is not None:
-        u_fixed = _finite(u, "overall coefficient U", "kW/(m²·K)")
-        if not u_fixed > 0:
-            raise InputError(f"overall coefficient U must be > 0 kW/(m²·K), got {u_fixed:g}")
-        # fouling adds to the given clean U exactly as to the film resistances
-        u_fixed = float(overall_coefficient(2 * u_fixed, 2 * u_fixed, hot_fouling=hot_fouling,
-                                            cold_fouling=cold_fouling))
-    else:
-        for side, segs in (("hot", hot), ("cold", cold)):
-            for s in segs:
-                if s.film_coefficient is None:
-                    raise InputError(f"{side} side segment {s.supply_temperature:g} → {s.target_temperature:g} °C "
-                                     "has no film coefficient h; give h or a fixed U", row=s.row, column="h")
-    # heat coordinate x from the cold end (hot outlet, cold inlet) to the hot end
-    hot_up = hot[::-1]
-    xh = np.concatenate(([0.0], np.cumsum([s.duty for s in hot_up])))
-    th = np.array([hot_up[0].target_temperature] + [s.supply_temperature for s in hot_up])
-    xc = np.concatenate(([0.0], np.cumsum([s.duty for s in cold])))
-    tc = np.array([cold[0].supply_temperature] + [s.target_temperature for s in cold])
-    q = 0.5 * (q_hot + q_cold)
-    xh *= q / xh[-1]
-    xc *= q / xc[-1]
-    xs = np.unique(np.concatenate((xh, xc)))
-    keep = np.concatenate(([True], np.diff(xs) > 1e-9 * q))
-    xs = xs[keep]
-    xs[-1] = q
-    t_hot, t_cold = np.interp(xs, xh, th), np.interp(xs, xc, tc)
-    dts = t_hot - t_cold
-    bad = np.flatnonzero(~(dts > 0))
-    if bad.size:
-        i = bad[0]
-        raise TemperatureCrossError(
-            f"temperature cross in the match: at {xs[i]:g} kW from the cold end the hot side is at "
-            f"{t_hot[i]:g} °C and the cold side at {t_cold[i]:g} °C (ΔT = {dts[i]:g} K, must be > 0 K); "
-            f"hot {hot[0].supply_temperature:g} → {hot[-1].target_temperature:g} °C, cold "
-            f"{cold[0].supply_temperature:g} → {cold[-1].target_temperature:g} °C")
-    intervals = []
-    for k in range(len(xs) - 1):
-        mid = 0.5 * (xs[k] + xs[k + 1])
-        sh = hot_up[min(int(np.searchsorted(xh, mid)) - 1, len(hot_up) - 1)]
-        sc = cold[min(int(np.searchsorted(xc, mid)) - 1, len(cold) - 1)]
-        if u_fixed is None:
-            uk = float(overall_coefficient(sh.film_coefficient, sc.film_coefficient, hot_fouling=hot_fouling,
-                                           cold_fouling=cold_fouling))
-        else:
-            uk = u_fixed
-        dq = xs[k + 1] - xs[k]
-        dlm = float(log_mean(dts[k + 1], dts[k]))
-        intervals.append(SizingInterval(float(dq), float(t_hot[k + 1]), float(t_hot[k]), float(t_cold[k]),
-                                        float(t_cold[k + 1]), dlm, uk, float(dq / (uk * dlm))))
-    return SegmentedSizing(float(sum(i.area for i in intervals)), float(q), tuple(intervals))
-
-
-# --------------------------------------------------------------------------------------------------
-# exchanger types with geometry
-
-
-@dataclass(frozen=True)
-class DoublePipeSizing:
-    """A counter-current double-pipe exchanger made of hairpins (see :func:`size_double_pipe`).
-
-    Convention: a hairpin has two straight legs of length L; its area is π·d·2L on the diameter d that U
-    refers to; return bends are not counted as area.
-
-    Attributes
-    ----------
-    duty [kW], u [kW/(m²·K)], lmtd [K]
-    area : float
-        Area required [m²].
-    tube_diameter, hairpin_length : float
-        d and L [m].
-    tube_length : float
-        Straight tube length required, A/(π·d) [m].
-    hairpins : int
-        Hairpins needed, tube_length/(2L) rounded up [-].
-    area_per_hairpin, installed_area : float
-        π·d·2L and hairpins × that [m²].
-    """
-
-    duty: float
-    u: float
-    lmtd: float
-    area: float
-    tube_diameter: float
-    hairpin_length: float
-    tube_length: float
-    hairpins: int
-    area_per_hairpin: float
-    installed_area: float
-
-    @property
-    def exchanger_type(self) -> ExchangerType:
-        return ExchangerType.DOUBLE_PIPE
-
-    @property
-    def shells(self) -> int:
-        """Units to cost: one double-pipe unit (however many hairpins) [-]."""
-        return 1
-
-    def to_dict(self) -> dict:
-        return {"type": self.exchanger_type.value, **asdict(self)}
-
-
-@dataclass(frozen=True)
-class ShellAndTubeSizing:
-    """1-2 shell-and-tube shells in series (see :func:`size_shell_and_tube`).
-
-    Attributes: ``duty`` [kW], ``u`` [kW/(m²·K)], ``lmtd`` (counter-current) [K], ``f`` [-], ``area``
-    (all shells) [m²], ``shells`` [-], ``area_per_shell`` [m²], ``design`` (the :class:`ShellDesign`).
-    """
-
-    duty: float
-    u: float
-    lmtd: float
-    f: float
-    area: float
-    shells: int
-    area_per_shell: float
-    design: ShellDesign
-
-    @property
-    def exchanger_type(self) -> ExchangerType:
-        return ExchangerType.SHELL_AND_TUBE_1_2
-
-    def to_dict(self) -> dict:
-        d = {"type": self.exchanger_type.value, **asdict(self)}
-        d["design"] = self.design.to_dict()
-        return d
-
-
-def _positive(x, what, unit) -> float:
-    v = _finite(x, what, unit)
-    if not v > 0:
-        raise InputError(f"{what} must be > 0 {unit}, got {v:g}")
-    return v
-
-
-def size_double_pipe(duty, u, hot_in, hot_out, cold_in, cold_out, *, tube_diameter,
-                     hairpin_length) -> DoublePipeSizing:
-    """Size a counter-current double-pipe exchanger: area, tube length and hairpins.
-
-    Parameters
-    ----------
-    duty : float
-        Q [kW], > 0.
-    u : float
-        U referred to the surface of diameter ``tube_diameter`` [kW/(m²·K)].
-    hot_in, hot_out, cold_in, cold_out : float
-        [°C]
-    tube_diameter : float
-        Diameter of the inner tube that the area is measured on (usually its outside) [m].
-    hairpin_length : float
-        Length L of one leg of a hairpin [m].
-
-    Returns
-    -------
-    DoublePipeSizing
-
-    Examples
-    --------
-    >>> d = size_double_pipe(100.0, 0.5, 150, 100, 30, 80, tube_diameter=0.05, hairpin_length=4.0)
-    >>> round(d.area, 3), d.hairpins, round(d.installed_area, 3)
-    (2.857, 3, 3.77)
-    """
-    q = _positive(duty, "duty", "kW")
-    uu = _positive(u, "overall coefficient U", "kW/(m²·K)")
-    d = _positive(tube_diameter, "tube diameter", "m")
-    length = _positive(hairpin_length, "hairpin length", "m")
-    dt = float(lmtd(hot_in, hot_out, cold_in, cold_out))
-    a = q / (uu * dt)
-    tube_length = a / (math.pi * d)
-    per = math.pi * d * 2 * length
-    n = max(1, _ceil(a / per))
-    return DoublePipeSizing(q, uu, dt, a, d, length, tube_length, n, per, n * per)
-
-
-def size_shell_and_tube(duty, u, hot_in, hot_out, cold_in, cold_out, *, x_p=data.X_P,
-                        min_f=data.MIN_F_FACTOR) -> ShellAndTubeSizing:
-    """Size 1-2 shell-and-tube shells in series: shells by :func:`shell_design`, A = Q/(U·F·LMTD).
-
-    Parameters
-    ----------
-    duty : float
-        Q [kW], > 0.
-    u : float
-        [kW/(m²·K)]
-    hot_in, hot_out, cold_in, cold_out : float
-        [°C]
-    x_p, min_f : float, optional
-        Criteria of :func:`shell_design` [-].
-
-    Returns
-    -------
-    ShellAndTubeSizing
-
-    Examples
-    --------
-    >>> s = size_shell_and_tube(1000.0, 0.5, 100, 50, 20, 70)
-    >>> s.shells, round(s.f, 3), round(s.area, 2), round(s.area_per_shell, 2)
-    (2, 0.871, 76.54, 38.27)
-    """
-    q = _positive(duty, "duty", "kW")
-    uu = _positive(u, "overall coefficient U", "kW/(m²·K)")
-    design = shell_design(hot_in, hot_out, cold_in, cold_out, x_p=x_p, min_f=min_f)
-    dt = float(lmtd(hot_in, hot_out, cold_in, cold_out))
-    a = float(area_from_duty(q, uu, dt, design.f))
-    return ShellAndTubeSizing(q, uu, dt, design.f, a, design.shells, a / design.shells, design)
-
-
-def size_exchanger(exchanger_type, duty, u, hot_in, hot_out, cold_in, cold_out, **options):
-    """Size an exchanger of the given :class:`ExchangerType`; ``options`` go to the type's function.
-
-    Examples
-    --------
-    >>> size_exchanger(ExchangerType.SHELL_AND_TUBE_1_2, 1000.0, 0.5, 100, 50, 20, 70).shells
-    2
-    """
-    try:
-        kind = ExchangerType(exchanger_type)
-    except ValueError:
-        allowed = ", ".join(t.value for t in ExchangerType)
-        raise InputError(f"unknown exchanger type {exchanger_type!r}; allowed: {allowed}") from None
-    fn, allowed = ((size_double_pipe, ("tube_diameter", "hairpin_length")) if kind is ExchangerType.DOUBLE_PIPE
-                   else (size_shell_and_tube, ("x_p", "min_f")))
-    unknown = sorted(set(options) - set(allowed))
-    if unknown:
-        raise InputError(f"{kind.value}: unknown option(s) {', '.join(unknown)}; allowed: {', '.join(allowed)}")
-    if kind is ExchangerType.DOUBLE_PIPE and len(options) < 2:
-        raise InputError("double_pipe: tube_diameter [m] and hairpin_length [m] are required")
-    return fn(duty, u, hot_in, hot_out, cold_in, cold_out, **options)
