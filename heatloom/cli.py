@@ -241,6 +241,23 @@ def _cmd_target(args) -> int:
     return EXIT_OK
 
 
+def solves_summary(reports) -> str:
+    """One line on the solves behind a result: how many, their statuses, total time, solver."""
+    from collections import Counter
+
+    if not reports:
+        return "solves: none"
+    statuses = Counter(r.status.value for r in reports)
+    solvers = sorted({r.solver for r in reports})
+    worst = [r for r in reports if not r.optimal]
+    text = (f"solves: {len(reports)} ({', '.join(f'{n} {s}' for s, n in statuses.items())}), "
+            f"{sum(r.wall_time for r in reports):.2f} s, solver {'/'.join(solvers)}")
+    for r in worst:
+        gap = f", gap {100 * r.gap:.2g} %" if r.gap is not None else ""
+        text += f"; not proven optimal: {r.problem} ({r.status.value}{gap})"
+    return text
+
+
 def format_network(net, source: str, dt_note: str) -> str:
     """The human summary of a design: one line per unit, then the costs."""
     cur = net.currency
@@ -273,8 +290,7 @@ def format_network(net, source: str, dt_note: str) -> str:
               f"  capital (annualised)  {net.capital_cost:>14,.0f} {cur}/yr",
               f"  utilities             {net.operating_cost:>14,.0f} {cur}/yr",
               f"  total annual cost     {net.total_annual_cost:>14,.0f} {cur}/yr"]
-    for s in net.solves:
-        lines.append(f"  solve: {s.summary()}" if hasattr(s, "summary") else f"  solve: {s}")
+    lines.append("  " + solves_summary(net.solves))
     for n in net.notes:
         lines.append(f"  note: {n}")
     lines.append(f"  note: {SAFETY_NOTE}")

@@ -10,6 +10,7 @@ from .cost import (
     price_per_kw_year,
     total_annual_cost,
 )
+from .design import Region, design_mer, ideal_utilities, regions_of
 from .geometry import (
     DoublePipeSizing,
     ExchangerType,
@@ -18,6 +19,20 @@ from .geometry import (
     size_exchanger,
     size_shell_and_tube,
 )
+from .milp import (
+    Match,
+    MatchKind,
+    MatchPlan,
+    Subnetwork,
+    SubnetworkMatches,
+    TieBreak,
+    Transshipment,
+    min_matches,
+    plan_matches,
+    subnetworks,
+    transshipment,
+)
+from .placement import PlacedUnit, Placement, Side, stage_model
 from .rating import Rating, effectiveness_from_ntu, max_effectiveness, ntu_from_effectiveness, rate_exchanger
 from .segments import SegmentedSizing, SizingInterval, cut_profile, size_segments
 from .sizing import (
@@ -33,6 +48,7 @@ from .sizing import (
     p_max,
     shell_design,
 )
+from .solvers import SolveReport, SolverName, SolveStatus, available_solvers, resolve_solver, solve
 from .structure import Cooler, Exchanger, Heater, Network, approach_violations, check_network
 
 __all__ = [
@@ -44,4 +60,9 @@ __all__ = [
     "overall_coefficient", "p_max", "rate_exchanger", "shell_design", "size_double_pipe", "size_exchanger",
     "size_segments", "size_shell_and_tube",
     "Cooler", "Exchanger", "Heater", "Network", "approach_violations", "check_network",
+    "Region", "design_mer", "ideal_utilities", "regions_of",
+    "Match", "MatchKind", "MatchPlan", "Subnetwork", "SubnetworkMatches", "TieBreak", "Transshipment",
+    "min_matches", "plan_matches", "subnetworks", "transshipment",
+    "Placement", "PlacedUnit", "Side", "stage_model",
+    "SolveReport", "SolverName", "SolveStatus", "available_solvers", "resolve_solver", "solve",
 ]

@@ -155,30 +155,29 @@ def stage_model(hot: Sequence[Side], cold: Sequence[Side], allowed: set[tuple[st
 
     e = {}
     temp = {}
-    for i in hot:
+    # Process sides: enthalpy by stage boundary, temperature from it.  Utility sides: every unit gets its
+    # own share of the utility flow running over the utility's whole range (utilities are supplied in
+    # parallel), so a utility unit sees the utility's hot end at its hot end and its cold end at its cold
+    # end, whatever the stage; only the total duty ties the utility's units together.
+    for side in (*hot, *cold):
+        if side.utility:
+            continue
         for k in range(K + 1):
-            if k == 0:
-                e[i.name, k] = 0.0
-            elif k == K:
-                e[i.name, k] = i.duty
+            # hot sides count heat given from the hot end (k = 0); cold sides heat taken from the cold
+            # end (k = K)
+            start, end = (0, K) if side.hot else (K, 0)
+            if k == start:
+                e[side.name, k] = 0.0
+            elif k == end:
+                e[side.name, k] = side.duty
             else:
-                e[i.name, k] = pulp.LpVariable(f"e_{vname(i)}_{k}", 0, i.duty)
+                e[side.name, k] = pulp.LpVariable(f"{'e' if side.hot else 'c'}_{vname(side)}_{k}", 0,
+                                                  side.duty)
             if k in (0, K):
-                temp[i.name, k] = i.temperature(e[i.name, k])
+                temp[side.name, k] = side.temperature(e[side.name, k])
             else:
-                temp[i.name, k] = _temperature_expr(prob, i, e[i.name, k], f"h{vname(i)}_{k}")
-    for j in cold:
-        for k in range(K + 1):
-            if k == K:
-                e[j.name, k] = 0.0
-            elif k == 0:
-                e[j.name, k] = j.duty
-            else:
-                e[j.name, k] = pulp.LpVariable(f"c_{vname(j)}_{k}", 0, j.duty)
-            if k in (0, K):
-                temp[j.name, k] = j.temperature(e[j.name, k])
-            else:
-                temp[j.name, k] = _temperature_expr(prob, j, e[j.name, k], f"c{vname(j)}_{k}")
+                temp[side.name, k] = _temperature_expr(prob, side, e[side.name, k],
+                                                       f"{'h' if side.hot else 'c'}{vname(side)}_{k}")
     q, z = {}, {}
     for i, j in pairs:
         bound = min(i.duty, j.duty)
@@ -187,19 +186,28 @@ def stage_model(hot: Sequence[Side], cold: Sequence[Side], allowed: set[tuple[st
             z[i.name, j.name, k] = pulp.LpVariable(f"z_{vname(i)}_{vname(j)}_{k}", cat="Binary")
             prob += q[i.name, j.name, k] <= bound * z[i.name, j.name, k]
             need = i.shift + j.shift
-            prob += temp[i.name, k] - temp[j.name, k] >= need - gamma * (1 - z[i.name, j.name, k])
-            prob += temp[i.name, k + 1] - temp[j.name, k + 1] >= need - gamma * (1 - z[i.name, j.name, k])
-    for i in hot:
+            # the unit's hot end is stage boundary k, its cold end k + 1; a utility side always spans its
+            # whole range (see above)
+            h_hot_end = max(i.temperatures) if i.utility else temp[i.name, k]
+            h_cold_end = min(i.temperatures) if i.utility else temp[i.name, k + 1]
+            c_hot_end = max(j.temperatures) if j.utility else temp[j.name, k]
+            c_cold_end = min(j.temperatures) if j.utility else temp[j.name, k + 1]
+            prob += h_hot_end - c_hot_end >= need - gamma * (1 - z[i.name, j.name, k])
+            prob += h_cold_end - c_cold_end >= need - gamma * (1 - z[i.name, j.name, k])
+    for side in (*hot, *cold):
+        mine = [v for key, v in q.items() if key[0 if side.hot else 1] == side.name]
+        if side.utility:
+            prob += pulp.lpSum(mine) == side.duty
+            continue
         for k in range(K):
-            prob += e[i.name, k + 1] - e[i.name, k] == pulp.lpSum(
-                q[i.name, j.name, k] for j in cold if (i.name, j.name, k) in q)
-    for j in cold:
-        for k in range(K):
-            prob += e[j.name, k] - e[j.name, k + 1] == pulp.lpSum(
-                q[i.name, j.name, k] for i in hot if (i.name, j.name, k) in q)
+            stage = pulp.lpSum(v for key, v in q.items() if key[0 if side.hot else 1] == side.name and key[2] == k)
+            if side.hot:
+                prob += e[side.name, k + 1] - e[side.name, k] == stage
+            else:
+                prob += e[side.name, k] - e[side.name, k + 1] == stage
     # Extra branches (stream splits) cost a little, so series placements win ties.
     branches = []
-    for s, partners in [(i, [j for j in cold]) for i in hot] + [(j, [i for i in hot]) for j in cold]:
+    for s, partners in [(i, list(cold)) for i in hot if not i.utility] + [(j, list(hot)) for j in cold if not j.utility]:
         for k in range(K):
             zs = [z[(s.name, p.name, k) if s.hot else (p.name, s.name, k)] for p in partners
                   if ((s.name, p.name, k) if s.hot else (p.name, s.name, k)) in z]
@@ -223,14 +231,20 @@ def stage_model(hot: Sequence[Side], cold: Sequence[Side], allowed: set[tuple[st
                 continue
             hs = next(s for s in hot if s.name == hn)
             cs = next(s for s in cold if s.name == cn)
-            h_stage = value(e[hn, k + 1]) - value(e[hn, k])
-            c_stage = value(e[cn, k]) - value(e[cn, k + 1])
-            units.append(PlacedUnit(
-                hot=hn, cold=cn, stage=k, duty=load,
-                hot_in=hs.temperature(value(e[hn, k])), hot_out=hs.temperature(value(e[hn, k + 1])),
-                cold_in=cs.temperature(value(e[cn, k + 1])), cold_out=cs.temperature(value(e[cn, k])),
-                hot_fraction=min(1.0, load / h_stage) if h_stage > tol else 1.0,
-                cold_fraction=min(1.0, load / c_stage) if c_stage > tol else 1.0))
+            if hs.utility:
+                h_in, h_out, h_frac = max(hs.temperatures), min(hs.temperatures), 1.0
+            else:
+                h_stage = value(e[hn, k + 1]) - value(e[hn, k])
+                h_in, h_out = hs.temperature(value(e[hn, k])), hs.temperature(value(e[hn, k + 1]))
+                h_frac = min(1.0, load / h_stage) if h_stage > tol else 1.0
+            if cs.utility:
+                c_in, c_out, c_frac = min(cs.temperatures), max(cs.temperatures), 1.0
+            else:
+                c_stage = value(e[cn, k]) - value(e[cn, k + 1])
+                c_in, c_out = cs.temperature(value(e[cn, k + 1])), cs.temperature(value(e[cn, k]))
+                c_frac = min(1.0, load / c_stage) if c_stage > tol else 1.0
+            units.append(PlacedUnit(hot=hn, cold=cn, stage=k, duty=load, hot_in=h_in, hot_out=h_out,
+                                    cold_in=c_in, cold_out=c_out, hot_fraction=h_frac, cold_fraction=c_frac))
         return Placement(tuple(sorted(units, key=lambda u: (u.stage, u.hot, u.cold))), K)
 
     return prob, read

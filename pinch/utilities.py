@@ -119,11 +119,14 @@ def _diagnose(table: ProblemTable, utilities: Sequence[Utility], dt_min: float) 
         if not hot:
             return (f"the process needs {table.hot_utility:.6g} kW of heating but no hot utility was given")
         top = max(utility_shifted_range(u, dt_min)[0] for u in hot)
-        above = cascade[t > top]
-        if above.size and above.min() < -tol:
-            k = int(np.argmin(np.where(t > top, cascade, np.inf)))
-            return (f"the process needs {-above.min():.6g} kW of heat above {top + 0.5 * dt_min:g} °C "
-                    f"(shifted {t[k]:g} °C), hotter than any hot utility given can supply at ΔTmin "
+        # the demand above a temperature is minus the cascade there; a piecewise-linear function reaches
+        # its extreme over [top, ∞) at a boundary or at top itself
+        temps = np.concatenate(([top], t[t > top]))
+        need = -np.concatenate(([np.interp(top, t[::-1], cascade[::-1])], cascade[t > top]))
+        k = int(np.argmax(need))
+        if need[k] > tol:
+            return (f"the process needs {need[k]:.6g} kW of heat above {temps[k] + 0.5 * dt_min:g} °C "
+                    f"(shifted {temps[k]:g} °C), hotter than any hot utility given can supply at ΔTmin "
                     f"{dt_min:g} K")
     if table.cold_utility > tol:
         if not cold:
@@ -131,11 +134,14 @@ def _diagnose(table: ProblemTable, utilities: Sequence[Utility], dt_min: float) 
         bottom = min(utility_shifted_range(u, dt_min)[1] for u in cold)
         # heat released below a temperature, net of what process cold streams there absorb, has nowhere
         # to go when every cold utility is hotter than that temperature
-        released = table.cold_utility - table.heat_flow
-        below = released[t < bottom]
-        if below.size and below.max() > tol:
-            return (f"the process releases {below.max():.6g} kW of heat below {bottom - 0.5 * dt_min:g} °C "
-                    f"(shifted {bottom:g} °C), colder than any cold utility given can take at ΔTmin "
+        flow = table.heat_flow
+        temps = np.concatenate(([bottom], t[t < bottom]))
+        released = table.cold_utility - np.concatenate(([np.interp(bottom, t[::-1], flow[::-1])],
+                                                        flow[t < bottom]))
+        k = int(np.argmax(released))
+        if released[k] > tol:
+            return (f"the process releases {released[k]:.6g} kW of heat below {temps[k] - 0.5 * dt_min:g} °C "
+                    f"(shifted {temps[k]:g} °C), colder than any cold utility given can take at ΔTmin "
                     f"{dt_min:g} K")
     return "the utilities given cannot balance the heat cascade at any duties"
 

@@ -7,6 +7,7 @@ shifted is 87.5 − 137.5·45/55 = −25 kW, so 25 kW must come from above 95 °
 """
 
 import pytest
+from refdata import reference_utilities
 
 from heatloom.errors import InfeasibleError, InputError
 from heatloom.model import Utility
@@ -86,3 +87,13 @@ def test_no_cold_utility_cold_enough(sinnott):
 def test_empty_utility_list_is_an_input_error(sinnott):
     with pytest.raises(InputError, match="no utilities"):
         place_utilities(problem_table(sinnott, 10), [])
+
+
+def test_cooling_water_too_warm_for_a_cold_target(reference):
+    # Yee & Grossmann two-hot/two-cold problem (shared reference file; source: Roetzel, Luo & Chen 2020,
+    # Table 6.16): H2 must reach 303 K (29.85 °C) but the cooling water enters at 293 K (19.85 °C), so at
+    # ΔTmin 20 K it would have to be 10 K colder. By hand: H2 (CP 15 kW/K) releases 15 × 10 = 150 kW
+    # below the water's shifted inlet, 29.85 °C shifted (19.85 °C + 10 K).
+    data, streams = reference("synthesis_yee_grossmann_2h2c")
+    with pytest.raises(InfeasibleError, match=r"releases 150 kW of heat below 19.85 °C"):
+        target(streams, 20, reference_utilities(data))

@@ -1,0 +1,295 @@
+"""Maximum-energy-recovery network design with the fewest units, sized and costed.
+
+The sequence (DEVELOPERS.md, "Method notes"):
+
+1. energy targets and utility duties by the problem table and the utility-placement LP
+   (:func:`heatloom.pinch.target`), checked against the Papoulias–Grossmann transshipment LP when the
+   match plan is made;
+2. the minimum number of matches with heat-load distribution for each pinch subnetwork (a MILP on PuLP,
+   :func:`heatloom.network.milp.plan_matches`);
+3. placement of those matches with temperatures, in series or in parallel with stream splits, by a
+   stagewise model restricted to them (:func:`heatloom.network.placement.stage_model`); if the matches of
+   the plan cannot be placed as single units, every match of the subnetwork is allowed and the fewest
+   units are sought again (said in the notes);
+4. sizing of every unit (segment-wise LMTD area, U from the film coefficients), costing, and the checks of
+   :func:`heatloom.network.structure.check_network`: a network that breaks a balance or ΔTmin is never
+   returned.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+from ..errors import InfeasibleError, InputError
+from ..model import Segment, Stream, StreamTable, Utility, UtilityKind
+from ..pinch import Targets, target
+from . import data
+from .cost import CostSettings, UnitKind
+from .placement import Side, stage_model
+from .segments import cut_profile, size_segments
+from .solvers import solve
+from .structure import Cooler, Exchanger, Heater, Network, check_network, stream_enthalpy
+
+__all__ = ["ideal_utilities", "design_mer", "regions_of", "Region"]
+
+ISOTHERMAL_GLIDE = 1e-6
+"""Temperature glide given to an isothermal utility when it is sized as a segment [K]; changes the
+LMTD by less than one part in a million."""
+
+
+def ideal_utilities(streams: StreamTable, dt_min: float) -> tuple[Utility, Utility]:
+    """The two utilities assumed when none are given, stated in every output.
+
+    An isothermal hot utility 20 K plus ΔTmin above the hottest cold-stream temperature and an isothermal
+    cold utility 20 K plus ΔTmin below the coldest hot-stream temperature, priced at the defaults of
+    :mod:`heatloom.network.data` (illustrative, common practice).
+
+    Examples
+    --------
+    >>> s = StreamTable.from_arrays(["H", "C"], [150, 20], [40, 120], [1.0, 1.0])
+    >>> [(u.name, u.supply_temperature, u.cost) for u in ideal_utilities(s, 10)]
+    [('hot utility (assumed)', 150.0, 200.0), ('cold utility (assumed)', 10.0, 20.0)]
+    """
+    cold_max = max((s.supply_temperature if s.supply_temperature > s.target_temperature else s.target_temperature)
+                   for s in streams.cold) if streams.cold else max(s.supply_temperature for s in streams)
+    hot_min = min(s.target_temperature for s in streams.hot) if streams.hot else \
+        min(s.supply_temperature for s in streams)
+    th = cold_max + dt_min + data.IDEAL_UTILITY_MARGIN
+    tc = hot_min - dt_min - data.IDEAL_UTILITY_MARGIN
+    return (Utility("hot utility (assumed)", th, th, data.DEFAULT_HOT_UTILITY_PRICE, UtilityKind.HOT,
+                    None),
+            Utility("cold utility (assumed)", tc, tc, data.DEFAULT_COLD_UTILITY_PRICE, UtilityKind.COLD, None))
+
+
+@dataclass(frozen=True)
+class Region:
+    """A pinch subnetwork: the stretch of the shifted temperature scale between two pinches (or ends)."""
+
+    label: str
+    top: float | None      # shifted temperature [°C]; None = no upper cut
+    bottom: float | None   # shifted temperature [°C]; None = no lower cut
+
+
+def regions_of(targets: Targets) -> list[Region]:
+    """Subnetworks cut at every pinch, hottest first; one ``whole`` region without a pinch."""
+    cuts = [p.shifted for p in targets.pinches]
+    if not cuts:
+        return [Region("whole", None, None)]
+    out = [Region("above", None, cuts[0])]
+    for k, (a, b) in enumerate(zip(cuts, cuts[1:]), start=1):
+        out.append(Region(f"between pinches {k}", a, b))
+    out.append(Region("below", cuts[-1], None))
+    return out
+
+
+def _stream_shift(stream: Stream, dt_min: float) -> float:
+    own = [g.dt_min_contribution for g in stream.segments if g.dt_min_contribution is not None]
+    return max(own + [0.5 * dt_min]) if own else 0.5 * dt_min
+
+
+def _process_side(stream: Stream, region: Region, shift: float) -> Side | None:
+    """The part of a process stream inside a region, as a Side (None when it has none there)."""
+    s = -shift if stream.is_hot else shift
+    hi = float("inf") if region.top is None else region.top - s
+    lo = float("-inf") if region.bottom is None else region.bottom - s
+    t_start, t_end = stream.supply_temperature, stream.target_temperature
+    if stream.is_hot:
+        a, b = min(t_start, hi), max(t_end, lo)
+        if a <= b:
+            return None
+    else:
+        a, b = max(t_start, lo), min(t_end, hi)
+        if b <= a:
+            return None
+    base = stream_enthalpy(stream, a)
+    temps = [a] + [g.target_temperature for g in stream.segments
+                   if (b < g.target_temperature < a if stream.is_hot else a < g.target_temperature < b)] + [b]
+    enth = [stream_enthalpy(stream, t) - base for t in temps]
+    if enth[-1] <= 1e-12 * max(stream.duty, 1.0):
+        return None
+    return Side(stream.name, stream.is_hot, tuple(temps), tuple(enth), shift)
+
+
+def _utility_side(u: Utility, duty: float, dt_min: float) -> Side:
+    return Side(u.name, u.is_hot, (u.supply_temperature, u.target_temperature), (0.0, duty), 0.5 * dt_min,
+                utility=True)
+
+
+def _film(h: float | None, default: float | None, what: str, missing: list[str]) -> float | None:
+    if h is not None:
+        return h
+    if default is None:
+        missing.append(what)
+    return default
+
+
+def _with_h(segments, default: float | None, what: str, missing: list[str], scale: float = 1.0):
+    out = []
+    for g in segments:
+        h = _film(g.film_coefficient, default, what, missing)
+        out.append(Segment(g.supply_temperature, g.target_temperature, g.heat_capacity_flow * scale, h))
+    return out
+
+
+def _utility_segment(u: Utility, t_in: float, t_out: float, duty: float, h: float | None) -> Segment:
+    if t_in == t_out:  # isothermal: a tiny glide keeps it a segment (see ISOTHERMAL_GLIDE)
+        t_out = t_in - ISOTHERMAL_GLIDE if u.is_hot else t_in + ISOTHERMAL_GLIDE
+    return Segment(t_in, t_out, duty / abs(t_in - t_out), h)
+
+
+def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility] | None = None, *,
+               costs: CostSettings | None = None, solver: str | None = None, time_limit: float = 60.0,
+               default_film_coefficient: float | None = None) -> Network:
+    """A maximum-energy-recovery network with the fewest units, sized and costed.
+
+    Parameters
+    ----------
+    streams : StreamTable
+    dt_min : float
+        Minimum approach temperature every unit keeps [K].
+    utilities : sequence of Utility, optional
+        Utility levels with prices [money per kW·year]; when omitted, :func:`ideal_utilities`.
+    costs : CostSettings, optional
+        Cost laws and annualisation; the defaults of :mod:`heatloom.network.data` when omitted.
+    solver : str, optional
+        "highs" or "cbc"; HiGHS when installed (see :mod:`heatloom.network.solvers`).
+    time_limit : float
+        Limit of each MILP solve [s].
+    default_film_coefficient : float, optional
+        Film coefficient assumed where a stream or utility has none [kW/(m²·K)]; without it a missing
+        coefficient is an error (areas cannot be computed).
+
+    Returns
+    -------
+    Network
+        Passes :func:`check_network`; ``notes`` state every default and assumption used.
+
+    Raises
+    ------
+    InputError
+        Film coefficients missing and no default given.
+    InfeasibleError
+        No utility can serve the process, or no placement keeps ΔTmin.
+    """
+    from .milp import plan_matches
+
+    notes: list[str] = []
+    if utilities is None:
+        utilities = ideal_utilities(streams, dt_min)
+        hu, cu = utilities
+        notes.append(f"no utilities given: assumed an isothermal hot utility at {hu.supply_temperature:g} °C "
+                     f"priced {hu.cost:g} and an isothermal cold utility at {cu.supply_temperature:g} °C priced "
+                     f"{cu.cost:g} money per kW·year (defaults; give --utilities FILE)")
+    costs = costs or CostSettings()
+    if default_film_coefficient is not None:
+        if not default_film_coefficient > 0:
+            raise InputError(f"default film coefficient must be > 0 kW/(m²·K), got {default_film_coefficient!r}")
+    t = target(streams, dt_min, utilities)
+    plan = plan_matches(streams, dt_min, utilities, solver=solver, time_limit=time_limit)
+    solves = list(plan.reports)
+    duties = plan.utility_duties
+    notes.append(f"minimum matches {plan.number_of_matches} "
+                 f"({'proven minimal' if plan.proven_minimum else 'best found within the time limit'}); "
+                 f"minimum-units target {plan.unit_target} (N − 1 per pinch subnetwork)")
+    by_utility = {u.name: u for u in utilities}
+    regions = regions_of(t)
+    placed = []  # (region label, PlacedUnit)
+    for r_index, region in enumerate(regions):
+        hot_sides, cold_sides = [], []
+        for s in streams:
+            side = _process_side(s, region, _stream_shift(s, dt_min))
+            if side is not None:
+                (hot_sides if s.is_hot else cold_sides).append(side)
+        for u in utilities:
+            d = duties.get(u.name, 0.0)
+            if d <= 1e-9 * max(t.table.duty_scale, 1.0):
+                continue
+            # hot utilities serve the top region, cold utilities the bottom one (nothing crosses a pinch)
+            if (u.is_hot and r_index == 0) or (not u.is_hot and r_index == len(regions) - 1):
+                (hot_sides if u.is_hot else cold_sides).append(_utility_side(u, d, dt_min))
+        if not hot_sides and not cold_sides:
+            continue
+        if not hot_sides or not cold_sides:
+            raise InfeasibleError(f"subnetwork '{region.label}' has only "
+                                  f"{'hot' if hot_sides else 'cold'} sides; the targets cannot be met")
+        allowed = plan.allowed(top=region.top, bottom=region.bottom)
+        stages = max(len(hot_sides), len(cold_sides))
+        result = None
+        for attempt, (pairs, k) in enumerate([(allowed, stages),
+                                              ({(i.name, j.name) for i in hot_sides for j in cold_sides
+                                                if not (i.utility and j.utility)}, stages + 1)]):
+            prob, read = stage_model(hot_sides, cold_sides, pairs, k, name=f"placement_{r_index}")
+            report = solve(prob, solver=solver, time_limit=time_limit, name=f"placement ({region.label})")
+            solves.append(report)
+            if report.has_solution:
+                result = read()
+                if attempt:
+                    notes.append(f"subnetwork '{region.label}': the planned matches could not each be placed "
+                                 "as one unit keeping ΔTmin; every match was allowed and the fewest units "
+                                 "found instead")
+                break
+        if result is None:
+            raise InfeasibleError(f"no placement of the matches of subnetwork '{region.label}' keeps ΔTmin "
+                                  f"{dt_min:g} K at both ends of every unit")
+        placed += [(region.label, p) for p in result.units]
+
+    missing: list[str] = []
+    by_name = {s.name: s for s in streams}
+    exchangers, heaters, coolers = [], [], []
+    capital = 0.0
+    for label, p in placed:
+        hot_u, cold_u = by_utility.get(p.hot), by_utility.get(p.cold)
+        hot_s = None if hot_u is not None else by_name[p.hot]
+        cold_s = None if cold_u is not None else by_name[p.cold]
+        if hot_s is not None:
+            hot_segs = _with_h(cut_profile(hot_s.segments, p.hot_in, p.hot_out), default_film_coefficient,
+                               f"stream '{hot_s.name}'", missing, p.hot_fraction)
+        else:
+            h = _film(hot_u.film_coefficient, default_film_coefficient, f"utility '{hot_u.name}'", missing)
+            hot_segs = [_utility_segment(hot_u, p.hot_in, p.hot_out, p.duty, h)]
+        if cold_s is not None:
+            cold_segs = _with_h(cut_profile(cold_s.segments, p.cold_in, p.cold_out), default_film_coefficient,
+                                f"stream '{cold_s.name}'", missing, p.cold_fraction)
+        else:
+            h = _film(cold_u.film_coefficient, default_film_coefficient, f"utility '{cold_u.name}'", missing)
+            cold_segs = [_utility_segment(cold_u, p.cold_in, p.cold_out, p.duty, h)]
+        if missing:
+            continue
+        sizing = size_segments(hot_segs, cold_segs, rel_tol=1e-5)
+        # effective LMTD and mean U of the whole unit: Q = U·A·LMTD with LMTD = Q / Σ(Q_k / LMTD_k)
+        lm = p.duty / sum(i.duty / i.lmtd for i in sizing.intervals)
+        u_mean = p.duty / (sizing.area * lm)
+        kind = UnitKind.HEATER if hot_u is not None else UnitKind.COOLER if cold_u is not None \
+            else UnitKind.EXCHANGER
+        cost = float(costs.annual_capital_cost(sizing.area, kind))
+        capital += cost
+        common = {"duty": p.duty, "area": sizing.area, "cost": cost, "region": label, "u": u_mean, "lmtd": lm}
+        if hot_u is not None:
+            heaters.append(Heater(cold=p.cold, utility=p.hot, cold_in=p.cold_in, cold_out=p.cold_out,
+                                  utility_in=p.hot_in, utility_out=p.hot_out, cold_fraction=p.cold_fraction,
+                                  **common))
+        elif cold_u is not None:
+            coolers.append(Cooler(hot=p.hot, utility=p.cold, hot_in=p.hot_in, hot_out=p.hot_out,
+                                  utility_in=p.cold_in, utility_out=p.cold_out, hot_fraction=p.hot_fraction,
+                                  **common))
+        else:
+            exchangers.append(Exchanger(hot=p.hot, cold=p.cold, hot_in=p.hot_in, hot_out=p.hot_out,
+                                        cold_in=p.cold_in, cold_out=p.cold_out, hot_fraction=p.hot_fraction,
+                                        cold_fraction=p.cold_fraction, stage=p.stage, **common))
+    if missing:
+        names = ", ".join(dict.fromkeys(missing))
+        raise InputError(f"film coefficient h missing for {names}: areas and costs need one for every stream "
+                         "and utility (add an h column in kW/(m²·K), or assume one with --default-h)")
+    if default_film_coefficient is not None:
+        notes.append(f"film coefficient {default_film_coefficient:g} kW/(m²·K) assumed wherever none was given")
+    operating = float(sum(duties.get(u.name, 0.0) * u.cost for u in utilities))
+    notes.append(costs.describe())
+    notes.append("Areas: counter-current LMTD, U from 1/U = 1/h_hot + 1/h_cold (clean surfaces, no fouling "
+                 "allowance); streams of several segments sized interval by interval.")
+    net = Network(tuple(exchangers), tuple(heaters), tuple(coolers), float(dt_min),
+                  capital_cost=capital, operating_cost=operating, total_annual_cost=capital + operating,
+                  currency=costs.currency, notes=tuple(notes), solves=tuple(solves),
+                  unit_target=plan.unit_target)
+    check_network(net, streams, utilities)
+    return net

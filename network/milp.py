@@ -1,0 +1,1106 @@
+"""Transshipment models of heat-exchanger network synthesis: minimum utility cost and fewest matches.
+
+Papoulias & Grossmann (1983) see heat as a commodity shipped from hot streams (sources) to cold streams
+(sinks) through temperature intervals (warehouses): hot heat may only go down the temperature scale, and
+on the shifted scale (hot streams shifted down, cold streams up, by their ΔTmin contribution) every
+transfer within an interval or downwards respects the minimum approach.  Two models are built here,
+each by a function that returns the PuLP problem and a reader of its solution:
+
+* :func:`transshipment_model`, the LP of the cheapest utility duties (several levels, hot and cold,
+  isothermal or not).  It reproduces the problem table and the utility placement of
+  :mod:`heatloom.pinch`.
+* :func:`min_matches_model`, the expanded transshipment MILP of the fewest process/utility matches with
+  the utility duties fixed, for one pinch subnetwork.  Its heat-load distribution (which match exchanges
+  how much heat in which interval) is what a later step turns into exchangers with temperatures.
+
+:func:`plan_matches` runs the LP, splits the problem at every interval boundary where the cascade
+carries no heat (process pinches and utility pinches) and solves the MILP for each subnetwork.
+
+References
+----------
+.. [1] Papoulias, S. A., Grossmann, I. E. (1983). A structural optimization approach in process synthesis
+   II: Heat recovery networks. Computers & Chemical Engineering 7(6), 707-721.
+   doi:10.1016/0098-1354(83)85023-6
+.. [2] Floudas, C. A., Ciric, A. R., Grossmann, I. E. (1986). Automatic synthesis of optimum heat
+   exchanger network configurations. AIChE Journal 32(2), 276-290. doi:10.1002/aic.690320215
+.. [3] Linnhoff, B., Hindmarsh, E. (1983). The pinch design method for heat exchanger networks. Chemical
+   Engineering Science 38(5), 745-763. doi:10.1016/0009-2509(83)80185-7
+"""
+
+from __future__ import annotations
+
+import enum
+from collections.abc import Callable, Iterable, Sequence
+from dataclasses import dataclass
+
+import numpy as np
+import pulp
+
+from ..errors import InfeasibleError, InputError, SolverError
+from ..model import StreamTable, Utility, UtilityKind
+from ..pinch.problem_table import problem_table, shifted_ranges
+from ..pinch.targets import IDEAL_COLD, IDEAL_HOT
+from ..pinch.utilities import place_utilities, utility_shifted_range
+from .solvers import SolveReport, SolverName, SolveStatus, solve
+
+__all__ = [
+    "TieBreak",
+    "MatchKind",
+    "Intervals",
+    "temperature_intervals",
+    "IDEAL_MARGIN",
+    "ideal_target_utilities",
+    "Transshipment",
+    "transshipment_model",
+    "transshipment",
+    "Subnetwork",
+    "subnetworks",
+    "Match",
+    "SubnetworkMatches",
+    "min_matches_model",
+    "min_matches",
+    "MatchPlan",
+    "plan_matches",
+]
+
+_REL_TOL = 1e-9      # heat below this share of the problem's duty scale counts as zero (*common practice*)
+_PINCH_TOL = 1e-7    # cascade flow below this share of the duty scale is a pinch (LP round-off margin)
+
+
+class TieBreak(enum.Enum):
+    """Secondary objective among the solutions with the fewest matches.
+
+    ``NONE``: the first minimum-match solution the solver proves (fast).  ``COMPACT``: a second MILP keeps
+    the number of matches at that minimum and minimises the number of (match, interval) cells that carry
+    heat, so each match exchanges its load over as few shifted intervals as possible (a match confined to
+    a narrow temperature range is easier to place without splits).  Both objectives are ours to choose:
+    the total heat passed down each boundary is the same in every solution (it is fixed by the data and
+    the utility duties), so a "least cascaded heat" criterion would break no ties.
+    """
+
+    NONE = "none"
+    COMPACT = "compact"
+
+
+class MatchKind(enum.Enum):
+    """What a match becomes in the network."""
+
+    EXCHANGER = "exchanger"   # process hot stream → process cold stream
+    HEATER = "heater"         # hot utility → process cold stream
+    COOLER = "cooler"         # process hot stream → cold utility
+
+
+# ------------------------------------------------------------------------------------------ intervals
+
+def _validate_dt_min(dt_min: float) -> float:
+    try:
+        dt = float(dt_min)
+    except (TypeError, ValueError):
+        raise InputError(f"ΔTmin must be a finite number >= 0 K, got {dt_min!r}", column="dtmin") from None
+    if not dt >= 0 or not np.isfinite(dt):
+        raise InputError(f"ΔTmin must be a finite number >= 0 K, got {dt_min!r}", column="dtmin")
+    return dt
+
+
+def _snap_index(asc: np.ndarray, values: np.ndarray) -> np.ndarray:
+    """Index in the ascending boundaries of the nearest boundary to each value."""
+    if asc.size == 1:
+        return np.zeros(values.size, int)
+    i = np.clip(np.searchsorted(asc, values), 1, asc.size - 1)
+    return np.where(np.abs(asc[i - 1] - values) <= np.abs(asc[i] - values), i - 1, i)
+
+
+@dataclass(frozen=True, eq=False)
+class Intervals:
+    """Shifted temperature intervals and the heat each stream and utility brings to them.
+
+    Attributes
+    ----------
+    dt_min : float
+        [K]
+    temperatures : ndarray
+        Interval boundaries on the shifted scale, hottest first [°C], length K + 1.
+    stream_names : tuple of str
+    stream_is_hot : ndarray of bool
+    stream_heat : ndarray
+        Heat released (hot stream) or taken (cold stream) in each interval [kW], shape (streams, K),
+        never negative.
+    utilities : tuple of Utility
+    utility_fraction : ndarray
+        Share of each utility's duty released (hot) or taken (cold) in each interval [-], shape
+        (utilities, K); a row of zeros for a utility that cannot act at any interval (an isothermal hot
+        utility at the bottom boundary, a cold one at the top).
+    duty_scale : float
+        Sum of the process stream duties [kW].
+    """
+
+    dt_min: float
+    temperatures: np.ndarray
+    stream_names: tuple[str, ...]
+    stream_is_hot: np.ndarray
+    stream_heat: np.ndarray
+    utilities: tuple[Utility, ...]
+    utility_fraction: np.ndarray
+    duty_scale: float
+
+    @property
+    def size(self) -> int:
+        """Number of intervals K."""
+        return self.temperatures.size - 1
+
+    @property
+    def surplus(self) -> np.ndarray:
+        """Process heat surplus of each interval, hot minus cold [kW], length K."""
+        sign = np.where(self.stream_is_hot, 1.0, -1.0)
+        return sign @ self.stream_heat
+
+    def to_dict(self) -> dict:
+        t = self.temperatures
+        return {"dtmin": self.dt_min, "shifted_temperatures": t.tolist(),
+                "streams": {n: self.stream_heat[i].tolist() for i, n in enumerate(self.stream_names)},
+                "utility_fractions": {u.name: self.utility_fraction[i].tolist()
+                                      for i, u in enumerate(self.utilities)}}
+
+
+def temperature_intervals(streams: StreamTable, dt_min: float, utilities: Sequence[Utility] = ()
+                          ) -> Intervals:
+    """Cut the shifted temperature scale at every stream-segment and utility end.
+
+    Hot segments are shifted down and cold segments up by their own ``dt_min_contribution`` when given,
+    else by ΔTmin/2 (exactly as :func:`heatloom.pinch.problem_table.shifted_ranges`); utilities by ΔTmin/2
+    (:func:`heatloom.pinch.utilities.utility_shifted_range`).  A non-isothermal utility spreads its duty in
+    proportion to the overlap of each interval with its shifted range; an isothermal hot utility releases
+    its heat into the interval just below its temperature, an isothermal cold one takes it from the
+    interval just above.
+
+    Parameters
+    ----------
+    streams : StreamTable
+        Process streams (several segments per stream allowed).
+    dt_min : float
+        Global minimum approach temperature [K].
+    utilities : sequence of Utility
+        Utility levels; names must differ from each other and from the stream names.
+
+    Returns
+    -------
+    Intervals
+
+    Examples
+    --------
+    >>> from heatloom.model import StreamTable
+    >>> s = StreamTable.from_arrays(["1", "2", "3", "4"], [180, 150, 20, 80], [60, 30, 135, 140],
+    ...                             [3.0, 1.0, 2.0, 4.5])
+    >>> iv = temperature_intervals(s, 10)
+    >>> iv.temperatures.tolist(), iv.surplus.tolist()
+    ([175.0, 145.0, 140.0, 85.0, 55.0, 25.0], [90.0, -2.5, -137.5, 60.0, -30.0])
+    """
+    dt = _validate_dt_min(dt_min)
+    utilities = tuple(utilities)
+    names = [s.name for s in streams]
+    seen = set(names)
+    for u in utilities:
+        if u.name in seen:
+            raise InputError(f"utility name '{u.name}' is also used by a stream or another utility; "
+                             "names must be unique", column="name")
+        seen.add(u.name)
+    arrays = streams.arrays
+    upper, lower = shifted_ranges(arrays, dt)
+    u_ranges = np.array([utility_shifted_range(u, dt) for u in utilities], float).reshape(-1, 2)
+    points = np.unique(np.concatenate((upper, lower, u_ranges.ravel())))
+    tol_t = 1e-9 * max(1.0, float(np.max(np.abs(points))))
+    keep = np.concatenate(([True], np.diff(points) > tol_t))
+    asc = points[keep]
+    temps = asc[::-1].copy()
+    k = temps.size - 1
+    n_top = asc.size - 1
+
+    def top_bottom(hi, lo):  # descending indices of the boundaries at hi and lo
+        return n_top - _snap_index(asc, np.atleast_1d(hi)), n_top - _snap_index(asc, np.atleast_1d(lo))
+
+    width = temps[:-1] - temps[1:]
+    heat = np.zeros((len(names), k))
+    a, b = top_bottom(upper, lower)
+    for seg in range(upper.size):
+        heat[arrays.stream_index[seg], a[seg]:b[seg]] += arrays.heat_capacity_flow[seg] * width[a[seg]:b[seg]]
+    frac = np.zeros((len(utilities), k))
+    for i, u in enumerate(utilities):
+        ua, ub = (int(x[0]) for x in top_bottom(u_ranges[i, 0], u_ranges[i, 1]))
+        if ub > ua:
+            frac[i, ua:ub] = width[ua:ub] / width[ua:ub].sum()
+        elif u.is_hot and ua < k:
+            frac[i, ua] = 1.0
+        elif not u.is_hot and ua > 0:
+            frac[i, ua - 1] = 1.0
+    is_hot = np.array([s.is_hot for s in streams], bool)
+    scale = float(sum(s.duty for s in streams))
+    return Intervals(dt, temps, tuple(names), is_hot, heat, utilities, frac, scale)
+
+
+IDEAL_MARGIN = 10.0
+"""How far the ideal utilities of :func:`ideal_target_utilities` lie beyond the process [K]."""
+
+
+def ideal_target_utilities(streams: StreamTable, dt_min: float) -> tuple[Utility, Utility]:
+    """Two ideal utilities for targeting: isothermal, beyond every process temperature, free.
+
+    The hot one is :data:`IDEAL_MARGIN` above both the hottest process temperature and the hottest
+    shifted temperature plus ΔTmin/2, the cold one as far below the coldest ones, so each can serve every
+    process stream.  At zero price the transshipment LP with them gives the problem-table targets.  They
+    carry the names :mod:`heatloom.pinch` uses for ideal utilities.
+
+    Parameters
+    ----------
+    streams : StreamTable
+    dt_min : float
+        [K]
+
+    Examples
+    --------
+    >>> from heatloom.model import StreamTable
+    >>> s = StreamTable.from_arrays(["H1", "C1"], [180, 20], [60, 135], [3.0, 2.0])
+    >>> [(u.name, u.supply_temperature) for u in ideal_target_utilities(s, 10)]
+    [('hot utility', 190.0), ('cold utility', 10.0)]
+    """
+    dt = _validate_dt_min(dt_min)
+    a = streams.arrays
+    upper, lower = shifted_ranges(a, dt)
+    temps = np.concatenate((a.supply_temperature, a.target_temperature))
+    top = max(float(temps.max()), float(upper.max()) + 0.5 * dt) + IDEAL_MARGIN
+    bottom = min(float(temps.min()), float(lower.min()) - 0.5 * dt) - IDEAL_MARGIN
+    return (Utility(IDEAL_HOT, top, top, 0.0, UtilityKind.HOT),
+            Utility(IDEAL_COLD, bottom, bottom, 0.0, UtilityKind.COLD))
+
+
+# ------------------------------------------------------------------------------ transshipment LP (a)
+
+def _new_var(problem: pulp.LpProblem, name: str, low=None, up=None, cat=pulp.LpContinuous) -> pulp.LpVariable:
+    if hasattr(problem, "add_variable"):          # PuLP >= 3.x (the 4.0 style)
+        return problem.add_variable(name, low, up, cat)
+    return pulp.LpVariable(name, low, up, cat)    # pragma: no cover - older PuLP
+
+
+def _level_weights(utilities: Sequence[Utility]) -> np.ndarray:
+    """Tie-break weights preferring the coolest hot and the warmest cold utility (as pinch.utilities)."""
+    temps = np.array([(-u.coldest if u.is_hot else u.hottest) for u in utilities])
+    order = np.empty(len(utilities))
+    order[np.argsort(-temps, kind="stable")] = np.arange(len(utilities))
+    return 1.0 + 1e-3 * order / max(len(utilities), 1)
+
+
+def transshipment_model(intervals: Intervals, *, cost_budget: float | None = None
+                        ) -> tuple[pulp.LpProblem, Callable[[], np.ndarray]]:
+    """The transshipment LP of the cheapest utility duties (Papoulias & Grossmann 1983).
+
+    .. math::
+
+        \\min \\sum_u c_u Q_u \\quad \\text{s.t.} \\quad
+        R_k - R_{k-1} = \\sum_{i \\in H} Q^H_{ik} - \\sum_{j \\in C} Q^C_{jk}
+        + \\sum_{u \\in HU} f_{uk} Q_u - \\sum_{u \\in CU} f_{uk} Q_u, \\qquad
+        R_0 = R_K = 0, \\; R_k \\ge 0, \\; Q_u \\ge 0
+
+    with :math:`R_k` the heat cascaded from interval *k* to *k* + 1 and :math:`f_{uk}` the share of
+    utility *u* in interval *k*.
+
+    Parameters
+    ----------
+    intervals : Intervals
+        From :func:`temperature_intervals`, with the utilities on offer.
+    cost_budget : float, optional
+        Second stage [money per year]: keep :math:`\\sum_u c_u Q_u` at or below this and minimise
+        :math:`\\sum_u w_u Q_u` instead, with weights slightly above 1 that prefer the coolest hot and the
+        warmest cold level (so ties in price and zero prices give the least energy at the mildest
+        levels, as :func:`heatloom.pinch.place_utilities` does).
+
+    Returns
+    -------
+    problem : pulp.LpProblem
+    read : callable
+        ``read()`` returns the utility duties [kW], in the order of ``intervals.utilities``.
+
+    Examples
+    --------
+    >>> from heatloom.model import StreamTable, Utility
+    >>> s = StreamTable.from_arrays(["H1", "C1"], [180, 20], [60, 135], [3.0, 2.0])
+    >>> iv = temperature_intervals(s, 10, [Utility("steam", 200, 199, 100.0), Utility("water", 10, 20, 5.0)])
+    >>> problem, read = transshipment_model(iv)
+    >>> solve(problem, "cbc").status
+    <SolveStatus.OPTIMAL: 'optimal'>
+    >>> read().round(6).tolist()
+    [0.0, 130.0]
+    """
+    k = intervals.size
+    problem = pulp.LpProblem("utility_cost_transshipment", pulp.LpMinimize)
+    frac = intervals.utility_fraction
+    q = [_new_var(problem, f"Q_{u}", 0, None if frac[u].sum() > 0 else 0)
+         for u in range(len(intervals.utilities))]
+    r = [None] + [_new_var(problem, f"R_{b}", 0) for b in range(1, k)] + [None]
+    surplus = intervals.surplus
+    sign = [1.0 if u.is_hot else -1.0 for u in intervals.utilities]
+    for kk in range(k):
+        terms = [(q[u], sign[u] * frac[u, kk]) for u in range(len(q)) if frac[u, kk] > 0]
+        out = pulp.LpAffineExpression(([(r[kk + 1], 1.0)] if r[kk + 1] is not None else [])
+                                      + ([(r[kk], -1.0)] if r[kk] is not None else [])
+                                      + [(v, -c) for v, c in terms])
+        problem += out == float(surplus[kk]), f"interval_{kk}"
+    price = [u.cost for u in intervals.utilities]
+    if cost_budget is None:
+        problem += pulp.lpSum(c * v for c, v in zip(price, q))
+    else:
+        problem += pulp.lpSum(c * v for c, v in zip(price, q)) <= float(cost_budget), "cost_budget"
+        problem += pulp.lpSum(w * v for w, v in zip(_level_weights(intervals.utilities), q))
+
+    def read() -> np.ndarray:
+        return np.array([v.varValue or 0.0 for v in q], float)
+
+    return problem, read
+
+
+@dataclass(frozen=True, eq=False)
+class Transshipment:
+    """Cheapest utility duties from the transshipment LP.
+
+    Attributes
+    ----------
+    intervals : Intervals
+    duties : tuple of float
+        Duty of each utility, in the order of ``intervals.utilities`` [kW].
+    residuals : ndarray
+        Heat cascaded past each boundary with the utilities in place [kW], length K + 1 (0 at both ends).
+    pinches : tuple of float
+        Interior boundaries where the cascade carries no heat, hottest first [°C, shifted]: process
+        pinches and utility pinches.
+    ideal : bool
+        True when the two ideal utilities of :func:`ideal_target_utilities` were assumed.
+    reports : tuple of SolveReport
+        The cost stage and the tie-break stage.
+    """
+
+    intervals: Intervals
+    duties: tuple[float, ...]
+    residuals: np.ndarray
+    pinches: tuple[float, ...]
+    ideal: bool
+    reports: tuple[SolveReport, ...]
+
+    @property
+    def utility_duties(self) -> dict[str, float]:
+        """Duty of each utility by name [kW]."""
+        return {u.name: d for u, d in zip(self.intervals.utilities, self.duties)}
+
+    @property
+    def hot_utility(self) -> float:
+        """[kW]"""
+        return float(sum(d for u, d in zip(self.intervals.utilities, self.duties) if u.is_hot))
+
+    @property
+    def cold_utility(self) -> float:
+        """[kW]"""
+        return float(sum(d for u, d in zip(self.intervals.utilities, self.duties) if not u.is_hot))
+
+    @property
+    def utility_cost(self) -> float:
+        """[money per year]"""
+        return float(sum(d * u.cost for u, d in zip(self.intervals.utilities, self.duties)))
+
+    def to_dict(self) -> dict:
+        return {"utilities": self.utility_duties, "hot_utility": self.hot_utility,
+                "cold_utility": self.cold_utility, "utility_cost": self.utility_cost,
+                "ideal_utilities": self.ideal, "pinches_shifted": list(self.pinches),
+                "shifted_temperatures": self.intervals.temperatures.tolist(),
+                "residuals": self.residuals.tolist(), "solves": [r.to_dict() for r in self.reports]}
+
+
+def _infeasible_utilities(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]) -> str:
+    """Why no duties of the given utilities can serve the process, in the targeting module's words."""
+    try:
+        place_utilities(problem_table(streams, dt_min), utilities)
+    except InfeasibleError as exc:
+        return str(exc)
+    return "no feasible utility duties (the transshipment LP is infeasible)"
+
+
+def transshipment(streams: StreamTable, dt_min: float, utilities: Sequence[Utility] | None = None, *,
+                  solver: SolverName | str | None = None, time_limit: float = 60.0) -> Transshipment:
+    """Cheapest utility duties by the transshipment LP, with the cascade and its pinches.
+
+    Solves :func:`transshipment_model` twice: first for the least utility cost, then, with the cost held,
+    for the least (slightly weighted) energy, which settles ties between levels of equal price.
+
+    Parameters
+    ----------
+    streams : StreamTable
+    dt_min : float
+        [K]
+    utilities : sequence of Utility, optional
+        Levels with prices [money per kW·year]; the two ideal utilities when omitted.
+    solver : SolverName, str or None
+        See :func:`heatloom.network.solvers.resolve_solver`.
+    time_limit : float
+        Limit of each of the two LP solves [s].
+
+    Returns
+    -------
+    Transshipment
+
+    Raises
+    ------
+    InfeasibleError
+        When no duties of the given utilities can serve the process.
+    InputError
+        When prices make the LP unbounded (a cold utility paying more than a hot one costs, so that
+        running heat from one to the other earns money without limit).
+
+    Examples
+    --------
+    Sinnott's four-stream problem (Coulson & Richardson's Chemical Engineering Vol. 6, ch. 3): 50 kW hot
+    and 30 kW cold utility, pinch at 85 °C shifted.
+
+    >>> from heatloom.model import StreamTable
+    >>> s = StreamTable.from_arrays(["1", "2", "3", "4"], [180, 150, 20, 80], [60, 30, 135, 140],
+    ...                             [3.0, 1.0, 2.0, 4.5])
+    >>> t = transshipment(s, 10)
+    >>> t.hot_utility, t.cold_utility, t.pinches
+    (50.0, 30.0, (85.0,))
+    """
+    ideal = utilities is None
+    utilities = ideal_target_utilities(streams, dt_min) if ideal else tuple(utilities)
+    if not utilities:
+        raise InputError("no utilities given for the transshipment model")
+    iv = temperature_intervals(streams, dt_min, utilities)
+    reports = []
+    problem, read = transshipment_model(iv)
+    rep = solve(problem, solver, time_limit=time_limit, name="utility cost LP")
+    reports.append(rep)
+    if rep.status in (SolveStatus.INFEASIBLE, SolveStatus.INFEASIBLE_OR_UNBOUNDED):
+        if rep.status is SolveStatus.INFEASIBLE_OR_UNBOUNDED and any(u.cost < 0 for u in utilities):
+            raise InputError("the utility-cost LP is infeasible or unbounded; check the negative prices of "
+                             + ", ".join(f"'{u.name}'" for u in utilities if u.cost < 0))
+        raise InfeasibleError(_infeasible_utilities(streams, iv.dt_min, utilities))
+    if rep.status is SolveStatus.UNBOUNDED:
+        raise InputError("the utility prices make the cost unbounded below (a cold utility earns more per "
+                         "kW than some hot utility costs): check the prices of "
+                         + ", ".join(f"'{u.name}' ({u.cost:g})" for u in utilities))
+    cost = rep.objective or 0.0
+    budget = cost + 1e-9 * max(abs(cost), 1.0)
+    problem2, read2 = transshipment_model(iv, cost_budget=budget)
+    rep2 = solve(problem2, solver, time_limit=time_limit, name="utility levels tie-break LP")
+    reports.append(rep2)
+    if rep2.status.has_solution:
+        q = read2()
+    else:  # keep the first stage; should not happen, as its solution is feasible here
+        q = read()
+    scale = max(iv.duty_scale, 1.0)
+    q = np.where(q <= _REL_TOL * scale, 0.0, q)
+    sign = np.array([1.0 if u.is_hot else -1.0 for u in utilities])
+    flows = iv.surplus + (sign * q) @ iv.utility_fraction
+    residuals = np.concatenate(([0.0], np.cumsum(flows)))
+    residuals = np.where(np.abs(residuals) <= _PINCH_TOL * scale, 0.0, residuals)
+    # a zero flow is a pinch only with heat exchanged both above and below it (not past unused levels)
+    activity = iv.stream_heat.sum(axis=0) + q @ iv.utility_fraction
+    above = np.concatenate(([0.0], np.cumsum(activity)))
+    below = above[-1] - above
+    active = _REL_TOL * scale
+    pinches = tuple(float(iv.temperatures[b]) for b in range(1, iv.size)
+                    if residuals[b] == 0.0 and above[b] > active and below[b] > active)
+    return Transshipment(iv, tuple(float(x) for x in q), residuals, pinches, ideal, tuple(reports))
+
+
+# ------------------------------------------------------------------------------------- subnetworks
+
+@dataclass(frozen=True, eq=False)
+class Subnetwork:
+    """One part of the problem between pinches, with the heat each participant brings to its intervals.
+
+    Attributes
+    ----------
+    index : int
+        Position, hottest first.
+    label : str
+        ``"whole problem"``, ``"above the pinch at 85 °C shifted"``, ``"between the pinches at ..."``,
+        ``"below the pinch at ..."``.
+    first : int
+        Index of its hottest interval in the problem's :class:`Intervals`.
+    temperatures : ndarray
+        Its interval boundaries, shifted, hottest first [°C], length m + 1.
+    hot, cold : tuple of str
+        Names of the hot participants (hot process streams, then hot utilities) and the cold ones.
+    hot_is_utility, cold_is_utility : tuple of bool
+    hot_heat, cold_heat : ndarray
+        Heat released / taken by each participant in each of its intervals [kW], shape (participants, m).
+    """
+
+    index: int
+    label: str
+    first: int
+    temperatures: np.ndarray
+    hot: tuple[str, ...]
+    hot_is_utility: tuple[bool, ...]
+    hot_heat: np.ndarray
+    cold: tuple[str, ...]
+    cold_is_utility: tuple[bool, ...]
+    cold_heat: np.ndarray
+
+    @property
+    def size(self) -> int:
+        """Number of intervals m."""
+        return self.temperatures.size - 1
+
+    @property
+    def hot_duties(self) -> dict[str, float]:
+        """Heat of each hot participant in this subnetwork [kW]."""
+        return {n: float(h.sum()) for n, h in zip(self.hot, self.hot_heat)}
+
+    @property
+    def cold_duties(self) -> dict[str, float]:
+        """Heat taken by each cold participant in this subnetwork [kW]."""
+        return {n: float(c.sum()) for n, c in zip(self.cold, self.cold_heat)}
+
+    @property
+    def unit_target(self) -> int:
+        """Euler's minimum-units target N − 1 [-], N the streams and utilities taking part.
+
+        The fewest matches equal N − 1 unless the subnetwork splits into independent balanced parts
+        (Linnhoff & Hindmarsh 1983).
+        """
+        return max(len(self.hot) + len(self.cold) - 1, 0)
+
+    def to_dict(self) -> dict:
+        return {"index": self.index, "label": self.label, "shifted_top": float(self.temperatures[0]),
+                "shifted_bottom": float(self.temperatures[-1]), "first_interval": self.first,
+                "hot": self.hot_duties, "cold": self.cold_duties, "unit_target": self.unit_target}
+
+
+def _label(cuts: list[int], a: int, b: int, temps: np.ndarray) -> str:
+    if len(cuts) == 2:
+        return "whole problem"
+    if a == 0:
+        return f"above the pinch at {temps[b]:g} °C shifted"
+    if b == cuts[-1]:
+        return f"below the pinch at {temps[a]:g} °C shifted"
+    return f"between the pinches at {temps[a]:g} and {temps[b]:g} °C shifted"
+
+
+def subnetworks(plan: Transshipment) -> tuple[Subnetwork, ...]:
+    """Split the problem at its pinches into subnetworks that exchange no heat with each other.
+
+    Every interior boundary where the cascade with the LP's utility duties carries no heat (process and
+    utility pinches, :attr:`Transshipment.pinches`) is a cut; heat never crosses it in a network that
+    meets the duties, so each part can be matched on its own (Linnhoff & Hindmarsh 1983; Papoulias &
+    Grossmann 1983).  Parts with no heat at all are dropped.
+
+    Parameters
+    ----------
+    plan : Transshipment
+
+    Returns
+    -------
+    tuple of Subnetwork
+        Hottest first.
+
+    Examples
+    --------
+    >>> from heatloom.model import StreamTable
+    >>> s = StreamTable.from_arrays(["1", "2", "3", "4"], [180, 150, 20, 80], [60, 30, 135, 140],
+    ...                             [3.0, 1.0, 2.0, 4.5])
+    >>> for n in subnetworks(transshipment(s, 10)):
+    ...     print(n.label, n.hot, n.cold)
+    above the pinch at 85 °C shifted ('1', '2', 'hot utility') ('3', '4')
+    below the pinch at 85 °C shifted ('1', '2') ('3', 'cold utility')
+    """
+    iv = plan.intervals
+    temps = iv.temperatures
+    cuts = [0] + [int(np.flatnonzero(temps == p)[0]) for p in plan.pinches] + [iv.size]
+    scale = max(iv.duty_scale, 1.0)
+    tol = _REL_TOL * scale
+    util_heat = np.asarray(plan.duties)[:, None] * iv.utility_fraction
+    out = []
+    for a, b in zip(cuts, cuts[1:]):
+        parts = {True: ([], [], []), False: ([], [], [])}
+        for i, name in enumerate(iv.stream_names):
+            h = iv.stream_heat[i, a:b]
+            if h.sum() > tol:
+                bucket = parts[bool(iv.stream_is_hot[i])]
+                bucket[0].append(name), bucket[1].append(False), bucket[2].append(h)
+        for u, util in enumerate(iv.utilities):
+            h = util_heat[u, a:b]
+            if h.sum() > tol:
+                bucket = parts[util.is_hot]
+                bucket[0].append(util.name), bucket[1].append(True), bucket[2].append(h)
+        (hn, hu, hh), (cn, cu, ch) = parts[True], parts[False]
+        if not hn and not cn:
+            continue
+        if not hn or not cn:
+            raise SolverError(f"the part of the cascade between {temps[a]:g} and {temps[b]:g} °C shifted "
+                              "has heat on one side only; the utility duties do not balance it")
+        hot_heat, cold_heat = np.array(hh), np.array(ch)
+        imbalance = hot_heat.sum() - cold_heat.sum()
+        if abs(imbalance) > _PINCH_TOL * scale * 10:
+            raise SolverError(f"heat balance of the part between {temps[a]:g} and {temps[b]:g} °C shifted "
+                              f"is off by {imbalance:.6g} kW; the utility duties do not close it")
+        if imbalance < 0:   # LP round-off: let the largest hot entry carry it, so the part balances
+            r, c = np.unravel_index(np.argmax(hot_heat), hot_heat.shape)
+            hot_heat[r, c] -= imbalance
+        out.append(Subnetwork(len(out), _label(cuts, a, b, temps), a, temps[a:b + 1].copy(), tuple(hn),
+                              tuple(hu), hot_heat, tuple(cn), tuple(cu), cold_heat))
+    return tuple(out)
+
+
+# ------------------------------------------------------------------------------ fewest matches (b)
+
+@dataclass(frozen=True)
+class Match:
+    """One match of the heat-load distribution: a hot participant giving heat to a cold one.
+
+    Attributes
+    ----------
+    hot, cold : str
+        Stream or utility names.
+    load : float
+        Heat exchanged [kW].
+    kind : MatchKind
+    subnetwork : int
+        Index of its subnetwork.
+    label : str
+        Label of its subnetwork.
+    interval_loads : tuple of (int, float)
+        Heat taken by the cold side in each interval of the problem's :class:`Intervals`
+        (global index, [kW]); the hot side released it in the same interval or a hotter one.
+    """
+
+    hot: str
+    cold: str
+    load: float
+    kind: MatchKind
+    subnetwork: int
+    label: str
+    interval_loads: tuple[tuple[int, float], ...]
+
+    def to_dict(self) -> dict:
+        return {"hot": self.hot, "cold": self.cold, "load": self.load, "kind": self.kind.value,
+                "subnetwork": self.subnetwork, "label": self.label,
+                "interval_loads": [{"interval": k, "load": q} for k, q in self.interval_loads]}
+
+
+@dataclass(frozen=True, eq=False)
+class SubnetworkMatches:
+    """The fewest matches of one subnetwork and their heat-load distribution.
+
+    Attributes
+    ----------
+    subnetwork : Subnetwork
+    matches : tuple of Match
+    residuals : dict of str to tuple of float
+        Heat of each hot participant passed down past each boundary of the subnetwork [kW], length
+        m + 1 (0 at the top; at the bottom only round-off).
+    reports : tuple of SolveReport
+        The fewest-matches solve, then the tie-break solve (if any), then the LP that recomputes the
+        loads with the matches fixed (exact balances free of integrality round-off).
+    """
+
+    subnetwork: Subnetwork
+    matches: tuple[Match, ...]
+    residuals: dict[str, tuple[float, ...]]
+    reports: tuple[SolveReport, ...]
+
+    @property
+    def report(self) -> SolveReport:
+        """The fewest-matches solve."""
+        return self.reports[0]
+
+    @property
+    def number_of_matches(self) -> int:
+        return len(self.matches)
+
+    @property
+    def optimal(self) -> bool:
+        """True when the number of matches is proven minimal."""
+        return self.report.optimal
+
+    def to_dict(self) -> dict:
+        return {**self.subnetwork.to_dict(), "number_of_matches": self.number_of_matches,
+                "optimal": self.optimal, "matches": [m.to_dict() for m in self.matches],
+                "residuals": {k: list(v) for k, v in self.residuals.items()},
+                "solves": [r.to_dict() for r in self.reports]}
+
+
+def _pairs(names: Iterable[tuple[str, str]]) -> set[tuple[str, str]]:
+    out = set()
+    for pair in names:
+        try:
+            h, c = pair
+        except (TypeError, ValueError):
+            raise InputError(f"a forbidden match must be a (hot, cold) pair of names, got {pair!r}") from None
+        out.add((str(h), str(c)))
+    return out
+
+
+def min_matches_model(sub: Subnetwork, *, forbidden: Iterable[tuple[str, str]] = (),
+                      max_matches: int | None = None
+                      ) -> tuple[pulp.LpProblem, Callable[[], tuple[tuple[Match, ...], dict]]]:
+    """The expanded transshipment MILP of the fewest matches in one subnetwork.
+
+    .. math::
+
+        \\min \\sum_{i,j} y_{ij} \\quad \\text{s.t.} \\quad
+        R_{ik} - R_{i,k-1} + \\sum_j q_{ijk} = Q^H_{ik}, \\qquad
+        \\sum_i q_{ijk} = Q^C_{jk}, \\qquad
+        \\sum_k q_{ijk} \\le U_{ij} y_{ij}, \\qquad q_{ijk} \\le \\min(Q^C_{jk}, \\textstyle\\sum_{l \\le k}
+        Q^H_{il})\\, y_{ij}
+
+    (the expanded transshipment model of Papoulias & Grossmann 1983, with a residual per hot stream;
+    Floudas, Ciric & Grossmann 1986).
+    Heat :math:`q_{ijk}` goes from hot *i* to cold *j* in interval *k*; hot heat not used in its interval
+    cascades down through :math:`R_{ik} \\ge 0`.  The big-M is
+    :math:`U_{ij} = \\min(\\text{heat of } i \\text{ at or above } j\\text{'s coldest interval},
+    \\text{demand of } j \\text{ at or below } i\\text{'s hottest interval})`, which is never above
+    :math:`\\min(Q_i, Q_j)`; the second, per-interval bound tightens the relaxation.  Heat is scaled by
+    the subnetwork's total duty inside the model.  Utility-to-utility matches are not allowed.
+
+    Parameters
+    ----------
+    sub : Subnetwork
+    forbidden : iterable of (str, str)
+        (hot, cold) name pairs that must not be matched.
+    max_matches : int, optional
+        Tie-break stage (:attr:`TieBreak.COMPACT`): allow at most this many matches and minimise instead
+        the number of (match, interval) cells carrying heat, with binaries :math:`z_{ijk} \\le y_{ij}`,
+        :math:`q_{ijk} \\le \\min(Q^C_{jk}, \\sum_{l \\le k} Q^H_{il})\\, z_{ijk}`.
+
+    Returns
+    -------
+    problem : pulp.LpProblem
+    read : callable
+        ``read()`` returns ``(matches, residuals)``: the :class:`Match` objects (in the order of the hot
+        participants) and the heat of each hot participant passed down past each boundary [kW].
+
+    Raises
+    ------
+    InfeasibleError
+        When some cold demand cannot be reached by any allowed hot participant.
+
+    Examples
+    --------
+    Below the pinch of Sinnott's four-stream problem streams 1 and 2 give 150 kW to stream 3 and the
+    cold utility in three matches (two choices of them exist).
+
+    >>> from heatloom.model import StreamTable
+    >>> s = StreamTable.from_arrays(["1", "2", "3", "4"], [180, 150, 20, 80], [60, 30, 135, 140],
+    ...                             [3.0, 1.0, 2.0, 4.5])
+    >>> below = subnetworks(transshipment(s, 10))[1]
+    >>> problem, read = min_matches_model(below)
+    >>> solve(problem, "cbc", time_limit=10).objective
+    3.0
+    >>> matches, residuals = read()
+    >>> len(matches), sum(m.load for m in matches)
+    (3, 150.0)
+    """
+    forbidden = _pairs(forbidden)
+    m = sub.size
+    scale = max(float(sub.hot_heat.sum()), float(sub.cold_heat.sum()), 1e-300)
+    h = sub.hot_heat / scale
+    c = sub.cold_heat / scale
+    tol = _REL_TOL
+    h = np.where(h > tol, h, 0.0)
+    c = np.where(c > tol, c, 0.0)
+    cum_h = np.cumsum(h, axis=1)
+    first = [int(np.argmax(row > 0)) for row in h]
+    last_c = [int(m - 1 - np.argmax(row[::-1] > 0)) for row in c]
+    problem = pulp.LpProblem(f"min_matches_{sub.index}", pulp.LpMinimize)
+    y, q = {}, {}
+    for i, hn in enumerate(sub.hot):
+        for j, cn in enumerate(sub.cold):
+            if (sub.hot_is_utility[i] and sub.cold_is_utility[j]) or (hn, cn) in forbidden:
+                continue
+            u_ij = min(cum_h[i, last_c[j]], float(c[j, first[i]:].sum()))
+            if u_ij <= tol:
+                continue
+            y[i, j] = _new_var(problem, f"y_{i}_{j}", cat=pulp.LpBinary)
+            ks = [k for k in range(first[i], m) if c[j, k] > 0]
+            for k in ks:
+                q[i, j, k] = _new_var(problem, f"q_{i}_{j}_{k}", 0, min(c[j, k], cum_h[i, k]))
+            problem += pulp.lpSum(q[i, j, k] for k in ks) - u_ij * y[i, j] <= 0, f"load_{i}_{j}"
+            for k in ks:
+                problem += q[i, j, k] - min(c[j, k], cum_h[i, k]) * y[i, j] <= 0, f"cut_{i}_{j}_{k}"
+    r = {}
+    for i in range(len(sub.hot)):
+        if not h[i].any():
+            continue
+        for k in range(first[i], m):
+            r[i, k] = _new_var(problem, f"R_{i}_{k}", 0, cum_h[i, k])
+        for k in range(first[i], m):
+            give = [q[i, j, k] for j in range(len(sub.cold)) if (i, j, k) in q]
+            problem += (r[i, k] - (r[i, k - 1] if k > first[i] else 0) + pulp.lpSum(give)
+                        == float(h[i, k])), f"hot_{i}_{k}"
+    for j, cn in enumerate(sub.cold):
+        for k in range(m):
+            if c[j, k] <= 0:
+                continue
+            take = [q[i, j, k] for i in range(len(sub.hot)) if (i, j, k) in q]
+            if not take:
+                raise InfeasibleError(
+                    f"{sub.label}: the demand of '{cn}' between {sub.temperatures[k]:g} and "
+                    f"{sub.temperatures[k + 1]:g} °C shifted ({c[j, k] * scale:.6g} kW) cannot be met: no "
+                    "allowed hot stream or utility is hot enough (check the forbidden matches)")
+            problem += pulp.lpSum(take) == float(c[j, k]), f"cold_{j}_{k}"
+    if max_matches is None:
+        objective = pulp.lpSum(y.values())
+    else:   # tie-break stage: as few (match, interval) cells carrying heat as possible
+        problem += pulp.lpSum(y.values()) <= int(max_matches), "max_matches"
+        z = {}
+        for (i, j, k), var in q.items():
+            z[i, j, k] = _new_var(problem, f"z_{i}_{j}_{k}", cat=pulp.LpBinary)
+            problem += var - min(c[j, k], cum_h[i, k]) * z[i, j, k] <= 0, f"cell_{i}_{j}_{k}"
+            problem += z[i, j, k] - y[i, j] <= 0, f"cell_match_{i}_{j}_{k}"
+        objective = pulp.lpSum(z.values())
+    problem += objective
+
+    def read() -> tuple[tuple[Match, ...], dict]:
+        matches = []
+        for (i, j), var in y.items():
+            loads = [(sub.first + k, (q[i, j, k].varValue or 0.0) * scale) for k in range(m)
+                     if (i, j, k) in q]
+            loads = [(k, v) for k, v in loads if v > tol * scale]
+            if (var.varValue or 0.0) < 0.5 or not loads:
+                continue
+            kind = (MatchKind.HEATER if sub.hot_is_utility[i] else MatchKind.COOLER if sub.cold_is_utility[j]
+                    else MatchKind.EXCHANGER)
+            matches.append(Match(sub.hot[i], sub.cold[j], float(sum(v for _, v in loads)), kind, sub.index,
+                                 sub.label, tuple(loads)))
+        residuals = {}
+        for i, name in enumerate(sub.hot):
+            vals = [0.0] + [((r[i, k].varValue or 0.0) * scale if (i, k) in r else 0.0) for k in range(m)]
+            residuals[name] = tuple(0.0 if abs(v) <= tol * scale else float(v) for v in vals)
+        return tuple(matches), residuals
+
+    return problem, read
+
+
+def _fix_integers(problem: pulp.LpProblem) -> None:
+    for v in problem.variables():
+        if v.cat == pulp.LpInteger:
+            v.lowBound = v.upBound = round(v.varValue or 0.0)
+
+
+def min_matches(sub: Subnetwork, *, solver: SolverName | str | None = None, time_limit: float = 60.0,
+                tie_break: TieBreak = TieBreak.NONE, forbidden: Iterable[tuple[str, str]] = ()
+                ) -> SubnetworkMatches:
+    """The fewest matches of one subnetwork and their heat loads.
+
+    Solves :func:`min_matches_model` (with an absolute gap below one, which proves the integer minimum),
+    then with ``TieBreak.COMPACT`` the tie-break stage at that number of matches, then recomputes the
+    loads by an LP with the matches fixed.
+
+    Parameters
+    ----------
+    sub : Subnetwork
+    solver : SolverName, str or None
+    time_limit : float
+        Limit of each solve [s]; when the first one reaches it, the best matches found are returned with
+        ``optimal`` False.
+    tie_break : TieBreak
+    forbidden : iterable of (str, str)
+        (hot, cold) name pairs that must not be matched.
+
+    Returns
+    -------
+    SubnetworkMatches
+
+    Raises
+    ------
+    InfeasibleError
+        When the heat cannot be distributed (only possible with forbidden matches).
+    SolverError
+        When the solver stops without any solution.
+
+    Examples
+    --------
+    Above the pinch of Sinnott's four-stream problem, streams 1 and 4 both carry 270 kW, so they form a
+    balanced pair of their own: one match fewer than the N − 1 target.
+
+    >>> from heatloom.model import StreamTable
+    >>> s = StreamTable.from_arrays(["1", "2", "3", "4"], [180, 150, 20, 80], [60, 30, 135, 140],
+    ...                             [3.0, 1.0, 2.0, 4.5])
+    >>> above = subnetworks(transshipment(s, 10))[0]
+    >>> result = min_matches(above)
+    >>> result.number_of_matches, above.unit_target
+    (3, 4)
+    """
+    forbidden = _pairs(forbidden)
+    problem, read = min_matches_model(sub, forbidden=forbidden)
+    report = solve(problem, solver, time_limit=time_limit, absolute_gap=0.999,
+                   name=f"fewest matches, {sub.label}")
+    if report.status in (SolveStatus.INFEASIBLE, SolveStatus.INFEASIBLE_OR_UNBOUNDED):
+        raise InfeasibleError(f"{sub.label}: no set of matches can distribute the heat"
+                              + (" without the forbidden matches given" if forbidden else ""))
+    if not report.status.has_solution:
+        raise SolverError(f"{sub.label}: the fewest-matches model ended with status "
+                          f"'{report.status.value}' ({report.detail})")
+    reports = [report]
+    if tie_break is TieBreak.COMPACT:
+        count = sum(1 for v in problem.variables() if v.name.startswith("y_") and (v.varValue or 0) > 0.5)
+        second, read_second = min_matches_model(sub, forbidden=forbidden, max_matches=count)
+        rep2 = solve(second, solver, time_limit=time_limit, absolute_gap=0.999, check=False,
+                     name=f"compact tie-break, {sub.label}")
+        reports.append(rep2)
+        if rep2.status.has_solution:
+            problem, read = second, read_second
+    matches, residuals = read()
+    _fix_integers(problem)
+    polish = solve(problem, solver, time_limit=time_limit, check=False,
+                   name=f"loads with the matches fixed, {sub.label}")
+    reports.append(polish)
+    if polish.status is SolveStatus.OPTIMAL:
+        matches, residuals = read()
+    return SubnetworkMatches(sub, matches, residuals, tuple(reports))
+
+
+# ----------------------------------------------------------------------------------- plan (c)
+
+@dataclass(frozen=True, eq=False)
+class MatchPlan:
+    """Utility duties and the fewest matches of every subnetwork, ready for placing exchangers.
+
+    Attributes
+    ----------
+    transshipment : Transshipment
+        The utility-cost LP, its intervals and cascade.
+    subnetworks : tuple of SubnetworkMatches
+        Hottest first.
+    tie_break : TieBreak
+    note : str
+        Assumptions worth telling the user (ideal utilities).
+    """
+
+    transshipment: Transshipment
+    subnetworks: tuple[SubnetworkMatches, ...]
+    tie_break: TieBreak
+    note: str = ""
+
+    @property
+    def matches(self) -> tuple[Match, ...]:
+        """Every match, hottest subnetwork first."""
+        return tuple(m for s in self.subnetworks for m in s.matches)
+
+    @property
+    def number_of_matches(self) -> int:
+        return sum(s.number_of_matches for s in self.subnetworks)
+
+    @property
+    def unit_target(self) -> int:
+        """Sum of the N − 1 targets of the subnetworks [-]."""
+        return sum(s.subnetwork.unit_target for s in self.subnetworks)
+
+    @property
+    def utility_duties(self) -> dict[str, float]:
+        """[kW]"""
+        return self.transshipment.utility_duties
+
+    @property
+    def ideal_utilities(self) -> bool:
+        return self.transshipment.ideal
+
+    @property
+    def proven_minimum(self) -> bool:
+        """True when every subnetwork's number of matches is proven minimal."""
+        return all(s.optimal for s in self.subnetworks)
+
+    @property
+    def reports(self) -> tuple[SolveReport, ...]:
+        """Every solve: the two LP stages, then those of each subnetwork."""
+        return self.transshipment.reports + tuple(r for s in self.subnetworks for r in s.reports)
+
+    @property
+    def pair_loads(self) -> dict[tuple[str, str], float]:
+        """Total load of each (hot, cold) pair over all subnetworks [kW]."""
+        out: dict[tuple[str, str], float] = {}
+        for m in self.matches:
+            out[m.hot, m.cold] = out.get((m.hot, m.cold), 0.0) + m.load
+        return out
+
+    def allowed(self, top: float | None = None, bottom: float | None = None) -> set[tuple[str, str]]:
+        """The (hot, cold) pairs matched in the subnetworks lying between two shifted temperatures.
+
+        Parameters
+        ----------
+        top, bottom : float, optional
+            Shifted temperatures [°C]; None leaves that end open.  A subnetwork counts when its whole
+            shifted range lies within (a pinch region of the design step holds one or more subnetworks:
+            several when utility levels add pinches of their own).
+        """
+        tol = 1e-9 * max(1.0, float(np.max(np.abs(self.transshipment.intervals.temperatures))))
+        out = set()
+        for s in self.subnetworks:
+            t = s.subnetwork.temperatures
+            if (top is None or t[0] <= top + tol) and (bottom is None or t[-1] >= bottom - tol):
+                out.update((m.hot, m.cold) for m in s.matches)
+        return out
+
+    def to_dict(self) -> dict:
+        return {"dtmin": self.transshipment.intervals.dt_min, "ideal_utilities": self.ideal_utilities,
+                "note": self.note, "utilities": self.utility_duties,
+                "hot_utility": self.transshipment.hot_utility, "cold_utility": self.transshipment.cold_utility,
+                "utility_cost": self.transshipment.utility_cost,
+                "pinches_shifted": list(self.transshipment.pinches), "tie_break": self.tie_break.value,
+                "number_of_matches": self.number_of_matches, "unit_target": self.unit_target,
+                "pair_loads": [{"hot": h, "cold": c, "load": q} for (h, c), q in self.pair_loads.items()],
+                "proven_minimum": self.proven_minimum,
+                "shifted_temperatures": self.transshipment.intervals.temperatures.tolist(),
+                "subnetworks": [s.to_dict() for s in self.subnetworks],
+                "matches": [m.to_dict() for m in self.matches],
+                "units": {"temperature": "°C", "duty": "kW", "dtmin": "K", "utility_cost": "money per year"},
+                "solves": [r.to_dict() for r in self.reports]}
+
+
+def plan_matches(streams: StreamTable, dt_min: float, utilities: Sequence[Utility] | None = None, *,
+                 solver: SolverName | str | None = None, time_limit: float = 60.0,
+                 tie_break: TieBreak = TieBreak.NONE, forbidden: Iterable[tuple[str, str]] = ()
+                 ) -> MatchPlan:
+    """Cheapest utility duties, then the fewest matches with their heat loads, subnetwork by subnetwork.
+
+    Runs :func:`transshipment`, splits at its pinches (:func:`subnetworks`) and runs :func:`min_matches`
+    on each part.  The result is a heat-load distribution, not yet a network: exchanger temperatures,
+    splits and areas come from the design step.  Designs built from it must be checked against local
+    codes and standards by qualified, licensed engineers.
+
+    Parameters
+    ----------
+    streams : StreamTable
+    dt_min : float
+        [K]
+    utilities : sequence of Utility, optional
+        Utility levels with prices [money per kW·year]; when omitted, two ideal utilities (a hot one
+        hotter and a cold one colder than every process temperature, see :func:`ideal_target_utilities`)
+        and the result's ``note`` says so.
+    solver : SolverName, str or None
+    time_limit : float
+        Limit of each solve [s] (two LP stages, then one MILP per subnetwork).
+    tie_break : TieBreak
+        Secondary objective among minimum-match solutions.
+    forbidden : iterable of (str, str)
+        (hot, cold) name pairs that must not be matched.
+
+    Returns
+    -------
+    MatchPlan
+
+    Examples
+    --------
+    >>> from heatloom.model import StreamTable
+    >>> s = StreamTable.from_arrays(["1", "2", "3", "4"], [180, 150, 20, 80], [60, 30, 135, 140],
+    ...                             [3.0, 1.0, 2.0, 4.5])
+    >>> plan = plan_matches(s, 10)
+    >>> plan.utility_duties, plan.number_of_matches, plan.unit_target
+    ({'hot utility': 50.0, 'cold utility': 30.0}, 6, 7)
+    """
+    forbidden = _pairs(forbidden)
+    t = transshipment(streams, dt_min, utilities, solver=solver, time_limit=time_limit)
+    parts = tuple(min_matches(s, solver=solver, time_limit=time_limit, tie_break=tie_break,
+                              forbidden=forbidden) for s in subnetworks(t))
+    note = ""
+    if t.ideal:
+        hot, cold = t.intervals.utilities
+        note = (f"no utilities given: ideal utilities assumed, '{hot.name}' at {hot.supply_temperature:g} °C "
+                f"and '{cold.name}' at {cold.supply_temperature:g} °C, isothermal, hotter / colder than every "
+                "process temperature, at no cost")
+    return MatchPlan(t, parts, tie_break, note)
