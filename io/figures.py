@@ -127,9 +127,10 @@ def grid_diagram(network, streams, *, title: str | None = None):
 
     Process-to-process exchangers are pairs of diamonds joined by a thin line, heaters are triangles
     pointing up on a cold stream, coolers triangles pointing down on a hot stream; each mark carries its
-    duty. Units are laid out left to right from the hot end, subnetwork by subnetwork; the pinch is a
-    dotted vertical line between the subnetworks above and below it. A unit on a split branch shows the
-    branch's share of the flow.
+    duty. Units are laid out left to right from the hot end, subnetwork by subnetwork and stage by stage of
+    the placement (so their order along every stream is the real one); the pinch is a dotted vertical line
+    between the subnetworks above and below it. A unit on a split branch shows the branch's share of the
+    flow.
 
     Parameters
     ----------
@@ -145,10 +146,9 @@ def grid_diagram(network, streams, *, title: str | None = None):
              + [("c", c) for c in network.coolers])
 
     def key(item):
+        # subnetworks from the hot end; inside one, the placement's stages are in order along every stream
         kind, u = item
-        r = order.get(u.region, 1)
-        temp = u.hot_in if kind in ("x", "c") else u.cold_out + network.dt_min
-        return (r, -temp)
+        return (order.get(u.region, 1), u.stage)
 
     units.sort(key=key)
     n = len(units)
@@ -180,10 +180,13 @@ def grid_diagram(network, streams, *, title: str | None = None):
             ax.plot([k, k], [y1, y2], linestyle="none", marker="D", markersize=9, markerfacecolor="white",
                     markeredgecolor="#303030")
             split = ""
-            if u.hot_fraction < 0.999 or u.cold_fraction < 0.999:
-                split = f"\nsplit {u.hot_fraction:.2f}/{u.cold_fraction:.2f}"
-            ax.text(k + 0.12, (y1 + y2) / 2, f"{u.duty:,.0f} kW{split}", fontsize=STYLE["font_size"] - 2,
-                    va="center")
+            if u.hot_fraction < 0.999:
+                split += f"\n{u.hot} branch {u.hot_fraction:.2f}"
+            if u.cold_fraction < 0.999:
+                split += f"\n{u.cold} branch {u.cold_fraction:.2f}"
+            where = 0.3 if k % 2 else 0.7   # alternate label heights so neighbours do not overlap
+            ax.text(k + 0.12, y1 + where * (y2 - y1), f"{u.duty:,.0f} kW{split}",
+                    fontsize=STYLE["font_size"] - 2, va="center")
         elif kind == "h":
             y = -rows[u.cold]
             ax.plot([k], [y], marker="^", markersize=10, color=STYLE["hot"]["color"])

@@ -40,6 +40,8 @@ __all__ = [
     "IDEAL_UTILITY_MARGIN",
     "DEFAULT_HOT_UTILITY_PRICE",
     "DEFAULT_COLD_UTILITY_PRICE",
+    "DEFAULT_HOT_UTILITY_FILM_COEFFICIENT",
+    "DEFAULT_COLD_UTILITY_FILM_COEFFICIENT",
 ]
 
 X_P = 0.9
@@ -107,3 +109,11 @@ heat or steam at 8000 h/year; not a quotation)."""
 DEFAULT_COLD_UTILITY_PRICE = 20.0
 """Price of the assumed cold utility [money per kW·year] (illustrative default, of the order of cooling
 water; not a quotation)."""
+
+DEFAULT_HOT_UTILITY_FILM_COEFFICIENT = 4.0
+"""Film coefficient of the assumed hot utility [kW/(m²·K)] (common practice order of magnitude for
+condensing steam; illustrative)."""
+
+DEFAULT_COLD_UTILITY_FILM_COEFFICIENT = 2.0
+"""Film coefficient of the assumed cold utility [kW/(m²·K)] (common practice order of magnitude for
+cooling water in tubes; illustrative)."""

@@ -42,8 +42,8 @@ def ideal_utilities(streams: StreamTable, dt_min: float) -> tuple[Utility, Utili
     """The two utilities assumed when none are given, stated in every output.
 
     An isothermal hot utility 20 K plus ΔTmin above the hottest cold-stream temperature and an isothermal
-    cold utility 20 K plus ΔTmin below the coldest hot-stream temperature, priced at the defaults of
-    :mod:`heatloom.network.data` (illustrative, common practice).
+    cold utility 20 K plus ΔTmin below the coldest hot-stream temperature, with the prices and film
+    coefficients of :mod:`heatloom.network.data` (illustrative, common practice).
 
     Examples
     --------
@@ -58,8 +58,9 @@ def ideal_utilities(streams: StreamTable, dt_min: float) -> tuple[Utility, Utili
     th = cold_max + dt_min + data.IDEAL_UTILITY_MARGIN
     tc = hot_min - dt_min - data.IDEAL_UTILITY_MARGIN
     return (Utility("hot utility (assumed)", th, th, data.DEFAULT_HOT_UTILITY_PRICE, UtilityKind.HOT,
-                    None),
-            Utility("cold utility (assumed)", tc, tc, data.DEFAULT_COLD_UTILITY_PRICE, UtilityKind.COLD, None))
+                    data.DEFAULT_HOT_UTILITY_FILM_COEFFICIENT),
+            Utility("cold utility (assumed)", tc, tc, data.DEFAULT_COLD_UTILITY_PRICE, UtilityKind.COLD,
+                    data.DEFAULT_COLD_UTILITY_FILM_COEFFICIENT))
 
 
 @dataclass(frozen=True)
@@ -116,20 +117,16 @@ def _utility_side(u: Utility, duty: float, dt_min: float) -> Side:
                 utility=True)
 
 
-def _film(h: float | None, default: float | None, what: str, missing: list[str]) -> float | None:
-    if h is not None:
-        return h
-    if default is None:
-        missing.append(what)
-    return default
+def _missing_film_coefficients(streams: StreamTable, utilities: Sequence[Utility]) -> list[str]:
+    """Streams and utilities without a film coefficient, in table order."""
+    out = [f"stream '{s.name}'" for s in streams if any(g.film_coefficient is None for g in s.segments)]
+    return out + [f"utility '{u.name}'" for u in utilities if u.film_coefficient is None]
 
 
-def _with_h(segments, default: float | None, what: str, missing: list[str], scale: float = 1.0):
-    out = []
-    for g in segments:
-        h = _film(g.film_coefficient, default, what, missing)
-        out.append(Segment(g.supply_temperature, g.target_temperature, g.heat_capacity_flow * scale, h))
-    return out
+def _with_h(segments, default: float | None, scale: float = 1.0) -> list[Segment]:
+    """Segments with their film coefficient (or the default) and the branch's share of the flow."""
+    return [Segment(g.supply_temperature, g.target_temperature, g.heat_capacity_flow * scale,
+                    g.film_coefficient if g.film_coefficient is not None else default) for g in segments]
 
 
 def _utility_segment(u: Utility, t_in: float, t_out: float, duty: float, h: float | None) -> Segment:
@@ -179,12 +176,19 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
         utilities = ideal_utilities(streams, dt_min)
         hu, cu = utilities
         notes.append(f"no utilities given: assumed an isothermal hot utility at {hu.supply_temperature:g} °C "
-                     f"priced {hu.cost:g} and an isothermal cold utility at {cu.supply_temperature:g} °C priced "
-                     f"{cu.cost:g} money per kW·year (defaults; give --utilities FILE)")
+                     f"(h {hu.film_coefficient:g} kW/(m²·K), {hu.cost:g} money per kW·year) and an isothermal "
+                     f"cold utility at {cu.supply_temperature:g} °C (h {cu.film_coefficient:g} kW/(m²·K), "
+                     f"{cu.cost:g} money per kW·year); defaults, give --utilities FILE")
     costs = costs or CostSettings()
-    if default_film_coefficient is not None:
-        if not default_film_coefficient > 0:
-            raise InputError(f"default film coefficient must be > 0 kW/(m²·K), got {default_film_coefficient!r}")
+    if default_film_coefficient is not None and not default_film_coefficient > 0:
+        raise InputError(f"default film coefficient must be > 0 kW/(m²·K), got {default_film_coefficient!r}")
+    missing = _missing_film_coefficients(streams, utilities)
+    if missing and default_film_coefficient is None:
+        raise InputError(f"film coefficient h missing for {', '.join(missing)}: areas and costs need one for "
+                         "every stream and utility (add an h column in kW/(m²·K), or assume one with "
+                         "--default-h)")
+    if missing:
+        notes.append(f"film coefficient {default_film_coefficient:g} kW/(m²·K) assumed for {', '.join(missing)}")
     t = target(streams, dt_min, utilities)
     plan = plan_matches(streams, dt_min, utilities, solver=solver, time_limit=time_limit)
     solves = list(plan.reports)
@@ -234,8 +238,11 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
                                   f"{dt_min:g} K at both ends of every unit")
         placed += [(region.label, p) for p in result.units]
 
-    missing: list[str] = []
+    if len(placed) > plan.number_of_matches:
+        notes.append(f"keeping ΔTmin at both ends of every unit took {len(placed)} units for the "
+                     f"{plan.number_of_matches} matches of the plan (a match in two places, or a match added)")
     by_name = {s.name: s for s in streams}
+    default_h = default_film_coefficient
     exchangers, heaters, coolers = [], [], []
     capital = 0.0
     for label, p in placed:
@@ -243,19 +250,16 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
         hot_s = None if hot_u is not None else by_name[p.hot]
         cold_s = None if cold_u is not None else by_name[p.cold]
         if hot_s is not None:
-            hot_segs = _with_h(cut_profile(hot_s.segments, p.hot_in, p.hot_out), default_film_coefficient,
-                               f"stream '{hot_s.name}'", missing, p.hot_fraction)
+            hot_segs = _with_h(cut_profile(hot_s.segments, p.hot_in, p.hot_out), default_h, p.hot_fraction)
         else:
-            h = _film(hot_u.film_coefficient, default_film_coefficient, f"utility '{hot_u.name}'", missing)
+            h = hot_u.film_coefficient if hot_u.film_coefficient is not None else default_h
             hot_segs = [_utility_segment(hot_u, p.hot_in, p.hot_out, p.duty, h)]
         if cold_s is not None:
-            cold_segs = _with_h(cut_profile(cold_s.segments, p.cold_in, p.cold_out), default_film_coefficient,
-                                f"stream '{cold_s.name}'", missing, p.cold_fraction)
+            cold_segs = _with_h(cut_profile(cold_s.segments, p.cold_in, p.cold_out), default_h,
+                                p.cold_fraction)
         else:
-            h = _film(cold_u.film_coefficient, default_film_coefficient, f"utility '{cold_u.name}'", missing)
+            h = cold_u.film_coefficient if cold_u.film_coefficient is not None else default_h
             cold_segs = [_utility_segment(cold_u, p.cold_in, p.cold_out, p.duty, h)]
-        if missing:
-            continue
         sizing = size_segments(hot_segs, cold_segs, rel_tol=1e-5)
         # effective LMTD and mean U of the whole unit: Q = U·A·LMTD with LMTD = Q / Σ(Q_k / LMTD_k)
         lm = p.duty / sum(i.duty / i.lmtd for i in sizing.intervals)
@@ -264,7 +268,8 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
             else UnitKind.EXCHANGER
         cost = float(costs.annual_capital_cost(sizing.area, kind))
         capital += cost
-        common = {"duty": p.duty, "area": sizing.area, "cost": cost, "region": label, "u": u_mean, "lmtd": lm}
+        common = {"duty": p.duty, "area": sizing.area, "cost": cost, "region": label, "u": u_mean, "lmtd": lm,
+                  "stage": p.stage}
         if hot_u is not None:
             heaters.append(Heater(cold=p.cold, utility=p.hot, cold_in=p.cold_in, cold_out=p.cold_out,
                                   utility_in=p.hot_in, utility_out=p.hot_out, cold_fraction=p.cold_fraction,
@@ -276,13 +281,7 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
         else:
             exchangers.append(Exchanger(hot=p.hot, cold=p.cold, hot_in=p.hot_in, hot_out=p.hot_out,
                                         cold_in=p.cold_in, cold_out=p.cold_out, hot_fraction=p.hot_fraction,
-                                        cold_fraction=p.cold_fraction, stage=p.stage, **common))
-    if missing:
-        names = ", ".join(dict.fromkeys(missing))
-        raise InputError(f"film coefficient h missing for {names}: areas and costs need one for every stream "
-                         "and utility (add an h column in kW/(m²·K), or assume one with --default-h)")
-    if default_film_coefficient is not None:
-        notes.append(f"film coefficient {default_film_coefficient:g} kW/(m²·K) assumed wherever none was given")
+                                        cold_fraction=p.cold_fraction, **common))
     operating = float(sum(duties.get(u.name, 0.0) * u.cost for u in utilities))
     notes.append(costs.describe())
     notes.append("Areas: counter-current LMTD, U from 1/U = 1/h_hot + 1/h_cold (clean surfaces, no fouling "

@@ -28,6 +28,8 @@ from dataclasses import dataclass
 import numpy as np
 import pulp
 
+from .solvers import new_variable
+
 __all__ = ["Side", "PlacedUnit", "Placement", "stage_model"]
 
 
@@ -109,8 +111,8 @@ def _temperature_expr(prob, side: Side, e_var, tag: str):
     if n == 1:
         slope = (t[1] - t[0]) / (e[1] - e[0])
         return t[0] + slope * e_var
-    deltas = [pulp.LpVariable(f"d_{tag}_{s}", 0, e[s + 1] - e[s]) for s in range(n)]
-    w = [pulp.LpVariable(f"w_{tag}_{s}", cat="Binary") for s in range(n - 1)]
+    deltas = [new_variable(prob, f"d_{tag}_{s}", 0, e[s + 1] - e[s]) for s in range(n)]
+    w = [new_variable(prob, f"w_{tag}_{s}", cat=pulp.LpBinary) for s in range(n - 1)]
     prob += pulp.lpSum(deltas) == e_var
     for s in range(n - 1):
         prob += deltas[s] >= (e[s + 1] - e[s]) * w[s]
@@ -171,8 +173,8 @@ def stage_model(hot: Sequence[Side], cold: Sequence[Side], allowed: set[tuple[st
             elif k == end:
                 e[side.name, k] = side.duty
             else:
-                e[side.name, k] = pulp.LpVariable(f"{'e' if side.hot else 'c'}_{vname(side)}_{k}", 0,
-                                                  side.duty)
+                e[side.name, k] = new_variable(prob, f"{'e' if side.hot else 'c'}_{vname(side)}_{k}", 0,
+                                               side.duty)
             if k in (0, K):
                 temp[side.name, k] = side.temperature(e[side.name, k])
             else:
@@ -182,8 +184,8 @@ def stage_model(hot: Sequence[Side], cold: Sequence[Side], allowed: set[tuple[st
     for i, j in pairs:
         bound = min(i.duty, j.duty)
         for k in range(K):
-            q[i.name, j.name, k] = pulp.LpVariable(f"q_{vname(i)}_{vname(j)}_{k}", 0, bound)
-            z[i.name, j.name, k] = pulp.LpVariable(f"z_{vname(i)}_{vname(j)}_{k}", cat="Binary")
+            q[i.name, j.name, k] = new_variable(prob, f"q_{vname(i)}_{vname(j)}_{k}", 0, bound)
+            z[i.name, j.name, k] = new_variable(prob, f"z_{vname(i)}_{vname(j)}_{k}", cat=pulp.LpBinary)
             prob += q[i.name, j.name, k] <= bound * z[i.name, j.name, k]
             need = i.shift + j.shift
             # the unit's hot end is stage boundary k, its cold end k + 1; a utility side always spans its
@@ -212,7 +214,7 @@ def stage_model(hot: Sequence[Side], cold: Sequence[Side], allowed: set[tuple[st
             zs = [z[(s.name, p.name, k) if s.hot else (p.name, s.name, k)] for p in partners
                   if ((s.name, p.name, k) if s.hot else (p.name, s.name, k)) in z]
             if len(zs) > 1:
-                b = pulp.LpVariable(f"b_{vname(s)}_{k}", 0)
+                b = new_variable(prob, f"b_{vname(s)}_{k}", 0)
                 prob += b >= pulp.lpSum(zs) - 1
                 branches.append(b)
     eps = 1.0 / (len(branches) + 2)

@@ -53,6 +53,7 @@ __all__ = [
     "available_solvers",
     "resolve_solver",
     "solve",
+    "new_variable",
 ]
 
 
@@ -459,3 +460,14 @@ def solve(problem: pulp.LpProblem, solver: SolverName | str | None = None, *, ti
         raise SolverError(f"{chosen.value} stopped without any solution of '{label}' "
                           f"({detail}; time limit {limit:g} s): raise the time limit or simplify the problem")
     return report
+
+
+def new_variable(problem: pulp.LpProblem, name: str, low=None, up=None, cat=pulp.LpContinuous) -> pulp.LpVariable:
+    """A variable attached to ``problem``, the way the installed PuLP prefers.
+
+    PuLP 3.x deprecates building ``LpVariable`` objects on their own (PuLP 4 attaches variables to their
+    model); older versions have no ``add_variable``.
+    """
+    if hasattr(problem, "add_variable"):
+        return problem.add_variable(name, low, up, cat)
+    return pulp.LpVariable(name, low, up, cat)  # pragma: no cover - older PuLP

@@ -89,7 +89,8 @@ class Exchanger:
     cost : float or None
         Capital cost [money per year when annualised, else money].
     stage : int
-        Position index used by design (hot end first) [-].
+        Stage of the placement, hot end first [-]: along every stream, units of a lower stage come first
+        from its hot end (used to draw the grid diagram).
     region : str
         Pinch subnetwork the unit belongs to ("above", "below" or "whole").
     """
@@ -138,12 +139,13 @@ class Heater:
     region: str = "above"
     u: float | None = None
     lmtd: float | None = None
+    stage: int = 0
 
     def to_dict(self) -> dict:
         return {"cold": self.cold, "utility": self.utility, "duty": self.duty, "cold_in": self.cold_in,
                 "cold_out": self.cold_out, "utility_in": self.utility_in, "utility_out": self.utility_out,
                 "cold_fraction": self.cold_fraction, "area": self.area, "cost": self.cost, "u": self.u,
-                "lmtd": self.lmtd, "region": self.region}
+                "lmtd": self.lmtd, "region": self.region, "stage": self.stage}
 
 
 @dataclass(frozen=True)
@@ -163,12 +165,13 @@ class Cooler:
     region: str = "below"
     u: float | None = None
     lmtd: float | None = None
+    stage: int = 0
 
     def to_dict(self) -> dict:
         return {"hot": self.hot, "utility": self.utility, "duty": self.duty, "hot_in": self.hot_in,
                 "hot_out": self.hot_out, "utility_in": self.utility_in, "utility_out": self.utility_out,
                 "hot_fraction": self.hot_fraction, "area": self.area, "cost": self.cost, "u": self.u,
-                "lmtd": self.lmtd, "region": self.region}
+                "lmtd": self.lmtd, "region": self.region, "stage": self.stage}
 
 
 @dataclass(frozen=True, eq=False)

@@ -1,0 +1,94 @@
+"""The `heatloom design` command: the stable JSON shape, files written, clear refusals.
+
+Published numbers: Ray & Das, Process Equipment and Plant Design, ch. 5, Problem 5.4 (62.5 kW hot,
+45 kW cold utility at ΔTmin 10 K). The solvent-recovery demo data are invented.
+"""
+
+import json
+from pathlib import Path
+
+import pandas as pd
+import pytest
+
+from heatloom.cli import main
+
+ROOT = Path(__file__).resolve().parents[2]
+DEMO = ROOT / "case_studies" / "solvent_recovery"
+
+RAY_DAS_5_4 = """name,T_supply,T_target,CP
+1,170,60,2.5
+2,150,30,1.0
+3,20,135,1.5
+4,80,140,4.0
+"""
+
+EXCHANGER_KEYS = {"hot", "cold", "duty", "hot_in", "hot_out", "cold_in", "cold_out", "hot_fraction",
+                  "cold_fraction", "area", "cost"}
+HEATER_KEYS = {"cold", "utility", "duty", "cold_in", "cold_out", "area", "cost"}
+COOLER_KEYS = {"hot", "utility", "duty", "hot_in", "hot_out", "area", "cost"}
+
+
+def run(capsys, *args):
+    code = main([str(a) for a in args])
+    out = capsys.readouterr()
+    return code, out.out, out.err
+
+
+@pytest.fixture
+def ray_das(tmp_path):
+    p = tmp_path / "ray_das_5_4.csv"
+    p.write_text(RAY_DAS_5_4, encoding="utf-8")
+    return p
+
+
+def test_json_shape_and_published_utilities(capsys, ray_das):
+    code, out, _ = run(capsys, "design", ray_das, "--dtmin", "10", "--default-h", "0.5", "--json")
+    assert code == 0
+    data = json.loads(out)
+    for e in data["exchangers"]:
+        assert EXCHANGER_KEYS <= set(e)
+    for h in data["heaters"]:
+        assert HEATER_KEYS <= set(h)
+    for c in data["coolers"]:
+        assert COOLER_KEYS <= set(c)
+    for key in ("capital_cost", "operating_cost", "total_annual_cost", "units"):
+        assert key in data
+    # Ray & Das Problem 5.4: 62.5 kW hot, 45 kW cold utility
+    assert sum(h["duty"] for h in data["heaters"]) == pytest.approx(62.5)
+    assert sum(c["duty"] for c in data["coolers"]) == pytest.approx(45.0)
+    assert data["units"] == len(data["exchangers"]) + len(data["heaters"]) + len(data["coolers"])
+    assert data["total_annual_cost"] == pytest.approx(data["capital_cost"] + data["operating_cost"])
+
+
+def test_demo_case_with_utilities_and_out(capsys, tmp_path):
+    out_dir = tmp_path / "net"
+    code, out, _ = run(capsys, "design", DEMO / "streams.csv", "--dtmin", "10", "--utilities",
+                       DEMO / "utilities.csv", "--out", out_dir)
+    assert code == 0
+    assert "total annual cost" in out and "licensed engineers" in out
+    for n in ("network.json", "network.csv", "network.xlsx", "grid_diagram.png", "grid_diagram.svg"):
+        assert (out_dir / n).stat().st_size > 0
+    units = pd.read_excel(out_dir / "network.xlsx", sheet_name="units")
+    assert {"duty [kW]", "area [m²]"} <= set(units.columns)
+    # the second run refuses to overwrite
+    code, _, err = run(capsys, "design", DEMO / "streams.csv", "--out", out_dir)
+    assert code == 2 and "already exists" in err
+
+
+def test_missing_film_coefficients_exit_2(capsys, ray_das):
+    code, out, err = run(capsys, "design", ray_das, "--dtmin", "10")
+    assert code == 2 and out == ""
+    assert "film coefficient h missing" in err and "--default-h" in err
+
+
+def test_infeasible_exit_3(capsys, ray_das, tmp_path):
+    u = tmp_path / "u.csv"
+    u.write_text("name,T_supply,T_target,cost,h\nwarm oil,120,110,50,1\ncw,10,20,5,1\n", encoding="utf-8")
+    code, out, err = run(capsys, "design", ray_das, "--utilities", u, "--default-h", "1")
+    assert code == 3 and "infeasible" in err and out == ""
+
+
+def test_cbc_solver_option(capsys, ray_das):
+    code, out, _ = run(capsys, "design", ray_das, "--default-h", "1", "--solver", "cbc", "--json")
+    assert code == 0
+    assert all(s["solver"] == "cbc" for s in json.loads(out)["solves"])

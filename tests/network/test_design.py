@@ -1,0 +1,181 @@
+"""MER design: published targets reached with the fewest units, every unit sized, costed and checked.
+
+Published sources (cited beside each use): the targeting examples in tests/data/references/ (Sinnott,
+Coulson & Richardson Vol. 6, ch. 3, Table 3.6; Ray & Das, Process Equipment and Plant Design, ch. 5,
+Problems 5.1, 5.2, 5.4; Klemeš et al. 2011, Table 4.2) and the synthesis problems with their film
+coefficients and utilities (Roetzel, Luo & Chen 2020, ch. 6). The minimum-units target N − 1 per pinch
+subnetwork is Euler's rule for networks without loops (Linnhoff & Hindmarsh 1983, Chem. Eng. Sci.
+38(5), 745-763). Areas are checked against the reference library `ht` (ht.LMTD).
+"""
+
+import ht
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from refdata import reference_utilities
+
+from heatloom.errors import InfeasibleError, InputError
+from heatloom.model import Segment, Stream, StreamTable, Utility
+from heatloom.network import CostLaw, CostSettings, check_network, design_mer, overall_coefficient
+from heatloom.pinch import target
+
+TARGETING = [
+    # (reference file, published hot utility, published cold utility) [kW]
+    ("targeting_sinnott_four_stream", 50, 30),       # Sinnott, C&R Vol. 6, Table 3.6
+    ("targeting_ray_das_problem_5_1", 90, 255),      # Ray & Das, Problem 5.1, Tables P5.1B/C
+    ("targeting_ray_das_problem_5_4", 62.5, 45),     # Ray & Das, Problem 5.4 (CP erratum, see file)
+]
+
+
+def units_per_pair(net):
+    """(subnetwork, hot, cold) of every unit."""
+    return [(e.region, e.hot, e.cold) for e in net.exchangers] + \
+        [(h.region, h.utility, h.cold) for h in net.heaters] + [(c.region, c.hot, c.utility) for c in net.coolers]
+
+
+@pytest.mark.parametrize(("name", "hot", "cold"), TARGETING)
+def test_published_examples_reach_their_targets_with_fewest_units(reference, name, hot, cold):
+    data, streams = reference(name)
+    net = design_mer(streams, data["dtmin"], default_film_coefficient=1.0)
+    assert net.hot_utility == pytest.approx(hot, abs=1e-6)
+    assert net.cold_utility == pytest.approx(cold, abs=1e-6)
+    # Euler: no more than N − 1 units per pinch subnetwork; the design uses the MILP's fewest matches
+    assert net.units <= net.unit_target
+    assert len(set(units_per_pair(net))) == net.units, "each match of a subnetwork is one unit"
+    check_network(net, streams)
+
+
+def test_sinnott_above_pinch_has_an_independent_pair(reference):
+    # Sinnott Table 3.6 data: above the 90/80 °C pinch stream 1 releases 3 × 90 = 270 kW and stream 4
+    # takes 4.5 × 60 = 270 kW, a balanced pair; Euler's N − 1 = 4 above the pinch drops to 3 (N − s with
+    # s = 2 independent groups, Linnhoff & Hindmarsh 1983). Below: N − 1 = 3. Total 6 against 7.
+    data, streams = reference("targeting_sinnott_four_stream")
+    net = design_mer(streams, 10, default_film_coefficient=1.0)
+    assert net.units == 6 and net.unit_target == 7
+    above = [e for e in net.exchangers if e.region == "above"]
+    assert ("1", "4") in [(e.hot, e.cold) for e in above]
+    assert next(e for e in above if (e.hot, e.cold) == ("1", "4")).duty == pytest.approx(270)
+
+
+def test_threshold_problem_needs_no_cooler(reference):
+    # Ray & Das Problem 5.2: hot utility only
+    data, streams = reference("targeting_ray_das_problem_5_2_threshold")
+    net = design_mer(streams, data["dtmin"], default_film_coefficient=1.0)
+    assert net.coolers == () and net.cold_utility == 0
+    assert net.units <= net.unit_target
+    check_network(net, streams)
+
+
+@pytest.mark.parametrize("name", ["synthesis_yee_grossmann_2h2c", "synthesis_colberg_morari_3h4c",
+                                  "synthesis_aromatics_plant_4h5c"])
+def test_synthesis_problems_design_and_cost(reference, name):
+    # Stream data, film coefficients and utilities of the published benchmark problems (Roetzel, Luo &
+    # Chen 2020, ch. 6); ΔTmin 10 K is our choice (the benchmarks optimise it).
+    data, streams = reference(name)
+    utilities = reference_utilities(data)
+    costs = CostSettings(annualised=True, exchanger=CostLaw(1000.0, 80.0, 0.8), interest_rate=None, years=None)
+    net = design_mer(streams, 10, utilities, costs=costs)
+    t = target(streams, 10, utilities)
+    assert net.hot_utility == pytest.approx(t.hot_utility, rel=1e-7)
+    assert net.cold_utility == pytest.approx(t.cold_utility, rel=1e-7)
+    check_network(net, streams, utilities)
+    # The reported costs are the cost law applied to the reported areas, plus utility duty × price.
+    capital = sum(costs.annual_capital_cost(u.area) for u in (*net.exchangers, *net.heaters, *net.coolers))
+    operating = sum(u.duty * next(x.cost for x in utilities if x.name == u.utility)
+                    for u in (*net.heaters, *net.coolers))
+    assert net.capital_cost == pytest.approx(capital, rel=1e-9)
+    assert net.operating_cost == pytest.approx(operating, rel=1e-9)
+    assert net.total_annual_cost == pytest.approx(capital + operating, rel=1e-9)
+
+
+def test_unsplit_exchanger_areas_agree_with_ht(reference):
+    # Every unsplit single-segment exchanger: A = Q / (U · LMTD), LMTD from the reference library
+    # (ht.LMTD, counter-current), U from the published film coefficients.
+    data, streams = reference("synthesis_colberg_morari_3h4c")
+    utilities = reference_utilities(data)
+    net = design_mer(streams, 10, utilities)
+    h = {s.name: s.segments[0].film_coefficient for s in streams}
+    checked = 0
+    for e in net.exchangers:
+        if e.hot_fraction == 1 and e.cold_fraction == 1:
+            lm = ht.LMTD(e.hot_in, e.hot_out, e.cold_in, e.cold_out)
+            u = overall_coefficient(h[e.hot], h[e.cold])
+            assert e.area == pytest.approx(e.duty / (u * lm), rel=1e-6)
+            checked += 1
+    assert checked > 0
+
+
+def test_forced_stream_split():
+    # Invented threshold case (no hot utility): H1 (CP 7 kW/K, 200 °C) must serve C1 up to 190 °C and
+    # C2 up to 150 °C. In series H1 reaches C2 at 142.9 °C, below 150 + 10; in two parallel branches with
+    # one outlet temperature the C1 branch ends 2.9 K from C1's inlet. So no placement of the four planned
+    # matches as single units keeps ΔTmin 10 K (by hand); design needs five units, one on a split branch.
+    s = StreamTable.from_arrays(["H1", "H2", "C1", "C2"], [200, 150, 90, 80], [60, 50, 190, 150],
+                                [7.0, 3.0, 4.0, 5.0])
+    net = design_mer(s, 10, default_film_coefficient=1.0)
+    assert net.units == 5 and net.unit_target == 4
+    assert any("took 5 units for the 4 matches" in n for n in net.notes)
+    assert any(e.hot_fraction < 1 for e in net.exchangers)
+    check_network(net, s)
+
+
+def test_segmented_streams_are_sized_and_checked():
+    # Invented: a vapour that desuperheats, condenses over 1 K and subcools, against a feed and a boiler.
+    vapour = Stream("vapour", (Segment(160, 120, 2.0, 0.8), Segment(120, 119, 400.0, 2.5),
+                               Segment(119, 60, 3.0, 0.9)))
+    feed = Stream("feed", (Segment(30, 110, 4.0, 0.7),))
+    boiler = Stream("boiler", (Segment(100, 101, 150.0, 3.0),))
+    table = StreamTable((vapour, feed, boiler))
+    net = design_mer(table, 10, default_film_coefficient=1.0)
+    check_network(net, table)
+    t = target(table, 10)
+    assert net.hot_utility == pytest.approx(t.hot_utility, rel=1e-7)
+
+
+def test_missing_film_coefficients_is_an_input_error(reference):
+    data, streams = reference("targeting_sinnott_four_stream")
+    with pytest.raises(InputError, match=r"film coefficient h missing for stream '1'.*--default-h"):
+        design_mer(streams, 10)
+
+
+def test_infeasible_utilities(reference):
+    data, streams = reference("targeting_sinnott_four_stream")
+    with pytest.raises(InfeasibleError, match="hotter than any hot utility"):
+        design_mer(streams, 10, [Utility("warm oil", 100, 90, 50.0), Utility("cw", 10, 20, 5.0)],
+                   default_film_coefficient=1.0)
+
+
+def test_cbc_gives_the_same_network_size(reference):
+    data, streams = reference("targeting_ray_das_problem_5_4")
+    a = design_mer(streams, 10, default_film_coefficient=1.0, solver="highs")
+    b = design_mer(streams, 10, default_film_coefficient=1.0, solver="cbc")
+    assert a.units == b.units
+    assert a.hot_utility == pytest.approx(b.hot_utility)
+
+
+@st.composite
+def problems(draw):
+    n = draw(st.integers(3, 5))
+    streams = []
+    for i in range(n):
+        a = draw(st.integers(20, 250))
+        b = draw(st.integers(20, 250).filter(lambda x, a=a: abs(x - a) >= 5))
+        streams.append(Stream.simple(f"S{i}", a, b, draw(st.integers(5, 60)) / 10,
+                                     film_coefficient=draw(st.integers(3, 20)) / 10))
+    if all(s.is_hot for s in streams) or not any(s.is_hot for s in streams):
+        streams[0] = Stream.simple("S0", streams[0].target_temperature, streams[0].supply_temperature,
+                                   streams[0].segments[0].heat_capacity_flow, film_coefficient=1.0)
+    return StreamTable(streams), draw(st.sampled_from([5, 10, 20]))
+
+
+@settings(max_examples=25, derandomize=True, deadline=None)
+@given(problems())
+def test_every_designed_network_passes_its_checks(problem):
+    streams, dt_min = problem
+    net = design_mer(streams, dt_min, time_limit=20)
+    t = target(streams, dt_min)
+    assert net.hot_utility == pytest.approx(t.hot_utility, rel=1e-6, abs=1e-6)
+    assert net.cold_utility == pytest.approx(t.cold_utility, rel=1e-6, abs=1e-6)
+    check_network(net, streams)
+    for u in (*net.exchangers, *net.heaters, *net.coolers):
+        assert u.area > 0 and u.cost > 0
