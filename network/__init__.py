@@ -26,11 +26,9 @@ from .milp import (
     Subnetwork,
     SubnetworkMatches,
     TieBreak,
-    Transshipment,
     min_matches,
     plan_matches,
     subnetworks,
-    transshipment,
 )
 from .placement import PlacedUnit, Placement, Side, stage_model
 from .rating import Rating, effectiveness_from_ntu, max_effectiveness, ntu_from_effectiveness, rate_exchanger
@@ -50,6 +48,7 @@ from .sizing import (
 )
 from .solvers import SolveReport, SolverName, SolveStatus, available_solvers, resolve_solver, solve
 from .structure import Cooler, Exchanger, Heater, Network, approach_violations, check_network
+from .transshipment import Transshipment, transshipment
 
 __all__ = [
     "CostBreakdown", "CostLaw", "CostSettings", "UnitKind", "capital_recovery_factor", "cost_breakdown",

@@ -1,20 +1,19 @@
-"""Transshipment models of heat-exchanger network synthesis: minimum utility cost and fewest matches.
+"""Fewest-matches MILP of heat-exchanger network synthesis, one pinch subnetwork at a time.
 
 Papoulias & Grossmann (1983) see heat as a commodity shipped from hot streams (sources) to cold streams
-(sinks) through temperature intervals (warehouses): hot heat may only go down the temperature scale, and
-on the shifted scale (hot streams shifted down, cold streams up, by their ΔTmin contribution) every
-transfer within an interval or downwards respects the minimum approach.  Two models are built here,
-each by a function that returns the PuLP problem and a reader of its solution:
+(sinks) through shifted temperature intervals (warehouses); those intervals and the LP of the cheapest
+utility duties are in :mod:`heatloom.network.transshipment`.  This module holds:
 
-* :func:`transshipment_model`, the LP of the cheapest utility duties (several levels, hot and cold,
-  isothermal or not).  It reproduces the problem table and the utility placement of
-  :mod:`heatloom.pinch`.
+* :func:`subnetworks`, which splits the problem at every interval boundary where the cascade carries no
+  heat (process pinches and utility pinches);
 * :func:`min_matches_model`, the expanded transshipment MILP of the fewest process/utility matches with
-  the utility duties fixed, for one pinch subnetwork.  Its heat-load distribution (which match exchanges
-  how much heat in which interval) is what a later step turns into exchangers with temperatures.
+  the utility duties fixed, for one pinch subnetwork, built by a function that returns the PuLP problem
+  and a reader of its solution, and :func:`min_matches`, which solves it.  Its heat-load distribution
+  (which match exchanges how much heat in which interval) is what a later step turns into exchangers
+  with temperatures.
 
-:func:`plan_matches` runs the LP, splits the problem at every interval boundary where the cascade
-carries no heat (process pinches and utility pinches) and solves the MILP for each subnetwork.
+:func:`plan_matches` runs the LP, splits the problem at its pinches and solves the MILP for each
+subnetwork.
 
 References
 ----------
@@ -37,22 +36,13 @@ import numpy as np
 import pulp
 
 from ..errors import InfeasibleError, InputError, SolverError
-from ..model import StreamTable, Utility, UtilityKind
-from ..pinch.problem_table import problem_table, shifted_ranges
-from ..pinch.targets import IDEAL_COLD, IDEAL_HOT
-from ..pinch.utilities import place_utilities, utility_shifted_range
-from .solvers import SolveReport, SolverName, SolveStatus, solve
+from ..model import StreamTable, Utility
+from .solvers import SolveReport, SolverName, SolveStatus, new_variable, solve
+from .transshipment import _PINCH_TOL, _REL_TOL, Transshipment, transshipment
 
 __all__ = [
     "TieBreak",
     "MatchKind",
-    "Intervals",
-    "temperature_intervals",
-    "IDEAL_MARGIN",
-    "ideal_target_utilities",
-    "Transshipment",
-    "transshipment_model",
-    "transshipment",
     "Subnetwork",
     "subnetworks",
     "Match",
@@ -62,9 +52,6 @@ __all__ = [
     "MatchPlan",
     "plan_matches",
 ]
-
-_REL_TOL = 1e-9      # heat below this share of the problem's duty scale counts as zero (*common practice*)
-_PINCH_TOL = 1e-7    # cascade flow below this share of the duty scale is a pinch (LP round-off margin)
 
 
 class TieBreak(enum.Enum):
@@ -89,421 +76,6 @@ class MatchKind(enum.Enum):
     HEATER = "heater"         # hot utility → process cold stream
     COOLER = "cooler"         # process hot stream → cold utility
 
-
-# ------------------------------------------------------------------------------------------ intervals
-
-def _validate_dt_min(dt_min: float) -> float:
-    try:
-        dt = float(dt_min)
-    except (TypeError, ValueError):
-        raise InputError(f"ΔTmin must be a finite number >= 0 K, got {dt_min!r}", column="dtmin") from None
-    if not dt >= 0 or not np.isfinite(dt):
-        raise InputError(f"ΔTmin must be a finite number >= 0 K, got {dt_min!r}", column="dtmin")
-    return dt
-
-
-def _snap_index(asc: np.ndarray, values: np.ndarray) -> np.ndarray:
-    """Index in the ascending boundaries of the nearest boundary to each value."""
-    if asc.size == 1:
-        return np.zeros(values.size, int)
-    i = np.clip(np.searchsorted(asc, values), 1, asc.size - 1)
-    return np.where(np.abs(asc[i - 1] - values) <= np.abs(asc[i] - values), i - 1, i)
-
-
-@dataclass(frozen=True, eq=False)
-class Intervals:
-    """Shifted temperature intervals and the heat each stream and utility brings to them.
-
-    Attributes
-    ----------
-    dt_min : float
-        [K]
-    temperatures : ndarray
-        Interval boundaries on the shifted scale, hottest first [°C], length K + 1.
-    stream_names : tuple of str
-    stream_is_hot : ndarray of bool
-    stream_heat : ndarray
-        Heat released (hot stream) or taken (cold stream) in each interval [kW], shape (streams, K),
-        never negative.
-    utilities : tuple of Utility
-    utility_fraction : ndarray
-        Share of each utility's duty released (hot) or taken (cold) in each interval [-], shape
-        (utilities, K); a row of zeros for a utility that cannot act at any interval (an isothermal hot
-        utility at the bottom boundary, a cold one at the top).
-    duty_scale : float
-        Sum of the process stream duties [kW].
-    """
-
-    dt_min: float
-    temperatures: np.ndarray
-    stream_names: tuple[str, ...]
-    stream_is_hot: np.ndarray
-    stream_heat: np.ndarray
-    utilities: tuple[Utility, ...]
-    utility_fraction: np.ndarray
-    duty_scale: float
-
-    @property
-    def size(self) -> int:
-        """Number of intervals K."""
-        return self.temperatures.size - 1
-
-    @property
-    def surplus(self) -> np.ndarray:
-        """Process heat surplus of each interval, hot minus cold [kW], length K."""
-        sign = np.where(self.stream_is_hot, 1.0, -1.0)
-        return sign @ self.stream_heat
-
-    def to_dict(self) -> dict:
-        t = self.temperatures
-        return {"dtmin": self.dt_min, "shifted_temperatures": t.tolist(),
-                "streams": {n: self.stream_heat[i].tolist() for i, n in enumerate(self.stream_names)},
-                "utility_fractions": {u.name: self.utility_fraction[i].tolist()
-                                      for i, u in enumerate(self.utilities)}}
-
-
-def temperature_intervals(streams: StreamTable, dt_min: float, utilities: Sequence[Utility] = ()
-                          ) -> Intervals:
-    """Cut the shifted temperature scale at every stream-segment and utility end.
-
-    Hot segments are shifted down and cold segments up by their own ``dt_min_contribution`` when given,
-    else by ΔTmin/2 (exactly as :func:`heatloom.pinch.problem_table.shifted_ranges`); utilities by ΔTmin/2
-    (:func:`heatloom.pinch.utilities.utility_shifted_range`).  A non-isothermal utility spreads its duty in
-    proportion to the overlap of each interval with its shifted range; an isothermal hot utility releases
-    its heat into the interval just below its temperature, an isothermal cold one takes it from the
-    interval just above.
-
-    Parameters
-    ----------
-    streams : StreamTable
-        Process streams (several segments per stream allowed).
-    dt_min : float
-        Global minimum approach temperature [K].
-    utilities : sequence of Utility
-        Utility levels; names must differ from each other and from the stream names.
-
-    Returns
-    -------
-    Intervals
-
-    Examples
-    --------
-    >>> from heatloom.model import StreamTable
-    >>> s = StreamTable.from_arrays(["1", "2", "3", "4"], [180, 150, 20, 80], [60, 30, 135, 140],
-    ...                             [3.0, 1.0, 2.0, 4.5])
-    >>> iv = temperature_intervals(s, 10)
-    >>> iv.temperatures.tolist(), iv.surplus.tolist()
-    ([175.0, 145.0, 140.0, 85.0, 55.0, 25.0], [90.0, -2.5, -137.5, 60.0, -30.0])
-    """
-    dt = _validate_dt_min(dt_min)
-    utilities = tuple(utilities)
-    names = [s.name for s in streams]
-    seen = set(names)
-    for u in utilities:
-        if u.name in seen:
-            raise InputError(f"utility name '{u.name}' is also used by a stream or another utility; "
-                             "names must be unique", column="name")
-        seen.add(u.name)
-    arrays = streams.arrays
-    upper, lower = shifted_ranges(arrays, dt)
-    u_ranges = np.array([utility_shifted_range(u, dt) for u in utilities], float).reshape(-1, 2)
-    points = np.unique(np.concatenate((upper, lower, u_ranges.ravel())))
-    tol_t = 1e-9 * max(1.0, float(np.max(np.abs(points))))
-    keep = np.concatenate(([True], np.diff(points) > tol_t))
-    asc = points[keep]
-    temps = asc[::-1].copy()
-    k = temps.size - 1
-    n_top = asc.size - 1
-
-    def top_bottom(hi, lo):  # descending indices of the boundaries at hi and lo
-        return n_top - _snap_index(asc, np.atleast_1d(hi)), n_top - _snap_index(asc, np.atleast_1d(lo))
-
-    width = temps[:-1] - temps[1:]
-    heat = np.zeros((len(names), k))
-    a, b = top_bottom(upper, lower)
-    for seg in range(upper.size):
-        heat[arrays.stream_index[seg], a[seg]:b[seg]] += arrays.heat_capacity_flow[seg] * width[a[seg]:b[seg]]
-    frac = np.zeros((len(utilities), k))
-    for i, u in enumerate(utilities):
-        ua, ub = (int(x[0]) for x in top_bottom(u_ranges[i, 0], u_ranges[i, 1]))
-        if ub > ua:
-            frac[i, ua:ub] = width[ua:ub] / width[ua:ub].sum()
-        elif u.is_hot and ua < k:
-            frac[i, ua] = 1.0
-        elif not u.is_hot and ua > 0:
-            frac[i, ua - 1] = 1.0
-    is_hot = np.array([s.is_hot for s in streams], bool)
-    scale = float(sum(s.duty for s in streams))
-    return Intervals(dt, temps, tuple(names), is_hot, heat, utilities, frac, scale)
-
-
-IDEAL_MARGIN = 10.0
-"""How far the ideal utilities of :func:`ideal_target_utilities` lie beyond the process [K]."""
-
-
-def ideal_target_utilities(streams: StreamTable, dt_min: float) -> tuple[Utility, Utility]:
-    """Two ideal utilities for targeting: isothermal, beyond every process temperature, free.
-
-    The hot one is :data:`IDEAL_MARGIN` above both the hottest process temperature and the hottest
-    shifted temperature plus ΔTmin/2, the cold one as far below the coldest ones, so each can serve every
-    process stream.  At zero price the transshipment LP with them gives the problem-table targets.  They
-    carry the names :mod:`heatloom.pinch` uses for ideal utilities.
-
-    Parameters
-    ----------
-    streams : StreamTable
-    dt_min : float
-        [K]
-
-    Examples
-    --------
-    >>> from heatloom.model import StreamTable
-    >>> s = StreamTable.from_arrays(["H1", "C1"], [180, 20], [60, 135], [3.0, 2.0])
-    >>> [(u.name, u.supply_temperature) for u in ideal_target_utilities(s, 10)]
-    [('hot utility', 190.0), ('cold utility', 10.0)]
-    """
-    dt = _validate_dt_min(dt_min)
-    a = streams.arrays
-    upper, lower = shifted_ranges(a, dt)
-    temps = np.concatenate((a.supply_temperature, a.target_temperature))
-    top = max(float(temps.max()), float(upper.max()) + 0.5 * dt) + IDEAL_MARGIN
-    bottom = min(float(temps.min()), float(lower.min()) - 0.5 * dt) - IDEAL_MARGIN
-    return (Utility(IDEAL_HOT, top, top, 0.0, UtilityKind.HOT),
-            Utility(IDEAL_COLD, bottom, bottom, 0.0, UtilityKind.COLD))
-
-
-# ------------------------------------------------------------------------------ transshipment LP (a)
-
-def _new_var(problem: pulp.LpProblem, name: str, low=None, up=None, cat=pulp.LpContinuous) -> pulp.LpVariable:
-    if hasattr(problem, "add_variable"):          # PuLP >= 3.x (the 4.0 style)
-        return problem.add_variable(name, low, up, cat)
-    return pulp.LpVariable(name, low, up, cat)    # pragma: no cover - older PuLP
-
-
-def _level_weights(utilities: Sequence[Utility]) -> np.ndarray:
-    """Tie-break weights preferring the coolest hot and the warmest cold utility (as pinch.utilities)."""
-    temps = np.array([(-u.coldest if u.is_hot else u.hottest) for u in utilities])
-    order = np.empty(len(utilities))
-    order[np.argsort(-temps, kind="stable")] = np.arange(len(utilities))
-    return 1.0 + 1e-3 * order / max(len(utilities), 1)
-
-
-def transshipment_model(intervals: Intervals, *, cost_budget: float | None = None
-                        ) -> tuple[pulp.LpProblem, Callable[[], np.ndarray]]:
-    """The transshipment LP of the cheapest utility duties (Papoulias & Grossmann 1983).
-
-    .. math::
-
-        \\min \\sum_u c_u Q_u \\quad \\text{s.t.} \\quad
-        R_k - R_{k-1} = \\sum_{i \\in H} Q^H_{ik} - \\sum_{j \\in C} Q^C_{jk}
-        + \\sum_{u \\in HU} f_{uk} Q_u - \\sum_{u \\in CU} f_{uk} Q_u, \\qquad
-        R_0 = R_K = 0, \\; R_k \\ge 0, \\; Q_u \\ge 0
-
-    with :math:`R_k` the heat cascaded from interval *k* to *k* + 1 and :math:`f_{uk}` the share of
-    utility *u* in interval *k*.
-
-    Parameters
-    ----------
-    intervals : Intervals
-        From :func:`temperature_intervals`, with the utilities on offer.
-    cost_budget : float, optional
-        Second stage [money per year]: keep :math:`\\sum_u c_u Q_u` at or below this and minimise
-        :math:`\\sum_u w_u Q_u` instead, with weights slightly above 1 that prefer the coolest hot and the
-        warmest cold level (so ties in price and zero prices give the least energy at the mildest
-        levels, as :func:`heatloom.pinch.place_utilities` does).
-
-    Returns
-    -------
-    problem : pulp.LpProblem
-    read : callable
-        ``read()`` returns the utility duties [kW], in the order of ``intervals.utilities``.
-
-    Examples
-    --------
-    >>> from heatloom.model import StreamTable, Utility
-    >>> s = StreamTable.from_arrays(["H1", "C1"], [180, 20], [60, 135], [3.0, 2.0])
-    >>> iv = temperature_intervals(s, 10, [Utility("steam", 200, 199, 100.0), Utility("water", 10, 20, 5.0)])
-    >>> problem, read = transshipment_model(iv)
-    >>> solve(problem, "cbc").status
-    <SolveStatus.OPTIMAL: 'optimal'>
-    >>> read().round(6).tolist()
-    [0.0, 130.0]
-    """
-    k = intervals.size
-    problem = pulp.LpProblem("utility_cost_transshipment", pulp.LpMinimize)
-    frac = intervals.utility_fraction
-    q = [_new_var(problem, f"Q_{u}", 0, None if frac[u].sum() > 0 else 0)
-         for u in range(len(intervals.utilities))]
-    r = [None] + [_new_var(problem, f"R_{b}", 0) for b in range(1, k)] + [None]
-    surplus = intervals.surplus
-    sign = [1.0 if u.is_hot else -1.0 for u in intervals.utilities]
-    for kk in range(k):
-        terms = [(q[u], sign[u] * frac[u, kk]) for u in range(len(q)) if frac[u, kk] > 0]
-        out = pulp.LpAffineExpression(([(r[kk + 1], 1.0)] if r[kk + 1] is not None else [])
-                                      + ([(r[kk], -1.0)] if r[kk] is not None else [])
-                                      + [(v, -c) for v, c in terms])
-        problem += out == float(surplus[kk]), f"interval_{kk}"
-    price = [u.cost for u in intervals.utilities]
-    if cost_budget is None:
-        problem += pulp.lpSum(c * v for c, v in zip(price, q))
-    else:
-        problem += pulp.lpSum(c * v for c, v in zip(price, q)) <= float(cost_budget), "cost_budget"
-        problem += pulp.lpSum(w * v for w, v in zip(_level_weights(intervals.utilities), q))
-
-    def read() -> np.ndarray:
-        return np.array([v.varValue or 0.0 for v in q], float)
-
-    return problem, read
-
-
-@dataclass(frozen=True, eq=False)
-class Transshipment:
-    """Cheapest utility duties from the transshipment LP.
-
-    Attributes
-    ----------
-    intervals : Intervals
-    duties : tuple of float
-        Duty of each utility, in the order of ``intervals.utilities`` [kW].
-    residuals : ndarray
-        Heat cascaded past each boundary with the utilities in place [kW], length K + 1 (0 at both ends).
-    pinches : tuple of float
-        Interior boundaries where the cascade carries no heat, hottest first [°C, shifted]: process
-        pinches and utility pinches.
-    ideal : bool
-        True when the two ideal utilities of :func:`ideal_target_utilities` were assumed.
-    reports : tuple of SolveReport
-        The cost stage and the tie-break stage.
-    """
-
-    intervals: Intervals
-    duties: tuple[float, ...]
-    residuals: np.ndarray
-    pinches: tuple[float, ...]
-    ideal: bool
-    reports: tuple[SolveReport, ...]
-
-    @property
-    def utility_duties(self) -> dict[str, float]:
-        """Duty of each utility by name [kW]."""
-        return {u.name: d for u, d in zip(self.intervals.utilities, self.duties)}
-
-    @property
-    def hot_utility(self) -> float:
-        """[kW]"""
-        return float(sum(d for u, d in zip(self.intervals.utilities, self.duties) if u.is_hot))
-
-    @property
-    def cold_utility(self) -> float:
-        """[kW]"""
-        return float(sum(d for u, d in zip(self.intervals.utilities, self.duties) if not u.is_hot))
-
-    @property
-    def utility_cost(self) -> float:
-        """[money per year]"""
-        return float(sum(d * u.cost for u, d in zip(self.intervals.utilities, self.duties)))
-
-    def to_dict(self) -> dict:
-        return {"utilities": self.utility_duties, "hot_utility": self.hot_utility,
-                "cold_utility": self.cold_utility, "utility_cost": self.utility_cost,
-                "ideal_utilities": self.ideal, "pinches_shifted": list(self.pinches),
-                "shifted_temperatures": self.intervals.temperatures.tolist(),
-                "residuals": self.residuals.tolist(), "solves": [r.to_dict() for r in self.reports]}
-
-
-def _infeasible_utilities(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]) -> str:
-    """Why no duties of the given utilities can serve the process, in the targeting module's words."""
-    try:
-        place_utilities(problem_table(streams, dt_min), utilities)
-    except InfeasibleError as exc:
-        return str(exc)
-    return "no feasible utility duties (the transshipment LP is infeasible)"
-
-
-def transshipment(streams: StreamTable, dt_min: float, utilities: Sequence[Utility] | None = None, *,
-                  solver: SolverName | str | None = None, time_limit: float = 60.0) -> Transshipment:
-    """Cheapest utility duties by the transshipment LP, with the cascade and its pinches.
-
-    Solves :func:`transshipment_model` twice: first for the least utility cost, then, with the cost held,
-    for the least (slightly weighted) energy, which settles ties between levels of equal price.
-
-    Parameters
-    ----------
-    streams : StreamTable
-    dt_min : float
-        [K]
-    utilities : sequence of Utility, optional
-        Levels with prices [money per kW·year]; the two ideal utilities when omitted.
-    solver : SolverName, str or None
-        See :func:`heatloom.network.solvers.resolve_solver`.
-    time_limit : float
-        Limit of each of the two LP solves [s].
-
-    Returns
-    -------
-    Transshipment
-
-    Raises
-    ------
-    InfeasibleError
-        When no duties of the given utilities can serve the process.
-    InputError
-        When prices make the LP unbounded (a cold utility paying more than a hot one costs, so that
-        running heat from one to the other earns money without limit).
-
-    Examples
-    --------
-    Sinnott's four-stream problem (Coulson & Richardson's Chemical Engineering Vol. 6, ch. 3): 50 kW hot
-    and 30 kW cold utility, pinch at 85 °C shifted.
-
-    >>> from heatloom.model import StreamTable
-    >>> s = StreamTable.from_arrays(["1", "2", "3", "4"], [180, 150, 20, 80], [60, 30, 135, 140],
-    ...                             [3.0, 1.0, 2.0, 4.5])
-    >>> t = transshipment(s, 10)
-    >>> t.hot_utility, t.cold_utility, t.pinches
-    (50.0, 30.0, (85.0,))
-    """
-    ideal = utilities is None
-    utilities = ideal_target_utilities(streams, dt_min) if ideal else tuple(utilities)
-    if not utilities:
-        raise InputError("no utilities given for the transshipment model")
-    iv = temperature_intervals(streams, dt_min, utilities)
-    reports = []
-    problem, read = transshipment_model(iv)
-    rep = solve(problem, solver, time_limit=time_limit, name="utility cost LP")
-    reports.append(rep)
-    if rep.status in (SolveStatus.INFEASIBLE, SolveStatus.INFEASIBLE_OR_UNBOUNDED):
-        if rep.status is SolveStatus.INFEASIBLE_OR_UNBOUNDED and any(u.cost < 0 for u in utilities):
-            raise InputError("the utility-cost LP is infeasible or unbounded; check the negative prices of "
-                             + ", ".join(f"'{u.name}'" for u in utilities if u.cost < 0))
-        raise InfeasibleError(_infeasible_utilities(streams, iv.dt_min, utilities))
-    if rep.status is SolveStatus.UNBOUNDED:
-        raise InputError("the utility prices make the cost unbounded below (a cold utility earns more per "
-                         "kW than some hot utility costs): check the prices of "
-                         + ", ".join(f"'{u.name}' ({u.cost:g})" for u in utilities))
-    cost = rep.objective or 0.0
-    budget = cost + 1e-9 * max(abs(cost), 1.0)
-    problem2, read2 = transshipment_model(iv, cost_budget=budget)
-    rep2 = solve(problem2, solver, time_limit=time_limit, name="utility levels tie-break LP")
-    reports.append(rep2)
-    if rep2.status.has_solution:
-        q = read2()
-    else:  # keep the first stage; should not happen, as its solution is feasible here
-        q = read()
-    scale = max(iv.duty_scale, 1.0)
-    q = np.where(q <= _REL_TOL * scale, 0.0, q)
-    sign = np.array([1.0 if u.is_hot else -1.0 for u in utilities])
-    flows = iv.surplus + (sign * q) @ iv.utility_fraction
-    residuals = np.concatenate(([0.0], np.cumsum(flows)))
-    residuals = np.where(np.abs(residuals) <= _PINCH_TOL * scale, 0.0, residuals)
-    # a zero flow is a pinch only with heat exchanged both above and below it (not past unused levels)
-    activity = iv.stream_heat.sum(axis=0) + q @ iv.utility_fraction
-    above = np.concatenate(([0.0], np.cumsum(activity)))
-    below = above[-1] - above
-    active = _REL_TOL * scale
-    pinches = tuple(float(iv.temperatures[b]) for b in range(1, iv.size)
-                    if residuals[b] == 0.0 and above[b] > active and below[b] > active)
-    return Transshipment(iv, tuple(float(x) for x in q), residuals, pinches, ideal, tuple(reports))
 
 
 # ------------------------------------------------------------------------------------- subnetworks
@@ -815,10 +387,10 @@ def min_matches_model(sub: Subnetwork, *, forbidden: Iterable[tuple[str, str]] =
             u_ij = min(cum_h[i, last_c[j]], float(c[j, first[i]:].sum()))
             if u_ij <= tol:
                 continue
-            y[i, j] = _new_var(problem, f"y_{i}_{j}", cat=pulp.LpBinary)
+            y[i, j] = new_variable(problem, f"y_{i}_{j}", cat=pulp.LpBinary)
             ks = [k for k in range(first[i], m) if c[j, k] > 0]
             for k in ks:
-                q[i, j, k] = _new_var(problem, f"q_{i}_{j}_{k}", 0, min(c[j, k], cum_h[i, k]))
+                q[i, j, k] = new_variable(problem, f"q_{i}_{j}_{k}", 0, min(c[j, k], cum_h[i, k]))
             problem += pulp.lpSum(q[i, j, k] for k in ks) - u_ij * y[i, j] <= 0, f"load_{i}_{j}"
             for k in ks:
                 problem += q[i, j, k] - min(c[j, k], cum_h[i, k]) * y[i, j] <= 0, f"cut_{i}_{j}_{k}"
@@ -827,7 +399,7 @@ def min_matches_model(sub: Subnetwork, *, forbidden: Iterable[tuple[str, str]] =
         if not h[i].any():
             continue
         for k in range(first[i], m):
-            r[i, k] = _new_var(problem, f"R_{i}_{k}", 0, cum_h[i, k])
+            r[i, k] = new_variable(problem, f"R_{i}_{k}", 0, cum_h[i, k])
         for k in range(first[i], m):
             give = [q[i, j, k] for j in range(len(sub.cold)) if (i, j, k) in q]
             problem += (r[i, k] - (r[i, k - 1] if k > first[i] else 0) + pulp.lpSum(give)
@@ -849,7 +421,7 @@ def min_matches_model(sub: Subnetwork, *, forbidden: Iterable[tuple[str, str]] =
         problem += pulp.lpSum(y.values()) <= int(max_matches), "max_matches"
         z = {}
         for (i, j, k), var in q.items():
-            z[i, j, k] = _new_var(problem, f"z_{i}_{j}_{k}", cat=pulp.LpBinary)
+            z[i, j, k] = new_variable(problem, f"z_{i}_{j}_{k}", cat=pulp.LpBinary)
             problem += var - min(c[j, k], cum_h[i, k]) * z[i, j, k] <= 0, f"cell_{i}_{j}_{k}"
             problem += z[i, j, k] - y[i, j] <= 0, f"cell_match_{i}_{j}_{k}"
         objective = pulp.lpSum(z.values())

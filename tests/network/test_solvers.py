@@ -16,8 +16,9 @@ import pytest
 
 from heatloom.errors import InputError, SolverError, SolverUnavailableError
 from heatloom.network import solvers
-from heatloom.network.milp import min_matches, plan_matches, subnetworks, transshipment
+from heatloom.network.milp import min_matches, plan_matches, subnetworks
 from heatloom.network.solvers import SolverName, SolveStatus, available_solvers, resolve_solver, solve
+from heatloom.network.transshipment import transshipment
 
 HAVE_HIGHS = SolverName.HIGHS in available_solvers()
 HAVE_CBC = SolverName.CBC in available_solvers()
