@@ -220,18 +220,22 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
         allowed = plan.allowed(top=region.top, bottom=region.bottom)
         stages = max(len(hot_sides), len(cold_sides))
         result = None
-        for attempt, (pairs, k) in enumerate([(allowed, stages),
-                                              ({(i.name, j.name) for i in hot_sides for j in cold_sides
-                                                if not (i.utility and j.utility)}, stages + 1)]):
-            prob, read = stage_model(hot_sides, cold_sides, pairs, k, name=f"placement_{r_index}")
-            report = solve(prob, solver=solver, time_limit=time_limit, name=f"placement ({region.label})")
+        everything = {(i.name, j.name) for i in hot_sides for j in cold_sides if not (i.utility and j.utility)}
+        # 1. each planned match exactly once; 2. planned matches, some possibly twice; 3. any pair, one more
+        # stage.  The first that has a solution wins (notes say when it was not the first).
+        attempts = [(allowed, stages, True), (allowed, stages, False), (everything, stages + 1, False)]
+        for attempt, (pairs, k, once) in enumerate(attempts):
+            required = pairs if attempt < 2 and plan.proven_minimum else frozenset()
+            prob, read = stage_model(hot_sides, cold_sides, pairs, k, required=required, once=once,
+                                     name=f"placement_{r_index}")
+            report = solve(prob, solver=solver, time_limit=time_limit,
+                           name=f"placement ({region.label}, {('one unit per match', 'planned matches', 'any match')[attempt]})")
             solves.append(report)
             if report.has_solution:
                 result = read()
-                if attempt:
-                    notes.append(f"subnetwork '{region.label}': the planned matches could not each be placed "
-                                 "as one unit keeping ΔTmin; every match was allowed and the fewest units "
-                                 "found instead")
+                if attempt == 2:
+                    notes.append(f"subnetwork '{region.label}': the planned matches could not be placed "
+                                 "keeping ΔTmin; every match was allowed and the fewest units found instead")
                 break
         if result is None:
             raise InfeasibleError(f"no placement of the matches of subnetwork '{region.label}' keeps ΔTmin "

@@ -121,7 +121,8 @@ def _temperature_expr(prob, side: Side, e_var, tag: str):
 
 
 def stage_model(hot: Sequence[Side], cold: Sequence[Side], allowed: set[tuple[str, str]], stages: int, *,
-                name: str = "placement") -> tuple[pulp.LpProblem, Callable[[], Placement]]:
+                required: set[tuple[str, str]] = frozenset(), once: bool = False, name: str = "placement"
+                ) -> tuple[pulp.LpProblem, Callable[[], Placement]]:
     """Build the restricted stagewise MILP; return the problem and a reader of its solution.
 
     .. math::
@@ -145,6 +146,14 @@ def stage_model(hot: Sequence[Side], cold: Sequence[Side], allowed: set[tuple[st
         Matches the model may use.
     stages : int
         Number of stages K [-].
+    required : set of (hot name, cold name), optional
+        Matches that must appear in at least one stage.  When ``allowed`` is a proven minimum set of
+        matches, every one of them is needed (a network using fewer would be a heat-load distribution
+        with fewer matches), so passing it here is a valid cut that tightens the relaxation; the total
+        number of units is then also bounded below by its size.
+    once : bool
+        Every allowed match in exactly one stage (one unit per match): a much smaller search, the first
+        thing to try with a proven minimum set of matches.
     """
     prob = pulp.LpProblem(name, pulp.LpMinimize)
     K = stages
@@ -207,6 +216,13 @@ def stage_model(hot: Sequence[Side], cold: Sequence[Side], allowed: set[tuple[st
                 prob += e[side.name, k + 1] - e[side.name, k] == stage
             else:
                 prob += e[side.name, k] - e[side.name, k + 1] == stage
+    for i, j in pairs:
+        if once:
+            prob += pulp.lpSum(z[i.name, j.name, k] for k in range(K)) == 1
+        elif (i.name, j.name) in required:
+            prob += pulp.lpSum(z[i.name, j.name, k] for k in range(K)) >= 1
+    if required:
+        prob += pulp.lpSum(z.values()) >= len(required & {(i.name, j.name) for i, j in pairs})
     # Extra branches (stream splits) cost a little, so series placements win ties.
     branches = []
     for s, partners in [(i, list(cold)) for i in hot if not i.utility] + [(j, list(hot)) for j in cold if not j.utility]:

@@ -1,0 +1,136 @@
+"""``heatloom design``: a new network, sized and costed."""
+
+from __future__ import annotations
+
+import argparse
+
+from .common import (
+    EXIT_OK,
+    SAFETY_NOTE,
+    add_shared,
+    add_table_options,
+    dt_min_of,
+    fmt,
+    positive,
+    print_json,
+    read_inputs,
+    solves_summary,
+)
+
+__all__ = ["register", "run", "format_network"]
+
+EPILOG_DESIGN = """\
+examples:
+  heatloom design streams.csv --dtmin 10
+  heatloom design streams.csv --dtmin 10 --utilities utilities.csv --costs costs.json --out results
+  heatloom design table.csv --dtmin 20 --default-h 0.5 --json
+
+Areas need a film coefficient h for every stream and utility (column h, kW/(m²·K)); --default-h assumes
+one where it is missing, and the output says so.
+"""
+
+
+
+def register(sub) -> None:
+    p = sub.add_parser("design", help="a new network: maximum energy recovery with the fewest units",
+                       description="Design a heat-exchanger network that reaches the energy targets with the "
+                                   "fewest units (transshipment LP, minimum-matches MILP per pinch subnetwork, "
+                                   "then placement with temperatures and splits), then size and cost it.",
+                       epilog=EPILOG_DESIGN, formatter_class=argparse.RawDescriptionHelpFormatter)
+    p.add_argument("file", metavar="FILE", help="stream table: CSV or .xlsx (film coefficients in column h)")
+    add_shared(p)
+    add_table_options(p)
+    p.add_argument("--mode", choices=["mer"], default="mer",
+                   help="mer: maximum energy recovery with the fewest units (default)")
+    p.add_argument("--costs", metavar="FILE", help="cost laws and annualisation (JSON, YAML or .xlsx)")
+    p.add_argument("--default-h", type=positive, metavar="H",
+                   help="film coefficient [kW/(m²·K)] assumed for streams and utilities without one")
+    p.add_argument("--solver", choices=["highs", "cbc"], default=None,
+                   help="MILP solver (default: HiGHS when installed, else CBC)")
+    p.add_argument("--time-limit", type=positive, default=60.0, metavar="S",
+                   help="time limit of each solve [s] (default 60 s)")
+    p.set_defaults(handler=run)
+
+def format_network(net, source: str, dt_note: str) -> str:
+    """The human summary of a design: one line per unit, then the costs."""
+    cur = net.currency
+    lines = [f"heatloom design: {source}",
+             f"  ΔTmin {net.dt_min:g} K ({dt_note}); {net.units} units"
+             + (f" (minimum-units target {net.unit_target})" if net.unit_target is not None else ""),
+             f"  hot utility {fmt(net.hot_utility)}, cold utility {fmt(net.cold_utility)}, "
+             f"heat recovery {fmt(net.heat_recovery)}",
+             "",
+             f"  {'unit':<5} {'hot side':<18} {'cold side':<18} {'duty':>9} {'hot in→out':>15} "
+             f"{'cold in→out':>15} {'split h/c':>10} {'area':>8} {'cost/yr':>10}",
+             f"  {'':<5} {'':<18} {'':<18} {'[kW]':>9} {'[°C]':>15} {'[°C]':>15} {'[-]':>10} {'[m²]':>8} "
+             f"{'[' + cur + ']':>10}"]
+
+    def row(tag, hot, cold, duty, hi, ho, ci, co, fh, fc, area, cost):
+        split = f"{fh:.2f}/{fc:.2f}" if (fh < 0.9995 or fc < 0.9995) else "-"
+        return (f"  {tag:<5} {hot[:18]:<18} {cold[:18]:<18} {duty:>9,.1f} {f'{hi:.1f}→{ho:.1f}':>15} "
+                f"{f'{ci:.1f}→{co:.1f}':>15} {split:>10} {area:>8,.1f} {cost:>10,.0f}")
+
+    for k, e in enumerate(net.exchangers, 1):
+        lines.append(row(f"E{k}", e.hot, e.cold, e.duty, e.hot_in, e.hot_out, e.cold_in, e.cold_out,
+                         e.hot_fraction, e.cold_fraction, e.area, e.cost))
+    for k, h in enumerate(net.heaters, 1):
+        lines.append(row(f"H{k}", h.utility, h.cold, h.duty, h.utility_in, h.utility_out, h.cold_in, h.cold_out,
+                         1.0, h.cold_fraction, h.area, h.cost))
+    for k, c in enumerate(net.coolers, 1):
+        lines.append(row(f"C{k}", c.hot, c.utility, c.duty, c.hot_in, c.hot_out, c.utility_in, c.utility_out,
+                         c.hot_fraction, 1.0, c.area, c.cost))
+    lines += ["",
+              f"  capital (annualised)  {net.capital_cost:>14,.0f} {cur}/yr",
+              f"  utilities             {net.operating_cost:>14,.0f} {cur}/yr",
+              f"  total annual cost     {net.total_annual_cost:>14,.0f} {cur}/yr"]
+    lines.append("  " + solves_summary(net.solves))
+    for n in net.notes:
+        lines.append(f"  note: {n}")
+    lines.append(f"  note: {SAFETY_NOTE}")
+    return "\n".join(lines)
+
+
+def run(args) -> int:
+    from ..network import design_mer
+
+    streams, utilities = read_inputs(args)
+    costs = None
+    if args.costs:
+        from ..io import read_costs
+
+        costs = read_costs(args.costs)
+    dt_min, dt_note = dt_min_of(args)
+    out = None
+    if args.out:
+        from ..io.export import OutputDirectory
+
+        out = OutputDirectory(args.out, [p for p in (args.file, args.utilities, args.costs) if p],
+                              force=args.force)
+        out.check(["network.json", "network.csv", "network.xlsx", "grid_diagram.png", "grid_diagram.svg"])
+    net = design_mer(streams, dt_min, utilities, costs=costs, solver=args.solver, time_limit=args.time_limit,
+                     default_film_coefficient=args.default_h)
+    result = net.to_dict()
+    result["source"] = str(args.file)
+    result["mode"] = args.mode
+    if out is not None:
+        import matplotlib.pyplot as plt
+
+        from ..io.figures import grid_diagram
+
+        out.json("network.json", result)
+        frame = net.to_frame()
+        out.csv("network.csv", frame)
+        out.workbook("network.xlsx", {"units": frame, "streams": streams.to_frame()})
+        fig = grid_diagram(net, streams)
+        for ext in ("png", "svg"):
+            out.figure(f"grid_diagram.{ext}", fig)
+        plt.close(fig)
+    if args.json:
+        print_json(result)
+    else:
+        print(format_network(net, str(args.file), dt_note))
+        if out is not None:
+            print(f"  wrote {len(out.written)} files to {out.path}/")
+    return EXIT_OK
+
+

@@ -1,0 +1,137 @@
+"""``heatloom target``: energy targets, pinch, composite curves, utility levels."""
+
+from __future__ import annotations
+
+import argparse
+
+from ..errors import InputError
+from .common import (
+    EXIT_OK,
+    SAFETY_NOTE,
+    add_shared,
+    add_table_options,
+    dt_min_of,
+    fmt,
+    print_json,
+    read_inputs,
+)
+
+__all__ = ["register", "run", "format_targets"]
+
+EPILOG_TARGET = """\
+examples:
+  heatloom target streams.csv --dtmin 10
+  heatloom target plant.xlsx --sheet "Stream data" --dtmin 15 --utilities utilities.csv
+  heatloom target export.csv --columns "Stream=name,Tin=T_supply,Tout=T_target,FCp=CP" --json
+  heatloom target streams.csv --out results --plot
+
+input: a CSV or .xlsx table with columns name, T_supply, T_target, CP (°C and kW/K unless the header
+says otherwise, e.g. "T_supply [degF]", "CP [MW/K]"); optional h [kW/m2K], dT_min_contrib [K], duty [kW].
+"""
+
+
+
+def register(sub) -> None:
+    p = sub.add_parser("target", help="energy targets, pinch, composite curves, utility levels",
+                       description="Minimum hot and cold utility, pinch and heat recovery of a stream table "
+                                   "(problem table algorithm), with composite and grand composite curves "
+                                   "and the duties of several utility levels.",
+                       epilog=EPILOG_TARGET, formatter_class=argparse.RawDescriptionHelpFormatter)
+    p.add_argument("file", metavar="FILE", help="stream table: CSV or .xlsx")
+    add_shared(p)
+    add_table_options(p)
+    p.add_argument("--plot", action="store_true",
+                   help="write composite and grand composite curve figures (PNG and SVG) into --out")
+    p.set_defaults(handler=run)
+
+
+def format_targets(targets, source: str, dt_min_note: str) -> str:
+    """The human summary of a targeting run (a few lines and one table)."""
+    s = targets.streams
+    n_seg = sum(len(x.segments) for x in s)
+    lines = [f"heatloom target: {source}",
+             f"  streams        {len(s.hot)} hot, {len(s.cold)} cold ({n_seg} segments)",
+             f"  ΔTmin          {targets.dt_min:g} K ({dt_min_note})"]
+    own = sum(1 for x in s for g in x.segments if g.dt_min_contribution is not None)
+    if own:
+        lines.append(f"                 {own} segments use their own ΔTmin contribution")
+    lines += [f"  hot utility    {fmt(targets.hot_utility):>14}   minimum",
+              f"  cold utility   {fmt(targets.cold_utility):>14}   minimum",
+              f"  heat recovery  {fmt(targets.heat_recovery):>14}   of {fmt(targets.hot_process_duty)} "
+              "hot process duty"]
+    if targets.pinch is not None:
+        p = targets.pinch
+        more = f" (+{len(targets.pinches) - 1} more pinch points)" if len(targets.pinches) > 1 else ""
+        lines.append(f"  pinch          {p.hot:g} °C hot side / {p.cold:g} °C cold side "
+                     f"(shifted {p.shifted:g} °C){more}")
+    else:
+        lines.append("  pinch          none")
+    if targets.threshold is not None:
+        lines.append(f"  threshold      yes: {targets.threshold.value} is needed")
+    if targets.placement is None:
+        lines.append("  utilities      none given: ideal utilities assumed (hotter and colder than every "
+                     "process temperature); give --utilities FILE to place real levels")
+    else:
+        lines.append("  utility levels (cheapest placement against the grand composite curve):")
+        lines.append(f"    {'name':<20} {'kind':<5} {'T_supply':>9} {'T_target':>9} {'duty':>12} "
+                     f"{'cost/yr':>12}")
+        lines.append(f"    {'':<20} {'':<5} {'[°C]':>9} {'[°C]':>9} {'[kW]':>12} {'[money]':>12}")
+        for d in targets.placement.duties:
+            u = d.utility
+            lines.append(f"    {u.name[:20]:<20} {u.kind.value:<5} {u.supply_temperature:>9g} "
+                         f"{u.target_temperature:>9g} {d.duty:>12,.1f} {d.annual_cost:>12,.0f}")
+        for t in targets.placement.utility_pinches:
+            lines.append(f"    utility pinch at {t:g} °C shifted")
+    lines.append(f"  note: {SAFETY_NOTE}")
+    return "\n".join(lines)
+
+
+def run(args) -> int:
+    from ..pinch import target
+
+    if args.plot and not args.out:
+        raise InputError("--plot writes figures into a folder: add --out DIR (e.g. --out results)")
+    streams, utilities = read_inputs(args)
+    dt_min, dt_note = dt_min_of(args)
+    out = None
+    if args.out:
+        from ..io.export import OutputDirectory
+
+        out = OutputDirectory(args.out, [p for p in (args.file, args.utilities) if p], force=args.force)
+        names = ["targets.json", "streams.csv", "problem_table.csv", "targets.xlsx"]
+        if args.plot:
+            names += [f"{n}.{e}" for n in ("composite_curves", "shifted_composite_curves",
+                                          "grand_composite_curve") for e in ("png", "svg")]
+        out.check(names)  # refuse before computing anything, so nothing is half written
+    t = target(streams, dt_min, utilities)
+    result = t.to_dict()
+    result["dtmin_source"] = dt_note
+    result["source"] = str(args.file)
+    if out is not None:
+        from ..io.export import targets_workbook_sheets
+
+        out.json("targets.json", result)
+        out.csv("streams.csv", streams.to_frame())
+        out.csv("problem_table.csv", t.table.to_frame())
+        out.workbook("targets.xlsx", targets_workbook_sheets(t))
+        if args.plot:
+            import matplotlib.pyplot as plt
+
+            from ..io.figures import composite_figure, grand_composite_figure
+
+            for name, make in (("composite_curves", lambda: composite_figure(t)),
+                               ("shifted_composite_curves", lambda: composite_figure(t, shifted=True)),
+                               ("grand_composite_curve", lambda: grand_composite_figure(t))):
+                fig = make()
+                for ext in ("png", "svg"):
+                    out.figure(f"{name}.{ext}", fig)
+                plt.close(fig)
+    if args.json:
+        print_json(result)
+    else:
+        print(format_targets(t, str(args.file), dt_note))
+        if out is not None:
+            print(f"  wrote {len(out.written)} files to {out.path}/")
+    return EXIT_OK
+
+
