@@ -107,10 +107,10 @@ def net_heat_capacity_flow(upper: np.ndarray, lower: np.ndarray, heat_capacity_f
     >>> t.tolist(), n.tolist()
     ([50.0, 100.0, 120.0, 150.0], [2.0, -1.0, 2.0])
     """
-    temperatures = np.unique(np.concatenate((upper, lower)))
+    # one sort gives the breakpoints and where every segment end sits among them
+    temperatures, where = np.unique(np.concatenate((upper, lower)), return_inverse=True)
     m = temperatures.size
-    i_low = np.searchsorted(temperatures, lower)
-    i_up = np.searchsorted(temperatures, upper)
+    i_up, i_low = where[:upper.size], where[upper.size:]
     delta = (np.bincount(i_low, weights=heat_capacity_flow, minlength=m)
              - np.bincount(i_up, weights=heat_capacity_flow, minlength=m))
     return temperatures, np.cumsum(delta)[:-1]
