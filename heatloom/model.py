@@ -23,6 +23,7 @@ from .errors import InputError
 
 __all__ = [
     "ABSOLUTE_ZERO",
+    "finite_number",
     "Segment",
     "Stream",
     "StreamTable",
@@ -35,7 +36,16 @@ ABSOLUTE_ZERO = -273.15
 """Absolute zero [°C]."""
 
 
-def _finite(value: float, what: str, column: str | None = None) -> float:
+def finite_number(value, what: str, column: str | None = None) -> float:
+    """``value`` as a finite float, else an InputError naming ``what`` (booleans are not numbers).
+
+    Examples
+    --------
+    >>> finite_number("2.5", "CP")
+    2.5
+    """
+    if isinstance(value, bool):
+        raise InputError(f"{what} must be a number, got {value!r}", column=column)
     try:
         x = float(value)
     except (TypeError, ValueError):
@@ -43,6 +53,9 @@ def _finite(value: float, what: str, column: str | None = None) -> float:
     if not math.isfinite(x):
         raise InputError(f"{what} must be a finite number, got {value!r}", column=column)
     return x
+
+
+_finite = finite_number
 
 
 def _temperature(value: float, what: str, column: str) -> float:

@@ -15,7 +15,10 @@ import numpy as np
 
 from ..errors import InputError
 
-__all__ = ["OutputDirectory", "to_jsonable", "targets_workbook_sheets"]
+__all__ = ["OutputDirectory", "to_jsonable", "targets_workbook_sheets", "FIGURE_FORMATS"]
+
+FIGURE_FORMATS = ("png", "svg")
+"""Every figure is written in these formats."""
 
 
 def to_jsonable(value):
@@ -64,26 +67,24 @@ class OutputDirectory:
         self.force = force
         self.written: list[Path] = []
 
-    def target(self, name: str) -> Path:
-        """Check that ``name`` may be written and return its full path (creating the folder)."""
-        p = self.path / name
+    def _refuse(self, p: Path) -> None:
         if p.resolve() in self.protected:
             raise InputError(f"refusing to write {p}: it is one of the input files of this run")
         if p.exists() and not self.force:
             raise InputError(f"{p} already exists; choose another --out folder or pass --force to replace "
                              "heatloom's earlier results")
+
+    def target(self, name: str) -> Path:
+        """Check that ``name`` may be written and return its full path (creating the folder)."""
+        p = self.path / name
+        self._refuse(p)
         self.path.mkdir(parents=True, exist_ok=True)
         return p
 
     def check(self, names: Iterable[str]) -> None:
         """Check every name before anything is written, so a refused run leaves no partial output."""
         for n in names:
-            p = self.path / n
-            if p.resolve() in self.protected:
-                raise InputError(f"refusing to write {p}: it is one of the input files of this run")
-            if p.exists() and not self.force:
-                raise InputError(f"{p} already exists; choose another --out folder or pass --force to "
-                                 "replace heatloom's earlier results")
+            self._refuse(self.path / n)
 
     def json(self, name: str, data) -> Path:
         p = self.target(name)
@@ -125,6 +126,15 @@ class OutputDirectory:
         fig.savefig(p, bbox_inches="tight", dpi=150 if p.suffix == ".png" else None)
         self.written.append(p)
         return p
+
+    def figures(self, stem: str, fig) -> list[Path]:
+        """Write ``fig`` as STEM.png and STEM.svg, then close it."""
+        import matplotlib.pyplot as plt
+
+        try:
+            return [self.figure(f"{stem}.{ext}", fig) for ext in FIGURE_FORMATS]
+        finally:
+            plt.close(fig)
 
 
 def targets_workbook_sheets(targets) -> dict:

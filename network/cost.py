@@ -23,6 +23,7 @@ from dataclasses import dataclass, field, fields
 import numpy as np
 
 from ..errors import InputError
+from ..model import finite_number
 from . import data
 
 __all__ = [
@@ -43,18 +44,6 @@ class UnitKind(enum.Enum):
     EXCHANGER = "exchanger"
     HEATER = "heater"
     COOLER = "cooler"
-
-
-def _number(value, what: str, column: str | None) -> float:
-    if isinstance(value, bool):
-        raise InputError(f"{what} must be a number, got {value!r}", column=column)
-    try:
-        x = float(value)
-    except (TypeError, ValueError):
-        raise InputError(f"{what} must be a number, got {value!r}", column=column) from None
-    if not math.isfinite(x):
-        raise InputError(f"{what} must be a finite number, got {value!r}", column=column)
-    return x
 
 
 @dataclass(frozen=True)
@@ -84,9 +73,9 @@ class CostLaw:
     exponent: float
 
     def __post_init__(self) -> None:
-        a = _number(self.fixed, "fixed cost", "fixed")
-        b = _number(self.per_area, "cost per area", "per_area")
-        c = _number(self.exponent, "exponent", "exponent")
+        a = finite_number(self.fixed, "fixed cost", "fixed")
+        b = finite_number(self.per_area, "cost per area", "per_area")
+        c = finite_number(self.exponent, "exponent", "exponent")
         if not a >= 0:
             raise InputError(f"fixed cost must be >= 0, got {a:g}", column="fixed")
         if not b >= 0:
@@ -166,8 +155,8 @@ def capital_recovery_factor(interest_rate: float, years: float) -> float:
     >>> capital_recovery_factor(0.0, 4)
     0.25
     """
-    i = _number(interest_rate, "interest rate", "interest_rate")
-    n = _number(years, "years", "years")
+    i = finite_number(interest_rate, "interest rate", "interest_rate")
+    n = finite_number(years, "years", "years")
     if not (0 <= i <= data.MAX_INTEREST_RATE):
         raise InputError(f"interest rate must be in [0, {data.MAX_INTEREST_RATE:g}] per year as a fraction "
                          f"(0.1 for 10 %), got {i:g}", column="interest_rate")
@@ -199,7 +188,7 @@ def price_per_kw_year(price_per_kwh, hours_per_year=data.HOURS_PER_YEAR):
     >>> price_per_kw_year(0.02, 8000)
     160.0
     """
-    h = _number(hours_per_year, "hours per year", "hours_per_year")
+    h = finite_number(hours_per_year, "hours per year", "hours_per_year")
     if not (0 < h <= data.MAX_HOURS_PER_YEAR):
         raise InputError(f"hours per year must be in (0, {data.MAX_HOURS_PER_YEAR:g}], got {h:g}",
                          column="hours_per_year")
@@ -309,14 +298,14 @@ class CostSettings:
                     raise InputError(f"{key} is required when the cost laws are not annualised "
                                      "(annualised false)", column=key)
             else:
-                object.__setattr__(self, key, _number(v, key.replace("_", " "), key))
+                object.__setattr__(self, key, finite_number(v, key.replace("_", " "), key))
         if self.interest_rate is not None and self.years is not None:
             capital_recovery_factor(self.interest_rate, self.years)      # range checks
         elif self.interest_rate is not None:
             capital_recovery_factor(self.interest_rate, 1.0)
         elif self.years is not None:
             capital_recovery_factor(0.0, self.years)
-        h = _number(self.hours_per_year, "hours per year", "hours_per_year")
+        h = finite_number(self.hours_per_year, "hours per year", "hours_per_year")
         price_per_kw_year(0.0, h)                                         # range check
         object.__setattr__(self, "hours_per_year", h)
 

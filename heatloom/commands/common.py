@@ -10,7 +10,7 @@ EXIT_OK, EXIT_UNEXPECTED, EXIT_INPUT, EXIT_INFEASIBLE = 0, 1, 2, 3
 """Exit codes of every command."""
 
 __all__ = ["EXIT_OK", "EXIT_UNEXPECTED", "EXIT_INPUT", "EXIT_INFEASIBLE", "DEFAULT_DT_MIN", "SAFETY_NOTE", "positive", "positive_or_zero", "add_shared", "add_table_options",
-           "note", "read_inputs", "dt_min_of", "fmt", "solves_summary", "print_json"]
+           "note", "read_inputs", "dt_min_of", "fmt", "solves_summary", "print_json", "finish"]
 
 DEFAULT_DT_MIN = 10.0
 """Default minimum approach temperature [K] (*common practice* for a first look at liquid–liquid
@@ -110,3 +110,14 @@ def print_json(result) -> None:
     from ..io.export import to_jsonable
 
     print(json.dumps(to_jsonable(result), ensure_ascii=False))
+
+
+def finish(args, result: dict, summary: str, out) -> int:
+    """Print the run's outcome: the JSON object with --json, else the summary and the files written."""
+    if args.json:
+        print_json(result)
+    else:
+        print(summary)
+        if out is not None:
+            print(f"  wrote {len(out.written)} files to {out.path}/")
+    return EXIT_OK

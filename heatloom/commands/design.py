@@ -5,14 +5,13 @@ from __future__ import annotations
 import argparse
 
 from .common import (
-    EXIT_OK,
     SAFETY_NOTE,
     add_shared,
     add_table_options,
     dt_min_of,
+    finish,
     fmt,
     positive,
-    print_json,
     read_inputs,
     solves_summary,
 )
@@ -113,24 +112,13 @@ def run(args) -> int:
     result["source"] = str(args.file)
     result["mode"] = args.mode
     if out is not None:
-        import matplotlib.pyplot as plt
-
         from ..io.figures import grid_diagram
 
         out.json("network.json", result)
         frame = net.to_frame()
         out.csv("network.csv", frame)
         out.workbook("network.xlsx", {"units": frame, "streams": streams.to_frame()})
-        fig = grid_diagram(net, streams)
-        for ext in ("png", "svg"):
-            out.figure(f"grid_diagram.{ext}", fig)
-        plt.close(fig)
-    if args.json:
-        print_json(result)
-    else:
-        print(format_network(net, str(args.file), dt_note))
-        if out is not None:
-            print(f"  wrote {len(out.written)} files to {out.path}/")
-    return EXIT_OK
+        out.figures("grid_diagram", grid_diagram(net, streams))
+    return finish(args, result, format_network(net, str(args.file), dt_note), out)
 
 

@@ -6,13 +6,12 @@ import argparse
 
 from ..errors import InputError
 from .common import (
-    EXIT_OK,
     SAFETY_NOTE,
     add_shared,
     add_table_options,
     dt_min_of,
+    finish,
     fmt,
-    print_json,
     read_inputs,
 )
 
@@ -115,23 +114,9 @@ def run(args) -> int:
         out.csv("problem_table.csv", t.table.to_frame())
         out.workbook("targets.xlsx", targets_workbook_sheets(t))
         if args.plot:
-            import matplotlib.pyplot as plt
-
             from ..io.figures import composite_figure, grand_composite_figure
 
-            for name, make in (("composite_curves", lambda: composite_figure(t)),
-                               ("shifted_composite_curves", lambda: composite_figure(t, shifted=True)),
-                               ("grand_composite_curve", lambda: grand_composite_figure(t))):
-                fig = make()
-                for ext in ("png", "svg"):
-                    out.figure(f"{name}.{ext}", fig)
-                plt.close(fig)
-    if args.json:
-        print_json(result)
-    else:
-        print(format_targets(t, str(args.file), dt_note))
-        if out is not None:
-            print(f"  wrote {len(out.written)} files to {out.path}/")
-    return EXIT_OK
-
-
+            out.figures("composite_curves", composite_figure(t))
+            out.figures("shifted_composite_curves", composite_figure(t, shifted=True))
+            out.figures("grand_composite_curve", grand_composite_figure(t))
+    return finish(args, result, format_targets(t, str(args.file), dt_note), out)
