@@ -26,8 +26,10 @@ from ..model import Segment, Stream, StreamTable, Utility, UtilityKind
 from ..pinch import Targets, target
 from . import data
 from .cost import CostSettings, UnitKind
+from .geometry import ExchangerType, hairpins_for_area
 from .placement import Side, stage_model
 from .segments import cut_profile, size_segments
+from .sizing import shell_design
 from .solvers import solve
 from .structure import Cooler, Exchanger, Heater, Network, check_network, stream_enthalpy
 
@@ -135,9 +137,26 @@ def _utility_segment(u: Utility, t_in: float, t_out: float, duty: float, h: floa
     return Segment(t_in, t_out, duty / abs(t_in - t_out), h)
 
 
+def _geometry(area: float, unit, exchanger_type: ExchangerType | None, options: dict):
+    """Area to cost, shells, F and the geometry report of one unit of the given type."""
+    if exchanger_type is ExchangerType.SHELL_AND_TUBE_1_2:
+        d = shell_design(unit.hot_in, unit.hot_out, unit.cold_in, unit.cold_out)
+        total = area / d.f
+        return total, d.shells, d.f, {"type": exchanger_type.value, "shells": d.shells, "f_factor": d.f,
+                                      "area_per_shell": total / d.shells, "set_by": d.set_by}
+    if exchanger_type is ExchangerType.DOUBLE_PIPE:
+        length, n, per = hairpins_for_area(area, options["tube_diameter"], options["hairpin_length"])
+        return area, 1, None, {"type": exchanger_type.value, "tube_length": length, "hairpins": n,
+                               "area_per_hairpin": per, "installed_area": n * per,
+                               "tube_diameter": options["tube_diameter"],
+                               "hairpin_length": options["hairpin_length"]}
+    return area, None, None, None
+
+
 def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility] | None = None, *,
                costs: CostSettings | None = None, solver: str | None = None, time_limit: float = 60.0,
-               default_film_coefficient: float | None = None) -> Network:
+               default_film_coefficient: float | None = None, exchanger_type: ExchangerType | None = None,
+               tube_diameter: float | None = None, hairpin_length: float | None = None) -> Network:
     """A maximum-energy-recovery network with the fewest units, sized and costed.
 
     Parameters
@@ -156,6 +175,10 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
     default_film_coefficient : float, optional
         Film coefficient assumed where a stream or utility has none [kW/(m²·K)]; without it a missing
         coefficient is an error (areas cannot be computed).
+    exchanger_type : ExchangerType, optional
+        Report every unit's geometry as this type: ``SHELL_AND_TUBE_1_2`` (shells in series and F, area
+        raised by 1/F, cost law per shell) or ``DOUBLE_PIPE`` (hairpins; needs ``tube_diameter`` [m] and
+        ``hairpin_length`` [m]).  None: counter-current area only.
 
     Returns
     -------
@@ -172,6 +195,10 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
     from .milp import plan_matches
 
     notes: list[str] = []
+    geometry_options = {"tube_diameter": tube_diameter, "hairpin_length": hairpin_length}
+    if exchanger_type is ExchangerType.DOUBLE_PIPE and (tube_diameter is None or hairpin_length is None):
+        raise InputError("double-pipe units need a tube diameter [m] and a hairpin leg length [m] "
+                         "(--tube-diameter, --hairpin-length)")
     if utilities is None:
         utilities = ideal_utilities(streams, dt_min)
         hu, cu = utilities
@@ -268,12 +295,13 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
         # effective LMTD and mean U of the whole unit: Q = U·A·LMTD with LMTD = Q / Σ(Q_k / LMTD_k)
         lm = p.duty / sum(i.duty / i.lmtd for i in sizing.intervals)
         u_mean = p.duty / (sizing.area * lm)
+        area, shells, f, geometry = _geometry(sizing.area, p, exchanger_type, geometry_options)
         kind = UnitKind.HEATER if hot_u is not None else UnitKind.COOLER if cold_u is not None \
             else UnitKind.EXCHANGER
-        cost = float(costs.annual_capital_cost(sizing.area, kind))
+        cost = float(costs.annual_capital_cost(area, kind, shells or 1))
         capital += cost
-        common = {"duty": p.duty, "area": sizing.area, "cost": cost, "region": label, "u": u_mean, "lmtd": lm,
-                  "stage": p.stage}
+        common = {"duty": p.duty, "area": area, "cost": cost, "region": label, "u": u_mean, "lmtd": lm,
+                  "stage": p.stage, "shells": shells, "f_factor": f, "geometry": geometry}
         if hot_u is not None:
             heaters.append(Heater(cold=p.cold, utility=p.hot, cold_in=p.cold_in, cold_out=p.cold_out,
                                   utility_in=p.hot_in, utility_out=p.hot_out, cold_fraction=p.cold_fraction,
@@ -290,6 +318,14 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
     notes.append(costs.describe())
     notes.append("Areas: counter-current LMTD, U from 1/U = 1/h_hot + 1/h_cold (clean surfaces, no fouling "
                  "allowance); streams of several segments sized interval by interval.")
+    if exchanger_type is ExchangerType.SHELL_AND_TUBE_1_2:
+        notes.append(f"Units are 1-2 shell-and-tube: shells in series by the X_P = {data.X_P:g} criterion "
+                     f"(Ahmad, Linnhoff & Smith), minimum F {data.MIN_F_FACTOR:g}; area = counter-current "
+                     "area / F (F from the terminal temperatures), cost law applied per shell.")
+    elif exchanger_type is ExchangerType.DOUBLE_PIPE:
+        notes.append(f"Units are counter-current double-pipe hairpins of tube diameter "
+                     f"{geometry_options['tube_diameter']:g} m and leg length {geometry_options['hairpin_length']:g} m"
+                     " (area per hairpin π·d·2L, bends not counted); costed on the area needed.")
     net = Network(tuple(exchangers), tuple(heaters), tuple(coolers), float(dt_min),
                   capital_cost=capital, operating_cost=operating, total_annual_cost=capital + operating,
                   currency=costs.currency, notes=tuple(notes), solves=tuple(solves),

@@ -32,6 +32,7 @@ __all__ = [
     "size_double_pipe",
     "size_shell_and_tube",
     "size_exchanger",
+    "hairpins_for_area",
 ]
 
 
@@ -161,10 +162,28 @@ def size_double_pipe(duty, u, hot_in, hot_out, cold_in, cold_out, *, tube_diamet
     length = _positive(hairpin_length, "hairpin length", "m")
     dt = float(lmtd(hot_in, hot_out, cold_in, cold_out))
     a = q / (uu * dt)
-    tube_length = a / (math.pi * d)
-    per = math.pi * d * 2 * length
-    n = max(1, _ceil(a / per))
+    tube_length, n, per = hairpins_for_area(a, d, length)
     return DoublePipeSizing(q, uu, dt, a, d, length, tube_length, n, per, n * per)
+
+
+def hairpins_for_area(area, tube_diameter, hairpin_length) -> tuple[float, int, float]:
+    """Tube length [m], hairpins [-] and area per hairpin [m²] that provide ``area`` [m²].
+
+    A hairpin has two legs of length L on tube diameter d: π·d·2L of area (return bends not counted).
+
+    Examples
+    --------
+    >>> length, n, per = hairpins_for_area(2.857, 0.05, 4.0)
+    >>> round(length, 2), n, round(per, 4)
+    (18.19, 3, 1.2566)
+    """
+    a = _finite(area, "area", "m²")
+    if not a > 0:
+        raise InputError(f"area must be > 0 m², got {a:g}")
+    d = _positive(tube_diameter, "tube diameter", "m")
+    length = _positive(hairpin_length, "hairpin length", "m")
+    per = math.pi * d * 2 * length
+    return a / (math.pi * d), max(1, _ceil(a / per)), per
 
 
 def size_shell_and_tube(duty, u, hot_in, hot_out, cold_in, cold_out, *, x_p=data.X_P,

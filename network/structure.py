@@ -112,6 +112,7 @@ class Exchanger:
     lmtd: float | None = None
     shells: int | None = None
     f_factor: float | None = None
+    geometry: dict | None = field(default=None, compare=False)
 
     def to_dict(self) -> dict:
         return {"hot": self.hot, "cold": self.cold, "duty": self.duty, "hot_in": self.hot_in,
@@ -119,7 +120,7 @@ class Exchanger:
                 "hot_fraction": self.hot_fraction, "cold_fraction": self.cold_fraction,
                 "area": self.area, "cost": self.cost, "u": self.u, "lmtd": self.lmtd,
                 "shells": self.shells, "f_factor": self.f_factor, "region": self.region,
-                "stage": self.stage}
+                "stage": self.stage, "geometry": self.geometry}
 
 
 @dataclass(frozen=True)
@@ -140,12 +141,16 @@ class Heater:
     u: float | None = None
     lmtd: float | None = None
     stage: int = 0
+    shells: int | None = None
+    f_factor: float | None = None
+    geometry: dict | None = field(default=None, compare=False)
 
     def to_dict(self) -> dict:
         return {"cold": self.cold, "utility": self.utility, "duty": self.duty, "cold_in": self.cold_in,
                 "cold_out": self.cold_out, "utility_in": self.utility_in, "utility_out": self.utility_out,
                 "cold_fraction": self.cold_fraction, "area": self.area, "cost": self.cost, "u": self.u,
-                "lmtd": self.lmtd, "region": self.region, "stage": self.stage}
+                "lmtd": self.lmtd, "region": self.region, "stage": self.stage,
+                "shells": self.shells, "f_factor": self.f_factor, "geometry": self.geometry}
 
 
 @dataclass(frozen=True)
@@ -166,12 +171,16 @@ class Cooler:
     u: float | None = None
     lmtd: float | None = None
     stage: int = 0
+    shells: int | None = None
+    f_factor: float | None = None
+    geometry: dict | None = field(default=None, compare=False)
 
     def to_dict(self) -> dict:
         return {"hot": self.hot, "utility": self.utility, "duty": self.duty, "hot_in": self.hot_in,
                 "hot_out": self.hot_out, "utility_in": self.utility_in, "utility_out": self.utility_out,
                 "hot_fraction": self.hot_fraction, "area": self.area, "cost": self.cost, "u": self.u,
-                "lmtd": self.lmtd, "region": self.region, "stage": self.stage}
+                "lmtd": self.lmtd, "region": self.region, "stage": self.stage,
+                "shells": self.shells, "f_factor": self.f_factor, "geometry": self.geometry}
 
 
 @dataclass(frozen=True, eq=False)

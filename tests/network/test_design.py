@@ -179,3 +179,39 @@ def test_every_designed_network_passes_its_checks(problem):
     check_network(net, streams)
     for u in (*net.exchangers, *net.heaters, *net.coolers):
         assert u.area > 0 and u.cost > 0
+
+
+def test_shell_and_tube_units_report_shells_and_f(reference):
+    # Shell count and F from the X_P criterion (checked against ht in test_sizing.py); here the design
+    # must apply them consistently: area = counter-current area / F, cost law per shell.
+    from heatloom.network import ExchangerType, shell_design
+
+    data, streams = reference("synthesis_colberg_morari_3h4c")
+    utilities = reference_utilities(data)
+    plain = design_mer(streams, 10, utilities)
+    shell = design_mer(streams, 10, utilities, exchanger_type=ExchangerType.SHELL_AND_TUBE_1_2)
+    costs = CostSettings()
+    for a, b in zip(plain.exchangers, shell.exchangers):
+        assert (a.hot, a.cold, a.duty) == (b.hot, b.cold, pytest.approx(b.duty))
+        d = shell_design(b.hot_in, b.hot_out, b.cold_in, b.cold_out)
+        assert (b.shells, b.f_factor) == (d.shells, pytest.approx(d.f))
+        assert b.area == pytest.approx(a.area / d.f, rel=1e-9)
+        assert b.cost == pytest.approx(costs.annual_capital_cost(b.area, "exchanger", d.shells), rel=1e-9)
+        assert b.geometry["type"] == "shell_and_tube_1_2"
+
+
+def test_double_pipe_units_report_hairpins(reference):
+    import math
+
+    from heatloom.network import ExchangerType
+
+    data, streams = reference("targeting_ray_das_problem_5_4")
+    net = design_mer(streams, 10, default_film_coefficient=1.0, exchanger_type=ExchangerType.DOUBLE_PIPE,
+                     tube_diameter=0.05, hairpin_length=6.0)
+    for e in (*net.exchangers, *net.heaters, *net.coolers):
+        g = e.geometry
+        # a hairpin holds π·d·2L of area; enough hairpins for the area, one fewer would not do
+        assert g["hairpins"] == math.ceil(e.area / (math.pi * 0.05 * 12.0))
+        assert g["installed_area"] >= e.area
+    with pytest.raises(InputError, match="tube diameter"):
+        design_mer(streams, 10, default_film_coefficient=1.0, exchanger_type=ExchangerType.DOUBLE_PIPE)
