@@ -454,6 +454,19 @@ def _fix_integers(problem: pulp.LpProblem) -> None:
             v.lowBound = v.upBound = round(v.varValue or 0.0)
 
 
+def _relaxed_matches(problem: pulp.LpProblem, solver, time_limit: float, label: str) -> SolveReport:
+    """Solve the LP relaxation of the fewest-matches model and round every used match up to 1."""
+    binaries = [v for v in problem.variables() if v.cat == pulp.LpInteger]
+    for v in binaries:
+        v.cat = pulp.LpContinuous
+    report = solve(problem, solver, time_limit=time_limit, check=False,
+                   name=f"relaxation of fewest matches (no integer solution in time), {label}")
+    for v in binaries:
+        v.cat = pulp.LpInteger
+        v.varValue = 1.0 if (v.varValue or 0.0) > 1e-9 else 0.0
+    return report
+
+
 def min_matches(sub: Subnetwork, *, solver: SolverName | str | None = None, time_limit: float = 60.0,
                 tie_break: TieBreak = TieBreak.NONE, forbidden: Iterable[tuple[str, str]] = ()
                 ) -> SubnetworkMatches:
@@ -483,7 +496,8 @@ def min_matches(sub: Subnetwork, *, solver: SolverName | str | None = None, time
     InfeasibleError
         When the heat cannot be distributed (only possible with forbidden matches).
     SolverError
-        When the solver stops without any solution.
+        When the solver stops without any solution, even for the LP relaxation (without an integer
+        solution in time, the matches the relaxation uses are returned, not proven minimal).
 
     Examples
     --------
@@ -500,15 +514,22 @@ def min_matches(sub: Subnetwork, *, solver: SolverName | str | None = None, time
     """
     forbidden = _pairs(forbidden)
     problem, read = min_matches_model(sub, forbidden=forbidden)
-    report = solve(problem, solver, time_limit=time_limit, absolute_gap=0.999,
+    report = solve(problem, solver, time_limit=time_limit, absolute_gap=0.999, check=False,
                    name=f"fewest matches, {sub.label}")
     if report.status in (SolveStatus.INFEASIBLE, SolveStatus.INFEASIBLE_OR_UNBOUNDED):
         raise InfeasibleError(f"{sub.label}: no set of matches can distribute the heat"
                               + (" without the forbidden matches given" if forbidden else ""))
-    if not report.status.has_solution:
-        raise SolverError(f"{sub.label}: the fewest-matches model ended with status "
-                          f"'{report.status.value}' ({report.detail})")
     reports = [report]
+    if not report.status.has_solution:
+        # No integer solution within the time limit: every match the LP relaxation uses is a feasible
+        # (not minimal) set of matches; keep it so the design can go on, and say so in the reports.
+        relaxed = _relaxed_matches(problem, solver, time_limit, sub.label)
+        reports.append(relaxed)
+        if not relaxed.status.has_solution:
+            raise SolverError(f"{sub.label}: the fewest-matches model ended with status "
+                              f"'{report.status.value}' ({report.detail}) and its relaxation with "
+                              f"'{relaxed.status.value}'")
+        tie_break = TieBreak.NONE
     if tie_break is TieBreak.COMPACT:
         count = sum(1 for v in problem.variables() if v.name.startswith("y_") and (v.varValue or 0) > 0.5)
         second, read_second = min_matches_model(sub, forbidden=forbidden, max_matches=count)

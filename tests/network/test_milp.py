@@ -340,3 +340,36 @@ def test_heat_load_distribution_with_segments_levels_and_contributions(problem):
         if part.optimal and len(sub.hot) + len(sub.cold) <= 8:
             assert part.number_of_matches >= sub.unit_target + 1 - max_balanced_groups(sub.hot_heat,
                                                                                       sub.cold_heat)
+
+
+def test_no_integer_solution_in_time_falls_back_to_the_relaxation(reference, monkeypatch):
+    # When the fewest-matches MILP ends without any integer solution (as on large problems at their time
+    # limit), the matches used by its LP relaxation are kept: a feasible heat-load distribution, not
+    # proven minimal, and the reports say so.
+    import heatloom.network.milp as milp_module
+    from heatloom.network.solvers import SolveReport, SolveStatus
+
+    real = milp_module.solve
+    calls = []
+
+    def stalled_first(problem, *args, **kwargs):
+        calls.append(kwargs.get("name", ""))
+        if len(calls) == 1:
+            return SolveReport("highs", SolveStatus.ERROR, None, None, None, 0.0, 1.0, kwargs.get("name", ""),
+                               "Time limit reached")
+        return real(problem, *args, **kwargs)
+
+    monkeypatch.setattr(milp_module, "solve", stalled_first)
+    data, streams = reference("targeting_sinnott_four_stream")
+    below = subnetworks(transshipment(streams, 10))[1]
+    result = milp_module.min_matches(below)
+    assert not result.optimal
+    assert "relaxation" in result.reports[1].problem
+    # still a complete heat-load distribution of the subnetwork
+    hot = {n: 0.0 for n in below.hot}
+    cold = {n: 0.0 for n in below.cold}
+    for m in result.matches:
+        hot[m.hot] += m.load
+        cold[m.cold] += m.load
+    assert hot == pytest.approx(below.hot_duties)
+    assert cold == pytest.approx(below.cold_duties)
