@@ -564,7 +564,8 @@ def find_header(cells: Cells, vocabulary: Sequence[str], columns: Mapping[str, s
 
 def read_table(source: str | os.PathLike | Cells, vocabulary: Sequence[str], *,
                required: Sequence[str | tuple[str, ...]] = (), sheet: str | None = None,
-               columns: Mapping[str, str] | str | None = None, hint: str = "") -> Table:
+               columns: Mapping[str, str] | str | None = None, hint: str = "",
+               hours_per_year: float | None = None) -> Table:
     """Find the header, units and data rows of a table and bind its columns to canonical names.
 
     Parameters
@@ -677,12 +678,12 @@ def read_table(source: str | os.PathLike | Cells, vocabulary: Sequence[str], *,
         if kind is not None:
             row_unit = units.get(target)
             try:
-                conversion = parse_unit(unit, kind)
+                conversion = parse_unit(unit, kind, hours_per_year=hours_per_year)
             except InputError as e:
                 raise e.located(file=label, row=header_row, column=header) from None
             if row_unit is not None:
                 try:
-                    row_conv = parse_unit(row_unit, kind)
+                    row_conv = parse_unit(row_unit, kind, hours_per_year=hours_per_year)
                 except InputError as e:
                     raise e.located(file=label, row=units_row, column=header) from None
                 if unit is None:

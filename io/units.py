@@ -402,7 +402,7 @@ def _round15(x: float) -> float:
 
 
 @functools.lru_cache(maxsize=1024)
-def parse_unit(text: str | None, kind: QuantityKind) -> UnitConversion:
+def parse_unit(text: str | None, kind: QuantityKind, *, hours_per_year: float | None = None) -> UnitConversion:
     """Read a unit as engineers write it and check it measures `kind`.
 
     Parameters
@@ -412,6 +412,9 @@ def parse_unit(text: str | None, kind: QuantityKind) -> UnitConversion:
         allowed.  ``None``, an empty text or ``"-"`` mean the canonical unit.
     kind : QuantityKind
         What the values measure.
+    hours_per_year : float, optional
+        Operating hours per year [h/year]: lets a price per energy (``$/kWh``, ``€/MWh``) become a
+        price per kW·year (price × hours); without it such a price is refused.
 
     Returns
     -------
@@ -462,9 +465,13 @@ def parse_unit(text: str | None, kind: QuantityKind) -> UnitConversion:
         if kind is QuantityKind.TEMPERATURE_DIFFERENCE and letter is not None:
             return UnitConversion(raw, kind, unit, divide=_DIFFERENCE_DIVISOR[letter])
         if kind is QuantityKind.COST_RATE and not per_year:
-            raise _error(raw, kind, f"price unit '{raw}' is not per year: a price per energy needs the "
-                         "operating hours per year; give money per kW·year (price per kWh × operating "
-                         "hours per year)")
+            if hours_per_year is None:
+                raise _error(raw, kind, f"price unit '{raw}' is not per year: a price per energy needs the "
+                             "operating hours per year (give them with --hours-per-year, or give money per "
+                             "kW·year)")
+            # money per energy × operating hours per year = money per kW·year
+            factor = (1.0 * unit).to("1/(kW*hour)").magnitude * scale * float(hours_per_year)
+            return UnitConversion(raw, kind, unit, multiply=_round15(float(factor)))
         factor = (1.0 * unit).to(_KIND_INFO[kind][1]).magnitude * scale
         return UnitConversion(raw, kind, unit, multiply=_round15(float(factor)))
     assert first is not None

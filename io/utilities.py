@@ -39,7 +39,8 @@ _KINDS = {
 
 def read_utilities(path: str | os.PathLike, *, sheet: str | None = None,
                    columns: Mapping[str, str] | str | None = None,
-                   process: StreamTable | None = None) -> tuple[Utility, ...]:
+                   process: StreamTable | None = None, hours_per_year: float | None = None
+                   ) -> tuple[Utility, ...]:
     """Read hot and cold utilities from a CSV file or an Excel workbook.
 
     Parameters
@@ -53,6 +54,9 @@ def read_utilities(path: str | os.PathLike, *, sheet: str | None = None,
     process : StreamTable, optional
         The process streams; used only to classify utilities with equal supply and target
         temperatures and no ``kind``.
+    hours_per_year : float, optional
+        Operating hours per year [h/year]; needed only when prices are per energy (``cost [$/kWh]``),
+        which are then turned into money per kW·year.
 
     Returns
     -------
@@ -75,7 +79,7 @@ def read_utilities(path: str | os.PathLike, *, sheet: str | None = None,
     [('steam', 'hot', 120.0), ('CW', 'cold', 10.0)]
     """
     table = read_table(path, UTILITY_COLUMNS, required=("name", "T_supply", "T_target", "cost"), sheet=sheet,
-                       columns=columns)
+                       columns=columns, hours_per_year=hours_per_year)
     n = len(table)
     names = table.text("name")
     ts = table.numbers("T_supply", what="supply temperature")

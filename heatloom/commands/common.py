@@ -41,6 +41,9 @@ def add_shared(p: argparse.ArgumentParser) -> None:
                    help=f"minimum approach temperature [K] (default {DEFAULT_DT_MIN:g} K)")
     p.add_argument("--utilities", metavar="FILE",
                    help="utility table (CSV or .xlsx): name,T_supply,T_target,cost [money per kW·year]")
+    p.add_argument("--hours-per-year", type=positive, default=None, metavar="H",
+                   help="operating hours per year [h/year], to read utility prices given per kWh or MWh "
+                        "(e.g. 'cost [USD/kWh]'); prices are otherwise per kW·year")
     p.add_argument("--json", action="store_true", help="print one JSON object on stdout and nothing else")
     p.add_argument("--out", metavar="DIR", help="folder for result files (CSV, XLSX, JSON, figures)")
     p.add_argument("--force", action="store_true",
@@ -71,7 +74,8 @@ def read_inputs(args):
     streams = read_streams(args.file, sheet=args.sheet, columns=columns, fit_tolerance=args.fit_tolerance)
     utilities = None
     if args.utilities:
-        utilities = read_utilities(args.utilities, sheet=args.utilities_sheet, process=streams)
+        utilities = read_utilities(args.utilities, sheet=args.utilities_sheet, process=streams,
+                                   hours_per_year=args.hours_per_year)
     return streams, utilities
 
 

@@ -98,3 +98,17 @@ def test_workbook_named_sheet(tmp_path):
     assert [x.name for x in u] == ["MP steam", "cooling water"] and u[0].row == 4
     with pytest.raises(InputError, match=r"no sheet named 'utility'; sheets: 'Streams', 'Utilities'"):
         read_utilities(p, sheet="utility")
+
+
+def test_prices_per_energy_need_operating_hours(tmp_path):
+    # A price per kWh times the operating hours per year is a price per kW·year (definition of the
+    # kilowatt-hour: 1 kWh = 1 kW × 1 h).
+    f = tmp_path / "u.csv"
+    f.write_text("name,T_supply,T_target,cost [USD/kWh]\nsteam,200,199,0.02\ncw,20,30,0.001\n", encoding="utf-8")
+    with pytest.raises(InputError, match=r"row 1, column 'cost \[USD/kWh\]'.*--hours-per-year"):
+        read_utilities(f)
+    steam, cw = read_utilities(f, hours_per_year=8000)
+    assert steam.cost == pytest.approx(160.0) and cw.cost == pytest.approx(8.0)
+    g = tmp_path / "v.csv"
+    g.write_text("name,T_supply,T_target,cost [EUR/MWh]\nsteam,200,199,30\n", encoding="utf-8")
+    assert read_utilities(g, hours_per_year=8000)[0].cost == pytest.approx(240.0)
