@@ -3,6 +3,7 @@
 from .costs import costs_from_mapping, read_costs
 from .export import OutputDirectory, to_jsonable
 from .points import DEFAULT_FIT_TOLERANCE, fit_points, fit_vertices
+from .site import MAINS_COLUMNS, Site, read_mains, read_site
 from .streams import POINT_COLUMNS, SEGMENT_COLUMNS, read_streams
 from .tables import (
     ALIASES,
@@ -22,6 +23,10 @@ __all__ = [
     "read_streams",
     "read_utilities",
     "read_costs",
+    "read_site",
+    "read_mains",
+    "Site",
+    "MAINS_COLUMNS",
     "costs_from_mapping",
     "OutputDirectory",
     "to_jsonable",

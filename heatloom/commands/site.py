@@ -1,0 +1,250 @@
+"""``heatloom site``: site-wide targets over several zones and the steam mains they share."""
+
+from __future__ import annotations
+
+import argparse
+
+from ..errors import InputError
+from .common import (
+    DEFAULT_DT_MIN,
+    SAFETY_NOTE,
+    dt_min_of,
+    finish,
+    fmt,
+    note,
+    positive,
+    positive_or_zero,
+)
+
+__all__ = ["register", "run", "format_site", "parse_zone_dt_min", "site_frames"]
+
+EPILOG_SITE = """\
+examples:
+  heatloom site plant_site/ --mains plant_site/mains.csv --dtmin 10
+  heatloom site plant_site.xlsx --dtmin 10 --zone-dtmin "tank farm=20" --json
+  heatloom site case_studies/three_zone_site --out results
+
+input: a folder with one stream table per zone, each file named '<zone>_streams.csv' (or .xlsx), or a
+workbook with one sheet per zone; the mains table (name, T [°C], optional cost [money per kW·year] and
+kind: steam or cooling) is given with --mains or found as a file or sheet whose name contains 'mains'.
+"""
+
+# no output name contains "streams" or "mains", so --out into the site folder never adds a zone or mains table
+OUTPUT_NAMES = ("site.json", "site_zones.csv", "site_main_balance.csv", "site_zone_steam.csv",
+                "site_profiles.csv", "site.xlsx")
+FIGURE_NAMES = tuple(f"{n}.{e}" for n in ("site_profiles", "zone_profiles") for e in ("png", "svg"))
+
+
+def register(sub) -> None:
+    p = sub.add_parser("site", help="site-wide targets over several zones and shared steam mains",
+                       description="Target each zone (process) alone, build the site source and sink profiles "
+                                   "from the zones' grand composite curves with the pockets removed, and "
+                                   "find the heat the zones can exchange through the steam mains, the "
+                                   "remaining fuel and cooling, and the saving against zone-by-zone "
+                                   "targeting.",
+                       epilog=EPILOG_SITE, formatter_class=argparse.RawDescriptionHelpFormatter)
+    p.add_argument("path", metavar="PATH",
+                   help="folder of zone stream tables ('<zone>_streams.csv'), a workbook with one sheet per zone, "
+                        "or one stream table")
+    p.add_argument("--mains", metavar="FILE",
+                   help="mains table (CSV or .xlsx): name, T [°C], optional cost [money per kW·year], kind")
+    p.add_argument("--dtmin", type=positive_or_zero, default=None, metavar="K",
+                   help=f"minimum approach temperature of every zone [K] (default {DEFAULT_DT_MIN:g} K)")
+    p.add_argument("--zone-dtmin", action="append", default=[], metavar="ZONE=K",
+                   help="a zone's own ΔTmin [K]; repeat for several zones")
+    p.add_argument("--site-dt", type=positive_or_zero, default=0.0, metavar="K",
+                   help="extra temperature difference for raising and using steam [K] (default 0 K)")
+    p.add_argument("--one-zone-workbook", action="store_true",
+                   help="read a workbook's first sheet as one zone instead of one zone per sheet")
+    p.add_argument("--columns", metavar="MAP",
+                   help='map foreign column headers of the stream tables, e.g. "Stream=name,Tin=T_supply"')
+    p.add_argument("--fit-tolerance", type=positive, default=0.5, metavar="K",
+                   help="largest temperature error when fitting temperature–duty points [K] (default 0.5 K)")
+    p.add_argument("--json", action="store_true", help="print one JSON object on stdout and nothing else")
+    p.add_argument("--out", metavar="DIR", help="folder for result files (CSV, XLSX, JSON, PNG and SVG figures)")
+    p.add_argument("--force", action="store_true",
+                   help="replace result files already in --out (input files are never replaced)")
+    p.add_argument("--quiet", action="store_true", help="no progress or notes on stderr")
+    p.add_argument("--debug", action="store_true", help="show the full traceback on errors")
+    p.set_defaults(handler=run)
+
+
+def parse_zone_dt_min(items: list[str], zones: list[str]) -> dict[str, float]:
+    """``["A=15", "tank farm=20"]`` → ``{"A": 15.0, "tank farm": 20.0}``, checked against the zone names.
+
+    Examples
+    --------
+    >>> parse_zone_dt_min(["east=15"], ["east", "west"])
+    {'east': 15.0}
+    """
+    out: dict[str, float] = {}
+    by_key = {z.casefold(): z for z in zones}
+    for item in items:
+        if "=" not in item:
+            raise InputError(f"--zone-dtmin: expected ZONE=K, got {item!r}")
+        name, value = item.rsplit("=", 1)
+        zone = by_key.get(name.strip().casefold())
+        if zone is None:
+            raise InputError(f"--zone-dtmin: no zone named {name.strip()!r}; zones: {', '.join(zones)}")
+        try:
+            x = float(value)
+        except ValueError:
+            raise InputError(f"--zone-dtmin: ΔTmin of zone '{zone}' must be a number of kelvin, got "
+                             f"{value.strip()!r}") from None
+        if not (x >= 0) or x == float("inf"):
+            raise InputError(f"--zone-dtmin: ΔTmin of zone '{zone}' must be a finite number >= 0 K, got {x:g}")
+        if zone in out:
+            raise InputError(f"--zone-dtmin: zone '{zone}' is given twice")
+        out[zone] = x
+    return out
+
+
+def format_site(site, source: str, dt_note: str, mains_source: str | None) -> str:
+    """The human summary of a site run: one table of zones, one of mains, the saving."""
+    lines = [f"heatloom site: {source}",
+             f"  zones          {len(site.zones)}; mains {len(site.mains)}"
+             + (f" ({mains_source})" if mains_source else " (none given: no heat exchanged between zones)"),
+             f"  ΔTmin          {site.dt_min:g} K ({dt_note}); site ΔT for steam {site.dt_site:g} K",
+             "",
+             f"  {'zone':<20} {'ΔTmin':>6} {'hot utility':>12} {'cold utility':>12} {'pinch hot/cold':>15} "
+             f"{'above mains':>12} {'below mains':>12}",
+             f"  {'':<20} {'[K]':>6} {'[kW]':>12} {'[kW]':>12} {'[°C]':>15} {'[kW]':>12} {'[kW]':>12}"]
+    for z in site.zones:
+        p = z.targets.pinch
+        pinch = f"{p.hot:g}/{p.cold:g}" if p is not None else "none"
+        lines.append(f"  {z.name[:20]:<20} {z.dt_min:>6g} {z.hot_utility:>12,.1f} {z.cold_utility:>12,.1f} "
+                     f"{pinch:>15} {z.above_mains:>12,.1f} {z.below_mains:>12,.1f}")
+    if site.mains:
+        lines += ["",
+                  f"  {'main':<16} {'kind':<8} {'T':>6} {'raised':>10} {'used':>10} {'recovered':>10} "
+                  f"{'letdown in':>10} {'boilers':>10} {'surplus':>10}",
+                  f"  {'':<16} {'':<8} {'[°C]':>6} {'[kW]':>10} {'[kW]':>10} {'[kW]':>10} {'[kW]':>10} "
+                  f"{'[kW]':>10} {'[kW]':>10}"]
+        for b in site.mains:
+            m = b.main
+            if m.is_steam:
+                lines.append(f"  {m.name[:16]:<16} {'steam':<8} {m.temperature:>6g} {b.raised:>10,.1f} "
+                             f"{b.used:>10,.1f} {b.recovered:>10,.1f} {b.letdown_in:>10,.1f} "
+                             f"{b.from_boilers:>10,.1f} {b.surplus:>10,.1f}")
+            else:
+                lines.append(f"  {m.name[:16]:<16} {'cooling':<8} {m.temperature:>6g}   takes "
+                             f"{b.site_duty:,.1f} kW ({b.zone_by_zone_duty:,.1f} kW zone by zone)")
+        steam = [b.main.name for b in site.mains if b.main.is_steam]
+        if steam:
+            lines += ["", "  net steam export per zone [kW] (+ could raise, − must take)",
+                      f"  {'zone':<20} " + " ".join(f"{n[:12]:>12}" for n in steam)]
+            for z in site.zones:
+                lines.append(f"  {z.name[:20]:<20} " + " ".join(
+                    f"{z.raised[n] - z.used[n]:>+12,.1f}" if (z.raised[n] or z.used[n]) else f"{'-':>12}"
+                    for n in steam))
+    lines += ["",
+              f"  site hot utility    {fmt(site.site_hot_utility):>14}   fuel above the mains "
+              f"{fmt(site.fuel_above_mains)}, steam from boilers {fmt(site.boiler_steam)}",
+              f"  site cold utility   {fmt(site.site_cold_utility):>14}",
+              f"  zone by zone        {fmt(site.zone_by_zone_hot_utility):>14} hot, "
+              f"{fmt(site.zone_by_zone_cold_utility)} cold",
+              f"  saving              {fmt(site.saving):>14} of hot utility (and as much cooling)"]
+    zbz = site.zone_by_zone_hot_utility
+    if zbz > 0:
+        lines[-1] += f", {100 * site.saving / zbz:.1f} %"
+    if site.saving_money is not None:
+        lines.append(f"  saving per year     {site.saving_money:>14,.0f} money (priced mains: site "
+                     f"{site.site_cost:,.0f}, zone by zone {site.zone_by_zone_cost:,.0f})")
+        if site.unpriced_mains:
+            lines.append(f"                      mains without a price are left out: {', '.join(site.unpriced_mains)}")
+    lines.append(f"  note: {SAFETY_NOTE} Steam mains also need pressure ratings, relief and letdown design "
+                 "checked by them.")
+    return "\n".join(lines)
+
+
+def site_frames(site) -> dict:
+    """Frames of a site run, one per CSV file or workbook sheet (units in every header)."""
+    import pandas as pd
+
+    zones = pd.DataFrame([{
+        "zone": z.name, "ΔTmin [K]": z.dt_min, "hot utility [kW]": z.hot_utility,
+        "cold utility [kW]": z.cold_utility,
+        "pinch hot [°C]": z.targets.pinch.hot if z.targets.pinch else None,
+        "pinch cold [°C]": z.targets.pinch.cold if z.targets.pinch else None,
+        "heat above mains [kW]": z.above_mains, "heat below mains [kW]": z.below_mains} for z in site.zones])
+    mains = pd.DataFrame([{
+        "main": b.main.name, "kind": b.main.kind.value, "T [°C]": b.main.temperature,
+        "price [money/kW·yr]": b.main.price, "raised [kW]": b.raised, "used [kW]": b.used,
+        "recovered [kW]": b.recovered, "letdown in [kW]": b.letdown_in, "letdown out [kW]": b.letdown_out,
+        "from boilers [kW]": b.from_boilers, "surplus [kW]": b.surplus,
+        "zone by zone duty [kW]": b.zone_by_zone_duty, "site duty [kW]": b.site_duty,
+        "zone by zone cost [money/yr]": b.zone_by_zone_cost, "site cost [money/yr]": b.site_cost}
+        for b in site.mains], columns=["main", "kind", "T [°C]", "price [money/kW·yr]", "raised [kW]",
+                                       "used [kW]", "recovered [kW]", "letdown in [kW]", "letdown out [kW]",
+                                       "from boilers [kW]", "surplus [kW]", "zone by zone duty [kW]",
+                                       "site duty [kW]", "zone by zone cost [money/yr]", "site cost [money/yr]"])
+    flows = pd.DataFrame([{"zone": z.name, "main": name, "raised [kW]": z.raised[name], "used [kW]": z.used[name],
+                           "net export [kW]": z.raised[name] - z.used[name], "rejected alone [kW]": None}
+                          for z in site.zones for name in z.raised]
+                         + [{"zone": z.name, "main": name, "rejected alone [kW]": q}
+                            for z in site.zones for name, q in z.rejected.items()],
+                         columns=["zone", "main", "raised [kW]", "used [kW]", "net export [kW]",
+                                  "rejected alone [kW]"])
+    rows = []
+    for z in [None, *site.zones]:
+        src, snk = (site.source_profile, site.sink_profile) if z is None else (z.source, z.sink)
+        who = "site" if z is None else z.name
+        rows += [{"profile": f"{who} source", "T [°C]": t, "heat [kW]": h}
+                 for t, h in zip(src.temperature, src.enthalpy)]
+        rows += [{"profile": f"{who} sink", "T [°C]": t, "heat [kW]": h}
+                 for t, h in zip(snk.temperature, snk.enthalpy)]
+    profiles = pd.DataFrame(rows, columns=["profile", "T [°C]", "heat [kW]"])
+    summary = pd.DataFrame([
+        ("ΔTmin", site.dt_min, "K"), ("site ΔT for steam", site.dt_site, "K"),
+        ("site hot utility", site.site_hot_utility, "kW"), ("site cold utility", site.site_cold_utility, "kW"),
+        ("fuel above the mains", site.fuel_above_mains, "kW"), ("steam from boilers", site.boiler_steam, "kW"),
+        ("zone-by-zone hot utility", site.zone_by_zone_hot_utility, "kW"),
+        ("zone-by-zone cold utility", site.zone_by_zone_cold_utility, "kW"),
+        ("recovered through the mains", site.recovered, "kW"), ("saving", site.saving, "kW"),
+        ("saving per year", site.saving_money, "money/yr"),
+    ], columns=["quantity", "value", "unit"])
+    return {"summary": summary, "zones": zones, "mains": mains, "zone mains": flows, "profiles": profiles}
+
+
+def run(args) -> int:
+    from ..io.site import read_site
+    from ..pinch.site import Zone, site_targets
+
+    dt_min, dt_note = dt_min_of(args)
+    site_in = read_site(args.path, mains=args.mains, sheet_per_zone=not args.one_zone_workbook,
+                        columns=args.columns, fit_tolerance=args.fit_tolerance)
+    own = parse_zone_dt_min(args.zone_dtmin, [z.name for z in site_in.zones])
+    zones = [Zone(z.name, z.streams, own.get(z.name)) for z in site_in.zones]
+    if not site_in.mains:
+        note(args, "heatloom site: no mains table given or found: each zone is targeted alone")
+    out = None
+    if args.out:
+        from ..io.export import OutputDirectory
+
+        out = OutputDirectory(args.out, site_in.files, force=args.force)
+        out.check([*OUTPUT_NAMES, *FIGURE_NAMES])  # refuse before computing, so nothing is half written
+    site = site_targets(zones, site_in.mains, dt_min, dt_site=args.site_dt)  # mains checked when read
+    result = site.to_dict()
+    result["dtmin_source"] = dt_note
+    result["source"] = str(args.path)
+    result["mains_source"] = site_in.mains_source
+    result["zone_sources"] = site_in.zone_sources
+    result["note"] = SAFETY_NOTE
+    if out is not None:
+        import matplotlib.pyplot as plt
+
+        from ..io.site_figures import site_profiles_figure, zone_profiles_figure
+
+        frames = site_frames(site)
+        out.json("site.json", result)
+        out.csv("site_zones.csv", frames["zones"])
+        out.csv("site_main_balance.csv", frames["mains"])
+        out.csv("site_zone_steam.csv", frames["zone mains"])
+        out.csv("site_profiles.csv", frames["profiles"])
+        out.workbook("site.xlsx", frames)
+        for name, make in (("site_profiles", site_profiles_figure), ("zone_profiles", zone_profiles_figure)):
+            fig = make(site)
+            for ext in ("png", "svg"):
+                out.figure(f"{name}.{ext}", fig)
+            plt.close(fig)
+    return finish(args, result, format_site(site, str(args.path), dt_note, site_in.mains_source), out)

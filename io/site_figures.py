@@ -1,0 +1,129 @@
+"""Figures of a site run, in the project's one visual style (:data:`heatloom.io.figures.STYLE`).
+
+* :func:`site_profiles_figure`: the site source profile (heat the zones can give to the mains, drawn to
+  the left of zero, solid brick red) and the site sink profile (heat they need from the mains, to the right,
+  long-dashed slate blue) against the utility temperature, with every main as a horizontal line labelled
+  with its name, temperature and the steam raised and used there.
+* :func:`zone_profiles_figure`: the same for each zone on its own, one panel per zone.
+
+Both read in greyscale: the two profiles differ by line style as well as colour, steam mains are dash-dot
+grey lines and cooling mains dotted ones.  Functions return matplotlib figures; writing them is
+:class:`heatloom.io.export.OutputDirectory`'s job.
+"""
+
+from __future__ import annotations
+
+import math
+
+import matplotlib.pyplot as plt
+import numpy as np
+
+from .figures import STYLE, _axes
+
+__all__ = ["site_profiles_figure", "zone_profiles_figure"]
+
+_STEAM_MAIN = {"color": "#505050", "linestyle": "-.", "linewidth": 1.1}
+_COOLING_MAIN = {"color": "#505050", "linestyle": ":", "linewidth": 1.3}
+_YLABEL = "Utility temperature [°C]"
+_XLABEL = "Heat flow [kW]   (← source: heat the zones give | sink: heat they need →)"
+
+
+def _draw_profiles(ax, source, sink, *, labels: bool = True) -> None:
+    if source.temperature.size and np.any(source.enthalpy > 0):
+        ax.plot(-source.enthalpy, source.temperature, label="source profile" if labels else None, **STYLE["hot"])
+    if sink.temperature.size and np.any(sink.enthalpy > 0):
+        ax.plot(sink.enthalpy, sink.temperature, label="sink profile" if labels else None, **STYLE["cold"])
+    ax.axvline(0.0, color="#303030", linewidth=0.8)
+
+
+def _y_limits(curves, mains) -> tuple[float, float]:
+    ys = [float(t) for c in curves if c.temperature.size > 1 for t in c.temperature]
+    ys += [m.temperature for m in mains]
+    if not ys:
+        return 0.0, 1.0
+    lo, hi = min(ys), max(ys)
+    pad = max(5.0, 0.06 * (hi - lo))
+    return lo - pad, hi + pad
+
+
+def site_profiles_figure(site, *, title: str | None = None):
+    """Site source and sink profiles with the mains.
+
+    Parameters
+    ----------
+    site : heatloom.pinch.site.SiteTargets
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+    """
+    dt = f"ΔTmin {site.dt_min:g} K" + (f", site ΔT {site.dt_site:g} K" if site.dt_site else "")
+    summary = (f"recovered through the mains {site.recovered:,.0f} kW; site hot utility "
+               f"{site.site_hot_utility:,.0f} kW (zone by zone {site.zone_by_zone_hot_utility:,.0f} kW)")
+    fig, ax = _axes(title or f"Site source and sink profiles ({len(site.zones)} zones, {dt})\n{summary}",
+                    _XLABEL, _YLABEL)
+    _draw_profiles(ax, site.source_profile, site.sink_profile)
+    y0, y1 = _y_limits([site.source_profile, site.sink_profile], [b.main for b in site.mains])
+    ax.set_ylim(y0, y1)
+    left = -max(float(site.source_profile.enthalpy.max(initial=0.0)), 1.0)
+    right = max(float(site.sink_profile.enthalpy.max(initial=0.0)), 1.0)
+    span = right - left
+    ax.set_xlim(left - 0.05 * span, right + 0.05 * span)
+    for b in site.mains:
+        m = b.main
+        style = _STEAM_MAIN if m.is_steam else _COOLING_MAIN
+        ax.axhline(m.temperature, **style)
+        if m.is_steam:
+            text = f"{m.name} {m.temperature:g} °C: raise {b.raised:,.0f}, use {b.used:,.0f} kW"
+        else:
+            text = f"{m.name} {m.temperature:g} °C (cooling): {b.site_duty:,.0f} kW"
+        ax.annotate(text, (1.0, m.temperature), xycoords=("axes fraction", "data"), xytext=(-4, 3),
+                    textcoords="offset points", ha="right", va="bottom", fontsize=STYLE["font_size"] - 2,
+                    color="#303030", bbox={"facecolor": "white", "edgecolor": "none", "alpha": 0.85, "pad": 1.0},
+                    zorder=5)
+    ax.legend(frameon=True, facecolor="white", edgecolor="none", framealpha=0.9, fontsize=STYLE["font_size"] - 1,
+              loc="best")
+    fig.tight_layout()
+    return fig
+
+
+def zone_profiles_figure(site, *, title: str | None = None):
+    """Each zone's source and sink profiles with the mains, one panel per zone.
+
+    Parameters
+    ----------
+    site : heatloom.pinch.site.SiteTargets
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+    """
+    n = len(site.zones)
+    cols = min(3, n)
+    rows = math.ceil(n / cols)
+    w, h = STYLE["figure_size"]
+    fig, axes = plt.subplots(rows, cols, figsize=(max(w, 3.4 * cols), 0.75 * h * rows + 0.6), sharey=True,
+                             squeeze=False)
+    curves = [c for z in site.zones for c in (z.source, z.sink)]
+    y0, y1 = _y_limits(curves, [b.main for b in site.mains])
+    for k, ax in enumerate(axes.flat):
+        if k >= n:
+            ax.axis("off")
+            continue
+        z = site.zones[k]
+        ax.spines[["top", "right"]].set_visible(False)
+        ax.tick_params(labelsize=STYLE["font_size"] - 2)
+        ax.grid(True, color="#e4e4e4", linewidth=0.6)
+        ax.set_axisbelow(True)
+        ax.set_title(f"{z.name} (ΔTmin {z.dt_min:g} K)", fontsize=STYLE["font_size"], loc="left")
+        _draw_profiles(ax, z.source, z.sink, labels=False)
+        for b in site.mains:
+            ax.axhline(b.main.temperature, **(_STEAM_MAIN if b.main.is_steam else _COOLING_MAIN))
+        ax.set_ylim(y0, y1)
+        ax.set_xlabel("Heat flow [kW]", fontsize=STYLE["font_size"] - 1)
+        if k % cols == 0:
+            ax.set_ylabel(_YLABEL, fontsize=STYLE["font_size"] - 1)
+    fig.suptitle(title or "Zone source (left, solid) and sink (right, dashed) profiles; mains dash-dot",
+                 fontsize=STYLE["font_size"] + 1, x=0.01, ha="left")
+    fig.tight_layout()
+    return fig
