@@ -1,5 +1,17 @@
 """Pinch targeting: problem table, composite curves, utility placement (installed as heatloom.pinch)."""
 
+from .area import (
+    AreaTargets,
+    BalancedComposites,
+    CapitalBasis,
+    area_targets,
+    balanced_composites,
+    bath_area,
+    missing_film_coefficients,
+    shell_target,
+    target_utilities,
+    unit_targets,
+)
 from .curves import Curve, cold_composite, grand_composite, hot_composite
 from .problem_table import ProblemTable, net_heat_capacity_flow, problem_table, shifted_ranges, zero_tolerance
 from .site import (
@@ -15,10 +27,28 @@ from .site import (
     site_targets,
     zone_profiles,
 )
+from .sweep import Breakpoint, DesignPoint, Sweep, SweepPoint, describe_executor, sweep, sweep_point
 from .targets import Pinch, Targets, Threshold, target
 from .utilities import UtilityDuty, UtilityPlacement, place_utilities, utility_shifted_range
 
 __all__ = [
+    "AreaTargets",
+    "BalancedComposites",
+    "CapitalBasis",
+    "area_targets",
+    "balanced_composites",
+    "bath_area",
+    "missing_film_coefficients",
+    "shell_target",
+    "target_utilities",
+    "unit_targets",
+    "Breakpoint",
+    "DesignPoint",
+    "Sweep",
+    "SweepPoint",
+    "describe_executor",
+    "sweep",
+    "sweep_point",
     "Curve",
     "cold_composite",
     "grand_composite",

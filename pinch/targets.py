@@ -146,7 +146,7 @@ class Targets:
             "hot_process_duty": self.hot_process_duty,
             "cold_process_duty": self.cold_process_duty,
             "utilities": self.utility_duties,
-            "units": {"temperature": "°C", "duty": "kW", "dtmin": "K",
+            "units_of_measure": {"temperature": "°C", "duty": "kW", "dtmin": "K", "area": "m²",
                       "utility_cost": "money per year"},
         }
         if self.placement is not None:

@@ -44,7 +44,23 @@ def register(sub) -> None:
     p.set_defaults(handler=run)
 
 
-def format_targets(targets, source: str, dt_min_note: str) -> str:
+def _area_targets(targets):
+    """Area, units and shells targets when every stream and utility in use has a film coefficient, else
+    (None, why not)."""
+    from ..errors import TemperatureCrossError
+    from ..pinch.area import area_targets, missing_film_coefficients, target_utilities
+
+    missing = missing_film_coefficients(targets.streams, [u for u, _ in target_utilities(targets)])
+    if missing:
+        return None, (f"area, units and shells targets omitted: film coefficient h missing for "
+                      f"{', '.join(missing)} (add an h column in kW/(m²·K))")
+    try:
+        return area_targets(targets), None
+    except TemperatureCrossError as e:
+        return None, f"area, units and shells targets omitted: {e.message}"
+
+
+def format_targets(targets, source: str, dt_min_note: str, area=None, area_note: str | None = None) -> str:
     """The human summary of a targeting run (a few lines and one table)."""
     s = targets.streams
     n_seg = sum(len(x.segments) for x in s)
@@ -67,6 +83,13 @@ def format_targets(targets, source: str, dt_min_note: str) -> str:
         lines.append("  pinch          none")
     if targets.threshold is not None:
         lines.append(f"  threshold      yes: {targets.threshold.value} is needed")
+    if area is not None:
+        lines.append(f"  area           {area.area:>14,.1f} m²  minimum (Townsend–Linnhoff, vertical transfer)")
+        lines.append(f"  units          {area.units:>14d}     minimum overall (N − 1); {area.units_mer} for maximum "
+                     "energy recovery (per pinch side)")
+        lines.append(f"  shells         {area.shells:>14d}     minimum 1-2 shells (Ahmad & Smith, X_P criterion)")
+    elif area_note:
+        lines.append(f"  note: {area_note}")
     if targets.placement is None:
         lines.append("  utilities      none given: ideal utilities assumed (hotter and colder than every "
                      "process temperature); give --utilities FILE to place real levels")
@@ -106,6 +129,9 @@ def run(args) -> int:
     result = t.to_dict()
     result["dtmin_source"] = dt_note
     result["source"] = str(args.file)
+    area, area_note = _area_targets(t)
+    if area is not None:
+        result.update(area=area.area, units=area.units, units_mer=area.units_mer, shells=area.shells)
     if out is not None:
         from ..io.export import targets_workbook_sheets
 
@@ -119,4 +145,4 @@ def run(args) -> int:
             out.figures("composite_curves", composite_figure(t))
             out.figures("shifted_composite_curves", composite_figure(t, shifted=True))
             out.figures("grand_composite_curve", grand_composite_figure(t))
-    return finish(args, result, format_targets(t, str(args.file), dt_note), out)
+    return finish(args, result, format_targets(t, str(args.file), dt_note, area, area_note), out)

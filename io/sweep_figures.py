@@ -1,0 +1,93 @@
+"""Figures of a ΔTmin sweep, in the project's one visual style (:data:`heatloom.io.figures.STYLE`).
+
+* :func:`cost_figure`: energy, capital and total annual cost targets against ΔTmin, the optimum marked,
+  steps of the unit target as dotted lines, designed networks as open circles;
+* :func:`targets_figure`: hot and cold utility targets (left axis) and the area target (right axis)
+  against ΔTmin.
+
+Hot quantities (energy, hot utility) take the hot style, cold/capital quantities the cold style (long
+dashes), totals and area the neutral style.  Functions return matplotlib figures; writing them is
+:class:`heatloom.io.export.OutputDirectory`'s job.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from .figures import STYLE, _axes
+
+__all__ = ["cost_figure", "targets_figure"]
+
+
+def _series(sweep, name: str) -> tuple[np.ndarray, np.ndarray]:
+    x = np.array([p.dt_min for p in sweep.points], dtype=float)
+    y = np.array([getattr(p, name) if p.feasible else np.nan for p in sweep.points], dtype=float)
+    return x, y
+
+
+def _unit_steps(sweep) -> list[float]:
+    steps = {"units", "units_mer", "shells", "feasibility"}
+    return [0.5 * (b.low + b.high) for b in sweep.breakpoints if steps & set(b.changes)]
+
+
+def cost_figure(sweep, *, title: str | None = None):
+    """Energy, capital and total annual cost targets against ΔTmin.
+
+    Parameters
+    ----------
+    sweep : heatloom.pinch.sweep.Sweep
+    title : str, optional
+    """
+    cur = sweep.currency
+    fig, ax = _axes(title or "Cost targets against ΔTmin", "ΔTmin [K]", f"Annual cost [{cur}/year]")
+    x, energy = _series(sweep, "energy_cost")
+    _, capital = _series(sweep, "capital_cost")
+    _, total = _series(sweep, "total_annual_cost")
+    ax.plot(x, energy, label="energy (utilities)", **STYLE["hot"])
+    ax.plot(x, capital, label="capital (annualised)", **STYLE["cold"])
+    ax.plot(x, total, label="total annual cost", **STYLE["net"])
+    for xs in _unit_steps(sweep):
+        ax.axvline(xs, **STYLE["pinch"])
+    o = sweep.optimum
+    ax.plot([o.dt_min], [o.total_annual_cost], marker="o", markersize=7, color=STYLE["net"]["color"],
+            linestyle="none")
+    ax.annotate(f"optimum {o.dt_min:.2f} K\n{o.total_annual_cost:,.0f} {cur}/yr", (o.dt_min, o.total_annual_cost),
+                xytext=(8, 10), textcoords="offset points", fontsize=STYLE["font_size"] - 1, color="#303030")
+    done = [d for d in sweep.designs if not d.error]
+    if done:
+        ax.plot([d.dt_min for d in done], [d.total_annual_cost for d in done], marker="o", markersize=8,
+                markerfacecolor="white", markeredgecolor=STYLE["net"]["color"], linestyle="none",
+                label="designed network (total)")
+    ax.set_ylim(bottom=0)
+    ax.legend(frameon=False, fontsize=STYLE["font_size"] - 1, loc="best")
+    fig.tight_layout()
+    return fig
+
+
+def targets_figure(sweep, *, title: str | None = None):
+    """Utility targets [kW] and the area target [m²] against ΔTmin.
+
+    Parameters
+    ----------
+    sweep : heatloom.pinch.sweep.Sweep
+    title : str, optional
+    """
+    fig, ax = _axes(title or "Energy and area targets against ΔTmin", "ΔTmin [K]", "Utility duty [kW]")
+    x, hot = _series(sweep, "hot_utility")
+    _, cold = _series(sweep, "cold_utility")
+    _, area = _series(sweep, "area")
+    lines = ax.plot(x, hot, label="hot utility", **STYLE["hot"])
+    lines += ax.plot(x, cold, label="cold utility", **STYLE["cold"])
+    ax.set_ylim(bottom=0)
+    right = ax.twinx()
+    right.spines[["top"]].set_visible(False)
+    right.set_ylabel("Area [m²]", fontsize=STYLE["font_size"])
+    right.tick_params(labelsize=STYLE["font_size"] - 1)
+    lines += right.plot(x, area, label="area (right axis)", **STYLE["net"])
+    right.set_ylim(bottom=0)
+    for xs in _unit_steps(sweep):
+        ax.axvline(xs, **STYLE["pinch"])
+    ax.legend(lines, [ln.get_label() for ln in lines], frameon=False, fontsize=STYLE["font_size"] - 1,
+              loc="upper center")
+    fig.tight_layout()
+    return fig
