@@ -2,6 +2,7 @@
 
 from .costs import costs_from_mapping, read_costs
 from .export import OutputDirectory, to_jsonable
+from .network_table import NETWORK_ALIASES, NETWORK_COLUMNS, read_network
 from .points import DEFAULT_FIT_TOLERANCE, fit_points, fit_vertices
 from .site import MAINS_COLUMNS, Site, read_mains, read_site
 from .streams import POINT_COLUMNS, SEGMENT_COLUMNS, read_streams
@@ -23,6 +24,9 @@ __all__ = [
     "read_streams",
     "read_utilities",
     "read_costs",
+    "read_network",
+    "NETWORK_COLUMNS",
+    "NETWORK_ALIASES",
     "read_site",
     "read_mains",
     "Site",

@@ -11,6 +11,22 @@ from .cost import (
     total_annual_cost,
 )
 from .design import Region, design_mer, ideal_utilities, regions_of
+from .diagnose import (
+    AreaEfficiency,
+    CrossPinch,
+    CrossPinchUnit,
+    Diagnosis,
+    NetworkPinch,
+    PathShift,
+    RetrofitCurve,
+    area_efficiency,
+    cross_pinch,
+    diagnose,
+    existing_dt_min,
+    network_pinch,
+    retrofit_curve,
+)
+from .existing import ExistingNetwork, ExistingUnit, OperatingMode, UnitRole, heat_between, temperature_after
 from .geometry import (
     DoublePipeSizing,
     ExchangerType,
@@ -33,6 +49,7 @@ from .milp import (
 from .placement import PlacedUnit, Placement, Side, stage_model
 from .rating import Rating, effectiveness_from_ntu, max_effectiveness, ntu_from_effectiveness, rate_exchanger
 from .segments import SegmentedSizing, SizingInterval, cut_profile, size_segments
+from .simulate import Simulation, UnitState, simulate
 from .sizing import (
     FlowArrangement,
     ShellDesign,
@@ -64,4 +81,8 @@ __all__ = [
     "min_matches", "plan_matches", "subnetworks", "transshipment",
     "Placement", "PlacedUnit", "Side", "stage_model",
     "SolveReport", "SolverName", "SolveStatus", "available_solvers", "resolve_solver", "solve",
+    "AreaEfficiency", "CrossPinch", "CrossPinchUnit", "Diagnosis", "NetworkPinch", "PathShift", "RetrofitCurve",
+    "area_efficiency", "cross_pinch", "diagnose", "existing_dt_min", "network_pinch", "retrofit_curve",
+    "ExistingNetwork", "ExistingUnit", "OperatingMode", "UnitRole", "heat_between", "temperature_after",
+    "Simulation", "UnitState", "simulate",
 ]

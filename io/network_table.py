@@ -1,0 +1,376 @@
+"""Reading an existing heat-exchanger network (CSV, XLSX) into a :class:`heatloom.network.ExistingNetwork`.
+
+One row per unit::
+
+    unit,hot,cold,area [m2],duty [kW],U [kW/m2K],hot_order,cold_order,type,shells
+    E-101,reactor effluent,feed,42.0,,0.45,1,2,counter-current,
+    E-102,bottoms,feed,,850,0.40,1,1,1-2,2
+    H-101,MP steam,feed,15.0,,,,3,,
+    C-101,reactor effluent,cooling water,30.0,,,2,,,
+
+Columns:
+
+* ``unit`` — a unique name (tag);
+* ``hot`` — a hot process stream or a hot utility, by name; ``cold`` — a cold process stream or a cold
+  utility.  A unit between two process streams is an exchanger, one with a hot utility a heater, one with
+  a cold utility a cooler;
+* ``area`` [m²] and/or ``duty`` [kW] — at least one.  A duty without an area is turned into an area at
+  the temperatures it implies, which must be known without simulating the network (see
+  :class:`heatloom.network.existing.ExistingNetwork`); otherwise give the area;
+* ``U`` [kW/(m²·K)] — optional when the stream and utility tables give film coefficients ``h``
+  (1/U = 1/h_hot + 1/h_cold);
+* ``hot_order``, ``cold_order`` — position of the unit along its hot and its cold process stream from the
+  stream's supply end, 1, 2, ...; default the row order.  Give them for every unit of a stream or for
+  none; leave them empty on a utility side;
+* ``type`` — ``counter-current`` (default), ``co-current`` or ``1-2`` (shell-and-tube, one shell pass and
+  an even number of tube passes), with ``shells`` in series (1 by default; ``shells`` > 1 without a type
+  means 1-2 shells).
+
+Units may be written in the headers (``area [ft2]``, ``duty (MW)``, ``U [W/m2K]``) or in a units row under
+the header, converted with :mod:`heatloom.io.units`; title lines are skipped and foreign headers can be
+mapped (``columns={"Tag": "unit"}``), as for stream tables (:mod:`heatloom.io.tables`).  Every problem is
+an :class:`~heatloom.errors.InputError` naming the file, the row and the column as written.
+"""
+
+from __future__ import annotations
+
+import os
+import re
+from collections.abc import Mapping, Sequence
+
+import numpy as np
+
+from ..errors import InputError
+from ..model import StreamTable, Utility
+from ..network.existing import ExistingNetwork, ExistingUnit
+from ..network.sizing import FlowArrangement
+from .tables import IGNORE, Cells, Table, TableColumn, load_cells, normalise_name, split_header
+from .units import QuantityKind, parse_unit
+
+__all__ = ["NETWORK_COLUMNS", "NETWORK_ALIASES", "read_network"]
+
+NETWORK_COLUMNS = ("unit", "hot", "cold", "area", "duty", "U", "hot_order", "cold_order", "type", "shells")
+"""Canonical columns of a network table."""
+
+NETWORK_ALIASES: dict[str, tuple[str, ...]] = {
+    "unit": ("unit", "name", "tag", "unit name", "exchanger", "equipment", "item"),
+    "hot": ("hot", "hot side", "hot stream", "hot fluid", "hot utility or stream"),
+    "cold": ("cold", "cold side", "cold stream", "cold fluid", "cold utility or stream"),
+    "area": ("area", "A", "surface", "surface area", "heat transfer area", "installed area"),
+    "duty": ("duty", "Q", "heat duty", "heat load", "load"),
+    "U": ("U", "overall coefficient", "overall heat transfer coefficient", "U value", "OHTC"),
+    "hot_order": ("hot_order", "hot position", "position on hot", "hot sequence", "hot seq"),
+    "cold_order": ("cold_order", "cold position", "position on cold", "cold sequence", "cold seq"),
+    "type": ("type", "arrangement", "flow arrangement", "exchanger type", "configuration"),
+    "shells": ("shells", "number of shells", "shells in series", "shell count", "n shells"),
+}
+"""Accepted names of each column (compared ignoring case, spaces, underscores, hyphens and dots)."""
+
+_KINDS = {"area": QuantityKind.AREA, "duty": QuantityKind.DUTY, "U": QuantityKind.FILM_COEFFICIENT}
+_TYPES = {
+    **dict.fromkeys(("countercurrent", "counter", "counterflow", "cc", "countercurrentflow"),
+                    FlowArrangement.COUNTER_CURRENT),
+    **dict.fromkeys(("cocurrent", "co", "parallel", "parallelflow", "cocurrentflow"), FlowArrangement.CO_CURRENT),
+    **dict.fromkeys(("12", "12shell", "shellandtube", "shellandtube12", "s&t", "st", "stx", "12shellandtube",
+                     "shellandtube1shell2tubepasses", "shellandtube12shells"), FlowArrangement.SHELL_AND_TUBE_1_2),
+}
+_UNIT_LABEL = re.compile(r"^[\[(]?\s*(?:-|–|—|units?|uom|dim\.?|)\s*:?\s*[\])]?$", re.IGNORECASE)
+_HEADER_SCAN_ROWS = 100
+
+
+def read_network(path: str | os.PathLike, streams: StreamTable, utilities: Sequence[Utility] | None = None, *,
+                 sheet: str | None = None, columns: Mapping[str, str] | str | None = None) -> ExistingNetwork:
+    """Read an existing network (one row per unit) from a CSV file or an Excel workbook.
+
+    Parameters
+    ----------
+    path : str or path-like
+        ``.csv`` or ``.xlsx`` file; never modified.
+    streams : StreamTable
+        The process streams the units sit on (:func:`heatloom.io.read_streams`).
+    utilities : sequence of Utility, optional
+        The utilities heaters and coolers use (:func:`heatloom.io.read_utilities`).
+    sheet : str, optional
+        Worksheet name; default the first sheet.
+    columns : mapping or str, optional
+        Foreign header → canonical column name, e.g. ``{"Tag": "unit", "Surface": "area"}`` or
+        ``"Tag=unit,Surface=area"``; ``"-"`` ignores a column.
+
+    Returns
+    -------
+    ExistingNetwork
+        Checked and completed (roles, positions, U, areas from stated duties); ``source`` is the file.
+
+    Raises
+    ------
+    InputError
+        One line naming file, row and column: missing/unreadable file, missing columns, text in a number
+        cell, unknown units, an empty name, a repeated unit name, an unknown stream or utility, a stream of
+        the wrong kind on a side (a hot stream named as cold), positions that repeat, skip or are partly
+        given, an unknown type, shells that are not whole numbers, no area and no duty, no U and no film
+        coefficients, a stated duty larger than a stream can give or take or than the driving force allows,
+        a duty without an area whose temperatures are not known.
+
+    Examples
+    --------
+    >>> import pathlib, tempfile
+    >>> from heatloom.model import StreamTable, Utility
+    >>> s = StreamTable.from_arrays(["H1", "C1"], [150, 30], [60, 120], [2.0, 2.5])
+    >>> u = [Utility("steam", 180, 179, 100.0), Utility("water", 20, 30, 10.0)]
+    >>> f = pathlib.Path(tempfile.mkdtemp()) / "network.csv"
+    >>> _ = f.write_text("unit,hot,cold,area [ft2],U [kW/m2K],duty [kW]\\n"
+    ...                  "E1,H1,C1,28.75,0.5,\\nH1,steam,C1,,,125\\nC1,H1,water,,,80\\n")
+    >>> net = read_network(f, s, u)
+    >>> round(net.unit("E1").area, 3), [x.name for x in net.on_stream("H1")]
+    (2.671, ['E1', 'C1'])
+    """
+    utilities = tuple(utilities or ())
+    mapping = _parse_mapping(columns)
+    cells = load_cells(path, sheet=sheet)
+    table = _bind(cells, mapping)
+    units = _units(table)
+    notes = []
+    if any(u.shells > 1 for u in units) and "type" not in table:
+        notes.append("units with more than one shell and no type are taken as 1-2 shell-and-tube")
+    try:
+        return ExistingNetwork(streams, tuple(units), utilities, source=table.label, notes=tuple(notes))
+    except InputError as e:
+        raise table.locate(e) from None
+
+
+# --------------------------------------------------------------------------------------------------
+# header, units row, columns
+
+
+def _lookup() -> dict[str, str]:
+    out: dict[str, str] = {}
+    for canonical, aliases in NETWORK_ALIASES.items():
+        for alias in (canonical, *aliases):
+            out[normalise_name(alias)] = canonical
+    return out
+
+
+_LOOKUP = _lookup()
+
+
+def _parse_mapping(columns: Mapping[str, str] | str | None) -> dict[str, str]:
+    """Foreign header → canonical network column (or ``"-"``)."""
+    if columns is None:
+        return {}
+    if isinstance(columns, Mapping):
+        pairs = [(str(k), "" if v is None else str(v)) for k, v in columns.items()]
+    else:
+        pairs = []
+        for part in re.split(r"[,;]", str(columns)):
+            if not part.strip():
+                continue
+            if "=" not in part:
+                raise InputError(f"column mapping: '{part.strip()}' is not of the form header=column "
+                                 "(e.g. 'Tag=unit,Surface=area')")
+            k, v = part.rsplit("=", 1)
+            pairs.append((k, v))
+    canon = {normalise_name(c): c for c in NETWORK_COLUMNS}
+    out: dict[str, str] = {}
+    for k, v in pairs:
+        k, v = k.strip(), v.strip()
+        if not k:
+            raise InputError(f"column mapping: empty header before '={v}'")
+        if v in ("", IGNORE):
+            out[k] = IGNORE
+            continue
+        target = canon.get(normalise_name(v))
+        if target is None:
+            raise InputError(f"column mapping: unknown column name '{v}' for '{k}'; allowed: "
+                             f"{', '.join(NETWORK_COLUMNS)} (or '-' to ignore the column)")
+        if target in out.values():
+            raise InputError(f"column mapping: two headers are mapped to '{target}'")
+        out[k] = target
+    return out
+
+
+def _text(c) -> str:
+    if isinstance(c, float):
+        return str(int(c)) if c.is_integer() and abs(c) < 1e15 else repr(c)
+    return str(c).strip()
+
+
+def _match(cell: str, mapping: dict[str, str]) -> tuple[str | None, str | None]:
+    readings = split_header(cell)
+    keys = {normalise_name(k): v for k, v in mapping.items()}
+    for table in (keys, _LOOKUP):
+        for name, unit in readings:
+            target = table.get(normalise_name(name))
+            if target is not None:
+                return target, unit
+    return None, None
+
+
+def _looks_number(text: str) -> bool:
+    try:
+        float(text.replace(",", "."))
+    except ValueError:
+        return False
+    return True
+
+
+def _bind(cells: Cells, mapping: dict[str, str]) -> Table:
+    """Header row, units row and data rows of a network table, bound to the canonical columns."""
+    label = cells.label
+    rows = cells.rows
+    header_index, found = None, {}
+    for i, row in enumerate(rows[:_HEADER_SCAN_ROWS]):
+        m = {j: _match(t, mapping) for j, t in enumerate(_text(c) for c in row) if t}
+        m = {j: x for j, x in m.items() if x[0] is not None}
+        if sum(1 for x in m.values() if x[0] != IGNORE) >= 2:
+            header_index, found = i, m
+            break
+    if header_index is None:
+        raise InputError(f"no header row found: a network table needs columns {', '.join(NETWORK_COLUMNS[:3])} "
+                         "and area or duty", file=label)
+    header_cells = [" ".join(_text(c).split()) for c in rows[header_index]]
+    headers = tuple(t for t in header_cells if t)
+    header_row = header_index + 1
+    for foreign in mapping:
+        key = normalise_name(foreign)
+        if not any(key == normalise_name(n) for t in headers for n, _ in split_header(t)):
+            raise InputError(f"column mapping: there is no column '{foreign}'; columns found: {', '.join(headers)}",
+                             file=label, row=header_row)
+    bound: dict[str, tuple[int, str, str | None]] = {}
+    for j, (target, unit) in sorted(found.items()):
+        if target == IGNORE:
+            continue
+        if target in bound:
+            raise InputError(f"two columns give {target}: '{header_cells[bound[target][0]]}' and "
+                             f"'{header_cells[j]}'; keep one (or map one to '-')", file=label, row=header_row,
+                             column=header_cells[j])
+        bound[target] = (j, header_cells[j], unit)
+    missing = [c for c in ("unit", "hot", "cold") if c not in bound]
+    if "area" not in bound and "duty" not in bound:
+        missing.append("area or duty")
+    if missing:
+        raise InputError(f"missing required column(s) {', '.join(missing)}; columns found: {', '.join(headers)}",
+                         file=label, row=header_row)
+    start = header_index + 1
+    units_row = None
+    units: dict[str, str | None] = {}
+    if start < len(rows):
+        cand = [_text(c) for c in rows[start]]
+        is_units, any_unit = True, False
+        for target, (j, _, _) in bound.items():
+            t = cand[j] if j < len(cand) else ""
+            if not t:
+                continue
+            if target not in _KINDS:
+                if not _UNIT_LABEL.match(t):
+                    is_units = False
+                    break
+            elif _looks_number(t):
+                is_units = False
+                break
+            else:
+                any_unit = True
+        if is_units and any_unit:
+            units_row = start + 1
+            units = {target: (cand[j] if j < len(cand) else "") or None for target, (j, _, _) in bound.items()}
+            start += 1
+    data = rows[start:]
+    positions = [j for j, _, _ in bound.values()]
+    keep = [k for k, row in enumerate(data) if any(_text(row[j]) for j in positions if j < len(row))]
+    if not keep:
+        raise InputError("no data rows under the header", file=label, row=units_row or header_row)
+    out: dict[str, TableColumn] = {}
+    for target, (j, header, head_unit) in bound.items():
+        unit, conversion = head_unit, None
+        if target in _KINDS:
+            try:
+                conversion = parse_unit(head_unit, _KINDS[target])
+            except InputError as e:
+                raise e.located(file=label, row=header_row, column=header) from None
+            row_unit = units.get(target)
+            if row_unit is not None:
+                try:
+                    row_conv = parse_unit(row_unit, _KINDS[target])
+                except InputError as e:
+                    raise e.located(file=label, row=units_row, column=header) from None
+                if head_unit is None:
+                    unit, conversion = row_unit, row_conv
+                elif (row_conv.subtract, row_conv.multiply, row_conv.divide, row_conv.add) != \
+                        (conversion.subtract, conversion.multiply, conversion.divide, conversion.add):
+                    raise InputError(f"the header gives unit '{head_unit}' but the units row gives '{row_unit}'",
+                                     file=label, row=units_row, column=header)
+        elif head_unit is not None and target in ("hot_order", "cold_order", "shells"):
+            unit = None
+        col_cells = [data[k][j] if j < len(data[k]) else "" for k in keep]
+        out[target] = TableColumn(target, header, j, unit, conversion, col_cells)
+    return Table(cells.source, cells.sheet, header_row, units_row, out, np.asarray(keep, dtype=np.int64) + start + 1,
+                 headers, cells.decimal_comma)
+
+
+# --------------------------------------------------------------------------------------------------
+# rows → units
+
+
+def _optional(table: Table, name: str, what: str) -> np.ndarray:
+    return table.numbers(name, required=False, what=what) if name in table else np.full(len(table), np.nan)
+
+
+def _whole(table: Table, values: np.ndarray, name: str, what: str) -> list[int | None]:
+    out: list[int | None] = []
+    for i, v in enumerate(values.tolist()):
+        if v != v:
+            out.append(None)
+            continue
+        if not (v >= 1 and float(v).is_integer()):
+            raise table.error(f"{what} must be a whole number >= 1, got {_text(table.columns[name].cells[i])}",
+                              index=i, column=name)
+        out.append(int(v))
+    return out
+
+
+def _units(table: Table) -> list[ExistingUnit]:
+    names = table.text("unit")
+    hot = table.text("hot")
+    cold = table.text("cold")
+    area = _optional(table, "area", "area")
+    duty = _optional(table, "duty", "duty")
+    u = _optional(table, "U", "overall coefficient U")
+    hot_order = _whole(table, _optional(table, "hot_order", "hot_order"), "hot_order",
+                       "hot_order (position along the hot stream from its supply end)")
+    cold_order = _whole(table, _optional(table, "cold_order", "cold_order"), "cold_order",
+                        "cold_order (position along the cold stream from its supply end)")
+    shells = _whole(table, _optional(table, "shells", "shells"), "shells", "shells")
+    types = table.text("type") if "type" in table else [""] * len(table)
+    out = []
+    for i in range(len(table)):
+        for column, values, what in (("unit", names, "unit name"), ("hot", hot, "hot side (a hot stream or "
+                                     "hot utility)"), ("cold", cold, "cold side (a cold stream or cold utility)")):
+            if not values[i]:
+                raise table.error(f"empty cell: the {what} is required", index=i, column=column)
+        if area[i] != area[i] and duty[i] != duty[i]:
+            raise table.error(f"unit '{names[i]}' has neither area nor duty; give one of them", index=i,
+                              column="area" if "area" in table else "duty")
+        for column, values, unit in (("area", area, "m²"), ("duty", duty, "kW"), ("U", u, "kW/(m²·K)")):
+            if values[i] == values[i] and not values[i] > 0:
+                raise table.error(f"{column} must be > 0 {unit}, got {_text(table.columns[column].cells[i])}",
+                                  index=i, column=column)
+        if types[i]:
+            arrangement = _TYPES.get(normalise_name(types[i]))
+            if arrangement is None:
+                raise table.error(f"unknown type {types[i]!r}; allowed: counter-current, co-current, 1-2 "
+                                  "(shell-and-tube)", index=i, column="type")
+        elif shells[i] is not None and shells[i] > 1:
+            arrangement = FlowArrangement.SHELL_AND_TUBE_1_2
+        else:
+            arrangement = FlowArrangement.COUNTER_CURRENT
+        try:
+            out.append(ExistingUnit(names[i], hot[i], cold[i], area=_or_none(area[i]), duty=_or_none(duty[i]),
+                                    u=_or_none(u[i]), arrangement=arrangement,
+                                    shells=1 if shells[i] is None else shells[i], hot_position=hot_order[i],
+                                    cold_position=cold_order[i], row=int(table.rows[i])))
+        except InputError as e:
+            raise table.locate(e, i) from None
+    return out
+
+
+def _or_none(x: float) -> float | None:
+    return None if x != x else float(x)
