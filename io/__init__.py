@@ -1,6 +1,6 @@
 """Reading stream, utility and cost tables; writing results, figures and reports (installed as heatloom.io)."""
 
-from .costs import costs_from_mapping, read_costs
+from .costs import costs_from_mapping, read_costs, read_retrofit_costs, retrofit_costs_from_mapping
 from .export import OutputDirectory, to_jsonable
 from .network_table import NETWORK_ALIASES, NETWORK_COLUMNS, read_network
 from .points import DEFAULT_FIT_TOLERANCE, fit_points, fit_vertices
@@ -24,6 +24,8 @@ __all__ = [
     "read_streams",
     "read_utilities",
     "read_costs",
+    "read_retrofit_costs",
+    "retrofit_costs_from_mapping",
     "read_network",
     "NETWORK_COLUMNS",
     "NETWORK_ALIASES",

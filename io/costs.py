@@ -22,6 +22,17 @@ converted) and ``hours_per_year`` default to :mod:`heatloom.network.data`.  Ever
 :class:`~heatloom.errors.InputError` naming the file and the key (in its ``column`` field, e.g.
 ``exchanger.per_area``), and for workbooks the row.
 
+The optional ``retrofit`` section prices the changes of ``heatloom retrofit``
+(:class:`heatloom.network.retrofit.RetrofitCosts`), as installed capital [money] whatever ``annualised``
+says; every key is optional (defaults in :mod:`heatloom.network.data`, illustrative)::
+
+      "retrofit": {"new_exchanger": {"fixed": 15000, "per_area": 1000, "exponent": 0.8},
+                   "added_area": {"fixed": 5000, "per_area": 1000, "exponent": 0.8},
+                   "repipe": 8000, "resequence": 8000}
+
+In a workbook its keys are written ``retrofit.repipe`` and ``retrofit.added_area.per_area``.  The section
+is checked by :func:`costs_from_mapping` and read by :func:`retrofit_costs_from_mapping`.
+
 Cost figures are screening estimates; designs must be checked by qualified, licensed engineers.
 """
 
@@ -37,11 +48,15 @@ from ..errors import InputError
 from ..network import data
 from ..network.cost import CostLaw, CostSettings
 
-__all__ = ["TOP_KEYS", "LAW_KEYS", "read_costs", "costs_from_mapping"]
+__all__ = ["TOP_KEYS", "LAW_KEYS", "RETROFIT_KEYS", "read_costs", "costs_from_mapping", "read_retrofit_costs",
+           "retrofit_costs_from_mapping"]
 
 TOP_KEYS = ("currency", "annualised", "exchanger", "heater", "cooler", "interest_rate", "years",
-            "hours_per_year")
+            "hours_per_year", "retrofit")
 """Keys allowed at the top of a costs file."""
+
+RETROFIT_KEYS = ("new_exchanger", "added_area", "repipe", "resequence")
+"""Keys allowed in the optional ``retrofit`` section: two cost laws and two fixed costs [money]."""
 
 LAW_KEYS = ("fixed", "per_area", "exponent")
 """Keys allowed in a cost law (``exchanger``, ``heater``, ``cooler``)."""
@@ -128,6 +143,8 @@ def costs_from_mapping(mapping, *, source: str | os.PathLike | None = None,
                 " (true if the cost laws already give money per year, false if they give installed capital)"
                 if key == "annualised" else " (the cost law fixed + per_area·A^exponent, A in m²)"),
                 source, key, rows)
+    if mapping.get("retrofit") is not None:
+        retrofit_costs_from_mapping(mapping, source=source, rows=rows)      # checked here, read when needed
     kwargs: dict = {}
     annualised = mapping["annualised"]
     if not isinstance(annualised, bool):
@@ -225,6 +242,15 @@ def _parse_xlsx(path: Path):
                                  column=key)
             rows[key] = i
             parts = key.split(".")
+            if len(parts) == 3 and parts[0] == "retrofit" and all(parts):
+                section = out.setdefault("retrofit", {})
+                if not isinstance(section, dict) or not isinstance(section.setdefault(parts[1], {}), dict):
+                    raise InputError(f"'{parts[0]}.{parts[1]}' is given both as a value and as a law",
+                                     file=str(path), row=i, column=key)
+                section[parts[1]][parts[2]] = _xlsx_value(value)
+                rows.setdefault("retrofit", i)
+                rows.setdefault(f"retrofit.{parts[1]}", i)
+                continue
             if len(parts) > 2 or not all(parts):
                 raise InputError(f"key '{key}' is not of the form name or law.name", file=str(path), row=i,
                                  column=key)
@@ -266,6 +292,12 @@ def read_costs(path: str | os.PathLike) -> CostSettings:
         (0, 1.5], or ``annualised: false`` without ``interest_rate`` and ``years``.
     """
     p = Path(path)
+    parsed, rows = _parse_file(p)
+    return costs_from_mapping(parsed, source=p, rows=rows)
+
+
+def _parse_file(p: Path):
+    """The parsed mapping of a costs file and, for workbooks, the row of each key."""
     if not p.is_file():
         raise InputError("costs file not found" if not p.exists() else "not a file", file=str(p))
     suffix = p.suffix.lower()
@@ -295,4 +327,63 @@ def read_costs(path: str | os.PathLike) -> CostSettings:
                     raise InputError("neither JSON nor YAML (use .json, .yaml or .xlsx)", file=str(p)) from None
                 if not isinstance(parsed, Mapping):
                     raise InputError("neither JSON nor YAML holding a mapping of cost keys", file=str(p)) from None
-    return costs_from_mapping(parsed, source=p, rows=rows)
+    return parsed, rows
+
+
+def retrofit_costs_from_mapping(mapping, *, source: str | os.PathLike | None = None,
+                                rows: Mapping[str, int] | None = None):
+    """The retrofit cost laws of a parsed costs mapping (its ``retrofit`` section; defaults when absent).
+
+    Parameters
+    ----------
+    mapping : Mapping
+        The whole parsed costs file (see the module docstring).
+    source : str or path, optional
+    rows : mapping of str to int, optional
+
+    Returns
+    -------
+    heatloom.network.retrofit.RetrofitCosts
+
+    Examples
+    --------
+    >>> c = retrofit_costs_from_mapping({"retrofit": {"repipe": 12000,
+    ...                                  "added_area": {"fixed": 3000, "per_area": 900, "exponent": 0.7}}})
+    >>> c.repipe, c.added_area.per_area, c.resequence
+    (12000.0, 900.0, 8000.0)
+    """
+    from ..network.retrofit import RetrofitCosts
+
+    section = mapping.get("retrofit") if isinstance(mapping, Mapping) else None
+    if section is None:
+        return RetrofitCosts()
+    if not isinstance(section, Mapping):
+        raise _error(f"'retrofit' must be a mapping with keys {', '.join(RETROFIT_KEYS)}, got {section!r}",
+                     source, "retrofit", rows)
+    _unknown(section, RETROFIT_KEYS, "retrofit", source, rows)
+    kwargs = {}
+    for key in ("new_exchanger", "added_area"):
+        if section.get(key) is not None:
+            kwargs[key] = _law(section[key], f"retrofit.{key}", source, rows)
+    for key in ("repipe", "resequence"):
+        if section.get(key) is not None:
+            kwargs[key] = _number(section[key], f"retrofit.{key}", source, rows)
+    return RetrofitCosts(**kwargs)
+
+
+def read_retrofit_costs(path: str | os.PathLike):
+    """Read the ``retrofit`` section of a costs file (defaults when it has none); the rest is checked too.
+
+    Returns
+    -------
+    heatloom.network.retrofit.RetrofitCosts
+
+    Raises
+    ------
+    InputError
+        As :func:`read_costs`, and for unknown keys or bad values in the ``retrofit`` section.
+    """
+    p = Path(path)
+    parsed, rows = _parse_file(p)
+    costs_from_mapping(parsed, source=p, rows=rows)
+    return retrofit_costs_from_mapping(parsed, source=p, rows=rows)

@@ -48,6 +48,16 @@ from .milp import (
 )
 from .placement import PlacedUnit, Placement, Side, stage_model
 from .rating import Rating, effectiveness_from_ntu, max_effectiveness, ntu_from_effectiveness, rate_exchanger
+from .retrofit import (
+    Change,
+    ChangeKind,
+    Retrofit,
+    RetrofitCosts,
+    RetrofitOption,
+    annuity_factor,
+    apply_changes,
+    retrofit_options,
+)
 from .segments import SegmentedSizing, SizingInterval, cut_profile, size_segments
 from .simulate import Simulation, UnitState, simulate
 from .sizing import (
@@ -85,4 +95,6 @@ __all__ = [
     "area_efficiency", "cross_pinch", "diagnose", "existing_dt_min", "network_pinch", "retrofit_curve",
     "ExistingNetwork", "ExistingUnit", "OperatingMode", "UnitRole", "heat_between", "temperature_after",
     "Simulation", "UnitState", "simulate",
+    "Change", "ChangeKind", "Retrofit", "RetrofitCosts", "RetrofitOption", "annuity_factor", "apply_changes",
+    "retrofit_options",
 ]

@@ -117,3 +117,31 @@ condensing steam; illustrative)."""
 DEFAULT_COLD_UTILITY_FILM_COEFFICIENT = 2.0
 """Film coefficient of the assumed cold utility [kW/(m²·K)] (common practice order of magnitude for
 cooling water in tubes; illustrative)."""
+
+# --------------------------------------------------------------------------------------------------
+# retrofit (heatloom.network.retrofit): illustrative defaults, common practice, not a quotation
+
+RETROFIT_NEW_EXCHANGER_COST_LAW = MappingProxyType({"fixed": 15_000.0, "per_area": 1_000.0, "exponent": 0.8})
+"""Installed capital of a new exchanger added to an existing plant, fixed + per_area·A^exponent [money],
+A in m² (illustrative default: the new-build law of :data:`EXCHANGER_COST_LAW` with a premium for
+working in a running plant, tie-ins, foundations and piping; not a quotation)."""
+
+RETROFIT_ADDED_AREA_COST_LAW = MappingProxyType({"fixed": 5_000.0, "per_area": 1_000.0, "exponent": 0.8})
+"""Installed capital of area added to an existing unit (an extra shell or a bigger bundle),
+fixed + per_area·ΔA^exponent [money], ΔA in m²; ``fixed`` is the installation cost paid whatever the
+area (illustrative default, not a quotation)."""
+
+RETROFIT_REPIPE_COST = 8_000.0
+"""Installed capital of repiping one side of an existing unit to another stream [money] (illustrative
+default, not a quotation)."""
+
+RETROFIT_RESEQUENCE_COST = 8_000.0
+"""Installed capital of moving an existing unit to another position along one of its streams [money]
+(illustrative default, not a quotation)."""
+
+__all__ += [
+    "RETROFIT_NEW_EXCHANGER_COST_LAW",
+    "RETROFIT_ADDED_AREA_COST_LAW",
+    "RETROFIT_REPIPE_COST",
+    "RETROFIT_RESEQUENCE_COST",
+]

@@ -1,0 +1,127 @@
+"""The `heatloom retrofit` command: JSON shape, the case study end to end, files, refusals.
+
+Run through a parser built with heatloom.commands.retrofit.register (added to the command list here when
+heatloom.cli does not list it yet). The case study data are invented (case_studies/existing_network); the
+published facts behind the numbers are checked in tests/network/test_retrofit.py.
+"""
+
+from __future__ import annotations
+
+import json
+import shutil
+from pathlib import Path
+
+import openpyxl
+import pandas as pd
+import pytest
+
+import heatloom.cli as cli
+
+ROOT = Path(__file__).resolve().parents[2]
+CASE = ROOT / "case_studies" / "existing_network"
+FAST = ("--sizes", "0.5,1", "--max-candidates", "5")
+
+
+@pytest.fixture(autouse=True)
+def with_retrofit(monkeypatch):
+    if "retrofit" not in cli.COMMANDS:
+        monkeypatch.setattr(cli, "COMMANDS", cli.COMMANDS + ("retrofit",))
+
+
+def run(capsys, *args):
+    code = cli.main([str(a) for a in args])
+    out = capsys.readouterr()
+    return code, out.out, out.err
+
+
+@pytest.fixture
+def workbook_case(tmp_path):
+    """The case study as a plant workbook: streams, utilities and network on sheets of .xlsx files."""
+    folder = tmp_path / "plant"
+    folder.mkdir()
+    for name in ("streams", "utilities", "network"):
+        frame = pd.read_csv(CASE / f"{name}.csv")
+        with pd.ExcelWriter(folder / f"{name}.xlsx", engine="openpyxl") as xw:
+            frame.to_excel(xw, sheet_name=name, index=False)
+    shutil.copy(CASE / "costs.json", folder / "costs.json")
+    return folder
+
+
+def test_json_shape_on_the_case_folder(capsys):
+    code, out, err = run(capsys, "retrofit", CASE, "--json", *FAST)
+    assert code == 0
+    data = json.loads(out)
+    assert {"current", "targets", "area_efficiency", "cross_pinch", "options"} <= set(data)
+    assert set(data["current"]) >= {"hot_utility", "cold_utility"}
+    assert set(data["targets"]) >= {"hot_utility", "cold_utility"}
+    assert data["targets"]["hot_utility"] == pytest.approx(150.0)          # case README, ΔTmin 10 K
+    assert data["current"]["hot_utility"] == pytest.approx(995.16, abs=0.01)
+    assert data["cross_pinch"]["E-101"] == pytest.approx(350.0, abs=0.5)    # case README: 350 kW
+    assert 0 < data["area_efficiency"]["alpha"] < 1
+    assert data["options"]
+    npv = [o["npv"] for o in data["options"]]
+    assert npv == sorted(npv, reverse=True)
+    for o in data["options"]:
+        assert {"changes", "saving", "saving_per_year", "investment", "payback_years", "npv", "network"} <= set(o)
+        assert all(isinstance(c, str) and c for c in o["changes"])
+        assert o["payback_years"] == pytest.approx(o["investment"] / o["saving_per_year"])
+        net = o["network"]
+        assert {"exchangers", "heaters", "coolers", "hot_utility", "cold_utility", "units"} <= set(net)
+        assert net["hot_utility"] == pytest.approx(data["current"]["hot_utility"] - o["saving"])
+    assert data["interest_rate"] == 0.08 and data["years"] == 8                 # from the case's costs.json
+
+
+def test_budget_and_payback_in_json(capsys):
+    code, out, _ = run(capsys, "retrofit", CASE, "--json", "--budget", "30000", "--max-payback", "0.5", *FAST)
+    assert code == 0
+    for o in json.loads(out)["options"]:
+        assert o["investment"] <= 30000 * 1.001
+        assert o["payback_years"] <= 0.5 * 1.001
+
+
+def test_spreadsheet_to_ranked_costed_options_with_figures(capsys, workbook_case, tmp_path):
+    out_dir = tmp_path / "results"
+    code, out, err = run(capsys, "retrofit", workbook_case, "--out", out_dir, *FAST)
+    assert code == 0
+    assert "options ranked by net present value" in out and "rank" in out
+    for name in ("retrofit.json", "retrofit_options.csv", "retrofit_changes.csv", "retrofit.xlsx",
+                 "retrofit_grid_existing.png", "retrofit_grid_existing.svg", "retrofit_grid_proposed.png",
+                 "retrofit_grid_proposed.svg", "retrofit_savings.png", "retrofit_savings.svg"):
+        assert (out_dir / name).stat().st_size > 0, name
+    options = pd.read_csv(out_dir / "retrofit_options.csv")
+    data = json.loads((out_dir / "retrofit.json").read_text(encoding="utf-8"))
+    assert len(options) == len(data["options"]) > 0
+    assert options["rank"].tolist() == list(range(1, len(options) + 1))
+    wb = openpyxl.load_workbook(out_dir / "retrofit.xlsx", read_only=True)
+    assert {"options", "changes", "existing units"} <= set(wb.sheetnames)
+    wb.close()
+    # a second run does not overwrite without --force, and does with it
+    code, _, err = run(capsys, "retrofit", workbook_case, "--out", out_dir, *FAST)
+    assert code == 2 and "already exists" in err
+    code, _, _ = run(capsys, "retrofit", workbook_case, "--out", out_dir, "--force", "--quiet", *FAST)
+    assert code == 0
+
+
+def test_files_given_one_by_one(capsys):
+    code, out, _ = run(capsys, "retrofit", CASE / "network.csv", "--streams", CASE / "streams.csv",
+                       "--utilities", CASE / "utilities.csv", "--dtmin", "10", "--json", *FAST)
+    assert code == 0
+    data = json.loads(out)
+    assert data["interest_rate"] == 0.1            # no costs file: the package defaults
+    assert data["options"]
+
+
+def test_missing_stream_table_is_an_input_error(capsys, tmp_path):
+    code, out, err = run(capsys, "retrofit", CASE / "network.csv")
+    assert code == 2
+    assert "no streams table: give --streams FILE" in err
+    assert out == ""
+
+
+def test_earlier_result_in_the_out_folder_is_kept(capsys, tmp_path):
+    folder = tmp_path / "case"
+    shutil.copytree(CASE, folder, ignore=shutil.ignore_patterns("outputs"))
+    (folder / "retrofit.json").write_text("{}", encoding="utf-8")
+    code, _, err = run(capsys, "retrofit", folder, "--out", folder, *FAST)
+    assert code == 2 and "already exists" in err
+    assert (folder / "retrofit.json").read_text(encoding="utf-8") == "{}"
