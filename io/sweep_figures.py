@@ -58,8 +58,10 @@ def cost_figure(sweep, *, title: str | None = None):
         ax.plot([d.dt_min for d in done], [d.total_annual_cost for d in done], marker="o", markersize=8,
                 markerfacecolor="white", markeredgecolor=STYLE["net"]["color"], linestyle="none",
                 label="designed network (total)")
-    ax.set_ylim(bottom=0)
-    ax.legend(frameon=False, fontsize=STYLE["font_size"] - 1, loc="best")
+    ax.set_ylim(bottom=0, top=ax.get_ylim()[1] * 1.12)   # headroom for the optimum's label
+    # legends go under the axes, where no curve can sit
+    ax.legend(frameon=False, fontsize=STYLE["font_size"] - 1, loc="upper center", bbox_to_anchor=(0.5, -0.14),
+              ncol=4)
     fig.tight_layout()
     return fig
 
@@ -88,6 +90,6 @@ def targets_figure(sweep, *, title: str | None = None):
     for xs in _unit_steps(sweep):
         ax.axvline(xs, **STYLE["pinch"])
     ax.legend(lines, [ln.get_label() for ln in lines], frameon=False, fontsize=STYLE["font_size"] - 1,
-              loc="upper center")
+              loc="upper center", bbox_to_anchor=(0.5, -0.14), ncol=3)
     fig.tight_layout()
     return fig
