@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import argparse
+import sys
 
 from .common import (
     SAFETY_NOTE,
@@ -23,6 +24,12 @@ examples:
   heatloom design streams.csv --dtmin 10
   heatloom design streams.csv --dtmin 10 --utilities utilities.csv --costs costs.json --out results
   heatloom design table.csv --dtmin 20 --default-h 0.5 --json
+  heatloom design streams.csv --mode tac --utilities utilities.csv --costs costs.json --time-limit 300
+  heatloom design streams.csv --mode tac --emat 2 --seed 7 --starts 2 --rounds 40 --json
+
+--mode tac searches for the lowest total annual cost: no ΔTmin, only the exchanger minimum approach
+temperature (--emat, default 1 K) at both ends of every unit; --time-limit bounds the whole run, and the
+same --seed, --starts and --rounds give the same network when the time limit is not reached.
 
 Areas need a film coefficient h for every stream and utility (column h, kW/(m²·K)); --default-h assumes
 one where it is missing, and the output says so.
@@ -39,22 +46,76 @@ def register(sub) -> None:
     p.add_argument("file", metavar="FILE", help="stream table: CSV or .xlsx (film coefficients in column h)")
     add_shared(p)
     add_table_options(p)
-    p.add_argument("--mode", choices=["mer"], default="mer",
-                   help="mer: maximum energy recovery with the fewest units (default)")
+    p.add_argument("--mode", choices=["mer", "tac"], default="mer",
+                   help="mer: maximum energy recovery with the fewest units (default); tac: lowest total "
+                        "annual cost (stagewise MILP topologies refined against the exact cost)")
     p.add_argument("--costs", metavar="FILE", help="cost laws and annualisation (JSON, YAML or .xlsx)")
     p.add_argument("--default-h", type=positive, metavar="H",
                    help="film coefficient [kW/(m²·K)] assumed for streams and utilities without one")
     p.add_argument("--solver", choices=["highs", "cbc"], default=None,
                    help="MILP solver (default: HiGHS when installed, else CBC)")
-    p.add_argument("--time-limit", type=positive, default=60.0, metavar="S",
-                   help="time limit of each solve [s] (default 60 s)")
+    p.add_argument("--time-limit", type=positive, default=None, metavar="S",
+                   help="mer: time limit of each solve [s] (default 60 s); tac: of the whole run [s] "
+                        "(default 120 s)")
+    tac = p.add_argument_group("--mode tac")
+    tac.add_argument("--emat", type=positive, default=None, metavar="K",
+                     help=f"exchanger minimum approach temperature at both ends of every unit [K] "
+                          f"(default {DEFAULT_EMAT:g} K)")
+    tac.add_argument("--seed", type=int, default=0, metavar="N", help="seed of the search (default 0)")
+    tac.add_argument("--starts", type=_whole(1), default=2, metavar="N",
+                     help="independent searches run side by side on local processes (default 2)")
+    tac.add_argument("--rounds", type=_whole(0), default=40, metavar="N",
+                     help="kicks of the iterated local search per start (default 40)")
     p.set_defaults(handler=run)
 
-def format_network(net, source: str, dt_note: str) -> str:
+
+DEFAULT_EMAT = 1.0
+"""Default EMAT of --mode tac [K]; the same as heatloom.network.tac.DEFAULT_EMAT (kept here so that the
+parser does not import the numerical modules)."""
+TAC_TIME_LIMIT = 120.0
+"""Default wall-clock limit of a --mode tac run [s]."""
+
+
+def _whole(low: int):
+    def parse(text: str) -> int:
+        try:
+            n = int(text)
+        except ValueError:
+            raise argparse.ArgumentTypeError(f"expected a whole number, got {text!r}") from None
+        if n < low:
+            raise argparse.ArgumentTypeError(f"must be >= {low}, got {n}")
+        return n
+    return parse
+
+
+class _Progress:
+    """A tqdm bar on stderr: epochs of the search, with the best total annual cost so far."""
+
+    def __init__(self, enabled: bool, currency: str = ""):
+        self.enabled = enabled
+        self.bar = None
+        self.currency = currency
+
+    def __call__(self, best: float, done: int, total: int) -> None:
+        if not self.enabled:
+            return
+        if self.bar is None:
+            from tqdm import tqdm
+
+            self.bar = tqdm(total=total, desc="heatloom design --mode tac", unit="epoch", file=sys.stderr,
+                            leave=False)
+        self.bar.n = done
+        self.bar.set_postfix_str(f"best TAC {best:,.0f} {self.currency}/yr")
+
+    def close(self) -> None:
+        if self.bar is not None:
+            self.bar.close()
+
+def format_network(net, source: str, dt_note: str, approach: str = "ΔTmin") -> str:
     """The human summary of a design: one line per unit, then the costs."""
     cur = net.currency
     lines = [f"heatloom design: {source}",
-             f"  ΔTmin {net.dt_min:g} K ({dt_note}); {net.units} units"
+             f"  {approach} {net.dt_min:g} K ({dt_note}); {net.units} units"
              + (f" (minimum-units target {net.unit_target})" if net.unit_target is not None else ""),
              f"  hot utility {fmt(net.hot_utility)}, cold utility {fmt(net.cold_utility)}, "
              f"heat recovery {fmt(net.heat_recovery)}",
@@ -90,15 +151,25 @@ def format_network(net, source: str, dt_note: str) -> str:
 
 
 def run(args) -> int:
-    from ..network import design_mer
+    from ..errors import InputError
 
+    tac = args.mode == "tac"
+    if tac and args.dtmin is not None:
+        raise InputError("--dtmin does not apply to --mode tac: the TAC design has no ΔTmin, only the exchanger "
+                         "minimum approach (give --emat K)")
+    if not tac and args.emat is not None:
+        raise InputError("--emat applies to --mode tac only (--mode mer uses --dtmin)")
     streams, utilities = read_inputs(args)
     costs = None
     if args.costs:
         from ..io import read_costs
 
         costs = read_costs(args.costs)
-    dt_min, dt_note = dt_min_of(args)
+    if tac:
+        dt_min, dt_note = (DEFAULT_EMAT, "EMAT default for --mode tac; set with --emat") if args.emat is None \
+            else (args.emat, "EMAT given")
+    else:
+        dt_min, dt_note = dt_min_of(args)
     out = None
     if args.out:
         from ..io.export import OutputDirectory
@@ -106,11 +177,31 @@ def run(args) -> int:
         out = OutputDirectory(args.out, [p for p in (args.file, args.utilities, args.costs) if p],
                               force=args.force)
         out.check(["network.json", "network.csv", "network.xlsx", "grid_diagram.png", "grid_diagram.svg"])
-    net = design_mer(streams, dt_min, utilities, costs=costs, solver=args.solver, time_limit=args.time_limit,
-                     default_film_coefficient=args.default_h)
+    if tac:
+        from ..network import data as network_data
+        from ..network.tac import design_tac
+
+        bar = _Progress(not (args.quiet or args.json), costs.currency if costs is not None else network_data.CURRENCY)
+        try:
+            net = design_tac(streams, utilities, costs=costs, emat=dt_min,
+                             time_limit=args.time_limit or TAC_TIME_LIMIT, seed=args.seed, starts=args.starts,
+                             rounds=args.rounds, solver=args.solver, default_film_coefficient=args.default_h,
+                             progress=bar)
+        finally:
+            bar.close()
+    else:
+        from ..network import design_mer
+
+        net = design_mer(streams, dt_min, utilities, costs=costs, solver=args.solver,
+                         time_limit=args.time_limit or 60.0, default_film_coefficient=args.default_h)
     result = net.to_dict()
     result["source"] = str(args.file)
     result["mode"] = args.mode
+    if tac:
+        result["emat"] = dt_min
+        result["seed"] = args.seed
+        result["starts"] = args.starts
+        result["rounds"] = args.rounds
     if out is not None:
         from ..io.figures import grid_diagram
 
@@ -119,6 +210,6 @@ def run(args) -> int:
         out.csv("network.csv", frame)
         out.workbook("network.xlsx", {"units": frame, "streams": streams.to_frame()})
         out.figures("grid_diagram", grid_diagram(net, streams))
-    return finish(args, result, format_network(net, str(args.file), dt_note), out)
+    return finish(args, result, format_network(net, str(args.file), dt_note, "EMAT" if tac else "ΔTmin"), out)
 
 

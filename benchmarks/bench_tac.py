@@ -1,0 +1,103 @@
+"""TAC design on the published benchmark problems: our total annual cost against the best published one.
+
+For every tests/data/references/synthesis_*.json (streams with CP and h, utilities with prices and h, a cost
+law, published TACs best first, and their source), runs `heatloom.network.tac.design_tac` with the file's
+cost law (annualised) at EMAT 1 K and prints: our TAC, the best published TAC and who published it, their
+ratio, units, stream splits, wall time on this machine, and the seed.  Targets: ratio <= 1.00 on problems of
+up to 10 streams, <= 1.01 on 15-40 streams, each run under 5 minutes.  Asserts nothing; run:
+
+    python benchmarks/bench_tac.py [--time-limit 290] [--seed 0] [--starts 2] [--rounds N] [--only NAME]
+
+Without --rounds the search runs until the time limit (results then depend on the machine's speed).
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import re
+import sys
+import time
+from pathlib import Path
+
+from heatloom.model import Stream, StreamTable, Utility, UtilityKind
+from heatloom.network.cost import CostLaw, CostSettings
+from heatloom.network.tac import design_tac
+
+REFERENCES = Path(__file__).resolve().parents[1] / "tests" / "data" / "references"
+LAW = re.compile(r"\s*(?:(?P<fixed>[\d.]+)\s*\+\s*)?(?P<per_area>[\d.]+)\s*\*\s*A(?:\s*\*\*\s*(?P<exp>[\d.]+))?"
+                 r"\s*per year\s*")
+
+
+def cost_law(text: str) -> CostLaw:
+    """'8600 + 670*A**0.83 per year' → CostLaw(8600, 670, 0.83)."""
+    m = LAW.fullmatch(text)
+    if not m:
+        raise ValueError(f"cannot read the cost law {text!r}")
+    return CostLaw(float(m["fixed"] or 0.0), float(m["per_area"]), float(m["exp"] or 1.0))
+
+
+def problem(path: Path):
+    """Streams, utilities (°C) and cost settings of a reference file."""
+    data = json.loads(path.read_text(encoding="utf-8"))
+    off = -273.15 if data.get("temperature_unit", "degC") in ("K", "kelvin") else 0.0
+    streams = StreamTable(tuple(Stream.simple(s["name"], s["T_supply"] + off, s["T_target"] + off, s["CP"],
+                                              film_coefficient=s.get("h")) for s in data["streams"]))
+    utilities = [Utility(u["name"], u["T_supply"] + off, u["T_target"] + off, u["cost_per_kW_year"],
+                         UtilityKind.HOT if u["name"] == "HU" else UtilityKind.COLD, u.get("h"))
+                 for u in data["utilities"]]
+    laws = data["cost_law"]
+    if "all_units" in laws:
+        costs = CostSettings(annualised=True, exchanger=cost_law(laws["all_units"]))
+    else:
+        costs = CostSettings(annualised=True, exchanger=cost_law(laws["exchangers_and_coolers"]),
+                             heater=cost_law(laws["heaters"]), cooler=cost_law(laws["exchangers_and_coolers"]))
+    return data, streams, utilities, costs
+
+
+def splits(net) -> int:
+    """Stream splits: (stream, stage) pairs with more than one branch."""
+    seen = set()
+    for e in net.exchangers:
+        if e.hot_fraction < 1 - 1e-9:
+            seen.add((e.hot, e.stage))
+        if e.cold_fraction < 1 - 1e-9:
+            seen.add((e.cold, e.stage))
+    return len(seen)
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--time-limit", type=float, default=290.0)
+    ap.add_argument("--seed", type=int, default=0)
+    ap.add_argument("--starts", type=int, default=2)
+    ap.add_argument("--rounds", type=int, default=None)
+    ap.add_argument("--only", default=None, help="run only the reference files whose name contains this")
+    args = ap.parse_args()
+    rows = []
+    header = (f"{'problem':<34} {'streams':>7} {'our TAC':>12} {'best published':>14} {'ratio':>7} {'target':>6} "
+              f"{'units':>5} {'splits':>6} {'wall [s]':>8} {'seed':>4}  best published by")
+    print(header)
+    for path in sorted(REFERENCES.glob("synthesis_*.json")):
+        if args.only and args.only not in path.stem:
+            continue
+        data, streams, utilities, costs = problem(path)
+        who, best = data["published_tac"][0]
+        t0 = time.perf_counter()
+        net = design_tac(streams, utilities, costs=costs, emat=1.0, time_limit=args.time_limit, seed=args.seed,
+                         starts=args.starts, rounds=args.rounds if args.rounds is not None else 10 ** 6)
+        wall = time.perf_counter() - t0
+        n = len(streams)
+        goal = 1.00 if n <= 10 else 1.01
+        ratio = net.total_annual_cost / best
+        row = (f"{path.stem.removeprefix('synthesis_'):<34} {n:>7} {net.total_annual_cost:>12,.0f} {best:>14,.0f} "
+               f"{ratio:>7.4f} {goal:>6.2f} {net.units:>5} {splits(net):>6} {wall:>8.1f} {args.seed:>4}  {who}")
+        print(row, flush=True)
+        rows.append(row)
+        for note in net.notes:
+            if note.startswith(("TAC search", "the time limit")):
+                print(f"    {note}", file=sys.stderr)
+
+
+if __name__ == "__main__":
+    main()

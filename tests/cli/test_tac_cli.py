@@ -1,0 +1,131 @@
+"""`heatloom design --mode tac`: the JSON shape of --mode mer, EMAT stated, progress on stderr, refusals.
+
+Data: the two hot / two cold problem of Yee & Grossmann (1990) as given by Roetzel, Luo & Chen 2020,
+Design and Operation of Heat Exchangers and their Networks, ch. 6, Table 6.16 (temperatures converted here
+from K to °C), with its published cost law 1000·A^0.6 $/yr (heaters 1200·A^0.6) and utility prices.  The
+total annual cost is recomputed independently from the printed temperatures with ht.LMTD.
+"""
+
+import json
+
+import ht
+import pytest
+
+from heatloom.cli import main
+
+K = 273.15
+STREAMS = f"""name,T_supply,T_target,CP,h
+H1,{443 - K:.2f},{333 - K:.2f},30,1.6
+H2,{423 - K:.2f},{303 - K:.2f},15,1.6
+C1,{293 - K:.2f},{408 - K:.2f},20,1.6
+C2,{353 - K:.2f},{413 - K:.2f},40,1.6
+"""
+UTILITIES = f"""name,T_supply,T_target,cost,h,kind
+HU,{450 - K:.2f},{450 - K:.2f},80,4.8,hot
+CU,{293 - K:.2f},{313 - K:.2f},20,1.6,cold
+"""
+COSTS = {"currency": "USD", "annualised": True, "exchanger": {"fixed": 0, "per_area": 1000, "exponent": 0.6},
+         "heater": {"fixed": 0, "per_area": 1200, "exponent": 0.6},
+         "cooler": {"fixed": 0, "per_area": 1000, "exponent": 0.6}}
+EXCHANGER_KEYS = {"hot", "cold", "duty", "hot_in", "hot_out", "cold_in", "cold_out", "hot_fraction",
+                  "cold_fraction", "area", "cost"}
+HEATER_KEYS = {"cold", "utility", "duty", "cold_in", "cold_out", "area", "cost"}
+COOLER_KEYS = {"hot", "utility", "duty", "hot_in", "hot_out", "area", "cost"}
+FAST = ["--starts", "1", "--rounds", "1", "--time-limit", "120"]
+
+
+@pytest.fixture
+def files(tmp_path):
+    s = tmp_path / "streams.csv"
+    s.write_text(STREAMS, encoding="utf-8")
+    u = tmp_path / "utilities.csv"
+    u.write_text(UTILITIES, encoding="utf-8")
+    c = tmp_path / "costs.json"
+    c.write_text(json.dumps(COSTS), encoding="utf-8")
+    return s, u, c
+
+
+def run(capsys, *args):
+    code = main([str(a) for a in args])
+    out = capsys.readouterr()
+    return code, out.out, out.err
+
+
+def test_json_shape_emat_and_independent_tac(capsys, files):
+    s, u, c = files
+    code, out, err = run(capsys, "design", s, "--mode", "tac", "--utilities", u, "--costs", c, "--json", *FAST)
+    assert code == 0
+    assert err == ""                       # --json: nothing on stderr, no progress bar
+    data = json.loads(out)
+    assert data["mode"] == "tac" and data["emat"] == 1.0 and data["dtmin"] == 1.0 and data["seed"] == 0
+    for e in data["exchangers"]:
+        assert EXCHANGER_KEYS <= set(e)
+    for h in data["heaters"]:
+        assert HEATER_KEYS <= set(h)
+    for x in data["coolers"]:
+        assert COOLER_KEYS <= set(x)
+    assert data["units"] == len(data["exchangers"]) + len(data["heaters"]) + len(data["coolers"])
+    assert data["total_annual_cost"] == pytest.approx(data["capital_cost"] + data["operating_cost"])
+    assert any("EMAT 1 K" in n for n in data["notes"])
+    # TAC recomputed from the printed temperatures (Roetzel, Luo & Chen 2020, Table 6.16 law and prices)
+    tac = 0.0
+    for e in data["exchangers"]:
+        area = e["duty"] / (0.8 * ht.LMTD(e["hot_in"], e["hot_out"], e["cold_in"], e["cold_out"]))
+        tac += 1000 * area ** 0.6
+    for h in data["heaters"]:
+        u_h = 1 / (1 / 4.8 + 1 / 1.6)
+        area = h["duty"] / (u_h * ht.LMTD(h["utility_in"], h["utility_out"], h["cold_in"], h["cold_out"]))
+        tac += 1200 * area ** 0.6 + 80 * h["duty"]
+    for x in data["coolers"]:
+        area = x["duty"] / (0.8 * ht.LMTD(x["hot_in"], x["hot_out"], x["utility_in"], x["utility_out"]))
+        tac += 1000 * area ** 0.6 + 20 * x["duty"]
+    assert data["total_annual_cost"] == pytest.approx(tac, rel=1e-9)
+    # every unit keeps EMAT 1 K at both ends
+    for e in data["exchangers"]:
+        assert min(e["hot_in"] - e["cold_out"], e["hot_out"] - e["cold_in"]) >= 1.0 - 1e-6
+
+
+def test_summary_states_emat_and_progress_goes_to_stderr(capsys, files):
+    s, u, c = files
+    code, out, err = run(capsys, "design", s, "--mode", "tac", "--utilities", u, "--costs", c, "--emat", "2",
+                         *FAST)
+    assert code == 0
+    assert "EMAT 2 K (EMAT given)" in out
+    assert "total annual cost" in out
+    assert "best TAC" in err               # the tqdm bar, with the best TAC so far
+    code, out, err = run(capsys, "design", s, "--mode", "tac", "--utilities", u, "--costs", c, "--quiet", *FAST)
+    assert code == 0
+    assert "EMAT 1 K (EMAT default for --mode tac" in out
+    assert err == ""
+
+
+def test_same_seed_same_network(capsys, files):
+    s, u, c = files
+    outs = []
+    for _ in range(2):
+        code, out, _ = run(capsys, "design", s, "--mode", "tac", "--utilities", u, "--costs", c, "--json",
+                           "--seed", "5", *FAST)
+        assert code == 0
+        data = json.loads(out)
+        outs.append((data["total_annual_cost"], data["exchangers"], data["heaters"], data["coolers"]))
+    assert outs[0] == outs[1]
+
+
+@pytest.mark.parametrize(("args", "message"), [
+    (["--mode", "tac", "--dtmin", "5"], "--dtmin does not apply to --mode tac"),
+    (["--mode", "mer", "--emat", "2"], "--emat applies to --mode tac only"),
+])
+def test_refusals(capsys, files, args, message):
+    s, u, c = files
+    code, out, err = run(capsys, "design", s, "--utilities", u, "--costs", c, *args)
+    assert code == 2
+    assert message in err
+    assert out == ""
+
+
+@pytest.mark.parametrize("bad", [["--starts", "0"], ["--rounds", "-1"], ["--emat", "0"]])
+def test_bad_numbers_are_usage_errors(capsys, files, bad):
+    s, u, c = files
+    with pytest.raises(SystemExit) as exc:
+        main(["design", str(s), "--mode", "tac", *bad])
+    assert exc.value.code == 2
