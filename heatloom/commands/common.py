@@ -5,12 +5,15 @@ from __future__ import annotations
 import argparse
 import sys
 from collections import Counter
+from collections.abc import Collection, Mapping
+from pathlib import Path
 
 EXIT_OK, EXIT_UNEXPECTED, EXIT_INPUT, EXIT_INFEASIBLE = 0, 1, 2, 3
 """Exit codes of every command."""
 
 __all__ = ["EXIT_OK", "EXIT_UNEXPECTED", "EXIT_INPUT", "EXIT_INFEASIBLE", "DEFAULT_DT_MIN", "SAFETY_NOTE", "positive", "positive_or_zero", "add_shared", "add_table_options",
-           "note", "read_inputs", "dt_min_of", "fmt", "solves_summary", "print_json", "finish"]
+           "note", "read_inputs", "dt_min_of", "fmt", "solves_summary", "print_json", "finish", "CASE_SUFFIXES",
+           "CASE_ROLES", "case_candidates", "find_case_files"]
 
 DEFAULT_DT_MIN = 10.0
 """Default minimum approach temperature [K] (*common practice* for a first look at liquid–liquid
@@ -125,3 +128,109 @@ def finish(args, result: dict, summary: str, out) -> int:
         if out is not None:
             print(f"  wrote {len(out.written)} files to {out.path}/")
     return EXIT_OK
+
+
+# --------------------------------------------------------------------------------------------------
+# case folders
+
+_TABLE_SUFFIXES = (".csv", ".xlsx", ".xlsm")
+
+CASE_SUFFIXES = {"streams": _TABLE_SUFFIXES, "utilities": _TABLE_SUFFIXES,
+                 "costs": (".json", ".yaml", ".yml", ".xlsx", ".xlsm"), "network": _TABLE_SUFFIXES,
+                 "mains": _TABLE_SUFFIXES}
+"""Keyword found in a case folder's file name (case ignored) → the suffixes a file of that role may have."""
+
+CASE_ROLES = {"streams": "stream table", "utilities": "utilities", "costs": "costs", "network": "existing network"}
+"""Keyword → the name of the role in messages and in the result of :func:`find_case_files` (the defaults)."""
+
+
+def case_candidates(folder: str | Path, keywords: Collection[str] = tuple(CASE_SUFFIXES)) -> dict[str, list[Path]]:
+    """Every file of a case folder whose name holds one of the keywords, by keyword (no check of counts).
+
+    Only the folder's own files are looked at (not its subfolders, not hidden or lock files), with the
+    suffixes of :data:`CASE_SUFFIXES`; keywords with no file are left out.
+
+    Raises
+    ------
+    InputError
+        The folder is missing, or a file's name fits two of the keywords.
+
+    Examples
+    --------
+    >>> import tempfile, pathlib
+    >>> d = pathlib.Path(tempfile.mkdtemp())
+    >>> for n in ("east_streams.csv", "west_streams.csv", "mains.csv"):
+    ...     _ = (d / n).write_text("x")
+    >>> {k: [f.name for f in v] for k, v in case_candidates(d).items()}
+    {'streams': ['east_streams.csv', 'west_streams.csv'], 'mains': ['mains.csv']}
+    """
+    from ..errors import InputError
+
+    folder = Path(folder)
+    if not folder.is_dir():
+        raise InputError("case folder not found", file=str(folder))
+    found: dict[str, list[Path]] = {}
+    for f in sorted(folder.iterdir()):
+        if not f.is_file() or f.name.startswith((".", "~$")):
+            continue
+        name = f.stem.lower()
+        keys = [k for k in keywords if k in name and f.suffix.lower() in CASE_SUFFIXES[k]]
+        if len(keys) > 1:
+            raise InputError(f"the name of {f.name} fits several roles ({', '.join(keys)}); rename it or give "
+                             "the files one by one", file=str(folder))
+        for k in keys:
+            found.setdefault(k, []).append(f)
+    return found
+
+
+def find_case_files(folder: str | Path, roles: Mapping[str, str] | None = None, *,
+                    required: Collection[str] = ("streams",)) -> dict[str, Path]:
+    """The files of a case folder by role, one file per role (the finder of ``report`` and ``retrofit``).
+
+    A file's role follows from its name (case ignored): ``streams`` → stream table, ``utilities``,
+    ``costs``, ``network`` → existing network (see :func:`case_candidates`).
+
+    Parameters
+    ----------
+    folder : str or Path
+    roles : mapping, optional
+        Keyword → role name, which keys the result and names the role in messages (default
+        :data:`CASE_ROLES`); only these keywords are looked for.
+    required : collection of str
+        Keywords that must have a file.
+
+    Returns
+    -------
+    dict
+        Role name → file.
+
+    Raises
+    ------
+    InputError
+        The folder is missing, lacks a required file, holds several files of one role, or a file whose name
+        fits two roles.
+
+    Examples
+    --------
+    >>> import tempfile, pathlib
+    >>> d = pathlib.Path(tempfile.mkdtemp())
+    >>> for n in ("streams.csv", "utilities.csv", "notes.txt"):
+    ...     _ = (d / n).write_text("x")
+    >>> sorted(find_case_files(d))
+    ['stream table', 'utilities']
+    >>> sorted(find_case_files(d, {"streams": "streams", "network": "network"}, required=()))
+    ['streams']
+    """
+    from ..errors import InputError
+
+    roles = dict(CASE_ROLES if roles is None else roles)
+    found = case_candidates(folder, tuple(roles))
+    for key, files in found.items():
+        if len(files) > 1:
+            raise InputError(f"several files could be the {roles[key]}: {', '.join(f.name for f in files)}; keep "
+                             "one, or give the files one by one", file=str(folder))
+    for key in required:
+        if key not in found:
+            raise InputError(f"no {roles[key]} in the folder: name it with '{key}' (e.g. {key}.csv), or give the "
+                             "file itself", file=str(folder))
+    return {roles[key]: files[0] for key, files in found.items()}

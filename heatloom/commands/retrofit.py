@@ -11,6 +11,7 @@ from .common import (
     add_shared,
     add_table_options,
     dt_min_of,
+    find_case_files,
     finish,
     fmt,
     note,
@@ -43,8 +44,7 @@ into a case folder never adds an input)."""
 FIGURE_STEMS = ("retrofit_grid_existing", "retrofit_grid_proposed", "retrofit_savings")
 
 ROLES = {"streams": "streams", "network": "network", "utilities": "utilities", "costs": "costs"}
-_SUFFIXES = {"streams": (".csv", ".xlsx", ".xlsm"), "network": (".csv", ".xlsx", ".xlsm"),
-             "utilities": (".csv", ".xlsx", ".xlsm"), "costs": (".json", ".yaml", ".yml", ".xlsx", ".xlsm")}
+"""Keyword in a case folder's file name → role (see :func:`heatloom.commands.common.find_case_files`)."""
 
 
 def register(sub) -> None:
@@ -117,21 +117,7 @@ def find_inputs(args) -> tuple[dict[str, Path], list[str]]:
     files: dict[str, Path] = {}
     notes: list[str] = []
     if path.is_dir():
-        found: dict[str, list[Path]] = {}
-        for f in sorted(path.iterdir()):
-            if not f.is_file() or f.name.startswith((".", "~$")):
-                continue
-            roles = [r for key, r in ROLES.items() if key in f.stem.lower() and f.suffix.lower() in _SUFFIXES[r]]
-            if len(roles) > 1:
-                raise InputError(f"the name of {f.name} fits several roles ({', '.join(roles)}); rename it or give "
-                                 "the files one by one", file=str(path))
-            for r in roles:
-                found.setdefault(r, []).append(f)
-        for role, fs in found.items():
-            if len(fs) > 1:
-                raise InputError(f"several files could be the {role} table: {', '.join(f.name for f in fs)}; keep "
-                                 "one, or give the files one by one", file=str(path))
-            files[role] = fs[0]
+        files = find_case_files(path, ROLES, required=())
         notes.append(f"case folder {path}: " + "; ".join(f"{r} {f.name}" for r, f in files.items()))
     elif path.is_file():
         files["network"] = path

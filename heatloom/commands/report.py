@@ -1,0 +1,502 @@
+"""``heatloom report``: the whole study of a stream table or a case folder, as an HTML report and a workbook.
+
+One command runs every step that applies: energy targets, area/units/shells/cost targets, the ΔTmin sweep,
+the maximum-energy-recovery design, the lowest-total-annual-cost design (with ``--tac``) and, when an
+existing network is given, its retrofit diagnosis; then it writes ``report.html`` (self-contained: inline
+SVG figures, no script) and ``study.xlsx`` (one sheet per result).  A step that cannot run (a missing film
+coefficient, a part of heatloom not installed, a solver failure) does not stop the report: its section
+says what was not computed and why.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+from ..errors import HeatloomError, InputError
+from .common import (
+    CASE_ROLES,
+    EXIT_INFEASIBLE,
+    EXIT_INPUT,
+    EXIT_OK,
+    EXIT_UNEXPECTED,
+    SAFETY_NOTE,
+    add_shared,
+    add_table_options,
+    case_candidates,
+    dt_min_of,
+    find_case_files,
+    positive,
+    positive_or_zero,
+    print_json,
+)
+
+__all__ = ["register", "run", "run_site", "is_site_folder", "find_case_files", "compute_study", "OUTPUT_FILES", "SWEEP_RANGE", "SWEEP_STEP",
+           "TAC_TIME_LIMIT"]
+
+OUTPUT_FILES = ("report.html", "study.xlsx")
+"""Files written into the output folder."""
+
+SWEEP_RANGE = (5.0, 40.0)
+"""ΔTmin range of the report's sweep [K] when none is given (the sweep command's default, *common
+practice*); widened to hold the ΔTmin of the study."""
+
+SWEEP_STEP = 0.5
+"""Grid step of the report's sweep [K]."""
+
+TAC_TIME_LIMIT = 120.0
+"""Wall-clock limit of the lowest-total-annual-cost design [s] when none is given."""
+
+ROLES = CASE_ROLES
+"""Keyword in a case folder's file name → the role of that file (the finder shared with ``retrofit``)."""
+
+EPILOG_REPORT = """\
+examples:
+  heatloom report case_studies/solvent_recovery             # a case folder; writes its report/ subfolder
+  heatloom report streams.csv --dtmin 15 --utilities utilities.csv --costs costs.json --out study
+  heatloom report plant_case/ --default-h 0.5 --tac --force  # assume h where missing, add the TAC design
+
+A case folder holds the stream table (a file with 'streams' in its name, CSV or .xlsx) and optionally
+the utilities ('utilities'), the costs ('costs': JSON, YAML or .xlsx) and an existing network ('network')
+for the retrofit diagnosis and options; options given on the command line take precedence. Without --out
+the report goes into a 'report' folder beside the stream table (inside the case folder).
+
+A site folder (several files with 'streams' in their names, one per zone, e.g. 'evaporation_streams.csv',
+and/or a mains table with 'mains' in its name) gives a site report: the targets of each zone, the site
+profiles, the balance of every main and the saving against zone-by-zone targeting (--dtmin, --site-dt).
+"""
+
+
+def _range(text: str) -> tuple[float, float]:
+    parts = str(text).split(":")
+    try:
+        lo, hi = (float(p) for p in parts)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"expected LO:HI in kelvin, e.g. 5:40, got {text!r}") from None
+    if not (0 < lo < hi < float("inf")):
+        raise argparse.ArgumentTypeError(f"need 0 < LO < HI (finite, kelvin), got {text!r}")
+    return lo, hi
+
+
+def register(sub) -> None:
+    p = sub.add_parser("report", help="the whole study as an HTML report and a workbook",
+                       description="Targets, ΔTmin sweep, network design and (with an existing network) retrofit "
+                                   "diagnosis of a stream table or a case folder, written as one self-contained "
+                                   "HTML report (report.html) and an Excel workbook (study.xlsx).",
+                       epilog=EPILOG_REPORT, formatter_class=argparse.RawDescriptionHelpFormatter)
+    p.add_argument("path", metavar="PATH", help="stream table (CSV or .xlsx) or a case folder")
+    add_shared(p)
+    add_table_options(p)
+    p.add_argument("--costs", metavar="FILE", help="cost laws and annualisation (JSON, YAML or .xlsx)")
+    p.add_argument("--network", metavar="FILE", help="existing network (CSV or .xlsx) for the retrofit section")
+    p.add_argument("--default-h", type=positive, metavar="H",
+                   help="film coefficient [kW/(m²·K)] assumed for streams and utilities without one")
+    p.add_argument("--sweep", type=_range, default=None, metavar="LO:HI",
+                   help=f"ΔTmin range of the sweep [K] (default {SWEEP_RANGE[0]:g}:{SWEEP_RANGE[1]:g}, widened to "
+                        "hold --dtmin)")
+    p.add_argument("--solver", choices=["highs", "cbc"], default=None,
+                   help="MILP solver (default: HiGHS when installed, else CBC)")
+    p.add_argument("--time-limit", type=positive, default=60.0, metavar="S",
+                   help="time limit of each solve of the maximum-energy-recovery design [s] (default 60 s)")
+    p.add_argument("--tac", action="store_true",
+                   help="also search for the network of lowest total annual cost (takes up to --tac-time-limit)")
+    p.add_argument("--emat", type=positive, default=None, metavar="K",
+                   help="exchanger minimum approach of the --tac design [K] (default 1 K)")
+    p.add_argument("--tac-time-limit", type=positive, default=TAC_TIME_LIMIT, metavar="S",
+                   help=f"wall-clock limit of the --tac design [s] (default {TAC_TIME_LIMIT:g} s)")
+    p.add_argument("--site-dt", type=positive_or_zero, default=0.0, metavar="K",
+                   help="site folders: extra temperature difference for raising and using steam [K] (default 0 K)")
+    p.set_defaults(handler=run)
+
+
+# --------------------------------------------------------------------------------------------------
+# inputs
+
+
+def is_site_folder(path: str | Path) -> bool:
+    """Whether a folder is a site: several files with ``streams`` in their names, or one with ``mains``.
+
+    Examples
+    --------
+    >>> import tempfile, pathlib
+    >>> d = pathlib.Path(tempfile.mkdtemp())
+    >>> _ = (d / "streams.csv").write_text("x")
+    >>> is_site_folder(d)
+    False
+    >>> _ = (d / "mains.csv").write_text("x")
+    >>> is_site_folder(d)
+    True
+    """
+    path = Path(path)
+    if not path.is_dir():
+        return False
+    found = case_candidates(path, ("streams", "mains"))
+    return len(found.get("streams", ())) > 1 or "mains" in found
+
+
+def _inputs(args) -> tuple[dict[str, Path], list[str]]:
+    """Files of the run by role, and notes on how they were found."""
+    path = Path(args.path)
+    notes: list[str] = []
+    if path.is_dir():
+        files = find_case_files(path)
+        notes.append(f"case folder {path}: " + "; ".join(f"{role} {f.name}" for role, f in files.items()))
+    elif path.is_file():
+        files = {"stream table": path}
+    else:
+        raise InputError("file or folder not found", file=str(path))
+    for role, option in (("utilities", args.utilities), ("costs", args.costs), ("existing network", args.network)):
+        if option:
+            if role in files and Path(option).resolve() != files[role].resolve():
+                notes.append(f"{role} {option} given on the command line (instead of {files[role].name})")
+            files[role] = Path(option)
+    return files, notes
+
+
+def _out_folder(args, files: dict[str, Path]) -> Path:
+    if args.out:
+        return Path(args.out)
+    base = Path(args.path) if Path(args.path).is_dir() else files["stream table"].parent
+    return base / "report"
+
+
+# --------------------------------------------------------------------------------------------------
+# the study
+
+
+def _failed(what: str, e: BaseException) -> str:
+    if isinstance(e, ImportError):
+        return f"{what} is not available in this installation of heatloom ({e})"
+    if isinstance(e, HeatloomError):
+        return str(e)
+    return f"{what} failed unexpectedly ({type(e).__name__}: {e}); please report it with the input files"
+
+
+def _step(fn, what: str, needs=()):
+    """fn() or NotComputed(reason): what a step gives the study."""
+    from ..io.report import NotComputed
+
+    for name, value in needs:
+        if isinstance(value, NotComputed):
+            return NotComputed(f"needs the {name}, which were not computed ({value.reason})")
+    try:
+        return fn()
+    except Exception as e:  # noqa: BLE001 - one step failing must not cost the whole report
+        return NotComputed(_failed(what, e), type(e).__name__)
+
+
+def compute_study(streams, dt_min: float, utilities=None, costs=None, *, existing=None, retrofit_costs=None,
+                  default_film_coefficient: float | None = None, settings=None, progress=None, **fields):
+    """Run every step of a study and gather the results (each a result or a NotComputed).
+
+    Parameters
+    ----------
+    streams : heatloom.model.StreamTable
+    dt_min : float
+        [K]
+    utilities : sequence of Utility, optional
+    costs : heatloom.network.CostSettings, optional
+    existing : heatloom.network.existing.ExistingNetwork, optional
+        An existing network to diagnose and to find ranked, costed retrofit options for.
+    retrofit_costs : heatloom.network.retrofit_changes.RetrofitCosts, optional
+        Cost laws of the retrofit changes (default: the package's illustrative ones).
+    default_film_coefficient : float, optional
+        [kW/(m²·K)]
+    settings : heatloom.io.report.RunSettings, optional
+    progress : callable, optional
+        Called as ``progress(step_name)`` before each step.
+    **fields
+        Passed to :class:`heatloom.io.report.Study` (title, sources, notes, dt_min_note, ...).
+
+    Returns
+    -------
+    heatloom.io.report.Study
+    """
+    from ..io.report import NotComputed, RunSettings, Study
+    from ..network.cost import CostSettings
+
+    settings = settings or RunSettings()
+    fields.setdefault("title", "Heat-integration study")
+    fields.setdefault("dt_min_note", "given")
+    costs_in_force = costs or CostSettings()
+    tell = progress or (lambda name: None)
+    h = default_film_coefficient
+
+    tell("energy targets")
+
+    def targets():
+        from ..pinch import target
+
+        return target(streams, dt_min, utilities)
+
+    t = _step(targets, "targeting")
+
+    tell("area and cost targets")
+
+    def area():
+        from ..pinch.area import area_targets
+
+        return area_targets(t, costs_in_force, default_film_coefficient=h, capital_basis=settings.capital_basis)
+
+    a = _step(area, "the area and cost targets (heatloom.pinch.area)", [("energy targets", t)])
+    if isinstance(a, NotComputed) and "film coefficient" in a.reason and h is None:
+        a = NotComputed(a.reason + "; or give --default-h")
+
+    tell("ΔTmin sweep")
+
+    def sweep():
+        from ..pinch.sweep import sweep as run_sweep
+
+        return run_sweep(streams, settings.sweep_range, utilities, costs_in_force, step=settings.sweep_step,
+                         workers=1, default_film_coefficient=h, capital_basis=settings.capital_basis)
+
+    w = _step(sweep, "the ΔTmin sweep (heatloom.pinch.sweep)") if settings.sweep_range is not None else \
+        NotComputed("no ΔTmin range was given")
+
+    tell("network for maximum energy recovery")
+
+    def mer():
+        from ..network.design import design_mer
+
+        return design_mer(streams, dt_min, utilities, costs=costs_in_force, solver=settings.solver,
+                          time_limit=settings.time_limit, default_film_coefficient=h)
+
+    design = _step(mer, "the maximum-energy-recovery design", [("energy targets", t)])
+
+    tell("network of lowest total annual cost")
+    if settings.tac:
+        def tac():
+            from ..network.tac import design_tac
+
+            return design_tac(streams, utilities, costs=costs_in_force, emat=settings.emat,
+                              time_limit=settings.tac_time_limit, seed=settings.tac_seed, solver=settings.solver,
+                              default_film_coefficient=h)
+
+        tac_net = _step(tac, "the lowest-total-annual-cost design (heatloom.network.tac)")
+    else:
+        tac_net = NotComputed("not asked for: add --tac to search for the network of lowest total annual cost "
+                              f"(a heuristic search of up to --tac-time-limit, {settings.tac_time_limit or TAC_TIME_LIMIT:g} s by default)")
+
+    diagnosis = retrofit = None
+    if existing is not None:
+        tell("retrofit diagnosis")
+
+        def diagnose():
+            from ..network.diagnose import diagnose as run
+
+            return run(existing, dt_min, default_film_coefficient=h)
+
+        diagnosis = _step(diagnose, "the retrofit diagnosis (heatloom.network.diagnose)")
+        tell("retrofit options")
+
+        def options():
+            from ..network.retrofit import retrofit_options
+
+            return retrofit_options(existing, dt_min, costs=costs_in_force, retrofit_costs=retrofit_costs,
+                                    default_film_coefficient=h, solver=settings.solver)
+
+        retrofit = _step(options, "the retrofit options (heatloom.network.retrofit)")
+    return Study(streams=streams, dt_min=dt_min, targets=t, utilities=None if utilities is None else tuple(utilities),
+                 costs=costs_in_force, default_film_coefficient=h, area=a, sweep=w, design=design, tac=tac_net,
+                 diagnosis=diagnosis, retrofit=retrofit, existing=existing, settings=settings, safety_note=SAFETY_NOTE, **fields)
+
+
+class _Bar:
+    """A tqdm bar over the steps of the report, on stderr (silent when disabled)."""
+
+    def __init__(self, total: int, enabled: bool) -> None:
+        self.bar = None
+        if enabled:
+            from tqdm import tqdm
+
+            self.bar = tqdm(total=total, desc="heatloom report", unit="step", file=sys.stderr, leave=False,
+                            bar_format="{desc} {n_fmt}/{total_fmt} |{bar:20}| {elapsed}")
+        self.started = False
+
+    def __call__(self, name: str) -> None:
+        if self.bar is None:
+            return
+        if self.started:
+            self.bar.update(1)
+        self.started = True
+        self.bar.set_description_str(f"heatloom report: {name[:36]:<36}")
+
+    def close(self) -> None:
+        if self.bar is not None:
+            self.bar.update(self.bar.total - self.bar.n)
+            self.bar.close()
+
+
+def run_site(args) -> int:
+    """The site report of a site folder: site.targets of every zone and the mains, as HTML and workbook."""
+    import datetime
+
+    from .. import __version__
+    from ..io.export import OutputDirectory
+    from ..io.site import read_site
+    from ..io.site_report import SiteStudy, render_site_report, site_sheets
+    from ..io.workbook import write_workbook
+    from ..pinch.site import site_targets
+    from .site import site_frames
+
+    path = Path(args.path)
+    site_in = read_site(path, columns=args.columns, fit_tolerance=args.fit_tolerance)
+    folder = Path(args.out) if args.out else path / "report"
+    out = OutputDirectory(folder, list(site_in.files), force=args.force)
+    out.check(OUTPUT_FILES)   # refuse before computing anything, so nothing is half written
+    notes = [f"site folder {path}: zones " + "; ".join(f"{z} ({Path(f).name})" for z, f in
+                                                        site_in.zone_sources.items())
+             + (f"; mains {Path(site_in.mains_source).name}" if site_in.mains_source else "; no mains table")]
+    unused = [o for o in ("utilities", "costs", "network", "default_h", "sweep", "emat", "sheet") if
+              getattr(args, o, None)] + (["tac"] if args.tac else [])
+    if unused:
+        notes.append("not used for a site: " + ", ".join("--" + o.replace("_", "-") for o in unused))
+    dt_min, dt_note = dt_min_of(args)
+    site = site_targets(list(site_in.zones), site_in.mains, dt_min, dt_site=args.site_dt)
+    sources = {f"zone {z}": f for z, f in site_in.zone_sources.items()}
+    if site_in.mains_source:
+        sources["mains"] = site_in.mains_source
+    study = SiteStudy(title=f"Site study: {path.name}", site=site, frames=site_frames(site), dt_min_note=dt_note,
+                      zone_sources=dict(site_in.zone_sources), mains_source=site_in.mains_source, sources=sources,
+                      notes=tuple(notes), safety_note=SAFETY_NOTE, version=__version__,
+                      created=datetime.datetime.now().astimezone().isoformat(timespec="seconds"),
+                      command=_command_line(args))
+    rendered = render_site_report(study)
+    sheets = site_sheets(study)              # everything is built before anything is written
+    target = out.target("report.html")
+    target.write_text(rendered.html, encoding="utf-8")
+    out.written.append(target)
+    write_workbook(out, "study.xlsx", sheets)
+    report_path = out.path / "report.html"
+    if args.json:
+        print_json({"report": str(report_path), "workbook": str(out.path / "study.xlsx"),
+                    "sections": [k for k, _ in rendered.sections], "figures": rendered.figures,
+                    "not_computed": [{"where": w, "why": r} for w, r in rendered.not_computed],
+                    "targets": None, "site": site.to_dict()})
+    else:
+        if not args.quiet:
+            for n in notes[1:]:
+                print(f"heatloom: note: {n}", file=sys.stderr)
+            for where, why in rendered.not_computed:
+                print(f"heatloom: not computed ({where}): {why}", file=sys.stderr)
+        print(f"site report: {len(rendered.sections)} sections, {rendered.figures} figures → {report_path}")
+    return EXIT_OK
+
+
+def run(args) -> int:
+    import datetime
+
+    from .. import __version__
+    from ..io import read_costs, read_streams, read_utilities
+    from ..io.export import OutputDirectory
+    from ..io.report import NotComputed, RunSettings, render_report
+    from ..io.tables import parse_column_mapping
+    from ..io.workbook import study_sheets, write_workbook
+
+    if is_site_folder(args.path):
+        return run_site(args)
+    files, notes = _inputs(args)
+    out = OutputDirectory(_out_folder(args, files), [str(p) for p in files.values()], force=args.force)
+    out.check(OUTPUT_FILES)   # refuse before computing anything, so nothing is half written
+    columns = parse_column_mapping(args.columns) if args.columns else None
+    streams = read_streams(files["stream table"], sheet=args.sheet, columns=columns, fit_tolerance=args.fit_tolerance)
+    utilities = None
+    if "utilities" in files:
+        utilities = read_utilities(files["utilities"], sheet=args.utilities_sheet, process=streams,
+                                   hours_per_year=args.hours_per_year)
+    costs = read_costs(files["costs"]) if "costs" in files else None
+    retrofit_costs = None
+    if "costs" in files and "existing network" in files:
+        from ..io.costs import read_retrofit_costs
+
+        retrofit_costs = read_retrofit_costs(files["costs"])
+    existing = None
+    existing_error = None
+    if "existing network" in files:
+        try:
+            from ..io.network_table import read_network
+        except ImportError as e:
+            existing_error = f"reading networks is not available in this installation of heatloom ({e})"
+        else:
+            existing = read_network(files["existing network"], streams, utilities)
+    dt_min, dt_note = dt_min_of(args)
+    sweep_range = args.sweep or (min(SWEEP_RANGE[0], dt_min) if dt_min > 0 else SWEEP_RANGE[0],
+                                 max(SWEEP_RANGE[1], dt_min))
+    emat = args.emat
+    if args.tac and emat is None:
+        try:
+            from ..network.tac import DEFAULT_EMAT
+        except ImportError:
+            DEFAULT_EMAT = 1.0  # noqa: N806 - the TAC step will say that the design is not available
+        emat = DEFAULT_EMAT
+    sweep_note = "given (--sweep)" if args.sweep else \
+        "default range (that of the sweep command), widened to hold the ΔTmin of the study; set with --sweep"
+    settings = RunSettings(sweep_range=sweep_range, sweep_step=SWEEP_STEP, sweep_note=sweep_note, solver=args.solver,
+                           time_limit=args.time_limit, tac=args.tac, emat=emat, tac_time_limit=args.tac_time_limit,
+                           command=_command_line(args))
+    steps = 5 + 2 * (existing is not None) + 2
+    bar = _Bar(steps, enabled=not (args.quiet or args.json))
+    path = Path(args.path)
+    title = f"Heat-integration study: {path.name if path.is_dir() else path.stem}"
+    sources = {role: str(p) for role, p in files.items()}
+    try:
+        study = compute_study(streams, dt_min, utilities, costs, existing=existing, retrofit_costs=retrofit_costs,
+                              default_film_coefficient=args.default_h, settings=settings, progress=bar,
+                              title=title, dt_min_note=dt_note, costs_source=sources.get("costs"), sources=sources,
+                              notes=tuple(notes), version=__version__,
+                              created=datetime.datetime.now().astimezone().isoformat(timespec="seconds"))
+        if existing_error is not None:
+            from dataclasses import replace
+
+            study = replace(study, diagnosis=NotComputed(existing_error), retrofit=NotComputed(existing_error))
+        bar("HTML report")
+        rendered = render_report(study)
+        bar("workbook")
+        sheets = study_sheets(study)          # everything is built before anything is written
+        target = out.target("report.html")
+        target.write_text(rendered.html, encoding="utf-8")
+        out.written.append(target)
+        write_workbook(out, "study.xlsx", sheets)
+    finally:
+        bar.close()
+    report_path = out.path / "report.html"
+    if args.json:
+        print_json({"report": str(report_path), "workbook": str(out.path / "study.xlsx"),
+                    "sections": [k for k, _ in rendered.sections], "figures": rendered.figures,
+                    "not_computed": [{"where": w, "why": r} for w, r in rendered.not_computed],
+                    "targets": None if isinstance(study.targets, NotComputed) else study.targets.to_dict(
+                        problem_table=False)})
+    else:
+        if not args.quiet:
+            for where, why in rendered.not_computed:
+                print(f"heatloom: not computed ({where}): {why}", file=sys.stderr)
+        print(f"report: {len(rendered.sections)} sections, {rendered.figures} figures → {report_path}")
+    if isinstance(study.targets, NotComputed):
+        # the report says why; the exit code says that its main result is missing
+        print(f"heatloom: error: energy targets not computed: {study.targets.reason}", file=sys.stderr)
+        return {"InfeasibleError": EXIT_INFEASIBLE, "InputError": EXIT_INPUT,
+                "TemperatureCrossError": EXIT_INPUT}.get(study.targets.error, EXIT_UNEXPECTED)
+    return EXIT_OK
+
+
+def _command_line(args) -> str:
+    """The command that made the report, rebuilt from the options (for the record)."""
+    import shlex
+
+    parts = ["heatloom", "report", args.path]
+    for option in ("dtmin", "utilities", "costs", "network", "default_h", "solver", "emat", "sheet",
+                   "utilities_sheet", "columns", "hours_per_year", "out"):
+        value = getattr(args, option, None)
+        if value is not None:
+            parts += ["--" + option.replace("_", "-"), f"{value:g}" if isinstance(value, float) else str(value)]
+    if getattr(args, "site_dt", 0.0):
+        parts += ["--site-dt", f"{args.site_dt:g}"]
+    if args.sweep:
+        parts += ["--sweep", f"{args.sweep[0]:g}:{args.sweep[1]:g}"]
+    if args.time_limit != 60.0:
+        parts += ["--time-limit", f"{args.time_limit:g}"]
+    if args.tac:
+        parts += ["--tac", "--tac-time-limit", f"{args.tac_time_limit:g}"]
+    parts += [flag for flag, on in (("--force", args.force), ("--quiet", args.quiet), ("--json", args.json)) if on]
+    return " ".join(shlex.quote(str(p)) for p in parts)
