@@ -44,7 +44,16 @@ from ..errors import InputError
 from ..model import StreamTable, Utility
 from ..network.existing import ExistingNetwork, ExistingUnit
 from ..network.sizing import FlowArrangement
-from .tables import IGNORE, Cells, Table, TableColumn, load_cells, normalise_name, split_header
+from .tables import (
+    IGNORE,
+    Cells,
+    Table,
+    TableColumn,
+    load_cells,
+    normalise_name,
+    parse_column_mapping,
+    split_header,
+)
 from .units import QuantityKind, parse_unit
 
 __all__ = ["NETWORK_COLUMNS", "NETWORK_ALIASES", "read_network"]
@@ -125,7 +134,7 @@ def read_network(path: str | os.PathLike, streams: StreamTable, utilities: Seque
     (2.671, ['E1', 'C1'])
     """
     utilities = tuple(utilities or ())
-    mapping = _parse_mapping(columns)
+    mapping = parse_column_mapping(columns, NETWORK_COLUMNS)
     cells = load_cells(path, sheet=sheet)
     table = _bind(cells, mapping)
     units = _units(table)
@@ -151,41 +160,6 @@ def _lookup() -> dict[str, str]:
 
 
 _LOOKUP = _lookup()
-
-
-def _parse_mapping(columns: Mapping[str, str] | str | None) -> dict[str, str]:
-    """Foreign header → canonical network column (or ``"-"``)."""
-    if columns is None:
-        return {}
-    if isinstance(columns, Mapping):
-        pairs = [(str(k), "" if v is None else str(v)) for k, v in columns.items()]
-    else:
-        pairs = []
-        for part in re.split(r"[,;]", str(columns)):
-            if not part.strip():
-                continue
-            if "=" not in part:
-                raise InputError(f"column mapping: '{part.strip()}' is not of the form header=column "
-                                 "(e.g. 'Tag=unit,Surface=area')")
-            k, v = part.rsplit("=", 1)
-            pairs.append((k, v))
-    canon = {normalise_name(c): c for c in NETWORK_COLUMNS}
-    out: dict[str, str] = {}
-    for k, v in pairs:
-        k, v = k.strip(), v.strip()
-        if not k:
-            raise InputError(f"column mapping: empty header before '={v}'")
-        if v in ("", IGNORE):
-            out[k] = IGNORE
-            continue
-        target = canon.get(normalise_name(v))
-        if target is None:
-            raise InputError(f"column mapping: unknown column name '{v}' for '{k}'; allowed: "
-                             f"{', '.join(NETWORK_COLUMNS)} (or '-' to ignore the column)")
-        if target in out.values():
-            raise InputError(f"column mapping: two headers are mapped to '{target}'")
-        out[k] = target
-    return out
 
 
 def _text(c) -> str:

@@ -164,16 +164,21 @@ def split_header(text: str) -> list[tuple[str, str | None]]:
     return out
 
 
-def parse_column_mapping(text: str | Mapping[str, str] | None) -> dict[str, str]:
+def parse_column_mapping(text: str | Mapping[str, str] | None, columns: Sequence[str] | None = None
+                         ) -> dict[str, str]:
     """Read a column mapping ``"Stream=name,Tin=T_supply"`` (foreign header = canonical name).
 
     Pairs are separated by commas or semicolons; a target of ``-`` ignores that column.  Canonical
-    names are checked against :data:`ALIASES` (case and underscores do not matter).
+    names are checked against ``columns`` (by default those of :data:`ALIASES`; case and underscores do
+    not matter).
 
     Parameters
     ----------
     text : str, mapping or None
         The command-line form, or a mapping already (validated the same way).
+    columns : sequence of str, optional
+        The canonical column names of the table being read (another table's vocabulary, e.g. the
+        network table's).
 
     Returns
     -------
@@ -187,6 +192,7 @@ def parse_column_mapping(text: str | Mapping[str, str] | None) -> dict[str, str]
     """
     if text is None:
         return {}
+    vocabulary = list(ALIASES) if columns is None else list(columns)
     if isinstance(text, Mapping):
         pairs = [(str(k), "" if v is None else str(v)) for k, v in text.items()]
     else:
@@ -196,10 +202,10 @@ def parse_column_mapping(text: str | Mapping[str, str] | None) -> dict[str, str]
                 continue
             if "=" not in part:
                 raise InputError(f"column mapping: '{part.strip()}' is not of the form header=column "
-                                 "(e.g. 'Stream=name,Tin=T_supply')")
+                                 f"(e.g. 'Tag={vocabulary[0]}')")
             k, v = part.rsplit("=", 1)
             pairs.append((k, v))
-    canon = {normalise_name(c): c for c in ALIASES}
+    canon = {normalise_name(c): c for c in vocabulary}
     out: dict[str, str] = {}
     targets: dict[str, str] = {}
     for k, v in pairs:
@@ -212,7 +218,7 @@ def parse_column_mapping(text: str | Mapping[str, str] | None) -> dict[str, str]
             target = canon.get(normalise_name(v))
             if target is None:
                 raise InputError(f"column mapping: unknown column name '{v}' for '{k}'; allowed: "
-                                 f"{', '.join(ALIASES)} (or '-' to ignore the column)")
+                                 f"{', '.join(vocabulary)} (or '-' to ignore the column)")
         if normalise_name(k) in {normalise_name(x) for x in out}:
             raise InputError(f"column mapping: header '{k}' is mapped twice")
         if target != IGNORE and target in targets:

@@ -12,7 +12,7 @@ EXIT_OK, EXIT_UNEXPECTED, EXIT_INPUT, EXIT_INFEASIBLE = 0, 1, 2, 3
 """Exit codes of every command."""
 
 __all__ = ["EXIT_OK", "EXIT_UNEXPECTED", "EXIT_INPUT", "EXIT_INFEASIBLE", "DEFAULT_DT_MIN", "SAFETY_NOTE", "positive", "positive_or_zero", "add_shared", "add_table_options",
-           "note", "read_inputs", "dt_min_of", "fmt", "solves_summary", "print_json", "finish", "CASE_SUFFIXES",
+           "note", "read_inputs", "whole_number", "add_output_options", "dt_min_of", "fmt", "solves_summary", "print_json", "finish", "CASE_SUFFIXES",
            "CASE_ROLES", "case_candidates", "find_case_files"]
 
 DEFAULT_DT_MIN = 10.0
@@ -39,6 +39,29 @@ def positive(text: str) -> float:
     return x
 
 
+def whole_number(low: int):
+    """An argparse type: a whole number of at least ``low``."""
+    def parse(text: str) -> int:
+        try:
+            n = int(text)
+        except ValueError:
+            raise argparse.ArgumentTypeError(f"expected a whole number >= {low}, got {text!r}") from None
+        if n < low:
+            raise argparse.ArgumentTypeError(f"expected a whole number >= {low}, got {text!r}")
+        return n
+    return parse
+
+
+def add_output_options(p: argparse.ArgumentParser) -> None:
+    """--json, --out, --force, --quiet, --debug: how every command reports."""
+    p.add_argument("--json", action="store_true", help="print one JSON object on stdout and nothing else")
+    p.add_argument("--out", metavar="DIR", help="folder for result files (CSV, XLSX, JSON, figures)")
+    p.add_argument("--force", action="store_true",
+                   help="replace result files already in --out (input files are never replaced)")
+    p.add_argument("--quiet", action="store_true", help="no progress or notes on stderr")
+    p.add_argument("--debug", action="store_true", help="show the full traceback on errors")
+
+
 def add_shared(p: argparse.ArgumentParser) -> None:
     p.add_argument("--dtmin", type=positive_or_zero, default=None, metavar="K",
                    help=f"minimum approach temperature [K] (default {DEFAULT_DT_MIN:g} K)")
@@ -47,12 +70,7 @@ def add_shared(p: argparse.ArgumentParser) -> None:
     p.add_argument("--hours-per-year", type=positive, default=None, metavar="H",
                    help="operating hours per year [h/year], to read utility prices given per kWh or MWh "
                         "(e.g. 'cost [USD/kWh]'); prices are otherwise per kW·year")
-    p.add_argument("--json", action="store_true", help="print one JSON object on stdout and nothing else")
-    p.add_argument("--out", metavar="DIR", help="folder for result files (CSV, XLSX, JSON, figures)")
-    p.add_argument("--force", action="store_true",
-                   help="replace result files already in --out (input files are never replaced)")
-    p.add_argument("--quiet", action="store_true", help="no progress or notes on stderr")
-    p.add_argument("--debug", action="store_true", help="show the full traceback on errors")
+    add_output_options(p)
 
 
 def add_table_options(p: argparse.ArgumentParser) -> None:

@@ -15,6 +15,7 @@ from .common import (
     positive,
     read_inputs,
     solves_summary,
+    whole_number,
 )
 
 __all__ = ["register", "run", "format_network"]
@@ -62,9 +63,9 @@ def register(sub) -> None:
                      help=f"exchanger minimum approach temperature at both ends of every unit [K] "
                           f"(default {DEFAULT_EMAT:g} K)")
     tac.add_argument("--seed", type=int, default=0, metavar="N", help="seed of the search (default 0)")
-    tac.add_argument("--starts", type=_whole(1), default=2, metavar="N",
+    tac.add_argument("--starts", type=whole_number(1), default=2, metavar="N",
                      help="independent searches run side by side on local processes (default 2)")
-    tac.add_argument("--rounds", type=_whole(0), default=40, metavar="N",
+    tac.add_argument("--rounds", type=whole_number(0), default=40, metavar="N",
                      help="kicks of the iterated local search per start (default 40)")
     p.set_defaults(handler=run)
 
@@ -74,18 +75,6 @@ DEFAULT_EMAT = 1.0
 parser does not import the numerical modules)."""
 TAC_TIME_LIMIT = 120.0
 """Default wall-clock limit of a --mode tac run [s]."""
-
-
-def _whole(low: int):
-    def parse(text: str) -> int:
-        try:
-            n = int(text)
-        except ValueError:
-            raise argparse.ArgumentTypeError(f"expected a whole number, got {text!r}") from None
-        if n < low:
-            raise argparse.ArgumentTypeError(f"must be >= {low}, got {n}")
-        return n
-    return parse
 
 
 class _Progress:

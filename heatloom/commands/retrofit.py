@@ -17,6 +17,7 @@ from .common import (
     note,
     positive,
     solves_summary,
+    whole_number,
 )
 
 __all__ = ["register", "run", "find_inputs", "format_retrofit", "OUTPUT_NAMES", "FIGURE_STEMS"]
@@ -67,12 +68,12 @@ def register(sub) -> None:
                    help="largest simple payback of an option [years]")
     p.add_argument("--min-approach", type=positive, default=None, metavar="K",
                    help="smallest approach any unit may be left with [K] (default: ΔTmin)")
-    p.add_argument("--max-changes", type=_whole, default=3, metavar="N",
+    p.add_argument("--max-changes", type=whole_number(1), default=3, metavar="N",
                    help="most changes in one option (default 3)")
     p.add_argument("--sizes", type=_fractions, default=None, metavar="LIST",
                    help="sizes tried for added area and new exchangers, as fractions of the largest extra duty "
                         "(default 0.25,0.5,0.75,1)")
-    p.add_argument("--max-candidates", type=_whole, default=12, metavar="N",
+    p.add_argument("--max-candidates", type=whole_number(1), default=12, metavar="N",
                    help="the MILP chooses among the N candidates best by NPV and the N best by saving, at all "
                         "their sizes (default 12)")
     p.add_argument("--default-h", type=positive, metavar="H",
@@ -96,16 +97,6 @@ def _fractions(text: str) -> tuple[float, ...]:
             raise argparse.ArgumentTypeError(f"each size must be a fraction in (0, 1], got {part.strip()!r}")
         out.append(x)
     return tuple(out)
-
-
-def _whole(text: str) -> int:
-    try:
-        n = int(text)
-    except ValueError:
-        raise argparse.ArgumentTypeError(f"expected a whole number >= 1, got {text!r}") from None
-    if n < 1:
-        raise argparse.ArgumentTypeError(f"expected a whole number >= 1, got {text!r}")
-    return n
 
 
 def find_inputs(args) -> tuple[dict[str, Path], list[str]]:

@@ -6,7 +6,17 @@ import argparse
 import sys
 
 from ..errors import InputError
-from .common import SAFETY_NOTE, add_table_options, finish, fmt, note, positive, read_inputs
+from .common import (
+    SAFETY_NOTE,
+    add_output_options,
+    add_table_options,
+    finish,
+    fmt,
+    note,
+    positive,
+    read_inputs,
+    whole_number,
+)
 
 __all__ = ["register", "run", "format_sweep", "parse_range", "parse_designs", "DEFAULT_RANGE", "DEFAULT_STEP"]
 
@@ -72,16 +82,6 @@ def parse_designs(text: str) -> tuple[float, ...]:
     return tuple(out)
 
 
-def _whole(text: str) -> int:
-    try:
-        n = int(text)
-    except ValueError:
-        raise argparse.ArgumentTypeError(f"expected a whole number >= 1, got {text!r}") from None
-    if n < 1:
-        raise argparse.ArgumentTypeError(f"expected a whole number >= 1, got {text!r}")
-    return n
-
-
 def register(sub) -> None:
     p = sub.add_parser("sweep", help="targets and costs against ΔTmin, the optimum",
                        description="Energy, area, units and total annual cost targets over a range of ΔTmin "
@@ -106,16 +106,11 @@ def register(sub) -> None:
     p.add_argument("--capital-basis", choices=["units_mer", "units", "shells"], default="units_mer",
                    help="what the target area is shared among for the capital cost (default units_mer: the "
                         "minimum units of a maximum-energy-recovery network)")
-    p.add_argument("--workers", type=_whole, default=None, metavar="N",
+    p.add_argument("--workers", type=whole_number(1), default=None, metavar="N",
                    help="processes of the local pool (default: one per core; 1 runs in this process)")
     p.add_argument("--cluster", metavar="ADDRESS",
                    help="run on a Dask distributed cluster at this scheduler address instead")
-    p.add_argument("--json", action="store_true", help="print one JSON object on stdout and nothing else")
-    p.add_argument("--out", metavar="DIR", help="folder for result files (CSV, XLSX, JSON, figures)")
-    p.add_argument("--force", action="store_true",
-                   help="replace result files already in --out (input files are never replaced)")
-    p.add_argument("--quiet", action="store_true", help="no progress or notes on stderr")
-    p.add_argument("--debug", action="store_true", help="show the full traceback on errors")
+    add_output_options(p)
     add_table_options(p)
     p.set_defaults(handler=run)
 
