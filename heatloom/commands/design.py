@@ -58,6 +58,15 @@ def register(sub) -> None:
     p.add_argument("--time-limit", type=positive, default=None, metavar="S",
                    help="mer: time limit of each solve [s] (default 60 s); tac: of the whole run [s] "
                         "(default 120 s)")
+    geo = p.add_argument_group("geometry (--mode mer)")
+    geo.add_argument("--exchanger-type", choices=["counter-current", "shell-and-tube", "double-pipe"],
+                     default="counter-current",
+                     help="report every unit as this type: 1-2 shell-and-tube (shells by the X_P criterion, F, "
+                          "cost per shell) or double-pipe hairpins (default: counter-current area only)")
+    geo.add_argument("--tube-diameter", type=positive, metavar="M",
+                     help="double-pipe: diameter of the inner tube the area refers to [m]")
+    geo.add_argument("--hairpin-length", type=positive, metavar="M",
+                     help="double-pipe: length of one leg of a hairpin [m]")
     tac = p.add_argument_group("--mode tac")
     tac.add_argument("--emat", type=positive, default=None, metavar="K",
                      help=f"exchanger minimum approach temperature at both ends of every unit [K] "
@@ -179,10 +188,14 @@ def run(args) -> int:
         finally:
             bar.close()
     else:
-        from ..network import design_mer
+        from ..network import ExchangerType, design_mer
 
+        kind = {"counter-current": None, "shell-and-tube": ExchangerType.SHELL_AND_TUBE_1_2,
+                "double-pipe": ExchangerType.DOUBLE_PIPE}[args.exchanger_type]
         net = design_mer(streams, dt_min, utilities, costs=costs, solver=args.solver,
-                         time_limit=args.time_limit or 60.0, default_film_coefficient=args.default_h)
+                         time_limit=args.time_limit or 60.0, default_film_coefficient=args.default_h,
+                         exchanger_type=kind, tube_diameter=args.tube_diameter,
+                         hairpin_length=args.hairpin_length)
     result = net.to_dict()
     result["source"] = str(args.file)
     result["mode"] = args.mode

@@ -92,3 +92,17 @@ def test_cbc_solver_option(capsys, ray_das):
     code, out, _ = run(capsys, "design", ray_das, "--default-h", "1", "--solver", "cbc", "--json")
     assert code == 0
     assert all(s["solver"] == "cbc" for s in json.loads(out)["solves"])
+
+
+def test_exchanger_type_reports_geometry(capsys, ray_das):
+    code, out, _ = run(capsys, "design", ray_das, "--default-h", "1", "--exchanger-type", "shell-and-tube",
+                       "--json")
+    assert code == 0
+    units = json.loads(out)["exchangers"]
+    assert all(e["geometry"]["type"] == "shell_and_tube_1_2" and e["shells"] >= 1 for e in units)
+    code, _, err = run(capsys, "design", ray_das, "--default-h", "1", "--exchanger-type", "double-pipe")
+    assert code == 2 and "tube diameter" in err
+    code, out, _ = run(capsys, "design", ray_das, "--default-h", "1", "--exchanger-type", "double-pipe",
+                       "--tube-diameter", "0.05", "--hairpin-length", "6", "--json")
+    assert code == 0
+    assert all(e["geometry"]["hairpins"] >= 1 for e in json.loads(out)["exchangers"])
