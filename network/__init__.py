@@ -75,6 +75,8 @@ from .sizing import (
 )
 from .solvers import SolveReport, SolverName, SolveStatus, available_solvers, resolve_solver, solve
 from .structure import Cooler, Exchanger, Heater, Network, approach_violations, check_network
+from .tac import DEFAULT_EMAT, design_tac, network_from_solution, stagewise_milp, topology_from_network
+from .tac_nlp import TacProblem, Topology, TopologySolution, make_problem, polish_splits, solve_topology
 from .transshipment import Transshipment, transshipment
 
 __all__ = [
@@ -97,4 +99,6 @@ __all__ = [
     "Simulation", "UnitState", "simulate",
     "Change", "ChangeKind", "Retrofit", "RetrofitCosts", "RetrofitOption", "annuity_factor", "apply_changes",
     "retrofit_options",
+    "DEFAULT_EMAT", "design_tac", "network_from_solution", "stagewise_milp", "topology_from_network",
+    "TacProblem", "Topology", "TopologySolution", "make_problem", "polish_splits", "solve_topology",
 ]

@@ -157,6 +157,9 @@ def run(args) -> int:
                          "minimum approach (give --emat K)")
     if not tac and args.emat is not None:
         raise InputError("--emat applies to --mode tac only (--mode mer uses --dtmin)")
+    if tac and args.exchanger_type != "counter-current":
+        raise InputError(f"--exchanger-type {args.exchanger_type} applies to --mode mer only: the TAC design sizes "
+                         "counter-current units")
     streams, utilities = read_inputs(args)
     costs = None
     if args.costs:

@@ -189,9 +189,8 @@ def test_refined_topology_cost_matches_its_network():
 
 
 def test_infeasible_topology_is_reported_as_none():
-    # Roetzel, Luo & Chen 2020, Table 6.16 data: C2 (353 → 413 K) cannot be heated by H2 (423 K inlet)
-    # to its target without a heater when H2 is its only source in the last stage... any topology without a
-    # heater on C2 and without H1 needs C2's whole 2400 kW from H2 between 423 and 303 K: H2 gives 1800 kW.
+    # Roetzel, Luo & Chen 2020, Table 6.16 data: with no heater on C2 and H2 its only source, C2's whole
+    # duty, 40 kW/K × 60 K = 2400 kW, must come from H2, which has only 15 kW/K × 120 K = 1800 kW to give.
     data, streams = load_reference("synthesis_yee_grossmann_2h2c")
     p = make_problem(streams, reference_utilities(data), cost_settings(data["cost_law"]), 1.0)
     top = Topology(1, frozenset({(1, 1, 0)}), frozenset({(0, 0)}), frozenset({(0, 0), (1, 0)}))
