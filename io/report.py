@@ -148,7 +148,7 @@ _REFERENCES = {
     "shells": ("Minimum 1-2 shells (Ahmad & Smith, X_P criterion of Ahmad, Linnhoff & Smith)", "shells target",
                "Ahmad, S., Smith, R. (1989). Chemical Engineering Research and Design 67, 481-494; Ahmad, S., "
                "Linnhoff, B., Smith, R. (1988). Journal of Heat Transfer 110(2), 304-309"),
-    "capital": ("Capital and total annual cost targets (supertargeting)",
+    "capital": ("Capital and total annual cost targets before design",
                 "cost targets and their optimum against ΔTmin",
                 "Linnhoff, B., Ahmad, S. (1990). Cost optimum heat exchanger networks - 1. Computers & Chemical "
                 "Engineering 14(7), 729-750. doi:10.1016/0098-1354(90)87083-2"),

@@ -3,7 +3,7 @@
 The energy targets are piecewise linear in ΔTmin, with breakpoints where the pinch moves to another
 stream end; the area target is continuous and smooth between such events; the unit targets step.  So
 the total annual cost target TAC(ΔTmin) is continuous between *breakpoints* and may jump at them
-(Linnhoff & Ahmad 1990, "supertargeting").  :func:`sweep`:
+(Linnhoff & Ahmad 1990, cost targets before design).  :func:`sweep`:
 
 1. evaluates the targets (:func:`heatloom.pinch.area.area_targets`) on a grid of ΔTmin values;
 2. between neighbouring grid points whose *structure* differs (unit targets, the stream ends that define
