@@ -390,7 +390,8 @@ def _inputs(study: Study, page: _Page) -> str:
     return "".join(parts)
 
 
-def _assumptions(study: Study, page: _Page) -> str:
+def _assumptions(study, page: _Page) -> str:
+    """The assumptions table and notes of any study with ``assumption_rows()`` and ``notes`` (process or site)."""
     body = "".join(f"<tr><th scope=\"row\">{_esc(a)}</th><td>{_esc(v)}</td><td>{_esc(b)}</td></tr>"
                    for a, v, b in study.assumption_rows())
     table = ('<div class="table-wrap"><table id="assumptions-table"><caption>Assumptions and defaults in force'

@@ -16,7 +16,16 @@ from __future__ import annotations
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 
-from .report import RenderedReport, _esc, _frame_table, _long_table, _notes, _p, _Page, build_page
+from .report import (
+    RenderedReport,
+    _assumptions,
+    _esc,
+    _frame_table,
+    _long_table,
+    _p,
+    _Page,
+    build_page,
+)
 from .workbook import SAFETY_TEXT
 
 __all__ = ["SiteStudy", "SITE_SHEETS", "site_methods", "render_site_report", "site_sheets"]
@@ -166,15 +175,6 @@ def _inputs(study: SiteStudy, page: _Page) -> str:
         parts.append(_frame_table(mains[["main", "kind", "T [°C]", "price [money/kW·yr]"]],
                                   f"Mains as read ({study.mains_source or 'given'})", "mains-input-table"))
     return "".join(parts)
-
-
-def _assumptions(study: SiteStudy, page: _Page) -> str:
-    body = "".join(f"<tr><th scope=\"row\">{_esc(a)}</th><td>{_esc(v)}</td><td>{_esc(b)}</td></tr>"
-                   for a, v, b in study.assumption_rows())
-    table = ('<div class="table-wrap"><table id="assumptions-table"><caption>Assumptions and defaults in force'
-             '</caption><thead><tr><th scope="col">assumption</th><th scope="col">value</th><th scope="col">basis'
-             f"</th></tr></thead><tbody>{body}</tbody></table></div>")
-    return table + _notes(study.notes, "Notes on the inputs")
 
 
 def _zones(study: SiteStudy, page: _Page) -> str:
