@@ -17,7 +17,7 @@ the total annual cost target TAC(ΔTmin) is continuous between *breakpoints* and
 
 The independent evaluations of each step run on a local process pool
 (:class:`concurrent.futures.ProcessPoolExecutor`, ``workers``; workers start from a fork server, not by
-plain fork, see ``_pool_context``), serially (``workers=1``), or on a Dask
+plain fork, see :func:`heatloom.tasks.pool_context`), serially (``workers=1``), or on a Dask
 distributed cluster (``cluster``: a scheduler address or a ``dask.distributed.Client``; the optional
 extra ``heatloom[dask]``).  Every task is a pure function of its inputs and results are put back in
 order, so the result is identical whatever runs it.
@@ -38,8 +38,7 @@ from __future__ import annotations
 
 import math
 import os
-from collections.abc import Callable, Sequence
-from concurrent.futures import ProcessPoolExecutor, as_completed
+from collections.abc import Sequence
 from dataclasses import dataclass, field, replace
 from typing import NamedTuple
 
@@ -47,6 +46,7 @@ import numpy as np
 
 from ..errors import InfeasibleError, InputError, SolverError
 from ..model import StreamTable, Utility
+from ..tasks import Progress, TaskRunner, describe_executor
 from .area import CapitalBasis, area_targets, missing_film_coefficients, shell_target, unit_targets
 from .problem_table import shifted_ranges
 from .targets import Targets, target
@@ -64,9 +64,6 @@ __all__ = [
 
 MAX_POINTS = 20_001
 """Largest number of grid points a sweep accepts [-] (a guard against a mistyped step)."""
-
-Progress = Callable[[str, int, int], None]
-
 
 class _Signature(NamedTuple):
     """What may change at a breakpoint: feasibility, unit targets, the pinch-defining stream ends."""
@@ -241,6 +238,7 @@ class _Case:
     default_h: float | None
     basis: CapitalBasis
     x_p: float | None
+    price_factor: float = 1.0   # on the assumed (ideal) utilities' prices; given utilities carry theirs
 
 
 def _pinch_ends(t: Targets) -> tuple:
@@ -286,8 +284,9 @@ def _evaluate(case: _Case, x: float, kind: str = "grid") -> SweepPoint:
     sig = _Signature(True, a.units, a.units_mer, a.shells if case.basis is CapitalBasis.SHELLS else None,
                      _pinch_ends(t), None if t.threshold is None else t.threshold.value)
     p = t.pinch
+    energy = a.energy_cost * case.price_factor
     return SweepPoint(float(x), True, t.hot_utility, t.cold_utility, a.area, a.units, a.units_mer, a.shells,
-                      a.capital_cost, a.energy_cost, a.total_annual_cost, None if p is None else p.hot,
+                      a.capital_cost, energy, a.capital_cost + energy, None if p is None else p.hot,
                       None if p is None else p.cold, kind, "", sig)
 
 
@@ -329,7 +328,7 @@ def sweep_point(streams: StreamTable, dt_min: float, utilities: Sequence[Utility
     return _evaluate(case, float(dt_min))
 
 
-def _case(streams, utilities, costs, default_h, basis, x_p) -> _Case:
+def _case(streams, utilities, costs, default_h, basis, x_p, price_factor: float = 1.0) -> _Case:
     try:
         basis = CapitalBasis(basis)
     except ValueError:
@@ -346,8 +345,17 @@ def _case(streams, utilities, costs, default_h, basis, x_p) -> _Case:
         from ..network.cost import CostSettings
 
         costs = CostSettings()
-    return _Case(streams, None if utilities is None else tuple(utilities), costs,
-                 None if default_h is None else float(default_h), basis, x_p)
+    try:
+        price_factor = float(price_factor)
+    except (TypeError, ValueError):
+        raise InputError(f"the price factor must be a number, got {price_factor!r}") from None
+    if not (price_factor >= 0) or not math.isfinite(price_factor):
+        raise InputError(f"the price factor must be a finite number >= 0, got {price_factor!r}")
+    if utilities is not None:
+        utilities = tuple(u if price_factor == 1.0 else replace(u, cost=u.cost * price_factor) for u in utilities)
+        price_factor = 1.0
+    return _Case(streams, utilities, costs, None if default_h is None else float(default_h), basis, x_p,
+                 price_factor)
 
 
 def _check_dt(x, what: str) -> float:
@@ -413,115 +421,8 @@ def _task_design(case: _Case, x: float, solver: str | None, time_limit: float) -
     except (InfeasibleError, SolverError) as e:
         return DesignPoint(float(x), error=f"{type(e).__name__}: {e}")
     area = float(sum(u.area for u in (*net.exchangers, *net.heaters, *net.coolers)))
-    return DesignPoint(float(x), net.units, area, net.capital_cost, net.operating_cost, net.total_annual_cost)
-
-
-# --------------------------------------------------------------------------------------------------
-# running tasks
-
-
-def _pool_context():
-    """Start method of the process pool: forkserver (spawn where there is none), never plain fork.
-
-    A forked worker inherits the parent's memory but not its threads; solver libraries (HiGHS) keep
-    thread pools that then hang in the child.  The fork server is a fresh process that has imported only
-    this module, so its workers start quickly and clean.
-    """
-    import multiprocessing
-
-    if "forkserver" in multiprocessing.get_all_start_methods():
-        ctx = multiprocessing.get_context("forkserver")
-        ctx.set_forkserver_preload([__name__, "heatloom.network"])
-        return ctx
-    return multiprocessing.get_context("spawn")
-
-
-class _Runner:
-    """Runs lists of independent tasks serially, on a process pool or on a Dask cluster; keeps order."""
-
-    def __init__(self, workers: int | None, cluster, progress: Progress | None) -> None:
-        self.progress = progress
-        self._pool = None
-        self._client = None
-        self._own_client = False
-        if cluster is not None:
-            try:
-                from dask.distributed import Client
-            except ImportError:
-                raise InputError("a Dask cluster was asked for but dask.distributed is not installed: "
-                                 "pip install 'heatloom[dask]' (or \"dask[distributed]\")") from None
-            if isinstance(cluster, str):
-                try:
-                    self._client = Client(cluster, timeout=30)
-                except OSError as e:
-                    raise InputError(f"cannot reach the Dask scheduler at {cluster!r}: {e}") from None
-                self._own_client = True
-            elif hasattr(cluster, "submit") and hasattr(cluster, "gather"):
-                self._client = cluster
-            else:
-                raise InputError(f"cluster must be a scheduler address or a dask.distributed Client, got "
-                                 f"{type(cluster).__name__}")
-            self.name = describe_executor(workers, cluster)
-        else:
-            if workers is not None and (isinstance(workers, bool) or not isinstance(workers, int) or workers < 1):
-                raise InputError(f"workers must be a whole number >= 1, got {workers!r}")
-            self._workers = workers
-            self.name = describe_executor(workers, None)
-
-    def map(self, fn, arglists: list[tuple], phase: str) -> list:
-        n = len(arglists)
-        if self.progress:
-            self.progress(phase, 0, n)
-        if n == 0:
-            return []
-        out = [None] * n
-        if self._client is not None:
-            from dask.distributed import as_completed as dask_completed
-
-            futures = [self._client.submit(fn, *args, pure=False) for args in arglists]
-            index = {f.key: i for i, f in enumerate(futures)}
-            for done, f in enumerate(dask_completed(futures), start=1):
-                out[index[f.key]] = f.result()
-                if self.progress:
-                    self.progress(phase, done, n)
-            return out
-        if self.name == "serial":
-            for i, args in enumerate(arglists):
-                out[i] = fn(*args)
-                if self.progress:
-                    self.progress(phase, i + 1, n)
-            return out
-        if self._pool is None:
-            self._pool = ProcessPoolExecutor(max_workers=self._workers, mp_context=_pool_context())
-        futures = {self._pool.submit(fn, *args): i for i, args in enumerate(arglists)}
-        for done, f in enumerate(as_completed(futures), start=1):
-            out[futures[f]] = f.result()
-            if self.progress:
-                self.progress(phase, done, n)
-        return out
-
-    def close(self) -> None:
-        if self._pool is not None:
-            self._pool.shutdown(cancel_futures=True)
-            self._pool = None
-        if self._client is not None and self._own_client:
-            self._client.close()
-            self._client = None
-
-
-def describe_executor(workers: int | None = None, cluster=None) -> str:
-    """What runs the tasks of a sweep with these settings, in words.
-
-    Examples
-    --------
-    >>> describe_executor(1), describe_executor(2)
-    ('serial', 'process pool (2 workers)')
-    """
-    if cluster is not None:
-        return f"Dask cluster {cluster}" if isinstance(cluster, str) else "Dask cluster"
-    if workers == 1:
-        return "serial"
-    return f"process pool ({workers or os.cpu_count() or 1} workers)"
+    operating = net.operating_cost * case.price_factor
+    return DesignPoint(float(x), net.units, area, net.capital_cost, operating, net.capital_cost + operating)
 
 
 # --------------------------------------------------------------------------------------------------
@@ -587,8 +488,8 @@ def sweep(streams: StreamTable, dt_min_range: tuple[float, float], utilities: Se
           cluster=None, default_film_coefficient: float | None = None,
           capital_basis: CapitalBasis | str = CapitalBasis.UNITS_MER, x_p: float | None = None,
           resolution: float = 1e-3, xtol: float = 0.01, refine_margin: float = 0.01,
-          progress: Progress | None = None, solver: str | None = None, design_time_limit: float = 60.0
-          ) -> Sweep:
+          progress: Progress | None = None, solver: str | None = None, design_time_limit: float = 60.0,
+          price_factor: float = 1.0) -> Sweep:
     """Total annual cost target against ΔTmin, its breakpoints and its optimum.
 
     .. math:: TAC(\\Delta T_{min}) = \\phi\\,N\\,[a + b\\,(A_{min}/N)^c] + \\sum_u c_u Q_u
@@ -630,6 +531,9 @@ def sweep(streams: StreamTable, dt_min_range: tuple[float, float], utilities: Se
         Called as ``progress(phase, done, total)`` while tasks complete (for progress bars).
     solver, design_time_limit
         Passed to design (MILP solver name, time limit of each solve [s]).
+    price_factor : float, optional
+        Multiplies every utility price [-] (the given utilities', else the assumed ones'), for price
+        scenarios (:mod:`heatloom.pinch.scenarios`); default 1.
 
     Returns
     -------
@@ -674,9 +578,9 @@ def sweep(streams: StreamTable, dt_min_range: tuple[float, float], utilities: Se
         if not (float(v) > 0):
             raise InputError(f"{name} must be > 0 K, got {v!r}")
     design_at = tuple(_check_dt(x, "design ΔTmin") for x in designs)
-    case = _case(streams, utilities, costs, default_film_coefficient, capital_basis, x_p)
+    case = _case(streams, utilities, costs, default_film_coefficient, capital_basis, x_p, price_factor)
     xs = _grid(low, high, step)
-    runner = _Runner(workers, cluster, progress)
+    runner = TaskRunner(workers, cluster, progress)
     try:
         n_tasks = 1 if runner.name == "serial" else min(len(xs), 4 * (workers or os.cpu_count() or 1))
         chunks = [tuple(float(x) for x in c) for c in np.array_split(xs, n_tasks) if c.size]

@@ -13,7 +13,7 @@ EXIT_OK, EXIT_UNEXPECTED, EXIT_INPUT, EXIT_INFEASIBLE = 0, 1, 2, 3
 
 __all__ = ["EXIT_OK", "EXIT_UNEXPECTED", "EXIT_INPUT", "EXIT_INFEASIBLE", "DEFAULT_DT_MIN", "SAFETY_NOTE", "positive", "positive_or_zero", "add_shared", "add_table_options",
            "note", "read_inputs", "whole_number", "add_output_options", "dt_min_of", "fmt", "solves_summary", "print_json", "finish", "CASE_SUFFIXES",
-           "CASE_ROLES", "case_candidates", "find_case_files"]
+           "CASE_ROLES", "case_candidates", "find_case_files", "ProgressBars"]
 
 DEFAULT_DT_MIN = 10.0
 """Default minimum approach temperature [K] (*common practice* for a first look at liquid–liquid
@@ -146,6 +146,34 @@ def finish(args, result: dict, summary: str, out) -> int:
         if out is not None:
             print(f"  wrote {len(out.written)} files to {out.path}/")
     return EXIT_OK
+
+
+class ProgressBars:
+    """One tqdm bar per phase of a long run (``progress(phase, done, total)``), on stderr."""
+
+    def __init__(self, label: str, enabled: bool) -> None:
+        self.label = label
+        self.enabled = enabled
+        self.bar = None
+        self.phase = None
+
+    def __call__(self, phase: str, done: int, total: int) -> None:
+        if not self.enabled:
+            return
+        from tqdm import tqdm
+
+        if phase != self.phase:
+            self.close()
+            self.phase = phase
+            self.bar = tqdm(total=total, desc=f"{self.label}: {phase}", unit="task", file=sys.stderr,
+                            leave=False)
+        self.bar.n = done
+        self.bar.refresh()
+
+    def close(self) -> None:
+        if self.bar is not None:
+            self.bar.close()
+            self.bar = None
 
 
 # --------------------------------------------------------------------------------------------------

@@ -3,11 +3,11 @@
 from __future__ import annotations
 
 import argparse
-import sys
 
 from ..errors import InputError
 from .common import (
     SAFETY_NOTE,
+    ProgressBars,
     add_output_options,
     add_table_options,
     finish,
@@ -172,33 +172,6 @@ def format_sweep(result, source: str, range_note: str, runner: str) -> str:
     return "\n".join(lines)
 
 
-class _Bars:
-    """One tqdm bar per phase of the sweep, on stderr."""
-
-    def __init__(self, enabled: bool) -> None:
-        self.enabled = enabled
-        self.bar = None
-        self.phase = None
-
-    def __call__(self, phase: str, done: int, total: int) -> None:
-        if not self.enabled:
-            return
-        from tqdm import tqdm
-
-        if phase != self.phase:
-            self.close()
-            self.phase = phase
-            self.bar = tqdm(total=total, desc=f"heatloom sweep: {phase}", unit="task", file=sys.stderr,
-                            leave=False)
-        self.bar.n = done
-        self.bar.refresh()
-
-    def close(self) -> None:
-        if self.bar is not None:
-            self.bar.close()
-            self.bar = None
-
-
 def run(args) -> int:
     from ..pinch.area import missing_film_coefficients
     from ..pinch.sweep import describe_executor, sweep
@@ -227,7 +200,7 @@ def run(args) -> int:
         out.check(OUTPUT_FILES)
     if missing:
         note(args, f"heatloom: film coefficient {args.default_h:g} kW/(m²·K) assumed for {', '.join(missing)}")
-    bars = _Bars(enabled=not (args.quiet or args.json))
+    bars = ProgressBars("heatloom sweep", enabled=not (args.quiet or args.json))
     runner_name = describe_executor(args.workers, args.cluster)
     try:
         result = sweep(streams, rng, utilities, costs, step=args.step, designs=args.designs, workers=args.workers,
