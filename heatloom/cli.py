@@ -17,7 +17,7 @@ __all__ = ["main", "build_parser", "COMMANDS"]
 
 from .commands.common import EXIT_INFEASIBLE, EXIT_INPUT, EXIT_UNEXPECTED
 
-COMMANDS = ("target", "design", "sweep", "site", "retrofit", "report")
+COMMANDS = ("target", "design", "sweep", "site", "scenarios", "retrofit", "report")
 """Command modules under heatloom.commands, in the order of the help text; each has register(sub)."""
 
 

@@ -71,6 +71,8 @@ COLUMN_KINDS: dict[str, QuantityKind | None] = {
     "cost": QuantityKind.COST_RATE,
     "T": QuantityKind.TEMPERATURE,
     "Q_cumulative": QuantityKind.DUTY,
+    "scenario": None,
+    "factor": None,
 }
 """Canonical column names and the quantity each holds (``None``: text)."""
 
@@ -93,6 +95,8 @@ ALIASES: dict[str, tuple[str, ...]] = {
     "Q_cumulative": ("Q_cumulative", "Q cumulative", "cumulative Q", "Q cum", "Qcum", "cumulative duty",
                      "cumulative heat", "cumulative heat load", "heat flow", "enthalpy flow", "enthalpy",
                      "Q", "duty"),
+    "scenario": ("scenario", "scenario name", "case", "case name", "price scenario"),
+    "factor": ("factor", "price factor", "multiplier", "price multiplier"),
 }
 """Accepted names of each canonical column (compared after :func:`normalise_name`).
 
