@@ -2,9 +2,11 @@
 `pythonpath` setting of pytest puts tests/ on the path)."""
 
 import json
+import re
 from pathlib import Path
 
 from heatloom.model import Stream, StreamTable, Utility, UtilityKind
+from heatloom.network.cost import CostLaw, CostSettings
 
 DATA = Path(__file__).parent / "data"
 REFERENCES = DATA / "references"
@@ -30,3 +32,30 @@ def reference_utilities(data: dict) -> list[Utility]:
     return [Utility(u["name"], u["T_supply"] + off, u["T_target"] + off, u["cost_per_kW_year"],
                     UtilityKind.HOT if u["name"] == "HU" else UtilityKind.COLD, u.get("h"))
             for u in data["utilities"]]
+
+
+# the published cost laws of the synthesis files, parsed from their text independently of the code under test
+
+LAW = re.compile(r"\s*(?:(?P<fixed>[\d.]+)\s*\+\s*)?(?P<per_area>[\d.]+)\s*\*\s*A(?:\s*\*\*\s*(?P<exp>[\d.]+))?"
+                 r"\s*per year\s*")
+
+
+def parse_law(text: str) -> tuple[float, float, float]:
+    """'8600 + 670*A**0.83 per year' → (8600, 670, 0.83)."""
+    m = LAW.fullmatch(text)
+    assert m, text
+    return float(m["fixed"] or 0.0), float(m["per_area"]), float(m["exp"] or 1.0)
+
+
+def published_laws(cost_law: dict) -> dict:
+    """Unit kind → (fixed, per_area, exponent) from a reference file's cost law text."""
+    if "all_units" in cost_law:
+        law = parse_law(cost_law["all_units"])
+        return {"exchanger": law, "heater": law, "cooler": law}
+    return {"exchanger": parse_law(cost_law["exchangers_and_coolers"]), "heater": parse_law(cost_law["heaters"]),
+            "cooler": parse_law(cost_law["exchangers_and_coolers"])}
+
+
+def cost_settings(cost_law: dict) -> CostSettings:
+    laws = {k: CostLaw(*v) for k, v in published_laws(cost_law).items()}
+    return CostSettings(annualised=True, **laws)

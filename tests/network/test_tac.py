@@ -9,12 +9,11 @@ U = 1/(1/h_hot + 1/h_cold); the published cost laws are parsed here from the fil
 the code under test.  Invented data (marked) serve only the property checks.
 """
 
-import re
 
 import ht
 import numpy as np
 import pytest
-from refdata import load_reference, reference_utilities
+from refdata import cost_settings, load_reference, published_laws, reference_utilities
 
 from heatloom.errors import InputError
 from heatloom.model import Segment, Stream, StreamTable, Utility, UtilityKind
@@ -23,30 +22,6 @@ from heatloom.network.design import design_mer
 from heatloom.network.structure import check_network
 from heatloom.network.tac import design_tac, stagewise_milp, topology_from_network
 from heatloom.network.tac_nlp import Topology, _log_mean_and_gradient, make_problem, solve_topology
-
-LAW = re.compile(r"\s*(?:(?P<fixed>[\d.]+)\s*\+\s*)?(?P<per_area>[\d.]+)\s*\*\s*A(?:\s*\*\*\s*(?P<exp>[\d.]+))?"
-                 r"\s*per year\s*")
-
-
-def parse_law(text: str) -> tuple[float, float, float]:
-    """'8600 + 670*A**0.83 per year' → (8600, 670, 0.83)."""
-    m = LAW.fullmatch(text)
-    assert m, text
-    return float(m["fixed"] or 0.0), float(m["per_area"]), float(m["exp"] or 1.0)
-
-
-def published_laws(cost_law: dict) -> dict:
-    """Unit kind → (fixed, per_area, exponent) from a reference file's cost law text."""
-    if "all_units" in cost_law:
-        law = parse_law(cost_law["all_units"])
-        return {"exchanger": law, "heater": law, "cooler": law}
-    return {"exchanger": parse_law(cost_law["exchangers_and_coolers"]), "heater": parse_law(cost_law["heaters"]),
-            "cooler": parse_law(cost_law["exchangers_and_coolers"])}
-
-
-def cost_settings(cost_law: dict) -> CostSettings:
-    laws = {k: CostLaw(*v) for k, v in published_laws(cost_law).items()}
-    return CostSettings(annualised=True, **laws)
 
 
 def recomputed_tac(net, data, streams) -> float:
