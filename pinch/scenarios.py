@@ -261,14 +261,33 @@ class ScenarioStudy:
                 "executor": self.executor}
 
     def frames(self) -> dict:
-        """pandas DataFrames: ``cases``, ``optima``, ``totals``, ``scenarios`` (for CSV and workbooks)."""
+        """pandas DataFrames ``cases``, ``optima``, ``totals``, ``scenarios``, units in the headers."""
         import pandas as pd
 
-        return {"cases": pd.DataFrame([c.to_dict() for c in self.cases]),
-                "optima": pd.DataFrame([o.to_dict() for o in self.optima]),
-                "totals": pd.DataFrame([t.to_dict() for t in self.totals]),
-                "scenarios": pd.DataFrame([{**s.to_dict(), "prices": "; ".join(f"{k}={v:g}" for k, v in s.prices)}
-                                           for s in self.scenarios])}
+        def frame(rows):
+            f = pd.DataFrame(rows)
+            return f.rename(columns={c: _label(c, self.currency) for c in f.columns})
+
+        scenarios = [{**s.to_dict(), "prices": "; ".join(f"{k}={v:g}" for k, v in s.prices)} for s in self.scenarios]
+        return {"cases": frame([c.to_dict() for c in self.cases]), "optima": frame([o.to_dict() for o in self.optima]),
+                "totals": frame([t.to_dict() for t in self.totals]), "scenarios": frame(scenarios)}
+
+
+_UNITS = {"dtmin": "K", "hot_utility": "kW", "cold_utility": "kW", "area": "m²", "units": "-", "units_mer": "-",
+          "shells": "-", "pinch_hot": "°C", "pinch_cold": "°C", "breakpoints": "-", "factor": "-", "zones": "-",
+          "prices": "per kW·year"}
+
+
+def _label(key: str, currency: str) -> str:
+    """``design_total_annual_cost`` → ``design total annual cost [USD/yr]``."""
+    prefix = ""
+    for p in ("best_design_", "design_"):
+        if key.startswith(p):
+            prefix, key = p.replace("_", " "), key[len(p):]
+            break
+    unit = f"{currency}/yr" if key.endswith("_cost") else _UNITS.get(key)
+    name = {"dtmin": "ΔTmin", "units_mer": "units MER"}.get(key, key.replace("_", " "))
+    return f"{prefix}{name}" + (f" [{unit}]" if unit else "")
 
 
 # --------------------------------------------------------------------------------------------------
