@@ -4,6 +4,7 @@ from .costs import costs_from_mapping, read_costs, read_retrofit_costs, retrofit
 from .export import OutputDirectory, to_jsonable
 from .network_table import NETWORK_ALIASES, NETWORK_COLUMNS, read_network
 from .points import DEFAULT_FIT_TOLERANCE, fit_points, fit_vertices
+from .scenarios import SCENARIO_COLUMNS, read_price_scenarios
 from .site import MAINS_COLUMNS, Site, read_mains, read_site
 from .streams import POINT_COLUMNS, SEGMENT_COLUMNS, read_streams
 from .tables import (
@@ -30,6 +31,8 @@ __all__ = [
     "NETWORK_COLUMNS",
     "NETWORK_ALIASES",
     "read_site",
+    "read_price_scenarios",
+    "SCENARIO_COLUMNS",
     "read_mains",
     "Site",
     "MAINS_COLUMNS",

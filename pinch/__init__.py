@@ -14,6 +14,15 @@ from .area import (
 )
 from .curves import Curve, cold_composite, grand_composite, hot_composite
 from .problem_table import ProblemTable, net_heat_capacity_flow, problem_table, shifted_ranges, zero_tolerance
+from .scenarios import (
+    PriceScenario,
+    ScenarioCase,
+    ScenarioOptimum,
+    ScenarioStudy,
+    ScenarioTotal,
+    price_factor_scenarios,
+    scenario_study,
+)
 from .site import (
     MainBalance,
     MainKind,
@@ -49,6 +58,13 @@ __all__ = [
     "describe_executor",
     "sweep",
     "sweep_point",
+    "PriceScenario",
+    "ScenarioCase",
+    "ScenarioOptimum",
+    "ScenarioStudy",
+    "ScenarioTotal",
+    "price_factor_scenarios",
+    "scenario_study",
     "Curve",
     "cold_composite",
     "grand_composite",
