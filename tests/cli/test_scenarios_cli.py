@@ -166,3 +166,19 @@ def test_cluster_without_dask_exit_2(run, site, monkeypatch):
     monkeypatch.setitem(sys.modules, "dask.distributed", None)
     code, _, err = run("scenarios", site / "site", "--cluster", "tcp://127.0.0.1:1")
     assert code == 2 and "heatloom[dask]" in err
+
+
+def test_cluster_address_from_the_command_line(run, site):
+    """--cluster with a scheduler address: a local Dask cluster in this process stands in for a real one."""
+    distributed = pytest.importorskip("dask.distributed")
+    args = ("scenarios", site / "site", "--price-factors", "1,2", "--dtmin", "5:15", "--step", "5", "--json")
+    _, serial, _ = run(*args, "--workers", "1")
+    with distributed.LocalCluster(processes=False, n_workers=1, threads_per_worker=2,
+                                  dashboard_address=None) as cluster:
+        code, on_dask, _ = run(*args, "--cluster", cluster.scheduler_address)
+        address = cluster.scheduler_address
+    assert code == 0
+    a, b = json.loads(serial), json.loads(on_dask)
+    assert a["executor"] == "serial" and b["executor"] == f"Dask cluster {address}"
+    a.pop("executor"), b.pop("executor")
+    assert a == b
