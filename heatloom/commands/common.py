@@ -13,7 +13,8 @@ EXIT_OK, EXIT_UNEXPECTED, EXIT_INPUT, EXIT_INFEASIBLE = 0, 1, 2, 3
 
 __all__ = ["EXIT_OK", "EXIT_UNEXPECTED", "EXIT_INPUT", "EXIT_INFEASIBLE", "DEFAULT_DT_MIN", "SAFETY_NOTE", "positive", "positive_or_zero", "add_shared", "add_table_options",
            "note", "read_inputs", "whole_number", "add_output_options", "dt_min_of", "fmt", "solves_summary", "print_json", "finish", "CASE_SUFFIXES",
-           "CASE_ROLES", "case_candidates", "find_case_files", "ProgressBars"]
+           "CASE_ROLES", "case_candidates", "find_case_files", "ProgressBars", "add_cost_target_options",
+           "add_site_table_options", "check_cost_target_inputs"]
 
 DEFAULT_DT_MIN = 10.0
 """Default minimum approach temperature [K] (*common practice* for a first look at liquid–liquid
@@ -81,6 +82,44 @@ def add_table_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--fit-tolerance", type=positive, default=0.5, metavar="K",
                    help="largest temperature error when fitting temperature–duty points into linear "
                         "segments [K] (default 0.5 K; the fit is always on the safe side)")
+
+
+def add_cost_target_options(p: argparse.ArgumentParser) -> None:
+    """--default-h, --capital-basis, --workers, --cluster: cost targets over many cases (sweep, scenarios)."""
+    p.add_argument("--default-h", type=positive, metavar="H",
+                   help="film coefficient [kW/(m²·K)] assumed for streams and utilities without one")
+    p.add_argument("--capital-basis", choices=["units_mer", "units", "shells"], default="units_mer",
+                   help="what the target area is shared among for the capital cost (default units_mer: the "
+                        "minimum units of a maximum-energy-recovery network)")
+    p.add_argument("--workers", type=whole_number(1), default=None, metavar="N",
+                   help="processes of the local pool (default: one per core; 1 runs in this process)")
+    p.add_argument("--cluster", metavar="ADDRESS",
+                   help="run on a Dask distributed cluster at this scheduler address instead")
+
+
+def add_site_table_options(p: argparse.ArgumentParser) -> None:
+    """--one-zone-workbook, --columns, --fit-tolerance: how the zone stream tables of a site are read."""
+    p.add_argument("--one-zone-workbook", action="store_true",
+                   help="read a workbook's first sheet as one zone instead of one zone per sheet")
+    p.add_argument("--columns", metavar="MAP",
+                   help='map foreign column headers of the stream tables, e.g. "Stream=name,Tin=T_supply"')
+    p.add_argument("--fit-tolerance", type=positive, default=0.5, metavar="K",
+                   help="largest temperature error when fitting temperature–duty points [K] (default 0.5 K)")
+
+
+def check_cost_target_inputs(missing: list[str], default_h: float | None, cluster: str | None) -> None:
+    """Refuse before computing: film coefficients missing with no --default-h; --cluster without Dask."""
+    from ..errors import InputError
+
+    if missing and default_h is None:
+        shown = ", ".join(missing[:10]) + (" ..." if len(missing) > 10 else "")
+        raise InputError(f"film coefficient h missing for {shown}: area and cost targets need one for every stream "
+                         "and utility (add an h column in kW/(m²·K), or assume one with --default-h)")
+    if cluster is not None:
+        try:
+            import dask.distributed  # noqa: F401
+        except ImportError:
+            raise InputError("--cluster needs the optional Dask support: pip install 'heatloom[dask]'") from None
 
 
 def note(args, text: str) -> None:

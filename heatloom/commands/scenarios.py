@@ -4,16 +4,17 @@ from __future__ import annotations
 
 import argparse
 
-from ..errors import InputError
 from .common import (
     SAFETY_NOTE,
     ProgressBars,
+    add_cost_target_options,
     add_output_options,
+    add_site_table_options,
+    check_cost_target_inputs,
     finish,
     fmt,
     note,
     positive,
-    whole_number,
 )
 from .sweep import DEFAULT_RANGE, parse_range
 
@@ -118,20 +119,8 @@ def register(sub) -> None:
                    help="MILP solver of the designs (default: HiGHS when installed, else CBC)")
     p.add_argument("--time-limit", type=positive, default=30.0, metavar="S",
                    help="time limit of each design MILP solve [s] (default 30)")
-    p.add_argument("--default-h", type=positive, metavar="H",
-                   help="film coefficient [kW/(m²·K)] assumed for streams and utilities without one")
-    p.add_argument("--capital-basis", choices=["units_mer", "units", "shells"], default="units_mer",
-                   help="what the target area is shared among for the capital cost (default units_mer)")
-    p.add_argument("--workers", type=whole_number(1), default=None, metavar="N",
-                   help="processes of the local pool (default: one per core; 1 runs in this process)")
-    p.add_argument("--cluster", metavar="ADDRESS",
-                   help="run on a Dask distributed cluster at this scheduler address instead")
-    p.add_argument("--one-zone-workbook", action="store_true",
-                   help="read a workbook's first sheet as one zone instead of one zone per sheet")
-    p.add_argument("--columns", metavar="MAP",
-                   help='map foreign column headers of the stream tables, e.g. "Stream=name,Tin=T_supply"')
-    p.add_argument("--fit-tolerance", type=positive, default=0.5, metavar="K",
-                   help="largest temperature error when fitting temperature–duty points [K] (default 0.5 K)")
+    add_cost_target_options(p)
+    add_site_table_options(p)
     add_output_options(p)
     p.set_defaults(handler=run)
 
@@ -211,15 +200,7 @@ def run(args) -> int:
     costs = read_costs(args.costs) if args.costs else None
     rng, range_note = (args.dtmin, "given") if args.dtmin is not None else (DEFAULT_RANGE, "default; set with --dtmin LO:HI")
     missing = sorted({m for z in site.zones for m in missing_film_coefficients(z.streams, utilities or ())})
-    if missing and args.default_h is None:
-        raise InputError(f"film coefficient h missing for {', '.join(missing[:10])}"
-                         f"{' ...' if len(missing) > 10 else ''}: area and cost targets need one for every stream "
-                         "and utility (add an h column in kW/(m²·K), or assume one with --default-h)")
-    if args.cluster is not None:
-        try:
-            import dask.distributed  # noqa: F401
-        except ImportError:
-            raise InputError("--cluster needs the optional Dask support: pip install 'heatloom[dask]'") from None
+    check_cost_target_inputs(missing, args.default_h, args.cluster)
     out = None
     if args.out:
         from ..io.export import OutputDirectory

@@ -8,11 +8,11 @@ from ..errors import InputError
 from .common import (
     DEFAULT_DT_MIN,
     SAFETY_NOTE,
+    add_site_table_options,
     dt_min_of,
     finish,
     fmt,
     note,
-    positive,
     positive_or_zero,
 )
 
@@ -54,12 +54,7 @@ def register(sub) -> None:
                    help="a zone's own ΔTmin [K]; repeat for several zones")
     p.add_argument("--site-dt", type=positive_or_zero, default=0.0, metavar="K",
                    help="extra temperature difference for raising and using steam [K] (default 0 K)")
-    p.add_argument("--one-zone-workbook", action="store_true",
-                   help="read a workbook's first sheet as one zone instead of one zone per sheet")
-    p.add_argument("--columns", metavar="MAP",
-                   help='map foreign column headers of the stream tables, e.g. "Stream=name,Tin=T_supply"')
-    p.add_argument("--fit-tolerance", type=positive, default=0.5, metavar="K",
-                   help="largest temperature error when fitting temperature–duty points [K] (default 0.5 K)")
+    add_site_table_options(p)
     p.add_argument("--json", action="store_true", help="print one JSON object on stdout and nothing else")
     p.add_argument("--out", metavar="DIR", help="folder for result files (CSV, XLSX, JSON, PNG and SVG figures)")
     p.add_argument("--force", action="store_true",

@@ -4,18 +4,18 @@ from __future__ import annotations
 
 import argparse
 
-from ..errors import InputError
 from .common import (
     SAFETY_NOTE,
     ProgressBars,
+    add_cost_target_options,
     add_output_options,
     add_table_options,
+    check_cost_target_inputs,
     finish,
     fmt,
     note,
     positive,
     read_inputs,
-    whole_number,
 )
 
 __all__ = ["register", "run", "format_sweep", "parse_range", "parse_designs", "DEFAULT_RANGE", "DEFAULT_STEP"]
@@ -101,15 +101,7 @@ def register(sub) -> None:
     p.add_argument("--costs", metavar="FILE", help="cost laws and annualisation (JSON, YAML or .xlsx)")
     p.add_argument("--designs", type=parse_designs, default=(), metavar="LIST",
                    help="also design a network at these ΔTmin values [K], e.g. 10,20")
-    p.add_argument("--default-h", type=positive, metavar="H",
-                   help="film coefficient [kW/(m²·K)] assumed for streams and utilities without one")
-    p.add_argument("--capital-basis", choices=["units_mer", "units", "shells"], default="units_mer",
-                   help="what the target area is shared among for the capital cost (default units_mer: the "
-                        "minimum units of a maximum-energy-recovery network)")
-    p.add_argument("--workers", type=whole_number(1), default=None, metavar="N",
-                   help="processes of the local pool (default: one per core; 1 runs in this process)")
-    p.add_argument("--cluster", metavar="ADDRESS",
-                   help="run on a Dask distributed cluster at this scheduler address instead")
+    add_cost_target_options(p)
     add_output_options(p)
     add_table_options(p)
     p.set_defaults(handler=run)
@@ -184,14 +176,7 @@ def run(args) -> int:
         costs = read_costs(args.costs)
     rng, range_note = (args.dtmin, "given") if args.dtmin is not None else (DEFAULT_RANGE, "default; set with --dtmin LO:HI")
     missing = missing_film_coefficients(streams, utilities or ())
-    if missing and args.default_h is None:
-        raise InputError(f"film coefficient h missing for {', '.join(missing)}: area and cost targets need one for "
-                         "every stream and utility (add an h column in kW/(m²·K), or assume one with --default-h)")
-    if args.cluster is not None:
-        try:
-            import dask.distributed  # noqa: F401
-        except ImportError:
-            raise InputError("--cluster needs the optional Dask support: pip install 'heatloom[dask]'") from None
+    check_cost_target_inputs(missing, args.default_h, args.cluster)
     out = None
     if args.out:
         from ..io.export import OutputDirectory
