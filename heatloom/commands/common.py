@@ -14,7 +14,7 @@ EXIT_OK, EXIT_UNEXPECTED, EXIT_INPUT, EXIT_INFEASIBLE = 0, 1, 2, 3
 __all__ = ["EXIT_OK", "EXIT_UNEXPECTED", "EXIT_INPUT", "EXIT_INFEASIBLE", "DEFAULT_DT_MIN", "SAFETY_NOTE", "positive", "positive_or_zero", "add_shared", "add_table_options",
            "note", "read_inputs", "whole_number", "add_output_options", "dt_min_of", "fmt", "solves_summary", "print_json", "finish", "CASE_SUFFIXES",
            "CASE_ROLES", "case_candidates", "find_case_files", "ProgressBars", "add_cost_target_options",
-           "add_site_table_options", "check_cost_target_inputs"]
+           "add_site_table_options", "check_cost_target_inputs", "number_list"]
 
 DEFAULT_DT_MIN = 10.0
 """Default minimum approach temperature [K] (*common practice* for a first look at liquid–liquid
@@ -51,6 +51,31 @@ def whole_number(low: int):
             raise argparse.ArgumentTypeError(f"expected a whole number >= {low}, got {text!r}")
         return n
     return parse
+
+
+def number_list(text: str, *, what: str, example: str, zero_allowed: bool, unique: bool = False
+                ) -> tuple[float, ...]:
+    """``"0.5, 1,2"`` → (0.5, 1.0, 2.0): finite numbers > 0 (or >= 0), for options that take a list.
+
+    Examples
+    --------
+    >>> number_list("10, 20.5", what="ΔTmin values", example="10,20", zero_allowed=False)
+    (10.0, 20.5)
+    """
+    out = []
+    for part in str(text).split(","):
+        try:
+            x = float(part)
+        except ValueError:
+            raise argparse.ArgumentTypeError(f"expected {what} separated by commas, e.g. {example}, got "
+                                             f"{text!r}") from None
+        if not (x > 0 or (zero_allowed and x == 0)) or x == float("inf"):
+            raise argparse.ArgumentTypeError(f"each of the {what} must be a finite number "
+                                             f"{'>=' if zero_allowed else '>'} 0, got {part.strip()!r}")
+        out.append(x)
+    if unique and len(set(out)) != len(out):
+        raise argparse.ArgumentTypeError(f"a value is given twice in {text!r}")
+    return tuple(out)
 
 
 def add_output_options(p: argparse.ArgumentParser) -> None:

@@ -14,6 +14,7 @@ from .common import (
     finish,
     fmt,
     note,
+    number_list,
     positive,
 )
 from .sweep import DEFAULT_RANGE, parse_range
@@ -75,19 +76,7 @@ def parse_factors(text: str) -> tuple[float, ...]:
     >>> parse_factors("0.8, 1, 1.25")
     (0.8, 1.0, 1.25)
     """
-    out = []
-    for part in str(text).split(","):
-        try:
-            x = float(part)
-        except ValueError:
-            raise argparse.ArgumentTypeError(f"expected price factors separated by commas, e.g. 0.5,1,2, got "
-                                             f"{text!r}") from None
-        if not (x >= 0) or x == float("inf"):
-            raise argparse.ArgumentTypeError(f"each price factor must be a finite number >= 0, got {part.strip()!r}")
-        out.append(x)
-    if len(set(out)) != len(out):
-        raise argparse.ArgumentTypeError(f"a price factor is given twice in {text!r}")
-    return tuple(out)
+    return number_list(text, what="price factors", example="0.5,1,2", zero_allowed=True, unique=True)
 
 
 def register(sub) -> None:

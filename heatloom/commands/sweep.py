@@ -14,6 +14,7 @@ from .common import (
     finish,
     fmt,
     note,
+    number_list,
     positive,
     read_inputs,
 )
@@ -69,17 +70,7 @@ def parse_designs(text: str) -> tuple[float, ...]:
     >>> parse_designs("10, 20.5")
     (10.0, 20.5)
     """
-    out = []
-    for part in str(text).split(","):
-        try:
-            x = float(part)
-        except ValueError:
-            raise argparse.ArgumentTypeError(f"expected ΔTmin values in kelvin separated by commas, e.g. 10,20, "
-                                             f"got {text!r}") from None
-        if not (x > 0) or x == float("inf"):
-            raise argparse.ArgumentTypeError(f"each ΔTmin must be a finite number > 0 K, got {part.strip()!r}")
-        out.append(x)
-    return tuple(out)
+    return number_list(text, what="ΔTmin values in kelvin", example="10,20", zero_allowed=False)
 
 
 def register(sub) -> None:
