@@ -98,12 +98,20 @@ class PriceScenario:
             raise InputError(f"scenario '{self.name}': the price factor must be a finite number >= 0, got "
                              f"{self.factor!r}", column="factor")
         object.__setattr__(self, "factor", factor)
-        prices = dict(self.prices.items() if isinstance(self.prices, Mapping) else self.prices)
-        for utility, price in prices.items():
-            if not (float(price) >= 0) or not math.isfinite(float(price)):
+        pairs = list(self.prices.items() if isinstance(self.prices, Mapping) else self.prices)
+        prices: dict[str, float] = {}
+        for utility, price in pairs:
+            try:
+                value = float(price)
+            except (TypeError, ValueError):
+                value = math.nan
+            if not (value >= 0) or not math.isfinite(value):
                 raise InputError(f"scenario '{self.name}': the price of '{utility}' must be a finite number >= 0 "
                                  f"[money/(kW·year)], got {price!r}", column="cost")
-        object.__setattr__(self, "prices", tuple((str(k), float(v)) for k, v in prices.items()))
+            if str(utility) in prices:
+                raise InputError(f"scenario '{self.name}' prices utility '{utility}' twice", column="utility")
+            prices[str(utility)] = value
+        object.__setattr__(self, "prices", tuple(prices.items()))
 
     def apply(self, utilities: Sequence[Utility]) -> tuple[Utility, ...]:
         """The utilities with this scenario's prices [money/(kW·year)]."""
@@ -324,8 +332,9 @@ def _zones(zones) -> dict[str, StreamTable]:
         return {"process": zones}
     if isinstance(zones, Mapping):
         items = list(zones.items())
-    else:   # a sequence of heatloom.pinch.site.Zone
-        items = [(z.name, z.streams) for z in zones]
+    else:   # a sequence of heatloom.pinch.site.Zone, or of stream tables (named zone 1, zone 2, ...)
+        items = [(f"zone {i}", z) if isinstance(z, StreamTable) else (getattr(z, "name", f"zone {i}"), getattr(z, "streams", z))
+                 for i, z in enumerate(zones, start=1)]
     if not items:
         raise InputError("a scenario study needs at least one zone (stream table)")
     out: dict[str, StreamTable] = {}
@@ -370,8 +379,9 @@ def scenario_study(zones, dt_min_range: tuple[float, float], utilities: Sequence
 
     Parameters
     ----------
-    zones : StreamTable, mapping of str to StreamTable, or sequence of heatloom.pinch.site.Zone
-        The processes; one stream table is one zone named ``process``.
+    zones : StreamTable, mapping of str to StreamTable, or sequence of Zone or of StreamTable
+        The processes; one stream table is one zone named ``process``, a sequence of tables gives zones
+        named ``zone 1``, ``zone 2``...
     dt_min_range : (float, float)
         Lowest and highest ΔTmin [K], 0 < low <= high.
     utilities : sequence of Utility, optional
@@ -428,8 +438,17 @@ def scenario_study(zones, dt_min_range: tuple[float, float], utilities: Sequence
     if high < low:
         raise InputError(f"the highest ΔTmin ({high:g} K) must not be below the lowest ({low:g} K)", column="dtmin")
     for what, v in (("ΔTmin step", step), ("optimum step", optimum_step)):
-        if not (float(v) > 0) or not math.isfinite(float(v)):
+        try:
+            ok = float(v) > 0 and math.isfinite(float(v))
+        except (TypeError, ValueError):
+            ok = False
+        if not ok:
             raise InputError(f"the {what} must be a finite number > 0 K, got {v!r}")
+    if optimum and high > low:
+        try:
+            _grid(low, high, min(float(optimum_step), high - low))
+        except InputError as e:
+            raise InputError(f"optimum step: {e.message}") from None
     zone_tables = _zones(zones)
     utilities = None if utilities is None else tuple(utilities)
     plans = _scenarios(scenarios, utilities)
