@@ -31,8 +31,11 @@ References
 from __future__ import annotations
 
 import math
+import os
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, replace
+
+import numpy as np
 
 from ..errors import InfeasibleError, InputError, SolverError
 from ..model import StreamTable, Utility
@@ -468,7 +471,12 @@ def scenario_study(zones, dt_min_range: tuple[float, float], utilities: Sequence
             pairs.append((zone, plan, case))
     runner = TaskRunner(workers, cluster, progress)
     try:
-        grids = runner.map(_task_cases, [(case, xs) for _, _, case in pairs], "cases")
+        # a few tasks per worker: split each pair's ΔTmin grid when there are fewer pairs than that
+        parts = 1 if runner.name == "serial" else max(1, min(len(xs), -(-4 * (workers or os.cpu_count() or 1)
+                                                                          // len(pairs))))
+        chunks = [tuple(float(x) for x in c) for c in np.array_split(np.asarray(xs), parts) if c.size]
+        done = runner.map(_task_cases, [(case, c) for _, _, case in pairs for c in chunks], "cases")
+        grids = [[p for part in done[k * len(chunks):(k + 1) * len(chunks)] for p in part] for k in range(len(pairs))]
         design_of: dict[tuple, DesignPoint] = {}
         if designs:
             # the assumed utilities scaled by a factor give the same network: design once, re-price per case
