@@ -60,7 +60,7 @@ class SiteStudy:
     site : heatloom.pinch.site.SiteTargets
     frames : dict
         Tables of the run by name (``summary``, ``zones``, ``mains``, ``zone mains``, ``profiles``), as
-        :func:`heatloom.commands.site.site_frames` makes them; units in the headers.
+        :meth:`heatloom.pinch.SiteTargets.frames` makes them; units in the headers.
     dt_min_note : str
         How the site's ΔTmin was chosen.
     zone_sources : dict
@@ -251,11 +251,10 @@ def render_site_report(study: SiteStudy) -> RenderedReport:
 
     >>> from heatloom.model import StreamTable
     >>> from heatloom.pinch.site import SteamMain, site_targets
-    >>> from heatloom.commands.site import site_frames
     >>> a = StreamTable.from_arrays(["H1", "C1"], [200, 40], [120, 100], [2.0, 1.0])
     >>> b = StreamTable.from_arrays(["H2", "C2"], [90, 130], [40, 170], [1.0, 2.0])
     >>> site = site_targets({"A": a, "B": b}, [SteamMain("LP", 140.0, 50.0)], 10.0)
-    >>> r = render_site_report(SiteStudy("demo site", site, site_frames(site)))
+    >>> r = render_site_report(SiteStudy("demo site", site, site.frames()))
     >>> r.figures, [k for k, _ in r.sections]
     (2, ['summary', 'inputs', 'assumptions', 'zones', 'mains', 'safety', 'methods', 'about'])
     """

@@ -675,6 +675,55 @@ class SiteTargets:
                       "cost": "money per year"},
         }
 
+    def frames(self) -> dict:
+        """pandas DataFrames of the run, one per CSV file or workbook sheet (units in every header):
+        ``summary``, ``zones``, ``mains``, ``zone mains``, ``profiles``."""
+        import pandas as pd
+
+        zones = pd.DataFrame([{
+            "zone": z.name, "ΔTmin [K]": z.dt_min, "hot utility [kW]": z.hot_utility,
+            "cold utility [kW]": z.cold_utility,
+            "pinch hot [°C]": z.targets.pinch.hot if z.targets.pinch else None,
+            "pinch cold [°C]": z.targets.pinch.cold if z.targets.pinch else None,
+            "heat above mains [kW]": z.above_mains, "heat below mains [kW]": z.below_mains} for z in self.zones])
+        mains = pd.DataFrame([{
+            "main": b.main.name, "kind": b.main.kind.value, "T [°C]": b.main.temperature,
+            "price [money/kW·yr]": b.main.price, "raised [kW]": b.raised, "used [kW]": b.used,
+            "recovered [kW]": b.recovered, "letdown in [kW]": b.letdown_in, "letdown out [kW]": b.letdown_out,
+            "from boilers [kW]": b.from_boilers, "surplus [kW]": b.surplus,
+            "zone by zone duty [kW]": b.zone_by_zone_duty, "site duty [kW]": b.site_duty,
+            "zone by zone cost [money/yr]": b.zone_by_zone_cost, "site cost [money/yr]": b.site_cost}
+            for b in self.mains], columns=["main", "kind", "T [°C]", "price [money/kW·yr]", "raised [kW]",
+                                           "used [kW]", "recovered [kW]", "letdown in [kW]", "letdown out [kW]",
+                                           "from boilers [kW]", "surplus [kW]", "zone by zone duty [kW]",
+                                           "site duty [kW]", "zone by zone cost [money/yr]", "site cost [money/yr]"])
+        flows = pd.DataFrame([{"zone": z.name, "main": name, "raised [kW]": z.raised[name], "used [kW]": z.used[name],
+                               "net export [kW]": z.raised[name] - z.used[name], "rejected alone [kW]": None}
+                              for z in self.zones for name in z.raised]
+                             + [{"zone": z.name, "main": name, "rejected alone [kW]": q}
+                                for z in self.zones for name, q in z.rejected.items()],
+                             columns=["zone", "main", "raised [kW]", "used [kW]", "net export [kW]",
+                                      "rejected alone [kW]"])
+        rows = []
+        for z in [None, *self.zones]:
+            src, snk = (self.source_profile, self.sink_profile) if z is None else (z.source, z.sink)
+            who = "site" if z is None else z.name
+            rows += [{"profile": f"{who} source", "T [°C]": t, "heat [kW]": h}
+                     for t, h in zip(src.temperature, src.enthalpy)]
+            rows += [{"profile": f"{who} sink", "T [°C]": t, "heat [kW]": h}
+                     for t, h in zip(snk.temperature, snk.enthalpy)]
+        profiles = pd.DataFrame(rows, columns=["profile", "T [°C]", "heat [kW]"])
+        summary = pd.DataFrame([
+            ("ΔTmin", self.dt_min, "K"), ("site ΔT for steam", self.dt_site, "K"),
+            ("site hot utility", self.site_hot_utility, "kW"), ("site cold utility", self.site_cold_utility, "kW"),
+            ("fuel above the mains", self.fuel_above_mains, "kW"), ("steam from boilers", self.boiler_steam, "kW"),
+            ("zone-by-zone hot utility", self.zone_by_zone_hot_utility, "kW"),
+            ("zone-by-zone cold utility", self.zone_by_zone_cold_utility, "kW"),
+            ("recovered through the mains", self.recovered, "kW"), ("saving", self.saving, "kW"),
+            ("saving per year", self.saving_money, "money/yr"),
+        ], columns=["quantity", "value", "unit"])
+        return {"summary": summary, "zones": zones, "mains": mains, "zone mains": flows, "profiles": profiles}
+
 
 def _as_zones(zones) -> tuple[Zone, ...]:
     items = [Zone(str(k), v) for k, v in zones.items()] if isinstance(zones, Mapping) else zones

@@ -338,7 +338,6 @@ def run_site(args) -> int:
     from ..io.site_report import SiteStudy, render_site_report, site_sheets
     from ..io.workbook import write_workbook
     from ..pinch.site import site_targets
-    from .site import site_frames
 
     path = Path(args.path)
     site_in = read_site(path, columns=args.columns, fit_tolerance=args.fit_tolerance)
@@ -357,7 +356,7 @@ def run_site(args) -> int:
     sources = {f"zone {z}": f for z, f in site_in.zone_sources.items()}
     if site_in.mains_source:
         sources["mains"] = site_in.mains_source
-    study = SiteStudy(title=f"Site study: {path.name}", site=site, frames=site_frames(site), dt_min_note=dt_note,
+    study = SiteStudy(title=f"Site study: {path.name}", site=site, frames=site.frames(), dt_min_note=dt_note,
                       zone_sources=dict(site_in.zone_sources), mains_source=site_in.mains_source, sources=sources,
                       notes=tuple(notes), safety_note=SAFETY_NOTE, version=__version__,
                       created=datetime.datetime.now().astimezone().isoformat(timespec="seconds"),
