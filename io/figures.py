@@ -122,7 +122,7 @@ def grand_composite_figure(targets, *, title: str | None = None):
     return fig
 
 
-def grid_diagram(network, streams, *, title: str | None = None):
+def grid_diagram(network, streams, *, title: str | None = None, approach: str = "ΔTmin"):
     """Grid diagram of a network: hot streams above (flowing right), cold streams below (flowing left).
 
     Process-to-process exchangers are pairs of diamonds joined by a thin line, heaters are triangles
@@ -136,6 +136,10 @@ def grid_diagram(network, streams, *, title: str | None = None):
     ----------
     network : heatloom.network.Network
     streams : heatloom.model.StreamTable
+    title : str, optional
+    approach : str, optional
+        Name of the network's minimum approach in the default title: ``"ΔTmin"`` for maximum energy
+        recovery, ``"EMAT"`` for a lowest-total-annual-cost network.
     """
     hot = [s for s in streams if s.is_hot]
     cold = [s for s in streams if not s.is_hot]
@@ -154,7 +158,7 @@ def grid_diagram(network, streams, *, title: str | None = None):
     n = len(units)
     height = 0.55 * (len(hot) + len(cold)) + 1.6
     fig, ax = plt.subplots(figsize=(max(7.0, 1.0 + 0.75 * n), height))
-    ax.set_title(title or f"Grid diagram, ΔTmin = {network.dt_min:g} K, {network.units} units", loc="left",
+    ax.set_title(title or f"Grid diagram, {approach} = {network.dt_min:g} K, {network.units} units", loc="left",
                  fontsize=STYLE["font_size"] + 1)
     x_end = n + 1.0
     for s in hot + cold:

@@ -503,7 +503,8 @@ def _network_section(study: Study, page: _Page, net, section: str, what: str, ke
     return "".join([
         _p(intro), _long_table(rows, f"The {what}", f"{key}-summary-table"),
         _frame_table(network_frame(net, cur), "Units: E exchangers, H heaters, C coolers", f"{key}-units-table"),
-        page.figure(f"fig-{key}-grid", lambda: grid_diagram(net, study.streams),
+        page.figure(f"fig-{key}-grid", lambda: grid_diagram(net, study.streams,
+                                                             approach="EMAT" if key == "tac" else "ΔTmin"),
                     f"Grid diagram of the {what}: hot streams above, cold streams below; diamonds joined by a "
                     "line are exchangers, triangles up heaters, triangles down coolers.", wide=True),
         _notes(list(net.notes)), _solves_table(net.solves)])

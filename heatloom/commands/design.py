@@ -214,7 +214,7 @@ def run(args) -> int:
         frame = net.to_frame()
         out.csv("network.csv", frame)
         out.workbook("network.xlsx", {"units": frame, "streams": streams.to_frame()})
-        out.figures("grid_diagram", grid_diagram(net, streams))
+        out.figures("grid_diagram", grid_diagram(net, streams, approach="EMAT" if tac else "ΔTmin"))
     return finish(args, result, format_network(net, str(args.file), dt_note, "EMAT" if tac else "ΔTmin"), out)
 
 
