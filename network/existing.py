@@ -46,6 +46,7 @@ from ..model import Segment, Stream, StreamTable, Utility
 from .rating import max_effectiveness, ntu_from_effectiveness
 from .segments import size_segments
 from .sizing import FlowArrangement, overall_coefficient
+from .structure import stream_enthalpy, stream_temperature
 
 __all__ = [
     "UnitRole",
@@ -94,25 +95,6 @@ class OperatingMode(enum.Enum):
 # stream profiles, extrapolated beyond the supply and target with the end segments' CP
 
 
-@functools.lru_cache(maxsize=4096)
-def _profile(stream: Stream) -> tuple[np.ndarray, np.ndarray, float, float]:
-    """Progress coordinate p (−T for hot streams, T for cold), cumulative heat, first and last CP."""
-    sign = -1.0 if stream.is_hot else 1.0
-    p = sign * np.array([stream.supply_temperature] + [g.target_temperature for g in stream.segments])
-    h = np.concatenate(([0.0], np.cumsum([g.duty for g in stream.segments])))
-    return p, h, stream.segments[0].heat_capacity_flow, stream.segments[-1].heat_capacity_flow
-
-
-def _heat_at(stream: Stream, t: float) -> float:
-    p, h, cp0, cp1 = _profile(stream)
-    x = -t if stream.is_hot else t
-    if x <= p[0]:
-        return float(cp0 * (x - p[0]))
-    if x >= p[-1]:
-        return float(h[-1] + cp1 * (x - p[-1]))
-    return float(np.interp(x, p, h))
-
-
 def heat_between(stream: Stream, t_from: float, t_to: float) -> float:
     """Heat a stream exchanges going from ``t_from`` to ``t_to`` [kW], positive in its own direction.
 
@@ -125,7 +107,7 @@ def heat_between(stream: Stream, t_from: float, t_to: float) -> float:
     >>> heat_between(s, 120, 109.5), heat_between(s, 109, 108)
     (70.0, 100.0)
     """
-    return _heat_at(stream, t_to) - _heat_at(stream, t_from)
+    return stream_enthalpy(stream, t_to, extrapolate=True) - stream_enthalpy(stream, t_from, extrapolate=True)
 
 
 def temperature_after(stream: Stream, t_in: float, heat: float) -> float:
@@ -139,15 +121,7 @@ def temperature_after(stream: Stream, t_in: float, heat: float) -> float:
     >>> temperature_after(s, 120, 70.0)
     109.5
     """
-    p, h, cp0, cp1 = _profile(stream)
-    target = _heat_at(stream, t_in) + heat
-    if target <= 0.0:
-        x = p[0] + target / cp0
-    elif target >= h[-1]:
-        x = p[-1] + (target - h[-1]) / cp1
-    else:
-        x = float(np.interp(target, h, p))
-    return float(-x if stream.is_hot else x)
+    return stream_temperature(stream, stream_enthalpy(stream, t_in, extrapolate=True) + heat, extrapolate=True)
 
 
 def _secant_cp(stream: Stream, t_a: float, t_b: float) -> float:

@@ -8,6 +8,7 @@ the minimum approach at both ends of every unit; a network that fails it is neve
 
 from __future__ import annotations
 
+import functools
 from collections.abc import Sequence
 from dataclasses import dataclass, field, replace
 
@@ -28,46 +29,60 @@ __all__ = [
 ]
 
 
-def _segments_profile(stream: Stream) -> tuple[np.ndarray, np.ndarray]:
-    """Breakpoint temperatures and cumulative duty from the supply end [°C], [kW]."""
-    temps = [stream.supply_temperature]
-    duty = [0.0]
-    for g in stream.segments:
-        temps.append(g.target_temperature)
-        duty.append(duty[-1] + g.duty)
-    return np.array(temps), np.array(duty)
+@functools.lru_cache(maxsize=4096)
+def _profile(stream: Stream) -> tuple[np.ndarray, np.ndarray, float, float]:
+    """Progress coordinate p (−T for hot streams, T for cold, so it always rises from the supply end),
+    cumulative heat from the supply end [kW], and the first and last segments' CP [kW/K]."""
+    sign = -1.0 if stream.is_hot else 1.0
+    p = sign * np.array([stream.supply_temperature] + [g.target_temperature for g in stream.segments])
+    h = np.concatenate(([0.0], np.cumsum([g.duty for g in stream.segments])))
+    return p, h, stream.segments[0].heat_capacity_flow, stream.segments[-1].heat_capacity_flow
 
 
-def stream_enthalpy(stream: Stream, temperature: float) -> float:
+def stream_enthalpy(stream: Stream, temperature: float, *, extrapolate: bool = False) -> float:
     """Heat exchanged by a stream between its supply temperature and ``temperature`` [kW].
 
-    Piecewise linear over the stream's segments; outside its range the value is clamped.
+    Piecewise linear over the stream's segments.  Beyond the supply and target temperatures the value is
+    clamped, or with ``extrapolate`` continued with the end segments' heat capacity flow (negative before
+    the supply temperature), as the simulation of existing networks needs.
 
     Examples
     --------
     >>> from heatloom.model import Segment
     >>> s = Stream("vapour", (Segment(120, 110, 2.0), Segment(110, 109, 100.0)))
-    >>> stream_enthalpy(s, 109.5)
-    70.0
+    >>> stream_enthalpy(s, 109.5), stream_enthalpy(s, 108), stream_enthalpy(s, 108, extrapolate=True)
+    (70.0, 120.0, 220.0)
     """
-    t, h = _segments_profile(stream)
-    if stream.is_hot:
-        return float(np.interp(-temperature, -t, h))
-    return float(np.interp(temperature, t, h))
+    p, h, cp0, cp1 = _profile(stream)
+    x = -temperature if stream.is_hot else temperature
+    if x <= p[0]:
+        return float(cp0 * (x - p[0])) if extrapolate else 0.0
+    if x >= p[-1]:
+        return float(h[-1] + cp1 * (x - p[-1])) if extrapolate else float(h[-1])
+    return float(np.interp(x, p, h))
 
 
-def stream_temperature(stream: Stream, enthalpy: float) -> float:
+def stream_temperature(stream: Stream, enthalpy: float, *, extrapolate: bool = False) -> float:
     """Temperature of a stream after exchanging ``enthalpy`` [kW] from its supply end [°C].
 
+    The inverse of :func:`stream_enthalpy`; beyond the stream's duty the temperature is clamped at the
+    supply or target temperature, or with ``extrapolate`` continued with the end segments' CP.
+
     Examples
     --------
     >>> from heatloom.model import Segment
     >>> s = Stream("vapour", (Segment(120, 110, 2.0), Segment(110, 109, 100.0)))
-    >>> stream_temperature(s, 70.0)
-    109.5
+    >>> stream_temperature(s, 70.0), stream_temperature(s, 220.0, extrapolate=True)
+    (109.5, 108.0)
     """
-    t, h = _segments_profile(stream)
-    return float(np.interp(enthalpy, h, t))
+    p, h, cp0, cp1 = _profile(stream)
+    if enthalpy <= 0.0:
+        x = p[0] + enthalpy / cp0 if extrapolate else p[0]
+    elif enthalpy >= h[-1]:
+        x = p[-1] + (enthalpy - h[-1]) / cp1 if extrapolate else p[-1]
+    else:
+        x = float(np.interp(enthalpy, h, p))
+    return float(-x if stream.is_hot else x)
 
 
 @dataclass(frozen=True)
