@@ -35,7 +35,6 @@ an :class:`~heatloom.errors.InputError` naming the file, the row and the column 
 from __future__ import annotations
 
 import os
-import re
 from collections.abc import Mapping, Sequence
 
 import numpy as np
@@ -44,17 +43,9 @@ from ..errors import InputError
 from ..model import StreamTable, Utility
 from ..network.existing import ExistingNetwork, ExistingUnit
 from ..network.sizing import FlowArrangement
-from .tables import (
-    IGNORE,
-    Cells,
-    Table,
-    TableColumn,
-    load_cells,
-    normalise_name,
-    parse_column_mapping,
-    split_header,
-)
-from .units import QuantityKind, parse_unit
+from .tables import Table, normalise_name, parse_column_mapping, read_table
+from .tables import _cell_text as _text
+from .units import QuantityKind
 
 __all__ = ["NETWORK_COLUMNS", "NETWORK_ALIASES", "read_network"]
 
@@ -83,8 +74,6 @@ _TYPES = {
     **dict.fromkeys(("12", "12shell", "shellandtube", "shellandtube12", "s&t", "st", "stx", "12shellandtube",
                      "shellandtube1shell2tubepasses", "shellandtube12shells"), FlowArrangement.SHELL_AND_TUBE_1_2),
 }
-_UNIT_LABEL = re.compile(r"^[\[(]?\s*(?:-|–|—|units?|uom|dim\.?|)\s*:?\s*[\])]?$", re.IGNORECASE)
-_HEADER_SCAN_ROWS = 100
 
 
 def read_network(path: str | os.PathLike, streams: StreamTable, utilities: Sequence[Utility] | None = None, *,
@@ -135,8 +124,9 @@ def read_network(path: str | os.PathLike, streams: StreamTable, utilities: Seque
     """
     utilities = tuple(utilities or ())
     mapping = parse_column_mapping(columns, NETWORK_COLUMNS)
-    cells = load_cells(path, sheet=sheet)
-    table = _bind(cells, mapping)
+    table = read_table(path, NETWORK_COLUMNS, required=("unit", "hot", "cold", ("area", "duty")), sheet=sheet,
+                       columns=mapping, aliases=NETWORK_ALIASES,
+                       kinds={c: _KINDS.get(c) for c in NETWORK_COLUMNS})
     units = _units(table)
     notes = []
     if any(u.shells > 1 for u in units) and "type" not in table:
@@ -145,139 +135,6 @@ def read_network(path: str | os.PathLike, streams: StreamTable, utilities: Seque
         return ExistingNetwork(streams, tuple(units), utilities, source=table.label, notes=tuple(notes))
     except InputError as e:
         raise table.locate(e) from None
-
-
-# --------------------------------------------------------------------------------------------------
-# header, units row, columns
-
-
-def _lookup() -> dict[str, str]:
-    out: dict[str, str] = {}
-    for canonical, aliases in NETWORK_ALIASES.items():
-        for alias in (canonical, *aliases):
-            out[normalise_name(alias)] = canonical
-    return out
-
-
-_LOOKUP = _lookup()
-
-
-def _text(c) -> str:
-    if isinstance(c, float):
-        return str(int(c)) if c.is_integer() and abs(c) < 1e15 else repr(c)
-    return str(c).strip()
-
-
-def _match(cell: str, mapping: dict[str, str]) -> tuple[str | None, str | None]:
-    readings = split_header(cell)
-    keys = {normalise_name(k): v for k, v in mapping.items()}
-    for table in (keys, _LOOKUP):
-        for name, unit in readings:
-            target = table.get(normalise_name(name))
-            if target is not None:
-                return target, unit
-    return None, None
-
-
-def _looks_number(text: str) -> bool:
-    try:
-        float(text.replace(",", "."))
-    except ValueError:
-        return False
-    return True
-
-
-def _bind(cells: Cells, mapping: dict[str, str]) -> Table:
-    """Header row, units row and data rows of a network table, bound to the canonical columns."""
-    label = cells.label
-    rows = cells.rows
-    header_index, found = None, {}
-    for i, row in enumerate(rows[:_HEADER_SCAN_ROWS]):
-        m = {j: _match(t, mapping) for j, t in enumerate(_text(c) for c in row) if t}
-        m = {j: x for j, x in m.items() if x[0] is not None}
-        if sum(1 for x in m.values() if x[0] != IGNORE) >= 2:
-            header_index, found = i, m
-            break
-    if header_index is None:
-        raise InputError(f"no header row found: a network table needs columns {', '.join(NETWORK_COLUMNS[:3])} "
-                         "and area or duty", file=label)
-    header_cells = [" ".join(_text(c).split()) for c in rows[header_index]]
-    headers = tuple(t for t in header_cells if t)
-    header_row = header_index + 1
-    for foreign in mapping:
-        key = normalise_name(foreign)
-        if not any(key == normalise_name(n) for t in headers for n, _ in split_header(t)):
-            raise InputError(f"column mapping: there is no column '{foreign}'; columns found: {', '.join(headers)}",
-                             file=label, row=header_row)
-    bound: dict[str, tuple[int, str, str | None]] = {}
-    for j, (target, unit) in sorted(found.items()):
-        if target == IGNORE:
-            continue
-        if target in bound:
-            raise InputError(f"two columns give {target}: '{header_cells[bound[target][0]]}' and "
-                             f"'{header_cells[j]}'; keep one (or map one to '-')", file=label, row=header_row,
-                             column=header_cells[j])
-        bound[target] = (j, header_cells[j], unit)
-    missing = [c for c in ("unit", "hot", "cold") if c not in bound]
-    if "area" not in bound and "duty" not in bound:
-        missing.append("area or duty")
-    if missing:
-        raise InputError(f"missing required column(s) {', '.join(missing)}; columns found: {', '.join(headers)}",
-                         file=label, row=header_row)
-    start = header_index + 1
-    units_row = None
-    units: dict[str, str | None] = {}
-    if start < len(rows):
-        cand = [_text(c) for c in rows[start]]
-        is_units, any_unit = True, False
-        for target, (j, _, _) in bound.items():
-            t = cand[j] if j < len(cand) else ""
-            if not t:
-                continue
-            if target not in _KINDS:
-                if not _UNIT_LABEL.match(t):
-                    is_units = False
-                    break
-            elif _looks_number(t):
-                is_units = False
-                break
-            else:
-                any_unit = True
-        if is_units and any_unit:
-            units_row = start + 1
-            units = {target: (cand[j] if j < len(cand) else "") or None for target, (j, _, _) in bound.items()}
-            start += 1
-    data = rows[start:]
-    positions = [j for j, _, _ in bound.values()]
-    keep = [k for k, row in enumerate(data) if any(_text(row[j]) for j in positions if j < len(row))]
-    if not keep:
-        raise InputError("no data rows under the header", file=label, row=units_row or header_row)
-    out: dict[str, TableColumn] = {}
-    for target, (j, header, head_unit) in bound.items():
-        unit, conversion = head_unit, None
-        if target in _KINDS:
-            try:
-                conversion = parse_unit(head_unit, _KINDS[target])
-            except InputError as e:
-                raise e.located(file=label, row=header_row, column=header) from None
-            row_unit = units.get(target)
-            if row_unit is not None:
-                try:
-                    row_conv = parse_unit(row_unit, _KINDS[target])
-                except InputError as e:
-                    raise e.located(file=label, row=units_row, column=header) from None
-                if head_unit is None:
-                    unit, conversion = row_unit, row_conv
-                elif (row_conv.subtract, row_conv.multiply, row_conv.divide, row_conv.add) != \
-                        (conversion.subtract, conversion.multiply, conversion.divide, conversion.add):
-                    raise InputError(f"the header gives unit '{head_unit}' but the units row gives '{row_unit}'",
-                                     file=label, row=units_row, column=header)
-        elif head_unit is not None and target in ("hot_order", "cold_order", "shells"):
-            unit = None
-        col_cells = [data[k][j] if j < len(data[k]) else "" for k in keep]
-        out[target] = TableColumn(target, header, j, unit, conversion, col_cells)
-    return Table(cells.source, cells.sheet, header_row, units_row, out, np.asarray(keep, dtype=np.int64) + start + 1,
-                 headers, cells.decimal_comma)
 
 
 # --------------------------------------------------------------------------------------------------

@@ -122,10 +122,11 @@ def normalise_name(text: str) -> str:
     return _SEPARATORS.sub("", unicodedata.normalize("NFKC", str(text)).casefold())
 
 
-def _lookup(vocabulary: Iterable[str]) -> dict[str, str]:
+def _lookup(vocabulary: Iterable[str], aliases: Mapping[str, Sequence[str]] | None = None) -> dict[str, str]:
+    names = ALIASES if aliases is None else aliases
     out: dict[str, str] = {}
     for canonical in vocabulary:
-        for alias in (canonical, *ALIASES[canonical]):
+        for alias in (canonical, *names[canonical]):
             key = normalise_name(alias)
             if out.get(key, canonical) != canonical:
                 raise AssertionError(f"alias {alias!r} used by {out[key]} and {canonical}")
@@ -544,8 +545,8 @@ def _row_texts(row: list) -> list[str]:
     return [_cell_text(c) for c in row]
 
 
-def find_header(cells: Cells, vocabulary: Sequence[str], columns: Mapping[str, str] | str | None = None
-                ) -> tuple[int | None, dict[int, tuple[str, str | None]]]:
+def find_header(cells: Cells, vocabulary: Sequence[str], columns: Mapping[str, str] | str | None = None, *,
+                aliases: Mapping[str, Sequence[str]] | None = None) -> tuple[int | None, dict[int, tuple[str, str | None]]]:
     """Locate the header row: the first of the first 100 rows with two or more recognised column names.
 
     Parameters
@@ -555,6 +556,9 @@ def find_header(cells: Cells, vocabulary: Sequence[str], columns: Mapping[str, s
         Canonical column names to recognise.
     columns : mapping or str, optional
         User mapping foreign header → canonical name (see :func:`parse_column_mapping`).
+    aliases : mapping, optional
+        Accepted names of each canonical column, for a table with a vocabulary of its own; default
+        :data:`ALIASES`.
 
     Returns
     -------
@@ -562,8 +566,8 @@ def find_header(cells: Cells, vocabulary: Sequence[str], columns: Mapping[str, s
         0-based index of the header row (``None`` if none found) and ``{position: (canonical name,
         unit written in the header or None)}`` for the recognised cells (``"-"`` for ignored ones).
     """
-    mapping = parse_column_mapping(columns)
-    lookup = _lookup(vocabulary)
+    mapping = parse_column_mapping(columns, None if aliases is None else vocabulary)
+    lookup = _lookup(vocabulary, aliases)
     for i, row in enumerate(cells.rows[:_HEADER_SCAN_ROWS]):
         found = {j: _match(t, lookup, mapping) for j, t in enumerate(_row_texts(row)) if t}
         found = {j: m for j, m in found.items() if m[0] is not None}
@@ -575,7 +579,8 @@ def find_header(cells: Cells, vocabulary: Sequence[str], columns: Mapping[str, s
 def read_table(source: str | os.PathLike | Cells, vocabulary: Sequence[str], *,
                required: Sequence[str | tuple[str, ...]] = (), sheet: str | None = None,
                columns: Mapping[str, str] | str | None = None, hint: str = "",
-               hours_per_year: float | None = None) -> Table:
+               hours_per_year: float | None = None, aliases: Mapping[str, Sequence[str]] | None = None,
+               kinds: Mapping[str, QuantityKind | None] | None = None) -> Table:
     """Find the header, units and data rows of a table and bind its columns to canonical names.
 
     Parameters
@@ -593,6 +598,11 @@ def read_table(source: str | os.PathLike | Cells, vocabulary: Sequence[str], *,
         :func:`parse_column_mapping`.
     hint : str, optional
         Appended to the missing-column message.
+    hours_per_year : float, optional
+        Operating hours per year [h/year], for prices per energy.
+    aliases, kinds : mapping, optional
+        For a table with a vocabulary of its own (the network table): accepted names and quantity of
+        each canonical column; default :data:`ALIASES` and :data:`COLUMN_KINDS`.
 
     Returns
     -------
@@ -600,16 +610,17 @@ def read_table(source: str | os.PathLike | Cells, vocabulary: Sequence[str], *,
     """
     cells = source if isinstance(source, Cells) else load_cells(source, sheet=sheet)
     label = cells.label
-    mapping = parse_column_mapping(columns)
+    mapping = parse_column_mapping(columns, None if aliases is None else list(vocabulary))
     vocabulary = list(vocabulary)
     for foreign, target in mapping.items():
         if target != IGNORE and target not in vocabulary:
             raise InputError(f"column mapping: '{foreign}' is mapped to '{target}', which this table does not "
                              f"use; allowed: {', '.join(vocabulary)} (or '-' to ignore it)", file=label)
-    lookup = _lookup(vocabulary)
+    lookup = _lookup(vocabulary, aliases)
+    kind_of = COLUMN_KINDS if kinds is None else kinds
     rows = cells.rows
 
-    header_index, matches = find_header(cells, vocabulary, mapping)
+    header_index, matches = find_header(cells, vocabulary, mapping, aliases=aliases)
     if header_index is None:
         first = next((i for i, r in enumerate(rows) if any(_cell_text(c) for c in r)), None)
         if first is None:
@@ -658,7 +669,7 @@ def read_table(source: str | os.PathLike | Cells, vocabulary: Sequence[str], *,
             t = cand[j] if j < len(cand) else ""
             if not t:
                 continue
-            if COLUMN_KINDS[target] is None:
+            if kind_of[target] is None:
                 if not _UNIT_LABEL.match(t):
                     is_units = False
                     break
@@ -682,7 +693,7 @@ def read_table(source: str | os.PathLike | Cells, vocabulary: Sequence[str], *,
                          row=units_row or header_row)
     kept = [data_rows[k] for k in keep] if len(keep) != len(data_rows) else data_rows
     for target, (j, header, head_unit) in bound.items():
-        kind = COLUMN_KINDS[target]
+        kind = kind_of[target]
         unit = head_unit
         conversion = None
         if kind is not None:

@@ -207,8 +207,9 @@ def test_missing_file_and_columns(tmp_path):
         read(tmp_path, "E1,H1,4\n", "unit,hot,area\n")
     with pytest.raises(InputError, match=r"missing required column\(s\) area or duty"):
         read(tmp_path, "E1,H1,C1,0.5\n", "unit,hot,cold,U\n")
-    with pytest.raises(InputError, match="no header row found"):
-        read(tmp_path, "1,2,3\n", "a,b,c\n")
+    with pytest.raises(InputError, match=r"row 1: missing required column\(s\) unit, hot, cold, area or duty; "
+                                         r"columns found: x, y, z"):
+        read(tmp_path, "1,2,3\n", "x,y,z\n")
     with pytest.raises(InputError, match=r"row 1, column 'area \[m3\]': unit 'm3' measures a quantity of dimension \[length\] \*\* 3"):
         read(tmp_path, "E1,H1,C1,4\n", "unit,hot,cold,area [m3]\n")
 
