@@ -4,8 +4,8 @@ A :class:`SiteStudy` gathers a site run (:func:`heatloom.pinch.site.site_targets
 tables the ``site`` command writes (zones, mains, steam per zone, profiles).  :func:`render_site_report`
 turns it into a page in the style of the study report (:func:`heatloom.io.report.render_report`: inline
 SVG figures, no script, well-formed XML, units in every header) with these sections: summary, input data,
-assumptions, zone targets, site profiles and steam mains, safety and limits, methods and references, about
-this report.  :func:`site_sheets` gives the workbook's sheets.
+assumptions, zone targets, site profiles and steam mains, price scenarios (when the folder holds a prices
+table), safety and limits, methods and references, about this report.  :func:`site_sheets` gives the workbook's sheets.
 
 The site targets are screening estimates: steam systems must be checked against local codes by qualified,
 licensed engineers (the safety section says so).
@@ -26,12 +26,12 @@ from .report import (
     _Page,
     build_page,
 )
-from .workbook import SAFETY_TEXT
+from .workbook import SAFETY_TEXT, NotComputed
 
 __all__ = ["SiteStudy", "SITE_SHEETS", "site_methods", "render_site_report", "site_sheets"]
 
 SITE_SHEETS = ("about", "summary", "zones", "mains", "zone steam", "profiles")
-"""Sheets of a site workbook, in order."""
+"""Sheets of a site workbook, in order (a price-scenario study adds its cases, optima, totals and scenarios)."""
 
 _METHODS = (
     ("Problem table algorithm", "each zone's minimum utilities and pinch, at the zone's ΔTmin",
@@ -74,6 +74,8 @@ class SiteStudy:
     created : str
     version : str
     command : str
+    scenarios : heatloom.pinch.scenarios.ScenarioStudy, NotComputed or None
+        The price-scenario study of the zones when the folder holds a prices table (None when it does not).
     """
 
     title: str
@@ -88,6 +90,7 @@ class SiteStudy:
     created: str = ""
     version: str = ""
     command: str = ""
+    scenarios: object = None
 
     def assumption_rows(self) -> list[tuple[str, str, str]]:
         """(assumption, value with units, basis) of every assumption and default of the site run."""
@@ -113,6 +116,14 @@ class SiteStudy:
                   "coldest main is not raised", "method (heatloom.pinch.site)"),
                  ("fuel above the mains", "hot utility needed above the hottest steam main; not priced here and "
                   "the same zone by zone and across the site", "method (heatloom.pinch.site)")]
+        sc = self.scenarios
+        if sc is not None and not isinstance(sc, NotComputed):
+            rows.append(("price scenarios", "; ".join(f"{s.name}: {s.describe()}" for s in sc.scenarios),
+                         "given (prices table)"))
+            rows.append(("scenario ΔTmin values", f"{sc.dt_mins[0]:g} to {sc.dt_mins[-1]:g} K, {len(sc.dt_mins)} "
+                         "values; each zone's optimum located between them", "report default (--sweep sets the "
+                         "range)"))
+            rows += [("scenario note", n, "scenario study") for n in sc.notes]
         return rows
 
     def cautions(self) -> list[str]:
@@ -133,9 +144,20 @@ class SiteStudy:
         return out
 
 
+_SCENARIO_METHOD = (
+    "Total annual cost targets against ΔTmin, per price scenario",
+    "each zone's area, unit and cost targets and its optimum ΔTmin under every price scenario",
+    "Linnhoff, B., Ahmad, S. (1990). Cost optimum heat exchanger networks - 1. Minimum energy and capital using "
+    "simple models for capital cost. Computers & Chemical Engineering 14(7), 729-750; Townsend, D. W., "
+    "Linnhoff, B. (1984). Surface area targets for heat exchanger networks. IChemE Annual Research Meeting, Bath")
+
+
 def site_methods(study: SiteStudy) -> list[tuple[str, str, str]]:
     """(method, what it did in this run, reference) of every method the site run used."""
-    return list(_METHODS if study.site.mains else _METHODS[:1])
+    out = list(_METHODS if study.site.mains else _METHODS[:1])
+    if study.scenarios is not None and not isinstance(study.scenarios, NotComputed):
+        out.append(_SCENARIO_METHOD)
+    return out
 
 
 # --------------------------------------------------------------------------------------------------
@@ -217,6 +239,24 @@ def _mains(study: SiteStudy, page: _Page) -> str:
     return "".join(parts)
 
 
+def _scenarios(study: SiteStudy, page: _Page) -> str:
+    from .scenario_figures import scenario_cost_figure
+
+    sc = study.scenarios
+    if isinstance(sc, NotComputed):
+        return page.missing("Price scenarios", "the price-scenario study", sc.reason)
+    frames = sc.frames()
+    parts = [_p(f"Each zone's total annual cost target against ΔTmin under {len(sc.scenarios)} price scenarios "
+                f"({len(sc.cases)} cases), the optimum ΔTmin of every zone under every scenario, and the site "
+                "total at those optima. Zones are targeted alone here (no heat through the mains)."),
+             page.figure("fig-scenario-costs", lambda: scenario_cost_figure(sc),
+                         "Total annual cost target against ΔTmin for each zone, one line per price scenario; dots "
+                         "mark each scenario's optimum."),
+             _frame_table(frames["optima"], "Optimum ΔTmin of each zone under each price scenario", "optima-table"),
+             _frame_table(frames["totals"], "Site total at each zone's optimum, per scenario", "totals-table")]
+    return "".join(parts)
+
+
 def _safety(study: SiteStudy, page: _Page) -> str:
     items = study.cautions()
     return (f'<div class="caution"><p><strong>{_esc(items[0])}</strong></p></div>'
@@ -260,8 +300,11 @@ def render_site_report(study: SiteStudy) -> RenderedReport:
     """
     plan = [("summary", "Summary", _summary), ("inputs", "Input data", _inputs),
             ("assumptions", "Assumptions and defaults", _assumptions), ("zones", "Targets of each zone", _zones),
-            ("mains", "Site profiles, steam mains and saving", _mains), ("safety", "Safety and limits", _safety),
-            ("methods", "Methods and references", _methods), ("about", "About this report", _about)]
+            ("mains", "Site profiles, steam mains and saving", _mains)]
+    if study.scenarios is not None:
+        plan.append(("scenarios", "Price scenarios", _scenarios))
+    plan += [("safety", "Safety and limits", _safety), ("methods", "Methods and references", _methods),
+             ("about", "About this report", _about)]
     return build_page(study, plan, _Page(), lede="Site study")
 
 
@@ -276,5 +319,13 @@ def site_sheets(study: SiteStudy) -> dict:
     about += [("caution", text, "") for text in study.cautions()]
     about += [("method", f"{m}: {w}", r) for m, w, r in site_methods(study)]
     f = study.frames
-    return {"about": pd.DataFrame(about, columns=["item", "value", "note"]), "summary": f["summary"],
-            "zones": f["zones"], "mains": f["mains"], "zone steam": f["zone mains"], "profiles": f["profiles"]}
+    sheets = {"about": pd.DataFrame(about, columns=["item", "value", "note"]), "summary": f["summary"],
+              "zones": f["zones"], "mains": f["mains"], "zone steam": f["zone mains"], "profiles": f["profiles"]}
+    sc = study.scenarios
+    if isinstance(sc, NotComputed):
+        sheets["scenarios"] = pd.DataFrame({"not computed": [sc.reason]})
+    elif sc is not None:
+        frames = sc.frames()
+        sheets.update({"scenario cases": frames["cases"], "scenario optima": frames["optima"],
+                       "scenario totals": frames["totals"], "scenarios": frames["scenarios"]})
+    return sheets

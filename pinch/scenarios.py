@@ -281,7 +281,7 @@ class ScenarioStudy:
 
         scenarios = [{**s.to_dict(), "prices": "; ".join(f"{k}={v:g}" for k, v in s.prices)} for s in self.scenarios]
         return {"cases": frame([c.to_dict() for c in self.cases]), "optima": frame([o.to_dict() for o in self.optima]),
-                "totals": frame([t.to_dict() for t in self.totals]), "scenarios": frame(scenarios)}
+                "totals": frame([{**t.to_dict(), "missing": "; ".join(t.missing)} for t in self.totals]), "scenarios": frame(scenarios)}
 
 
 _UNITS = {"dtmin": "K", "hot_utility": "kW", "cold_utility": "kW", "area": "m²", "units": "-", "units_mer": "-",

@@ -14,7 +14,7 @@ EXIT_OK, EXIT_UNEXPECTED, EXIT_INPUT, EXIT_INFEASIBLE = 0, 1, 2, 3
 __all__ = ["EXIT_OK", "EXIT_UNEXPECTED", "EXIT_INPUT", "EXIT_INFEASIBLE", "DEFAULT_DT_MIN", "SAFETY_NOTE", "positive", "positive_or_zero", "add_shared", "add_table_options",
            "note", "read_inputs", "whole_number", "add_output_options", "dt_min_of", "fmt", "solves_summary", "print_json", "finish", "CASE_SUFFIXES",
            "CASE_ROLES", "case_candidates", "find_case_files", "ProgressBars", "add_cost_target_options",
-           "add_site_table_options", "check_cost_target_inputs", "number_list"]
+           "add_site_table_options", "check_cost_target_inputs", "number_list", "zone_streams"]
 
 DEFAULT_DT_MIN = 10.0
 """Default minimum approach temperature [K] (*common practice* for a first look at liquid–liquid
@@ -147,6 +147,13 @@ def check_cost_target_inputs(missing: list[str], default_h: float | None, cluste
             raise InputError("--cluster needs the optional Dask support: pip install 'heatloom[dask]'") from None
 
 
+def zone_streams(zones):
+    """All zones' streams in one table (names prefixed by zone), to classify isothermal utilities."""
+    from ..model import Stream, StreamTable
+
+    return StreamTable(tuple(Stream(f"{z.name}/{s.name}", s.segments) for z in zones for s in z.streams))
+
+
 def note(args, text: str) -> None:
     if not args.quiet:
         print(text, file=sys.stderr)
@@ -247,7 +254,7 @@ _TABLE_SUFFIXES = (".csv", ".xlsx", ".xlsm")
 
 CASE_SUFFIXES = {"streams": _TABLE_SUFFIXES, "utilities": _TABLE_SUFFIXES,
                  "costs": (".json", ".yaml", ".yml", ".xlsx", ".xlsm"), "network": _TABLE_SUFFIXES,
-                 "mains": _TABLE_SUFFIXES}
+                 "mains": _TABLE_SUFFIXES, "prices": _TABLE_SUFFIXES}
 """Keyword found in a case folder's file name (case ignored) → the suffixes a file of that role may have."""
 
 CASE_ROLES = {"streams": "stream table", "utilities": "utilities", "costs": "costs", "network": "existing network"}

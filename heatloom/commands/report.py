@@ -30,6 +30,7 @@ from .common import (
     positive,
     positive_or_zero,
     print_json,
+    zone_streams,
 )
 
 __all__ = ["register", "run", "run_site", "is_site_folder", "find_case_files", "compute_study", "OUTPUT_FILES", "SWEEP_RANGE", "SWEEP_STEP",
@@ -65,6 +66,9 @@ the report goes into a 'report' folder beside the stream table (inside the case 
 A site folder (several files with 'streams' in their names, one per zone, e.g. 'evaporation_streams.csv',
 and/or a mains table with 'mains' in its name) gives a site report: the targets of each zone, the site
 profiles, the balance of every main and the saving against zone-by-zone targeting (--dtmin, --site-dt).
+With a prices table ('prices', see heatloom scenarios --help) it adds the price scenarios: each zone's
+optimum ΔTmin under every scenario (with the folder's 'utilities' and 'costs', --default-h, --hours-per-year
+and --sweep for the ΔTmin range).
 """
 
 
@@ -328,6 +332,44 @@ class _Bar:
             self.bar.close()
 
 
+SCENARIO_STEP = 5.0
+"""ΔTmin step of a site report's price-scenario cases [K] (each zone's optimum is still located to 0.01 K)."""
+
+
+def site_scenarios(args, zones, found: dict):
+    """The price-scenario study of a site folder that holds a prices table, or NotComputed with the reason.
+
+    Uses the folder's (or the command line's) utilities and costs, ``--default-h`` where film coefficients are
+    missing, ``--hours-per-year`` for prices per energy and ``--sweep`` for the ΔTmin range.
+    """
+    from ..io import read_costs, read_utilities
+    from ..io.scenarios import read_price_scenarios
+    from ..io.workbook import NotComputed
+    from ..pinch.area import missing_film_coefficients
+    from ..pinch.scenarios import scenario_study
+
+    for role, files in found.items():
+        if len(files) > 1:
+            return NotComputed(f"the folder holds {len(files)} {role} files ({', '.join(f.name for f in files)}); "
+                               "keep one", "InputError")
+
+    def run_study():
+        util_file = args.utilities or (found["utilities"][0] if "utilities" in found else None)
+        utilities = None if util_file is None else read_utilities(util_file, process=zone_streams(zones),
+                                                                  hours_per_year=args.hours_per_year)
+        plans = read_price_scenarios(found["prices"][0], utilities, hours_per_year=args.hours_per_year)
+        cost_file = args.costs or (found["costs"][0] if "costs" in found else None)
+        costs = None if cost_file is None else read_costs(cost_file)
+        missing = sorted({m for z in zones for m in missing_film_coefficients(z.streams, utilities or ())})
+        if missing and args.default_h is None:
+            raise InputError(f"film coefficient h missing for {len(missing)} streams or utilities ({missing[0]}, "
+                             "...): give one in an h column, or assume one with --default-h")
+        return scenario_study(zones, args.sweep or SWEEP_RANGE, utilities, plans, costs, step=SCENARIO_STEP,
+                              default_film_coefficient=args.default_h, workers=1)
+
+    return _step(run_study, "the price-scenario study (heatloom.pinch.scenarios)")
+
+
 def run_site(args) -> int:
     """The site report of a site folder: site.targets of every zone and the mains, as HTML and workbook."""
     import datetime
@@ -344,11 +386,15 @@ def run_site(args) -> int:
     folder = Path(args.out) if args.out else path / "report"
     out = OutputDirectory(folder, list(site_in.files), force=args.force)
     out.check(OUTPUT_FILES)   # refuse before computing anything, so nothing is half written
+    found = case_candidates(path, ("utilities", "prices", "costs"))
     notes = [f"site folder {path}: zones " + "; ".join(f"{z} ({Path(f).name})" for z, f in
                                                         site_in.zone_sources.items())
              + (f"; mains {Path(site_in.mains_source).name}" if site_in.mains_source else "; no mains table")]
+    if "prices" in found:
+        notes[0] += "; prices " + ", ".join(p.name for p in found["prices"])
+    scenario_options = ("utilities", "costs", "default_h", "sweep") if "prices" in found else ()
     unused = [o for o in ("utilities", "costs", "network", "default_h", "sweep", "emat", "sheet") if
-              getattr(args, o, None)] + (["tac"] if args.tac else [])
+              getattr(args, o, None) and o not in scenario_options] + (["tac"] if args.tac else [])
     if unused:
         notes.append("not used for a site: " + ", ".join("--" + o.replace("_", "-") for o in unused))
     dt_min, dt_note = dt_min_of(args)
@@ -356,11 +402,15 @@ def run_site(args) -> int:
     sources = {f"zone {z}": f for z, f in site_in.zone_sources.items()}
     if site_in.mains_source:
         sources["mains"] = site_in.mains_source
+    scenarios = None
+    if "prices" in found:
+        scenarios = site_scenarios(args, site_in.zones, found)
+        sources.update({role: str(files[0]) for role, files in found.items() if len(files) == 1})
     study = SiteStudy(title=f"Site study: {path.name}", site=site, frames=site.frames(), dt_min_note=dt_note,
                       zone_sources=dict(site_in.zone_sources), mains_source=site_in.mains_source, sources=sources,
                       notes=tuple(notes), safety_note=SAFETY_NOTE, version=__version__,
                       created=datetime.datetime.now().astimezone().isoformat(timespec="seconds"),
-                      command=_command_line(args))
+                      command=_command_line(args), scenarios=scenarios)
     rendered = render_site_report(study)
     sheets = site_sheets(study)              # everything is built before anything is written
     target = out.target("report.html")

@@ -16,6 +16,7 @@ from .common import (
     note,
     number_list,
     positive,
+    zone_streams,
 )
 from .sweep import DEFAULT_RANGE, parse_range
 
@@ -162,13 +163,6 @@ def format_study(study, source: str, range_note: str) -> str:
     return "\n".join(lines)
 
 
-def _process_of(zones):
-    """All zones' streams in one table (names prefixed by zone), to classify isothermal utilities."""
-    from ..model import Stream, StreamTable
-
-    return StreamTable(tuple(Stream(f"{z.name}/{s.name}", s.segments) for z in zones for s in z.streams))
-
-
 def run(args) -> int:
     from ..io import read_costs, read_utilities
     from ..io.scenarios import read_price_scenarios
@@ -180,7 +174,7 @@ def run(args) -> int:
                      fit_tolerance=args.fit_tolerance)
     utilities = None
     if args.utilities:
-        utilities = read_utilities(args.utilities, sheet=args.utilities_sheet, process=_process_of(site.zones),
+        utilities = read_utilities(args.utilities, sheet=args.utilities_sheet, process=zone_streams(site.zones),
                                    hours_per_year=args.hours_per_year)
     scenarios = ()
     if args.prices:

@@ -288,7 +288,12 @@ def test_site_folder_gives_a_site_report(tmp_path, capsys):
     from heatloom.io.site_report import SITE_SHEETS
     from heatloom.pinch.site import site_targets
 
-    code, out, _ = run(capsys, "report", SITE, "--out", tmp_path, "--dtmin", "10", "--json")
+    site_folder = tmp_path / "site"          # the case's zones and mains, without its prices table
+    site_folder.mkdir()
+    for f in SITE.glob("*.csv"):
+        if "prices" not in f.name:
+            (site_folder / f.name).write_bytes(f.read_bytes())
+    code, out, _ = run(capsys, "report", site_folder, "--out", tmp_path, "--dtmin", "10", "--json")
     assert code == 0
     data = json.loads(out)
     assert data["sections"] == ["summary", "inputs", "assumptions", "zones", "mains", "safety", "methods", "about"]
@@ -318,5 +323,35 @@ def test_site_folder_gives_a_site_report(tmp_path, capsys):
     hp = steam[(steam["zone"] == site.zones[0].name) & (steam["main"] == "HP steam")]
     assert hp["raised [kW]"].iloc[0] == pytest.approx(site.zones[0].raised["HP steam"])
     # refuses to overwrite, and writes over nothing of the inputs
-    code, _, err = run(capsys, "report", SITE, "--out", tmp_path, "--quiet")
+    code, _, err = run(capsys, "report", site_folder, "--out", tmp_path, "--quiet")
     assert code == 2 and "already exists" in err
+
+
+def test_site_folder_with_a_prices_table_adds_the_price_scenarios(tmp_path, capsys):
+    """The three-zone case (invented) holds utilities.csv and prices.csv: the report adds each zone's optimum
+    ΔTmin under every price scenario; its numbers are those of heatloom.pinch.scenarios.scenario_study."""
+    from heatloom.io import read_price_scenarios, read_utilities
+    from heatloom.io.site import read_site
+    from heatloom.pinch.scenarios import scenario_study
+
+    code, out, _ = run(capsys, "report", SITE, "--out", tmp_path / "a", "--json")
+    assert code == 0
+    data = json.loads(out)                   # prices per MWh without --hours-per-year: said, not fatal
+    assert "scenarios" in data["sections"] and data["figures"] == 2
+    assert any(n["where"] == "Price scenarios" and "--hours-per-year" in n["why"] for n in data["not_computed"])
+    code, out, _ = run(capsys, "report", SITE, "--out", tmp_path / "b", "--json", "--hours-per-year", "8000",
+                       "--default-h", "0.8", "--sweep", "5:25")
+    assert code == 0
+    data = json.loads(out)
+    assert data["figures"] == 3 and data["not_computed"] == []
+    zones = read_site(SITE).zones
+    utilities = read_utilities(SITE / "utilities.csv", process=common.zone_streams(zones))
+    plans = read_price_scenarios(SITE / "prices.csv", utilities, hours_per_year=8000)
+    study = scenario_study(zones, (5, 25), utilities, plans, step=report.SCENARIO_STEP, default_film_coefficient=0.8,
+                           workers=1)
+    sheets = pd.read_excel(tmp_path / "b" / "study.xlsx", sheet_name=None)
+    optima = sheets["scenario optima"]
+    assert len(optima) == len(study.optima) == 3 * 4
+    assert optima["ΔTmin [K]"].tolist() == pytest.approx([o.optimum.dt_min for o in study.optima])
+    html = (tmp_path / "b" / "report.html").read_text(encoding="utf-8")
+    assert "Price scenarios" in html and "gas +40 %" in html and "Linnhoff, B., Ahmad, S. (1990)" in html
