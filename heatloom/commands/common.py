@@ -14,7 +14,8 @@ EXIT_OK, EXIT_UNEXPECTED, EXIT_INPUT, EXIT_INFEASIBLE = 0, 1, 2, 3
 __all__ = ["EXIT_OK", "EXIT_UNEXPECTED", "EXIT_INPUT", "EXIT_INFEASIBLE", "DEFAULT_DT_MIN", "SAFETY_NOTE", "positive", "positive_or_zero", "add_shared", "add_table_options",
            "note", "read_inputs", "whole_number", "add_output_options", "dt_min_of", "fmt", "solves_summary", "print_json", "finish", "CASE_SUFFIXES",
            "CASE_ROLES", "case_candidates", "find_case_files", "ProgressBars", "add_cost_target_options",
-           "add_site_table_options", "check_cost_target_inputs", "number_list", "zone_streams"]
+           "add_site_table_options", "check_cost_target_inputs", "number_list", "zone_streams",
+           "read_scenario_inputs"]
 
 DEFAULT_DT_MIN = 10.0
 """Default minimum approach temperature [K] (*common practice* for a first look at liquid–liquid
@@ -152,6 +153,25 @@ def zone_streams(zones):
     from ..model import Stream, StreamTable
 
     return StreamTable(tuple(Stream(f"{z.name}/{s.name}", s.segments) for z in zones for s in z.streams))
+
+
+def read_scenario_inputs(zones, *, utilities=None, utilities_sheet=None, prices=None, costs=None,
+                         hours_per_year=None):
+    """The inputs of a price-scenario study over ``zones`` (heatloom.pinch.site.Zone objects).
+
+    Returns (utilities or None, price scenarios from the prices table, cost settings or None, names of the
+    streams and utilities without a film coefficient).
+    """
+    from ..io import read_costs, read_utilities
+    from ..io.scenarios import read_price_scenarios
+    from ..pinch.area import missing_film_coefficients
+
+    table = None if utilities is None else read_utilities(utilities, sheet=utilities_sheet,
+                                                          process=zone_streams(zones), hours_per_year=hours_per_year)
+    plans = () if prices is None else read_price_scenarios(prices, table, hours_per_year=hours_per_year)
+    settings = None if costs is None else read_costs(costs)
+    missing = sorted({m for z in zones for m in missing_film_coefficients(z.streams, table or ())})
+    return table, plans, settings, missing
 
 
 def note(args, text: str) -> None:

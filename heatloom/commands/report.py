@@ -25,12 +25,13 @@ from .common import (
     add_shared,
     add_table_options,
     case_candidates,
+    check_cost_target_inputs,
     dt_min_of,
     find_case_files,
     positive,
     positive_or_zero,
     print_json,
-    zone_streams,
+    read_scenario_inputs,
 )
 
 __all__ = ["register", "run", "run_site", "is_site_folder", "find_case_files", "compute_study", "OUTPUT_FILES", "SWEEP_RANGE", "SWEEP_STEP",
@@ -342,10 +343,7 @@ def site_scenarios(args, zones, found: dict):
     Uses the folder's (or the command line's) utilities and costs, ``--default-h`` where film coefficients are
     missing, ``--hours-per-year`` for prices per energy and ``--sweep`` for the ΔTmin range.
     """
-    from ..io import read_costs, read_utilities
-    from ..io.scenarios import read_price_scenarios
     from ..io.workbook import NotComputed
-    from ..pinch.area import missing_film_coefficients
     from ..pinch.scenarios import scenario_study
 
     for role, files in found.items():
@@ -353,17 +351,14 @@ def site_scenarios(args, zones, found: dict):
             return NotComputed(f"the folder holds {len(files)} {role} files ({', '.join(f.name for f in files)}); "
                                "keep one", "InputError")
 
+    def first(role: str):
+        return found[role][0] if role in found else None
+
     def run_study():
-        util_file = args.utilities or (found["utilities"][0] if "utilities" in found else None)
-        utilities = None if util_file is None else read_utilities(util_file, process=zone_streams(zones),
-                                                                  hours_per_year=args.hours_per_year)
-        plans = read_price_scenarios(found["prices"][0], utilities, hours_per_year=args.hours_per_year)
-        cost_file = args.costs or (found["costs"][0] if "costs" in found else None)
-        costs = None if cost_file is None else read_costs(cost_file)
-        missing = sorted({m for z in zones for m in missing_film_coefficients(z.streams, utilities or ())})
-        if missing and args.default_h is None:
-            raise InputError(f"film coefficient h missing for {len(missing)} streams or utilities ({missing[0]}, "
-                             "...): give one in an h column, or assume one with --default-h")
+        utilities, plans, costs, missing = read_scenario_inputs(
+            zones, utilities=args.utilities or first("utilities"), prices=first("prices"),
+            costs=args.costs or first("costs"), hours_per_year=args.hours_per_year)
+        check_cost_target_inputs(missing, args.default_h, None)
         return scenario_study(zones, args.sweep or SWEEP_RANGE, utilities, plans, costs, step=SCENARIO_STEP,
                               default_film_coefficient=args.default_h, workers=1)
 

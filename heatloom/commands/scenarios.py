@@ -16,7 +16,7 @@ from .common import (
     note,
     number_list,
     positive,
-    zone_streams,
+    read_scenario_inputs,
 )
 from .sweep import DEFAULT_RANGE, parse_range
 
@@ -164,25 +164,16 @@ def format_study(study, source: str, range_note: str) -> str:
 
 
 def run(args) -> int:
-    from ..io import read_costs, read_utilities
-    from ..io.scenarios import read_price_scenarios
     from ..io.site import read_site
-    from ..pinch.area import missing_film_coefficients
     from ..pinch.scenarios import price_factor_scenarios, scenario_study
 
     site = read_site(args.path, sheet_per_zone=not args.one_zone_workbook, columns=args.columns,
                      fit_tolerance=args.fit_tolerance)
-    utilities = None
-    if args.utilities:
-        utilities = read_utilities(args.utilities, sheet=args.utilities_sheet, process=zone_streams(site.zones),
-                                   hours_per_year=args.hours_per_year)
-    scenarios = ()
-    if args.prices:
-        scenarios = read_price_scenarios(args.prices, utilities, hours_per_year=args.hours_per_year)
+    utilities, scenarios, costs, missing = read_scenario_inputs(
+        site.zones, utilities=args.utilities, utilities_sheet=args.utilities_sheet, prices=args.prices,
+        costs=args.costs, hours_per_year=args.hours_per_year)
     scenarios = (*scenarios, *price_factor_scenarios(args.price_factors))
-    costs = read_costs(args.costs) if args.costs else None
     rng, range_note = (args.dtmin, "given") if args.dtmin is not None else (DEFAULT_RANGE, "default; set with --dtmin LO:HI")
-    missing = sorted({m for z in site.zones for m in missing_film_coefficients(z.streams, utilities or ())})
     check_cost_target_inputs(missing, args.default_h, args.cluster)
     out = None
     if args.out:
