@@ -610,10 +610,15 @@ def _methods(study: Study, page: _Page) -> str:
     used = methods_used(study)
     if not used:
         return _p("No published method was used: nothing was computed.")
+    return _methods_table(used, "Published methods used")
+
+
+def _methods_table(used, caption: str) -> str:
+    """The (method, used for, reference) rows of a run as the report's methods table."""
     body = "".join(f"<tr><th scope=\"row\">{_esc(m)}</th><td>{_esc(w)}</td><td>{_esc(r)}</td></tr>"
                    for m, w, r in used)
     return ("<p>Only the methods this run used are listed.</p>"
-            '<div class="table-wrap"><table id="methods-table"><caption>Published methods used</caption><thead><tr>'
+            f'<div class="table-wrap"><table id="methods-table"><caption>{_esc(caption)}</caption><thead><tr>'
             '<th scope="col">method</th><th scope="col">used for</th><th scope="col">reference</th></tr></thead>'
             f"<tbody>{body}</tbody></table></div>")
 
@@ -622,8 +627,12 @@ def _about(study: Study, page: _Page) -> str:
     rows = [("made by", f"heatloom {study.version}"), ("made on", study.created)]
     rows += [(f"input: {k}", v) for k, v in study.sources.items()]
     rows.append(("workbook", "study.xlsx beside this page: every table, one sheet per result"))
-    if study.settings.command:
-        rows.append(("command", study.settings.command))
+    return _about_table(rows, study.settings.command)
+
+
+def _about_table(rows, command: str) -> str:
+    """The report's "about" table: (item, value) rows, then the command line when there is one."""
+    rows = [*rows, ("command", command)] if command else rows
     body = "".join(f"<tr><th scope=\"row\">{_esc(a)}</th><td>{_esc(b)}</td></tr>" for a, b in rows)
     return f'<div class="table-wrap"><table id="about-table"><tbody>{body}</tbody></table></div>'
 

@@ -18,12 +18,14 @@ from dataclasses import dataclass, field
 
 from .report import (
     RenderedReport,
+    _about_table,
     _assumptions,
-    _esc,
     _frame_table,
     _long_table,
+    _methods_table,
     _p,
     _Page,
+    _safety,
     build_page,
 )
 from .workbook import SAFETY_TEXT, NotComputed
@@ -257,29 +259,15 @@ def _scenarios(study: SiteStudy, page: _Page) -> str:
     return "".join(parts)
 
 
-def _safety(study: SiteStudy, page: _Page) -> str:
-    items = study.cautions()
-    return (f'<div class="caution"><p><strong>{_esc(items[0])}</strong></p></div>'
-            + "<ul class=\"cautions\">" + "".join(f"<li>{_esc(c)}</li>" for c in items[1:]) + "</ul>")
-
-
 def _methods(study: SiteStudy, page: _Page) -> str:
-    body = "".join(f"<tr><th scope=\"row\">{_esc(m)}</th><td>{_esc(w)}</td><td>{_esc(r)}</td></tr>"
-                   for m, w, r in site_methods(study))
-    return ("<p>Only the methods this run used are listed.</p>"
-            '<div class="table-wrap"><table id="methods-table"><caption>Methods used</caption><thead><tr>'
-            '<th scope="col">method</th><th scope="col">used for</th><th scope="col">reference</th></tr></thead>'
-            f"<tbody>{body}</tbody></table></div>")
+    return _methods_table(site_methods(study), "Methods used")
 
 
 def _about(study: SiteStudy, page: _Page) -> str:
     rows = [("made by", f"heatloom {study.version}"), ("made on", study.created)]
     rows += [(f"input: {k}", v) for k, v in study.sources.items()]
     rows.append(("workbook", "study.xlsx beside this page: every table, one sheet per result"))
-    if study.command:
-        rows.append(("command", study.command))
-    body = "".join(f"<tr><th scope=\"row\">{_esc(a)}</th><td>{_esc(b)}</td></tr>" for a, b in rows)
-    return f'<div class="table-wrap"><table id="about-table"><tbody>{body}</tbody></table></div>'
+    return _about_table(rows, study.command)
 
 
 def render_site_report(study: SiteStudy) -> RenderedReport:
