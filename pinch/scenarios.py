@@ -41,7 +41,7 @@ from ..errors import InfeasibleError, InputError, SolverError
 from ..model import StreamTable, Utility
 from ..tasks import Progress, TaskRunner, describe_executor
 from .area import CapitalBasis, area_targets
-from .sweep import DesignPoint, SweepPoint, _case, _check_dt, _evaluate, _grid, _task_design, sweep
+from .sweep import DesignPoint, SweepPoint, _case, _check_dt, _grid, _task_design, _task_points, sweep
 from .targets import target
 
 __all__ = [
@@ -305,10 +305,6 @@ def _label(key: str, currency: str) -> str:
 # tasks (module-level: they run in other processes)
 
 
-def _task_cases(case, xs: tuple[float, ...]) -> list[SweepPoint]:
-    return [_evaluate(case, x) for x in xs]
-
-
 def _task_optimum(streams: StreamTable, low: float, high: float, step: float, utilities, costs, default_h,
                   basis: CapitalBasis, x_p, factor: float) -> tuple[SweepPoint | None, int, str, tuple[str, ...]]:
     try:
@@ -475,7 +471,7 @@ def scenario_study(zones, dt_min_range: tuple[float, float], utilities: Sequence
         parts = 1 if runner.name == "serial" else max(1, min(len(xs), -(-4 * (workers or os.cpu_count() or 1)
                                                                           // len(pairs))))
         chunks = [tuple(float(x) for x in c) for c in np.array_split(np.asarray(xs), parts) if c.size]
-        done = runner.map(_task_cases, [(case, c) for _, _, case in pairs for c in chunks], "cases")
+        done = runner.map(_task_points, [(case, c) for _, _, case in pairs for c in chunks], "cases")
         grids = [[p for part in done[k * len(chunks):(k + 1) * len(chunks)] for p in part] for k in range(len(pairs))]
         design_of: dict[tuple, DesignPoint] = {}
         if designs:
