@@ -20,7 +20,7 @@ import time
 import numpy as np
 
 from heatloom.model import Stream, StreamTable
-from heatloom.pinch.sweep import sweep
+from heatloom.studies.sweep import sweep
 
 
 def generated(n: int, seed: int = 11) -> StreamTable:

@@ -1,7 +1,7 @@
 """TAC design on the published benchmark problems: our total annual cost against the best published one.
 
 For every tests/data/references/synthesis_*.json (streams with CP and h, utilities with prices and h, a cost
-law, published TACs best first, and their source), runs `heatloom.network.tac.design_tac` with the file's
+law, published TACs best first, and their source), runs `heatloom.network.tac.search.design_tac` with the file's
 cost law (annualised) at EMAT 1 K and prints: our TAC, the best published TAC and who published it, their
 ratio, units, stream splits, wall time on this machine, and the seed.  Targets: ratio <= 1.00 on problems of
 up to 10 streams, <= 1.01 on 15-40 streams, each run under 5 minutes.  Asserts nothing; run:
@@ -20,9 +20,9 @@ import sys
 import time
 from pathlib import Path
 
+from heatloom.equipment.cost import CostLaw, CostSettings
 from heatloom.model import Stream, StreamTable, Utility, UtilityKind
-from heatloom.network.cost import CostLaw, CostSettings
-from heatloom.network.tac import design_tac
+from heatloom.network.tac.search import design_tac
 
 REFERENCES = Path(__file__).resolve().parents[1] / "tests" / "data" / "references"
 LAW = re.compile(r"\s*(?:(?P<fixed>[\d.]+)\s*\+\s*)?(?P<per_area>[\d.]+)\s*\*\s*A(?:\s*\*\*\s*(?P<exp>[\d.]+))?"

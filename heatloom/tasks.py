@@ -1,6 +1,6 @@
 """Running independent tasks: serially, on a local process pool, or on a Dask distributed cluster.
 
-The sweep (:mod:`heatloom.pinch.sweep`) and scenario studies (:mod:`heatloom.pinch.scenarios`) are many
+The sweep (:mod:`heatloom.studies.sweep`) and scenario studies (:mod:`heatloom.studies.scenarios`) are many
 independent evaluations.  :class:`TaskRunner` maps a module-level function over argument lists with
 
 * a local :class:`concurrent.futures.ProcessPoolExecutor` (the default; workers start from a fork server,
@@ -26,7 +26,7 @@ __all__ = ["Progress", "PRELOAD", "TaskRunner", "describe_executor", "pool_conte
 Progress = Callable[[str, int, int], None]
 """``progress(phase, done, total)``, called while tasks complete (for progress bars)."""
 
-PRELOAD = ("heatloom.pinch.sweep", "heatloom.pinch.scenarios", "heatloom.network")
+PRELOAD = ("heatloom.studies.sweep", "heatloom.studies.scenarios", "heatloom.network")
 """Modules the fork server imports once, so that pool workers start with them loaded."""
 
 

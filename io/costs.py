@@ -1,4 +1,4 @@
-"""Reading the costs file into :class:`heatloom.network.cost.CostSettings`.
+"""Reading the costs file into :class:`heatloom.equipment.cost.CostSettings`.
 
 Accepted forms (chosen by the file suffix; an unknown suffix is tried as JSON, then YAML):
 
@@ -18,13 +18,13 @@ Rules: ``exchanger`` (with ``per_area`` and ``exponent``; ``fixed`` is 0 when le
 ``heater`` and ``cooler`` default to the exchanger law.  ``annualised: true`` means the laws already
 give money per year; ``false`` means they give installed capital, annualised with ``interest_rate``
 (a fraction, 0.1 for 10 %) and ``years``, which are then required.  ``currency`` (a label, nothing is
-converted) and ``hours_per_year`` default to :mod:`heatloom.network.data`.  Every problem is an
+converted) and ``hours_per_year`` default to :mod:`heatloom.defaults`.  Every problem is an
 :class:`~heatloom.errors.InputError` naming the file and the key (in its ``column`` field, e.g.
 ``exchanger.per_area``), and for workbooks the row.
 
 The optional ``retrofit`` section prices the changes of ``heatloom retrofit``
-(:class:`heatloom.network.retrofit.RetrofitCosts`), as installed capital [money] whatever ``annualised``
-says; every key is optional (defaults in :mod:`heatloom.network.data`, illustrative)::
+(:class:`heatloom.retrofit.options.RetrofitCosts`), as installed capital [money] whatever ``annualised``
+says; every key is optional (defaults in :mod:`heatloom.defaults`, illustrative)::
 
       "retrofit": {"new_exchanger": {"fixed": 15000, "per_area": 1000, "exponent": 0.8},
                    "added_area": {"fixed": 5000, "per_area": 1000, "exponent": 0.8},
@@ -44,9 +44,9 @@ import os
 from collections.abc import Mapping
 from pathlib import Path
 
+from .. import defaults
+from ..equipment.cost import CostLaw, CostSettings
 from ..errors import InputError
-from ..network import data
-from ..network.cost import CostLaw, CostSettings
 
 __all__ = ["TOP_KEYS", "LAW_KEYS", "RETROFIT_KEYS", "read_costs", "costs_from_mapping", "read_retrofit_costs",
            "retrofit_costs_from_mapping"]
@@ -112,7 +112,7 @@ def _law(value, key: str, source, rows) -> CostLaw:
 
 def costs_from_mapping(mapping, *, source: str | os.PathLike | None = None,
                        rows: Mapping[str, int] | None = None) -> CostSettings:
-    """Check a parsed costs mapping and build :class:`~heatloom.network.cost.CostSettings`.
+    """Check a parsed costs mapping and build :class:`~heatloom.equipment.cost.CostSettings`.
 
     Parameters
     ----------
@@ -169,7 +169,7 @@ def costs_from_mapping(mapping, *, source: str | os.PathLike | None = None,
     else:
         kwargs.setdefault("interest_rate", None)
         kwargs.setdefault("years", None)
-    kwargs.setdefault("hours_per_year", data.HOURS_PER_YEAR)
+    kwargs.setdefault("hours_per_year", defaults.HOURS_PER_YEAR)
     try:
         return CostSettings(**kwargs)
     except InputError as e:
@@ -343,7 +343,7 @@ def retrofit_costs_from_mapping(mapping, *, source: str | os.PathLike | None = N
 
     Returns
     -------
-    heatloom.network.retrofit.RetrofitCosts
+    heatloom.retrofit.options.RetrofitCosts
 
     Examples
     --------
@@ -352,7 +352,7 @@ def retrofit_costs_from_mapping(mapping, *, source: str | os.PathLike | None = N
     >>> c.repipe, c.added_area.per_area, c.resequence
     (12000.0, 900.0, 8000.0)
     """
-    from ..network.retrofit import RetrofitCosts
+    from ..retrofit.options import RetrofitCosts
 
     section = mapping.get("retrofit") if isinstance(mapping, Mapping) else None
     if section is None:
@@ -376,7 +376,7 @@ def read_retrofit_costs(path: str | os.PathLike):
 
     Returns
     -------
-    heatloom.network.retrofit.RetrofitCosts
+    heatloom.retrofit.options.RetrofitCosts
 
     Raises
     ------

@@ -16,7 +16,7 @@ Columns:
   a cold utility a cooler;
 * ``area`` [m²] and/or ``duty`` [kW] — at least one.  A duty without an area is turned into an area at
   the temperatures it implies, which must be known without simulating the network (see
-  :class:`heatloom.network.existing.ExistingNetwork`); otherwise give the area;
+  :class:`heatloom.retrofit.existing.ExistingNetwork`); otherwise give the area;
 * ``U`` [kW/(m²·K)] — optional when the stream and utility tables give film coefficients ``h``
   (1/U = 1/h_hot + 1/h_cold);
 * ``hot_order``, ``cold_order`` — position of the unit along its hot and its cold process stream from the
@@ -39,10 +39,10 @@ from collections.abc import Mapping, Sequence
 
 import numpy as np
 
+from ..equipment.sizing import FlowArrangement
 from ..errors import InputError
 from ..model import StreamTable, Utility
-from ..network.existing import ExistingNetwork, ExistingUnit
-from ..network.sizing import FlowArrangement
+from ..retrofit.existing import ExistingNetwork, ExistingUnit
 from .tables import Table, normalise_name, parse_column_mapping, read_table
 from .tables import _cell_text as _text
 from .units import QuantityKind

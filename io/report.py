@@ -102,7 +102,7 @@ def retrofit_curve_figure(curve, *, title: str | None = None):
 
     Parameters
     ----------
-    curve : heatloom.network.diagnose.RetrofitCurve
+    curve : heatloom.retrofit.diagnose.RetrofitCurve
 
     Returns
     -------
@@ -184,7 +184,7 @@ _REFERENCES = {
     "retrofit_options": ("Retrofit options: candidate changes rated by ε-NTU simulation, sets of them chosen by "
                          "a MILP, ranked by net present value",
                          "ranked, costed retrofit options for the existing network",
-                         "heatloom's own formulation (heatloom.network.retrofit); net present value with the "
+                         "heatloom's own formulation (heatloom.retrofit.options); net present value with the "
                          "annuity present-worth factor of engineering economics, [1 − (1 + i)⁻ⁿ]/i"),
     "network_pinch": ("Network pinch", "what limits more recovery in the existing network",
                       "Asante, N. D. K., Zhu, X. X. (1997). Transactions of the IChemE 75(A), 349-360 (citation "

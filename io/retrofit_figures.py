@@ -2,7 +2,7 @@
 investment.
 
 Both follow the project's one visual style (:data:`heatloom.io.figures.STYLE`).  The grid diagrams are
-:func:`heatloom.io.figures.grid_diagram` of :meth:`heatloom.network.simulate.Simulation.to_network`, with
+:func:`heatloom.io.figures.grid_diagram` of :meth:`heatloom.retrofit.simulate.Simulation.to_network`, with
 the unit names written beside each unit and, on the proposed network, the new and changed units framed.
 """
 
@@ -21,7 +21,7 @@ HIGHLIGHT = {"edgecolor": "#303030", "facecolor": "none", "linestyle": (0, (3, 2
 def _unit_columns(simulation) -> list[tuple[str, str, str | None]]:
     """(unit name, upper row's stream, lower row's stream or None) in the left-to-right order that
     grid_diagram draws them (exchangers, heaters, coolers, each sorted by grid column, stable)."""
-    from ..network.existing import UnitRole
+    from ..retrofit.existing import UnitRole
 
     column, _ = simulation.network.grid_positions()
     ordered = ([u for u in simulation.units if u.role is UnitRole.EXCHANGER]
@@ -63,7 +63,7 @@ def grid_figures(existing, proposed, streams, *, changed: Collection[str] = (), 
 
     Parameters
     ----------
-    existing, proposed : heatloom.network.simulate.Simulation
+    existing, proposed : heatloom.retrofit.simulate.Simulation
         The network as it is and after the changes (``proposed`` may be None).
     streams : heatloom.model.StreamTable
     changed : collection of str
@@ -91,7 +91,7 @@ def savings_investment_figure(retrofit, *, title: str | None = None):
 
     Parameters
     ----------
-    retrofit : heatloom.network.retrofit.Retrofit
+    retrofit : heatloom.retrofit.options.Retrofit
 
     Returns
     -------

@@ -30,7 +30,7 @@ def scenario_cost_figure(study, *, title: str | None = None):
 
     Parameters
     ----------
-    study : heatloom.pinch.scenarios.ScenarioStudy
+    study : heatloom.studies.scenarios.ScenarioStudy
     title : str, optional
     """
     import matplotlib.pyplot as plt

@@ -76,7 +76,7 @@ class SiteStudy:
     created : str
     version : str
     command : str
-    scenarios : heatloom.pinch.scenarios.ScenarioStudy, NotComputed or None
+    scenarios : heatloom.studies.scenarios.ScenarioStudy, NotComputed or None
         The price-scenario study of the zones when the folder holds a prices table (None when it does not).
     """
 

@@ -35,7 +35,7 @@ def cost_figure(sweep, *, title: str | None = None):
 
     Parameters
     ----------
-    sweep : heatloom.pinch.sweep.Sweep
+    sweep : heatloom.studies.sweep.Sweep
     title : str, optional
     """
     cur = sweep.currency
@@ -71,7 +71,7 @@ def targets_figure(sweep, *, title: str | None = None):
 
     Parameters
     ----------
-    sweep : heatloom.pinch.sweep.Sweep
+    sweep : heatloom.studies.sweep.Sweep
     title : str, optional
     """
     fig, ax = _axes(title or "Energy and area targets against ΔTmin", "ΔTmin [K]", "Utility duty [kW]")

@@ -167,7 +167,7 @@ class Study:
         Lowest total annual cost found.
     diagnosis : Diagnosis, NotComputed or None
         None when no existing network was given.
-    retrofit : heatloom.network.retrofit.Retrofit, NotComputed or None
+    retrofit : heatloom.retrofit.options.Retrofit, NotComputed or None
         Ranked, costed retrofit options of the existing network; None when no existing network was given.
     existing : ExistingNetwork or None
     sources : dict
@@ -208,7 +208,7 @@ class Study:
 
     def __post_init__(self) -> None:
         if self.costs is None:
-            from ..network.cost import CostSettings
+            from ..equipment.cost import CostSettings
 
             object.__setattr__(self, "costs", CostSettings())
 

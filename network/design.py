@@ -21,15 +21,15 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass
 
+from .. import defaults
+from ..equipment.cost import CostSettings, UnitKind
+from ..equipment.geometry import ExchangerType, hairpins_for_area
+from ..equipment.segments import cut_profile, size_segments
+from ..equipment.sizing import shell_design
 from ..errors import InfeasibleError, InputError
 from ..model import Segment, Stream, StreamTable, Utility, UtilityKind
 from ..pinch import Targets, target
-from . import data
-from .cost import CostSettings, UnitKind
-from .geometry import ExchangerType, hairpins_for_area
 from .placement import Side, stage_model
-from .segments import cut_profile, size_segments
-from .sizing import shell_design
 from .solvers import solve
 from .structure import Cooler, Exchanger, Heater, Network, check_network, stream_enthalpy
 
@@ -45,7 +45,7 @@ def ideal_utilities(streams: StreamTable, dt_min: float) -> tuple[Utility, Utili
 
     An isothermal hot utility 20 K plus ΔTmin above the hottest cold-stream temperature and an isothermal
     cold utility 20 K plus ΔTmin below the coldest hot-stream temperature, with the prices and film
-    coefficients of :mod:`heatloom.network.data` (illustrative, common practice).
+    coefficients of :mod:`heatloom.defaults` (illustrative, common practice).
 
     Examples
     --------
@@ -57,12 +57,12 @@ def ideal_utilities(streams: StreamTable, dt_min: float) -> tuple[Utility, Utili
                    for s in streams.cold) if streams.cold else max(s.supply_temperature for s in streams)
     hot_min = min(s.target_temperature for s in streams.hot) if streams.hot else \
         min(s.supply_temperature for s in streams)
-    th = cold_max + dt_min + data.IDEAL_UTILITY_MARGIN
-    tc = hot_min - dt_min - data.IDEAL_UTILITY_MARGIN
-    return (Utility("hot utility (assumed)", th, th, data.DEFAULT_HOT_UTILITY_PRICE, UtilityKind.HOT,
-                    data.DEFAULT_HOT_UTILITY_FILM_COEFFICIENT),
-            Utility("cold utility (assumed)", tc, tc, data.DEFAULT_COLD_UTILITY_PRICE, UtilityKind.COLD,
-                    data.DEFAULT_COLD_UTILITY_FILM_COEFFICIENT))
+    th = cold_max + dt_min + defaults.IDEAL_UTILITY_MARGIN
+    tc = hot_min - dt_min - defaults.IDEAL_UTILITY_MARGIN
+    return (Utility("hot utility (assumed)", th, th, defaults.DEFAULT_HOT_UTILITY_PRICE, UtilityKind.HOT,
+                    defaults.DEFAULT_HOT_UTILITY_FILM_COEFFICIENT),
+            Utility("cold utility (assumed)", tc, tc, defaults.DEFAULT_COLD_UTILITY_PRICE, UtilityKind.COLD,
+                    defaults.DEFAULT_COLD_UTILITY_FILM_COEFFICIENT))
 
 
 @dataclass(frozen=True)
@@ -167,7 +167,7 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
     utilities : sequence of Utility, optional
         Utility levels with prices [money per kW·year]; when omitted, :func:`ideal_utilities`.
     costs : CostSettings, optional
-        Cost laws and annualisation; the defaults of :mod:`heatloom.network.data` when omitted.
+        Cost laws and annualisation; the defaults of :mod:`heatloom.defaults` when omitted.
     solver : str, optional
         "highs" or "cbc"; HiGHS when installed (see :mod:`heatloom.network.solvers`).
     time_limit : float
@@ -319,8 +319,8 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
     notes.append("Areas: counter-current LMTD, U from 1/U = 1/h_hot + 1/h_cold (clean surfaces, no fouling "
                  "allowance); streams of several segments sized interval by interval.")
     if exchanger_type is ExchangerType.SHELL_AND_TUBE_1_2:
-        notes.append(f"Units are 1-2 shell-and-tube: shells in series by the X_P = {data.X_P:g} criterion "
-                     f"(Ahmad, Linnhoff & Smith), minimum F {data.MIN_F_FACTOR:g}; area = counter-current "
+        notes.append(f"Units are 1-2 shell-and-tube: shells in series by the X_P = {defaults.X_P:g} criterion "
+                     f"(Ahmad, Linnhoff & Smith), minimum F {defaults.MIN_F_FACTOR:g}; area = counter-current "
                      "area / F (F from the terminal temperatures), cost law applied per shell.")
     elif exchanger_type is ExchangerType.DOUBLE_PIPE:
         notes.append(f"Units are counter-current double-pipe hairpins of tube diameter "

@@ -1,4 +1,4 @@
-"""Pinch targeting: problem table, composite curves, utility placement (installed as heatloom.pinch)."""
+"""Pinch targeting: problem table, composite curves, utility placement, area and cost targets, total site (installed as heatloom.pinch)."""
 
 from .area import (
     AreaTargets,
@@ -12,16 +12,18 @@ from .area import (
     target_utilities,
     unit_targets,
 )
-from .curves import Curve, cold_composite, grand_composite, hot_composite
-from .problem_table import ProblemTable, net_heat_capacity_flow, problem_table, shifted_ranges, zero_tolerance
-from .scenarios import (
-    PriceScenario,
-    ScenarioCase,
-    ScenarioOptimum,
-    ScenarioStudy,
-    ScenarioTotal,
-    price_factor_scenarios,
-    scenario_study,
+from .curves import (
+    Curve,
+    cold_composite,
+    grand_composite,
+    hot_composite,
+)
+from .problem_table import (
+    ProblemTable,
+    net_heat_capacity_flow,
+    problem_table,
+    shifted_ranges,
+    zero_tolerance,
 )
 from .site import (
     MainBalance,
@@ -36,9 +38,18 @@ from .site import (
     site_targets,
     zone_profiles,
 )
-from .sweep import Breakpoint, DesignPoint, Sweep, SweepPoint, describe_executor, sweep, sweep_point
-from .targets import Pinch, Targets, Threshold, target
-from .utilities import UtilityDuty, UtilityPlacement, place_utilities, utility_shifted_range
+from .targets import (
+    Pinch,
+    Targets,
+    Threshold,
+    target,
+)
+from .utilities import (
+    UtilityDuty,
+    UtilityPlacement,
+    place_utilities,
+    utility_shifted_range,
+)
 
 __all__ = [
     "AreaTargets",
@@ -51,20 +62,6 @@ __all__ = [
     "shell_target",
     "target_utilities",
     "unit_targets",
-    "Breakpoint",
-    "DesignPoint",
-    "Sweep",
-    "SweepPoint",
-    "describe_executor",
-    "sweep",
-    "sweep_point",
-    "PriceScenario",
-    "ScenarioCase",
-    "ScenarioOptimum",
-    "ScenarioStudy",
-    "ScenarioTotal",
-    "price_factor_scenarios",
-    "scenario_study",
     "Curve",
     "cold_composite",
     "grand_composite",
@@ -74,14 +71,6 @@ __all__ = [
     "problem_table",
     "shifted_ranges",
     "zero_tolerance",
-    "Pinch",
-    "Targets",
-    "Threshold",
-    "target",
-    "UtilityDuty",
-    "UtilityPlacement",
-    "place_utilities",
-    "utility_shifted_range",
     "MainBalance",
     "MainKind",
     "SiteTargets",
@@ -93,4 +82,12 @@ __all__ = [
     "remove_pockets",
     "site_targets",
     "zone_profiles",
+    "Pinch",
+    "Targets",
+    "Threshold",
+    "target",
+    "UtilityDuty",
+    "UtilityPlacement",
+    "place_utilities",
+    "utility_shifted_range",
 ]

@@ -14,7 +14,7 @@ that both curves span the same enthalpy) and reads off, before any network exist
 
 Utilities enter the balanced composites as streams: those of the targets' utility placement when
 utility levels were given, else the two ideal utilities of :func:`heatloom.network.design.ideal_utilities`
-(isothermal, :data:`heatloom.network.data.IDEAL_UTILITY_MARGIN` plus ΔTmin beyond the process, with the
+(isothermal, :data:`heatloom.network.defaults.IDEAL_UTILITY_MARGIN` plus ΔTmin beyond the process, with the
 stated default prices and film coefficients), so targets and designs see the same utilities.
 
 Layering note: this module uses the sizing functions, cost laws and tabulated defaults of
@@ -130,7 +130,7 @@ class BalancedComposites:
         TemperatureCrossError
             Where the curves touch (ΔT = 0: the area would be infinite).
         """
-        from ..network.sizing import log_mean
+        from ..equipment.sizing import log_mean
 
         dt1 = self.hot_high - self.cold_high
         dt2 = self.hot_low - self.cold_low
@@ -520,11 +520,11 @@ def _real_shells(hot_in, hot_out, cold_in, cold_out, x_p: float) -> np.ndarray:
     """Real-valued number of 1-2 shells in series at P = X_P·P_max per shell, interval by interval.
 
     N = NTU_cc(P, R)/NTU_cc(X_P·P_max(R), R), the count of Ahmad, Linnhoff & Smith written as in
-    :func:`heatloom.network.sizing.shell_design` (whose vectorised private helpers it uses, exact at
+    :func:`heatloom.equipment.sizing.shell_design` (whose vectorised private helpers it uses, exact at
     R = 1).  A side that does not change temperature gives R = 0 after swapping sides (which leaves the
     F-factor unchanged): N = ln(1 − P)/ln(1 − X_P), P_max being 1 there.  Both sides isothermal: 0.
     """
-    from ..network.sizing import _cc_ntu, _p_max_1_2
+    from ..equipment.sizing import _cc_ntu, _p_max_1_2
 
     hot_in, hot_out, cold_in, cold_out = (np.asarray(x, dtype=float) for x in (hot_in, hot_out, cold_in, cold_out))
     span = hot_in - cold_in
@@ -545,7 +545,7 @@ def shell_target(composites: BalancedComposites, *, x_p: float | None = None) ->
 
     In every enthalpy interval *k* of the balanced composites the real-valued number of 1-2 shells in
     series N_k that takes the composites from their interval inlet to outlet temperatures, each shell at
-    P = X_P·P_max (Ahmad, Linnhoff & Smith 1988; the count of :func:`heatloom.network.sizing.shell_design`), is
+    P = X_P·P_max (Ahmad, Linnhoff & Smith 1988; the count of :func:`heatloom.equipment.sizing.shell_design`), is
     multiplied by the number of units the interval needs, S_k − 1 (S_k streams and utilities present):
 
     .. math:: N_{shells} = \\Big\\lceil \\sum_k N_k\\,(S_k - 1) \\Big\\rceil
@@ -557,7 +557,7 @@ def shell_target(composites: BalancedComposites, *, x_p: float | None = None) ->
     ----------
     composites : BalancedComposites
     x_p : float, optional
-        X_P [-], 0 < X_P < 1; :data:`heatloom.network.data.X_P` (0.9) by default.
+        X_P [-], 0 < X_P < 1; :data:`heatloom.network.defaults.X_P` (0.9) by default.
 
     Returns
     -------
@@ -575,9 +575,9 @@ def shell_target(composites: BalancedComposites, *, x_p: float | None = None) ->
     >>> shell_target(balanced_composites(target(s, 10, [cw])))
     (3, 2.99...)
     """
-    from ..network import data
+    from .. import defaults
 
-    x_p = data.X_P if x_p is None else float(x_p)
+    x_p = defaults.X_P if x_p is None else float(x_p)
     if not (0 < x_p < 1):
         raise InputError(f"X_P must be in (0, 1), got {x_p:g}")
     c = composites
@@ -612,7 +612,7 @@ def area_targets(targets: Targets, costs=None, *, default_film_coefficient: floa
         Energy targets at one ΔTmin; its utility placement when utilities were given, else the ideal
         utilities (:func:`target_utilities`).
     costs : heatloom.network.CostSettings, optional
-        Cost laws and annualisation; the defaults of :mod:`heatloom.network.data` when omitted.
+        Cost laws and annualisation; the defaults of :mod:`heatloom.defaults` when omitted.
     default_film_coefficient : float, optional
         Film coefficient assumed where a stream or utility has none [kW/(m²·K)].
     capital_basis : CapitalBasis or str, optional
@@ -634,7 +634,7 @@ def area_targets(targets: Targets, costs=None, *, default_film_coefficient: floa
     Examples
     --------
     >>> from heatloom.model import StreamTable, Utility, UtilityKind
-    >>> from heatloom.network import CostLaw, CostSettings
+    >>> from heatloom.equipment import CostLaw, CostSettings
     >>> from heatloom.pinch import target
     >>> s = StreamTable.from_arrays(["H", "C"], [150, 30], [40, 120], [2.0, 2.0], film_coefficient=[1.0, 1.0])
     >>> cw = Utility("cold water", 20, 20, 10.0, UtilityKind.COLD, 1.0)
@@ -643,8 +643,8 @@ def area_targets(targets: Targets, costs=None, *, default_film_coefficient: floa
     >>> round(a.area, 3), a.units, a.units_mer, round(a.capital_cost, 1), a.energy_cost
     (14.773, 2, 2, 3477.3, 400.0)
     """
-    from ..network import data
-    from ..network.cost import CostSettings, UnitKind
+    from .. import defaults
+    from ..equipment.cost import CostSettings, UnitKind
 
     try:
         basis_kind = CapitalBasis(capital_basis)
@@ -657,7 +657,7 @@ def area_targets(targets: Targets, costs=None, *, default_film_coefficient: floa
     composites = balanced_composites(targets, default_film_coefficient=default_film_coefficient)
     area = bath_area(composites)
     units, units_mer = unit_targets(targets)
-    x_p = data.X_P if x_p is None else float(x_p)
+    x_p = defaults.X_P if x_p is None else float(x_p)
     shells, shells_real = shell_target(composites, x_p=x_p)
     count = {CapitalBasis.UNITS_MER: units_mer, CapitalBasis.UNITS: units, CapitalBasis.SHELLS: shells}[basis_kind]
     capital = count * float(costs.annual_capital_cost(area / count, UnitKind.EXCHANGER)) if count > 0 else 0.0
@@ -683,7 +683,7 @@ def area_targets(targets: Targets, costs=None, *, default_film_coefficient: floa
              f"Capital: the target area shared equally among the {count} target units ({what}; common "
              f"practice), exchanger law {costs.exchanger.text(costs.currency)} for every unit, annualised "
              f"(factor {costs.annualisation_factor:.4f} per year). Energy: utility duties × prices. "
-             f"{data.CAUTION}")
+             f"{defaults.CAUTION}")
     return AreaTargets(float(targets.dt_min), area, units, units_mer, shells, shells_real, capital, energy,
                        capital + energy, targets.hot_utility, targets.cold_utility, costs.currency, basis_kind,
                        basis)

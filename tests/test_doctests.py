@@ -13,7 +13,8 @@ import pkgutil
 import pytest
 from _pytest.doctest import _get_checker, get_optionflags  # noqa: F401  (NUMBER flag registration)
 
-SUBPACKAGES = ("heatloom.pinch", "heatloom.network", "heatloom.io")
+SUBPACKAGES = ("heatloom.equipment", "heatloom.pinch", "heatloom.network", "heatloom.retrofit", "heatloom.studies",
+               "heatloom.io")
 
 
 def _modules() -> list[str]:

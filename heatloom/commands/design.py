@@ -80,7 +80,7 @@ def register(sub) -> None:
 
 
 DEFAULT_EMAT = 1.0
-"""Default EMAT of --mode tac [K]; the same as heatloom.network.tac.DEFAULT_EMAT (kept here so that the
+"""Default EMAT of --mode tac [K]; the same as heatloom.network.tac.search.DEFAULT_EMAT (kept here so that the
 parser does not import the numerical modules)."""
 TAC_TIME_LIMIT = 120.0
 """Default wall-clock limit of a --mode tac run [s]."""
@@ -179,8 +179,8 @@ def run(args) -> int:
                               force=args.force)
         out.check(["network.json", "network.csv", "network.xlsx", "grid_diagram.png", "grid_diagram.svg"])
     if tac:
-        from ..network import data as network_data
-        from ..network.tac import design_tac
+        from .. import defaults as network_data
+        from ..network.tac.search import design_tac
 
         bar = _Progress(not (args.quiet or args.json), costs.currency if costs is not None else network_data.CURRENCY)
         try:
@@ -191,7 +191,8 @@ def run(args) -> int:
         finally:
             bar.close()
     else:
-        from ..network import ExchangerType, design_mer
+        from ..equipment import ExchangerType
+        from ..network import design_mer
 
         kind = {"counter-current": None, "shell-and-tube": ExchangerType.SHELL_AND_TUBE_1_2,
                 "double-pipe": ExchangerType.DOUBLE_PIPE}[args.exchanger_type]

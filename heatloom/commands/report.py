@@ -202,9 +202,9 @@ def compute_study(streams, dt_min: float, utilities=None, costs=None, *, existin
         [K]
     utilities : sequence of Utility, optional
     costs : heatloom.network.CostSettings, optional
-    existing : heatloom.network.existing.ExistingNetwork, optional
+    existing : heatloom.retrofit.existing.ExistingNetwork, optional
         An existing network to diagnose and to find ranked, costed retrofit options for.
-    retrofit_costs : heatloom.network.retrofit_changes.RetrofitCosts, optional
+    retrofit_costs : heatloom.retrofit.changes.RetrofitCosts, optional
         Cost laws of the retrofit changes (default: the package's illustrative ones).
     default_film_coefficient : float, optional
         [kW/(m²·K)]
@@ -218,8 +218,8 @@ def compute_study(streams, dt_min: float, utilities=None, costs=None, *, existin
     -------
     heatloom.io.report.Study
     """
+    from ..equipment.cost import CostSettings
     from ..io.report import NotComputed, RunSettings, Study
-    from ..network.cost import CostSettings
 
     settings = settings or RunSettings()
     fields.setdefault("title", "Heat-integration study")
@@ -251,12 +251,12 @@ def compute_study(streams, dt_min: float, utilities=None, costs=None, *, existin
     tell("ΔTmin sweep")
 
     def sweep():
-        from ..pinch.sweep import sweep as run_sweep
+        from ..studies.sweep import sweep as run_sweep
 
         return run_sweep(streams, settings.sweep_range, utilities, costs_in_force, step=settings.sweep_step,
                          workers=1, default_film_coefficient=h, capital_basis=settings.capital_basis)
 
-    w = _step(sweep, "the ΔTmin sweep (heatloom.pinch.sweep)") if settings.sweep_range is not None else \
+    w = _step(sweep, "the ΔTmin sweep (heatloom.studies.sweep)") if settings.sweep_range is not None else \
         NotComputed("no ΔTmin range was given")
 
     tell("network for maximum energy recovery")
@@ -272,13 +272,13 @@ def compute_study(streams, dt_min: float, utilities=None, costs=None, *, existin
     tell("network of lowest total annual cost")
     if settings.tac:
         def tac():
-            from ..network.tac import design_tac
+            from ..network.tac.search import design_tac
 
             return design_tac(streams, utilities, costs=costs_in_force, emat=settings.emat,
                               time_limit=settings.tac_time_limit, seed=settings.tac_seed, solver=settings.solver,
                               default_film_coefficient=h)
 
-        tac_net = _step(tac, "the lowest-total-annual-cost design (heatloom.network.tac)")
+        tac_net = _step(tac, "the lowest-total-annual-cost design (heatloom.network.tac.search)")
     else:
         tac_net = NotComputed("not asked for: add --tac to search for the network of lowest total annual cost "
                               f"(a heuristic search of up to --tac-time-limit, {settings.tac_time_limit or TAC_TIME_LIMIT:g} s by default)")
@@ -288,20 +288,20 @@ def compute_study(streams, dt_min: float, utilities=None, costs=None, *, existin
         tell("retrofit diagnosis")
 
         def diagnose():
-            from ..network.diagnose import diagnose as run
+            from ..retrofit.diagnose import diagnose as run
 
             return run(existing, dt_min, default_film_coefficient=h)
 
-        diagnosis = _step(diagnose, "the retrofit diagnosis (heatloom.network.diagnose)")
+        diagnosis = _step(diagnose, "the retrofit diagnosis (heatloom.retrofit.diagnose)")
         tell("retrofit options")
 
         def options():
-            from ..network.retrofit import retrofit_options
+            from ..retrofit.options import retrofit_options
 
             return retrofit_options(existing, dt_min, costs=costs_in_force, retrofit_costs=retrofit_costs,
                                     default_film_coefficient=h, solver=settings.solver)
 
-        retrofit = _step(options, "the retrofit options (heatloom.network.retrofit)")
+        retrofit = _step(options, "the retrofit options (heatloom.retrofit.options)")
     return Study(streams=streams, dt_min=dt_min, targets=t, utilities=None if utilities is None else tuple(utilities),
                  costs=costs_in_force, default_film_coefficient=h, area=a, sweep=w, design=design, tac=tac_net,
                  diagnosis=diagnosis, retrofit=retrofit, existing=existing, settings=settings, safety_note=SAFETY_NOTE, **fields)
@@ -344,7 +344,7 @@ def site_scenarios(args, zones, found: dict):
     missing, ``--hours-per-year`` for prices per energy and ``--sweep`` for the ΔTmin range.
     """
     from ..io.workbook import NotComputed
-    from ..pinch.scenarios import scenario_study
+    from ..studies.scenarios import scenario_study
 
     for role, files in found.items():
         if len(files) > 1:
@@ -362,7 +362,7 @@ def site_scenarios(args, zones, found: dict):
         return scenario_study(zones, args.sweep or SWEEP_RANGE, utilities, plans, costs, step=SCENARIO_STEP,
                               default_film_coefficient=args.default_h, workers=1)
 
-    return _step(run_study, "the price-scenario study (heatloom.pinch.scenarios)")
+    return _step(run_study, "the price-scenario study (heatloom.studies.scenarios)")
 
 
 def run_site(args) -> int:
@@ -470,7 +470,7 @@ def run(args) -> int:
     emat = args.emat
     if args.tac and emat is None:
         try:
-            from ..network.tac import DEFAULT_EMAT
+            from ..network.tac.search import DEFAULT_EMAT
         except ImportError:
             DEFAULT_EMAT = 1.0  # noqa: N806 - the TAC step will say that the design is not available
         emat = DEFAULT_EMAT

@@ -159,7 +159,7 @@ def format_retrofit(result, source: str, dt_note: str) -> str:
     kept = ", ".join(f"{k} {b}/{a}" for k, (a, b) in result.candidates.items())
     lines.append(f"  candidates that work alone and save energy / tried: {kept}; {result.evaluations} simulations")
     lines.append("  " + solves_summary(result.solves))
-    from ..network.retrofit_milp import SetValue, agree
+    from ..retrofit.selection import SetValue, agree
 
     off = [o.rank for o in result.options if not agree(
         SetValue(True, o.milp_saving, 0.0, o.milp_saving_per_year, o.milp_investment),
@@ -217,7 +217,7 @@ def run(args) -> int:
     if "costs" in files:
         costs = read_costs(files["costs"])
         rcosts = read_retrofit_costs(files["costs"])
-    from ..network.retrofit import retrofit_options
+    from ..retrofit.options import retrofit_options
 
     result = retrofit_options(network, dt_min, costs=costs, retrofit_costs=rcosts, budget=args.budget,
                               max_payback=args.max_payback, min_approach=args.min_approach,

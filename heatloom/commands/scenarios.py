@@ -165,7 +165,7 @@ def format_study(study, source: str, range_note: str) -> str:
 
 def run(args) -> int:
     from ..io.site import read_site
-    from ..pinch.scenarios import price_factor_scenarios, scenario_study
+    from ..studies.scenarios import price_factor_scenarios, scenario_study
 
     site = read_site(args.path, sheet_per_zone=not args.one_zone_workbook, columns=args.columns,
                      fit_tolerance=args.fit_tolerance)

@@ -157,7 +157,7 @@ def format_sweep(result, source: str, range_note: str, runner: str) -> str:
 
 def run(args) -> int:
     from ..pinch.area import missing_film_coefficients
-    from ..pinch.sweep import describe_executor, sweep
+    from ..studies.sweep import describe_executor, sweep
 
     streams, utilities = read_inputs(args)
     costs = None

@@ -5,15 +5,7 @@ from __future__ import annotations
 import argparse
 
 from ..errors import InputError
-from .common import (
-    SAFETY_NOTE,
-    add_shared,
-    add_table_options,
-    dt_min_of,
-    finish,
-    fmt,
-    read_inputs,
-)
+from .common import SAFETY_NOTE, add_shared, add_table_options, dt_min_of, finish, fmt, read_inputs
 
 __all__ = ["register", "run", "format_targets"]
 

@@ -5,7 +5,7 @@ example (Table 3.6): 50 kW hot and 30 kW cold utility, pinch at 90/80 °C at ΔT
 (tests/data/references/targeting_sinnott_four_stream.json). The film coefficients (0.5 kW/(m²·K)), the
 costs file and the utilities of the infeasible case below are invented for these tests; so are the
 solvent-recovery, existing-network and three-zone-site case studies. The site and retrofit-options checks
-compare the report with heatloom.pinch.site.site_targets and heatloom.network.retrofit.retrofit_options
+compare the report with heatloom.pinch.site.site_targets and heatloom.retrofit.options.retrofit_options
 run directly on the same files (their own tests check them against published values).
 """
 
@@ -236,8 +236,8 @@ def test_existing_network_gives_the_retrofit_diagnosis_and_options(tmp_path, cap
     from heatloom.io import read_costs, read_streams, read_utilities
     from heatloom.io.costs import read_retrofit_costs
     from heatloom.io.network_table import read_network
-    from heatloom.network.diagnose import diagnose
-    from heatloom.network.retrofit import retrofit_options
+    from heatloom.retrofit.diagnose import diagnose
+    from heatloom.retrofit.options import retrofit_options
 
     code, out, _ = run(capsys, "report", EXISTING, "--out", tmp_path, "--sweep", "5:20", "--tac", "--json")
     assert code == 0
@@ -329,10 +329,10 @@ def test_site_folder_gives_a_site_report(tmp_path, capsys):
 
 def test_site_folder_with_a_prices_table_adds_the_price_scenarios(tmp_path, capsys):
     """The three-zone case (invented) holds utilities.csv and prices.csv: the report adds each zone's optimum
-    ΔTmin under every price scenario; its numbers are those of heatloom.pinch.scenarios.scenario_study."""
+    ΔTmin under every price scenario; its numbers are those of heatloom.studies.scenarios.scenario_study."""
     from heatloom.io import read_price_scenarios, read_utilities
     from heatloom.io.site import read_site
-    from heatloom.pinch.scenarios import scenario_study
+    from heatloom.studies.scenarios import scenario_study
 
     code, out, _ = run(capsys, "report", SITE, "--out", tmp_path / "a", "--json")
     assert code == 0

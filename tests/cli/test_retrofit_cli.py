@@ -2,7 +2,7 @@
 
 Run through a parser built with heatloom.commands.retrofit.register (added to the command list here when
 heatloom.cli does not list it yet). The case study data are invented (case_studies/existing_network); the
-published facts behind the numbers are checked in tests/network/test_retrofit.py.
+published facts behind the numbers are checked in tests/retrofit/test_retrofit.py.
 """
 
 from __future__ import annotations

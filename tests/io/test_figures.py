@@ -10,10 +10,10 @@ import matplotlib.pyplot as plt  # noqa: E402
 import pytest  # noqa: E402
 from refdata import load_reference  # noqa: E402
 
-from heatloom.io.figures import grid_diagram  # noqa: E402
-from heatloom.io.scenario_figures import MAX_PANELS, scenario_cost_figure  # noqa: E402
-from heatloom.network.design import design_mer  # noqa: E402
-from heatloom.pinch.scenarios import price_factor_scenarios, scenario_study  # noqa: E402
+from heatloom.io.figures import grid_diagram
+from heatloom.io.scenario_figures import MAX_PANELS, scenario_cost_figure
+from heatloom.network.design import design_mer
+from heatloom.studies.scenarios import price_factor_scenarios, scenario_study
 
 
 @pytest.fixture(scope="module")

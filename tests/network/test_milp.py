@@ -20,13 +20,7 @@ from synthesis_problems import SYNTHESIS_SMALL, TARGETING, problems
 
 from heatloom.errors import InfeasibleError, InputError
 from heatloom.model import Stream, StreamTable, Utility
-from heatloom.network.milp import (
-    MatchKind,
-    TieBreak,
-    min_matches,
-    plan_matches,
-    subnetworks,
-)
+from heatloom.network.milp import MatchKind, TieBreak, min_matches, plan_matches, subnetworks
 from heatloom.network.transshipment import transshipment
 from heatloom.pinch import target
 

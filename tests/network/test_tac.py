@@ -15,13 +15,13 @@ import numpy as np
 import pytest
 from refdata import cost_settings, load_reference, published_laws, reference_utilities
 
+from heatloom.equipment.cost import CostLaw, CostSettings
 from heatloom.errors import InputError
 from heatloom.model import Segment, Stream, StreamTable, Utility, UtilityKind
-from heatloom.network.cost import CostLaw, CostSettings
 from heatloom.network.design import design_mer
 from heatloom.network.structure import check_network
-from heatloom.network.tac import design_tac, stagewise_milp, topology_from_network
-from heatloom.network.tac_nlp import Topology, _log_mean_and_gradient, make_problem, solve_topology
+from heatloom.network.tac.nlp import Topology, _log_mean_and_gradient, make_problem, solve_topology
+from heatloom.network.tac.search import design_tac, stagewise_milp, topology_from_network
 
 
 def recomputed_tac(net, data, streams) -> float:
@@ -152,7 +152,7 @@ def test_refined_topology_cost_matches_its_network():
                    frozenset({(0, 0), (1, 0)}))
     sol = solve_topology(p, top, extra_vertex=True)
     assert sol is not None
-    from heatloom.network.tac import network_from_solution
+    from heatloom.network.tac.search import network_from_solution
 
     net = network_from_solution(p, sol, streams, utilities, cost_settings(data["cost_law"]))
     assert net.total_annual_cost == pytest.approx(sol.tac, rel=1e-9)

@@ -28,10 +28,11 @@ from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 from scipy.integrate import quad
 
+from heatloom import defaults as network_data
+from heatloom.equipment import CostLaw, CostSettings, shell_design
 from heatloom.errors import InfeasibleError, InputError, TemperatureCrossError
 from heatloom.model import Segment, Stream, StreamTable, Utility, UtilityKind
-from heatloom.network import CostLaw, CostSettings, design_mer, ideal_utilities, shell_design
-from heatloom.network import data as network_data
+from heatloom.network import design_mer, ideal_utilities
 from heatloom.pinch import cold_composite, hot_composite, target
 from heatloom.pinch.area import (
     AreaTargets,

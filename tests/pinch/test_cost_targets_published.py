@@ -22,7 +22,7 @@ and title from memory).  The tolerances below say which case is which.
 import pytest
 from refdata import cost_settings, load_reference, reference_utilities
 
-from heatloom.pinch.sweep import sweep
+from heatloom.studies.sweep import sweep
 
 CASES = [
     # name, low, high ratio of TAC target to the best published network TAC, spread of stream h [kW/(m²·K)]

@@ -1,0 +1,260 @@
+"""Exchanger rating by ε-NTU: effectiveness, NTU, and the duty of an exchanger of known area.
+
+Pure functions on floats (and numpy arrays where natural) in canonical units: °C, K for differences,
+kW, kW/K, kW/(m²·K), m².  In ε-NTU, NTU = UA/C_min and C_r = C_min/C_max ∈ [0, 1]; several 1-2 shells
+in series share the total area equally.  The arrangements are those of
+:class:`heatloom.equipment.sizing.FlowArrangement`; the counter-current relations and the 1-2 shell
+series use the private helpers of :mod:`heatloom.equipment.sizing`, written with ``log1p``/``expm1``
+ratios that stay exact at C_r = 1.
+
+References
+----------
+Incropera, F.P., DeWitt, D.P., Bergman, T.L., Lavine, A.S. (2007) Fundamentals of Heat and Mass
+Transfer, 6th ed., Wiley, Table 11.3 (the ε-NTU closed forms).
+Underwood, A.J.V. (1934); Bowman, R.A., Mueller, A.C., Nagle, W.M. (1940): the 1-2 shell relation, as
+cited in :mod:`heatloom.equipment.sizing`.
+
+Sizing results are screening estimates: fouling, design margins, pressure and temperature limits
+and any temperature cross must be checked, and designs checked against local codes and standards by
+qualified, licensed engineers.
+"""
+
+from __future__ import annotations
+
+from dataclasses import asdict, dataclass
+
+import numpy as np
+
+from ..errors import InputError, TemperatureCrossError
+from .sizing import (
+    FlowArrangement,
+    _arrangement,
+    _array,
+    _cc_effectiveness,
+    _cc_ntu,
+    _check_shells,
+    _finite,
+    _ntu_1_2,
+    _out,
+    _p_max_1_2,
+    _require,
+    _series_total,
+    _series_unit,
+)
+
+__all__ = [
+    "effectiveness_from_ntu",
+    "ntu_from_effectiveness",
+    "max_effectiveness",
+    "Rating",
+    "rate_exchanger",
+]
+
+
+# --------------------------------------------------------------------------------------------------
+# ε-NTU
+
+
+def _check_cr(cr):
+    cr = _array(cr, "capacity ratio C_r")
+    _require((cr >= 0) & (cr <= 1), cr, "capacity ratio C_r = C_min/C_max must be in [0, 1], got {}")
+    return cr
+
+
+def effectiveness_from_ntu(ntu, capacity_ratio, arrangement=FlowArrangement.COUNTER_CURRENT, *, shells=1):
+    """Thermal effectiveness ε = Q/[C_min(T_h,in − T_c,in)] from NTU = UA/C_min and C_r = C_min/C_max.
+
+    Counter-current: ε = [1 − e^{−NTU(1−C_r)}]/[1 − C_r e^{−NTU(1−C_r)}] (NTU/(1 + NTU) at C_r = 1,
+    reached continuously).  Co-current: ε = [1 − e^{−NTU(1+C_r)}]/(1 + C_r).  One 1-2 shell:
+    ε₁ = 2/[1 + C_r + S·coth(NTU₁·S/2)], S = √(1 + C_r²); N shells in series, each with NTU₁ = NTU/N:
+    ε = (Wᴺ − 1)/(Wᴺ − C_r), W = (1 − ε₁C_r)/(1 − ε₁) (Nε₁/[1 + (N−1)ε₁] at C_r = 1).  These are the
+    standard closed forms, e.g. Incropera, DeWitt, Bergman & Lavine (2007), Fundamentals of Heat and
+    Mass Transfer, 6th ed., Wiley, Table 11.3.
+
+    Parameters
+    ----------
+    ntu : float or array
+        NTU [-], >= 0.
+    capacity_ratio : float or array
+        C_r [-], in [0, 1].
+    arrangement : FlowArrangement, optional
+    shells : int, optional
+        Shells in series, for ``SHELL_AND_TUBE_1_2`` only [-].
+
+    Returns
+    -------
+    float or ndarray
+        ε [-].
+
+    Examples
+    --------
+    >>> round(effectiveness_from_ntu(1.0, 1.0), 6)
+    0.5
+    >>> round(effectiveness_from_ntu(1.0, 0.5, FlowArrangement.CO_CURRENT), 4)
+    0.5179
+    """
+    arrangement = _arrangement(arrangement)
+    n = _check_shells(shells)
+    ntu = _array(ntu, "NTU")
+    _require((ntu >= 0) & np.isfinite(ntu), ntu, "NTU must be >= 0 and finite, got {}")
+    cr = _check_cr(capacity_ratio)
+    if arrangement is FlowArrangement.COUNTER_CURRENT:
+        return _out(_cc_effectiveness(ntu, cr))
+    if arrangement is FlowArrangement.CO_CURRENT:
+        return _out(-np.expm1(-ntu * (1.0 + cr)) / (1.0 + cr))
+    s = np.sqrt(1.0 + cr * cr)
+    t = np.tanh(ntu / n * s / 2)
+    e1 = 2.0 * t / ((1.0 + cr) * t + s)
+    return _out(e1 if n == 1 else _series_total(e1, cr, n))
+
+
+def max_effectiveness(capacity_ratio, arrangement=FlowArrangement.COUNTER_CURRENT, *, shells=1):
+    """Effectiveness reached with infinite area [-] (the supremum; never reached).
+
+    Counter-current 1; co-current 1/(1 + C_r); 1-2 shells: :func:`p_max`.
+
+    Examples
+    --------
+    >>> max_effectiveness(1.0, FlowArrangement.CO_CURRENT)
+    0.5
+    """
+    arrangement = _arrangement(arrangement)
+    n = _check_shells(shells)
+    cr = _check_cr(capacity_ratio)
+    if arrangement is FlowArrangement.COUNTER_CURRENT:
+        return _out(np.ones_like(cr))
+    if arrangement is FlowArrangement.CO_CURRENT:
+        return _out(1.0 / (1.0 + cr))
+    return _out(_series_total(_p_max_1_2(cr), cr, n))
+
+
+def ntu_from_effectiveness(effectiveness, capacity_ratio, arrangement=FlowArrangement.COUNTER_CURRENT, *,
+                           shells=1):
+    """NTU needed for an effectiveness: the inverse of :func:`effectiveness_from_ntu`.
+
+    Counter-current: NTU = ln[(1 − εC_r)/(1 − ε)]/(1 − C_r) (ε/(1 − ε) at C_r = 1, reached continuously).
+    Co-current: NTU = −ln[1 − ε(1 + C_r)]/(1 + C_r).  1-2 shells: ε₁ of each shell from the series
+    relation, then NTU₁ = ln{[2 − ε₁(1 + C_r − S)]/[2 − ε₁(1 + C_r + S)]}/S and NTU = N·NTU₁.
+
+    Parameters
+    ----------
+    effectiveness : float or array
+        ε [-], 0 <= ε < :func:`max_effectiveness`.
+    capacity_ratio : float or array
+        C_r [-], in [0, 1].
+    arrangement : FlowArrangement, optional
+    shells : int, optional
+
+    Returns
+    -------
+    float or ndarray
+        NTU [-].
+
+    Raises
+    ------
+    InputError
+        If ε is not reachable by the arrangement (the message gives the maximum).
+
+    Examples
+    --------
+    >>> round(ntu_from_effectiveness(0.5, 1.0), 6)
+    1.0
+    """
+    arrangement = _arrangement(arrangement)
+    n = _check_shells(shells)
+    eps = _array(effectiveness, "effectiveness")
+    cr = _check_cr(capacity_ratio)
+    _require(eps >= 0, eps, "effectiveness must be >= 0, got {}")
+    top = _array(max_effectiveness(cr, arrangement, shells=n), "maximum effectiveness")
+    ok = eps < top
+    if not np.all(ok):
+        e, c, m = (np.broadcast_to(x, ok.shape)[~ok].flat[0] for x in np.broadcast_arrays(eps, cr, top))
+        extra = f" with {n} shell(s)" if arrangement is FlowArrangement.SHELL_AND_TUBE_1_2 else ""
+        raise InputError(f"effectiveness {e:g} is not reachable by a {arrangement.value.replace('_', '-')} "
+                         f"exchanger{extra} at C_r = {c:g}: it must be below {m:.6g}")
+    if arrangement is FlowArrangement.COUNTER_CURRENT:
+        return _out(_cc_ntu(eps, cr))
+    if arrangement is FlowArrangement.CO_CURRENT:
+        return _out(-np.log1p(-eps * (1.0 + cr)) / (1.0 + cr))
+    e1 = eps if n == 1 else _series_unit(eps, cr, n)
+    return _out(n * _ntu_1_2(e1, cr))
+
+
+@dataclass(frozen=True)
+class Rating:
+    """Performance of an exchanger of known area (see :func:`rate_exchanger`).
+
+    Attributes: ``duty`` [kW], ``hot_out``, ``cold_out`` [°C], ``effectiveness`` [-], ``ntu`` [-]
+    (on C_min), ``capacity_ratio`` [-], ``arrangement``, ``shells``.
+    """
+
+    duty: float
+    hot_out: float
+    cold_out: float
+    effectiveness: float
+    ntu: float
+    capacity_ratio: float
+    arrangement: FlowArrangement
+    shells: int
+
+    def to_dict(self) -> dict:
+        d = asdict(self)
+        d["arrangement"] = self.arrangement.value
+        return d
+
+
+def rate_exchanger(hot_in, cold_in, hot_heat_capacity_flow, cold_heat_capacity_flow, u, area,
+                   arrangement=FlowArrangement.COUNTER_CURRENT, *, shells=1) -> Rating:
+    """Duty and outlet temperatures of an exchanger of known area (ε-NTU rating).
+
+    .. math:: NTU = UA/C_{min},\\quad Q = \\varepsilon\\,C_{min}\\,(T_{h,in} - T_{c,in}),\\quad
+              T_{h,out} = T_{h,in} - Q/C_h,\\quad T_{c,out} = T_{c,in} + Q/C_c
+
+    Parameters
+    ----------
+    hot_in, cold_in : float
+        Inlet temperatures [°C]; hot_in >= cold_in.
+    hot_heat_capacity_flow, cold_heat_capacity_flow : float
+        CP of each side [kW/K], > 0.
+    u : float
+        [kW/(m²·K)], > 0.
+    area : float
+        [m²], >= 0 (for ``shells`` > 1, the total area of all shells).
+    arrangement : FlowArrangement, optional
+    shells : int, optional
+
+    Returns
+    -------
+    Rating
+
+    Raises
+    ------
+    TemperatureCrossError
+        If the hot inlet is colder than the cold inlet.
+
+    Examples
+    --------
+    >>> r = rate_exchanger(150.0, 30.0, 2.0, 2.0, 0.5, 8.0)
+    >>> round(r.duty, 3), round(r.hot_out, 3), round(r.cold_out, 3)
+    (160.0, 70.0, 110.0)
+    """
+    arrangement = _arrangement(arrangement)
+    n = _check_shells(shells)
+    th, tc = _finite(hot_in, "hot inlet temperature", "°C"), _finite(cold_in, "cold inlet temperature", "°C")
+    ch = _finite(hot_heat_capacity_flow, "hot heat capacity flow rate", "kW/K")
+    cc = _finite(cold_heat_capacity_flow, "cold heat capacity flow rate", "kW/K")
+    uu, a = _finite(u, "overall coefficient U", "kW/(m²·K)"), _finite(area, "area", "m²")
+    for v, name, unit in ((ch, "hot heat capacity flow rate", "kW/K"), (cc, "cold heat capacity flow rate", "kW/K"),
+                          (uu, "overall coefficient U", "kW/(m²·K)")):
+        if not v > 0:
+            raise InputError(f"{name} must be > 0 {unit}, got {v:g}")
+    if not a >= 0:
+        raise InputError(f"area must be >= 0 m², got {a:g}")
+    if th < tc:
+        raise TemperatureCrossError(f"hot inlet {th:g} °C is below cold inlet {tc:g} °C: the exchanger "
+                                    "would heat the hot side; swap the sides or drop the match")
+    cmin, cmax = min(ch, cc), max(ch, cc)
+    cr, ntu = cmin / cmax, uu * a / cmin
+    eps = float(effectiveness_from_ntu(ntu, cr, arrangement, shells=n))
+    q = eps * cmin * (th - tc)
+    return Rating(q, th - q / ch, tc + q / cc, eps, ntu, cr, arrangement, n)

@@ -1,0 +1,695 @@
+"""Exchanger sizing: overall coefficient, LMTD, area, F-factor and 1-2 shells.
+
+Pure functions on floats (and numpy arrays where natural) in canonical units: °C, K for differences,
+kW, kW/K, kW/(m²·K), m²·K/kW for fouling resistances, m².  Conventions used throughout:
+
+* *counter-current* means the hot inlet meets the cold outlet; the two end differences are
+  ΔT₁ = T_hot,in − T_cold,out and ΔT₂ = T_hot,out − T_cold,in;
+* for the 1-2 shell-and-tube F-factor, R = (T_hot,in − T_hot,out)/(T_cold,out − T_cold,in) and
+  P = (T_cold,out − T_cold,in)/(T_hot,in − T_cold,in); the result does not depend on which fluid is in
+  the shell.
+
+Where the two ends of a log mean are nearly equal, the log mean is written
+(ΔT₁ + ΔT₂)/2 · r/artanh(r) with r = (ΔT₁ − ΔT₂)/(ΔT₁ + ΔT₂) and a series for small r, so it is exact
+(to rounding) at and across ΔT₁ = ΔT₂; the F-factor, the shell count and the counter-current ε-NTU
+relations are likewise written with ``log1p``/``expm1`` ratios that stay exact at R = 1 and C_r = 1.
+
+The limits X_P and the minimum F are defined once in :mod:`heatloom.defaults`.
+
+ε-NTU rating is in :mod:`heatloom.equipment.rating`, segment-wise area in
+:mod:`heatloom.equipment.segments` and exchanger geometry in :mod:`heatloom.equipment.geometry`; they use
+the private helpers of this module.
+
+References
+----------
+Underwood, A.J.V. (1934) The calculation of the mean temperature difference in multi-pass heat
+exchangers, J. Inst. Petroleum Technologists 20, 145-158.
+Bowman, R.A., Mueller, A.C., Nagle, W.M. (1940) Mean temperature difference in design,
+Trans. ASME 62, 283-294.
+Fakheri, A. (2003) A general expression for the determination of the log mean temperature
+correction factor for shell and tube heat exchangers, J. Heat Transfer 125(3), 527-530.
+Ahmad, S., Linnhoff, B., Smith, R. (1988) Design of multipass heat exchangers: an alternative
+approach, J. Heat Transfer 110(2), 304-309.
+
+Sizing results are screening estimates: fouling, design margins, pressure and temperature limits
+and any temperature cross must be checked, and designs checked against local codes and standards by
+qualified, licensed engineers.
+"""
+
+from __future__ import annotations
+
+import enum
+import math
+from dataclasses import asdict, dataclass
+
+import numpy as np
+
+from .. import defaults
+from ..errors import InputError, TemperatureCrossError
+
+__all__ = [
+    "FlowArrangement",
+    "overall_coefficient",
+    "log_mean",
+    "lmtd",
+    "area_from_duty",
+    "duty_from_area",
+    "f_factor",
+    "f_factor_from_temperatures",
+    "p_max",
+    "ShellDesign",
+    "shell_design",
+]
+
+
+class FlowArrangement(enum.Enum):
+    """How the two fluids flow past each other (for LMTD and ε-NTU)."""
+
+    COUNTER_CURRENT = "counter_current"
+    CO_CURRENT = "co_current"
+    SHELL_AND_TUBE_1_2 = "shell_and_tube_1_2"
+    """One shell pass, an even number of tube passes; N such shells may be in series."""
+
+
+# --------------------------------------------------------------------------------------------------
+# small helpers
+
+
+def _array(x, what: str) -> np.ndarray:
+    try:
+        return np.asarray(x, dtype=float)
+    except (TypeError, ValueError):
+        raise InputError(f"{what} must be a number or an array of numbers, got {x!r}") from None
+
+
+def _out(a):
+    a = np.asarray(a, dtype=float)
+    return float(a) if a.ndim == 0 else a
+
+
+def _require(ok, values, message: str) -> None:
+    """Raise InputError(message.format(first bad value)) unless ``ok`` holds everywhere."""
+    ok = np.asarray(ok)
+    if not ok.all():
+        bad = np.broadcast_to(np.asarray(values, dtype=float), ok.shape)[~ok].flat[0]
+        raise InputError(message.format(f"{bad:g}"))
+
+
+def _log1p_ratio(u):
+    """log(1 + u)/u, equal to 1 at u = 0 (series below |u| = 1e-5)."""
+    u = np.asarray(u, dtype=float)
+    small = np.abs(u) < 1e-5
+    us = np.where(small, 1.0, u)
+    return np.where(small, 1.0 - u / 2 + u * u / 3 - u ** 3 / 4, np.log1p(us) / us)
+
+
+def _expm1_ratio(x):
+    """(exp(x) − 1)/x, equal to 1 at x = 0 (series below |x| = 1e-5)."""
+    x = np.asarray(x, dtype=float)
+    small = np.abs(x) < 1e-5
+    xs = np.where(small, 1.0, x)
+    return np.where(small, 1.0 + x / 2 + x * x / 6 + x ** 3 / 24, np.expm1(xs) / xs)
+
+
+def _cc_ntu(p, r):
+    """Counter-current NTU of the side with effectiveness p and capacity ratio r = C_this/C_other.
+
+    NTU = ln[(1 − rP)/(1 − P)]/(1 − r), written P/(1 − P)·log1p(u)/u with u = P(1 − r)/(1 − P) so that
+    r = 1 gives P/(1 − P) exactly.  Needs P < 1 and rP < 1.
+    """
+    p = np.asarray(p, dtype=float)
+    r = np.asarray(r, dtype=float)
+    q = p / (1.0 - p)
+    return q * _log1p_ratio(q * (1.0 - r))
+
+
+def _cc_effectiveness(ntu, r):
+    """Counter-current effectiveness from NTU and r; the inverse of :func:`_cc_ntu`.
+
+    P = expm1(a)/(expm1(a) + 1 − r) with a = NTU(1 − r), written Q/(1 + Q), Q = NTU·expm1(a)/a, for
+    |a| ≤ 1 (exact at r = 1) and with exp(−|a|) above (no overflow).
+    """
+    ntu = np.asarray(ntu, dtype=float)
+    r = np.asarray(r, dtype=float)
+    a = ntu * (1.0 - r)
+    small = np.abs(a) <= 1.0
+    q = ntu * _expm1_ratio(np.where(small, a, 0.0))
+    a_large = np.where(small, 1.0, a)
+    e = np.exp(-np.abs(a_large))
+    # a > 0 (r < 1): 1 − r·e > 0; a < 0 (r > 1): r − e > 0
+    large = (1.0 - e) / np.where(a_large > 0, 1.0 - r * e, r - e)
+    return np.where(small, q / (1.0 + q), large)
+
+
+def _ntu_1_2(p, r):
+    """NTU of one 1-2 shell from P and R (Underwood 1934; Bowman, Mueller & Nagle 1940).
+
+    NTU = ln{[2 − P(1 + R − S)]/[2 − P(1 + R + S)]}/S, S = √(1 + R²).  Needs P < 2/(1 + R + S).
+    """
+    s = np.sqrt(1.0 + r * r)
+    # near P_max, 2 − P(1 + R + S) is written (1 + R + S)(P_max − P): the gap to P_max is taken first,
+    # so P one rounding step below P_max still gives a finite NTU (a gap lost to rounding counts as one step)
+    pm = _p_max_1_2(r)
+    x = p * (1.0 + r + s) / 2
+    near = x > 0.5
+    gap = np.maximum(pm - p, np.spacing(pm))
+    far_term = np.log1p(-np.where(near, 0.0, x))
+    near_term = np.log((1.0 + r + s) * np.where(near, gap, 1.0) / 2)
+    return (np.log1p(-p * (1.0 + r - s) / 2) - np.where(near, near_term, far_term)) / s
+
+
+def _p_max_1_2(r):
+    """Largest P one 1-2 shell reaches (infinite area): 2/(1 + R + √(1 + R²))."""
+    return 2.0 / (1.0 + r + np.sqrt(1.0 + r * r))
+
+
+def _ceil(x: float) -> int:
+    return int(math.ceil(x - 1e-9 * max(1.0, abs(x))))
+
+
+def _check_shells(shells) -> int:
+    if isinstance(shells, bool) or not isinstance(shells, (int, np.integer)) or shells < 1:
+        raise InputError(f"number of shells must be a whole number >= 1, got {shells!r}")
+    return int(shells)
+
+
+def _arrangement(arrangement) -> FlowArrangement:
+    try:
+        return FlowArrangement(arrangement)
+    except ValueError:
+        allowed = ", ".join(a.value for a in FlowArrangement)
+        raise InputError(f"unknown flow arrangement {arrangement!r}; allowed: {allowed}") from None
+
+
+def _finite(x, what, unit) -> float:
+    try:
+        v = float(x)
+    except (TypeError, ValueError):
+        raise InputError(f"{what} must be a number [{unit}], got {x!r}") from None
+    if not math.isfinite(v):
+        raise InputError(f"{what} must be a finite number [{unit}], got {v!r}")
+    return v
+
+
+# --------------------------------------------------------------------------------------------------
+# U, LMTD, area
+
+
+def overall_coefficient(hot_film_coefficient, cold_film_coefficient, *, hot_fouling=0.0, cold_fouling=0.0):
+    """Overall heat transfer coefficient from the two film coefficients and fouling resistances.
+
+    .. math:: 1/U = 1/h_{hot} + 1/h_{cold} + R_{f,hot} + R_{f,cold}
+
+    Wall resistance is neglected (thin metal wall) and all terms refer to one area.
+
+    Parameters
+    ----------
+    hot_film_coefficient, cold_film_coefficient : float or array
+        Film coefficients h [kW/(m²·K)], > 0.
+    hot_fouling, cold_fouling : float or array, optional
+        Fouling resistances R_f [m²·K/kW], >= 0 (0 by default: clean surface; real designs need the
+        fouling allowances of the applicable standard).
+
+    Returns
+    -------
+    float or ndarray
+        U [kW/(m²·K)].
+
+    Examples
+    --------
+    >>> overall_coefficient(1.0, 1.0)
+    0.5
+    >>> overall_coefficient(1.0, 1.0, hot_fouling=0.5)
+    0.4
+    """
+    hh = _array(hot_film_coefficient, "hot film coefficient")
+    hc = _array(cold_film_coefficient, "cold film coefficient")
+    fh = _array(hot_fouling, "hot fouling resistance")
+    fc = _array(cold_fouling, "cold fouling resistance")
+    _require(hh > 0, hh, "hot film coefficient must be > 0 kW/(m²·K), got {}")
+    _require(hc > 0, hc, "cold film coefficient must be > 0 kW/(m²·K), got {}")
+    _require((fh >= 0) & np.isfinite(fh), fh, "hot fouling resistance must be >= 0 m²·K/kW and finite, got {}")
+    _require((fc >= 0) & np.isfinite(fc), fc, "cold fouling resistance must be >= 0 m²·K/kW and finite, got {}")
+    return _out(1.0 / (1.0 / hh + 1.0 / hc + fh + fc))
+
+
+def log_mean(dt1, dt2):
+    """Logarithmic mean of two positive temperature differences, exact as ΔT₁/ΔT₂ → 1.
+
+    .. math:: \\Delta T_{lm} = \\frac{\\Delta T_1 - \\Delta T_2}{\\ln(\\Delta T_1/\\Delta T_2)}
+              = \\frac{\\Delta T_1 + \\Delta T_2}{2}\\,\\frac{r}{\\operatorname{artanh} r},\\quad
+              r = \\frac{\\Delta T_1 - \\Delta T_2}{\\Delta T_1 + \\Delta T_2}
+
+    with r/artanh r = 1 − r²/3 − 4r⁴/45 + O(r⁶) for |r| < 1e-4 (the two forms are identical since
+    ln x = 2 artanh[(x − 1)/(x + 1)]); for |r| > 0.5 (a ratio beyond 3) the plain form is used with the
+    logarithms taken separately.
+
+    Parameters
+    ----------
+    dt1, dt2 : float or array
+        End temperature differences [K], both > 0.
+
+    Returns
+    -------
+    float or ndarray
+        [K]
+
+    Raises
+    ------
+    TemperatureCrossError
+        If either difference is <= 0 or NaN (no driving force at that end).
+
+    Examples
+    --------
+    >>> log_mean(20.0, 20.0)
+    20.0
+    >>> round(log_mean(40.0, 10.0), 4)
+    21.6404
+    """
+    a = _array(dt1, "ΔT₁")
+    b = _array(dt2, "ΔT₂")
+    for x, name in ((a, "ΔT₁"), (b, "ΔT₂")):
+        ok = x > 0
+        if not np.all(ok):
+            bad = np.broadcast_to(x, ok.shape)[~ok].flat[0]
+            raise TemperatureCrossError(f"end temperature difference {name} = {bad:g} K: a log mean needs "
+                                        "both differences > 0 K (temperature cross or pinch at that end)")
+    _require(np.isfinite(a) & np.isfinite(b), np.where(np.isfinite(a), b, a),
+             "end temperature differences must be finite, got {}")
+    mean = 0.5 * (a + b)
+    r = (a - b) / (a + b)
+    small = np.abs(r) < 1e-4
+    far = np.abs(r) > 0.5                  # ratio beyond 3: the plain form, logs taken apart (no overflow)
+    rs = np.where(small | far, 0.25, r)
+    ratio = np.where(small, 1.0 - r * r / 3 - 4 * r ** 4 / 45, rs / np.arctanh(rs))
+    a_far, b_far = np.where(far, a, 2.0), np.where(far, b, 1.0)
+    plain = (a_far - b_far) / (np.log(a_far) - np.log(b_far))
+    return _out(np.where(far, plain, mean * ratio))
+
+
+def _end_differences(hot_in, hot_out, cold_in, cold_out, arrangement):
+    th1, th2 = _array(hot_in, "hot inlet temperature"), _array(hot_out, "hot outlet temperature")
+    tc1, tc2 = _array(cold_in, "cold inlet temperature"), _array(cold_out, "cold outlet temperature")
+    for x, name in ((th1, "hot inlet"), (th2, "hot outlet"), (tc1, "cold inlet"), (tc2, "cold outlet")):
+        _require(np.isfinite(x), x, f"{name} temperature must be a finite number [°C], got {{}}")
+    _require(th1 >= th2, th1 - th2, "hot inlet is below hot outlet (hot side would be heated by {} K); "
+             "give the hot side as inlet, outlet with inlet >= outlet")
+    _require(tc2 >= tc1, tc1 - tc2, "cold outlet is below cold inlet (cold side would be cooled by {} K); "
+             "give the cold side as inlet, outlet with outlet >= inlet")
+    if arrangement is FlowArrangement.CO_CURRENT:
+        ends = ((th1 - tc1, "inlet end (hot inlet − cold inlet)"),
+                (th2 - tc2, "outlet end (hot outlet − cold outlet)"))
+    else:
+        ends = ((th1 - tc2, "hot end (hot inlet − cold outlet)"),
+                (th2 - tc1, "cold end (hot outlet − cold inlet)"))
+    for dt, where in ends:
+        ok = dt > 0
+        if not np.all(ok):
+            v = [np.broadcast_to(x, ok.shape)[~ok].flat[0] for x in (th1, th2, tc1, tc2, dt)]
+            raise TemperatureCrossError(
+                f"temperature cross in a {arrangement.value.replace('_', '-')} exchanger: hot "
+                f"{v[0]:g} → {v[1]:g} °C, cold {v[2]:g} → {v[3]:g} °C; ΔT at the {where} = {v[4]:g} K, "
+                "must be > 0 K")
+    return ends[0][0], ends[1][0]
+
+
+def lmtd(hot_in, hot_out, cold_in, cold_out, arrangement=FlowArrangement.COUNTER_CURRENT):
+    """Log-mean temperature difference of an exchanger from its four terminal temperatures.
+
+    Counter-current: ΔT₁ = T_h,in − T_c,out, ΔT₂ = T_h,out − T_c,in.  Co-current:
+    ΔT₁ = T_h,in − T_c,in, ΔT₂ = T_h,out − T_c,out.  For ``SHELL_AND_TUBE_1_2`` the counter-current
+    value is returned, to be multiplied by the F-factor (the usual convention).  See :func:`log_mean`.
+
+    Parameters
+    ----------
+    hot_in, hot_out, cold_in, cold_out : float or array
+        Terminal temperatures [°C]; hot_in >= hot_out and cold_out >= cold_in.
+    arrangement : FlowArrangement, optional
+        Counter-current by default.
+
+    Returns
+    -------
+    float or ndarray
+        LMTD [K].
+
+    Raises
+    ------
+    TemperatureCrossError
+        If ΔT <= 0 at either end; the message names the four temperatures.  Never returns a number
+        for a cross: a design near one is sensitive to fouling and flow changes and needs review by a
+        qualified engineer.
+
+    Examples
+    --------
+    >>> round(lmtd(150, 60, 30, 100), 3)
+    39.152
+    >>> lmtd(100, 60, 20, 60)
+    40.0
+    """
+    arrangement = _arrangement(arrangement)
+    dt1, dt2 = _end_differences(hot_in, hot_out, cold_in, cold_out, arrangement)
+    return log_mean(dt1, dt2)
+
+
+def area_from_duty(duty, u, lmtd, f=1.0):
+    """Heat transfer area needed for a duty.
+
+    .. math:: A = \\frac{Q}{U\\,F\\,\\Delta T_{lm}}
+
+    Parameters
+    ----------
+    duty : float or array
+        Q [kW], >= 0.
+    u : float or array
+        Overall coefficient U [kW/(m²·K)], > 0.
+    lmtd : float or array
+        Log-mean temperature difference [K], > 0.
+    f : float or array, optional
+        LMTD correction factor F [-], 0 < F <= 1 (1 for counter-current).
+
+    Returns
+    -------
+    float or ndarray
+        A [m²].
+
+    Examples
+    --------
+    >>> area_from_duty(1000.0, 0.5, 40.0)
+    50.0
+    >>> area_from_duty(1000.0, 0.5, 40.0, f=0.8)
+    62.5
+    """
+    q, uu, dt, ff = _check_qudf(duty, u, lmtd, f, "duty", "Q", "kW")
+    return _out(q / (uu * ff * dt))
+
+
+def duty_from_area(area, u, lmtd, f=1.0):
+    """Duty of an exchanger of given area at a given LMTD: Q = U·A·F·ΔT_lm, the inverse of
+    :func:`area_from_duty`.
+
+    Parameters
+    ----------
+    area : float or array
+        A [m²], >= 0.
+    u, lmtd, f
+        As in :func:`area_from_duty` [kW/(m²·K)], [K], [-].
+
+    Returns
+    -------
+    float or ndarray
+        Q [kW].
+
+    Examples
+    --------
+    >>> duty_from_area(50.0, 0.5, 40.0)
+    1000.0
+    """
+    a, uu, dt, ff = _check_qudf(area, u, lmtd, f, "area", "A", "m²")
+    return _out(uu * a * ff * dt)
+
+
+def _check_qudf(x, u, dt, f, what, symbol, unit):
+    x = _array(x, what)
+    uu, dt, ff = _array(u, "U"), _array(dt, "LMTD"), _array(f, "F")
+    _require((x >= 0) & np.isfinite(x), x, f"{what} {symbol} must be >= 0 {unit} and finite, got {{}}")
+    _require((uu > 0) & np.isfinite(uu), uu, "overall coefficient U must be > 0 kW/(m²·K) and finite, got {}")
+    _require((dt > 0) & np.isfinite(dt), dt, "LMTD must be > 0 K and finite, got {}")
+    _require((ff > 0) & (ff <= 1), ff, "F-factor must be in (0, 1], got {}")
+    return x, uu, dt, ff
+
+
+# --------------------------------------------------------------------------------------------------
+# F-factor and shells
+
+
+def p_max(r, shells=1):
+    """Largest P reachable by ``shells`` 1-2 shells in series at capacity ratio R (F → 0 there).
+
+    One shell: P_max,1 = 2/(1 + R + √(1 + R²)) (where the denominator of the Bowman–Mueller–Nagle
+    expression vanishes); N shells: the counter-current series of N shells each at P_max,1.
+
+    Parameters
+    ----------
+    r : float or array
+        R = (T_h,in − T_h,out)/(T_c,out − T_c,in) [-], >= 0.
+    shells : int, optional
+        Number of shells in series [-].
+
+    Returns
+    -------
+    float or ndarray
+        [-]
+
+    Examples
+    --------
+    >>> round(p_max(1.0), 4)
+    0.5858
+    >>> round(p_max(1.0, shells=2), 4)
+    0.7388
+    """
+    n = _check_shells(shells)
+    rr = _array(r, "R")
+    _require((rr >= 0) & np.isfinite(rr), rr, "capacity ratio R must be >= 0 and finite, got {}")
+    return _out(_series_total(_p_max_1_2(rr), rr, n))
+
+
+def _series_total(p1, r, n):
+    """P of n identical units in counter-current series, each at p1 (exact at r = 1)."""
+    p1 = np.asarray(p1, dtype=float)
+    safe = np.where(p1 >= 1.0, 0.5, p1)
+    return np.where(p1 >= 1.0, 1.0, _cc_effectiveness(n * _cc_ntu(safe, r), r))
+
+
+def _series_unit(p, r, n):
+    """p1 of each of n identical units in counter-current series that together reach p."""
+    return _cc_effectiveness(_cc_ntu(p, r) / n, r)
+
+
+def f_factor(r, p, shells=1):
+    """LMTD correction factor F of 1-2 shell-and-tube exchangers (N shells in series).
+
+    One shell (Underwood 1934; Bowman, Mueller & Nagle 1940, eq. for one shell pass and an even
+    number of tube passes):
+
+    .. math:: F = \\frac{\\sqrt{R^2+1}}{R-1}\\,\\ln\\frac{1-P}{1-RP}\\;\\Big/\\;
+              \\ln\\frac{2-P\\,(R+1-\\sqrt{R^2+1})}{2-P\\,(R+1+\\sqrt{R^2+1})}
+
+    evaluated as √(R²+1)·P/(1−P)·[log1p(u)/u] / ln{…}, u = P(1−R)/(1−P), which equals the usual R = 1
+    limit √2·P/(1−P)/ln{…} exactly.  N shells: each shell has the same R and the per-shell P₁ of a
+    counter-current series, P₁ = (W − 1)/(W − R), W = [(1 − RP)/(1 − P)]^{1/N}, and F_N(R, P) = F₁(R, P₁)
+    (the same relation as Fakheri 2003).
+
+    Parameters
+    ----------
+    r : float or array
+        R [-], >= 0.
+    p : float or array
+        P [-], 0 <= P < :func:`p_max` (R, shells).
+    shells : int, optional
+        Number of shells in series [-].
+
+    Returns
+    -------
+    float or ndarray
+        F [-], in (0, 1].
+
+    Raises
+    ------
+    TemperatureCrossError
+        If P >= P_max: that many shells cannot reach these temperatures.
+
+    References
+    ----------
+    Underwood, A.J.V. (1934) The calculation of the mean temperature difference in multi-pass heat
+    exchangers, J. Inst. Petroleum Technologists 20, 145-158.
+    Bowman, R.A., Mueller, A.C., Nagle, W.M. (1940) Mean temperature difference in design,
+    Trans. ASME 62, 283-294.
+    Fakheri, A. (2003) A general expression for the determination of the log mean temperature
+    correction factor for shell and tube heat exchangers, J. Heat Transfer 125(3), 527-530.
+
+    Examples
+    --------
+    >>> round(f_factor(1.0, 0.5), 4)
+    0.8023
+    >>> round(f_factor(1.0, 0.5, shells=2), 4)
+    0.9568
+    """
+    n = _check_shells(shells)
+    rr, pp = _array(r, "R"), _array(p, "P")
+    _require((rr >= 0) & np.isfinite(rr), rr, "capacity ratio R must be >= 0 and finite, got {}")
+    _require(pp >= 0, pp, "P must be >= 0, got {}")
+    pm = _series_total(_p_max_1_2(rr), rr, n)
+    ok = pp < pm
+    if not np.all(ok):
+        i = np.flatnonzero(~np.broadcast_to(ok, np.broadcast(rr, pp).shape).ravel())[0]
+        rb, pb, mb = (np.broadcast_to(x, ok.shape).ravel()[i] for x in np.broadcast_arrays(rr, pp, pm))
+        raise TemperatureCrossError(f"P = {pb:g} cannot be reached by {n} 1-2 shell(s) in series at R = {rb:g} "
+                                    f"(largest reachable P = {mb:.6g}); more shells are needed")
+    p1 = pp if n == 1 else _series_unit(pp, rr, n)
+    pos = p1 > 0
+    p1s = np.where(pos, p1, 0.5 * _p_max_1_2(rr))
+    f = _cc_ntu(p1s, rr) / _ntu_1_2(p1s, rr)
+    return _out(np.where(pos, np.minimum(f, 1.0), 1.0))
+
+
+def _r_and_p(hot_in, hot_out, cold_in, cold_out):
+    th1, th2, tc1, tc2 = (_finite(x, f"{name} temperature", "°C") for x, name in
+                          ((hot_in, "hot inlet"), (hot_out, "hot outlet"), (cold_in, "cold inlet"),
+                           (cold_out, "cold outlet")))
+    _end_differences(th1, th2, tc1, tc2, FlowArrangement.COUNTER_CURRENT)
+    dh, dc = th1 - th2, tc2 - tc1
+    if dh == 0 or dc == 0:
+        return None, None           # one side isothermal: F = 1 whatever the arrangement
+    return dh / dc, dc / (th1 - tc1)
+
+
+def f_factor_from_temperatures(hot_in, hot_out, cold_in, cold_out, shells=1):
+    """F-factor of 1-2 shells in series from the four terminal temperatures.
+
+    R and P as in :func:`f_factor`; a side that does not change temperature (condensing or boiling)
+    gives F = 1.
+
+    Parameters
+    ----------
+    hot_in, hot_out, cold_in, cold_out : float
+        [°C]
+    shells : int, optional
+        [-]
+
+    Returns
+    -------
+    float
+        F [-].
+
+    Raises
+    ------
+    TemperatureCrossError
+        For a counter-current cross, or when the shells cannot reach the temperatures.
+
+    Examples
+    --------
+    >>> round(f_factor_from_temperatures(100, 60, 20, 60), 4)
+    0.8023
+    """
+    r, p = _r_and_p(hot_in, hot_out, cold_in, cold_out)
+    if r is None:
+        _check_shells(shells)
+        return 1.0
+    try:
+        return float(f_factor(r, p, shells))
+    except TemperatureCrossError as e:
+        raise TemperatureCrossError(f"hot {hot_in:g} → {hot_out:g} °C, cold {cold_in:g} → {cold_out:g} °C: "
+                                    f"{e.message}") from None
+
+
+@dataclass(frozen=True)
+class ShellDesign:
+    """Number of 1-2 shells in series and the F that results (see :func:`shell_design`).
+
+    Attributes
+    ----------
+    shells : int
+        Shells in series [-].
+    f : float
+        F-factor of each shell, equal to the F of the whole series [-].
+    r, p : float or None
+        Overall R and P [-] (None when one side is isothermal).
+    p_per_shell, p_max_per_shell : float or None
+        P₁ of each shell and the largest P₁ one shell can reach [-].
+    shells_real : float
+        The real-valued count N = ln[(1−RP)/(1−P)]/ln W of Ahmad, Linnhoff & Smith [-].
+    x_p, min_f : float
+        The criteria used [-].
+    set_by : str
+        "X_P", "minimum F" or "isothermal side": which rule fixed the count.
+    """
+
+    shells: int
+    f: float
+    r: float | None
+    p: float | None
+    p_per_shell: float | None
+    p_max_per_shell: float | None
+    shells_real: float
+    x_p: float
+    min_f: float
+    set_by: str
+
+    def to_dict(self) -> dict:
+        return asdict(self)
+
+    def describe(self) -> str:
+        """The result and the criteria in force, in plain words."""
+        if self.set_by == "isothermal side":
+            head = "1 shell: one side does not change temperature, so F = 1 in any arrangement."
+        else:
+            head = (f"{self.shells} 1-2 shell(s) in series, F = {self.f:.3f} per shell (R = {self.r:.3g}, "
+                    f"P = {self.p:.3g}); count set by {self.set_by}.")
+        return (f"{head} Criteria: P of each shell at most X_P = {self.x_p:g} of its maximum "
+                f"(Ahmad, Linnhoff & Smith 1988), and F at least {self.min_f:g} (common practice). "
+                f"{defaults.CAUTION}")
+
+
+def shell_design(hot_in, hot_out, cold_in, cold_out, *, x_p=defaults.X_P, min_f=defaults.MIN_F_FACTOR) -> ShellDesign:
+    """Number of 1-2 shells in series by the X_P criterion, and F per shell.
+
+    Ahmad, Linnhoff & Smith fix the P of each shell at X_P times the largest P a 1-2 shell can reach,
+    P₁ = X_P·2/(R + 1 + √(R² + 1)), and obtain the real-valued number of shells in series
+
+    .. math:: N = \\frac{\\ln[(1-RP)/(1-P)]}{\\ln W},\\qquad
+              W = \\frac{R + 1 + \\sqrt{R^2+1} - 2 R X_P}{R + 1 + \\sqrt{R^2+1} - 2 X_P}
+
+    (at R = 1: N = [P/(1−P)]/[P₁/(1−P₁)], evaluated without a branch).  The count is N rounded up;
+    if F with that count is still below ``min_f`` (possible near R = 1), shells are added until it is
+    not, and ``set_by`` says so.
+
+    Parameters
+    ----------
+    hot_in, hot_out, cold_in, cold_out : float
+        Terminal temperatures [°C]; must be feasible counter-currently.
+    x_p : float, optional
+        0 < X_P < 1 [-]; default :data:`heatloom.network.defaults.X_P`.
+    min_f : float, optional
+        0 < F_min < 1 [-]; default :data:`heatloom.network.defaults.MIN_F_FACTOR`.
+
+    Returns
+    -------
+    ShellDesign
+
+    References
+    ----------
+    Ahmad, S., Linnhoff, B., Smith, R. (1988) Design of multipass heat exchangers: an alternative
+    approach, J. Heat Transfer 110(2), 304-309.
+    Ahmad, S., Linnhoff, B., Smith, R. (1990) Cost optimum heat exchanger networks - 2. Targets and
+    design for detailed capital cost models, Computers & Chemical Engineering 14(7), 751-767.
+
+    Examples
+    --------
+    >>> d = shell_design(100, 60, 20, 60)
+    >>> d.shells, round(d.f, 3), d.set_by
+    (1, 0.802, 'X_P')
+    >>> d = shell_design(100, 50, 20, 70)
+    >>> d.shells, round(d.f, 3), round(d.shells_real, 3)
+    (2, 0.871, 1.495)
+    >>> shell_design(150, 150, 20, 60).shells
+    1
+    """
+    x_p, min_f = float(x_p), float(min_f)
+    if not (0 < x_p < 1):
+        raise InputError(f"X_P must be in (0, 1), got {x_p:g}")
+    if not (0 < min_f < 1):
+        raise InputError(f"minimum F must be in (0, 1), got {min_f:g}")
+    r, p = _r_and_p(hot_in, hot_out, cold_in, cold_out)
+    if r is None:
+        return ShellDesign(1, 1.0, None, None, None, None, 1.0, x_p, min_f, "isothermal side")
+    p1 = x_p * float(_p_max_1_2(r))
+    n_real = float(_cc_ntu(p, r) / _cc_ntu(p1, r))
+    n = max(1, _ceil(n_real))
+    set_by = "X_P"
+    f = float(f_factor(r, p, n))
+    while f < min_f:
+        n += 1
+        set_by = "minimum F"
+        f = float(f_factor(r, p, n))
+    return ShellDesign(n, f, r, p, float(_series_unit(p, r, n)), float(_p_max_1_2(r)), n_real, x_p, min_f,
+                       set_by)

@@ -1,0 +1,147 @@
+"""Tabulated defaults for exchanger sizing and costing, stated once.
+
+Everything here is an *illustrative default, common practice, not a quotation*: the cost laws,
+interest rate, plant life and operating hours are round numbers of the usual order of magnitude for
+carbon-steel shell-and-tube exchangers, chosen so that a study runs without a costs file.  They are
+not a price from any vendor or index.  Give your own in a costs file (see :func:`heatloom.io.read_costs`)
+for any decision that matters.
+
+The sizing limits (:data:`MIN_F_FACTOR`, :data:`X_P`) are the usual design-practice values; where they
+come from is said beside each one.  Sizing and costing results are screening estimates: designs must be
+checked against local codes and standards by qualified, licensed engineers.
+
+Examples
+--------
+>>> X_P, MIN_F_FACTOR
+(0.9, 0.75)
+>>> dict(EXCHANGER_COST_LAW)
+{'fixed': 10000.0, 'per_area': 800.0, 'exponent': 0.8}
+"""
+
+from __future__ import annotations
+
+from types import MappingProxyType
+
+__all__ = [
+    "X_P",
+    "MIN_F_FACTOR",
+    "CURRENCY",
+    "ANNUALISED",
+    "EXCHANGER_COST_LAW",
+    "HEATER_COST_LAW",
+    "COOLER_COST_LAW",
+    "INTEREST_RATE",
+    "YEARS",
+    "HOURS_PER_YEAR",
+    "MAX_HOURS_PER_YEAR",
+    "MAX_EXPONENT",
+    "MAX_INTEREST_RATE",
+    "CAUTION",
+    "IDEAL_UTILITY_MARGIN",
+    "DEFAULT_HOT_UTILITY_PRICE",
+    "DEFAULT_COLD_UTILITY_PRICE",
+    "DEFAULT_HOT_UTILITY_FILM_COEFFICIENT",
+    "DEFAULT_COLD_UTILITY_FILM_COEFFICIENT",
+]
+
+X_P = 0.9
+"""Fraction of the largest reachable thermal effectiveness P_max allowed in each 1-2 shell [-].
+
+Ahmad, Linnhoff & Smith (1988), *Design of multipass heat exchangers: an alternative approach*,
+J. Heat Transfer 110(2), 304-309, propose fixing P = X_P·P_max per shell; 0.9 is the value they and
+later practice use (common practice).  It keeps each shell off the steep part of the F curve."""
+
+MIN_F_FACTOR = 0.75
+"""Smallest acceptable LMTD correction factor F of a 1-2 shell [-] (common practice).
+
+Designers commonly reject shells with F below 0.75 (some use 0.8) because F falls steeply to zero just
+above, so small errors in temperatures or fouling make the shell fail.  0.75 is chosen because it is the
+floor that X_P = 0.9 already nearly guarantees (F at P = 0.9·P_max lies between 0.74 and 1 over all R),
+so the two rules rarely disagree; where they do, the shell count is raised and the result says so."""
+
+CURRENCY = "USD"
+"""Currency label of the default cost laws (a label only: nothing is converted)."""
+
+ANNUALISED = False
+"""Whether the default cost laws already give money per year (False: installed capital cost)."""
+
+EXCHANGER_COST_LAW = MappingProxyType({"fixed": 10_000.0, "per_area": 800.0, "exponent": 0.8})
+"""Installed capital cost of one process-process exchanger, fixed + per_area·A^exponent [money],
+A in m² (illustrative default, common practice, not a quotation)."""
+
+HEATER_COST_LAW = EXCHANGER_COST_LAW
+"""Capital cost law of a heater (utility-process unit); the exchanger law by default."""
+
+COOLER_COST_LAW = EXCHANGER_COST_LAW
+"""Capital cost law of a cooler (utility-process unit); the exchanger law by default."""
+
+INTEREST_RATE = 0.10
+"""Interest rate used to annualise capital [1/year] (illustrative default)."""
+
+YEARS = 10.0
+"""Plant life over which capital is annualised [year] (illustrative default)."""
+
+HOURS_PER_YEAR = 8000.0
+"""Operating hours per year [h/year], for prices given per kWh (common practice: about 8000 of 8760)."""
+
+MAX_HOURS_PER_YEAR = 8784.0
+"""Hours in a leap year [h/year]; no plant runs more."""
+
+MAX_EXPONENT = 1.5
+"""Largest exponent c accepted in a cost law a + b·A^c [-]; the usual range is 0.6-1."""
+
+MAX_INTEREST_RATE = 1.0
+"""Largest interest rate accepted [1/year]: rates are fractions (0.1 for 10 %)."""
+
+CAUTION = ("Screening estimates only: designs must be checked against local codes and standards by "
+           "qualified, licensed engineers.")
+"""The caution carried by sizing and costing statements."""
+
+IDEAL_UTILITY_MARGIN = 20.0
+"""When no utilities are given, design assumes an isothermal hot utility this much plus ΔTmin above the
+hottest cold-stream temperature, and a cold utility as far below the coldest hot-stream temperature [K]
+(illustrative default: it only sets the driving force of heaters and coolers)."""
+
+DEFAULT_HOT_UTILITY_PRICE = 200.0
+"""Price of the assumed hot utility [money per kW·year] (illustrative default, of the order of fired
+heat or steam at 8000 h/year; not a quotation)."""
+
+DEFAULT_COLD_UTILITY_PRICE = 20.0
+"""Price of the assumed cold utility [money per kW·year] (illustrative default, of the order of cooling
+water; not a quotation)."""
+
+DEFAULT_HOT_UTILITY_FILM_COEFFICIENT = 4.0
+"""Film coefficient of the assumed hot utility [kW/(m²·K)] (common practice order of magnitude for
+condensing steam; illustrative)."""
+
+DEFAULT_COLD_UTILITY_FILM_COEFFICIENT = 2.0
+"""Film coefficient of the assumed cold utility [kW/(m²·K)] (common practice order of magnitude for
+cooling water in tubes; illustrative)."""
+
+# --------------------------------------------------------------------------------------------------
+# retrofit (heatloom.retrofit.options): illustrative defaults, common practice, not a quotation
+
+RETROFIT_NEW_EXCHANGER_COST_LAW = MappingProxyType({"fixed": 15_000.0, "per_area": 1_000.0, "exponent": 0.8})
+"""Installed capital of a new exchanger added to an existing plant, fixed + per_area·A^exponent [money],
+A in m² (illustrative default: the new-build law of :data:`EXCHANGER_COST_LAW` with a premium for
+working in a running plant, tie-ins, foundations and piping; not a quotation)."""
+
+RETROFIT_ADDED_AREA_COST_LAW = MappingProxyType({"fixed": 5_000.0, "per_area": 1_000.0, "exponent": 0.8})
+"""Installed capital of area added to an existing unit (an extra shell or a bigger bundle),
+fixed + per_area·ΔA^exponent [money], ΔA in m²; ``fixed`` is the installation cost paid whatever the
+area (illustrative default, not a quotation)."""
+
+RETROFIT_REPIPE_COST = 8_000.0
+"""Installed capital of repiping one side of an existing unit to another stream [money] (illustrative
+default, not a quotation)."""
+
+RETROFIT_RESEQUENCE_COST = 8_000.0
+"""Installed capital of moving an existing unit to another position along one of its streams [money]
+(illustrative default, not a quotation)."""
+
+__all__ += [
+    "RETROFIT_NEW_EXCHANGER_COST_LAW",
+    "RETROFIT_ADDED_AREA_COST_LAW",
+    "RETROFIT_REPIPE_COST",
+    "RETROFIT_RESEQUENCE_COST",
+]

@@ -1,0 +1,700 @@
+"""Loads and temperatures of one stagewise topology at the lowest exact total annual cost.
+
+A topology of the stagewise superstructure of Yee & Grossmann (1990) says which hot/cold pairs exchange
+heat in which stage and which utility units sit at the stream ends (one heater per cold stream and hot
+utility level at its hot end, one cooler per hot stream and cold utility level at its cold end, levels in
+series ordered by temperature).  With isothermal mixing every stream leaves each stage at one temperature,
+so once the topology is fixed all stage temperatures, utility duties and end temperature differences are
+*affine* functions of the exchanger loads (and of the duties of all but the last utility level of a
+stream).  The feasible set is therefore a polytope:
+
+.. math::
+
+    t_{i,k+1} = t_{i,k} - \\sum_j q_{ijk}/CP_i, \\qquad t_{j,k} = t_{j,k+1} + \\sum_i q_{ijk}/CP_j,
+
+    \\Delta T_1, \\Delta T_2 \\ge EMAT \\text{ at both ends of every unit}, \\qquad Q_u \\ge q_{min}
+
+and the objective is the exact total annual cost
+
+.. math::
+
+    TAC = \\sum_u f\\,[a_u + b_u (Q_u / (U_u\\,\\Delta T_{lm,u}))^{c_u}] + \\sum_{u\\in util} p_u Q_u,
+    \\qquad 1/U_u = 1/h_{hot} + 1/h_{cold}
+
+(f the annualisation factor; the exact log mean, the formula of :func:`heatloom.equipment.sizing.log_mean`,
+with its analytic gradient).  A linear programme (scipy's HiGHS) projects each starting guess onto the
+polytope or proves it empty; SLSQP (scipy's trust-constr when SLSQP fails at once) then minimises the
+cost.  Split fractions follow from isothermal mixing: a branch's share of a stream's flow in a stage is its
+share of the stage's duty; :func:`polish_splits` frees them afterwards (non-isothermal mixing).
+
+References
+----------
+.. [1] Yee, T. F., Grossmann, I. E. (1990). Simultaneous optimization models for heat integration—II.
+   Heat exchanger network synthesis. Computers & Chemical Engineering 14(10), 1165-1184.
+   doi:10.1016/0098-1354(90)85010-8
+"""
+
+from __future__ import annotations
+
+import warnings
+from dataclasses import dataclass, field
+
+import numpy as np
+from scipy.linalg import qr
+from scipy.optimize import Bounds, LinearConstraint, linprog, minimize
+
+from ...equipment.cost import CostSettings, UnitKind
+from ...errors import InputError
+from ...model import StreamTable, Utility
+
+__all__ = ["TacProblem", "Topology", "TopologySolution", "make_problem", "solve_topology", "polish_splits",
+           "unit_costs"]
+
+APPROACH_MARGIN = 0.0
+"""Extra approach kept by the optimiser above EMAT [K]; none: solutions are projected back onto the
+constraints to within 1e-7 K, well inside the 1e-6 K tolerance of the network check, and a margin would
+make problems whose utility just meets EMAT at a fixed end infeasible."""
+
+
+@dataclass(frozen=True)
+class TacProblem:
+    """Stream, utility and cost data of a TAC design, as plain arrays (picklable for worker processes).
+
+    Hot streams i, cold streams j, stages k (boundary 0 is the hot end).  ``heat_levels`` are the hot
+    utilities, coolest first (the order in which a cold stream meets them); ``cool_levels`` the cold
+    utilities, warmest first.  Laws are (fixed, per_area, exponent) per unit kind, already multiplied by
+    the annualisation factor.
+    """
+
+    hot_names: tuple[str, ...]
+    cold_names: tuple[str, ...]
+    hot_in: np.ndarray
+    hot_out: np.ndarray
+    hot_cp: np.ndarray
+    hot_h: np.ndarray
+    cold_in: np.ndarray
+    cold_out: np.ndarray
+    cold_cp: np.ndarray
+    cold_h: np.ndarray
+    heat_levels: tuple[Utility, ...]
+    cool_levels: tuple[Utility, ...]
+    laws: dict
+    emat: float
+
+    @property
+    def hot_duty(self) -> np.ndarray:
+        return self.hot_cp * (self.hot_in - self.hot_out)
+
+    @property
+    def cold_duty(self) -> np.ndarray:
+        return self.cold_cp * (self.cold_out - self.cold_in)
+
+    @property
+    def scale(self) -> float:
+        """Largest stream duty [kW]."""
+        return float(max(self.hot_duty.max(initial=0.0), self.cold_duty.max(initial=0.0), 1.0))
+
+    def can_match(self, i: int, j: int) -> bool:
+        """Whether hot i can heat cold j at all with EMAT (counter-current, any load)."""
+        return self.hot_in[i] - self.cold_in[j] > self.emat
+
+    def heat_level_possible(self, j: int, level: int) -> bool:
+        u = self.heat_levels[level]
+        return u.supply_temperature - self.emat > self.cold_in[j] and \
+            u.target_temperature - self.emat > self.cold_in[j]
+
+    def cool_level_possible(self, i: int, level: int) -> bool:
+        u = self.cool_levels[level]
+        return u.supply_temperature + self.emat < self.hot_in[i] and \
+            u.target_temperature + self.emat < self.hot_in[i]
+
+
+def make_problem(streams: StreamTable, utilities, costs: CostSettings, emat: float, *,
+                 default_film_coefficient: float | None = None) -> TacProblem:
+    """Gather the data of a TAC design; reject what the stagewise model cannot represent.
+
+    Parameters
+    ----------
+    streams : StreamTable
+        Single-segment streams with film coefficients.
+    utilities : sequence of Utility
+        At least one hot and one cold utility, with prices [money per kW·year] and film coefficients.
+    costs : CostSettings
+    emat : float
+        Exchanger minimum approach temperature [K], > 0.
+    default_film_coefficient : float, optional
+        [kW/(m²·K)] where a stream or utility has none.
+
+    Examples
+    --------
+    >>> from heatloom.model import UtilityKind
+    >>> s = StreamTable.from_arrays(["H", "C"], [150, 20], [40, 120], [1.0, 1.0], film_coefficient=[1, 1])
+    >>> u = [Utility("steam", 180, 180, 100, UtilityKind.HOT, 2), Utility("water", 10, 20, 10, None, 2)]
+    >>> p = make_problem(s, u, CostSettings(), 5.0)
+    >>> p.hot_names, p.cold_names, float(p.hot_duty[0])
+    (('H',), ('C',), 110.0)
+    """
+    if not (emat > 0) or not np.isfinite(emat):
+        raise InputError(f"EMAT must be a finite number of kelvin > 0, got {emat!r}")
+    d = default_film_coefficient
+
+    def h_of(value, what):
+        h = value if value is not None else d
+        if h is None:
+            raise InputError(f"film coefficient h missing for {what}: the TAC design sizes every unit (add an h "
+                             "column in kW/(m²·K), or assume one with --default-h)")
+        return float(h)
+
+    hot, cold = [], []
+    for s in streams:
+        if len(s.segments) != 1:
+            raise InputError(f"stream '{s.name}' has {len(s.segments)} segments; the TAC design handles streams "
+                             "of one constant CP only (use --mode mer, or give one CP per stream)")
+        (hot if s.is_hot else cold).append(s)
+    if not hot or not cold:
+        raise InputError("the TAC design needs at least one hot and one cold process stream, got "
+                         f"{len(hot)} hot and {len(cold)} cold")
+    hot_u = sorted((u for u in utilities if u.is_hot), key=lambda u: (u.coldest, u.hottest))
+    cold_u = sorted((u for u in utilities if not u.is_hot), key=lambda u: (-u.hottest, -u.coldest))
+    if not hot_u or not cold_u:
+        raise InputError("the TAC design needs at least one hot and one cold utility")
+    for u in (*hot_u, *cold_u):
+        h_of(u.film_coefficient, f"utility '{u.name}'")
+    f = costs.annualisation_factor
+    laws = {k: (costs.law(k).fixed * f, costs.law(k).per_area * f, costs.law(k).exponent) for k in UnitKind}
+
+    def arr(items, fn):
+        return np.array([float(fn(s)) for s in items])
+
+    return TacProblem(
+        tuple(s.name for s in hot), tuple(s.name for s in cold),
+        arr(hot, lambda s: s.supply_temperature), arr(hot, lambda s: s.target_temperature),
+        arr(hot, lambda s: s.segments[0].heat_capacity_flow),
+        arr(hot, lambda s: h_of(s.segments[0].film_coefficient, f"stream '{s.name}'")),
+        arr(cold, lambda s: s.supply_temperature), arr(cold, lambda s: s.target_temperature),
+        arr(cold, lambda s: s.segments[0].heat_capacity_flow),
+        arr(cold, lambda s: h_of(s.segments[0].film_coefficient, f"stream '{s.name}'")),
+        tuple(hot_u), tuple(cold_u), laws, float(emat))
+
+
+@dataclass(frozen=True)
+class Topology:
+    """Which units exist: matches (hot i, cold j, stage k), heaters (cold j, level), coolers (hot i, level)."""
+
+    stages: int
+    matches: frozenset
+    heaters: frozenset
+    coolers: frozenset
+
+    @property
+    def units(self) -> int:
+        return len(self.matches) + len(self.heaters) + len(self.coolers)
+
+    def key(self) -> tuple:
+        return (self.stages, tuple(sorted(self.matches)), tuple(sorted(self.heaters)), tuple(sorted(self.coolers)))
+
+    def replace(self, *, matches=None, heaters=None, coolers=None, stages=None) -> Topology:
+        return Topology(self.stages if stages is None else stages,
+                        frozenset(self.matches if matches is None else matches),
+                        frozenset(self.heaters if heaters is None else heaters),
+                        frozenset(self.coolers if coolers is None else coolers))
+
+
+@dataclass
+class _Affine:
+    """Rows of affine maps v = c + M·x, one row per unit."""
+
+    c: np.ndarray
+    m: np.ndarray
+
+
+class _Model:
+    """The affine maps of one topology: duties and terminal temperatures of every unit."""
+
+    def __init__(self, p: TacProblem, top: Topology):
+        self.p, self.top = p, top
+        K = top.stages
+        self.matches = sorted(top.matches)
+        heaters = sorted(top.heaters)
+        coolers = sorted(top.coolers)
+        n_h, n_c = len(p.hot_names), len(p.cold_names)
+        # variables: exchanger loads, then every utility unit of a stream except its last level
+        self.var_units = []
+        cool_by = {i: sorted(lv for (ii, lv) in coolers if ii == i) for i in range(n_h)}
+        heat_by = {j: sorted(lv for (jj, lv) in heaters if jj == j) for j in range(n_c)}
+        n = len(self.matches)
+        extra = []
+        for i in range(n_h):
+            for lv in cool_by[i][:-1]:
+                extra.append(("cool", i, lv))
+        for j in range(n_c):
+            for lv in heat_by[j][:-1]:
+                extra.append(("heat", j, lv))
+        n += len(extra)
+        self.n = n
+        var_of = {u: len(self.matches) + k for k, u in enumerate(extra)}
+
+        def unit_vec(k):
+            v = np.zeros(n)
+            v[k] = 1.0
+            return v
+
+        # stage temperatures as (const, coeff)
+        th = {(i, 0): (p.hot_in[i], np.zeros(n)) for i in range(n_h)}
+        tc = {(j, K): (p.cold_in[j], np.zeros(n)) for j in range(n_c)}
+        for k in range(K):
+            for i in range(n_h):
+                c0, m0 = th[i, k]
+                m = m0.copy()
+                for idx, (ii, _, kk) in enumerate(self.matches):
+                    if ii == i and kk == k:
+                        m[idx] -= 1.0 / p.hot_cp[i]
+                th[i, k + 1] = (c0, m)
+        for k in range(K - 1, -1, -1):
+            for j in range(n_c):
+                c0, m0 = tc[j, k + 1]
+                m = m0.copy()
+                for idx, (_, jj, kk) in enumerate(self.matches):
+                    if jj == j and kk == k:
+                        m[idx] += 1.0 / p.cold_cp[j]
+                tc[j, k] = (c0, m)
+        self.th, self.tc = th, tc
+        rows = []  # (kind, key, duty(c, m), hot_in, hot_out, cold_in, cold_out, U, law, price)
+        for idx, (i, j, k) in enumerate(self.matches):
+            u = 1.0 / (1.0 / p.hot_h[i] + 1.0 / p.cold_h[j])
+            rows.append((UnitKind.EXCHANGER, (i, j, k), (0.0, unit_vec(idx)), th[i, k], th[i, k + 1], tc[j, k + 1],
+                         tc[j, k], u, p.laws[UnitKind.EXCHANGER], 0.0))
+        eq_c, eq_m = [], []
+        for i in range(n_h):
+            t_c, t_m = th[i, K]
+            levels = cool_by[i]
+            if not levels:
+                eq_c.append(t_c - p.hot_out[i])
+                eq_m.append(t_m)
+                continue
+            start = (t_c, t_m)
+            remaining = (p.hot_cp[i] * (t_c - p.hot_out[i]), p.hot_cp[i] * t_m)
+            for pos, lv in enumerate(levels):
+                util = p.cool_levels[lv]
+                if pos < len(levels) - 1:
+                    duty = (0.0, unit_vec(var_of["cool", i, lv]))
+                    remaining = (remaining[0], remaining[1] - duty[1])
+                else:
+                    duty = remaining
+                end = (start[0] - duty[0] / p.hot_cp[i], start[1] - duty[1] / p.hot_cp[i])
+                u = 1.0 / (1.0 / p.hot_h[i] + 1.0 / util.film_coefficient)
+                rows.append((UnitKind.COOLER, ("cool", i, lv), duty, start, end, (util.supply_temperature, np.zeros(n)),
+                             (util.target_temperature, np.zeros(n)), u, p.laws[UnitKind.COOLER], util.cost))
+                start = end
+        for j in range(n_c):
+            t_c, t_m = tc[j, 0]
+            levels = heat_by[j]
+            if not levels:
+                eq_c.append(p.cold_out[j] - t_c)
+                eq_m.append(-t_m)
+                continue
+            start = (t_c, t_m)
+            remaining = (p.cold_cp[j] * (p.cold_out[j] - t_c), -p.cold_cp[j] * t_m)
+            for pos, lv in enumerate(levels):
+                util = p.heat_levels[lv]
+                if pos < len(levels) - 1:
+                    duty = (0.0, unit_vec(var_of["heat", j, lv]))
+                    remaining = (remaining[0], remaining[1] - duty[1])
+                else:
+                    duty = remaining
+                end = (start[0] + duty[0] / p.cold_cp[j], start[1] + duty[1] / p.cold_cp[j])
+                u = 1.0 / (1.0 / util.film_coefficient + 1.0 / p.cold_h[j])
+                rows.append((UnitKind.HEATER, ("heat", j, lv), duty, (util.supply_temperature, np.zeros(n)),
+                             (util.target_temperature, np.zeros(n)), start, end, u, p.laws[UnitKind.HEATER],
+                             util.cost))
+                start = end
+        self.rows = rows
+        self.kinds = [r[0] for r in rows]
+        self.keys = [r[1] for r in rows]
+
+        def aff(col):
+            return _Affine(np.array([r[col][0] for r in rows], dtype=float),
+                           np.array([r[col][1] for r in rows], dtype=float).reshape(len(rows), n))
+
+        self.duty, self.hot_in, self.hot_out, self.cold_in, self.cold_out = (aff(c) for c in range(2, 7))
+        self.u = np.array([r[7] for r in rows])
+        self.fixed = np.array([r[8][0] for r in rows])
+        self.per_area = np.array([r[8][1] for r in rows])
+        self.exponent = np.array([r[8][2] for r in rows])
+        self.price = np.array([r[9] for r in rows])
+        self.d1 = _Affine(self.hot_in.c - self.cold_out.c, self.hot_in.m - self.cold_out.m)
+        self.d2 = _Affine(self.hot_out.c - self.cold_in.c, self.hot_out.m - self.cold_in.m)
+        eq = _Affine(np.array(eq_c, dtype=float), np.array(eq_m, dtype=float).reshape(len(eq_c), n))
+        self.eq_all = eq
+        # SLSQP needs independent equalities: keep a basis of the rows (pivoted QR); the others are implied
+        # where the topology is feasible, which the LP checks against all of them
+        if len(eq.c) and n:
+            _, r, piv = qr(eq.m.T, mode="economic", pivoting=True)
+            diag = np.abs(np.diag(r))
+            rank = int(np.sum(diag > 1e-10 * max(diag.max(initial=0.0), 1.0)))
+            keep = np.sort(piv[:rank])
+            eq = _Affine(eq.c[keep], eq.m[keep])
+        self.eq = eq
+        self.qmin = 1e-5 * p.scale
+        # inequalities G x + g >= 0: both ends >= EMAT (+margin), every utility unit's duty >= qmin
+        emat = p.emat + APPROACH_MARGIN
+        util_rows = [k for k, kind in enumerate(self.kinds) if kind is not UnitKind.EXCHANGER]
+        G = np.vstack([self.d1.m, self.d2.m, self.duty.m[util_rows]])
+        g = np.concatenate([self.d1.c - emat, self.d2.c - emat, self.duty.c[util_rows] - self.qmin])
+        # rows without variables are constants: they hold, or the topology is infeasible
+        const = ~np.any(G != 0.0, axis=1)
+        self.constant_violation = float(np.max(-g[const], initial=0.0))
+        G, g = G[~const], g[~const]
+        # the same temperature difference appears at the end of one unit and the start of the next
+        if len(g):
+            _, first = np.unique(np.round(np.column_stack([G, g]), 12), axis=0, return_index=True)
+            keep = np.sort(first)
+            G, g = G[keep], g[keep]
+        self.G, self.g = G, g
+        upper = [min(p.hot_duty[i], p.cold_duty[j]) for (i, j, _) in self.matches] + \
+            [p.hot_duty[key[1]] if key[0] == "cool" else p.cold_duty[key[1]] for key in extra]
+        # generous upper bounds: the balances bound every load already, and bounds that coincide with an
+        # equality (a stream's only unit) make the refinement's subproblems degenerate
+        self.bounds = [(self.qmin, 4.0 * max(ub, self.qmin)) for ub in upper]
+
+    # ------------------------------------------------------------------------------------------
+    def cost(self, x: np.ndarray, grad: bool = True):
+        q = self.duty.c + self.duty.m @ x
+        a = self.d1.c + self.d1.m @ x
+        b = self.d2.c + self.d2.m @ x
+        a = np.maximum(a, 1e-9)
+        b = np.maximum(b, 1e-9)
+        lm, ga, gb = _log_mean_and_gradient(a, b)
+        qp = np.maximum(q, 1e-12)
+        area = qp / (self.u * lm)
+        cap = self.fixed + self.per_area * area ** self.exponent
+        total = float(cap.sum() + (self.price * q).sum())
+        if not grad:
+            return total
+        dcap = self.per_area * self.exponent * np.maximum(area, 1e-12) ** (self.exponent - 1.0)
+        # dA/dx = [dQ/dx - Q/lm (ga da/dx + gb db/dx)] / (U lm)
+        coef_q = dcap / (self.u * lm) + self.price
+        coef_a = -dcap * area / lm * ga
+        coef_b = -dcap * area / lm * gb
+        g = self.duty.m.T @ coef_q + self.d1.m.T @ coef_a + self.d2.m.T @ coef_b
+        return total, g
+
+    def feasible_point(self, objective: np.ndarray | None = None):
+        """A vertex of the polytope (by default the one of least utility cost), or None if empty."""
+        c = objective if objective is not None else self.duty.m.T @ self.price
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            res = linprog(c, A_ub=-self.G if len(self.G) else None, b_ub=self.g if len(self.g) else None,
+                          A_eq=self.eq_all.m if len(self.eq_all.c) else None,
+                          b_eq=-self.eq_all.c if len(self.eq_all.c) else None, bounds=self.bounds, method="highs")
+        if res.status != 0:
+            return None
+        return np.clip(res.x, [b[0] for b in self.bounds], [b[1] for b in self.bounds])
+
+    def violation(self, x: np.ndarray) -> float:
+        v = 0.0
+        if len(self.g):
+            v = max(v, float(np.max(-(self.G @ x + self.g), initial=0.0)))
+        if len(self.eq_all.c):
+            v = max(v, float(np.max(np.abs(self.eq_all.m @ x + self.eq_all.c), initial=0.0)))
+        return v
+
+
+def _log_mean_and_gradient(a: np.ndarray, b: np.ndarray):
+    """Exact log mean of positive a, b and its partial derivatives (series where a ≈ b).
+
+    .. math:: \\Delta T_{lm} = \\frac{a - b}{\\ln(a/b)}, \\qquad
+              \\frac{\\partial \\Delta T_{lm}}{\\partial a} = \\frac{\\ln r - 1 + 1/r}{\\ln^2 r},\\ r = a/b
+
+    and symmetrically in b; for |a/b − 1| < 1e-5 the series (a + b)/2·(1 − e²/12) with e = (a − b)/b and
+    ∂/∂a = 1/2 − e/6 (the same formula as :func:`heatloom.equipment.sizing.log_mean`, written for speed).
+    """
+    r = a / b
+    close = np.abs(r - 1.0) < 1e-5
+    rs = np.where(close, 2.0, r)
+    lnr = np.log(rs)
+    e = r - 1.0
+    lm = np.where(close, 0.5 * (a + b) * (1.0 - e * e / 12.0), (a - b) / np.where(close, 1.0, lnr))
+    ga = np.where(close, 0.5 - e / 6.0, (lnr - 1.0 + 1.0 / rs) / lnr ** 2)
+    # by symmetry with s = b/a: ln s = −ln r
+    gb = np.where(close, 0.5 + e / 6.0, (-lnr - 1.0 + rs) / lnr ** 2)
+    return lm, ga, gb
+
+
+@dataclass(frozen=True)
+class TopologySolution:
+    """Optimised loads of one topology and its exact total annual cost [money/year].
+
+    ``fractions`` is None under isothermal mixing; after :func:`polish_splits` it maps ("hot", match) or
+    ("cold", match) to the branch's share of the stream's flow [-].
+    """
+
+    topology: Topology
+    x: np.ndarray
+    tac: float
+    duties: tuple[float, ...]
+    keys: tuple
+    fractions: dict | None = field(default=None, compare=False)
+
+
+def _refine(model: _Model, x0: np.ndarray, max_iter: int) -> np.ndarray:
+    """Minimise the exact cost over the polytope from ``x0``: SLSQP, and scipy's trust-constr if it fails.
+
+    Loads are scaled by the largest stream duty, the cost by its starting value, and constraint rows to
+    unit length (SLSQP's subproblem tolerances are absolute).
+    """
+    s = model.p.scale
+    f0 = max(abs(model.cost(x0, grad=False)), 1.0)
+    lo = np.array([b[0] for b in model.bounds]) / s
+    hi = np.array([b[1] for b in model.bounds]) / s
+    G, g = model.G * s, model.g
+    E, e = model.eq.m * s, model.eq.c
+    if len(g):
+        norm = np.linalg.norm(G, axis=1)
+        G, g = G / norm[:, None], g / norm
+    if len(e):
+        norm = np.linalg.norm(E, axis=1)
+        E, e = E / norm[:, None], e / norm
+    cons = []
+    if len(g):
+        cons.append({"type": "ineq", "fun": lambda y: G @ y + g, "jac": lambda y: G})
+    if len(e):
+        cons.append({"type": "eq", "fun": lambda y: E @ y + e, "jac": lambda y: E})
+
+    def fun(y):
+        f, gr = model.cost(y * s)
+        return f / f0, gr * s / f0
+
+    y0 = np.clip(x0 / s, lo, hi)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        res = minimize(fun, y0, jac=True, method="SLSQP", bounds=list(zip(lo, hi)), constraints=cons,
+                       options={"maxiter": max_iter, "ftol": 1e-10})
+        if res.status not in (0, 9) and res.nit <= 2:   # failed at once: a degenerate start
+            lin = [LinearConstraint(G, -g, np.inf)] if len(g) else []
+            lin += [LinearConstraint(E, -e, -e)] if len(e) else []
+            res = minimize(fun, y0, jac=True, method="trust-constr", bounds=Bounds(lo, hi), constraints=lin,
+                           options={"maxiter": max_iter, "gtol": 1e-8, "xtol": 1e-10})
+    return np.clip(res.x * s, lo * s, hi * s)
+
+
+def _restore(model: _Model, x: np.ndarray) -> np.ndarray | None:
+    """Project a nearly feasible point onto the polytope (smallest L1 move, by LP), or None."""
+    if model.violation(x) <= 1e-9:
+        return x
+    n = model.n
+    # min Σ(u + v) s.t. constraints on x = x_k + u - v
+    c = np.concatenate([np.zeros(n), np.ones(2 * n)])
+    A_ub = np.hstack([-model.G, np.zeros((len(model.g), 2 * n))]) if len(model.g) else None
+    A_eq = [np.hstack([np.eye(n), -np.eye(n), np.eye(n)])]
+    b_eq = [x]
+    if len(model.eq_all.c):
+        A_eq.append(np.hstack([model.eq_all.m, np.zeros((len(model.eq_all.c), 2 * n))]))
+        b_eq.append(-model.eq_all.c)
+    bounds = list(model.bounds) + [(0, None)] * (2 * n)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        res = linprog(c, A_ub=A_ub, b_ub=model.g if A_ub is not None else None, A_eq=np.vstack(A_eq),
+                      b_eq=np.concatenate(b_eq), bounds=bounds, method="highs")
+    if res.status != 0:
+        return None
+    y = np.clip(res.x[:n], [b[0] for b in model.bounds], [b[1] for b in model.bounds])
+    return y if model.violation(y) <= 1e-7 else None
+
+
+def solve_topology(p: TacProblem, top: Topology, starts=(), *, max_iter: int = 200,
+                   extra_vertex: bool = False) -> TopologySolution | None:
+    """Minimise the exact TAC of one topology; None when no loads keep EMAT everywhere.
+
+    Parameters
+    ----------
+    p : TacProblem
+    top : Topology
+    starts : sequence of dict
+        Starting guesses, each a mapping of unit key ((i, j, k) for a match, ("cool", i, level) or
+        ("heat", j, level) for a utility variable) to a load [kW]; units not named start from the LP vertex.
+    max_iter : int
+        Iterations of the refinement per start [-].
+    extra_vertex : bool
+        Also start from the LP vertex of least utility cost.
+    """
+    model = _Model(p, top)
+    if model.constant_violation > 1e-9:
+        return None
+    if model.n == 0:
+        if model.violation(np.zeros(0)) > 1e-7:
+            return None
+        x = np.zeros(0)
+        return _solution(model, x)
+    names = [m for m in model.matches] + [None] * (model.n - len(model.matches))
+    lo = np.array([b[0] for b in model.bounds])
+    hi = np.array([b[1] for b in model.bounds])
+    vertex = None
+    candidates = []
+    for guess in starts:
+        if all(key is not None and key in guess for key in names):
+            candidates.append(np.clip(np.array([guess[key] for key in names], dtype=float), lo, hi))
+            continue
+        if vertex is None:
+            vertex = model.feasible_point()
+            if vertex is None:
+                return None
+        x0 = vertex.copy()
+        for k, key in enumerate(names):
+            if key is not None and key in guess:
+                x0[k] = guess[key]
+        candidates.append(x0)
+    if not candidates or extra_vertex:
+        if vertex is None:
+            vertex = model.feasible_point()
+            if vertex is None:
+                return None
+        candidates.append(vertex)
+    best = None
+    for x0 in candidates:
+        # start on the polytope: project the guess (the LP also proves a topology infeasible)
+        x0 = _restore(model, x0)
+        if x0 is None:
+            return None
+        x = _refine(model, x0, max_iter)
+        if model.violation(x) > 1e-9:
+            x = _restore(model, x)
+            if x is None:
+                continue
+        sol = _solution(model, x)
+        if best is None or sol.tac < best.tac:
+            best = sol
+    return best
+
+
+def _solution(model: _Model, x: np.ndarray) -> TopologySolution:
+    duties = model.duty.c + model.duty.m @ x
+    return TopologySolution(model.top, x, model.cost(x, grad=False), tuple(float(d) for d in duties),
+                            tuple(model.keys))
+
+
+def _branch_temperatures(p: TacProblem, model: _Model, x: np.ndarray, fractions: dict | None):
+    """Duties and terminal temperatures of every unit, with branch outlets set by the split fractions."""
+    duty = model.duty.c + model.duty.m @ x
+    hi, ho, ci, co = (getattr(model, name).c + getattr(model, name).m @ x
+                      for name in ("hot_in", "hot_out", "cold_in", "cold_out"))
+    if fractions:
+        rows = {key: r for r, key in enumerate(model.keys)}
+        for (side, key), f in fractions.items():
+            r = rows[key]
+            if side == "hot":
+                ho[r] = hi[r] - duty[r] / (f * p.hot_cp[key[0]])
+            else:
+                co[r] = ci[r] + duty[r] / (f * p.cold_cp[key[1]])
+    return duty, hi, ho, ci, co
+
+
+def unit_costs(p: TacProblem, top: Topology, x: np.ndarray, fractions: dict | None = None) -> list[dict]:
+    """Every unit of a solved topology with its kind, key, duty, terminal temperatures, U and split.
+
+    Under isothermal mixing (``fractions`` None) a branch's share of the flow is its share of the stage's
+    duty; otherwise the given fractions set the branch outlet temperatures.
+    """
+    model = _Model(p, top)
+    duty, hi, ho, ci, co = _branch_temperatures(p, model, x, fractions)
+    stage_hot, stage_cold = {}, {}
+    for (i, j, k), q in zip(model.matches, x[:len(model.matches)]):
+        stage_hot[i, k] = stage_hot.get((i, k), 0.0) + q
+        stage_cold[j, k] = stage_cold.get((j, k), 0.0) + q
+    out = []
+    for r, (kind, key) in enumerate(zip(model.kinds, model.keys)):
+        fh = fc = 1.0
+        if kind is UnitKind.EXCHANGER:
+            i, j, k = key
+            fh = min(1.0, duty[r] / stage_hot[i, k])
+            fc = min(1.0, duty[r] / stage_cold[j, k])
+            if fractions:
+                fh = fractions.get(("hot", key), fh)
+                fc = fractions.get(("cold", key), fc)
+        out.append({"kind": kind, "key": key, "duty": float(duty[r]), "hot_in": float(hi[r]),
+                    "hot_out": float(ho[r]), "cold_in": float(ci[r]), "cold_out": float(co[r]),
+                    "u": float(model.u[r]), "hot_fraction": float(fh), "cold_fraction": float(fc),
+                    "price": float(model.price[r])})
+    return out
+
+
+def polish_splits(p: TacProblem, sol: TopologySolution, *, max_iter: int = 100) -> TopologySolution:
+    """Free the flow fractions of the stream splits (non-isothermal mixing) and re-optimise; keep the better.
+
+    The branches of a split stream may then leave a stage at different temperatures; the mixed stage
+    outlet is unchanged (:math:`\\sum_b f_b(t_{in} - q_b/(f_b CP)) = t_{in} - \\sum_b q_b/CP`), so only the
+    branch outlet temperatures, and with them the branch units' approaches and areas, depend on the
+    fractions.  SLSQP with finite-difference gradients over loads and fractions, EMAT at both ends of every
+    unit.  Returns ``sol`` itself when it has no split or nothing cheaper is found.
+    """
+    model = _Model(p, sol.topology)
+    groups: dict = {}
+    for key in model.matches:
+        i, j, k = key
+        groups.setdefault(("hot", i, k), []).append(key)
+        groups.setdefault(("cold", j, k), []).append(key)
+    groups = {g: keys for g, keys in groups.items() if len(keys) > 1}
+    if not groups or model.n == 0:
+        return sol
+    branches = [(g[0], key) for g, keys in groups.items() for key in keys]
+    n, s = model.n, p.scale
+    col = {key: c for c, key in enumerate(model.matches)}
+    f0 = []
+    for keys in groups.values():
+        total = sum(sol.x[col[key]] for key in keys)
+        f0 += [sol.x[col[key]] / total for key in keys]
+    z0 = np.concatenate([sol.x / s, f0])
+    emat = p.emat + APPROACH_MARGIN
+    tac0 = max(abs(sol.tac), 1.0)
+
+    def unpack(z):
+        return z[:n] * s, dict(zip(branches, z[n:]))
+
+    def state(z):
+        x, fr = unpack(z)
+        duty, hi, ho, ci, co = _branch_temperatures(p, model, x, fr)
+        return x, duty, hi - co, ho - ci
+
+    def fun(z):
+        _, q, a, b = state(z)
+        a, b = np.maximum(a, 1e-9), np.maximum(b, 1e-9)
+        lm = _log_mean_and_gradient(a, b)[0]
+        area = np.maximum(q, 1e-12) / (model.u * lm)
+        return float((model.fixed + model.per_area * area ** model.exponent).sum() + (model.price * q).sum()) / tac0
+
+    rows = {key: r for r, key in enumerate(model.keys)}
+    hot_rows = np.array([rows[key] for side, key in branches if side == "hot"], dtype=int)
+    cold_rows = np.array([rows[key] for side, key in branches if side == "cold"], dtype=int)
+    hot_floor = np.array([p.hot_out[key[0]] for side, key in branches if side == "hot"])
+    cold_ceiling = np.array([p.cold_out[key[1]] for side, key in branches if side == "cold"])
+
+    def ineq(z):
+        # approaches, the linear constraints, and every branch outlet inside its stream's temperature range
+        x, fr = unpack(z)
+        q, hi, ho, ci, co = _branch_temperatures(p, model, x, fr)
+        return np.concatenate([hi - co - emat, ho - ci - emat, model.G @ x + model.g, ho[hot_rows] - hot_floor,
+                               cold_ceiling - co[cold_rows]])
+
+    members = [[branches.index((g[0], key)) for key in keys] for g, keys in groups.items()]
+
+    def eq(z):
+        x = z[:n] * s
+        sums = [z[n + np.array(m)].sum() - 1.0 for m in members]
+        return np.concatenate([model.eq.m @ x + model.eq.c, sums])
+
+    bounds = [(lo / s, hi / s) for lo, hi in model.bounds] + [(1e-3, 1.0)] * len(branches)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        res = minimize(fun, z0, method="SLSQP", bounds=bounds,
+                       constraints=[{"type": "ineq", "fun": ineq}, {"type": "eq", "fun": eq}],
+                       options={"maxiter": max_iter, "ftol": 1e-12})
+    z = np.clip(res.x, [b[0] for b in bounds], [b[1] for b in bounds])
+    if np.min(ineq(z), initial=0.0) < -1e-8 or np.max(np.abs(eq(z)), initial=0.0) > 1e-8:
+        return sol
+    x, fr = unpack(z)
+    tac = fun(z) * tac0
+    if not tac < sol.tac:
+        return sol
+    duties = _branch_temperatures(p, model, x, fr)[0]
+    return TopologySolution(sol.topology, x, tac, tuple(float(d) for d in duties), tuple(model.keys),
+                            {k: float(v) for k, v in fr.items()})

@@ -1,0 +1,815 @@
+"""Networks of lowest total annual cost: stagewise superstructure, MILP topologies, exact-cost refinement.
+
+The sequence (DEVELOPERS.md, "Method notes"):
+
+1. **Starting topologies.**  (a) The maximum-energy-recovery network of :func:`heatloom.network.design.
+   design_mer` at ΔTmin 10 K, its exchangers laid into stages along every stream; (b) the stagewise MILP
+   of Yee & Grossmann (1990) with K = max(#hot, #cold) stages, utilities at the stream ends and isothermal
+   mixing, whose area cost is linearised as a fixed charge per unit plus a cost per kW estimated from the
+   current load and approach-temperature estimates (:func:`stagewise_milp`); the estimates are updated
+   from the refined network and the MILP solved again a few times.
+2. **Exact refinement** of each topology (:func:`heatloom.network.tac.nlp.solve_topology`): loads,
+   stage temperatures and utility duties by SLSQP (trust-constr when SLSQP fails at once) against the exact
+   TAC with the exact LMTD and EMAT at both ends of every unit, isothermal mixing; units whose load
+   vanishes are removed.  Topologies with stream splits that come within :data:`POLISH_WITHIN` of the best
+   have their split fractions freed (:func:`heatloom.network.tac.nlp.polish_splits`: branches may then
+   leave a stage at different temperatures, non-isothermal mixing), and keep that only when it is cheaper.
+3. **Topology search** (iterated local search): remove a unit, add a match (in an existing stage or a new
+   one), move a match to another stage, add or remove a utility unit, each neighbour refined by step 2;
+   local optima are kicked by a few random moves, more as the walk stalls.  Several starts run in
+   parallel in local processes (``concurrent.futures``), each with its own random stream derived from
+   ``seed``; start 0 begins while the MILPs are being solved.
+4. The best network is built with its temperatures, sized with the exact LMTD, costed from its own
+   temperatures and checked by :func:`heatloom.network.structure.check_network` with ΔTmin = EMAT.
+
+There is no ΔTmin: only the exchanger minimum approach temperature (EMAT) bounds the design.  The search is
+a heuristic: the result is the best network found within the budget, not a proven optimum.  Costs are
+screening estimates; designs must be checked against local codes by qualified, licensed engineers.
+
+References
+----------
+.. [1] Yee, T. F., Grossmann, I. E. (1990). Simultaneous optimization models for heat integration—II.
+   Heat exchanger network synthesis. Computers & Chemical Engineering 14(10), 1165-1184.
+   doi:10.1016/0098-1354(90)85010-8
+"""
+
+from __future__ import annotations
+
+import os
+import time
+from collections.abc import Callable, Sequence
+from concurrent.futures import ProcessPoolExecutor
+
+import numpy as np
+import pulp
+
+from ...equipment.cost import CostSettings, UnitKind
+from ...equipment.sizing import log_mean
+from ...errors import InfeasibleError, InputError
+from ...model import StreamTable, Utility
+from ..solvers import new_variable, solve
+from ..structure import Cooler, Exchanger, Heater, Network, check_network
+from .nlp import (
+    TacProblem,
+    Topology,
+    TopologySolution,
+    make_problem,
+    polish_splits,
+    solve_topology,
+    unit_costs,
+)
+
+__all__ = ["design_tac", "stagewise_milp", "topology_from_network", "network_from_solution", "DEFAULT_EMAT"]
+
+DEFAULT_EMAT = 1.0
+"""Exchanger minimum approach temperature of the TAC design when none is given [K] (the value used by most
+published TAC benchmarks; stated in every output)."""
+
+MER_DT_MIN = 10.0
+"""ΔTmin of the maximum-energy-recovery network used as a starting topology [K] (*common practice* value
+for a first design; only its topology is kept)."""
+
+
+# --------------------------------------------------------------------------------------------- search
+
+ACCEPT = 0.002
+"""A kicked local optimum up to this much dearer than the walk's current one is accepted [-]."""
+
+RESTART = 8
+"""Rounds without a new best after which the walk returns to the best [-]."""
+
+POLISH_WITHIN = 0.003
+"""Topologies with stream splits whose isothermal-mixing cost is within this of the best found [-] have their
+split fractions freed (:func:`heatloom.network.tac.nlp.polish_splits`)."""
+
+PATIENCE = 400
+"""Neighbours tried in a row without improvement before a local search stops [-]: small topologies are
+searched exhaustively, large ones approximately (more kicks in the same time)."""
+
+def _is_match(key) -> bool:
+    return isinstance(key[0], (int, np.integer))
+
+
+def _loads(sol: TopologySolution) -> dict:
+    return {k: d for k, d in zip(sol.keys, sol.duties) if _is_match(k)}
+
+
+def _utility_duties(sol: TopologySolution) -> dict:
+    """("cool", i) / ("heat", j) → utility duty of that stream [kW]."""
+    out: dict = {}
+    for k, d in zip(sol.keys, sol.duties):
+        if not _is_match(k):
+            out[k[0], k[1]] = out.get((k[0], k[1]), 0.0) + d
+    return out
+
+
+def canonical(top: Topology, guess: dict | None = None) -> tuple[Topology, dict | None]:
+    """Drop the stages with no match (renumbering the rest) and re-key a guess of loads to match."""
+    used = sorted({k for (_, _, k) in top.matches})
+    remap = {k: n for n, k in enumerate(used)}
+    out = Topology(max(len(used), 1), frozenset((i, j, remap[k]) for (i, j, k) in top.matches), top.heaters,
+                   top.coolers)
+    if guess is None:
+        return out, None
+    g = {}
+    for key, v in guess.items():
+        if not _is_match(key):
+            g[key] = v
+        elif key[2] in remap:
+            g[key[0], key[1], remap[key[2]]] = v
+    return out, g
+
+
+def _without(top: Topology, keys) -> Topology:
+    ks = set(keys)
+    return Topology(top.stages, frozenset(m for m in top.matches if m not in ks),
+                    frozenset(h for h in top.heaters if ("heat", *h) not in ks),
+                    frozenset(c for c in top.coolers if ("cool", *c) not in ks))
+
+
+class _Search:
+    """Iterated local search over topologies, with a cache of refined topologies (one per process)."""
+
+    def __init__(self, p: TacProblem, max_stages: int, seed, deadline: float, patience: int = PATIENCE,
+                 polish: bool = True):
+        self.p = p
+        self.patience = patience
+        self.max_stages = max_stages
+        self.rng = np.random.default_rng(seed)
+        self.deadline = deadline
+        self.cache: dict = {}
+        self.evals = 0
+        self.timed_out = False
+        self.polish = polish
+        self.best_tac = float("inf")
+
+    def out_of_time(self) -> bool:
+        if time.monotonic() > self.deadline:
+            self.timed_out = True
+        return self.timed_out
+
+    def evaluate(self, top: Topology, guess: dict | None = None) -> TopologySolution | None:
+        top, guess = canonical(top, guess)
+        key = top.key()
+        if key in self.cache:
+            return self.cache[key]
+        self.evals += 1
+        sol = solve_topology(self.p, top, [guess] if guess else [], extra_vertex=not guess)
+        if sol is not None:
+            tiny = 1e-4 * self.p.scale   # ten times the least load the refinement allows
+            small = [k for k, d in zip(sol.keys, sol.duties) if d <= tiny]
+            if small:
+                sol2 = self.evaluate(_without(top, small), _loads(sol))
+                if sol2 is not None and sol2.tac < sol.tac:
+                    sol = sol2
+        if sol is not None and self.polish and sol.tac < self.best_tac * (1 + POLISH_WITHIN):
+            sol = polish_splits(self.p, sol)
+        if sol is not None:
+            self.best_tac = min(self.best_tac, sol.tac)
+        self.cache[key] = sol
+        return sol
+
+    def moves(self, top: Topology) -> list:
+        p, K = self.p, top.stages
+        nh, nc = len(p.hot_names), len(p.cold_names)
+        grow = K < self.max_stages
+        mv: list = [("remove", m) for m in sorted(top.matches)]
+        mv += [("remove", ("heat", *h)) for h in sorted(top.heaters)]
+        mv += [("remove", ("cool", *c)) for c in sorted(top.coolers)]
+        for i in range(nh):
+            for j in range(nc):
+                if not p.can_match(i, j):
+                    continue
+                mv += [("add", (i, j, k)) for k in range(K) if (i, j, k) not in top.matches]
+                if grow:
+                    mv += [("add_new", (i, j, pos)) for pos in range(K + 1)]
+        for m in sorted(top.matches):
+            i, j, k = m
+            mv += [("move", m, k2) for k2 in range(K) if k2 != k and (i, j, k2) not in top.matches]
+            if grow:
+                mv += [("move_new", m, pos) for pos in range(K + 1) if pos not in (k, k + 1)]
+        mv += [("add_heater", (j, lv)) for j in range(nc) for lv in range(len(p.heat_levels))
+               if (j, lv) not in top.heaters and p.heat_level_possible(j, lv)]
+        mv += [("add_cooler", (i, lv)) for i in range(nh) for lv in range(len(p.cool_levels))
+               if (i, lv) not in top.coolers and p.cool_level_possible(i, lv)]
+        return mv
+
+    def _new_load(self, i: int, j: int, utility: dict) -> float:
+        """First guess of a new match's load: the utility it could save, else a fifth of the smaller duty."""
+        saved = min(utility.get(("cool", i), 0.0), utility.get(("heat", j), 0.0))
+        return saved if saved > 0 else 0.2 * min(self.p.hot_duty[i], self.p.cold_duty[j])
+
+    def apply(self, top: Topology, loads: dict, move, utility: dict | None = None) -> tuple[Topology, dict]:
+        """The topology after a move, and a guess of its loads (those of ``loads``, re-keyed)."""
+        utility = utility or {}
+        kind, arg = move[0], move[1]
+        matches, heaters, coolers = set(top.matches), set(top.heaters), set(top.coolers)
+        loads = dict(loads)
+        K = top.stages
+        if kind == "remove":
+            if _is_match(arg):
+                matches.discard(arg)
+                loads.pop(arg, None)
+            elif arg[0] == "heat":
+                heaters.discard(arg[1:])
+            else:
+                coolers.discard(arg[1:])
+        elif kind == "add_heater":
+            heaters.add(arg)
+        elif kind == "add_cooler":
+            coolers.add(arg)
+        elif kind in ("add", "move"):
+            if kind == "move":
+                matches.discard(arg)
+                q = loads.pop(arg, None)
+                new = (arg[0], arg[1], move[2])
+            else:
+                new = arg
+                q = self._new_load(arg[0], arg[1], utility)
+            matches.add(new)
+            if q is not None:
+                loads[new] = q
+        else:  # a new stage inserted at position pos
+            if kind == "move_new":
+                matches.discard(arg)
+                q = loads.pop(arg, None)
+                i, j, pos = arg[0], arg[1], move[2]
+            else:
+                i, j, pos = arg
+                q = self._new_load(i, j, utility)
+
+            def shift(k, pos=pos):
+                return k + 1 if k >= pos else k
+
+            matches = {(a, b, shift(k)) for (a, b, k) in matches}
+            loads = {((key[0], key[1], shift(key[2])) if _is_match(key) else key): v for key, v in loads.items()}
+            matches.add((i, j, pos))
+            if q is not None:
+                loads[i, j, pos] = q
+            K += 1
+        return Topology(K, frozenset(matches), frozenset(heaters), frozenset(coolers)), loads
+
+    def local_search(self, sol: TopologySolution) -> TopologySolution:
+        """First improvement over the neighbours in random order, until ``patience`` of them in a row (or all)
+        fail to improve."""
+        improved = True
+        while improved and not self.out_of_time():
+            improved = False
+            mv = self.moves(sol.topology)
+            base = _loads(sol)
+            utility = _utility_duties(sol)
+            for count, idx in enumerate(self.rng.permutation(len(mv))):
+                if self.out_of_time() or count >= self.patience:
+                    break
+                cand = self.evaluate(*self.apply(sol.topology, base, mv[idx], utility))
+                if cand is not None and cand.tac < sol.tac - 1e-9 * abs(sol.tac):
+                    sol = cand
+                    improved = True
+                    break
+        return sol
+
+    def kick(self, sol: TopologySolution, strength: int) -> TopologySolution:
+        """A few random moves at once, refined; the incumbent if twenty tries find nothing feasible."""
+        for _ in range(20):
+            top, loads = sol.topology, _loads(sol)
+            for _ in range(strength):
+                # a kind of move first (remove, add, move...), then one of that kind: adds would dominate
+                by_kind: dict = {}
+                for m in self.moves(top):
+                    by_kind.setdefault(m[0].split("_")[0], []).append(m)
+                kinds = sorted(by_kind)
+                mv = by_kind[kinds[self.rng.integers(len(kinds))]]
+                top, loads = self.apply(top, loads, mv[self.rng.integers(len(mv))])
+            cand = self.evaluate(top, loads)
+            if cand is not None:
+                return cand
+        return sol
+
+    def iterate(self, sol: TopologySolution, rounds: int, polished: bool = False) -> TopologySolution:
+        """``rounds`` kicks, each followed by a local search, from a local optimum of ``sol``.
+
+        The walk kicks its current solution and moves to the new local optimum when it costs less than
+        the current one plus ``ACCEPT`` (relative); after ``RESTART`` rounds without a new best it returns
+        to the best.
+        """
+        best = current = sol if polished else self.local_search(sol)
+        stuck = 0
+        for _ in range(rounds):
+            if self.out_of_time():
+                break
+            # kicks grow stronger while no new best is found: 1, 1, 2, 2, ... moves, back to 1 at each restart
+            cand = self.local_search(self.kick(current, 1 + (stuck % RESTART) // 2))
+            if cand.tac < best.tac - 1e-9 * abs(best.tac):
+                best = current = cand
+                stuck = 0
+                continue
+            stuck += 1
+            if cand.tac < current.tac * (1 + ACCEPT):
+                current = cand
+            if stuck % RESTART == 0:
+                current = best
+        return best
+
+
+def _run_start(args) -> tuple[TopologySolution, int, bool]:
+    """One start of the search in a worker process: (best solution, refinements, timed out)."""
+    p, top, loads, seed, rounds, deadline, max_stages, polished = args
+    s = _Search(p, max_stages, seed, deadline)
+    sol = s.evaluate(top, loads)
+    if sol is None:
+        sol = s.evaluate(top)
+    if sol is None:
+        return None, s.evals, s.timed_out
+    best = s.iterate(sol, rounds, polished and sol.topology == top)
+    return best, s.evals, s.timed_out
+
+
+# ----------------------------------------------------------------------------------------------- MILP
+
+def _unit_area_cost_per_kw(law, u: float, load: float, approach: float) -> float:
+    """Secant of the area term of a law through zero and the estimated load [money per kW·year]."""
+    _, b, c = law
+    load = max(load, 1e-6)
+    return b * (load / (u * max(approach, 1e-3))) ** c / load
+
+
+def stagewise_milp(p: TacProblem, stages: int, estimates: dict, *, name: str = "tac stagewise MILP"
+                   ) -> tuple[pulp.LpProblem, Callable[[], Topology]]:
+    """The stagewise superstructure MILP with a linearised area cost; the problem and a reader of its topology.
+
+    .. math::
+
+        \\min \\sum_u p_u Q_u + \\sum_{ijk} (a\\,z_{ijk} + c_{ijk} q_{ijk})
+        + \\sum_{util} (a\\,z_u + c_u Q_u)
+
+    subject to the stage and overall heat balances, monotone stage temperatures, logical constraints
+    q ≤ Ω z and approach constraints ΔT ≥ EMAT − Γ(1 − z) at both ends of every unit (Yee & Grossmann 1990,
+    constraints (1)-(12)), with utility units at the stream ends, one per utility level in series ordered
+    by temperature.  The per-kW area costs :math:`c` are secants of b·(Q/(U·θ))^c through zero at an
+    estimated load Q̂ and approach θ̂ (``estimates``), updated by the caller from refined networks.
+
+    Parameters
+    ----------
+    p : TacProblem
+    stages : int
+        K [-].
+    estimates : dict
+        (unit key) → (load [kW], log-mean approach [K]) for matches (i, j, k), ("heat", j, level) and
+        ("cool", i, level); missing keys are estimated from the stream temperatures.
+    """
+    prob = pulp.LpProblem(name.replace(" ", "_"), pulp.LpMinimize)
+    K = stages
+    nh, nc = len(p.hot_names), len(p.cold_names)
+    temps = np.concatenate([p.hot_in, p.hot_out, p.cold_in, p.cold_out,
+                            [u.supply_temperature for u in (*p.heat_levels, *p.cool_levels)]])
+    gamma = float(temps.max() - temps.min() + 2 * p.emat)
+    th = {(i, 0): float(p.hot_in[i]) for i in range(nh)}
+    tc = {(j, K): float(p.cold_in[j]) for j in range(nc)}
+    for i in range(nh):
+        for k in range(1, K + 1):
+            th[i, k] = new_variable(prob, f"th_{i}_{k}", float(p.hot_out[i]), float(p.hot_in[i]))
+    for j in range(nc):
+        for k in range(K):
+            tc[j, k] = new_variable(prob, f"tc_{j}_{k}", float(p.cold_in[j]), float(p.cold_out[j]))
+    q, z = {}, {}
+    cost_terms = []
+
+    def guess(key, default_load, default_dt):
+        return estimates.get(key, (default_load, default_dt))
+
+    for i in range(nh):
+        for j in range(nc):
+            if not p.can_match(i, j):
+                continue
+            omega = float(min(p.hot_duty[i], p.cold_duty[j]))
+            u = 1.0 / (1.0 / p.hot_h[i] + 1.0 / p.cold_h[j])
+            for k in range(K):
+                key = (i, j, k)
+                # default approach: the two streams' temperatures at the stage's middle, if evenly cooled/heated
+                f = (k + 0.5) / K
+                th_mid = p.hot_in[i] - f * (p.hot_in[i] - p.hot_out[i])
+                tc_mid = p.cold_out[j] - f * (p.cold_out[j] - p.cold_in[j])
+                load, dt = guess(key, 0.5 * omega, max(th_mid - tc_mid, 2 * p.emat))
+                q[key] = new_variable(prob, f"q_{i}_{j}_{k}", 0, omega)
+                z[key] = new_variable(prob, f"z_{i}_{j}_{k}", cat=pulp.LpBinary)
+                prob += q[key] <= omega * z[key]
+                prob += th[i, k] - tc[j, k] >= p.emat - gamma * (1 - z[key])
+                prob += th[i, k + 1] - tc[j, k + 1] >= p.emat - gamma * (1 - z[key])
+                law = p.laws[UnitKind.EXCHANGER]
+                cost_terms.append(law[0] * z[key] + _unit_area_cost_per_kw(law, u, load, dt) * q[key])
+    for i in range(nh):
+        for k in range(K):
+            prob += p.hot_cp[i] * (th[i, k] - th[i, k + 1]) == pulp.lpSum(
+                q[i, j, k] for j in range(nc) if (i, j, k) in q)
+    for j in range(nc):
+        for k in range(K):
+            prob += p.cold_cp[j] * (tc[j, k] - tc[j, k + 1]) == pulp.lpSum(
+                q[i, j, k] for i in range(nh) if (i, j, k) in q)
+    util_q, util_z = {}, {}
+    # utility units in series at the stream ends
+    for side in ("cool", "heat"):
+        count = nh if side == "cool" else nc
+        levels = p.cool_levels if side == "cool" else p.heat_levels
+        for s in range(count):
+            possible = [lv for lv in range(len(levels))
+                        if (p.cool_level_possible(s, lv) if side == "cool" else p.heat_level_possible(s, lv))]
+            cp = p.hot_cp[s] if side == "cool" else p.cold_cp[s]
+            duty = p.hot_duty[s] if side == "cool" else p.cold_duty[s]
+            end = th[s, K] if side == "cool" else tc[s, 0]
+            target = p.hot_out[s] if side == "cool" else p.cold_out[s]
+            h_s = p.hot_h[s] if side == "cool" else p.cold_h[s]
+            before = end
+            total = []
+            for lv in possible:
+                util = levels[lv]
+                key = (side, s, lv)
+                util_q[key] = new_variable(prob, f"q{side}_{s}_{lv}", 0, float(duty))
+                util_z[key] = new_variable(prob, f"z{side}_{s}_{lv}", cat=pulp.LpBinary)
+                prob += util_q[key] <= float(duty) * util_z[key]
+                sign = -1.0 if side == "cool" else 1.0
+                after = before + sign * util_q[key] * (1.0 / cp)
+                if side == "cool":   # hot end: stream before − utility outlet; cold end: after − utility inlet
+                    prob += before - util.target_temperature >= p.emat - gamma * (1 - util_z[key])
+                    prob += after - util.supply_temperature >= p.emat - gamma * (1 - util_z[key])
+                    dt0 = max(0.5 * (p.hot_out[s] + p.hot_in[s]) - util.target_temperature, 2 * p.emat)
+                else:
+                    prob += util.supply_temperature - after >= p.emat - gamma * (1 - util_z[key])
+                    prob += util.target_temperature - before >= p.emat - gamma * (1 - util_z[key])
+                    dt0 = max(util.target_temperature - 0.5 * (p.cold_out[s] + p.cold_in[s]), 2 * p.emat)
+                u = 1.0 / (1.0 / h_s + 1.0 / util.film_coefficient)
+                load, dt = guess(key, 0.5 * duty, dt0)
+                law = p.laws[UnitKind.COOLER if side == "cool" else UnitKind.HEATER]
+                cost_terms.append(law[0] * util_z[key] + (_unit_area_cost_per_kw(law, u, load, dt) + util.cost)
+                                  * util_q[key])
+                total.append(util_q[key])
+                before = after
+            sign = 1.0 if side == "cool" else -1.0
+            prob += cp * sign * (end - target) == pulp.lpSum(total)
+    prob += pulp.lpSum(cost_terms)
+
+    def read() -> Topology:
+        tol = 1e-6 * p.scale
+        matches = frozenset(k for k, v in q.items() if (v.varValue or 0.0) > tol)
+        heaters = frozenset((s, lv) for (side, s, lv), v in util_q.items() if side == "heat" and (v.varValue or 0) > tol)
+        coolers = frozenset((s, lv) for (side, s, lv), v in util_q.items() if side == "cool" and (v.varValue or 0) > tol)
+        return Topology(K, matches, heaters, coolers)
+
+    return prob, read
+
+
+def _estimates(p: TacProblem, sol: TopologySolution) -> dict:
+    """(load, log-mean approach) of every unit of a refined solution, for the next MILP."""
+    out = {}
+    for d in unit_costs(p, sol.topology, sol.x):
+        a, b = d["hot_in"] - d["cold_out"], d["hot_out"] - d["cold_in"]
+        if d["duty"] > 0 and a > 0 and b > 0:
+            out[d["key"]] = (d["duty"], float(log_mean(a, b)))
+    return out
+
+
+# ------------------------------------------------------------------------------------ MER topology
+
+def topology_from_network(p: TacProblem, net: Network) -> Topology | None:
+    """Lay the exchangers of a network into stages along every stream (None if they cannot be).
+
+    Units of a stream are ordered from its hot end; units with the same temperatures on a stream are its
+    parallel branches and share a stage.  Each unit's stage is the length of the longest chain of units
+    before it; a network whose orders conflict (a loop of precedences) has no stagewise form.  Utility
+    units are put at the stream ends, one per stream that uses any.
+    """
+    hot_idx = {n: k for k, n in enumerate(p.hot_names)}
+    cold_idx = {n: k for k, n in enumerate(p.cold_names)}
+    ex = [e for e in net.exchangers if e.hot in hot_idx and e.cold in cold_idx]
+    parent = list(range(len(ex)))
+
+    def find(a):
+        while parent[a] != a:
+            parent[a] = parent[parent[a]]
+            a = parent[a]
+        return a
+
+    edges = set()
+    for side in ("hot", "cold"):
+        by_stream: dict = {}
+        for n, e in enumerate(ex):
+            t = (round(e.hot_in, 6), round(e.hot_out, 6)) if side == "hot" else (round(e.cold_out, 6),
+                                                                                    round(e.cold_in, 6))
+            by_stream.setdefault(getattr(e, side), {}).setdefault(t, []).append(n)
+        for groups in by_stream.values():
+            ordered = [groups[t] for t in sorted(groups, reverse=True)]
+            for g in ordered:
+                for n in g[1:]:
+                    parent[find(n)] = find(g[0])
+            for g1, g2 in zip(ordered, ordered[1:]):
+                edges.add((g1[0], g2[0]))
+    nodes = sorted({find(n) for n in range(len(ex))})
+    succ = {n: set() for n in nodes}
+    for a, b in edges:
+        ra, rb = find(a), find(b)
+        if ra == rb:
+            return None
+        succ[ra].add(rb)
+    level = {n: 0 for n in nodes}
+    indeg = {n: 0 for n in nodes}
+    for a in nodes:
+        for b in succ[a]:
+            indeg[b] += 1
+    ready = [n for n in nodes if indeg[n] == 0]
+    seen = 0
+    while ready:
+        a = ready.pop()
+        seen += 1
+        for b in succ[a]:
+            level[b] = max(level[b], level[a] + 1)
+            indeg[b] -= 1
+            if indeg[b] == 0:
+                ready.append(b)
+    if seen != len(nodes):
+        return None
+    matches = set()
+    for n, e in enumerate(ex):
+        key = (hot_idx[e.hot], cold_idx[e.cold], level[find(n)])
+        if key in matches:
+            return None
+        matches.add(key)
+    heaters = {(cold_idx[h.cold], lv) for h in net.heaters if h.cold in cold_idx
+               for lv, u in enumerate(p.heat_levels) if u.name == h.utility}
+    coolers = {(hot_idx[c.hot], lv) for c in net.coolers if c.hot in hot_idx
+               for lv, u in enumerate(p.cool_levels) if u.name == c.utility}
+    stages = max((k for (_, _, k) in matches), default=0) + 1
+    return Topology(stages, frozenset(matches), frozenset(heaters), frozenset(coolers))
+
+
+# ------------------------------------------------------------------------------------------- network
+
+def network_from_solution(p: TacProblem, sol: TopologySolution, streams: StreamTable, utilities: Sequence[Utility],
+                          costs: CostSettings, *, notes: Sequence[str] = (), solves: Sequence = ()) -> Network:
+    """The network of a refined topology, sized with the exact LMTD and costed from its own temperatures.
+
+    Raises
+    ------
+    InfeasibleError
+        If the network fails :func:`check_network` with ΔTmin = EMAT (never expected).
+    """
+    exchangers, heaters, coolers = [], [], []
+    capital = operating = 0.0
+    for d in unit_costs(p, sol.topology, sol.x, sol.fractions):
+        kind, key = d["kind"], d["key"]
+        if d["duty"] <= 0:
+            continue
+        lm = float(log_mean(d["hot_in"] - d["cold_out"], d["hot_out"] - d["cold_in"]))
+        area = d["duty"] / (d["u"] * lm)
+        cost = float(costs.annual_capital_cost(area, kind))
+        capital += cost
+        common = {"duty": d["duty"], "area": area, "cost": cost, "u": d["u"], "lmtd": lm, "region": "whole"}
+        if kind is UnitKind.EXCHANGER:
+            i, j, k = key
+            exchangers.append(Exchanger(p.hot_names[i], p.cold_names[j], hot_in=d["hot_in"], hot_out=d["hot_out"],
+                                        cold_in=d["cold_in"], cold_out=d["cold_out"], hot_fraction=d["hot_fraction"],
+                                        cold_fraction=d["cold_fraction"], stage=k, **common))
+        elif kind is UnitKind.HEATER:
+            _, j, lv = key
+            util = p.heat_levels[lv]
+            operating += d["duty"] * util.cost
+            heaters.append(Heater(p.cold_names[j], util.name, cold_in=d["cold_in"], cold_out=d["cold_out"],
+                                  utility_in=util.supply_temperature, utility_out=util.target_temperature,
+                                  stage=-1, **common))
+        else:
+            _, i, lv = key
+            util = p.cool_levels[lv]
+            operating += d["duty"] * util.cost
+            coolers.append(Cooler(p.hot_names[i], util.name, hot_in=d["hot_in"], hot_out=d["hot_out"],
+                                  utility_in=util.supply_temperature, utility_out=util.target_temperature,
+                                  stage=sol.topology.stages, **common))
+    exchangers.sort(key=lambda e: (e.stage, e.hot, e.cold))
+    net = Network(tuple(exchangers), tuple(heaters), tuple(coolers), p.emat, capital_cost=capital,
+                  operating_cost=operating, total_annual_cost=capital + operating, currency=costs.currency,
+                  notes=tuple(notes), solves=tuple(solves))
+    check_network(net, streams, utilities, dt_min=p.emat)
+    return net
+
+
+# ------------------------------------------------------------------------------------------- design
+
+ROUNDS_PER_EPOCH = 4
+"""Kicks of the iterated local search between two reports of progress [-]."""
+
+
+def _fallback_topology(p: TacProblem) -> Topology:
+    """No exchanger: every stream served by the utility levels that can serve it alone."""
+    heaters = set()
+    for j in range(len(p.cold_names)):
+        ok = [lv for lv, u in enumerate(p.heat_levels)
+              if p.heat_level_possible(j, lv) and u.target_temperature - p.emat > p.cold_in[j]]
+        heaters.update((j, lv) for lv in ok[-1:])
+    coolers = set()
+    for i in range(len(p.hot_names)):
+        ok = [lv for lv, u in enumerate(p.cool_levels) if p.cool_level_possible(i, lv)]
+        coolers.update((i, lv) for lv in ok[-1:])
+    return Topology(1, frozenset(), frozenset(heaters), frozenset(coolers))
+
+
+def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None, *,
+               costs: CostSettings | None = None, emat: float = DEFAULT_EMAT, stages: int | None = None,
+               time_limit: float = 120.0, seed: int = 0, starts: int = 2, rounds: int = 40,
+               workers: int | None = None, milp_iterations: int = 3, solver: str | None = None,
+               default_film_coefficient: float | None = None,
+               progress: Callable[[float, int, int], None] | None = None) -> Network:
+    """A network of low total annual cost: stagewise MILP topologies refined against the exact cost.
+
+    Parameters
+    ----------
+    streams : StreamTable
+        Process streams of one constant CP each, with film coefficients.
+    utilities : sequence of Utility, optional
+        Utility levels with prices [money per kW·year] and film coefficients; when omitted, the assumed
+        utilities of :func:`heatloom.network.design.ideal_utilities` (stated in the notes).
+    costs : CostSettings, optional
+        Cost laws and annualisation; the defaults of :mod:`heatloom.defaults` when omitted.
+    emat : float
+        Exchanger minimum approach temperature every unit keeps at both ends [K] (default 1 K).
+    stages : int, optional
+        Stages K of the MILP [-]; max(#hot, #cold) when omitted.  The search may use up to 2K.
+    time_limit : float
+        Wall-clock limit of the whole design [s]; the search stops when it is reached (said in the notes).
+    seed : int
+        Seed of the search's random streams: same inputs, seed, starts and rounds give the same network
+        when the time limit is not reached.
+    starts : int
+        Independent searches run side by side [-], from the best distinct starting topologies.
+    rounds : int
+        Kicks of the iterated local search per start [-].
+    workers : int, optional
+        Local processes [-]; min(starts, CPU count) when omitted; 1 runs everything in this process.
+    milp_iterations : int
+        MILP solves with updated area-cost estimates [-].
+    solver : str, optional
+        "highs" or "cbc" (see :mod:`heatloom.network.solvers`).
+    default_film_coefficient : float, optional
+        [kW/(m²·K)] assumed where a stream or utility has none.
+    progress : callable, optional
+        Called as ``progress(best_tac, done, total)`` after the starting topologies and after each epoch of
+        the search (``done`` of ``total`` epochs).
+
+    Returns
+    -------
+    Network
+        Passes :func:`check_network` with ΔTmin = EMAT; ``total_annual_cost`` is recomputed from the
+        network's own temperatures with the exact LMTD.
+
+    Raises
+    ------
+    InputError
+        Bad EMAT, budgets, film coefficients, segmented streams, or missing utilities.
+    InfeasibleError
+        No network found (no utility can serve some stream).
+
+    Examples
+    --------
+    Invented data: one hot and one cold stream, steam and cooling water.
+
+    >>> from heatloom.model import UtilityKind
+    >>> s = StreamTable.from_arrays(["H", "C"], [150, 30], [40, 120], [2.0, 2.0], film_coefficient=[1.0, 1.0])
+    >>> u = [Utility("steam", 180, 179, 120.0, UtilityKind.HOT, 3.0), Utility("water", 15, 25, 10.0, None, 2.0)]
+    >>> net = design_tac(s, u, emat=5.0, starts=1, rounds=0, milp_iterations=1)
+    >>> [(e.hot, e.cold) for e in net.exchangers], len(net.coolers)
+    ([('H', 'C')], 1)
+    >>> bool(net.total_annual_cost == net.capital_cost + net.operating_cost)
+    True
+    """
+    from ..design import design_mer, ideal_utilities
+
+    t0 = time.monotonic()
+    for value, what in ((starts, "starts"), (rounds, "rounds"), (milp_iterations, "MILP iterations")):
+        if not isinstance(value, (int, np.integer)) or isinstance(value, bool) or value < (1 if what == "starts" else 0):
+            raise InputError(f"{what} must be a whole number >= {1 if what == 'starts' else 0}, got {value!r}")
+    if not (time_limit > 0) or not np.isfinite(time_limit):
+        raise InputError(f"time limit must be a finite number of seconds > 0, got {time_limit!r}")
+    deadline = t0 + float(time_limit)
+    notes: list[str] = [f"EMAT {emat:g} K at both ends of every unit (no ΔTmin)"]
+    if utilities is None:
+        utilities = ideal_utilities(streams, emat)
+        hu, cu = utilities
+        notes.append(f"no utilities given: assumed an isothermal hot utility at {hu.supply_temperature:g} °C and an "
+                     f"isothermal cold utility at {cu.supply_temperature:g} °C with default prices and film "
+                     "coefficients; give --utilities FILE")
+    costs = costs or CostSettings()
+    p = make_problem(streams, utilities, costs, emat, default_film_coefficient=default_film_coefficient)
+    if default_film_coefficient is not None:
+        notes.append(f"film coefficient {default_film_coefficient:g} kW/(m²·K) assumed where none was given")
+    K = int(stages) if stages is not None else max(len(p.hot_names), len(p.cold_names))
+    if K < 1:
+        raise InputError(f"stages must be >= 1, got {stages!r}")
+    max_stages = 2 * K
+    seq = np.random.SeedSequence(int(seed))
+    search = _Search(p, max_stages, seq.spawn(1)[0], deadline)
+    solves: list = []
+    candidates: list[TopologySolution] = []
+    sources: list[str] = []
+
+    def keep(sol, label):
+        if sol is not None and all(sol.topology.key() != c.topology.key() for c in candidates):
+            candidates.append(sol)
+            sources.append(label)
+
+    keep(search.evaluate(_fallback_topology(p)), "utilities only")
+    # (a) the maximum-energy-recovery network's topology
+    try:
+        mer = design_mer(streams, max(MER_DT_MIN, emat), utilities, costs=costs, solver=solver,
+                         time_limit=max(1.0, min(10.0, 0.03 * time_limit)),
+                         default_film_coefficient=default_film_coefficient)
+        solves += list(mer.solves)
+        top = topology_from_network(p, mer)
+        if top is not None:
+            keep(search.evaluate(top), f"MER network at ΔTmin {max(MER_DT_MIN, emat):g} K")
+    except (InfeasibleError, InputError) as exc:
+        notes.append(f"no MER starting network ({exc})")
+    epochs = max(1, -(-rounds // ROUNDS_PER_EPOCH)) if rounds else 0
+    n_workers = workers if workers is not None else min(starts, os.cpu_count() or 1)
+    pool = ProcessPoolExecutor(max_workers=n_workers) if n_workers > 1 and starts > 1 and epochs else None
+
+    def job(s, c, epoch):
+        todo = min(ROUNDS_PER_EPOCH, rounds - epoch * ROUNDS_PER_EPOCH)
+        return (p, c.topology, _loads(c), np.random.SeedSequence([int(seed), s, epoch]), todo, deadline, max_stages,
+                epoch > 0)
+
+    evals, timed_out = 0, False
+    try:
+        # with local processes, start 0 searches from the best topology so far while the MILPs are solved
+        # (start 0 begins there in any case, so that the result does not depend on the number of processes)
+        early = None
+        first = min(candidates, key=lambda c: c.tac) if candidates else None
+        if pool is not None and first is not None:
+            early = (first, pool.submit(_run_start, job(0, first, 0)))
+        # (b) the stagewise MILP with linearised area costs, estimates updated from the refined networks
+        est: dict = {}
+        for c in candidates:
+            est.update(_estimates(p, c))
+        seen = set()
+        for it in range(milp_iterations):
+            if deadline - time.monotonic() < 0.3 * time_limit:
+                break
+            prob, read = stagewise_milp(p, K, est, name=f"tac stagewise MILP {it + 1}")
+            report = solve(prob, solver, time_limit=max(1.0, min(30.0, 0.1 * time_limit)),
+                           name=f"TAC stagewise MILP, iteration {it + 1}", check=False)
+            solves.append(report)
+            if not report.has_solution:
+                break
+            top = read()
+            if top.key() in seen:
+                break
+            seen.add(top.key())
+            sol = search.evaluate(top)
+            keep(sol, f"MILP iteration {it + 1}")
+            if sol is not None:
+                est.update(_estimates(p, sol))
+        if not candidates:
+            raise InfeasibleError(f"no network keeps EMAT {emat:g} K: some stream cannot be served by any utility")
+        order = sorted(range(len(candidates)), key=lambda n: candidates[n].tac)
+        current = [candidates[order[s % len(order)]] for s in range(starts)]
+        if first is not None:
+            current[0] = first
+        best = min(current, key=lambda s: s.tac)
+        if progress is not None:
+            progress(best.tac, 0, epochs)
+        evals, timed_out = search.evals, search.timed_out
+        for epoch in range(epochs):
+            if time.monotonic() > deadline and not (epoch == 0 and early is not None):
+                timed_out = True
+                break
+            pending = []
+            for s, c in enumerate(current):
+                if epoch == 0 and s == 0 and early is not None:
+                    pending.append(early[1])
+                else:
+                    pending.append(pool.submit(_run_start, job(s, c, epoch)) if pool is not None else None)
+            results = [f.result() if f is not None else _run_start(job(s, c, epoch))
+                       for s, (f, c) in enumerate(zip(pending, current))]
+            for s, (sol, n, out) in enumerate(results):
+                evals += n
+                timed_out |= out
+                if sol is not None and sol.tac < current[s].tac:
+                    current[s] = sol
+            best = min(current, key=lambda s: s.tac)
+            if progress is not None:
+                progress(best.tac, epoch + 1, epochs)
+    finally:
+        if pool is not None:
+            pool.shutdown(cancel_futures=True)
+    wall = time.monotonic() - t0
+    notes.append(f"TAC search: {len(candidates)} starting topologies ({', '.join(sources)}); {starts} start(s) × "
+                 f"{rounds} rounds of iterated local search, seed {seed}; {evals} topologies refined against the "
+                 f"exact cost; {wall:.1f} s")
+    if timed_out:
+        notes.append(f"the time limit of {time_limit:g} s stopped the search: the network is the best found in time "
+                     "and may differ from run to run (raise --time-limit for a reproducible result)")
+    if best.fractions:
+        notes.append("stream splits with free flow fractions: the branches of a split stream may leave a stage at "
+                     "different temperatures before they mix (non-isothermal mixing)")
+    else:
+        notes.append("isothermal mixing: the branches of a split stream leave a stage at one temperature")
+    notes.append("heuristic search: the lowest cost found, not a proven optimum")
+    notes.append(costs.describe())
+    notes.append("Areas: counter-current, exact LMTD, U from 1/U = 1/h_hot + 1/h_cold (clean surfaces, no fouling "
+                 "allowance).")
+    return network_from_solution(p, best, streams, utilities, costs, notes=notes, solves=solves)

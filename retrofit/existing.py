@@ -1,0 +1,917 @@
+"""An existing heat-exchanger network as built: its units, their areas and their order along every stream.
+
+The starting point of retrofit (:mod:`heatloom.retrofit.simulate`, :mod:`heatloom.retrofit.diagnose`).  An
+:class:`ExistingNetwork` holds the process streams, the utilities and one :class:`ExistingUnit` per
+unit.  Each unit joins a hot side (a hot stream or a hot utility) and a cold side (a cold stream or a
+cold utility); its role follows: an *exchanger* joins two process streams, a *heater* a hot utility and
+a cold stream, a *cooler* a hot stream and a cold utility.  Along every process stream the units have
+positions 1, 2, ... from the stream's supply end.
+
+How each unit works in the simulation (the *operating mode*, :class:`OperatingMode`):
+
+* an exchanger is **rated** by ε-NTU at its area and U (:func:`heatloom.equipment.rating.effectiveness_from_ntu`);
+* a heater or cooler that is the **last unit on its stream** is a **trim** unit: it takes whatever duty
+  brings the stream to its target (its utility flow is controlled), so its area does not enter the
+  simulation;
+* a heater or cooler elsewhere on its stream keeps its stated duty (**fixed duty**); without a duty it is
+  **rated** by ε-NTU against its utility, which must then be (nearly) isothermal — condensing steam,
+  boiling refrigerant, a glide of at most :data:`MAX_ISOTHERMAL_GLIDE` — taken at its mean temperature
+  (C_r = 0).
+
+Construction validates everything and fills in what follows from the data (roles, positions, U from film
+coefficients, area from a stated duty); every problem is an :class:`~heatloom.errors.InputError` naming
+the unit's row and the column.  A *stated duty* converts to an area only when the unit's temperatures are
+known without simulating: on each process side the inlet or the outlet must follow from the supply end
+(through units of stated duty before it) or from the target end (through units of stated duty after it,
+when the stream ends with a heater or cooler, which brings it to its target).
+
+Stream splits are not represented: every stream passes its units in series.
+
+Results are screening estimates; a real retrofit must be checked against the plant's data sheets and
+local codes by qualified, licensed engineers.
+"""
+
+from __future__ import annotations
+
+import enum
+import functools
+import math
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass, field, replace
+
+import numpy as np
+
+from ..equipment.rating import max_effectiveness, ntu_from_effectiveness
+from ..equipment.segments import size_segments
+from ..equipment.sizing import FlowArrangement, overall_coefficient
+from ..errors import InputError, TemperatureCrossError
+from ..model import Segment, Stream, StreamTable, Utility
+from ..network.structure import stream_enthalpy, stream_temperature
+
+__all__ = [
+    "UnitRole",
+    "OperatingMode",
+    "ExistingUnit",
+    "ExistingNetwork",
+    "heat_between",
+    "temperature_after",
+    "film_coefficient_of",
+    "MAX_ISOTHERMAL_GLIDE",
+]
+
+ISOTHERMAL_GLIDE = 1e-6
+"""Glide given to an isothermal utility when it is sized as a segment [K] (changes an LMTD by less than
+one part in a million)."""
+MAX_ISOTHERMAL_GLIDE = 1.0
+"""A utility whose temperature changes by at most this much [K] (condensing steam written 250 → 249 °C) can
+rate a heater or cooler inside a stream by its area, as a constant-temperature side at its mean
+temperature."""
+DUTY_CONSISTENCY = 5e-3
+"""Largest mismatch allowed between stated duties walked from the supply end and from the target end of
+a stream, relative to the stream's duty [-] (rounded plant data)."""
+
+
+class UnitRole(enum.Enum):
+    """What a unit joins: two process streams, a hot utility and a cold stream, or a hot stream and a
+    cold utility."""
+
+    EXCHANGER = "exchanger"
+    HEATER = "heater"
+    COOLER = "cooler"
+
+
+class OperatingMode(enum.Enum):
+    """How a unit works in the simulation (see the module notes)."""
+
+    RATED = "rated"
+    """ε-NTU at its area and U."""
+    TRIM = "trim"
+    """Last heater or cooler of a stream: brings the stream to its target."""
+    FIXED_DUTY = "fixed duty"
+    """Heater or cooler inside a stream: keeps its stated duty."""
+
+
+# --------------------------------------------------------------------------------------------------
+# stream profiles, extrapolated beyond the supply and target with the end segments' CP
+
+
+def heat_between(stream: Stream, t_from: float, t_to: float) -> float:
+    """Heat a stream exchanges going from ``t_from`` to ``t_to`` [kW], positive in its own direction.
+
+    Positive when a hot stream cools or a cold stream warms.  Piecewise linear over the segments and
+    extrapolated beyond the supply and target temperatures with the end segments' heat capacity flow.
+
+    Examples
+    --------
+    >>> s = Stream("vapour", (Segment(120, 110, 2.0), Segment(110, 109, 100.0)))
+    >>> heat_between(s, 120, 109.5), heat_between(s, 109, 108)
+    (70.0, 100.0)
+    """
+    return stream_enthalpy(stream, t_to, extrapolate=True) - stream_enthalpy(stream, t_from, extrapolate=True)
+
+
+def temperature_after(stream: Stream, t_in: float, heat: float) -> float:
+    """Temperature of a stream after exchanging ``heat`` [kW] in its own direction from ``t_in`` [°C].
+
+    The inverse of :func:`heat_between`: ``heat_between(s, t, temperature_after(s, t, q)) == q``.
+
+    Examples
+    --------
+    >>> s = Stream("vapour", (Segment(120, 110, 2.0), Segment(110, 109, 100.0)))
+    >>> temperature_after(s, 120, 70.0)
+    109.5
+    """
+    return stream_temperature(stream, stream_enthalpy(stream, t_in, extrapolate=True) + heat, extrapolate=True)
+
+
+def _secant_cp(stream: Stream, t_a: float, t_b: float) -> float:
+    """Mean heat capacity flow of a stream between two temperatures [kW/K] (local CP if they meet)."""
+    dt = abs(t_b - t_a)
+    if dt > 1e-9 * max(1.0, abs(t_a)):
+        return abs(heat_between(stream, t_a, t_b)) / dt
+    eps = 1e-6 * max(1.0, abs(t_a))
+    return abs(heat_between(stream, t_a - eps, t_a + eps)) / (2 * eps)
+
+
+def film_coefficient_of(side: Stream | Utility) -> float | None:
+    """Film coefficient of a stream or utility [kW/(m²·K)], None when not given.
+
+    A stream whose segments have different coefficients gets the duty-weighted resistance mean
+    1/h = Σ(Q_k/h_k)/ΣQ_k over its whole range (one U per unit is used in rating).
+
+    Examples
+    --------
+    >>> film_coefficient_of(Stream("S", (Segment(100, 90, 1.0, 1.0), Segment(90, 80, 1.0, 0.5))))
+    0.6666666666666666
+    """
+    if isinstance(side, Utility):
+        return side.film_coefficient
+    if any(g.film_coefficient is None for g in side.segments):
+        return None
+    return side.duty / sum(g.duty / g.film_coefficient for g in side.segments)
+
+
+def _min_approach(hot: Stream | Utility, cold: Stream | Utility, hot_in: float, hot_out: float,
+                  cold_in: float, cold_out: float) -> float:
+    """Smallest hot − cold difference along a counter-current unit [K], ends and inner breakpoints."""
+    ends = [hot_in - cold_out, hot_out - cold_in]
+    q_h = heat_between(hot, hot_in, hot_out) if isinstance(hot, Stream) else None
+    q_c = heat_between(cold, cold_in, cold_out) if isinstance(cold, Stream) else None
+    q = q_h if q_h is not None else q_c
+    if q is None or not q > 0:
+        return min(ends)
+    xs = []  # heat from the hot end (hot inlet, cold outlet)
+    if isinstance(hot, Stream):
+        for g in hot.segments:
+            x = heat_between(hot, hot_in, g.target_temperature) * q / q_h
+            if 0 < x < q:
+                xs.append(x)
+    if isinstance(cold, Stream):
+        for g in cold.segments:
+            x = heat_between(cold, g.target_temperature, cold_out) * q / q_c
+            if 0 < x < q:
+                xs.append(x)
+
+    def t_hot(x):
+        if isinstance(hot, Stream):
+            return temperature_after(hot, hot_in, x * q_h / q)
+        return hot_in + (hot_out - hot_in) * x / q
+
+    def t_cold(x):
+        if isinstance(cold, Stream):
+            return temperature_after(cold, cold_out, -x * q_c / q)
+        return cold_out + (cold_in - cold_out) * x / q
+
+    return min(ends + [t_hot(x) - t_cold(x) for x in xs])
+
+
+# --------------------------------------------------------------------------------------------------
+# units
+
+
+def _arrangement_of(value) -> FlowArrangement:
+    if isinstance(value, FlowArrangement):
+        return value
+    try:
+        return FlowArrangement(value)
+    except ValueError:
+        allowed = ", ".join(a.value for a in FlowArrangement)
+        raise InputError(f"unknown exchanger type {value!r}; allowed: {allowed}", column="type") from None
+
+
+@dataclass(frozen=True)
+class ExistingUnit:
+    """One unit of an existing network, as given and as completed by :class:`ExistingNetwork`.
+
+    Parameters
+    ----------
+    name : str
+        Unique tag of the unit (e.g. ``E-101``).
+    hot, cold : str
+        The hot side (hot stream or hot utility) and the cold side (cold stream or cold utility), by name.
+    area : float, optional
+        Heat-transfer area [m²] (for 1-2 shells in series, of all shells).  Filled in from ``duty`` when
+        the temperatures at the unit are known (``area_from_duty`` is then True).
+    duty : float, optional
+        Stated duty [kW] (design or measured).  Used when there is no area, kept for a fixed-duty heater
+        or cooler, and otherwise only checked and reported beside the simulated duty.
+    u : float, optional
+        Overall heat transfer coefficient [kW/(m²·K)]; filled in from the film coefficients of the two
+        sides, 1/U = 1/h_hot + 1/h_cold (``u_from_films`` is then True).
+    arrangement : FlowArrangement, optional
+        Counter-current (default), co-current or 1-2 shell-and-tube.
+    shells : int, optional
+        1-2 shells in series [-] (shell-and-tube only).
+    hot_position, cold_position : int, optional
+        Position along the hot and the cold process stream from its supply end, 1-based [-]; default the
+        order of the units in the network.  None on a utility side.
+    row : int, optional
+        Row of the source table (for messages).
+
+    Attributes filled in by :class:`ExistingNetwork`: ``role`` (:class:`UnitRole`), ``mode``
+    (:class:`OperatingMode`), ``area_from_duty``, ``u_from_films``.
+    """
+
+    name: str
+    hot: str
+    cold: str
+    area: float | None = None
+    duty: float | None = None
+    u: float | None = None
+    arrangement: FlowArrangement = FlowArrangement.COUNTER_CURRENT
+    shells: int = 1
+    hot_position: int | None = None
+    cold_position: int | None = None
+    row: int | None = field(default=None, compare=False)
+    role: UnitRole | None = None
+    mode: OperatingMode | None = None
+    area_from_duty: bool = False
+    u_from_films: bool = False
+
+    def __post_init__(self) -> None:
+        where = {"row": self.row}
+        name = str(self.name).strip()
+        if not name:
+            raise InputError("unit name is empty", column="unit", **where)
+        object.__setattr__(self, "name", name)
+        for side in ("hot", "cold"):
+            v = str(getattr(self, side)).strip()
+            if not v:
+                raise InputError(f"unit '{name}': the {side} side is empty; name a {side} stream or a "
+                                 f"{side} utility", column=side, **where)
+            object.__setattr__(self, side, v)
+        for attr, column, unit in (("area", "area", "m²"), ("duty", "duty", "kW"), ("u", "U", "kW/(m²·K)")):
+            v = getattr(self, attr)
+            if v is None:
+                continue
+            try:
+                x = float(v)
+            except (TypeError, ValueError):
+                raise InputError(f"unit '{name}': {column} must be a number [{unit}], got {v!r}",
+                                 column=column, **where) from None
+            if not (x > 0) or not math.isfinite(x):
+                raise InputError(f"unit '{name}': {column} must be a finite number > 0 {unit}, got {v!r}",
+                                 column=column, **where)
+            object.__setattr__(self, attr, x)
+        try:
+            object.__setattr__(self, "arrangement", _arrangement_of(self.arrangement))
+        except InputError as e:
+            raise InputError(f"unit '{name}': {e.message}", row=self.row, column="type") from None
+        shells = self.shells
+        if isinstance(shells, float) and shells.is_integer():
+            shells = int(shells)
+        if isinstance(shells, bool) or not isinstance(shells, (int, np.integer)) or shells < 1:
+            raise InputError(f"unit '{name}': shells must be a whole number >= 1, got {self.shells!r}",
+                             column="shells", **where)
+        if shells > 1 and self.arrangement is not FlowArrangement.SHELL_AND_TUBE_1_2:
+            raise InputError(f"unit '{name}': {shells} shells given for a {self.arrangement.value} unit; shells "
+                             "in series apply to type shell_and_tube_1_2 only", column="shells", **where)
+        object.__setattr__(self, "shells", int(shells))
+        for attr, column in (("hot_position", "hot_order"), ("cold_position", "cold_order")):
+            v = getattr(self, attr)
+            if v is None:
+                continue
+            if isinstance(v, float) and v.is_integer():
+                v = int(v)
+            if isinstance(v, bool) or not isinstance(v, (int, np.integer)) or v < 1:
+                raise InputError(f"unit '{name}': {column} must be a whole number >= 1 (position from the "
+                                 f"stream's supply end), got {getattr(self, attr)!r}", column=column, **where)
+            object.__setattr__(self, attr, int(v))
+
+    @property
+    def is_utility_unit(self) -> bool:
+        """True for a heater or a cooler."""
+        return self.role in (UnitRole.HEATER, UnitRole.COOLER)
+
+    @property
+    def process_streams(self) -> tuple[str, ...]:
+        """The process streams the unit sits on (two for an exchanger, one for a heater or cooler)."""
+        if self.role is UnitRole.HEATER:
+            return (self.cold,)
+        if self.role is UnitRole.COOLER:
+            return (self.hot,)
+        return (self.hot, self.cold)
+
+    def to_dict(self) -> dict:
+        return {"unit": self.name, "hot": self.hot, "cold": self.cold, "role": _value(self.role),
+                "mode": _value(self.mode), "area": self.area, "duty": self.duty, "U": self.u,
+                "type": self.arrangement.value, "shells": self.shells, "hot_order": self.hot_position,
+                "cold_order": self.cold_position, "area_from_duty": self.area_from_duty,
+                "U_from_films": self.u_from_films}
+
+
+def _value(e):
+    return None if e is None else e.value
+
+
+# --------------------------------------------------------------------------------------------------
+# the network
+
+
+def _names(items: Iterable[str], limit: int = 12) -> str:
+    items = list(items)
+    text = ", ".join(f"'{x}'" for x in items[:limit])
+    return text + (f" ... ({len(items)} in all)" if len(items) > limit else "")
+
+
+@dataclass(frozen=True, eq=False)
+class ExistingNetwork:
+    """An existing network: process streams, utilities and units in series along every stream.
+
+    Parameters
+    ----------
+    streams : StreamTable
+        The process streams (supply and target temperatures, CP, film coefficients).
+    units : sequence of ExistingUnit
+        Unique names; their order is the default order along every stream.
+    utilities : sequence of Utility, optional
+        The utilities heaters and coolers use.
+    source : str, optional
+        Where the network came from (file name), for messages.
+
+    Attributes
+    ----------
+    units : tuple of ExistingUnit
+        Completed (role, mode, positions, U, area where a stated duty defines it).
+    notes : tuple of str
+        Assumptions made while completing the data, in plain words.
+
+    Raises
+    ------
+    InputError
+        Located at the unit's row and the column concerned: empty or repeated names, unknown streams or
+        utilities, a side of the wrong kind, two utilities in one unit, positions that repeat, skip or are
+        given for only some units of a stream, no area and no duty, no U and no film coefficients, a
+        stated duty larger than a stream's whole duty, stated duties that overrun a stream or disagree
+        with its target, a stated duty the available driving force cannot deliver, a duty without an area
+        where the temperatures are not known, a heater or cooler inside a stream with neither duty nor an
+        isothermal utility.
+
+    Examples
+    --------
+    >>> from heatloom.model import StreamTable, Utility
+    >>> s = StreamTable.from_arrays(["H1", "C1"], [150, 30], [60, 120], [2.0, 2.5], film_coefficient=[1.0, 1.0])
+    >>> u = [Utility("steam", 180, 179, 100.0), Utility("water", 20, 30, 10.0)]
+    >>> net = ExistingNetwork(s, [ExistingUnit("E1", "H1", "C1", duty=100.0),
+    ...                           ExistingUnit("H1", "steam", "C1", area=5.0, u=0.8),
+    ...                           ExistingUnit("C1", "H1", "water", area=4.0, u=0.5)], u)
+    >>> e = net.unit("E1")
+    >>> e.role.value, e.mode.value, round(e.area, 3), e.area_from_duty
+    ('exchanger', 'rated', 2.671, True)
+    >>> [x.name for x in net.on_stream("C1")]
+    ['E1', 'H1']
+    """
+
+    streams: StreamTable
+    units: tuple[ExistingUnit, ...]
+    utilities: tuple[Utility, ...] = ()
+    source: str | None = None
+    notes: tuple[str, ...] = ()
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "units", tuple(self.units))
+        object.__setattr__(self, "utilities", tuple(self.utilities))
+        notes = list(self.notes)
+        try:
+            units = self._resolve(notes)
+        except InputError as e:
+            raise e.located(file=self.source) from None
+        object.__setattr__(self, "units", tuple(units))
+        object.__setattr__(self, "notes", tuple(dict.fromkeys(notes)))
+
+    # -- completion and checks ------------------------------------------------------------------
+
+    def _resolve(self, notes: list[str]) -> list[ExistingUnit]:
+        if not self.units:
+            raise InputError("the network has no units")
+        streams = {s.name: s for s in self.streams}
+        utilities = {u.name: u for u in self.utilities}
+        for name in set(streams) & set(utilities):
+            raise InputError(f"'{name}' is both a process stream and a utility; rename one")
+        seen: dict[str, ExistingUnit] = {}
+        units = []
+        for unit in self.units:
+            if not isinstance(unit, ExistingUnit):
+                raise InputError(f"units must be ExistingUnit objects, got {type(unit).__name__}")
+            if unit.name in seen:
+                first = seen[unit.name].row
+                raise InputError(f"unit name '{unit.name}' is used twice"
+                                 + (f" (first in row {first})" if first is not None else "")
+                                 + "; unit names must be unique", row=unit.row, column="unit")
+            seen[unit.name] = unit
+            units.append(replace(unit, role=self._role(unit, streams, utilities)))
+        units = self._positions(units, streams)
+        units = [self._coefficient(u, streams, utilities) for u in units]
+        return self._duties(units, streams, utilities, notes)
+
+    def _role(self, unit: ExistingUnit, streams: dict, utilities: dict) -> UnitRole:
+        kinds = {}
+        for side in ("hot", "cold"):
+            name = getattr(unit, side)
+            if name in streams:
+                is_hot, what = streams[name].is_hot, "stream"
+            elif name in utilities:
+                is_hot, what = utilities[name].is_hot, "utility"
+            else:
+                known = list(streams) + list(utilities)
+                raise InputError(f"unit '{unit.name}': unknown {side} side '{name}'; known streams and "
+                                 f"utilities: {_names(known)}", row=unit.row, column=side)
+            if is_hot != (side == "hot"):
+                kind = "hot" if is_hot else "cold"
+                raise InputError(f"unit '{unit.name}': '{name}' is a {kind} {what} but is named as the {side} "
+                                 f"side; the hot column takes hot streams or hot utilities, the cold column "
+                                 f"cold streams or cold utilities", row=unit.row, column=side)
+            kinds[side] = what
+        if kinds["hot"] == "utility" and kinds["cold"] == "utility":
+            raise InputError(f"unit '{unit.name}' joins two utilities ('{unit.hot}' and '{unit.cold}'); every "
+                             "unit must serve at least one process stream", row=unit.row, column="cold")
+        if kinds["hot"] == "utility":
+            return UnitRole.HEATER
+        if kinds["cold"] == "utility":
+            return UnitRole.COOLER
+        return UnitRole.EXCHANGER
+
+    def _positions(self, units: list[ExistingUnit], streams: dict) -> list[ExistingUnit]:
+        by_stream: dict[str, list[tuple[int, str]]] = {s: [] for s in streams}
+        for i, u in enumerate(units):
+            for side in ("hot", "cold"):
+                attr, column = f"{side}_position", f"{side}_order"
+                name = getattr(u, side)
+                if name in streams:
+                    by_stream[name].append((i, side))
+                elif getattr(u, attr) is not None:
+                    raise InputError(f"unit '{u.name}': {column} {getattr(u, attr)} is given for utility "
+                                     f"'{name}'; positions apply to process streams only (leave it empty)",
+                                     row=u.row, column=column)
+        units = list(units)
+        for stream, members in by_stream.items():
+            if not members:
+                continue
+            given = [(i, side, getattr(units[i], f"{side}_position")) for i, side in members]
+            missing = [(i, side) for i, side, p in given if p is None]
+            if missing and len(missing) < len(given):
+                i, side = missing[0]
+                raise InputError(f"unit '{units[i].name}' has no {side}_order on stream '{stream}' while other "
+                                 f"units of that stream have one; give positions for every unit of a stream "
+                                 "or for none", row=units[i].row, column=f"{side}_order")
+            if missing:
+                for k, (i, side) in enumerate(members, start=1):
+                    units[i] = replace(units[i], **{f"{side}_position": k})
+                continue
+            n = len(given)
+            taken: dict[int, int] = {}
+            for i, side, p in given:
+                if p in taken:
+                    raise InputError(f"units '{units[taken[p]].name}' and '{units[i].name}' both take position {p} "
+                                     f"on stream '{stream}'; positions along a stream must differ (stream splits "
+                                     "are not supported)", row=units[i].row, column=f"{side}_order")
+                taken[p] = i
+            for i, side, p in given:
+                if p > n:
+                    gaps = sorted(set(range(1, n + 1)) - set(taken))
+                    raise InputError(f"unit '{units[i].name}': position {p} on stream '{stream}', which has {n} "
+                                     f"unit(s); positions must run 1 to {n} without gaps (missing: "
+                                     f"{', '.join(map(str, gaps))})", row=units[i].row, column=f"{side}_order")
+        return units
+
+    def _coefficient(self, unit: ExistingUnit, streams: dict, utilities: dict) -> ExistingUnit:
+        if unit.u is not None:
+            return unit
+        sides = [streams.get(unit.hot) or utilities[unit.hot], streams.get(unit.cold) or utilities[unit.cold]]
+        hs = [film_coefficient_of(x) for x in sides]
+        if all(h is not None for h in hs):
+            return replace(unit, u=float(overall_coefficient(hs[0], hs[1])), u_from_films=True)
+        return unit   # checked where U is needed
+
+    def _need_u(self, unit: ExistingUnit, why: str) -> float:
+        if unit.u is not None:
+            return unit.u
+        missing = [f"{'stream' if n in self._stream_names else 'utility'} '{n}'" for n in (unit.hot, unit.cold)
+                   if film_coefficient_of(self._side(n)) is None]
+        raise InputError(f"unit '{unit.name}' {why} but has no U and no film coefficient h for "
+                         f"{' and '.join(missing)}: give U [kW/(m²·K)] in the network table or h in the "
+                         "stream/utility table", row=unit.row, column="U")
+
+    @functools.cached_property
+    def _stream_names(self) -> set[str]:
+        return {s.name for s in self.streams}
+
+    def _side(self, name: str) -> Stream | Utility:
+        for s in self.streams:
+            if s.name == name:
+                return s
+        for u in self.utilities:
+            if u.name == name:
+                return u
+        raise KeyError(name)
+
+    def _duties(self, units: list[ExistingUnit], streams: dict, utilities: dict,
+                notes: list[str]) -> list[ExistingUnit]:
+        order = {name: sorted((u for u in units if name in u.process_streams),
+                              key=lambda u, n=name: u.hot_position if u.hot == n else u.cold_position)
+                 for name in streams}
+        # stream duty of every unit, one stream at a time
+        for name, seq in order.items():
+            s = streams[name]
+            for u in seq:
+                if u.duty is not None and u.duty > s.duty * (1 + 1e-9):
+                    raise InputError(f"unit '{u.name}': stated duty {u.duty:.6g} kW is more than stream '{name}' "
+                                     f"{'gives' if s.is_hot else 'takes'} between its supply and target "
+                                     f"temperatures ({s.duty:.6g} kW)", row=u.row, column="duty")
+        # temperatures at the stated operating point: (stream, position) -> temperature after that unit
+        known: dict[tuple[str, int], float] = {}
+        for name, seq in order.items():
+            s = streams[name]
+            trim = bool(seq) and seq[-1].role is not UnitRole.EXCHANGER
+            t, walked = s.supply_temperature, 0.0
+            known[(name, 0)] = t
+            for k, u in enumerate(seq, start=1):   # from the supply end through stated duties
+                if u.duty is None:
+                    break
+                walked += u.duty
+                if trim and k < len(seq) and walked > s.duty * (1 + DUTY_CONSISTENCY):
+                    raise InputError(f"unit '{u.name}': the stated duties of the units of stream '{name}' up to "
+                                     f"this one add up to {walked:.6g} kW, more than the {s.duty:.6g} kW the "
+                                     f"stream {'gives' if s.is_hot else 'takes'} before the "
+                                     f"{seq[-1].role.value} '{seq[-1].name}' at its end", row=u.row, column="duty")
+                t = temperature_after(s, t, u.duty)
+                known[(name, k)] = t
+            if not trim:
+                continue
+            t, k = s.target_temperature, len(seq)   # from the target end, which the last heater/cooler reaches
+            while True:
+                prior = known.get((name, k))
+                if prior is None:
+                    known[(name, k)] = t
+                elif abs(heat_between(s, prior, t)) > DUTY_CONSISTENCY * s.duty:
+                    u = seq[-1]
+                    raise InputError(
+                        f"unit '{u.name}': the stated duties of the units of stream '{name}' add up to "
+                        f"{walked:.6g} kW but the stream {'gives' if s.is_hot else 'takes'} {s.duty:.6g} kW "
+                        f"between supply and target, which the {u.role.value} at its end reaches (leave this "
+                        f"unit's duty empty to let it take the rest)", row=u.row, column="duty")
+                if k == 0 or seq[k - 1].duty is None:
+                    break
+                t = temperature_after(s, t, -seq[k - 1].duty)
+                k -= 1
+        out = []
+        for u in units:
+            seq_of = {n: order[n] for n in u.process_streams}
+            last = {n: seq[-1] is u for n, seq in seq_of.items()}
+            if u.role is UnitRole.EXCHANGER:
+                mode = OperatingMode.RATED
+            elif last[u.process_streams[0]]:
+                mode = OperatingMode.TRIM
+            elif u.duty is not None:
+                mode = OperatingMode.FIXED_DUTY
+            else:
+                util = utilities[u.hot if u.role is UnitRole.HEATER else u.cold]
+                glide = util.hottest - util.coldest
+                if glide > MAX_ISOTHERMAL_GLIDE:
+                    raise InputError(f"{u.role.value} '{u.name}' is not the last unit of stream "
+                                     f"'{u.process_streams[0]}' and has no duty; give its duty (its load in "
+                                     f"operation): utility '{util.name}' changes temperature by {glide:g} K, so "
+                                     "its area alone does not fix the load", row=u.row, column="duty")
+                if glide > 0:
+                    notes.append(f"{u.role.value} '{u.name}': utility '{util.name}' ({util.supply_temperature:g} → "
+                                 f"{util.target_temperature:g} °C) rated as a constant temperature of "
+                                 f"{(util.hottest + util.coldest) / 2:g} °C")
+                mode = OperatingMode.RATED
+            u = replace(u, mode=mode)
+            temps = self._temperatures(u, known, streams, utilities)
+            if u.duty is not None and temps is not None:
+                u = self._check_duty(u, temps, streams, utilities, notes)
+            if u.area is None and mode is not OperatingMode.FIXED_DUTY and mode is not OperatingMode.TRIM:
+                if u.duty is None:
+                    raise InputError(f"unit '{u.name}' has neither area nor duty; give one of them",
+                                     row=u.row, column="area")
+                raise InputError(
+                    f"unit '{u.name}' gives a duty but no area, and its temperatures are not known without "
+                    f"simulating the network (a unit without a stated duty comes before it on "
+                    f"{' and '.join(repr(n) for n in u.process_streams)} from the supply end, and after it from "
+                    "the target end): give its area", row=u.row, column="area")
+            if u.mode is OperatingMode.RATED:
+                self._need_u(u, "is rated by its area")
+            if u.area is None and u.duty is None:
+                raise InputError(f"unit '{u.name}' has neither area nor duty; give one of them", row=u.row,
+                                 column="area")
+            if u.area is None:
+                notes.append(f"{u.role.value} '{u.name}': area unknown (its temperatures or U are not known "
+                             "from the table); it does not count in the network's area")
+            out.append(u)
+        return out
+
+    def _temperatures(self, u: ExistingUnit, known: dict, streams: dict, utilities: dict):
+        """(hot_in, hot_out, cold_in, cold_out) at the stated operating point, or None when unknown."""
+        if u.duty is None:
+            return None
+        out = []
+        for side in ("hot", "cold"):
+            name = getattr(u, side)
+            if name in utilities:
+                util = utilities[name]
+                out += [util.supply_temperature, util.target_temperature]
+                continue
+            s, k = streams[name], getattr(u, f"{side}_position")
+            t_in, t_out = known.get((name, k - 1)), known.get((name, k))
+            if t_in is None and t_out is None:
+                return None
+            if t_in is None:
+                t_in = temperature_after(s, t_out, -u.duty)
+            if t_out is None:
+                t_out = temperature_after(s, t_in, u.duty)
+            out += [t_in, t_out]
+        return tuple(out)
+
+    def _check_duty(self, u: ExistingUnit, temps, streams: dict, utilities: dict, notes: list[str]) -> ExistingUnit:
+        """Check a stated duty against the driving force; compute the area from it when needed."""
+        hot_in, hot_out, cold_in, cold_out = temps
+        hot, cold = self._side(u.hot), self._side(u.cold)
+        where = {"row": u.row, "column": "duty"}
+        sides = f"hot {hot_in:.4g} → {hot_out:.4g} °C, cold {cold_in:.4g} → {cold_out:.4g} °C"
+        if u.role is UnitRole.EXCHANGER:
+            ch, cc = u.duty / (hot_in - hot_out), u.duty / (cold_out - cold_in)
+            cmin, cmax = min(ch, cc), max(ch, cc)
+            if not hot_in > cold_in:
+                raise InputError(f"unit '{u.name}' cannot do its stated duty {u.duty:.6g} kW: its hot inlet "
+                                 f"({hot_in:.4g} °C) is not above its cold inlet ({cold_in:.4g} °C)", **where)
+            eps = u.duty / (cmin * (hot_in - cold_in))
+            top = float(max_effectiveness(cmin / cmax, u.arrangement, shells=u.shells))
+            approach = _min_approach(hot, cold, hot_in, hot_out, cold_in, cold_out)
+            if not eps < top or (u.arrangement is not FlowArrangement.SHELL_AND_TUBE_1_2 and not approach > 0):
+                raise InputError(f"unit '{u.name}' cannot do its stated duty {u.duty:.6g} kW: the driving force "
+                                 f"allows less ({sides}; effectiveness {eps:.4g}, the {u.arrangement.value} "
+                                 f"limit is {top:.4g})", **where)
+            if u.area is None:
+                uu = self._need_u(u, "needs an area from its stated duty")
+                ntu = float(ntu_from_effectiveness(eps, cmin / cmax, u.arrangement, shells=u.shells))
+                u = replace(u, area=ntu * cmin / uu, area_from_duty=True)
+                if any(len(x.segments) > 1 for x in (hot, cold)):
+                    notes.append(f"exchanger '{u.name}': area from its stated duty by ε-NTU with each stream's "
+                                 "mean CP over the unit (streams of several segments)")
+            return u
+        # heater or cooler: a counter-current match with the utility running between its two temperatures
+        util = hot if u.role is UnitRole.HEATER else cold
+        stream = cold if u.role is UnitRole.HEATER else hot
+        t_in, t_out = (cold_in, cold_out) if u.role is UnitRole.HEATER else (hot_in, hot_out)
+        u_side = [util.supply_temperature, util.target_temperature]
+        if u_side[0] == u_side[1]:
+            u_side[1] += -ISOTHERMAL_GLIDE if util.is_hot else ISOTHERMAL_GLIDE
+        u_seg = [Segment(u_side[0], u_side[1], u.duty / abs(u_side[0] - u_side[1]))]
+        lo, hi = sorted((stream.supply_temperature, stream.target_temperature))
+        inside = lo - 1e-9 <= min(t_in, t_out) and max(t_in, t_out) <= hi + 1e-9
+        s_seg = _cut(stream, t_in, t_out) if inside else [Segment(t_in, t_out, u.duty / abs(t_out - t_in))]
+        hot_segs, cold_segs = (u_seg, s_seg) if u.role is UnitRole.HEATER else (s_seg, u_seg)
+        uu = u.u if u.u is not None else 1.0
+        try:
+            sized = size_segments(hot_segs, cold_segs, u=uu, rel_tol=1e-6)
+        except TemperatureCrossError:
+            raise InputError(f"{u.role.value} '{u.name}' cannot do its stated duty {u.duty:.6g} kW: utility "
+                             f"'{util.name}' ({util.supply_temperature:g} → {util.target_temperature:g} °C) has no "
+                             f"driving force against stream '{stream.name}' at {t_in:.4g} → {t_out:.4g} °C",
+                             **where) from None
+        if u.area is None and u.u is not None:
+            u = replace(u, area=sized.area, area_from_duty=True)
+        return u
+
+    # -- queries --------------------------------------------------------------------------------
+
+    def unit(self, name: str) -> ExistingUnit:
+        """The unit of that name (KeyError if none)."""
+        for u in self.units:
+            if u.name == name:
+                return u
+        raise KeyError(name)
+
+    def stream(self, name: str) -> Stream:
+        """The process stream of that name (KeyError if none)."""
+        return self.streams[name]
+
+    def utility(self, name: str) -> Utility:
+        """The utility of that name (KeyError if none)."""
+        for u in self.utilities:
+            if u.name == name:
+                return u
+        raise KeyError(name)
+
+    def on_stream(self, name: str) -> tuple[ExistingUnit, ...]:
+        """The units along a process stream, from its supply end."""
+        seq = [u for u in self.units if name in u.process_streams]
+        return tuple(sorted(seq, key=lambda u: u.hot_position if u.hot == name else u.cold_position))
+
+    @property
+    def exchangers(self) -> tuple[ExistingUnit, ...]:
+        return tuple(u for u in self.units if u.role is UnitRole.EXCHANGER)
+
+    @property
+    def heaters(self) -> tuple[ExistingUnit, ...]:
+        return tuple(u for u in self.units if u.role is UnitRole.HEATER)
+
+    @property
+    def coolers(self) -> tuple[ExistingUnit, ...]:
+        return tuple(u for u in self.units if u.role is UnitRole.COOLER)
+
+    @property
+    def total_area(self) -> float | None:
+        """Area of every unit [m²]; None when any unit's area is unknown."""
+        if any(u.area is None for u in self.units):
+            return None
+        return float(sum(u.area for u in self.units))
+
+    def graph(self):
+        """The network as a :class:`networkx.MultiGraph`: one node per process stream and per utility used
+        (attribute ``kind``: ``"hot"``/``"cold"`` stream or ``"hot utility"``/``"cold utility"``), one edge
+        per unit (key = unit name)."""
+        import networkx as nx
+
+        g = nx.MultiGraph()
+        for s in self.streams:
+            g.add_node(s.name, kind="hot" if s.is_hot else "cold")
+        for u in self.units:
+            for side in ("hot", "cold"):
+                name = getattr(u, side)
+                if name not in g:
+                    g.add_node(name, kind=f"{side} utility")
+            g.add_edge(u.hot, u.cold, key=u.name, role=u.role.value)
+        return g
+
+    def loops(self) -> list[list[str]]:
+        """Independent loops of the network (units around each), utilities counted as nodes.
+
+        A loop is a closed path of units through streams (two units between the same pair already make
+        one); heat can be shifted around it without changing any utility (Linnhoff & Hindmarsh 1983,
+        Chem. Eng. Sci. 38(5), 745-763).  Their number is units − nodes + separate components.
+        """
+        import networkx as nx
+
+        g = nx.Graph()
+        for u in self.units:   # subdivide every unit edge so parallel units make a cycle of a simple graph
+            g.add_edge(("side", u.hot), ("unit", u.name))
+            g.add_edge(("unit", u.name), ("side", u.cold))
+        return [[n[1] for n in cycle if n[0] == "unit"] for cycle in nx.cycle_basis(g)]
+
+    def grid_positions(self) -> tuple[dict[str, int], list[list[str]]]:
+        """Left-to-right column of every unit on a grid diagram, and the cycles that prevent a single order.
+
+        On a grid diagram hot streams run left to right and cold streams right to left, so along every
+        stream the unit met first from its supply end must be further left (hot) or further right (cold).
+        Those precedences form a directed graph; when it has cycles (a perfectly feasible network whose
+        units meet the streams in crossing orders) no single left-to-right order exists: the cycles are
+        returned (unit names) and the precedences of cold streams that close them are dropped.
+        """
+        import networkx as nx
+
+        g = nx.DiGraph()
+        g.add_nodes_from(u.name for u in self.units)
+        hot_edges, cold_edges = [], []
+        for s in self.streams:
+            seq = [u.name for u in self.on_stream(s.name)]
+            pairs = list(zip(seq, seq[1:]))
+            if s.is_hot:
+                hot_edges += pairs
+            else:
+                cold_edges += [(b, a) for a, b in pairs]
+        g.add_edges_from(hot_edges)
+        cycles: list[list[str]] = []
+        for a, b in cold_edges:
+            g.add_edge(a, b)
+            if not nx.is_directed_acyclic_graph(g):
+                cycle = nx.find_cycle(g, source=a)
+                cycles.append([e[0] for e in cycle])
+                g.remove_edge(a, b)
+        if not nx.is_directed_acyclic_graph(g):   # hot precedences alone cannot cycle; kept as a guard
+            raise AssertionError("hot-stream precedences form a cycle")
+        column: dict[str, int] = {}
+        for n in nx.topological_sort(g):
+            column[n] = max((column[p] + 1 for p in g.predecessors(n)), default=0)
+        return column, cycles
+
+    # -- changes (for retrofit) -----------------------------------------------------------------
+
+    def with_units(self, units: Sequence[ExistingUnit], *, note: str | None = None) -> ExistingNetwork:
+        """A new network with these units (checked and completed again), same streams and utilities."""
+        notes = tuple(n for n in self.notes) + ((note,) if note else ())
+        return ExistingNetwork(self.streams, tuple(units), self.utilities, self.source, notes)
+
+    def with_changes(self, name: str, **changes) -> ExistingNetwork:
+        """A new network where unit ``name`` has other field values (e.g. ``area=...``).
+
+        Examples
+        --------
+        >>> from heatloom.model import StreamTable, Utility
+        >>> s = StreamTable.from_arrays(["H1", "C1"], [150, 30], [60, 120], [2.0, 2.5])
+        >>> u = [Utility("steam", 180, 179, 100.0), Utility("water", 20, 30, 10.0)]
+        >>> net = ExistingNetwork(s, [ExistingUnit("E1", "H1", "C1", area=2.0, u=0.5),
+        ...                           ExistingUnit("H1", "steam", "C1", duty=100.0),
+        ...                           ExistingUnit("C1", "H1", "water", duty=100.0)], u)
+        >>> net.with_changes("E1", area=3.0).unit("E1").area
+        3.0
+        """
+        self.unit(name)
+        return self.with_units([replace(u, **changes) if u.name == name else u for u in self.units])
+
+    def with_unit(self, unit: ExistingUnit) -> ExistingNetwork:
+        """A new network with one more unit inserted at its given positions (later units move down one).
+
+        ``unit.hot_position``/``cold_position`` say where it goes on its process streams (1 = first from the
+        supply end); None puts it last.
+        """
+        units = list(self.units)
+        for side in ("hot", "cold"):
+            stream = getattr(unit, side)
+            if stream not in self._stream_names:
+                continue
+            n = len(self.on_stream(stream))
+            p = getattr(unit, f"{side}_position")
+            if p is None or p > n:
+                unit = replace(unit, **{f"{side}_position": n + 1})
+                continue
+            for i, u in enumerate(units):
+                for s2 in ("hot", "cold"):
+                    if getattr(u, s2) == stream and getattr(u, f"{s2}_position") >= p:
+                        units[i] = replace(units[i], **{f"{s2}_position": getattr(units[i], f"{s2}_position") + 1})
+        return self.with_units(units + [unit])
+
+    @classmethod
+    def from_network(cls, network, streams: StreamTable, utilities: Sequence[Utility] = (), *,
+                     source: str | None = None) -> ExistingNetwork:
+        """The existing-network form of a designed :class:`heatloom.network.Network`.
+
+        Units are named ``E1``..., ``H1``..., ``C1``... in the design's order and carry its areas, U values
+        and duties; their order along every stream follows the design's temperatures.
+
+        Raises
+        ------
+        InputError
+            If the design splits a stream (splits are not represented here) or a unit has no area.
+        """
+        units = []
+        for prefix, group in (("E", network.exchangers), ("H", network.heaters), ("C", network.coolers)):
+            for k, x in enumerate(group, start=1):
+                name = f"{prefix}{k}"
+                fractions = [getattr(x, a) for a in ("hot_fraction", "cold_fraction") if hasattr(x, a)]
+                if any(abs(f - 1.0) > 1e-9 for f in fractions):
+                    raise InputError(f"unit {name} ({_pair(x)}) sits on a split branch; stream splits are not "
+                                     "represented in an existing network")
+                if x.area is None:
+                    raise InputError(f"unit {name} ({_pair(x)}) has no area")
+                hot = getattr(x, "hot", None) or x.utility
+                cold = getattr(x, "cold", None) or x.utility
+                units.append((ExistingUnit(name, hot, cold, area=x.area, duty=x.duty, u=x.u), x))
+        positions: dict[str, dict[str, int]] = {}
+        for s in streams:
+            on = [(u, x) for u, x in units if s.name in (u.hot, u.cold)]
+            key = (lambda p: -p[1].hot_in) if s.is_hot else (lambda p: p[1].cold_in)
+            for k, (u, _) in enumerate(sorted(on, key=key), start=1):
+                positions.setdefault(u.name, {})["hot_position" if s.is_hot else "cold_position"] = k
+        done = [replace(u, **positions.get(u.name, {})) for u, _ in units]
+        return cls(streams, tuple(done), tuple(utilities), source,
+                   ("built from a heatloom design: areas, U and duties of the design",))
+
+    # -- output ---------------------------------------------------------------------------------
+
+    def to_dict(self) -> dict:
+        return {"source": self.source, "units": [u.to_dict() for u in self.units], "total_area": self.total_area,
+                "notes": list(self.notes)}
+
+    def to_frame(self):
+        """One row per unit, canonical units in the headers."""
+        import pandas as pd
+
+        return pd.DataFrame([{"unit": u.name, "role": u.role.value, "mode": u.mode.value, "hot": u.hot,
+                              "cold": u.cold, "hot_order": u.hot_position, "cold_order": u.cold_position,
+                              "area [m²]": u.area, "duty [kW]": u.duty, "U [kW/m²K]": u.u,
+                              "type": u.arrangement.value, "shells": u.shells} for u in self.units])
+
+
+def _pair(x) -> str:
+    hot = getattr(x, "hot", None) or getattr(x, "utility", "?")
+    cold = getattr(x, "cold", None) or getattr(x, "utility", "?")
+    return f"{hot} → {cold}"
+
+
+def _cut(stream: Stream, t_in: float, t_out: float) -> list[Segment]:
+    """The part of a stream between two temperatures inside its range, as segments."""
+    from ..equipment.segments import cut_profile
+
+    return list(cut_profile(stream.segments, t_in, t_out))

@@ -1,0 +1,579 @@
+"""Simulation of an existing network at fixed areas: every unit's duty and temperatures, the utilities used.
+
+:func:`simulate` rates an :class:`~heatloom.retrofit.existing.ExistingNetwork` as it stands.  Every process
+stream passes its units in order from its supply end; an exchanger of fixed area and U transfers, by
+ε-NTU,
+
+.. math:: Q = \\varepsilon(NTU, C_r)\\,C_{min}\\,(T_{h,in} - T_{c,in}),\\quad
+          T_{h,out} = T_{h,in} - Q/C_h,\\quad T_{c,out} = T_{c,in} + Q/C_c,
+
+which is *linear in the inlet temperatures* for fixed heat capacity flows.  So is every other unit: a
+trim heater or cooler fixes its outlet at the stream's target, a fixed-duty one shifts its outlet by
+Q/C, an ε-NTU-rated one against an isothermal utility gives T_out = T_in + ε(T_u − T_in).  Units join the
+streams both ways (loops included), so the whole network is one linear system A·T = b in the unknown
+temperatures between units; it is built and solved exactly with numpy.  Heaters and coolers at the end of
+their streams then take what is left (their duty may come out negative: reported, not hidden).
+
+Streams of several segments (phase change, varying CP): each unit is rated with the stream's mean CP over
+the temperature range the stream actually covers in that unit (the secant of its enthalpy curve).  These
+CPs come from a fixed-point iteration with one linear solve per pass: the first pass takes each stream's
+mean CP over its whole range; each later pass gives every unit the secant CPs that agree with its own
+rating at its present inlet temperatures (a one-dimensional root, brentq), then solves the network again,
+until no temperature moves.  The energy balances are then exact; the ε-NTU relation itself is approximate
+where a segment break falls inside a unit (the result's notes say so).
+
+References
+----------
+Incropera, F.P., DeWitt, D.P., Bergman, T.L., Lavine, A.S. (2007) Fundamentals of Heat and Mass Transfer,
+6th ed., Wiley, Table 11.3 (ε-NTU relations, via :mod:`heatloom.equipment.rating`).
+
+Results are screening estimates: check them against plant measurements, and any change against local codes
+with qualified, licensed engineers.
+"""
+
+from __future__ import annotations
+
+from dataclasses import asdict, dataclass
+
+import numpy as np
+from scipy.optimize import brentq
+
+from ..equipment.rating import effectiveness_from_ntu
+from ..equipment.sizing import FlowArrangement
+from ..errors import InputError, SolverError
+from ..pinch import target
+from .existing import (
+    ExistingNetwork,
+    ExistingUnit,
+    OperatingMode,
+    UnitRole,
+    _min_approach,
+    _secant_cp,
+    heat_between,
+    temperature_after,
+)
+
+__all__ = ["UnitState", "Simulation", "simulate"]
+
+
+@dataclass(frozen=True)
+class UnitState:
+    """One unit as it runs in the simulated network.
+
+    Attributes
+    ----------
+    name : str
+    role : UnitRole
+    mode : OperatingMode
+        Rated by ε-NTU, trim (brings its stream to target) or fixed duty.
+    hot, cold : str
+        Hot and cold side (stream or utility names).
+    duty : float
+        [kW]; negative for an exchanger that moves heat from the cold to the hot side, or a trim unit that
+        would have to work backwards (both listed in :attr:`Simulation.problems`).
+    hot_in, hot_out, cold_in, cold_out : float
+        [°C]; on a utility side the utility's supply and target temperatures.
+    area : float or None
+        [m²]
+    u : float or None
+        [kW/(m²·K)]
+    effectiveness, ntu : float or None
+        ε and NTU [-] of a rated unit (NTU on C_min).
+    min_approach : float
+        Smallest hot − cold difference along the unit, counter-current pairing, ends and inner segment
+        breaks [K].
+    stated_duty : float or None
+        The duty the network table states [kW], for comparison.
+    """
+
+    name: str
+    role: UnitRole
+    mode: OperatingMode
+    hot: str
+    cold: str
+    duty: float
+    hot_in: float
+    hot_out: float
+    cold_in: float
+    cold_out: float
+    area: float | None
+    u: float | None
+    effectiveness: float | None
+    ntu: float | None
+    min_approach: float
+    stated_duty: float | None
+
+    def to_dict(self) -> dict:
+        d = asdict(self)
+        d["role"], d["mode"] = self.role.value, self.mode.value
+        return d
+
+
+@dataclass(frozen=True, eq=False)
+class Simulation:
+    """The simulated state of an existing network (see :func:`simulate`).
+
+    Attributes
+    ----------
+    network : ExistingNetwork
+    units : tuple of UnitState
+        In the network's unit order.
+    temperatures : dict
+        Process stream name → temperatures from its supply end, after each of its units in order [°C].
+    shortfalls : dict
+        Process stream name → heat still to remove (hot) or add (cold) to reach its target after its last
+        unit [kW]; zero for a stream ending with a heater or cooler, negative when it overshoots.
+    utility_duties : dict
+        Utility name → duty [kW] (sum over its units).
+    dt_min : float or None
+        ΔTmin of the targets compared with [K].
+    hot_utility_target, cold_utility_target : float or None
+        Minimum utilities at ``dt_min`` by the problem table algorithm [kW].
+    problems : tuple of str
+        What does not work in this network, in words (overshoots, reversed units, negative trim duties,
+        streams missing their targets, utilities without driving force).
+    notes : tuple of str
+        Assumptions and approximations in force.
+    iterations : int
+        Linear solves done (1 when every stream has one segment).
+    """
+
+    network: ExistingNetwork
+    units: tuple[UnitState, ...]
+    temperatures: dict[str, tuple[float, ...]]
+    shortfalls: dict[str, float]
+    utility_duties: dict[str, float]
+    dt_min: float | None
+    hot_utility_target: float | None
+    cold_utility_target: float | None
+    problems: tuple[str, ...]
+    notes: tuple[str, ...]
+    iterations: int
+
+    def unit(self, name: str) -> UnitState:
+        """The state of the unit of that name (KeyError if none)."""
+        for u in self.units:
+            if u.name == name:
+                return u
+        raise KeyError(name)
+
+    @property
+    def hot_utility(self) -> float:
+        """Total duty of the heaters [kW]."""
+        return float(sum(u.duty for u in self.units if u.role is UnitRole.HEATER))
+
+    @property
+    def cold_utility(self) -> float:
+        """Total duty of the coolers [kW]."""
+        return float(sum(u.duty for u in self.units if u.role is UnitRole.COOLER))
+
+    @property
+    def heat_recovery(self) -> float:
+        """Total duty of the process-to-process exchangers [kW]."""
+        return float(sum(u.duty for u in self.units if u.role is UnitRole.EXCHANGER))
+
+    @property
+    def hot_utility_excess(self) -> float | None:
+        """Hot utility above the target at ``dt_min`` [kW]."""
+        return None if self.hot_utility_target is None else self.hot_utility - self.hot_utility_target
+
+    @property
+    def cold_utility_excess(self) -> float | None:
+        """Cold utility above the target at ``dt_min`` [kW]."""
+        return None if self.cold_utility_target is None else self.cold_utility - self.cold_utility_target
+
+    @property
+    def ok(self) -> bool:
+        """True when no problem was found."""
+        return not self.problems
+
+    def outlet_temperature(self, stream: str) -> float:
+        """Temperature at which a process stream leaves the network [°C]."""
+        return self.temperatures[stream][-1]
+
+    def to_dict(self) -> dict:
+        return {
+            "units": [u.to_dict() for u in self.units],
+            "hot_utility": self.hot_utility,
+            "cold_utility": self.cold_utility,
+            "heat_recovery": self.heat_recovery,
+            "utilities": dict(self.utility_duties),
+            "dtmin": self.dt_min,
+            "hot_utility_target": self.hot_utility_target,
+            "cold_utility_target": self.cold_utility_target,
+            "hot_utility_excess": self.hot_utility_excess,
+            "cold_utility_excess": self.cold_utility_excess,
+            "streams": {name: {"temperatures": list(t), "shortfall": self.shortfalls[name]}
+                        for name, t in self.temperatures.items()},
+            "problems": list(self.problems),
+            "notes": list(self.notes),
+            "units_of_measure": {"temperature": "°C", "duty": "kW", "area": "m²", "U": "kW/(m²·K)"},
+        }
+
+    def to_frame(self):
+        """One row per unit, canonical units in the headers."""
+        import pandas as pd
+
+        return pd.DataFrame([{"unit": u.name, "role": u.role.value, "mode": u.mode.value, "hot": u.hot,
+                              "cold": u.cold, "duty [kW]": u.duty, "stated duty [kW]": u.stated_duty,
+                              "hot in [°C]": u.hot_in, "hot out [°C]": u.hot_out, "cold in [°C]": u.cold_in,
+                              "cold out [°C]": u.cold_out, "area [m²]": u.area, "U [kW/m²K]": u.u,
+                              "effectiveness [-]": u.effectiveness, "NTU [-]": u.ntu,
+                              "min approach [K]": u.min_approach} for u in self.units])
+
+    def to_network(self):
+        """The simulated state as a :class:`heatloom.network.Network` (for grid diagrams and checks).
+
+        Units keep their grid column as ``stage``; ``dt_min`` is the simulation's (0 when none was given).
+        """
+        from ..network.structure import Cooler, Exchanger, Heater, Network
+
+        column, _ = self.network.grid_positions()
+        ex, he, co = [], [], []
+        for u in self.units:
+            common = {"duty": u.duty, "area": u.area, "u": u.u, "stage": column[u.name], "region": "whole"}
+            if u.role is UnitRole.EXCHANGER:
+                shells = self.network.unit(u.name).shells
+                ex.append(Exchanger(u.hot, u.cold, hot_in=u.hot_in, hot_out=u.hot_out, cold_in=u.cold_in,
+                                    cold_out=u.cold_out, shells=shells, **common))
+            elif u.role is UnitRole.HEATER:
+                he.append(Heater(u.cold, u.hot, cold_in=u.cold_in, cold_out=u.cold_out, utility_in=u.hot_in,
+                                 utility_out=u.hot_out, **common))
+            else:
+                co.append(Cooler(u.hot, u.cold, hot_in=u.hot_in, hot_out=u.hot_out, utility_in=u.cold_in,
+                                 utility_out=u.cold_out, **common))
+        return Network(tuple(ex), tuple(he), tuple(co), 0.0 if self.dt_min is None else self.dt_min,
+                       notes=self.notes + self.problems)
+
+
+# --------------------------------------------------------------------------------------------------
+
+
+def _utility_temperature(unit: ExistingUnit, network: ExistingNetwork) -> float:
+    util = network.utility(unit.hot if unit.role is UnitRole.HEATER else unit.cold)
+    return 0.5 * (util.supply_temperature + util.target_temperature)
+
+
+def _root(residual, edge: float) -> float:
+    """Root of a unit's duty residual between 0 and the duty that closes its driving force (``edge``).
+
+    The residual changes sign there whenever ε < 1; when rounding makes ε = 1 (huge NTU) the edge itself is
+    the answer."""
+    r0, r1 = residual(0.0), residual(edge)
+    if r0 == 0 or edge == 0:
+        return 0.0
+    if r0 * r1 > 0:
+        return edge if abs(r1) <= abs(r0) else 0.0
+    return brentq(residual, 0.0, edge, xtol=1e-12 * max(1.0, abs(edge)), rtol=1e-13)
+
+
+def _unit_cps(network: ExistingNetwork, u: ExistingUnit, streams: dict, inlets: dict) -> dict[str, float]:
+    """Mean CPs of the process sides of a unit over the ranges they cover when the unit works at these
+    inlet temperatures: the duty Q solves Q = ε(C_h(Q), C_c(Q))·C_min·ΔT_in (brentq), each C the secant of
+    its stream's enthalpy curve between inlet and outlet."""
+    if u.role is UnitRole.EXCHANGER:
+        hot, cold = streams[u.hot], streams[u.cold]
+        th, tc = inlets["hot"], inlets["cold"]
+        if len(hot.segments) == 1 and len(cold.segments) == 1:
+            return {}
+        dt = th - tc
+
+        def cps(q):
+            return (_secant_cp(hot, th, temperature_after(hot, th, q)),
+                    _secant_cp(cold, tc, temperature_after(cold, tc, q)))
+
+        def residual(q):
+            ch, cc = cps(q)
+            cmin, cmax = min(ch, cc), max(ch, cc)
+            eps = float(effectiveness_from_ntu(u.u * u.area / cmin, cmin / cmax, u.arrangement, shells=u.shells))
+            return q - eps * cmin * dt
+
+        if dt == 0:
+            ch, cc = cps(0.0)
+        else:
+            bounds = (heat_between(hot, th, tc), heat_between(cold, tc, th))
+            edge = min(bounds) if dt > 0 else max(bounds)
+            ch, cc = cps(_root(residual, edge))
+        return {"hot": ch, "cold": cc}
+    side = "cold" if u.role is UnitRole.HEATER else "hot"
+    stream = streams[getattr(u, side)]
+    if len(stream.segments) == 1 or u.mode is OperatingMode.TRIM:
+        return {}
+    t_in = inlets[side]
+    if u.mode is OperatingMode.FIXED_DUTY:
+        return {side: _secant_cp(stream, t_in, temperature_after(stream, t_in, u.duty))}
+    t_u = _utility_temperature(u, network)
+    drive = (t_u - t_in) if side == "cold" else (t_in - t_u)   # heat flows into the stream's direction
+
+    def residual_u(q):
+        c = _secant_cp(stream, t_in, temperature_after(stream, t_in, q))
+        return q - float(effectiveness_from_ntu(u.u * u.area / c, 0.0)) * c * drive
+
+    if drive == 0:
+        return {side: _secant_cp(stream, t_in, t_in)}
+    q = _root(residual_u, heat_between(stream, t_in, t_u))
+    return {side: _secant_cp(stream, t_in, temperature_after(stream, t_in, q))}
+
+
+def _system(network: ExistingNetwork, streams: dict, index: dict, pos: dict, cp: dict,
+            coefficient: dict) -> tuple[np.ndarray, np.ndarray]:
+    """The linear equations A·T = b of the temperatures between units, one per unit outlet on a stream.
+
+    ``coefficient`` receives (ε, NTU, ε·C_min) of every rated unit.
+    """
+    n = len(index)
+    a_mat = np.zeros((n, n))
+    b = np.zeros(n)
+
+    def term(row: int, stream: str, k: int, c: float) -> None:
+        """Add c·T(stream, k) to the left side of equation `row` (T(stream, 0) is the supply, known)."""
+        if k == 0:
+            b[row] -= c * streams[stream].supply_temperature
+        else:
+            a_mat[row, index[(stream, k)]] += c
+
+    for u in network.units:
+        if u.role is UnitRole.EXCHANGER:
+            i, j = pos[(u.name, "hot")], pos[(u.name, "cold")]
+            ch, cc = cp[(u.name, "hot")], cp[(u.name, "cold")]
+            cmin, cmax = min(ch, cc), max(ch, cc)
+            ntu = u.u * u.area / cmin
+            eps = float(effectiveness_from_ntu(ntu, cmin / cmax, u.arrangement, shells=u.shells))
+            a = eps * cmin
+            coefficient[u.name] = (eps, ntu, a)
+            rh, rc = index[(u.hot, i)], index[(u.cold, j)]
+            # T_h,out = T_h,in − (a/C_h)(T_h,in − T_c,in);  T_c,out = T_c,in + (a/C_c)(T_h,in − T_c,in)
+            term(rh, u.hot, i, 1.0)
+            term(rh, u.hot, i - 1, -(1.0 - a / ch))
+            term(rh, u.cold, j - 1, -a / ch)
+            term(rc, u.cold, j, 1.0)
+            term(rc, u.cold, j - 1, -(1.0 - a / cc))
+            term(rc, u.hot, i - 1, -a / cc)
+            continue
+        side = "cold" if u.role is UnitRole.HEATER else "hot"
+        stream = getattr(u, side)
+        k = pos[(u.name, side)]
+        row = index[(stream, k)]
+        term(row, stream, k, 1.0)
+        if u.mode is OperatingMode.TRIM:
+            b[row] += streams[stream].target_temperature
+        elif u.mode is OperatingMode.FIXED_DUTY:
+            c = cp[(u.name, side)]
+            term(row, stream, k - 1, -1.0)
+            b[row] += u.duty / c if side == "cold" else -u.duty / c
+        else:   # rated against an isothermal utility: C_r = 0, ε = 1 − exp(−NTU)
+            c = cp[(u.name, side)]
+            ntu = u.u * u.area / c
+            eps = float(effectiveness_from_ntu(ntu, 0.0, FlowArrangement.COUNTER_CURRENT))
+            coefficient[u.name] = (eps, ntu, eps * c)
+            term(row, stream, k - 1, -(1.0 - eps))
+            b[row] += eps * _utility_temperature(u, network)
+    return a_mat, b
+
+
+def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance: float = 1e-9,
+             max_iterations: int = 200) -> Simulation:
+    """Rate an existing network at its areas: duties, temperatures, utilities, distance from the targets.
+
+    Parameters
+    ----------
+    network : ExistingNetwork
+    dt_min : float, optional
+        ΔTmin [K] of the energy targets to compare with (:func:`heatloom.pinch.target`, ideal utilities);
+        no comparison when omitted.
+    tolerance : float, optional
+        Convergence of the fixed-point iteration on the mean CPs, largest temperature change between passes
+        [K]; also the tolerance of the problem checks (scaled by 10⁶ there).
+    max_iterations : int, optional
+        Linear solves allowed for streams of several segments [-].
+
+    Returns
+    -------
+    Simulation
+
+    Raises
+    ------
+    SolverError
+        The linear system is singular, or the iteration on the mean CPs of segmented streams does not
+        settle within ``max_iterations``.
+    InputError
+        ``dt_min`` negative or not a number.
+
+    Notes
+    -----
+    Modes of the units are set by :class:`~heatloom.retrofit.existing.ExistingNetwork`: exchangers are rated
+    at their area and U; the last heater or cooler of a stream is a trim unit that brings the stream to its
+    target; a heater or cooler inside a stream keeps its stated duty, or is rated against an isothermal
+    utility.  A stream that ends with a process exchanger leaves wherever that exchanger puts it (its
+    shortfall is reported).  Co-current and 1-2 shell units are rated by their own ε-NTU relations; their
+    ``min_approach`` is still the counter-current pairing of their end temperatures (for 1-2 shells a
+    negative value is a temperature cross, which those shells can hold within the F-factor limits).
+
+    Examples
+    --------
+    One exchanger of 2.671 m² (U 0.5 kW/(m²·K)) between H1 (150 → 60 °C, 2 kW/K) and C1 (30 → 120 °C,
+    2.5 kW/K), a trim heater and a trim cooler; the exchanger transfers the 100 kW it was sized for.
+
+    >>> from heatloom.model import StreamTable, Utility
+    >>> from heatloom.retrofit.existing import ExistingNetwork, ExistingUnit
+    >>> s = StreamTable.from_arrays(["H1", "C1"], [150, 30], [60, 120], [2.0, 2.5])
+    >>> u = [Utility("steam", 180, 179, 100.0), Utility("water", 20, 30, 10.0)]
+    >>> net = ExistingNetwork(s, [ExistingUnit("E1", "H1", "C1", area=2.67054, u=0.5),
+    ...                           ExistingUnit("H1", "steam", "C1", duty=125.0),
+    ...                           ExistingUnit("C1", "H1", "water", duty=80.0)], u)
+    >>> sim = simulate(net, 10)
+    >>> round(sim.unit("E1").duty, 1), round(sim.hot_utility, 1), round(sim.cold_utility, 1)
+    (100.0, 125.0, 80.0)
+    >>> sim.hot_utility_target, sim.hot_utility_excess > 0
+    (45.0, True)
+    """
+    if dt_min is not None:
+        try:
+            dt = float(dt_min)
+        except (TypeError, ValueError):
+            raise InputError(f"ΔTmin must be a number of kelvin, got {dt_min!r}") from None
+        if not dt >= 0 or not np.isfinite(dt):
+            raise InputError(f"ΔTmin must be a finite number >= 0 K, got {dt_min!r}")
+        dt_min = dt
+    streams = {s.name: s for s in network.streams}
+    seqs = {name: network.on_stream(name) for name in streams}
+    index: dict[tuple[str, int], int] = {}
+    for name, seq in seqs.items():
+        for k in range(1, len(seq) + 1):
+            index[(name, k)] = len(index)
+    n = len(index)
+    units = network.units
+    pos = {}   # (unit, side) -> position on its process stream
+    for u in units:
+        for side in ("hot", "cold"):
+            if getattr(u, side) in streams:
+                pos[(u.name, side)] = getattr(u, f"{side}_position")
+    segmented = any(len(s.segments) > 1 for s in network.streams)
+    cp = {key: streams[getattr(network.unit(key[0]), key[1])].duty
+          / abs(streams[getattr(network.unit(key[0]), key[1])].supply_temperature
+                - streams[getattr(network.unit(key[0]), key[1])].target_temperature) for key in pos}
+
+    def temperature_of(temps: np.ndarray, stream: str, k: int) -> float:
+        return streams[stream].supply_temperature if k == 0 else float(temps[index[(stream, k)]])
+
+    temps = np.zeros(n)
+    iterations = 0
+    coefficient: dict[str, tuple[float, float, float]] = {}   # unit -> (eps, ntu, eps·C_min)
+    for iterations in range(1, max_iterations + 1):
+        a_mat, b = _system(network, streams, index, pos, cp, coefficient)
+        try:
+            new = np.linalg.solve(a_mat, b) if n else np.zeros(0)
+        except np.linalg.LinAlgError:
+            raise SolverError("the network's temperature equations are singular; check for units of zero "
+                              "heat capacity flow or a loop of units that transfer no heat") from None
+        if not np.all(np.isfinite(new)):
+            raise SolverError("the network's temperature equations gave non-finite temperatures")
+        change = float(np.max(np.abs(new - temps))) if n else 0.0
+        temps = new
+        if not segmented:
+            break
+        # mean CP of each stream over the range it covers in each unit (secant of its enthalpy curve), made
+        # consistent with the unit's own rating at its present inlet temperatures
+        relax = 1.0 if iterations < 50 else 0.5
+        for u in units:
+            inlets = {side: temperature_of(temps, getattr(u, side), pos[(u.name, side)] - 1)
+                      for side in ("hot", "cold") if (u.name, side) in pos}
+            for side, value in _unit_cps(network, u, streams, inlets).items():
+                cp[(u.name, side)] = (1 - relax) * cp[(u.name, side)] + relax * value
+        if iterations > 1 and change <= tolerance:
+            break
+    else:
+        raise SolverError(f"the mean heat capacity flows of the segmented streams did not settle in "
+                          f"{max_iterations} passes (last temperature change {change:.3g} K)")
+
+    check = 1e6 * tolerance
+    problems: list[str] = []
+    states = []
+    duties: dict[str, float] = {}
+    for u in units:
+        side_temps = {}
+        for side in ("hot", "cold"):
+            name = getattr(u, side)
+            if name in streams:
+                k = pos[(u.name, side)]
+                side_temps[side] = (temperature_of(temps, name, k - 1), temperature_of(temps, name, k))
+            else:
+                util = network.utility(name)
+                side_temps[side] = (util.supply_temperature, util.target_temperature)
+        (hi, ho), (ci, co) = side_temps["hot"], side_temps["cold"]
+        eps = ntu = None
+        if u.role is UnitRole.EXCHANGER:
+            eps, ntu, a = coefficient[u.name]
+            q = a * (hi - ci)
+            if q < -check:
+                problems.append(f"exchanger '{u.name}' moves {-q:.4g} kW from the cold side to the hot side: "
+                                f"'{u.hot}' enters at {hi:.4g} °C, below '{u.cold}' at {ci:.4g} °C")
+        else:
+            side = "cold" if u.role is UnitRole.HEATER else "hot"
+            stream = streams[getattr(u, side)]
+            t_in, t_out = side_temps[side]
+            if u.mode is OperatingMode.FIXED_DUTY:
+                q = u.duty
+            else:
+                q = heat_between(stream, t_in, t_out)
+                if u.mode is OperatingMode.RATED:
+                    eps, ntu, _ = coefficient[u.name]
+            if u.mode is OperatingMode.TRIM and q < -check:
+                direction = "above" if u.role is UnitRole.HEATER else "below"
+                problems.append(f"{u.role.value} '{u.name}' would need {q:.4g} kW: stream '{stream.name}' "
+                                f"reaches it at {t_in:.4g} °C, already {direction} its target "
+                                f"{stream.target_temperature:.4g} °C")
+            duties[getattr(u, "hot" if u.role is UnitRole.HEATER else "cold")] = \
+                duties.get(getattr(u, "hot" if u.role is UnitRole.HEATER else "cold"), 0.0) + q
+        approach = _min_approach(network._side(u.hot), network._side(u.cold), hi, ho, ci, co) \
+            if abs(q) > check else min(hi - co, ho - ci)
+        if u.role is not UnitRole.EXCHANGER and abs(q) > check and not approach > 0:
+            util, proc = (u.hot, u.cold) if u.role is UnitRole.HEATER else (u.cold, u.hot)
+            problems.append(f"{u.role.value} '{u.name}': utility '{util}' has no driving force against stream "
+                            f"'{proc}' (smallest difference {approach:.4g} K); it cannot do its "
+                            f"{q:.4g} kW")
+        states.append(UnitState(u.name, u.role, u.mode, u.hot, u.cold, float(q), hi, ho, ci, co, u.area, u.u,
+                                eps, ntu, float(approach), u.duty))
+
+    temperatures: dict[str, tuple[float, ...]] = {}
+    shortfalls: dict[str, float] = {}
+    for name, seq in seqs.items():
+        s = streams[name]
+        path = tuple(temperature_of(temps, name, k) for k in range(len(seq) + 1))
+        temperatures[name] = path
+        for k, u in enumerate(seq, start=1):
+            if u.mode is OperatingMode.TRIM:
+                continue
+            past = heat_between(s, s.target_temperature, path[k])
+            if past > check:
+                problems.append(f"unit '{u.name}' takes stream '{name}' past its target: it leaves at "
+                                f"{path[k]:.4g} °C, target {s.target_temperature:.4g} °C ({past:.4g} kW too much)")
+        short = heat_between(s, path[-1], s.target_temperature)
+        shortfalls[name] = 0.0 if seq and seq[-1].mode is OperatingMode.TRIM else short
+        if abs(shortfalls[name]) > check:
+            more = "more cooling" if s.is_hot else "more heating"
+            why = "it has no units" if not seq else f"it ends with exchanger '{seq[-1].name}', not a " \
+                f"{'cooler' if s.is_hot else 'heater'}"
+            if short > 0:
+                problems.append(f"stream '{name}' leaves the network at {path[-1]:.4g} °C instead of its "
+                                f"target {s.target_temperature:.4g} °C: {short:.4g} kW {more} needed ({why})")
+
+    notes = [f"{sum(u.mode is OperatingMode.RATED for u in units)} unit(s) rated by ε-NTU at their area and U; "
+             f"{sum(u.mode is OperatingMode.TRIM for u in units)} heater(s)/cooler(s) at the end of their streams take "
+             f"the duty that brings them to target; {sum(u.mode is OperatingMode.FIXED_DUTY for u in units)} keep their "
+             "stated duty"]
+    if segmented:
+        notes.append("streams of several segments: each unit rated with the stream's mean CP over the range it "
+                     "covers in that unit (fixed-point iteration, "
+                     f"{iterations} linear solves); energy balances exact, ε-NTU approximate where a segment "
+                     "break falls inside a unit")
+    if any(u.arrangement is not FlowArrangement.COUNTER_CURRENT for u in units):
+        notes.append("min approach of co-current and 1-2 shell units is the counter-current pairing of their "
+                     "end temperatures")
+    hot_target = cold_target = None
+    if dt_min is not None:
+        t = target(network.streams, dt_min)
+        hot_target, cold_target = t.hot_utility, t.cold_utility
+        notes.append(f"targets at ΔTmin {dt_min:g} K by the problem table algorithm (ideal utilities)")
+    return Simulation(network, tuple(states), temperatures, shortfalls, duties, dt_min, hot_target, cold_target,
+                      tuple(problems), tuple(notes + list(network.notes)), iterations)
