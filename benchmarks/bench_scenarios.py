@@ -33,7 +33,8 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 from bench_sweep import generated  # noqa: E402  (the invented stream generator of the sweep benchmark)
 
 from heatloom.io.export import to_jsonable
-from heatloom.studies.scenarios import price_factor_scenarios, scenario_study
+from heatloom.model.prices import price_factor_scenarios
+from heatloom.studies.scenarios import scenario_study
 
 ZONE_SEEDS = {"zone A": 101, "zone B": 202, "zone C": 303}   # invented site, one seed per zone
 FACTORS = (0.5, 1.0, 1.5, 2.0)

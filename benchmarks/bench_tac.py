@@ -20,8 +20,8 @@ import sys
 import time
 from pathlib import Path
 
-from heatloom.equipment.cost import CostLaw, CostSettings
 from heatloom.model import Stream, StreamTable, Utility, UtilityKind
+from heatloom.model.costs import CostLaw, CostSettings
 from heatloom.network.tac.search import design_tac
 
 REFERENCES = Path(__file__).resolve().parents[1] / "tests" / "data" / "references"

@@ -1,38 +1,16 @@
 """Exchanger equipment: heat-transfer kernels, sizing, rating, geometry, segment-wise sizing and cost laws (installed as heatloom.equipment)."""
 
-from .cost import (
-    CostBreakdown,
-    CostLaw,
-    CostSettings,
-    UnitKind,
-    capital_recovery_factor,
-    cost_breakdown,
-    price_per_kw_year,
-    total_annual_cost,
-)
+from .cost import CostBreakdown, cost_breakdown, total_annual_cost
 from .geometry import (
     DoublePipeSizing,
-    ExchangerType,
     ShellAndTubeSizing,
     size_double_pipe,
     size_exchanger,
     size_shell_and_tube,
 )
-from .rating import (
-    Rating,
-    effectiveness_from_ntu,
-    max_effectiveness,
-    ntu_from_effectiveness,
-    rate_exchanger,
-)
-from .segments import (
-    SegmentedSizing,
-    SizingInterval,
-    cut_profile,
-    size_segments,
-)
+from .rating import Rating, effectiveness_from_ntu, max_effectiveness, ntu_from_effectiveness, rate_exchanger
+from .segments import SegmentedSizing, SizingInterval, cut_profile, size_segments
 from .sizing import (
-    FlowArrangement,
     ShellDesign,
     area_from_duty,
     duty_from_area,
@@ -47,15 +25,9 @@ from .sizing import (
 
 __all__ = [
     "CostBreakdown",
-    "CostLaw",
-    "CostSettings",
-    "UnitKind",
-    "capital_recovery_factor",
     "cost_breakdown",
-    "price_per_kw_year",
     "total_annual_cost",
     "DoublePipeSizing",
-    "ExchangerType",
     "ShellAndTubeSizing",
     "size_double_pipe",
     "size_exchanger",
@@ -69,7 +41,6 @@ __all__ = [
     "SizingInterval",
     "cut_profile",
     "size_segments",
-    "FlowArrangement",
     "ShellDesign",
     "area_from_duty",
     "duty_from_area",

@@ -17,16 +17,15 @@ qualified, licensed engineers.
 
 from __future__ import annotations
 
-import enum
 import math
 from dataclasses import asdict, dataclass
 
 from .. import defaults
 from ..errors import InputError
+from ..model.exchangers import ExchangerType
 from .sizing import ShellDesign, _ceil, _finite, area_from_duty, lmtd, shell_design
 
 __all__ = [
-    "ExchangerType",
     "DoublePipeSizing",
     "ShellAndTubeSizing",
     "size_double_pipe",
@@ -34,15 +33,6 @@ __all__ = [
     "size_exchanger",
     "hairpins_for_area",
 ]
-
-
-class ExchangerType(enum.Enum):
-    """Kinds of exchanger that :func:`size_exchanger` sizes with their geometry."""
-
-    DOUBLE_PIPE = "double_pipe"
-    """Counter-current double pipe (hairpins)."""
-    SHELL_AND_TUBE_1_2 = "shell_and_tube_1_2"
-    """1-2 shell and tube, shells in series as needed."""
 
 
 # --------------------------------------------------------------------------------------------------

@@ -26,8 +26,8 @@ from dataclasses import asdict, dataclass
 import numpy as np
 
 from ..errors import InputError, TemperatureCrossError
+from ..model.exchangers import FlowArrangement
 from .sizing import (
-    FlowArrangement,
     _arrangement,
     _array,
     _cc_effectiveness,

@@ -38,7 +38,6 @@ qualified, licensed engineers.
 
 from __future__ import annotations
 
-import enum
 import math
 from dataclasses import asdict, dataclass
 
@@ -46,9 +45,9 @@ import numpy as np
 
 from .. import defaults
 from ..errors import InputError, TemperatureCrossError
+from ..model.exchangers import FlowArrangement
 
 __all__ = [
-    "FlowArrangement",
     "overall_coefficient",
     "log_mean",
     "lmtd",
@@ -60,15 +59,6 @@ __all__ = [
     "ShellDesign",
     "shell_design",
 ]
-
-
-class FlowArrangement(enum.Enum):
-    """How the two fluids flow past each other (for LMTD and ε-NTU)."""
-
-    COUNTER_CURRENT = "counter_current"
-    CO_CURRENT = "co_current"
-    SHELL_AND_TUBE_1_2 = "shell_and_tube_1_2"
-    """One shell pass, an even number of tube passes; N such shells may be in series."""
 
 
 # --------------------------------------------------------------------------------------------------
@@ -648,9 +638,9 @@ def shell_design(hot_in, hot_out, cold_in, cold_out, *, x_p=defaults.X_P, min_f=
     hot_in, hot_out, cold_in, cold_out : float
         Terminal temperatures [°C]; must be feasible counter-currently.
     x_p : float, optional
-        0 < X_P < 1 [-]; default :data:`heatloom.network.defaults.X_P`.
+        0 < X_P < 1 [-]; default :data:`heatloom.defaults.X_P`.
     min_f : float, optional
-        0 < F_min < 1 [-]; default :data:`heatloom.network.defaults.MIN_F_FACTOR`.
+        0 < F_min < 1 [-]; default :data:`heatloom.defaults.MIN_F_FACTOR`.
 
     Returns
     -------

@@ -45,8 +45,8 @@ from collections.abc import Mapping
 from pathlib import Path
 
 from .. import defaults
-from ..equipment.cost import CostLaw, CostSettings
 from ..errors import InputError
+from ..model.costs import CostLaw, CostSettings
 
 __all__ = ["TOP_KEYS", "LAW_KEYS", "RETROFIT_KEYS", "read_costs", "costs_from_mapping", "read_retrofit_costs",
            "retrofit_costs_from_mapping"]

@@ -39,10 +39,11 @@ from collections.abc import Mapping, Sequence
 
 import numpy as np
 
-from ..equipment.sizing import FlowArrangement
 from ..errors import InputError
 from ..model import StreamTable, Utility
-from ..retrofit.existing import ExistingNetwork, ExistingUnit
+from ..model.exchangers import FlowArrangement
+from ..model.existing import ExistingUnit
+from ..retrofit.existing import ExistingNetwork
 from .tables import Table, normalise_name, parse_column_mapping, read_table
 from .tables import _cell_text as _text
 from .units import QuantityKind

@@ -21,7 +21,7 @@ HIGHLIGHT = {"edgecolor": "#303030", "facecolor": "none", "linestyle": (0, (3, 2
 def _unit_columns(simulation) -> list[tuple[str, str, str | None]]:
     """(unit name, upper row's stream, lower row's stream or None) in the left-to-right order that
     grid_diagram draws them (exchangers, heaters, coolers, each sorted by grid column, stable)."""
-    from ..retrofit.existing import UnitRole
+    from ..model.existing import UnitRole
 
     column, _ = simulation.network.grid_positions()
     ordered = ([u for u in simulation.units if u.role is UnitRole.EXCHANGER]

@@ -30,7 +30,7 @@ import numpy as np
 
 from ..errors import InputError
 from ..model import Utility
-from ..studies.scenarios import PriceScenario
+from ..model.prices import PriceScenario
 from .tables import read_table
 
 __all__ = ["SCENARIO_COLUMNS", "read_price_scenarios"]

@@ -36,7 +36,7 @@ from pathlib import Path
 
 from ..errors import InputError
 from ..model import StreamTable
-from ..pinch.site import MainKind, SteamMain, Zone, check_mains
+from ..model.site import MainKind, SteamMain, Zone, check_mains
 from .points import DEFAULT_FIT_TOLERANCE
 from .streams import read_streams
 from .tables import read_table

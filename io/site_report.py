@@ -278,7 +278,8 @@ def render_site_report(study: SiteStudy) -> RenderedReport:
     Two invented zones and one steam main:
 
     >>> from heatloom.model import StreamTable
-    >>> from heatloom.pinch.site import SteamMain, site_targets
+    >>> from heatloom.model.site import SteamMain
+    >>> from heatloom.pinch.site import site_targets
     >>> a = StreamTable.from_arrays(["H1", "C1"], [200, 40], [120, 100], [2.0, 1.0])
     >>> b = StreamTable.from_arrays(["H2", "C2"], [90, 130], [40, 170], [1.0, 2.0])
     >>> site = site_targets({"A": a, "B": b}, [SteamMain("LP", 140.0, 50.0)], 10.0)

@@ -208,7 +208,7 @@ class Study:
 
     def __post_init__(self) -> None:
         if self.costs is None:
-            from ..equipment.cost import CostSettings
+            from ..model.costs import CostSettings
 
             object.__setattr__(self, "costs", CostSettings())
 
@@ -221,7 +221,7 @@ class Study:
         """The utilities given, else the two assumed by design (:func:`heatloom.network.design.ideal_utilities`)."""
         if self.utilities is not None:
             return tuple(self.utilities)
-        from ..network.design import ideal_utilities
+        from ..pinch.utilities import ideal_utilities
 
         return tuple(ideal_utilities(self.streams, self.dt_min))
 

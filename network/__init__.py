@@ -1,11 +1,6 @@
 """Network synthesis: solvers, transshipment, matches, placement, MER design and lowest-TAC design (installed as heatloom.network)."""
 
-from .design import (
-    Region,
-    design_mer,
-    ideal_utilities,
-    regions_of,
-)
+from .design import Region, design_mer, regions_of
 from .milp import (
     Match,
     MatchKind,
@@ -17,50 +12,16 @@ from .milp import (
     plan_matches,
     subnetworks,
 )
-from .placement import (
-    PlacedUnit,
-    Placement,
-    Side,
-    stage_model,
-)
-from .solvers import (
-    SolveReport,
-    SolverName,
-    SolveStatus,
-    available_solvers,
-    resolve_solver,
-    solve,
-)
-from .structure import (
-    Cooler,
-    Exchanger,
-    Heater,
-    Network,
-    approach_violations,
-    check_network,
-)
-from .tac import (
-    DEFAULT_EMAT,
-    TacProblem,
-    Topology,
-    TopologySolution,
-    design_tac,
-    make_problem,
-    network_from_solution,
-    polish_splits,
-    solve_topology,
-    stagewise_milp,
-    topology_from_network,
-)
-from .transshipment import (
-    Transshipment,
-    transshipment,
-)
+from .placement import PlacedUnit, Placement, Side, stage_model
+from .solvers import SolveReport, SolverName, SolveStatus, available_solvers, resolve_solver, solve
+from .structure import Cooler, Exchanger, Heater, Network, approach_violations, check_network
+from .tac.nlp import TacProblem, Topology, TopologySolution, make_problem, polish_splits, solve_topology
+from .tac.search import DEFAULT_EMAT, design_tac, network_from_solution, stagewise_milp, topology_from_network
+from .transshipment import Transshipment, transshipment
 
 __all__ = [
     "Region",
     "design_mer",
-    "ideal_utilities",
     "regions_of",
     "Match",
     "MatchKind",

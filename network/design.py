@@ -22,47 +22,24 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 from .. import defaults
-from ..equipment.cost import CostSettings, UnitKind
-from ..equipment.geometry import ExchangerType, hairpins_for_area
+from ..equipment.geometry import hairpins_for_area
 from ..equipment.segments import cut_profile, size_segments
 from ..equipment.sizing import shell_design
 from ..errors import InfeasibleError, InputError
-from ..model import Segment, Stream, StreamTable, Utility, UtilityKind
+from ..model import Segment, Stream, StreamTable, Utility
+from ..model.costs import CostSettings, UnitKind
+from ..model.exchangers import ExchangerType
 from ..pinch import Targets, target
+from ..pinch.utilities import ideal_utilities
 from .placement import Side, stage_model
 from .solvers import solve
 from .structure import Cooler, Exchanger, Heater, Network, check_network, stream_enthalpy
 
-__all__ = ["ideal_utilities", "design_mer", "regions_of", "Region"]
+__all__ = ["design_mer", "regions_of", "Region"]
 
 ISOTHERMAL_GLIDE = 1e-6
 """Temperature glide given to an isothermal utility when it is sized as a segment [K]; changes the
 LMTD by less than one part in a million."""
-
-
-def ideal_utilities(streams: StreamTable, dt_min: float) -> tuple[Utility, Utility]:
-    """The two utilities assumed when none are given, stated in every output.
-
-    An isothermal hot utility 20 K plus ΔTmin above the hottest cold-stream temperature and an isothermal
-    cold utility 20 K plus ΔTmin below the coldest hot-stream temperature, with the prices and film
-    coefficients of :mod:`heatloom.defaults` (illustrative, common practice).
-
-    Examples
-    --------
-    >>> s = StreamTable.from_arrays(["H", "C"], [150, 20], [40, 120], [1.0, 1.0])
-    >>> [(u.name, u.supply_temperature, u.cost) for u in ideal_utilities(s, 10)]
-    [('hot utility (assumed)', 150.0, 200.0), ('cold utility (assumed)', 10.0, 20.0)]
-    """
-    cold_max = max((s.supply_temperature if s.supply_temperature > s.target_temperature else s.target_temperature)
-                   for s in streams.cold) if streams.cold else max(s.supply_temperature for s in streams)
-    hot_min = min(s.target_temperature for s in streams.hot) if streams.hot else \
-        min(s.supply_temperature for s in streams)
-    th = cold_max + dt_min + defaults.IDEAL_UTILITY_MARGIN
-    tc = hot_min - dt_min - defaults.IDEAL_UTILITY_MARGIN
-    return (Utility("hot utility (assumed)", th, th, defaults.DEFAULT_HOT_UTILITY_PRICE, UtilityKind.HOT,
-                    defaults.DEFAULT_HOT_UTILITY_FILM_COEFFICIENT),
-            Utility("cold utility (assumed)", tc, tc, defaults.DEFAULT_COLD_UTILITY_PRICE, UtilityKind.COLD,
-                    defaults.DEFAULT_COLD_UTILITY_FILM_COEFFICIENT))
 
 
 @dataclass(frozen=True)

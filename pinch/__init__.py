@@ -12,44 +12,19 @@ from .area import (
     target_utilities,
     unit_targets,
 )
-from .curves import (
-    Curve,
-    cold_composite,
-    grand_composite,
-    hot_composite,
-)
-from .problem_table import (
-    ProblemTable,
-    net_heat_capacity_flow,
-    problem_table,
-    shifted_ranges,
-    zero_tolerance,
-)
+from .curves import Curve, cold_composite, grand_composite, hot_composite
+from .problem_table import ProblemTable, net_heat_capacity_flow, problem_table, shifted_ranges, zero_tolerance
 from .site import (
     MainBalance,
-    MainKind,
     SiteTargets,
-    SteamMain,
-    Zone,
     ZoneTargets,
-    check_mains,
     composite_profile,
     remove_pockets,
     site_targets,
     zone_profiles,
 )
-from .targets import (
-    Pinch,
-    Targets,
-    Threshold,
-    target,
-)
-from .utilities import (
-    UtilityDuty,
-    UtilityPlacement,
-    place_utilities,
-    utility_shifted_range,
-)
+from .targets import Pinch, Targets, Threshold, target
+from .utilities import UtilityDuty, UtilityPlacement, ideal_utilities, place_utilities, utility_shifted_range
 
 __all__ = [
     "AreaTargets",
@@ -72,12 +47,8 @@ __all__ = [
     "shifted_ranges",
     "zero_tolerance",
     "MainBalance",
-    "MainKind",
     "SiteTargets",
-    "SteamMain",
-    "Zone",
     "ZoneTargets",
-    "check_mains",
     "composite_profile",
     "remove_pockets",
     "site_targets",
@@ -88,6 +59,7 @@ __all__ = [
     "target",
     "UtilityDuty",
     "UtilityPlacement",
+    "ideal_utilities",
     "place_utilities",
     "utility_shifted_range",
 ]

@@ -14,7 +14,7 @@ that both curves span the same enthalpy) and reads off, before any network exist
 
 Utilities enter the balanced composites as streams: those of the targets' utility placement when
 utility levels were given, else the two ideal utilities of :func:`heatloom.network.design.ideal_utilities`
-(isothermal, :data:`heatloom.network.defaults.IDEAL_UTILITY_MARGIN` plus ΔTmin beyond the process, with the
+(isothermal, :data:`heatloom.defaults.IDEAL_UTILITY_MARGIN` plus ΔTmin beyond the process, with the
 stated default prices and film coefficients), so targets and designs see the same utilities.
 
 Layering note: this module uses the sizing functions, cost laws and tabulated defaults of
@@ -236,7 +236,7 @@ def target_utilities(targets: Targets) -> tuple[tuple[Utility, float], ...]:
     tol = targets.table.tolerance
     if targets.placement is not None:
         return tuple((d.utility, float(d.duty)) for d in targets.placement.duties if d.duty > tol)
-    from ..network.design import ideal_utilities
+    from .utilities import ideal_utilities
 
     hot, cold = ideal_utilities(targets.streams, targets.dt_min)
     return tuple((u, float(q)) for u, q in ((hot, targets.hot_utility), (cold, targets.cold_utility)) if q > tol)
@@ -557,7 +557,7 @@ def shell_target(composites: BalancedComposites, *, x_p: float | None = None) ->
     ----------
     composites : BalancedComposites
     x_p : float, optional
-        X_P [-], 0 < X_P < 1; :data:`heatloom.network.defaults.X_P` (0.9) by default.
+        X_P [-], 0 < X_P < 1; :data:`heatloom.defaults.X_P` (0.9) by default.
 
     Returns
     -------
@@ -634,7 +634,7 @@ def area_targets(targets: Targets, costs=None, *, default_film_coefficient: floa
     Examples
     --------
     >>> from heatloom.model import StreamTable, Utility, UtilityKind
-    >>> from heatloom.equipment import CostLaw, CostSettings
+    >>> from heatloom.model import CostLaw, CostSettings
     >>> from heatloom.pinch import target
     >>> s = StreamTable.from_arrays(["H", "C"], [150, 30], [40, 120], [2.0, 2.0], film_coefficient=[1.0, 1.0])
     >>> cw = Utility("cold water", 20, 20, 10.0, UtilityKind.COLD, 1.0)
@@ -644,7 +644,7 @@ def area_targets(targets: Targets, costs=None, *, default_film_coefficient: floa
     (14.773, 2, 2, 3477.3, 400.0)
     """
     from .. import defaults
-    from ..equipment.cost import CostSettings, UnitKind
+    from ..model.costs import CostSettings, UnitKind
 
     try:
         basis_kind = CapitalBasis(capital_basis)

@@ -24,8 +24,9 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.optimize import linprog
 
+from .. import defaults
 from ..errors import InfeasibleError, InputError, SolverError
-from ..model import Utility
+from ..model import StreamTable, Utility, UtilityKind
 from .problem_table import ProblemTable
 
 __all__ = ["UtilityDuty", "UtilityPlacement", "place_utilities", "utility_shifted_range"]
@@ -241,3 +242,28 @@ def place_utilities(table: ProblemTable, utilities: Sequence[Utility]) -> Utilit
     utility_pinches = tuple(float(x) for x, r in zip(points[inner], residual[inner])
                             if abs(r) <= tol * 10 and x not in process_pinches)
     return UtilityPlacement(tuple(UtilityDuty(u, float(v)) for u, v in zip(utilities, q)), utility_pinches)
+
+
+def ideal_utilities(streams: StreamTable, dt_min: float) -> tuple[Utility, Utility]:
+    """The two utilities assumed when none are given, stated in every output.
+
+    An isothermal hot utility 20 K plus ΔTmin above the hottest cold-stream temperature and an isothermal
+    cold utility 20 K plus ΔTmin below the coldest hot-stream temperature, with the prices and film
+    coefficients of :mod:`heatloom.defaults` (illustrative, common practice).
+
+    Examples
+    --------
+    >>> s = StreamTable.from_arrays(["H", "C"], [150, 20], [40, 120], [1.0, 1.0])
+    >>> [(u.name, u.supply_temperature, u.cost) for u in ideal_utilities(s, 10)]
+    [('hot utility (assumed)', 150.0, 200.0), ('cold utility (assumed)', 10.0, 20.0)]
+    """
+    cold_max = max((s.supply_temperature if s.supply_temperature > s.target_temperature else s.target_temperature)
+                   for s in streams.cold) if streams.cold else max(s.supply_temperature for s in streams)
+    hot_min = min(s.target_temperature for s in streams.hot) if streams.hot else \
+        min(s.supply_temperature for s in streams)
+    th = cold_max + dt_min + defaults.IDEAL_UTILITY_MARGIN
+    tc = hot_min - dt_min - defaults.IDEAL_UTILITY_MARGIN
+    return (Utility("hot utility (assumed)", th, th, defaults.DEFAULT_HOT_UTILITY_PRICE, UtilityKind.HOT,
+                    defaults.DEFAULT_HOT_UTILITY_FILM_COEFFICIENT),
+            Utility("cold utility (assumed)", tc, tc, defaults.DEFAULT_COLD_UTILITY_PRICE, UtilityKind.COLD,
+                    defaults.DEFAULT_COLD_UTILITY_FILM_COEFFICIENT))

@@ -15,14 +15,7 @@ from .diagnose import (
     network_pinch,
     retrofit_curve,
 )
-from .existing import (
-    ExistingNetwork,
-    ExistingUnit,
-    OperatingMode,
-    UnitRole,
-    heat_between,
-    temperature_after,
-)
+from .existing import ExistingNetwork, heat_between, temperature_after
 from .options import (
     Change,
     ChangeKind,
@@ -33,11 +26,7 @@ from .options import (
     apply_changes,
     retrofit_options,
 )
-from .simulate import (
-    Simulation,
-    UnitState,
-    simulate,
-)
+from .simulate import Simulation, UnitState, simulate
 
 __all__ = [
     "AreaEfficiency",
@@ -54,9 +43,6 @@ __all__ = [
     "network_pinch",
     "retrofit_curve",
     "ExistingNetwork",
-    "ExistingUnit",
-    "OperatingMode",
-    "UnitRole",
     "heat_between",
     "temperature_after",
     "Change",

@@ -18,21 +18,19 @@ from __future__ import annotations
 import enum
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, replace
 
-from .. import defaults
-from ..equipment.cost import CostLaw, capital_recovery_factor
 from ..equipment.rating import max_effectiveness, ntu_from_effectiveness
 from ..equipment.segments import cut_profile, size_segments
-from ..equipment.sizing import FlowArrangement, overall_coefficient
+from ..equipment.sizing import overall_coefficient
 from ..errors import InputError, SolverError, TemperatureCrossError
 from ..model import Segment, Utility
+from ..model.costs import RetrofitCosts, capital_recovery_factor
+from ..model.exchangers import FlowArrangement
+from ..model.existing import ExistingUnit, OperatingMode, UnitRole
 from .existing import (
     ISOTHERMAL_GLIDE,
     ExistingNetwork,
-    ExistingUnit,
-    OperatingMode,
-    UnitRole,
     _min_approach,
     _secant_cp,
     film_coefficient_of,
@@ -44,7 +42,6 @@ from .simulate import Simulation, simulate
 
 __all__ = [
     "ChangeKind",
-    "RetrofitCosts",
     "Change",
     "annuity_factor",
     "apply_changes",
@@ -63,7 +60,7 @@ APPROACH_TOLERANCE = 1e-6
 """Rounding allowed on a minimum approach check [K]."""
 MAX_1_2_EFFECTIVENESS = 0.9
 """Largest fraction of the reachable effectiveness given to an enlarged 1-2 shell unit [-] (the X_P rule of
-Ahmad, Linnhoff & Smith 1988, applied to the whole unit; see :data:`heatloom.network.defaults.X_P`)."""
+Ahmad, Linnhoff & Smith 1988, applied to the whole unit; see :data:`heatloom.defaults.X_P`)."""
 
 
 class ChangeKind(enum.Enum):
@@ -73,81 +70,6 @@ class ChangeKind(enum.Enum):
     ADDED_AREA = "added area"
     RESEQUENCE = "resequence"
     REPIPE = "repipe"
-
-
-@dataclass(frozen=True)
-class RetrofitCosts:
-    """Installed capital of retrofit changes [money] (the ``retrofit`` section of a costs file).
-
-    Parameters
-    ----------
-    new_exchanger : CostLaw
-        New exchanger: fixed + per_area·A^exponent, A in m².
-    added_area : CostLaw
-        Area added to a unit: fixed (installation) + per_area·ΔA^exponent, ΔA in m².
-    repipe : float
-        Moving one side of a unit to another stream [money].
-    resequence : float
-        Moving a unit to another place along its stream [money].
-
-    These are installed capital whatever the ``annualised`` setting of the other laws.  Defaults:
-    :mod:`heatloom.defaults` (illustrative, common practice, not a quotation).
-
-    Examples
-    --------
-    >>> c = RetrofitCosts()
-    >>> round(c.added_area_cost(20.0)), round(c.new_exchanger_cost(50.0)), c.repipe
-    (15986, 37865, 8000.0)
-    """
-
-    new_exchanger: CostLaw = field(
-        default_factory=lambda: CostLaw.from_mapping(defaults.RETROFIT_NEW_EXCHANGER_COST_LAW))
-    added_area: CostLaw = field(default_factory=lambda: CostLaw.from_mapping(defaults.RETROFIT_ADDED_AREA_COST_LAW))
-    repipe: float = defaults.RETROFIT_REPIPE_COST
-    resequence: float = defaults.RETROFIT_RESEQUENCE_COST
-
-    def __post_init__(self) -> None:
-        for key in ("new_exchanger", "added_area"):
-            if not isinstance(getattr(self, key), CostLaw):
-                raise InputError(f"retrofit.{key} must be a CostLaw, got {type(getattr(self, key)).__name__}",
-                                 column=f"retrofit.{key}")
-        for key in ("repipe", "resequence"):
-            v = getattr(self, key)
-            try:
-                x = float(v)
-            except (TypeError, ValueError):
-                raise InputError(f"retrofit.{key} must be a number [money], got {v!r}",
-                                 column=f"retrofit.{key}") from None
-            if not (x >= 0) or not math.isfinite(x):
-                raise InputError(f"retrofit.{key} must be a finite number >= 0, got {v!r}", column=f"retrofit.{key}")
-            object.__setattr__(self, key, x)
-
-    def new_exchanger_cost(self, area: float) -> float:
-        """[money] for a new exchanger of ``area`` [m²]."""
-        return float(self.new_exchanger.cost(area))
-
-    def added_area_cost(self, area: float) -> float:
-        """[money] for ``area`` [m²] added to a unit."""
-        return float(self.added_area.cost(area))
-
-    def to_dict(self) -> dict:
-        return {"new_exchanger": self.new_exchanger.to_dict(), "added_area": self.added_area.to_dict(),
-                "repipe": self.repipe, "resequence": self.resequence}
-
-    def describe(self, currency: str = "") -> str:
-        """The retrofit cost laws in plain words, marking the package defaults."""
-        d = RetrofitCosts()
-
-        def tag(key):
-            return " (default)" if getattr(self, key) == getattr(d, key) else ""
-
-        cur = f" {currency}" if currency else ""
-        text = (f"Retrofit: new exchanger {self.new_exchanger.text(currency)}{tag('new_exchanger')}; added area "
-                f"{self.added_area.text(currency)} with A the added m²{tag('added_area')}; repiping "
-                f"{self.repipe:g}{cur}{tag('repipe')}; resequencing {self.resequence:g}{cur}{tag('resequence')}.")
-        if any(tag(k) for k in ("new_exchanger", "added_area", "repipe", "resequence")):
-            text += " Values marked (default) are illustrative, not a quotation."
-        return text
 
 
 def annuity_factor(interest_rate: float, years: float) -> float:

@@ -42,8 +42,9 @@ from scipy.optimize import brentq
 
 from ..errors import InfeasibleError, InputError
 from ..model import Stream, StreamTable
+from ..model.existing import UnitRole
 from ..pinch import Pinch, problem_table, target, zero_tolerance
-from .existing import ExistingNetwork, UnitRole, _min_approach, heat_between, temperature_after
+from .existing import ExistingNetwork, _min_approach, heat_between, temperature_after
 from .simulate import Simulation, simulate
 
 __all__ = [
@@ -221,7 +222,8 @@ def cross_pinch(simulation: Simulation, dt_min: float | None = None) -> CrossPin
     60 kW of hot utility beyond the target.
 
     >>> from heatloom.model import StreamTable, Utility
-    >>> from heatloom.retrofit.existing import ExistingNetwork, ExistingUnit
+    >>> from heatloom.retrofit.existing import ExistingNetwork
+    >>> from heatloom.model.existing import ExistingUnit
     >>> from heatloom.retrofit.simulate import simulate
     >>> s = StreamTable.from_arrays(["H1", "C1"], [150, 60], [40, 120], [2.0, 3.0])
     >>> u = [Utility("steam", 180, 179, 100.0), Utility("water", 20, 30, 10.0)]
@@ -735,7 +737,8 @@ def network_pinch(simulation: Simulation, min_approach: float, *, max_paths: int
     before the cooler's 120 kW or the heater's 80 kW run out.
 
     >>> from heatloom.model import StreamTable, Utility
-    >>> from heatloom.retrofit.existing import ExistingNetwork, ExistingUnit
+    >>> from heatloom.retrofit.existing import ExistingNetwork
+    >>> from heatloom.model.existing import ExistingUnit
     >>> from heatloom.retrofit.simulate import simulate
     >>> s = StreamTable.from_arrays(["H1", "C1"], [150, 60], [40, 120], [2.0, 3.0])
     >>> u = [Utility("steam", 180, 179, 100.0), Utility("water", 20, 30, 10.0)]

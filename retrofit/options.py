@@ -64,8 +64,9 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from ..equipment.cost import CostSettings
 from ..errors import InfeasibleError, InputError
+from ..model.costs import CostSettings, RetrofitCosts
+from ..model.existing import OperatingMode
 from .changes import (
     APPROACH_TOLERANCE,
     Candidate,
@@ -73,7 +74,6 @@ from .changes import (
     ChangeKind,
     Evaluation,
     Evaluator,
-    RetrofitCosts,
     added_area_candidates,
     annuity_factor,
     apply_changes,
@@ -82,7 +82,7 @@ from .changes import (
     touched_streams,
 )
 from .diagnose import area_efficiency, cross_pinch
-from .existing import ExistingNetwork, OperatingMode
+from .existing import ExistingNetwork
 from .selection import (
     ABSOLUTE_TOLERANCE_KW,
     ABSOLUTE_TOLERANCE_MONEY,
@@ -407,7 +407,7 @@ def retrofit_options(network: ExistingNetwork, dt_min: float, *, costs: CostSett
     above the pinch.  The best option adds area to E1 and saves all 60 kW of hot utility beyond the target.
 
     >>> from heatloom.model import StreamTable, Utility
-    >>> from heatloom.retrofit.existing import ExistingUnit
+    >>> from heatloom.model.existing import ExistingUnit
     >>> s = StreamTable.from_arrays(["H1", "C1"], [150, 60], [40, 120], [2.0, 3.0], film_coefficient=[1.0, 1.0])
     >>> u = [Utility("steam", 180, 179, 200.0, film_coefficient=1.0),
     ...      Utility("water", 20, 30, 10.0, film_coefficient=1.0)]

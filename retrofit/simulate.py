@@ -39,19 +39,11 @@ import numpy as np
 from scipy.optimize import brentq
 
 from ..equipment.rating import effectiveness_from_ntu
-from ..equipment.sizing import FlowArrangement
 from ..errors import InputError, SolverError
+from ..model.exchangers import FlowArrangement
+from ..model.existing import ExistingUnit, OperatingMode, UnitRole
 from ..pinch import target
-from .existing import (
-    ExistingNetwork,
-    ExistingUnit,
-    OperatingMode,
-    UnitRole,
-    _min_approach,
-    _secant_cp,
-    heat_between,
-    temperature_after,
-)
+from .existing import ExistingNetwork, _min_approach, _secant_cp, heat_between, temperature_after
 
 __all__ = ["UnitState", "Simulation", "simulate"]
 
@@ -415,7 +407,8 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
     2.5 kW/K), a trim heater and a trim cooler; the exchanger transfers the 100 kW it was sized for.
 
     >>> from heatloom.model import StreamTable, Utility
-    >>> from heatloom.retrofit.existing import ExistingNetwork, ExistingUnit
+    >>> from heatloom.retrofit.existing import ExistingNetwork
+    >>> from heatloom.model.existing import ExistingUnit
     >>> s = StreamTable.from_arrays(["H1", "C1"], [150, 30], [60, 120], [2.0, 2.5])
     >>> u = [Utility("steam", 180, 179, 100.0), Utility("water", 20, 30, 10.0)]
     >>> net = ExistingNetwork(s, [ExistingUnit("E1", "H1", "C1", area=2.67054, u=0.5),

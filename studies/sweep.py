@@ -342,7 +342,7 @@ def _case(streams, utilities, costs, default_h, basis, x_p, price_factor: float 
                          "for every stream and utility (add an h column in kW/(m²·K), or assume one with a "
                          "default film coefficient)")
     if costs is None:
-        from ..equipment.cost import CostSettings
+        from ..model.costs import CostSettings
 
         costs = CostSettings()
     try:

@@ -5,8 +5,8 @@ import json
 import re
 from pathlib import Path
 
-from heatloom.equipment.cost import CostLaw, CostSettings
 from heatloom.model import Stream, StreamTable, Utility, UtilityKind
+from heatloom.model.costs import CostLaw, CostSettings
 
 DATA = Path(__file__).parent / "data"
 REFERENCES = DATA / "references"

@@ -191,7 +191,7 @@ def run(args) -> int:
         finally:
             bar.close()
     else:
-        from ..equipment import ExchangerType
+        from ..model import ExchangerType
         from ..network import design_mer
 
         kind = {"counter-current": None, "shell-and-tube": ExchangerType.SHELL_AND_TUBE_1_2,

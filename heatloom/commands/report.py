@@ -218,8 +218,8 @@ def compute_study(streams, dt_min: float, utilities=None, costs=None, *, existin
     -------
     heatloom.io.report.Study
     """
-    from ..equipment.cost import CostSettings
     from ..io.report import NotComputed, RunSettings, Study
+    from ..model.costs import CostSettings
 
     settings = settings or RunSettings()
     fields.setdefault("title", "Heat-integration study")

@@ -165,7 +165,8 @@ def format_study(study, source: str, range_note: str) -> str:
 
 def run(args) -> int:
     from ..io.site import read_site
-    from ..studies.scenarios import price_factor_scenarios, scenario_study
+    from ..model.prices import price_factor_scenarios
+    from ..studies.scenarios import scenario_study
 
     site = read_site(args.path, sheet_per_zone=not args.one_zone_workbook, columns=args.columns,
                      fit_tolerance=args.fit_tolerance)

@@ -154,7 +154,8 @@ def format_site(site, source: str, dt_note: str, mains_source: str | None) -> st
 
 def run(args) -> int:
     from ..io.site import read_site
-    from ..pinch.site import Zone, site_targets
+    from ..model.site import Zone
+    from ..pinch.site import site_targets
 
     dt_min, dt_note = dt_min_of(args)
     site_in = read_site(args.path, mains=args.mains, sheet_per_zone=not args.one_zone_workbook,

@@ -1,5 +1,16 @@
-"""The data model: streams and utilities (plain numbers in canonical units), as every layer sees them."""
+"""The data model every layer shares: plain numbers in canonical units, no solver and no file.
 
+streams and utilities (:mod:`.streams`), cost settings (:mod:`.costs`), exchanger kinds
+(:mod:`.exchangers`), the units of an existing network (:mod:`.existing`), site zones and mains
+(:mod:`.site`) and price scenarios (:mod:`.prices`).  The readers of :mod:`heatloom.io` produce these
+types; the computing layers take them.
+"""
+
+from .costs import CostLaw, CostSettings, RetrofitCosts, UnitKind, capital_recovery_factor, price_per_kw_year
+from .exchangers import ExchangerType, FlowArrangement
+from .existing import ExistingUnit, OperatingMode, UnitRole
+from .prices import BASE_NAME, PriceScenario, price_factor_scenarios
+from .site import WATER_CRITICAL_TEMPERATURE, WATER_TRIPLE_POINT, MainKind, SteamMain, Zone, check_mains
 from .streams import (
     ABSOLUTE_ZERO,
     Segment,
@@ -12,12 +23,10 @@ from .streams import (
 )
 
 __all__ = [
-    "ABSOLUTE_ZERO",
-    "finite_number",
-    "Segment",
-    "Stream",
-    "StreamTable",
-    "StreamArrays",
-    "UtilityKind",
-    "Utility",
+    "ABSOLUTE_ZERO", "finite_number", "Segment", "Stream", "StreamTable", "StreamArrays", "UtilityKind", "Utility",
+    "CostLaw", "CostSettings", "RetrofitCosts", "UnitKind", "capital_recovery_factor", "price_per_kw_year",
+    "ExchangerType", "FlowArrangement",
+    "ExistingUnit", "OperatingMode", "UnitRole",
+    "BASE_NAME", "PriceScenario", "price_factor_scenarios",
+    "WATER_CRITICAL_TEMPERATURE", "WATER_TRIPLE_POINT", "MainKind", "SteamMain", "Zone", "check_mains",
 ]

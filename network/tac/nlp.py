@@ -43,9 +43,9 @@ import numpy as np
 from scipy.linalg import qr
 from scipy.optimize import Bounds, LinearConstraint, linprog, minimize
 
-from ...equipment.cost import CostSettings, UnitKind
 from ...errors import InputError
 from ...model import StreamTable, Utility
+from ...model.costs import CostSettings, UnitKind
 
 __all__ = ["TacProblem", "Topology", "TopologySolution", "make_problem", "solve_topology", "polish_splits",
            "unit_costs"]

@@ -43,10 +43,10 @@ from concurrent.futures import ProcessPoolExecutor
 import numpy as np
 import pulp
 
-from ...equipment.cost import CostSettings, UnitKind
 from ...equipment.sizing import log_mean
 from ...errors import InfeasibleError, InputError
 from ...model import StreamTable, Utility
+from ...model.costs import CostSettings, UnitKind
 from ..solvers import new_variable, solve
 from ..structure import Cooler, Exchanger, Heater, Network, check_network
 from .nlp import (
@@ -677,7 +677,8 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     >>> bool(net.total_annual_cost == net.capital_cost + net.operating_cost)
     True
     """
-    from ..design import design_mer, ideal_utilities
+    from ...pinch.utilities import ideal_utilities
+    from ..design import design_mer
 
     t0 = time.monotonic()
     for value, what in ((starts, "starts"), (rounds, "rounds"), (milp_iterations, "MILP iterations")):

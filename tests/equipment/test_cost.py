@@ -13,16 +13,9 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from heatloom import defaults
-from heatloom.equipment.cost import (
-    CostLaw,
-    CostSettings,
-    UnitKind,
-    capital_recovery_factor,
-    cost_breakdown,
-    price_per_kw_year,
-    total_annual_cost,
-)
+from heatloom.equipment.cost import cost_breakdown, total_annual_cost
 from heatloom.errors import InputError
+from heatloom.model.costs import CostLaw, CostSettings, UnitKind, capital_recovery_factor, price_per_kw_year
 
 # --------------------------------------------------------------------------------------------------
 # capital recovery factor

@@ -11,8 +11,9 @@ import math
 import ht
 import pytest
 
-from heatloom.equipment.geometry import ExchangerType, size_double_pipe, size_exchanger, size_shell_and_tube
+from heatloom.equipment.geometry import size_double_pipe, size_exchanger, size_shell_and_tube
 from heatloom.errors import InputError, TemperatureCrossError
+from heatloom.model.exchangers import ExchangerType
 
 # --------------------------------------------------------------------------------------------------
 # exchanger types

@@ -22,8 +22,9 @@ from heatloom.equipment.rating import (
     ntu_from_effectiveness,
     rate_exchanger,
 )
-from heatloom.equipment.sizing import FlowArrangement, area_from_duty, lmtd, p_max
+from heatloom.equipment.sizing import area_from_duty, lmtd, p_max
 from heatloom.errors import InputError, TemperatureCrossError
+from heatloom.model.exchangers import FlowArrangement
 
 CC, CO, ST = FlowArrangement.COUNTER_CURRENT, FlowArrangement.CO_CURRENT, FlowArrangement.SHELL_AND_TUBE_1_2
 HT_SUBTYPE = {CC: "counterflow", CO: "parallel", ST: "S&T"}

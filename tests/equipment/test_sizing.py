@@ -18,7 +18,6 @@ from hypothesis import strategies as st
 from heatloom import defaults
 from heatloom.equipment import sizing
 from heatloom.equipment.sizing import (
-    FlowArrangement,
     area_from_duty,
     duty_from_area,
     f_factor,
@@ -30,6 +29,7 @@ from heatloom.equipment.sizing import (
     shell_design,
 )
 from heatloom.errors import InputError, TemperatureCrossError
+from heatloom.model.exchangers import FlowArrangement
 
 CO = FlowArrangement.CO_CURRENT
 

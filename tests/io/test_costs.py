@@ -12,9 +12,9 @@ import re
 import openpyxl
 import pytest
 
-from heatloom.equipment.cost import CostLaw, CostSettings, capital_recovery_factor
 from heatloom.errors import InputError
 from heatloom.io.costs import costs_from_mapping, read_costs
+from heatloom.model.costs import CostLaw, CostSettings, capital_recovery_factor
 
 EXAMPLE = {"currency": "USD", "annualised": True, "exchanger": {"fixed": 8000, "per_area": 500, "exponent": 0.75},
            "heater": {"fixed": 8000, "per_area": 600, "exponent": 0.75}, "interest_rate": 0.1, "years": 10,

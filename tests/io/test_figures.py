@@ -12,8 +12,9 @@ from refdata import load_reference  # noqa: E402
 
 from heatloom.io.figures import grid_diagram
 from heatloom.io.scenario_figures import MAX_PANELS, scenario_cost_figure
+from heatloom.model.prices import price_factor_scenarios
 from heatloom.network.design import design_mer
-from heatloom.studies.scenarios import price_factor_scenarios, scenario_study
+from heatloom.studies.scenarios import scenario_study
 
 
 @pytest.fixture(scope="module")

@@ -11,12 +11,14 @@ from pathlib import Path
 import openpyxl
 import pytest
 
-from heatloom.equipment.sizing import FlowArrangement, overall_coefficient
+from heatloom.equipment.sizing import overall_coefficient
 from heatloom.errors import InputError
 from heatloom.io import read_streams, read_utilities
 from heatloom.io.network_table import read_network
 from heatloom.model import Stream, StreamTable, Utility
-from heatloom.retrofit.existing import ExistingNetwork, ExistingUnit, OperatingMode, UnitRole
+from heatloom.model.exchangers import FlowArrangement
+from heatloom.model.existing import ExistingUnit, OperatingMode, UnitRole
+from heatloom.retrofit.existing import ExistingNetwork
 
 CASE = Path(__file__).resolve().parents[2] / "case_studies" / "existing_network"
 

@@ -11,7 +11,7 @@ import pytest
 
 from heatloom.errors import InputError
 from heatloom.io.site import read_mains, read_site, zone_name
-from heatloom.pinch.site import MainKind
+from heatloom.model.site import MainKind
 
 EAST = "name,T_supply,T_target,CP\nH1,200,80,2\nC1,60,150,1\n"
 WEST = "name,T_supply,T_target,CP\nC2,90,140,3\nH2,160,100,1.5\n"

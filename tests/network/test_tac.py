@@ -15,9 +15,9 @@ import numpy as np
 import pytest
 from refdata import cost_settings, load_reference, published_laws, reference_utilities
 
-from heatloom.equipment.cost import CostLaw, CostSettings
 from heatloom.errors import InputError
 from heatloom.model import Segment, Stream, StreamTable, Utility, UtilityKind
+from heatloom.model.costs import CostLaw, CostSettings
 from heatloom.network.design import design_mer
 from heatloom.network.structure import check_network
 from heatloom.network.tac.nlp import Topology, _log_mean_and_gradient, make_problem, solve_topology

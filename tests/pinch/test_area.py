@@ -29,11 +29,11 @@ from hypothesis import strategies as st
 from scipy.integrate import quad
 
 from heatloom import defaults as network_data
-from heatloom.equipment import CostLaw, CostSettings, shell_design
+from heatloom.equipment import shell_design
 from heatloom.errors import InfeasibleError, InputError, TemperatureCrossError
-from heatloom.model import Segment, Stream, StreamTable, Utility, UtilityKind
-from heatloom.network import design_mer, ideal_utilities
-from heatloom.pinch import cold_composite, hot_composite, target
+from heatloom.model import CostLaw, CostSettings, Segment, Stream, StreamTable, Utility, UtilityKind
+from heatloom.network import design_mer
+from heatloom.pinch import cold_composite, hot_composite, ideal_utilities, target
 from heatloom.pinch.area import (
     AreaTargets,
     CapitalBasis,

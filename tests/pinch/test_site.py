@@ -18,18 +18,10 @@ from refdata import load_reference
 
 from heatloom.errors import InputError
 from heatloom.model import Stream, StreamTable
+from heatloom.model.site import MainKind, SteamMain, Zone, check_mains
 from heatloom.pinch import target
 from heatloom.pinch.curves import Curve
-from heatloom.pinch.site import (
-    MainKind,
-    SteamMain,
-    Zone,
-    check_mains,
-    composite_profile,
-    remove_pockets,
-    site_targets,
-    zone_profiles,
-)
+from heatloom.pinch.site import composite_profile, remove_pockets, site_targets, zone_profiles
 
 SETTINGS = settings(max_examples=40, derandomize=True, deadline=None)
 

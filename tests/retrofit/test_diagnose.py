@@ -27,6 +27,7 @@ from heatloom.errors import InfeasibleError, InputError
 from heatloom.io import read_streams, read_utilities
 from heatloom.io.network_table import read_network
 from heatloom.model import Segment, Stream, StreamTable, Utility, UtilityKind
+from heatloom.model.existing import ExistingUnit, UnitRole
 from heatloom.network import design_mer
 from heatloom.pinch import target
 from heatloom.retrofit.diagnose import (
@@ -37,7 +38,7 @@ from heatloom.retrofit.diagnose import (
     network_pinch,
     retrofit_curve,
 )
-from heatloom.retrofit.existing import ExistingNetwork, ExistingUnit, UnitRole
+from heatloom.retrofit.existing import ExistingNetwork
 from heatloom.retrofit.simulate import simulate
 
 CASE = Path(__file__).resolve().parents[2] / "case_studies" / "existing_network"

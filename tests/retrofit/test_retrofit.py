@@ -31,14 +31,15 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from heatloom.equipment.cost import CostLaw, CostSettings
 from heatloom.errors import InfeasibleError, InputError
 from heatloom.io import read_costs, read_streams, read_utilities
 from heatloom.io.costs import read_retrofit_costs, retrofit_costs_from_mapping
 from heatloom.io.network_table import read_network
 from heatloom.model import Stream, StreamTable, Utility, UtilityKind
+from heatloom.model.costs import CostLaw, CostSettings
+from heatloom.model.existing import ExistingUnit
 from heatloom.network import design_mer
-from heatloom.retrofit.existing import ExistingNetwork, ExistingUnit
+from heatloom.retrofit.existing import ExistingNetwork
 from heatloom.retrofit.options import (
     Change,
     ChangeKind,

@@ -19,19 +19,13 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from refdata import reference_utilities
 
-from heatloom.equipment.sizing import FlowArrangement
 from heatloom.errors import InputError
 from heatloom.model import Segment, Stream, StreamTable, Utility, UtilityKind
+from heatloom.model.exchangers import FlowArrangement
+from heatloom.model.existing import ExistingUnit, OperatingMode, UnitRole
 from heatloom.network import check_network, design_mer
-from heatloom.network.design import ideal_utilities
-from heatloom.retrofit.existing import (
-    ExistingNetwork,
-    ExistingUnit,
-    OperatingMode,
-    UnitRole,
-    heat_between,
-    temperature_after,
-)
+from heatloom.pinch.utilities import ideal_utilities
+from heatloom.retrofit.existing import ExistingNetwork, heat_between, temperature_after
 from heatloom.retrofit.simulate import simulate
 
 CC, CO, ST = FlowArrangement.COUNTER_CURRENT, FlowArrangement.CO_CURRENT, FlowArrangement.SHELL_AND_TUBE_1_2

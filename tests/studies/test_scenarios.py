@@ -24,13 +24,14 @@ import pytest
 from refdata import load_reference, reference_utilities
 
 from heatloom import defaults as network_data
-from heatloom.equipment import CostLaw, CostSettings
 from heatloom.errors import InputError
 from heatloom.io.export import to_jsonable
-from heatloom.model import StreamTable, Utility, UtilityKind
-from heatloom.network.design import design_mer, ideal_utilities
-from heatloom.pinch.site import Zone
-from heatloom.studies.scenarios import PriceScenario, ScenarioStudy, price_factor_scenarios, scenario_study
+from heatloom.model import CostLaw, CostSettings, StreamTable, Utility, UtilityKind
+from heatloom.model.prices import PriceScenario, price_factor_scenarios
+from heatloom.model.site import Zone
+from heatloom.network.design import design_mer
+from heatloom.pinch.utilities import ideal_utilities
+from heatloom.studies.scenarios import ScenarioStudy, scenario_study
 from heatloom.studies.sweep import sweep, sweep_point
 
 H = 0.5   # kW/(m²·K), invented: one film coefficient for streams whose source prints none

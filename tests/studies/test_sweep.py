@@ -16,10 +16,9 @@ import sys
 import numpy as np
 import pytest
 
-from heatloom.equipment import CostLaw, CostSettings
 from heatloom.errors import InfeasibleError, InputError
 from heatloom.io.export import to_jsonable
-from heatloom.model import Stream, StreamTable
+from heatloom.model import CostLaw, CostSettings, Stream, StreamTable
 from heatloom.network import design_mer
 from heatloom.pinch import target
 from heatloom.pinch.area import area_targets

@@ -1,0 +1,174 @@
+"""The units of an existing network as the plant gives them (one row per unit of a network table).
+
+:class:`ExistingUnit` is the model type the network-table reader produces; resolving a set of units
+against the streams (roles, positions, U from film coefficients, areas from stated duties) is the job of
+:class:`heatloom.retrofit.ExistingNetwork`.
+"""
+
+from __future__ import annotations
+
+import enum
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from ..errors import InputError
+from .exchangers import FlowArrangement
+
+__all__ = ["UnitRole", "OperatingMode", "ExistingUnit"]
+
+
+class UnitRole(enum.Enum):
+    """What a unit joins: two process streams, a hot utility and a cold stream, or a hot stream and a
+    cold utility."""
+
+    EXCHANGER = "exchanger"
+    HEATER = "heater"
+    COOLER = "cooler"
+
+
+class OperatingMode(enum.Enum):
+    """How a unit works in the simulation (see the module notes)."""
+
+    RATED = "rated"
+    """ε-NTU at its area and U."""
+    TRIM = "trim"
+    """Last heater or cooler of a stream: brings the stream to its target."""
+    FIXED_DUTY = "fixed duty"
+    """Heater or cooler inside a stream: keeps its stated duty."""
+
+
+def _arrangement_of(value) -> FlowArrangement:
+    if isinstance(value, FlowArrangement):
+        return value
+    try:
+        return FlowArrangement(value)
+    except ValueError:
+        allowed = ", ".join(a.value for a in FlowArrangement)
+        raise InputError(f"unknown exchanger type {value!r}; allowed: {allowed}", column="type") from None
+
+
+@dataclass(frozen=True)
+class ExistingUnit:
+    """One unit of an existing network, as given and as completed by :class:`ExistingNetwork`.
+
+    Parameters
+    ----------
+    name : str
+        Unique tag of the unit (e.g. ``E-101``).
+    hot, cold : str
+        The hot side (hot stream or hot utility) and the cold side (cold stream or cold utility), by name.
+    area : float, optional
+        Heat-transfer area [m²] (for 1-2 shells in series, of all shells).  Filled in from ``duty`` when
+        the temperatures at the unit are known (``area_from_duty`` is then True).
+    duty : float, optional
+        Stated duty [kW] (design or measured).  Used when there is no area, kept for a fixed-duty heater
+        or cooler, and otherwise only checked and reported beside the simulated duty.
+    u : float, optional
+        Overall heat transfer coefficient [kW/(m²·K)]; filled in from the film coefficients of the two
+        sides, 1/U = 1/h_hot + 1/h_cold (``u_from_films`` is then True).
+    arrangement : FlowArrangement, optional
+        Counter-current (default), co-current or 1-2 shell-and-tube.
+    shells : int, optional
+        1-2 shells in series [-] (shell-and-tube only).
+    hot_position, cold_position : int, optional
+        Position along the hot and the cold process stream from its supply end, 1-based [-]; default the
+        order of the units in the network.  None on a utility side.
+    row : int, optional
+        Row of the source table (for messages).
+
+    Attributes filled in by :class:`ExistingNetwork`: ``role`` (:class:`UnitRole`), ``mode``
+    (:class:`OperatingMode`), ``area_from_duty``, ``u_from_films``.
+    """
+
+    name: str
+    hot: str
+    cold: str
+    area: float | None = None
+    duty: float | None = None
+    u: float | None = None
+    arrangement: FlowArrangement = FlowArrangement.COUNTER_CURRENT
+    shells: int = 1
+    hot_position: int | None = None
+    cold_position: int | None = None
+    row: int | None = field(default=None, compare=False)
+    role: UnitRole | None = None
+    mode: OperatingMode | None = None
+    area_from_duty: bool = False
+    u_from_films: bool = False
+
+    def __post_init__(self) -> None:
+        where = {"row": self.row}
+        name = str(self.name).strip()
+        if not name:
+            raise InputError("unit name is empty", column="unit", **where)
+        object.__setattr__(self, "name", name)
+        for side in ("hot", "cold"):
+            v = str(getattr(self, side)).strip()
+            if not v:
+                raise InputError(f"unit '{name}': the {side} side is empty; name a {side} stream or a "
+                                 f"{side} utility", column=side, **where)
+            object.__setattr__(self, side, v)
+        for attr, column, unit in (("area", "area", "m²"), ("duty", "duty", "kW"), ("u", "U", "kW/(m²·K)")):
+            v = getattr(self, attr)
+            if v is None:
+                continue
+            try:
+                x = float(v)
+            except (TypeError, ValueError):
+                raise InputError(f"unit '{name}': {column} must be a number [{unit}], got {v!r}",
+                                 column=column, **where) from None
+            if not (x > 0) or not math.isfinite(x):
+                raise InputError(f"unit '{name}': {column} must be a finite number > 0 {unit}, got {v!r}",
+                                 column=column, **where)
+            object.__setattr__(self, attr, x)
+        try:
+            object.__setattr__(self, "arrangement", _arrangement_of(self.arrangement))
+        except InputError as e:
+            raise InputError(f"unit '{name}': {e.message}", row=self.row, column="type") from None
+        shells = self.shells
+        if isinstance(shells, float) and shells.is_integer():
+            shells = int(shells)
+        if isinstance(shells, bool) or not isinstance(shells, (int, np.integer)) or shells < 1:
+            raise InputError(f"unit '{name}': shells must be a whole number >= 1, got {self.shells!r}",
+                             column="shells", **where)
+        if shells > 1 and self.arrangement is not FlowArrangement.SHELL_AND_TUBE_1_2:
+            raise InputError(f"unit '{name}': {shells} shells given for a {self.arrangement.value} unit; shells "
+                             "in series apply to type shell_and_tube_1_2 only", column="shells", **where)
+        object.__setattr__(self, "shells", int(shells))
+        for attr, column in (("hot_position", "hot_order"), ("cold_position", "cold_order")):
+            v = getattr(self, attr)
+            if v is None:
+                continue
+            if isinstance(v, float) and v.is_integer():
+                v = int(v)
+            if isinstance(v, bool) or not isinstance(v, (int, np.integer)) or v < 1:
+                raise InputError(f"unit '{name}': {column} must be a whole number >= 1 (position from the "
+                                 f"stream's supply end), got {getattr(self, attr)!r}", column=column, **where)
+            object.__setattr__(self, attr, int(v))
+
+    @property
+    def is_utility_unit(self) -> bool:
+        """True for a heater or a cooler."""
+        return self.role in (UnitRole.HEATER, UnitRole.COOLER)
+
+    @property
+    def process_streams(self) -> tuple[str, ...]:
+        """The process streams the unit sits on (two for an exchanger, one for a heater or cooler)."""
+        if self.role is UnitRole.HEATER:
+            return (self.cold,)
+        if self.role is UnitRole.COOLER:
+            return (self.hot,)
+        return (self.hot, self.cold)
+
+    def to_dict(self) -> dict:
+        return {"unit": self.name, "hot": self.hot, "cold": self.cold, "role": _value(self.role),
+                "mode": _value(self.mode), "area": self.area, "duty": self.duty, "U": self.u,
+                "type": self.arrangement.value, "shells": self.shells, "hot_order": self.hot_position,
+                "cold_order": self.cold_position, "area_from_duty": self.area_from_duty,
+                "U_from_films": self.u_from_films}
+
+
+def _value(e):
+    return None if e is None else e.value
