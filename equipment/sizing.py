@@ -617,7 +617,7 @@ class ShellDesign:
                     f"P = {self.p:.3g}); count set by {self.set_by}.")
         return (f"{head} Criteria: P of each shell at most X_P = {self.x_p:g} of its maximum "
                 f"(Ahmad, Linnhoff & Smith 1988), and F at least {self.min_f:g} (common practice). "
-                f"{defaults.CAUTION}")
+                f"{defaults.SAFETY_NOTE}")
 
 
 def shell_design(hot_in, hot_out, cold_in, cold_out, *, x_p=defaults.X_P, min_f=defaults.MIN_F_FACTOR) -> ShellDesign:

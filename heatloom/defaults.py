@@ -36,7 +36,13 @@ __all__ = [
     "MAX_HOURS_PER_YEAR",
     "MAX_EXPONENT",
     "MAX_INTEREST_RATE",
-    "CAUTION",
+    "SAFETY_NOTE",
+    "SAFETY_TEXT",
+    "DT_MIN",
+    "SWEEP_RANGE",
+    "SWEEP_STEP",
+    "EMAT",
+    "TAC_TIME_LIMIT",
     "IDEAL_UTILITY_MARGIN",
     "DEFAULT_HOT_UTILITY_PRICE",
     "DEFAULT_COLD_UTILITY_PRICE",
@@ -93,9 +99,17 @@ MAX_EXPONENT = 1.5
 MAX_INTEREST_RATE = 1.0
 """Largest interest rate accepted [1/year]: rates are fractions (0.1 for 10 %)."""
 
-CAUTION = ("Screening estimates only: designs must be checked against local codes and standards by "
-           "qualified, licensed engineers.")
-"""The caution carried by sizing and costing statements."""
+SAFETY_NOTE = ("Targets and designs from heatloom are screening estimates. Check every design against "
+               "local codes and have it reviewed by qualified, licensed engineers.")
+"""The one-line caution every human output, costing statement and JSON result carries."""
+
+SAFETY_TEXT = (
+    "Pinch targets and the networks built on them are screening estimates from the data given. They do not "
+    "check pressure and temperature ratings, materials, fouling, thermal-oil or steam-system hazards, control, "
+    "start-up or upset cases, and a too-small ΔTmin or a temperature cross hidden by averaged data can make a "
+    "real exchanger fail to perform. Keep design margins, and have every design checked against local codes "
+    "and standards and reviewed by qualified, licensed engineers before anything is built or changed.")
+"""The general caution of every report (the Safety section of the README)."""
 
 IDEAL_UTILITY_MARGIN = 20.0
 """When no utilities are given, design assumes an isothermal hot utility this much plus ΔTmin above the
@@ -117,6 +131,28 @@ condensing steam; illustrative)."""
 DEFAULT_COLD_UTILITY_FILM_COEFFICIENT = 2.0
 """Film coefficient of the assumed cold utility [kW/(m²·K)] (common practice order of magnitude for
 cooling water in tubes; illustrative)."""
+
+# --------------------------------------------------------------------------------------------------
+# commands and studies: the defaults every command states in its output
+
+DT_MIN = 10.0
+"""Default minimum approach temperature [K] (*common practice* for a first look at liquid–liquid
+duties; gas streams and refrigeration usually need other values). Stated in every output."""
+
+SWEEP_RANGE = (5.0, 40.0)
+"""ΔTmin range swept when none is given [K] (*common practice*: spans the usual values for
+process-to-process duties, from close approaches with good exchangers to generous ones). Stated in
+every output; a report widens it to hold the ΔTmin of its study."""
+
+SWEEP_STEP = 0.5
+"""Grid step of a ΔTmin sweep [K]."""
+
+EMAT = 1.0
+"""Exchanger minimum approach temperature of the lowest-TAC design when none is given [K] (the value used
+by most published TAC benchmarks; stated in every output)."""
+
+TAC_TIME_LIMIT = 120.0
+"""Wall-clock limit of a lowest-total-annual-cost design when none is given [s]."""
 
 # --------------------------------------------------------------------------------------------------
 # retrofit (heatloom.retrofit.options): illustrative defaults, common practice, not a quotation

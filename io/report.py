@@ -34,14 +34,14 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .workbook import SAFETY_TEXT, NotComputed, RunSettings, Study
+from .. import defaults
+from .workbook import NotComputed, RunSettings, Study
 
 __all__ = [
     "NotComputed",
     "RunSettings",
     "Study",
     "RenderedReport",
-    "SAFETY_TEXT",
     "figure_svg",
     "retrofit_curve_figure",
     "methods_used",
@@ -787,5 +787,5 @@ def build_page(study, plan, page: _Page, *, lede: str, workbook: str = "study.xl
         f'<span id="figure-count">{page.figures}</span> figures; every table is also in the workbook '
         f"{_esc(workbook)}.</p>{skipped}</header>\n"
         f'<nav aria-label="Contents"><ol>{nav}</ol></nav>\n<main>\n' + "\n".join(body) + "\n</main>\n"
-        f"<footer>{_esc(study.safety_note or SAFETY_TEXT)}</footer>\n</body>\n</html>\n")
+        f"<footer>{_esc(study.safety_note or defaults.SAFETY_TEXT)}</footer>\n</body>\n</html>\n")
     return RenderedReport(doc, sections, page.figures, tuple(page.skipped))

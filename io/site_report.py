@@ -16,6 +16,7 @@ from __future__ import annotations
 from collections.abc import Mapping
 from dataclasses import dataclass, field
 
+from .. import defaults
 from .report import (
     RenderedReport,
     _about_table,
@@ -28,7 +29,7 @@ from .report import (
     _safety,
     build_page,
 )
-from .workbook import SAFETY_TEXT, NotComputed
+from .workbook import NotComputed
 
 __all__ = ["SiteStudy", "SITE_SHEETS", "site_methods", "render_site_report", "site_sheets"]
 
@@ -130,7 +131,7 @@ class SiteStudy:
 
     def cautions(self) -> list[str]:
         """The cautions of the site run: the general one first."""
-        out = [SAFETY_TEXT]
+        out = [defaults.SAFETY_TEXT]
         if self.safety_note:
             out.append(self.safety_note)
         out += ["Steam mains also need pressure ratings, relief and letdown design checked by qualified, licensed "

@@ -27,10 +27,10 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .. import defaults
 from ..model import StreamTable, Utility
 
 __all__ = [
-    "SAFETY_TEXT",
     "NotComputed",
     "RunSettings",
     "Study",
@@ -55,15 +55,6 @@ RETROFIT_SHEETS = ("retrofit", "retrofit units", "retrofit cross-pinch", "retrof
 
 # --------------------------------------------------------------------------------------------------
 # the study
-
-
-SAFETY_TEXT = (
-    "Pinch targets and the networks built on them are screening estimates from the data given. They do not "
-    "check pressure and temperature ratings, materials, fouling, thermal-oil or steam-system hazards, control, "
-    "start-up or upset cases, and a too-small ΔTmin or a temperature cross hidden by averaged data can make a "
-    "real exchanger fail to perform. Keep design margins, and have every design checked against local codes "
-    "and standards and reviewed by qualified, licensed engineers before anything is built or changed.")
-"""The general caution of every report (the Safety section of the README)."""
 
 
 @dataclass(frozen=True)
@@ -286,7 +277,7 @@ class Study:
 
     def cautions(self) -> list[str]:
         """The cautions of this run: the general one first, then those its inputs and results call for."""
-        out = [SAFETY_TEXT]
+        out = [defaults.SAFETY_TEXT]
         if self.safety_note:
             out.append(self.safety_note)
         out.append(f"ΔTmin {self.dt_min:g} K applies to every match: check that it suits the fluids and exchanger "

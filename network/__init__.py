@@ -16,7 +16,7 @@ from .placement import PlacedUnit, Placement, Side, stage_model
 from .solvers import SolveReport, SolverName, SolveStatus, available_solvers, resolve_solver, solve
 from .structure import Cooler, Exchanger, Heater, Network, approach_violations, check_network
 from .tac.nlp import TacProblem, Topology, TopologySolution, make_problem, polish_splits, solve_topology
-from .tac.search import DEFAULT_EMAT, design_tac, network_from_solution, stagewise_milp, topology_from_network
+from .tac.search import design_tac, network_from_solution, stagewise_milp, topology_from_network
 from .transshipment import Transshipment, transshipment
 
 __all__ = [
@@ -54,7 +54,7 @@ __all__ = [
     "make_problem",
     "polish_splits",
     "solve_topology",
-    "DEFAULT_EMAT",
+    "defaults.EMAT",
     "design_tac",
     "network_from_solution",
     "stagewise_milp",

@@ -683,7 +683,7 @@ def area_targets(targets: Targets, costs=None, *, default_film_coefficient: floa
              f"Capital: the target area shared equally among the {count} target units ({what}; common "
              f"practice), exchanger law {costs.exchanger.text(costs.currency)} for every unit, annualised "
              f"(factor {costs.annualisation_factor:.4f} per year). Energy: utility duties × prices. "
-             f"{defaults.CAUTION}")
+             f"{defaults.SAFETY_NOTE}")
     return AreaTargets(float(targets.dt_min), area, units, units_mer, shells, shells_real, capital, energy,
                        capital + energy, targets.hot_utility, targets.cold_utility, costs.currency, basis_kind,
                        basis)

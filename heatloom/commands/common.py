@@ -8,21 +8,18 @@ from collections import Counter
 from collections.abc import Collection, Mapping
 from pathlib import Path
 
+from .. import defaults
+
 EXIT_OK, EXIT_UNEXPECTED, EXIT_INPUT, EXIT_INFEASIBLE = 0, 1, 2, 3
 """Exit codes of every command."""
 
-__all__ = ["EXIT_OK", "EXIT_UNEXPECTED", "EXIT_INPUT", "EXIT_INFEASIBLE", "DEFAULT_DT_MIN", "SAFETY_NOTE", "positive", "positive_or_zero", "add_shared", "add_table_options",
+__all__ = ["EXIT_OK", "EXIT_UNEXPECTED", "EXIT_INPUT", "EXIT_INFEASIBLE", "positive", "positive_or_zero", "add_shared", "add_table_options",
            "note", "read_inputs", "whole_number", "add_output_options", "dt_min_of", "fmt", "solves_summary", "print_json", "finish", "CASE_SUFFIXES",
            "CASE_ROLES", "case_candidates", "find_case_files", "ProgressBars", "add_cost_target_options",
            "add_site_table_options", "check_cost_target_inputs", "number_list", "zone_streams",
            "read_scenario_inputs"]
 
-DEFAULT_DT_MIN = 10.0
-"""Default minimum approach temperature [K] (*common practice* for a first look at liquid–liquid
-duties; gas streams and refrigeration usually need other values). Stated in every output."""
 
-SAFETY_NOTE = ("Targets and designs from heatloom are screening estimates. Check every design against "
-               "local codes and have it reviewed by qualified, licensed engineers.")
 
 def positive_or_zero(text: str) -> float:
     try:
@@ -91,7 +88,7 @@ def add_output_options(p: argparse.ArgumentParser) -> None:
 
 def add_shared(p: argparse.ArgumentParser) -> None:
     p.add_argument("--dtmin", type=positive_or_zero, default=None, metavar="K",
-                   help=f"minimum approach temperature [K] (default {DEFAULT_DT_MIN:g} K)")
+                   help=f"minimum approach temperature [K] (default {defaults.DT_MIN:g} K)")
     p.add_argument("--utilities", metavar="FILE",
                    help="utility table (CSV or .xlsx): name,T_supply,T_target,cost [money per kW·year]")
     p.add_argument("--hours-per-year", type=positive, default=None, metavar="H",
@@ -215,7 +212,7 @@ def solves_summary(reports) -> str:
 def dt_min_of(args) -> tuple[float, str]:
     """The ΔTmin of a run [K] and how it was chosen (stated in every output)."""
     if args.dtmin is None:
-        return DEFAULT_DT_MIN, "default; set with --dtmin"
+        return defaults.DT_MIN, "default; set with --dtmin"
     return args.dtmin, "given"
 
 

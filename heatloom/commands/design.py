@@ -5,8 +5,8 @@ from __future__ import annotations
 import argparse
 import sys
 
+from .. import defaults
 from .common import (
-    SAFETY_NOTE,
     add_shared,
     add_table_options,
     dt_min_of,
@@ -70,20 +70,13 @@ def register(sub) -> None:
     tac = p.add_argument_group("--mode tac")
     tac.add_argument("--emat", type=positive, default=None, metavar="K",
                      help=f"exchanger minimum approach temperature at both ends of every unit [K] "
-                          f"(default {DEFAULT_EMAT:g} K)")
+                          f"(default {defaults.EMAT:g} K)")
     tac.add_argument("--seed", type=int, default=0, metavar="N", help="seed of the search (default 0)")
     tac.add_argument("--starts", type=whole_number(1), default=2, metavar="N",
                      help="independent searches run side by side on local processes (default 2)")
     tac.add_argument("--rounds", type=whole_number(0), default=40, metavar="N",
                      help="kicks of the iterated local search per start (default 40)")
     p.set_defaults(handler=run)
-
-
-DEFAULT_EMAT = 1.0
-"""Default EMAT of --mode tac [K]; the same as heatloom.network.tac.search.DEFAULT_EMAT (kept here so that the
-parser does not import the numerical modules)."""
-TAC_TIME_LIMIT = 120.0
-"""Default wall-clock limit of a --mode tac run [s]."""
 
 
 class _Progress:
@@ -144,7 +137,7 @@ def format_network(net, source: str, dt_note: str, approach: str = "ΔTmin") -> 
     lines.append("  " + solves_summary(net.solves))
     for n in net.notes:
         lines.append(f"  note: {n}")
-    lines.append(f"  note: {SAFETY_NOTE}")
+    lines.append(f"  note: {defaults.SAFETY_NOTE}")
     return "\n".join(lines)
 
 
@@ -167,7 +160,7 @@ def run(args) -> int:
 
         costs = read_costs(args.costs)
     if tac:
-        dt_min, dt_note = (DEFAULT_EMAT, "EMAT default for --mode tac; set with --emat") if args.emat is None \
+        dt_min, dt_note = (defaults.EMAT, "EMAT default for --mode tac; set with --emat") if args.emat is None \
             else (args.emat, "EMAT given")
     else:
         dt_min, dt_note = dt_min_of(args)
@@ -185,7 +178,7 @@ def run(args) -> int:
         bar = _Progress(not (args.quiet or args.json), costs.currency if costs is not None else network_data.CURRENCY)
         try:
             net = design_tac(streams, utilities, costs=costs, emat=dt_min,
-                             time_limit=args.time_limit or TAC_TIME_LIMIT, seed=args.seed, starts=args.starts,
+                             time_limit=args.time_limit or defaults.TAC_TIME_LIMIT, seed=args.seed, starts=args.starts,
                              rounds=args.rounds, solver=args.solver, default_film_coefficient=args.default_h,
                              progress=bar)
         finally:

@@ -14,6 +14,7 @@ import argparse
 import sys
 from pathlib import Path
 
+from .. import defaults
 from ..errors import HeatloomError, InputError
 from .common import (
     CASE_ROLES,
@@ -21,7 +22,6 @@ from .common import (
     EXIT_INPUT,
     EXIT_OK,
     EXIT_UNEXPECTED,
-    SAFETY_NOTE,
     add_shared,
     add_table_options,
     case_candidates,
@@ -34,21 +34,10 @@ from .common import (
     read_scenario_inputs,
 )
 
-__all__ = ["register", "run", "run_site", "is_site_folder", "find_case_files", "compute_study", "OUTPUT_FILES", "SWEEP_RANGE", "SWEEP_STEP",
-           "TAC_TIME_LIMIT"]
+__all__ = ["register", "run", "run_site", "is_site_folder", "find_case_files", "compute_study", "OUTPUT_FILES", ]
 
 OUTPUT_FILES = ("report.html", "study.xlsx")
 """Files written into the output folder."""
-
-SWEEP_RANGE = (5.0, 40.0)
-"""ΔTmin range of the report's sweep [K] when none is given (the sweep command's default, *common
-practice*); widened to hold the ΔTmin of the study."""
-
-SWEEP_STEP = 0.5
-"""Grid step of the report's sweep [K]."""
-
-TAC_TIME_LIMIT = 120.0
-"""Wall-clock limit of the lowest-total-annual-cost design [s] when none is given."""
 
 ROLES = CASE_ROLES
 """Keyword in a case folder's file name → the role of that file (the finder shared with ``retrofit``)."""
@@ -98,7 +87,7 @@ def register(sub) -> None:
     p.add_argument("--default-h", type=positive, metavar="H",
                    help="film coefficient [kW/(m²·K)] assumed for streams and utilities without one")
     p.add_argument("--sweep", type=_range, default=None, metavar="LO:HI",
-                   help=f"ΔTmin range of the sweep [K] (default {SWEEP_RANGE[0]:g}:{SWEEP_RANGE[1]:g}, widened to "
+                   help=f"ΔTmin range of the sweep [K] (default {defaults.SWEEP_RANGE[0]:g}:{defaults.SWEEP_RANGE[1]:g}, widened to "
                         "hold --dtmin)")
     p.add_argument("--solver", choices=["highs", "cbc"], default=None,
                    help="MILP solver (default: HiGHS when installed, else CBC)")
@@ -108,8 +97,8 @@ def register(sub) -> None:
                    help="also search for the network of lowest total annual cost (takes up to --tac-time-limit)")
     p.add_argument("--emat", type=positive, default=None, metavar="K",
                    help="exchanger minimum approach of the --tac design [K] (default 1 K)")
-    p.add_argument("--tac-time-limit", type=positive, default=TAC_TIME_LIMIT, metavar="S",
-                   help=f"wall-clock limit of the --tac design [s] (default {TAC_TIME_LIMIT:g} s)")
+    p.add_argument("--tac-time-limit", type=positive, default=defaults.TAC_TIME_LIMIT, metavar="S",
+                   help=f"wall-clock limit of the --tac design [s] (default {defaults.TAC_TIME_LIMIT:g} s)")
     p.add_argument("--site-dt", type=positive_or_zero, default=0.0, metavar="K",
                    help="site folders: extra temperature difference for raising and using steam [K] (default 0 K)")
     p.set_defaults(handler=run)
@@ -281,7 +270,7 @@ def compute_study(streams, dt_min: float, utilities=None, costs=None, *, existin
         tac_net = _step(tac, "the lowest-total-annual-cost design (heatloom.network.tac.search)")
     else:
         tac_net = NotComputed("not asked for: add --tac to search for the network of lowest total annual cost "
-                              f"(a heuristic search of up to --tac-time-limit, {settings.tac_time_limit or TAC_TIME_LIMIT:g} s by default)")
+                              f"(a heuristic search of up to --tac-time-limit, {settings.tac_time_limit or defaults.TAC_TIME_LIMIT:g} s by default)")
 
     diagnosis = retrofit = None
     if existing is not None:
@@ -304,7 +293,7 @@ def compute_study(streams, dt_min: float, utilities=None, costs=None, *, existin
         retrofit = _step(options, "the retrofit options (heatloom.retrofit.options)")
     return Study(streams=streams, dt_min=dt_min, targets=t, utilities=None if utilities is None else tuple(utilities),
                  costs=costs_in_force, default_film_coefficient=h, area=a, sweep=w, design=design, tac=tac_net,
-                 diagnosis=diagnosis, retrofit=retrofit, existing=existing, settings=settings, safety_note=SAFETY_NOTE, **fields)
+                 diagnosis=diagnosis, retrofit=retrofit, existing=existing, settings=settings, safety_note=defaults.SAFETY_NOTE, **fields)
 
 
 class _Bar:
@@ -359,7 +348,7 @@ def site_scenarios(args, zones, found: dict):
             zones, utilities=args.utilities or first("utilities"), prices=first("prices"),
             costs=args.costs or first("costs"), hours_per_year=args.hours_per_year)
         check_cost_target_inputs(missing, args.default_h, None)
-        return scenario_study(zones, args.sweep or SWEEP_RANGE, utilities, plans, costs, step=SCENARIO_STEP,
+        return scenario_study(zones, args.sweep or defaults.SWEEP_RANGE, utilities, plans, costs, step=SCENARIO_STEP,
                               default_film_coefficient=args.default_h, workers=1)
 
     return _step(run_study, "the price-scenario study (heatloom.studies.scenarios)")
@@ -403,7 +392,7 @@ def run_site(args) -> int:
         sources.update({role: str(files[0]) for role, files in found.items() if len(files) == 1})
     study = SiteStudy(title=f"Site study: {path.name}", site=site, frames=site.frames(), dt_min_note=dt_note,
                       zone_sources=dict(site_in.zone_sources), mains_source=site_in.mains_source, sources=sources,
-                      notes=tuple(notes), safety_note=SAFETY_NOTE, version=__version__,
+                      notes=tuple(notes), safety_note=defaults.SAFETY_NOTE, version=__version__,
                       created=datetime.datetime.now().astimezone().isoformat(timespec="seconds"),
                       command=_command_line(args), scenarios=scenarios)
     rendered = render_site_report(study)
@@ -465,18 +454,14 @@ def run(args) -> int:
         else:
             existing = read_network(files["existing network"], streams, utilities)
     dt_min, dt_note = dt_min_of(args)
-    sweep_range = args.sweep or (min(SWEEP_RANGE[0], dt_min) if dt_min > 0 else SWEEP_RANGE[0],
-                                 max(SWEEP_RANGE[1], dt_min))
+    sweep_range = args.sweep or (min(defaults.SWEEP_RANGE[0], dt_min) if dt_min > 0 else defaults.SWEEP_RANGE[0],
+                                 max(defaults.SWEEP_RANGE[1], dt_min))
     emat = args.emat
     if args.tac and emat is None:
-        try:
-            from ..network.tac.search import DEFAULT_EMAT
-        except ImportError:
-            DEFAULT_EMAT = 1.0  # noqa: N806 - the TAC step will say that the design is not available
-        emat = DEFAULT_EMAT
+        emat = defaults.EMAT
     sweep_note = "given (--sweep)" if args.sweep else \
         "default range (that of the sweep command), widened to hold the ΔTmin of the study; set with --sweep"
-    settings = RunSettings(sweep_range=sweep_range, sweep_step=SWEEP_STEP, sweep_note=sweep_note, solver=args.solver,
+    settings = RunSettings(sweep_range=sweep_range, sweep_step=defaults.SWEEP_STEP, sweep_note=sweep_note, solver=args.solver,
                            time_limit=args.time_limit, tac=args.tac, emat=emat, tac_time_limit=args.tac_time_limit,
                            command=_command_line(args))
     steps = 5 + 2 * (existing is not None) + 2

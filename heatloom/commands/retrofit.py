@@ -5,9 +5,9 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
+from .. import defaults
 from ..errors import InputError
 from .common import (
-    SAFETY_NOTE,
     add_shared,
     add_table_options,
     dt_min_of,
@@ -170,7 +170,7 @@ def format_retrofit(result, source: str, dt_note: str) -> str:
     for n in result.notes:
         lines.append(f"  note: {n}")
     lines.append(f"  note: {result.costs.describe()} {result.retrofit_costs.describe(cur)}")
-    lines.append(f"  note: {SAFETY_NOTE} Retrofit changes also need the plant's hydraulics, materials and fouling "
+    lines.append(f"  note: {defaults.SAFETY_NOTE} Retrofit changes also need the plant's hydraulics, materials and fouling "
                  "checked.")
     return "\n".join(lines)
 
@@ -229,7 +229,7 @@ def run(args) -> int:
     data = result.to_dict()
     data["source"] = {role: str(p) for role, p in files.items()}
     data["dtmin_note"] = dt_note
-    data["safety_note"] = SAFETY_NOTE
+    data["safety_note"] = defaults.SAFETY_NOTE
     if out is not None:
         from ..io.retrofit_figures import grid_figures, savings_investment_figure
 

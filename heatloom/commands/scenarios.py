@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import argparse
 
+from .. import defaults
 from .common import (
-    SAFETY_NOTE,
     ProgressBars,
     add_cost_target_options,
     add_output_options,
@@ -18,7 +18,7 @@ from .common import (
     positive,
     read_scenario_inputs,
 )
-from .sweep import DEFAULT_RANGE, parse_range
+from .sweep import parse_range
 
 __all__ = ["register", "run", "format_study", "parse_factors", "parse_span", "DEFAULT_STEP", "OUTPUT_FILES"]
 
@@ -89,7 +89,7 @@ def register(sub) -> None:
     p.add_argument("path", metavar="PATH",
                    help="one stream table, a folder of zone stream tables, or a workbook with one sheet per zone")
     p.add_argument("--dtmin", type=parse_span, default=None, metavar="LO:HI",
-                   help=f"ΔTmin range [K], or one value (default {DEFAULT_RANGE[0]:g}:{DEFAULT_RANGE[1]:g})")
+                   help=f"ΔTmin range [K], or one value (default {defaults.SWEEP_RANGE[0]:g}:{defaults.SWEEP_RANGE[1]:g})")
     p.add_argument("--step", type=positive, default=DEFAULT_STEP, metavar="K",
                    help=f"ΔTmin step of the cases [K] (default {DEFAULT_STEP:g})")
     p.add_argument("--utilities", metavar="FILE",
@@ -159,7 +159,7 @@ def format_study(study, source: str, range_note: str) -> str:
     for n in study.notes:
         lines.append(f"  note: {n}")
     lines.append(f"  note: {study.basis}")
-    lines.append(f"  note: {SAFETY_NOTE}")
+    lines.append(f"  note: {defaults.SAFETY_NOTE}")
     return "\n".join(lines)
 
 
@@ -174,7 +174,7 @@ def run(args) -> int:
         site.zones, utilities=args.utilities, utilities_sheet=args.utilities_sheet, prices=args.prices,
         costs=args.costs, hours_per_year=args.hours_per_year)
     scenarios = (*scenarios, *price_factor_scenarios(args.price_factors))
-    rng, range_note = (args.dtmin, "given") if args.dtmin is not None else (DEFAULT_RANGE, "default; set with --dtmin LO:HI")
+    rng, range_note = (args.dtmin, "given") if args.dtmin is not None else (defaults.SWEEP_RANGE, "default; set with --dtmin LO:HI")
     check_cost_target_inputs(missing, args.default_h, args.cluster)
     out = None
     if args.out:
@@ -203,7 +203,7 @@ def run(args) -> int:
     data["step"] = args.step
     if missing:
         data["notes"].append(f"film coefficient {args.default_h:g} kW/(m²·K) assumed for {', '.join(missing)}")
-    data["notes"].append(SAFETY_NOTE)
+    data["notes"].append(defaults.SAFETY_NOTE)
     if out is not None:
         import pandas as pd
 

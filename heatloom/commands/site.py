@@ -4,10 +4,9 @@ from __future__ import annotations
 
 import argparse
 
+from .. import defaults
 from ..errors import InputError
 from .common import (
-    DEFAULT_DT_MIN,
-    SAFETY_NOTE,
     add_site_table_options,
     dt_min_of,
     finish,
@@ -49,7 +48,7 @@ def register(sub) -> None:
     p.add_argument("--mains", metavar="FILE",
                    help="mains table (CSV or .xlsx): name, T [°C], optional cost [money per kW·year], kind")
     p.add_argument("--dtmin", type=positive_or_zero, default=None, metavar="K",
-                   help=f"minimum approach temperature of every zone [K] (default {DEFAULT_DT_MIN:g} K)")
+                   help=f"minimum approach temperature of every zone [K] (default {defaults.DT_MIN:g} K)")
     p.add_argument("--zone-dtmin", action="append", default=[], metavar="ZONE=K",
                    help="a zone's own ΔTmin [K]; repeat for several zones")
     p.add_argument("--site-dt", type=positive_or_zero, default=0.0, metavar="K",
@@ -147,7 +146,7 @@ def format_site(site, source: str, dt_note: str, mains_source: str | None) -> st
                      f"{site.site_cost:,.0f}, zone by zone {site.zone_by_zone_cost:,.0f})")
         if site.unpriced_mains:
             lines.append(f"                      mains without a price are left out: {', '.join(site.unpriced_mains)}")
-    lines.append(f"  note: {SAFETY_NOTE} Steam mains also need pressure ratings, relief and letdown design "
+    lines.append(f"  note: {defaults.SAFETY_NOTE} Steam mains also need pressure ratings, relief and letdown design "
                  "checked by them.")
     return "\n".join(lines)
 
@@ -176,7 +175,7 @@ def run(args) -> int:
     result["source"] = str(args.path)
     result["mains_source"] = site_in.mains_source
     result["zone_sources"] = site_in.zone_sources
-    result["note"] = SAFETY_NOTE
+    result["note"] = defaults.SAFETY_NOTE
     if out is not None:
         import matplotlib.pyplot as plt
 

@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import argparse
 
+from .. import defaults
 from .common import (
-    SAFETY_NOTE,
     ProgressBars,
     add_cost_target_options,
     add_output_options,
@@ -19,15 +19,7 @@ from .common import (
     read_inputs,
 )
 
-__all__ = ["register", "run", "format_sweep", "parse_range", "parse_designs", "DEFAULT_RANGE", "DEFAULT_STEP"]
-
-DEFAULT_RANGE = (5.0, 40.0)
-"""ΔTmin range swept when none is given [K] (*common practice*: spans the usual values for
-process-to-process duties, from close approaches with good exchangers to generous ones). Stated in
-every output."""
-
-DEFAULT_STEP = 0.5
-"""Grid step of the sweep [K]."""
+__all__ = ["register", "run", "format_sweep", "parse_range", "parse_designs"]
 
 EPILOG_SWEEP = """\
 examples:
@@ -82,9 +74,9 @@ def register(sub) -> None:
                        epilog=EPILOG_SWEEP, formatter_class=argparse.RawDescriptionHelpFormatter)
     p.add_argument("file", metavar="FILE", help="stream table: CSV or .xlsx (film coefficients in column h)")
     p.add_argument("--dtmin", type=parse_range, default=None, metavar="LO:HI",
-                   help=f"ΔTmin range [K] (default {DEFAULT_RANGE[0]:g}:{DEFAULT_RANGE[1]:g})")
-    p.add_argument("--step", type=positive, default=DEFAULT_STEP, metavar="K",
-                   help=f"grid step [K] (default {DEFAULT_STEP:g})")
+                   help=f"ΔTmin range [K] (default {defaults.SWEEP_RANGE[0]:g}:{defaults.SWEEP_RANGE[1]:g})")
+    p.add_argument("--step", type=positive, default=defaults.SWEEP_STEP, metavar="K",
+                   help=f"grid step [K] (default {defaults.SWEEP_STEP:g})")
     p.add_argument("--utilities", metavar="FILE",
                    help="utility table (CSV or .xlsx): name,T_supply,T_target,cost [money per kW·year],h")
     p.add_argument("--hours-per-year", type=positive, default=None, metavar="H",
@@ -151,7 +143,7 @@ def format_sweep(result, source: str, range_note: str, runner: str) -> str:
     for n in result.notes:
         lines.append(f"  note: {n}")
     lines.append(f"  note: {result.basis}")
-    lines.append(f"  note: {SAFETY_NOTE}")
+    lines.append(f"  note: {defaults.SAFETY_NOTE}")
     return "\n".join(lines)
 
 
@@ -165,7 +157,7 @@ def run(args) -> int:
         from ..io import read_costs
 
         costs = read_costs(args.costs)
-    rng, range_note = (args.dtmin, "given") if args.dtmin is not None else (DEFAULT_RANGE, "default; set with --dtmin LO:HI")
+    rng, range_note = (args.dtmin, "given") if args.dtmin is not None else (defaults.SWEEP_RANGE, "default; set with --dtmin LO:HI")
     missing = missing_film_coefficients(streams, utilities or ())
     check_cost_target_inputs(missing, args.default_h, args.cluster)
     out = None
@@ -201,7 +193,7 @@ def run(args) -> int:
                   "optimum": pd.DataFrame([result.optimum.to_dict()]),
                   "breakpoints": pd.DataFrame([b.to_dict() for b in result.breakpoints],
                                               columns=["dtmin_low", "dtmin_high", "change"]),
-                  "basis": pd.DataFrame({"note": [*data["notes"], result.basis, SAFETY_NOTE]})}
+                  "basis": pd.DataFrame({"note": [*data["notes"], result.basis, defaults.SAFETY_NOTE]})}
         if result.designs:
             sheets["designs"] = pd.DataFrame([d.to_dict() for d in result.designs])
         out.workbook("sweep.xlsx", sheets)

@@ -337,7 +337,7 @@ class CostSettings:
         parts.append(f"Operating hours: {self.hours_per_year:g} h/year{tag('hours_per_year')}.")
         if any(tag(k) for k in ("exchanger", "heater", "cooler", "annualised", "interest_rate", "years")):
             parts.append("Values marked (default) are illustrative defaults (common practice), not a quotation.")
-        parts.append(defaults.CAUTION)
+        parts.append(defaults.SAFETY_NOTE)
         return " ".join(parts)
 
 

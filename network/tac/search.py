@@ -43,6 +43,7 @@ from concurrent.futures import ProcessPoolExecutor
 import numpy as np
 import pulp
 
+from ... import defaults
 from ...equipment.sizing import log_mean
 from ...errors import InfeasibleError, InputError
 from ...model import StreamTable, Utility
@@ -59,11 +60,7 @@ from .nlp import (
     unit_costs,
 )
 
-__all__ = ["design_tac", "stagewise_milp", "topology_from_network", "network_from_solution", "DEFAULT_EMAT"]
-
-DEFAULT_EMAT = 1.0
-"""Exchanger minimum approach temperature of the TAC design when none is given [K] (the value used by most
-published TAC benchmarks; stated in every output)."""
+__all__ = ["design_tac", "stagewise_milp", "topology_from_network", "network_from_solution"]
 
 MER_DT_MIN = 10.0
 """ΔTmin of the maximum-energy-recovery network used as a starting topology [K] (*common practice* value
@@ -610,7 +607,7 @@ def _fallback_topology(p: TacProblem) -> Topology:
 
 
 def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None, *,
-               costs: CostSettings | None = None, emat: float = DEFAULT_EMAT, stages: int | None = None,
+               costs: CostSettings | None = None, emat: float = defaults.EMAT, stages: int | None = None,
                time_limit: float = 120.0, seed: int = 0, starts: int = 2, rounds: int = 40,
                workers: int | None = None, milp_iterations: int = 3, solver: str | None = None,
                default_film_coefficient: float | None = None,

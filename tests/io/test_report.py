@@ -16,8 +16,8 @@ import openpyxl
 import pandas as pd
 import pytest
 
-from heatloom.commands.common import SAFETY_NOTE
 from heatloom.commands.report import compute_study
+from heatloom.defaults import SAFETY_NOTE
 from heatloom.errors import InputError
 from heatloom.io import read_streams, read_utilities
 from heatloom.io.export import OutputDirectory
