@@ -23,7 +23,7 @@ converted) and ``hours_per_year`` default to :mod:`heatloom.defaults`.  Every pr
 ``exchanger.per_area``), and for workbooks the row.
 
 The optional ``retrofit`` section prices the changes of ``heatloom retrofit``
-(:class:`heatloom.retrofit.options.RetrofitCosts`), as installed capital [money] whatever ``annualised``
+(:class:`heatloom.model.RetrofitCosts`), as installed capital [money] whatever ``annualised``
 says; every key is optional (defaults in :mod:`heatloom.defaults`, illustrative)::
 
       "retrofit": {"new_exchanger": {"fixed": 15000, "per_area": 1000, "exponent": 0.8},
@@ -343,7 +343,7 @@ def retrofit_costs_from_mapping(mapping, *, source: str | os.PathLike | None = N
 
     Returns
     -------
-    heatloom.retrofit.options.RetrofitCosts
+    heatloom.model.RetrofitCosts
 
     Examples
     --------
@@ -352,7 +352,7 @@ def retrofit_costs_from_mapping(mapping, *, source: str | os.PathLike | None = N
     >>> c.repipe, c.added_area.per_area, c.resequence
     (12000.0, 900.0, 8000.0)
     """
-    from ..retrofit.options import RetrofitCosts
+    from ..model.costs import RetrofitCosts
 
     section = mapping.get("retrofit") if isinstance(mapping, Mapping) else None
     if section is None:
@@ -376,7 +376,7 @@ def read_retrofit_costs(path: str | os.PathLike):
 
     Returns
     -------
-    heatloom.retrofit.options.RetrofitCosts
+    heatloom.model.RetrofitCosts
 
     Raises
     ------

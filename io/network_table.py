@@ -1,4 +1,4 @@
-"""Reading an existing heat-exchanger network (CSV, XLSX) into a :class:`heatloom.network.ExistingNetwork`.
+"""Reading the units of an existing heat-exchanger network (CSV, XLSX) into a :class:`heatloom.model.UnitTable`.
 
 One row per unit::
 
@@ -35,15 +35,13 @@ an :class:`~heatloom.errors.InputError` naming the file, the row and the column 
 from __future__ import annotations
 
 import os
-from collections.abc import Mapping, Sequence
+from collections.abc import Mapping
 
 import numpy as np
 
 from ..errors import InputError
-from ..model import StreamTable, Utility
 from ..model.exchangers import FlowArrangement
-from ..model.existing import ExistingUnit
-from ..retrofit.existing import ExistingNetwork
+from ..model.existing import ExistingUnit, UnitTable
 from .tables import Table, normalise_name, parse_column_mapping, read_table
 from .tables import _cell_text as _text
 from .units import QuantityKind
@@ -77,18 +75,18 @@ _TYPES = {
 }
 
 
-def read_network(path: str | os.PathLike, streams: StreamTable, utilities: Sequence[Utility] | None = None, *,
-                 sheet: str | None = None, columns: Mapping[str, str] | str | None = None) -> ExistingNetwork:
-    """Read an existing network (one row per unit) from a CSV file or an Excel workbook.
+def read_network(path: str | os.PathLike, *, sheet: str | None = None,
+                 columns: Mapping[str, str] | str | None = None) -> UnitTable:
+    """Read the units of an existing network (one row per unit) from a CSV file or an Excel workbook.
+
+    The table is checked row by row here; :meth:`heatloom.retrofit.ExistingNetwork.from_table` resolves
+    it against the streams and utilities (roles, positions, U, areas from stated duties) and names the
+    file, row and column of any problem it finds.
 
     Parameters
     ----------
     path : str or path-like
         ``.csv`` or ``.xlsx`` file; never modified.
-    streams : StreamTable
-        The process streams the units sit on (:func:`heatloom.io.read_streams`).
-    utilities : sequence of Utility, optional
-        The utilities heaters and coolers use (:func:`heatloom.io.read_utilities`).
     sheet : str, optional
         Worksheet name; default the first sheet.
     columns : mapping or str, optional
@@ -97,33 +95,29 @@ def read_network(path: str | os.PathLike, streams: StreamTable, utilities: Seque
 
     Returns
     -------
-    ExistingNetwork
-        Checked and completed (roles, positions, U, areas from stated duties); ``source`` is the file.
+    UnitTable
+        The units in row order, the file name, the headers as written and the reader's notes.
 
     Raises
     ------
     InputError
         One line naming file, row and column: missing/unreadable file, missing columns, text in a number
-        cell, unknown units, an empty name, a repeated unit name, an unknown stream or utility, a stream of
-        the wrong kind on a side (a hot stream named as cold), positions that repeat, skip or are partly
-        given, an unknown type, shells that are not whole numbers, no area and no duty, no U and no film
-        coefficients, a stated duty larger than a stream can give or take or than the driving force allows,
-        a duty without an area whose temperatures are not known.
+        cell, unknown units, an empty name, no area and no duty, an unknown type, shells or positions that
+        are not whole numbers.  What needs the streams (unknown streams or utilities, a side of the wrong
+        kind, positions that repeat or skip, no U and no film coefficients, stated duties a stream cannot
+        give or take) is found by :meth:`~heatloom.retrofit.ExistingNetwork.from_table`, located the same
+        way.
 
     Examples
     --------
     >>> import pathlib, tempfile
-    >>> from heatloom.model import StreamTable, Utility
-    >>> s = StreamTable.from_arrays(["H1", "C1"], [150, 30], [60, 120], [2.0, 2.5])
-    >>> u = [Utility("steam", 180, 179, 100.0), Utility("water", 20, 30, 10.0)]
     >>> f = pathlib.Path(tempfile.mkdtemp()) / "network.csv"
     >>> _ = f.write_text("unit,hot,cold,area [ft2],U [kW/m2K],duty [kW]\\n"
     ...                  "E1,H1,C1,28.75,0.5,\\nH1,steam,C1,,,125\\nC1,H1,water,,,80\\n")
-    >>> net = read_network(f, s, u)
-    >>> round(net.unit("E1").area, 3), [x.name for x in net.on_stream("H1")]
-    (2.671, ['E1', 'C1'])
+    >>> table = read_network(f)
+    >>> [(x.name, round(x.area, 3) if x.area else x.duty) for x in table.units]
+    [('E1', 2.671), ('H1', 125.0), ('C1', 80.0)]
     """
-    utilities = tuple(utilities or ())
     mapping = parse_column_mapping(columns, NETWORK_COLUMNS)
     table = read_table(path, NETWORK_COLUMNS, required=("unit", "hot", "cold", ("area", "duty")), sheet=sheet,
                        columns=mapping, aliases=NETWORK_ALIASES,
@@ -132,10 +126,8 @@ def read_network(path: str | os.PathLike, streams: StreamTable, utilities: Seque
     notes = []
     if any(u.shells > 1 for u in units) and "type" not in table:
         notes.append("units with more than one shell and no type are taken as 1-2 shell-and-tube")
-    try:
-        return ExistingNetwork(streams, tuple(units), utilities, source=table.label, notes=tuple(notes))
-    except InputError as e:
-        raise table.locate(e) from None
+    headers = tuple((c, table.header(c)) for c in NETWORK_COLUMNS if c in table)
+    return UnitTable(tuple(units), source=table.label, headers=headers, notes=tuple(notes))
 
 
 # --------------------------------------------------------------------------------------------------

@@ -43,7 +43,7 @@ from ..equipment.sizing import overall_coefficient
 from ..errors import InputError, TemperatureCrossError
 from ..model import Segment, Stream, StreamTable, Utility
 from ..model.exchangers import FlowArrangement
-from ..model.existing import ExistingUnit, OperatingMode, UnitRole
+from ..model.existing import ExistingUnit, OperatingMode, UnitRole, UnitTable
 from ..network.structure import stream_enthalpy, stream_temperature
 
 __all__ = [
@@ -238,6 +238,17 @@ class ExistingNetwork:
             raise e.located(file=self.source) from None
         object.__setattr__(self, "units", tuple(units))
         object.__setattr__(self, "notes", tuple(dict.fromkeys(notes)))
+
+    @classmethod
+    def from_table(cls, streams: StreamTable, table: UnitTable, utilities: Sequence[Utility] = ()) -> ExistingNetwork:
+        """The network of a unit table (:func:`heatloom.io.read_network`), checked and completed.
+
+        Errors name the table's file, the unit's row and the column as the user wrote it.
+        """
+        try:
+            return cls(streams, table.units, tuple(utilities or ()), source=table.source, notes=table.notes)
+        except InputError as e:
+            raise table.locate(e) from None
 
     # -- completion and checks ------------------------------------------------------------------
 

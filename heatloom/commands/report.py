@@ -445,14 +445,11 @@ def run(args) -> int:
 
         retrofit_costs = read_retrofit_costs(files["costs"])
     existing = None
-    existing_error = None
     if "existing network" in files:
-        try:
-            from ..io.network_table import read_network
-        except ImportError as e:
-            existing_error = f"reading networks is not available in this installation of heatloom ({e})"
-        else:
-            existing = read_network(files["existing network"], streams, utilities)
+        from ..io.network_table import read_network
+        from ..retrofit.existing import ExistingNetwork
+
+        existing = ExistingNetwork.from_table(streams, read_network(files["existing network"]), utilities)
     dt_min, dt_note = dt_min_of(args)
     sweep_range = args.sweep or (min(defaults.SWEEP_RANGE[0], dt_min) if dt_min > 0 else defaults.SWEEP_RANGE[0],
                                  max(defaults.SWEEP_RANGE[1], dt_min))
@@ -475,10 +472,6 @@ def run(args) -> int:
                               title=title, dt_min_note=dt_note, costs_source=sources.get("costs"), sources=sources,
                               notes=tuple(notes), version=__version__,
                               created=datetime.datetime.now().astimezone().isoformat(timespec="seconds"))
-        if existing_error is not None:
-            from dataclasses import replace
-
-            study = replace(study, diagnosis=NotComputed(existing_error), retrofit=NotComputed(existing_error))
         bar("HTML report")
         rendered = render_report(study)
         bar("workbook")

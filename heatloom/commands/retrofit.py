@@ -195,6 +195,7 @@ def run(args) -> int:
     from ..io.costs import read_retrofit_costs
     from ..io.network_table import read_network
     from ..io.tables import parse_column_mapping
+    from ..retrofit.existing import ExistingNetwork
 
     files, notes = find_inputs(args)
     dt_min, dt_note = dt_min_of(args)
@@ -212,7 +213,7 @@ def run(args) -> int:
     if "utilities" in files:
         utilities = read_utilities(files["utilities"], sheet=args.utilities_sheet, process=streams,
                                    hours_per_year=args.hours_per_year)
-    network = read_network(files["network"], streams, utilities)
+    network = ExistingNetwork.from_table(streams, read_network(files["network"]), utilities)
     costs = rcosts = None
     if "costs" in files:
         costs = read_costs(files["costs"])

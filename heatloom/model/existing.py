@@ -16,7 +16,7 @@ import numpy as np
 from ..errors import InputError
 from .exchangers import FlowArrangement
 
-__all__ = ["UnitRole", "OperatingMode", "ExistingUnit"]
+__all__ = ["UnitRole", "OperatingMode", "ExistingUnit", "UnitTable"]
 
 
 class UnitRole(enum.Enum):
@@ -172,3 +172,41 @@ class ExistingUnit:
 
 def _value(e):
     return None if e is None else e.value
+
+
+@dataclass(frozen=True)
+class UnitTable:
+    """The units of an existing network as read from one table, before they are resolved.
+
+    Parameters
+    ----------
+    units : tuple of ExistingUnit
+        In the table's row order; each carries its row.
+    source : str, optional
+        Where the table came from (file name), for messages.
+    headers : tuple of (str, str), optional
+        Canonical column name → the header as the user wrote it, for messages.
+    notes : tuple of str, optional
+        Assumptions the reader made (e.g. shells without a type taken as 1-2 shells).
+
+    Examples
+    --------
+    >>> t = UnitTable((ExistingUnit("E1", "H1", "C1", area=5.0, row=2),), "net.csv", (("area", "Surface"),))
+    >>> str(t.locate(InputError("area must be > 0", row=2, column="area")))
+    "net.csv, row 2, column 'Surface': area must be > 0"
+    """
+
+    units: tuple[ExistingUnit, ...]
+    source: str | None = None
+    headers: tuple[tuple[str, str], ...] = ()
+    notes: tuple[str, ...] = ()
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "units", tuple(self.units))
+        object.__setattr__(self, "headers", tuple(self.headers))
+        object.__setattr__(self, "notes", tuple(self.notes))
+
+    def locate(self, err: InputError) -> InputError:
+        """The error with this table's file and the user's header for its column."""
+        column = dict(self.headers).get(err.column, err.column) if err.column else None
+        return type(err)(err.message, file=err.file or self.source, row=err.row, column=column)

@@ -237,6 +237,7 @@ def test_existing_network_gives_the_retrofit_diagnosis_and_options(tmp_path, cap
     from heatloom.io.costs import read_retrofit_costs
     from heatloom.io.network_table import read_network
     from heatloom.retrofit.diagnose import diagnose
+    from heatloom.retrofit.existing import ExistingNetwork
     from heatloom.retrofit.options import retrofit_options
 
     code, out, _ = run(capsys, "report", EXISTING, "--out", tmp_path, "--sweep", "5:20", "--tac", "--json")
@@ -250,7 +251,7 @@ def test_existing_network_gives_the_retrofit_diagnosis_and_options(tmp_path, cap
     assert "segments" in data["not_computed"][0]["why"]
     streams = read_streams(EXISTING / "streams.csv")
     utilities = read_utilities(EXISTING / "utilities.csv", process=streams)
-    network = read_network(EXISTING / "network.csv", streams, utilities)
+    network = ExistingNetwork.from_table(streams, read_network(EXISTING / "network.csv"), utilities)
     d = diagnose(network, 10.0)
     sheets = pd.read_excel(tmp_path / "study.xlsx", sheet_name=None)
     assert {"retrofit", "retrofit units", "retrofit cross-pinch", "retrofit curve", "retrofit options"} <= set(sheets)

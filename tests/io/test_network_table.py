@@ -41,7 +41,7 @@ def write(tmp_path, body: str, header: str = HEADER, name: str = "network.csv") 
 
 
 def read(tmp_path, body: str, header: str = HEADER, **kw) -> ExistingNetwork:
-    return read_network(write(tmp_path, body, header), STREAMS, UTILITIES, **kw)
+    return ExistingNetwork.from_table(STREAMS, read_network(write(tmp_path, body, header), **kw), UTILITIES)
 
 
 GOOD = ("E1,H1,C1,4.0,,,1,1,,\n"
@@ -114,18 +114,18 @@ def test_workbook_sheet(tmp_path):
     ws.append(["CW1", "H1", "water", 2.0, None])
     p = tmp_path / "network.xlsx"
     wb.save(p)
-    net = read_network(p, STREAMS, UTILITIES, sheet="units")
+    net = ExistingNetwork.from_table(STREAMS, read_network(p, sheet="units"), UTILITIES)
     assert net.unit("E1").area == 4.0 and net.source.endswith("sheet 'units'")
     with pytest.raises(InputError, match=r"network\.xlsx, sheet 'units', row 3, column 'hot'"):
         ws.cell(3, 2, "H9")
         wb.save(p)
-        read_network(p, STREAMS, UTILITIES, sheet="units")
+        ExistingNetwork.from_table(STREAMS, read_network(p, sheet="units"), UTILITIES)
 
 
 def test_case_study_reads(tmp_path):
     streams = read_streams(CASE / "streams.csv")
     utilities = read_utilities(CASE / "utilities.csv")
-    net = read_network(CASE / "network.csv", streams, utilities)
+    net = ExistingNetwork.from_table(streams, read_network(CASE / "network.csv"), utilities)
     assert len(net.units) == 9 and len(net.exchangers) == 3
     assert net.unit("E-102").arrangement is FlowArrangement.SHELL_AND_TUBE_1_2 and net.unit("E-102").u == 0.30
     assert all(u.mode is OperatingMode.TRIM for u in net.heaters + net.coolers)
@@ -204,7 +204,7 @@ def test_located_errors(tmp_path, body, pattern):
 
 def test_missing_file_and_columns(tmp_path):
     with pytest.raises(InputError, match=r"nothing\.csv: file not found"):
-        read_network(tmp_path / "nothing.csv", STREAMS, UTILITIES)
+        read_network(tmp_path / "nothing.csv")
     with pytest.raises(InputError, match=r"row 1: missing required column\(s\) cold; columns found: unit, hot, area"):
         read(tmp_path, "E1,H1,4\n", "unit,hot,area\n")
     with pytest.raises(InputError, match=r"missing required column\(s\) area or duty"):

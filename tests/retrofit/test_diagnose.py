@@ -72,7 +72,7 @@ def mer_network(reference, name, dt):
 def case():
     streams = read_streams(CASE / "streams.csv")
     utilities = read_utilities(CASE / "utilities.csv")
-    return read_network(CASE / "network.csv", streams, utilities)
+    return ExistingNetwork.from_table(streams, read_network(CASE / "network.csv"), utilities)
 
 
 # --------------------------------------------------------------------------------------------------

@@ -79,7 +79,7 @@ def mer_network(reference, name, dt):
 def case_inputs():
     streams = read_streams(CASE / "streams.csv")
     utilities = read_utilities(CASE / "utilities.csv")
-    network = read_network(CASE / "network.csv", streams, utilities)
+    network = ExistingNetwork.from_table(streams, read_network(CASE / "network.csv"), utilities)
     return network, read_costs(CASE / "costs.json"), read_retrofit_costs(CASE / "costs.json")
 
 
