@@ -63,11 +63,6 @@ def regions_of(targets: Targets) -> list[Region]:
     return out
 
 
-def _stream_shift(stream: Stream, dt_min: float) -> float:
-    own = [g.dt_min_contribution for g in stream.segments if g.dt_min_contribution is not None]
-    return max(own + [0.5 * dt_min]) if own else 0.5 * dt_min
-
-
 def _process_side(stream: Stream, region: Region, shift: float) -> Side | None:
     """The part of a process stream inside a region, as a Side (None when it has none there)."""
     s = -shift if stream.is_hot else shift
@@ -206,7 +201,7 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
     for r_index, region in enumerate(regions):
         hot_sides, cold_sides = [], []
         for s in streams:
-            side = _process_side(s, region, _stream_shift(s, dt_min))
+            side = _process_side(s, region, s.shift(dt_min))
             if side is not None:
                 (hot_sides if s.is_hot else cold_sides).append(side)
         for u in utilities:

@@ -335,31 +335,49 @@ def _min_approach_inside(hot: Stream | None, cold: Stream | None, e, hot_frac: f
 
 
 def approach_violations(network: Network, streams: StreamTable, utilities: Sequence[Utility] = (), *,
-                        dt_min: float | None = None, tol: float = 1e-6) -> list[str]:
-    """Every unit whose smallest approach (ends and inner breakpoints) is below ΔTmin, in words."""
+                        dt_min: float | None = None, contributions: bool = True, tol: float = 1e-6) -> list[str]:
+    """Every unit whose smallest approach (ends and inner breakpoints) is below what it needs, in words.
+
+    A unit needs the sum of its two sides' shifts (:meth:`heatloom.model.Stream.shift`: a stream's own ΔTmin
+    contribution where given, else ΔTmin/2; a utility ΔTmin/2), which is ΔTmin where no contribution is
+    given; with ``contributions=False`` every unit needs ΔTmin (the lowest-TAC design, whose EMAT replaces
+    the contributions).
+    """
     dt = network.dt_min if dt_min is None else dt_min
     by_name = {s.name: s for s in streams}
+
+    def need(*sides) -> float:
+        if not contributions:
+            return dt
+        return sum(0.5 * dt if x is None else x.shift(dt) for x in sides)
+
     problems = []
     for e in network.exchangers:
-        d = _min_approach_inside(by_name[e.hot], by_name[e.cold], e, e.hot_fraction, e.cold_fraction,
-                                 (e.hot_in, e.hot_out), (e.cold_in, e.cold_out))
-        if d < dt - tol:
-            problems.append(f"exchanger {e.hot}→{e.cold}: smallest approach {d:.4g} K < ΔTmin {dt:g} K")
+        hot, cold = by_name[e.hot], by_name[e.cold]
+        d = _min_approach_inside(hot, cold, e, e.hot_fraction, e.cold_fraction, (e.hot_in, e.hot_out),
+                                 (e.cold_in, e.cold_out))
+        if d < need(hot, cold) - tol:
+            problems.append(f"exchanger {e.hot}→{e.cold}: smallest approach {d:.4g} K < {need(hot, cold):g} K "
+                            f"(ΔTmin {dt:g} K)")
     for h in network.heaters:
-        d = _min_approach_inside(None, by_name[h.cold], h, 1.0, h.cold_fraction, (h.utility_in, h.utility_out),
+        cold = by_name[h.cold]
+        d = _min_approach_inside(None, cold, h, 1.0, h.cold_fraction, (h.utility_in, h.utility_out),
                                  (h.cold_in, h.cold_out))
-        if d < dt - tol:
-            problems.append(f"heater {h.utility}→{h.cold}: smallest approach {d:.4g} K < ΔTmin {dt:g} K")
+        if d < need(None, cold) - tol:
+            problems.append(f"heater {h.utility}→{h.cold}: smallest approach {d:.4g} K < {need(None, cold):g} K "
+                            f"(ΔTmin {dt:g} K)")
     for c in network.coolers:
-        d = _min_approach_inside(by_name[c.hot], None, c, c.hot_fraction, 1.0, (c.hot_in, c.hot_out),
+        hot = by_name[c.hot]
+        d = _min_approach_inside(hot, None, c, c.hot_fraction, 1.0, (c.hot_in, c.hot_out),
                                  (c.utility_in, c.utility_out))
-        if d < dt - tol:
-            problems.append(f"cooler {c.hot}→{c.utility}: smallest approach {d:.4g} K < ΔTmin {dt:g} K")
+        if d < need(hot, None) - tol:
+            problems.append(f"cooler {c.hot}→{c.utility}: smallest approach {d:.4g} K < {need(hot, None):g} K "
+                            f"(ΔTmin {dt:g} K)")
     return problems
 
 
 def check_network(network: Network, streams: StreamTable, utilities: Sequence[Utility] = (), *,
-                  dt_min: float | None = None, rtol: float = 1e-6) -> None:
+                  dt_min: float | None = None, contributions: bool = True, rtol: float = 1e-6) -> None:
     """Raise :class:`InfeasibleError` unless every balance and approach of the network holds.
 
     Checks (tolerances relative to the stream's duty, ``rtol``):
@@ -367,7 +385,9 @@ def check_network(network: Network, streams: StreamTable, utilities: Sequence[Ut
     * each unit's duty equals the heat its hot side gives and its cold side takes at its temperatures and
       flow fractions;
     * each stream's units add up to its duty (hot: exchangers + coolers; cold: exchangers + heaters);
-    * every unit keeps at least ΔTmin at both ends and at every inner breakpoint of a segmented stream.
+    * every unit keeps at least ΔTmin (the sum of its sides' shifts where streams carry their own ΔTmin
+      contributions; see :func:`approach_violations`) at both ends and at every inner breakpoint of a
+      segmented stream.
     """
     by_name = {s.name: s for s in streams}
     problems: list[str] = []
@@ -396,6 +416,6 @@ def check_network(network: Network, streams: StreamTable, utilities: Sequence[Ut
                 sum(h.duty for h in network.heaters if h.cold == s.name)
         if abs(total - s.duty) > tol:
             problems.append(f"stream {s.name}: units exchange {total:.6g} kW but its duty is {s.duty:.6g} kW")
-    problems += approach_violations(network, streams, utilities, dt_min=dt_min)
+    problems += approach_violations(network, streams, utilities, dt_min=dt_min, contributions=contributions)
     if problems:
         raise InfeasibleError("network check failed: " + "; ".join(problems))

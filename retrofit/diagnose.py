@@ -169,13 +169,6 @@ class CrossPinch:
                 "hot_utility_target": self.hot_utility_target, "excess": self.excess, "notes": list(self.notes)}
 
 
-def _stream_shift(stream: Stream, dt_min: float) -> tuple[float, bool]:
-    """Shift of a stream on the shifted scale [K], and whether its segments disagree on it."""
-    own = {g.dt_min_contribution for g in stream.segments}
-    values = [0.5 * dt_min if d is None else d for d in own]
-    return max(values), len(set(values)) > 1
-
-
 def _above(stream: Stream, t_from: float, t_to: float, t_pinch: float) -> float:
     """Heat a stream exchanges (its own direction) while above t_pinch, going from t_from to t_to [kW]."""
     return heat_between(stream, max(t_from, t_pinch), max(t_to, t_pinch))
@@ -242,7 +235,7 @@ def cross_pinch(simulation: Simulation, dt_min: float | None = None) -> CrossPin
     notes = []
     shifts = {}
     for s in net.streams:
-        shifts[s.name], mixed = _stream_shift(s, dt)
+        shifts[s.name], mixed = s.shift(dt), not s.shift_is_uniform(dt)
         if mixed:
             notes.append(f"stream '{s.name}': its segments have different ΔTmin contributions; the largest, "
                          f"{shifts[s.name]:g} K, places it against the pinch")

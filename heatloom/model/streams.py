@@ -130,6 +130,20 @@ class Segment:
         """Heat given or taken over the segment [kW], always positive."""
         return self.heat_capacity_flow * abs(self.supply_temperature - self.target_temperature)
 
+    def shift(self, dt_min: float) -> float:
+        """How far the segment moves on the shifted temperature scale [K]: its own ΔTmin contribution
+        when given, else ΔTmin/2 (hot segments move down, cold ones up).
+
+        This is the one definition of the shift: the problem table, network placement, approach checks
+        and the diagnosis of existing networks all use it.
+
+        Examples
+        --------
+        >>> Segment(150.0, 60.0, 2.0).shift(10.0), Segment(150.0, 60.0, 2.0, dt_min_contribution=2.5).shift(10.0)
+        (5.0, 2.5)
+        """
+        return 0.5 * dt_min if self.dt_min_contribution is None else self.dt_min_contribution
+
 
 @dataclass(frozen=True)
 class Stream:
@@ -200,6 +214,22 @@ class Stream:
         """Total heat to remove (hot) or add (cold) [kW]."""
         return float(sum(s.duty for s in self.segments))
 
+    def shift(self, dt_min: float) -> float:
+        """The stream's shift on the shifted scale [K] where one value is needed for the whole stream: the
+        segments' common :meth:`Segment.shift`, else the largest of them (the conservative choice; see
+        :meth:`shift_is_uniform`).
+
+        Examples
+        --------
+        >>> Stream("H", (Segment(200, 150, 1.0, dt_min_contribution=2.0), Segment(150, 100, 2.0))).shift(10)
+        5.0
+        """
+        return max(g.shift(dt_min) for g in self.segments)
+
+    def shift_is_uniform(self, dt_min: float) -> bool:
+        """True when every segment has the same shift [K] at this ΔTmin."""
+        return len({g.shift(dt_min) for g in self.segments}) == 1
+
 
 @dataclass(frozen=True, eq=False)
 class StreamArrays:
@@ -221,7 +251,7 @@ class StreamArrays:
 
         Hot segments are shifted down and cold ones up by this amount in the problem table.
         """
-        return np.where(np.isnan(self.dt_min_contribution), 0.5 * dt_min, self.dt_min_contribution)
+        return np.where(np.isnan(self.dt_min_contribution), 0.5 * dt_min, self.dt_min_contribution)  # Segment.shift
 
 
 @dataclass(frozen=True, eq=False)

@@ -582,7 +582,7 @@ def network_from_solution(p: TacProblem, sol: TopologySolution, streams: StreamT
     net = Network(tuple(exchangers), tuple(heaters), tuple(coolers), p.emat, capital_cost=capital,
                   operating_cost=operating, total_annual_cost=capital + operating, currency=costs.currency,
                   notes=tuple(notes), solves=tuple(solves))
-    check_network(net, streams, utilities, dt_min=p.emat)
+    check_network(net, streams, utilities, dt_min=p.emat, contributions=False)
     return net
 
 

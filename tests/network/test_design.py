@@ -217,3 +217,46 @@ def test_double_pipe_units_report_hairpins(reference):
         assert g["installed_area"] >= e.area
     with pytest.raises(InputError, match="tube diameter"):
         design_mer(streams, 10, default_film_coefficient=1.0, exchanger_type=ExchangerType.DOUBLE_PIPE)
+
+
+def _with_contribution(streams: StreamTable, contributions: dict[str, float]) -> StreamTable:
+    return StreamTable(tuple(Stream(s.name, tuple(Segment(g.supply_temperature, g.target_temperature,
+                                                          g.heat_capacity_flow, g.film_coefficient,
+                                                          contributions.get(s.name)) for g in s.segments))
+                             for s in streams))
+
+
+def test_contributions_design_at_their_exact_targets():
+    # Every stream carrying a contribution of 2.5 K at ΔTmin 10 K is, by the definition of the shifted scale
+    # (Linnhoff & Flower 1978: each stream moves by its own share), the same problem as ΔTmin 5 K without
+    # contributions: the targets must agree, and the network must reach them with approaches of 5 K, not 10.
+    plain = StreamTable.from_arrays(["H1", "H2", "C1", "C2"], [170, 150, 50, 80], [60, 30, 160, 140],
+                                    [2.0, 1.5, 1.8, 2.2])
+    shifted = _with_contribution(plain, {n: 2.5 for n in ("H1", "H2", "C1", "C2")})
+    at_five = target(plain, 5.0)
+    t = target(shifted, 10.0)
+    assert t.hot_utility == pytest.approx(at_five.hot_utility, abs=1e-9)
+    assert t.cold_utility == pytest.approx(at_five.cold_utility, abs=1e-9)
+    assert t.hot_utility < target(plain, 10.0).hot_utility           # the contributions matter here
+    net = design_mer(shifted, 10.0, default_film_coefficient=1.0)
+    check_network(net, shifted)
+    assert net.hot_utility == pytest.approx(t.hot_utility, abs=1e-6)
+    assert net.cold_utility == pytest.approx(t.cold_utility, abs=1e-6)
+    # the same network fails a plain 10 K check: it uses the smaller approach the contributions allow
+    with pytest.raises(InfeasibleError, match="smallest approach"):
+        check_network(net, shifted, contributions=False)
+
+
+def test_one_stream_with_a_contribution_needs_the_sum_of_the_two_shifts():
+    # the pinch is at the hot end: C1 can be heated by H1 up to 150 - 6 = 144 °C, the heater does the rest
+    plain = StreamTable.from_arrays(["H1", "C1"], [150, 40], [50, 148], [2.0, 1.8])
+    one = _with_contribution(plain, {"H1": 1.0})       # H1 needs 1 K, C1 ΔTmin/2 = 5 K: pairs need 6 K
+    t = target(one, 10.0)
+    assert t.hot_utility == pytest.approx(1.8 * (148 - (150 - 6)), abs=1e-9)   # by hand: 7.2 kW
+    assert t.hot_utility == pytest.approx(target(plain, 6.0).hot_utility, abs=1e-9)
+    net = design_mer(one, 10.0, default_film_coefficient=1.0)
+    check_network(net, one)
+    assert net.hot_utility == pytest.approx(t.hot_utility, abs=1e-6)
+    assert len(net.exchangers) == 1
+    e = net.exchangers[0]
+    assert e.hot_in - e.cold_out == pytest.approx(6.0, abs=1e-6)
