@@ -80,17 +80,7 @@ def hot_composite(streams: StreamTable | StreamArrays, dt_min: float | None = No
     >>> c.temperature.tolist(), c.enthalpy.tolist()
     ([30.0, 60.0, 150.0, 180.0], [0.0, 30.0, 390.0, 480.0])
     """
-    a = _arrays(streams)
-    hot = a.is_hot
-    if dt_min is None:
-        up = np.maximum(a.supply_temperature, a.target_temperature)[hot]
-        lo = np.minimum(a.supply_temperature, a.target_temperature)[hot]
-        label = "hot composite"
-    else:
-        up, lo = shifted_ranges(a, dt_min)
-        up, lo = up[hot], lo[hot]
-        label = "shifted hot composite"
-    return _composite(up, lo, a.heat_capacity_flow[hot], 0.0, label)
+    return _side_composite(streams, True, 0.0, dt_min)
 
 
 def cold_composite(streams: StreamTable | StreamArrays, cold_utility: float = 0.0,
@@ -112,17 +102,20 @@ def cold_composite(streams: StreamTable | StreamArrays, cold_utility: float = 0.
     >>> cold_composite(t, 10.0).enthalpy.tolist()
     [10.0, 130.0, 487.5, 510.0]
     """
+    return _side_composite(streams, False, float(cold_utility), dt_min)
+
+
+def _side_composite(streams: StreamTable | StreamArrays, hot: bool, start: float, dt_min: float | None) -> Curve:
+    """The hot (``hot``) or cold composite, real or shifted by ΔTmin, starting at enthalpy ``start`` [kW]."""
     a = _arrays(streams)
-    cold = ~a.is_hot
+    side = a.is_hot if hot else ~a.is_hot
     if dt_min is None:
-        up = np.maximum(a.supply_temperature, a.target_temperature)[cold]
-        lo = np.minimum(a.supply_temperature, a.target_temperature)[cold]
-        label = "cold composite"
+        up = np.maximum(a.supply_temperature, a.target_temperature)
+        lo = np.minimum(a.supply_temperature, a.target_temperature)
     else:
         up, lo = shifted_ranges(a, dt_min)
-        up, lo = up[cold], lo[cold]
-        label = "shifted cold composite"
-    return _composite(up, lo, a.heat_capacity_flow[cold], float(cold_utility), label)
+    label = f"{'shifted ' if dt_min is not None else ''}{'hot' if hot else 'cold'} composite"
+    return _composite(up[side], lo[side], a.heat_capacity_flow[side], start, label)
 
 
 def grand_composite(table: ProblemTable) -> Curve:
