@@ -7,6 +7,7 @@ import argparse
 from .. import defaults
 from ..errors import InputError
 from .common import (
+    add_output_options,
     add_site_table_options,
     dt_min_of,
     finish,
@@ -54,12 +55,7 @@ def register(sub) -> None:
     p.add_argument("--site-dt", type=positive_or_zero, default=0.0, metavar="K",
                    help="extra temperature difference for raising and using steam [K] (default 0 K)")
     add_site_table_options(p)
-    p.add_argument("--json", action="store_true", help="print one JSON object on stdout and nothing else")
-    p.add_argument("--out", metavar="DIR", help="folder for result files (CSV, XLSX, JSON, PNG and SVG figures)")
-    p.add_argument("--force", action="store_true",
-                   help="replace result files already in --out (input files are never replaced)")
-    p.add_argument("--quiet", action="store_true", help="no progress or notes on stderr")
-    p.add_argument("--debug", action="store_true", help="show the full traceback on errors")
+    add_output_options(p)
     p.set_defaults(handler=run)
 
 
