@@ -1,6 +1,11 @@
-"""Network synthesis: solvers, transshipment, matches, placement, MER design and lowest-TAC design (installed as heatloom.network)."""
+"""Network synthesis: solvers, transshipment, matches, MER design and lowest-TAC design (installed as heatloom.network).
 
-from .design import Region, design_mer, regions_of
+The public API only.  The building blocks of the designs (placement model, pinch regions, the TAC problem,
+topologies and their refinement) are imported from their modules: :mod:`heatloom.network.placement`,
+:mod:`heatloom.network.transshipment`, :mod:`heatloom.network.tac`.
+"""
+
+from .design import design_mer
 from .milp import (
     Match,
     MatchKind,
@@ -12,17 +17,13 @@ from .milp import (
     plan_matches,
     subnetworks,
 )
-from .placement import PlacedUnit, Placement, Side, stage_model
 from .solvers import SolveReport, SolverName, SolveStatus, available_solvers, resolve_solver, solve
 from .structure import Cooler, Exchanger, Heater, Network, approach_violations, check_network
-from .tac.nlp import TacProblem, Topology, TopologySolution, make_problem, polish_splits, solve_topology
-from .tac.search import design_tac, network_from_solution, stagewise_milp, topology_from_network
+from .tac.search import design_tac
 from .transshipment import Transshipment, transshipment
 
 __all__ = [
-    "Region",
     "design_mer",
-    "regions_of",
     "Match",
     "MatchKind",
     "MatchPlan",
@@ -32,10 +33,6 @@ __all__ = [
     "min_matches",
     "plan_matches",
     "subnetworks",
-    "PlacedUnit",
-    "Placement",
-    "Side",
-    "stage_model",
     "SolveReport",
     "SolveStatus",
     "SolverName",
@@ -48,17 +45,7 @@ __all__ = [
     "Network",
     "approach_violations",
     "check_network",
-    "TacProblem",
-    "Topology",
-    "TopologySolution",
-    "make_problem",
-    "polish_splits",
-    "solve_topology",
-    "defaults.EMAT",
     "design_tac",
-    "network_from_solution",
-    "stagewise_milp",
-    "topology_from_network",
     "Transshipment",
     "transshipment",
 ]

@@ -19,7 +19,6 @@ The sequence (DEVELOPERS.md, "Method notes"):
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass
 
 from .. import defaults
 from ..equipment.geometry import hairpins_for_area
@@ -29,38 +28,18 @@ from ..errors import InfeasibleError, InputError
 from ..model import Segment, Stream, StreamTable, Utility
 from ..model.costs import CostSettings, UnitKind
 from ..model.exchangers import ExchangerType
-from ..pinch import Targets, target
+from ..pinch import target
 from ..pinch.utilities import ideal_utilities
 from .placement import Side, stage_model
 from .solvers import solve
 from .structure import Cooler, Exchanger, Heater, Network, check_network, stream_enthalpy
+from .transshipment import Region, pinch_regions
 
-__all__ = ["design_mer", "regions_of", "Region"]
+__all__ = ["design_mer"]
 
 ISOTHERMAL_GLIDE = 1e-6
 """Temperature glide given to an isothermal utility when it is sized as a segment [K]; changes the
 LMTD by less than one part in a million."""
-
-
-@dataclass(frozen=True)
-class Region:
-    """A pinch subnetwork: the stretch of the shifted temperature scale between two pinches (or ends)."""
-
-    label: str
-    top: float | None      # shifted temperature [°C]; None = no upper cut
-    bottom: float | None   # shifted temperature [°C]; None = no lower cut
-
-
-def regions_of(targets: Targets) -> list[Region]:
-    """Subnetworks cut at every pinch, hottest first; one ``whole`` region without a pinch."""
-    cuts = [p.shifted for p in targets.pinches]
-    if not cuts:
-        return [Region("whole", None, None)]
-    out = [Region("above", None, cuts[0])]
-    for k, (a, b) in enumerate(zip(cuts, cuts[1:]), start=1):
-        out.append(Region(f"between pinches {k}", a, b))
-    out.append(Region("below", cuts[-1], None))
-    return out
 
 
 def _process_side(stream: Stream, region: Region, shift: float) -> Side | None:
@@ -196,7 +175,7 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
                  f"({'proven minimal' if plan.proven_minimum else 'best found within the time limit'}); "
                  f"minimum-units target {plan.unit_target} (N − 1 per pinch subnetwork)")
     by_utility = {u.name: u for u in utilities}
-    regions = regions_of(t)
+    regions = pinch_regions([p.shifted for p in t.pinches])   # process pinches (utility pinches: in the plan)
     placed = []  # (region label, PlacedUnit)
     for r_index, region in enumerate(regions):
         hot_sides, cold_sides = [], []

@@ -5,7 +5,8 @@ Papoulias & Grossmann (1983) see heat as a commodity shipped from hot streams (s
 utility duties are in :mod:`heatloom.network.transshipment`.  This module holds:
 
 * :func:`subnetworks`, which splits the problem at every interval boundary where the cascade carries no
-  heat (process pinches and utility pinches);
+  heat (process pinches and utility pinches), into the regions of
+  :func:`heatloom.network.transshipment.pinch_regions`;
 * :func:`min_matches_model`, the expanded transshipment MILP of the fewest process/utility matches with
   the utility duties fixed, for one pinch subnetwork, built by a function that returns the PuLP problem
   and a reader of its solution, and :func:`min_matches`, which solves it.  Its heat-load distribution
@@ -38,7 +39,7 @@ import pulp
 from ..errors import InfeasibleError, InputError, SolverError
 from ..model import StreamTable, Utility
 from .solvers import SolveReport, SolverName, SolveStatus, new_variable, solve
-from .transshipment import _PINCH_TOL, _REL_TOL, Transshipment, transshipment
+from .transshipment import HEAT_TOLERANCE, PINCH_TOLERANCE, Transshipment, pinch_regions, transshipment
 
 __all__ = [
     "TieBreak",
@@ -90,7 +91,7 @@ class Subnetwork:
         Position, hottest first.
     label : str
         ``"whole problem"``, ``"above the pinch at 85 °C shifted"``, ``"between the pinches at ..."``,
-        ``"below the pinch at ..."``.
+        ``"below the pinch at ..."`` (:attr:`heatloom.network.transshipment.Region.description`).
     first : int
         Index of its hottest interval in the problem's :class:`Intervals`.
     temperatures : ndarray
@@ -143,23 +144,13 @@ class Subnetwork:
                 "hot": self.hot_duties, "cold": self.cold_duties, "unit_target": self.unit_target}
 
 
-def _label(cuts: list[int], a: int, b: int, temps: np.ndarray) -> str:
-    if len(cuts) == 2:
-        return "whole problem"
-    if a == 0:
-        return f"above the pinch at {temps[b]:g} °C shifted"
-    if b == cuts[-1]:
-        return f"below the pinch at {temps[a]:g} °C shifted"
-    return f"between the pinches at {temps[a]:g} and {temps[b]:g} °C shifted"
-
-
 def subnetworks(plan: Transshipment) -> tuple[Subnetwork, ...]:
     """Split the problem at its pinches into subnetworks that exchange no heat with each other.
 
     Every interior boundary where the cascade with the LP's utility duties carries no heat (process and
-    utility pinches, :attr:`Transshipment.pinches`) is a cut; heat never crosses it in a network that
-    meets the duties, so each part can be matched on its own (Linnhoff & Hindmarsh 1983; Papoulias &
-    Grossmann 1983).  Parts with no heat at all are dropped.
+    utility pinches, :attr:`Transshipment.pinches`) is a cut (:func:`pinch_regions`); heat never crosses
+    it in a network that meets the duties, so each part can be matched on its own (Linnhoff & Hindmarsh
+    1983; Papoulias & Grossmann 1983).  Parts with no heat at all are dropped.
 
     Parameters
     ----------
@@ -182,12 +173,16 @@ def subnetworks(plan: Transshipment) -> tuple[Subnetwork, ...]:
     """
     iv = plan.intervals
     temps = iv.temperatures
-    cuts = [0] + [int(np.flatnonzero(temps == p)[0]) for p in plan.pinches] + [iv.size]
+
+    def boundary(t: float | None, end: int) -> int:   # index of a pinch among the interval boundaries
+        return end if t is None else int(np.flatnonzero(temps == t)[0])
+
     scale = max(iv.duty_scale, 1.0)
-    tol = _REL_TOL * scale
+    tol = HEAT_TOLERANCE * scale
     util_heat = np.asarray(plan.duties)[:, None] * iv.utility_fraction
     out = []
-    for a, b in zip(cuts, cuts[1:]):
+    for region in pinch_regions(plan.pinches):
+        a, b = boundary(region.top, 0), boundary(region.bottom, iv.size)
         parts = {True: ([], [], []), False: ([], [], [])}
         for i, name in enumerate(iv.stream_names):
             h = iv.stream_heat[i, a:b]
@@ -207,13 +202,13 @@ def subnetworks(plan: Transshipment) -> tuple[Subnetwork, ...]:
                               "has heat on one side only; the utility duties do not balance it")
         hot_heat, cold_heat = np.array(hh), np.array(ch)
         imbalance = hot_heat.sum() - cold_heat.sum()
-        if abs(imbalance) > _PINCH_TOL * scale * 10:
+        if abs(imbalance) > PINCH_TOLERANCE * scale * 10:
             raise SolverError(f"heat balance of the part between {temps[a]:g} and {temps[b]:g} °C shifted "
                               f"is off by {imbalance:.6g} kW; the utility duties do not close it")
         if imbalance < 0:   # LP round-off: let the largest hot entry carry it, so the part balances
             r, c = np.unravel_index(np.argmax(hot_heat), hot_heat.shape)
             hot_heat[r, c] -= imbalance
-        out.append(Subnetwork(len(out), _label(cuts, a, b, temps), a, temps[a:b + 1].copy(), tuple(hn),
+        out.append(Subnetwork(len(out), region.description, a, temps[a:b + 1].copy(), tuple(hn),
                               tuple(hu), hot_heat, tuple(cn), tuple(cu), cold_heat))
     return tuple(out)
 
@@ -372,7 +367,7 @@ def min_matches_model(sub: Subnetwork, *, forbidden: Iterable[tuple[str, str]] =
     scale = max(float(sub.hot_heat.sum()), float(sub.cold_heat.sum()), 1e-300)
     h = sub.hot_heat / scale
     c = sub.cold_heat / scale
-    tol = _REL_TOL
+    tol = HEAT_TOLERANCE
     h = np.where(h > tol, h, 0.0)
     c = np.where(c > tol, c, 0.0)
     cum_h = np.cumsum(h, axis=1)
@@ -562,7 +557,7 @@ class MatchPlan:
         Hottest first.
     tie_break : TieBreak
     note : str
-        Assumptions worth telling the user (ideal utilities).
+        Assumptions worth telling the user (the free utilities assumed when none were given).
     """
 
     transshipment: Transshipment
@@ -590,8 +585,10 @@ class MatchPlan:
         return self.transshipment.utility_duties
 
     @property
-    def ideal_utilities(self) -> bool:
-        return self.transshipment.ideal
+    def free_utilities(self) -> bool:
+        """True when no utilities were given and the transshipment LP assumed two free ones
+        (:func:`heatloom.network.transshipment.free_target_utilities`)."""
+        return self.transshipment.free_utilities
 
     @property
     def proven_minimum(self) -> bool:
@@ -630,7 +627,7 @@ class MatchPlan:
         return out
 
     def to_dict(self) -> dict:
-        return {"dtmin": self.transshipment.intervals.dt_min, "ideal_utilities": self.ideal_utilities,
+        return {"dtmin": self.transshipment.intervals.dt_min, "free_utilities": self.free_utilities,
                 "note": self.note, "utilities": self.utility_duties,
                 "hot_utility": self.transshipment.hot_utility, "cold_utility": self.transshipment.cold_utility,
                 "utility_cost": self.transshipment.utility_cost,
@@ -662,16 +659,12 @@ def plan_matches(streams: StreamTable, dt_min: float, utilities: Sequence[Utilit
     dt_min : float
         [K]
     utilities : sequence of Utility, optional
-        Utility levels with prices [money per kW·year]; when omitted, two ideal utilities (a hot one
-        hotter and a cold one colder than every process temperature, see :func:`ideal_target_utilities`)
-        and the result's ``note`` says so.
-    solver : SolverName, str or None
-    time_limit : float
-        Limit of each solve [s] (two LP stages, then one MILP per subnetwork).
-    tie_break : TieBreak
-        Secondary objective among minimum-match solutions.
-    forbidden : iterable of (str, str)
-        (hot, cold) name pairs that must not be matched.
+        Utility levels with prices [money per kW·year]; when omitted, two free utilities (a hot one
+        hotter and a cold one colder than every process temperature, see
+        :func:`heatloom.network.transshipment.free_target_utilities`) and the result's ``note`` says so.
+    solver, time_limit, tie_break, forbidden
+        As for :func:`min_matches`; ``time_limit`` [s] bounds each solve (two LP stages, then the solves
+        of every subnetwork).
 
     Returns
     -------
@@ -691,9 +684,9 @@ def plan_matches(streams: StreamTable, dt_min: float, utilities: Sequence[Utilit
     parts = tuple(min_matches(s, solver=solver, time_limit=time_limit, tie_break=tie_break,
                               forbidden=forbidden) for s in subnetworks(t))
     note = ""
-    if t.ideal:
+    if t.free_utilities:
         hot, cold = t.intervals.utilities
-        note = (f"no utilities given: ideal utilities assumed, '{hot.name}' at {hot.supply_temperature:g} °C "
+        note = (f"no utilities given: free utilities assumed, '{hot.name}' at {hot.supply_temperature:g} °C "
                 f"and '{cold.name}' at {cold.supply_temperature:g} °C, isothermal, hotter / colder than every "
                 "process temperature, at no cost")
     return MatchPlan(t, parts, tie_break, note)

@@ -329,12 +329,7 @@ def _solve_highs(problem: pulp.LpProblem, time_limit: float, threads: int | None
         status = SolveStatus.TIME_LIMIT
     else:
         status = SolveStatus.ERROR
-    bound = None
-    if status is SolveStatus.OPTIMAL:
-        obj = _objective(problem)
-        bound = float(info.mip_dual_bound) if mip else obj
-    elif status is SolveStatus.TIME_LIMIT and mip:
-        bound = float(info.mip_dual_bound)
+    bound = float(info.mip_dual_bound) if mip and status.has_solution else None
     return status, bound, None if not mip else float(info.mip_gap), detail
 
 
@@ -376,9 +371,7 @@ def _solve_cbc(problem: pulp.LpProblem, time_limit: float, threads: int | None,
     else:
         status = SolveStatus.ERROR
     bound = None
-    if status is SolveStatus.OPTIMAL:
-        bound = _objective(problem)
-    elif status is SolveStatus.TIME_LIMIT:
+    if status is SolveStatus.TIME_LIMIT:
         m = _CBC_BOUND.search(log)
         if m:
             with contextlib.suppress(ValueError):
@@ -449,6 +442,8 @@ def solve(problem: pulp.LpProblem, solver: SolverName | str | None = None, *, ti
         status, bound, highs_gap, detail = _solve_cbc(problem, limit, threads, absolute_gap)
     wall = time.perf_counter() - start
     objective = _objective(problem) if status.has_solution else None
+    if status is SolveStatus.OPTIMAL and bound is None:   # an LP, or a MIP whose solver tells no bound
+        bound = objective
     if status is SolveStatus.OPTIMAL:
         gap = 0.0 if not _is_mip(problem) else (_gap(objective, bound) or 0.0)
         if highs_gap is not None and math.isfinite(highs_gap):

@@ -10,7 +10,8 @@ from __future__ import annotations
 
 import functools
 from collections.abc import Sequence
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, field, fields, replace
+from typing import ClassVar
 
 import numpy as np
 
@@ -85,8 +86,52 @@ def stream_temperature(stream: Stream, enthalpy: float, *, extrapolate: bool = F
     return float(-x if stream.is_hot else x)
 
 
+@dataclass(frozen=True, kw_only=True)
+class _Unit:
+    """Size, cost and place of a unit: the keyword-only attributes every unit has, and its JSON shape.
+
+    Attributes
+    ----------
+    area : float or None
+        Heat-transfer area [m²]; None when film coefficients are not known.
+    cost : float or None
+        Capital cost [money per year when annualised, else money].
+    u : float or None
+        Overall heat-transfer coefficient [kW/(m²·K)].
+    lmtd : float or None
+        Effective log-mean temperature difference [K].
+    stage : int
+        Stage of the placement, hot end first [-]: along every stream, units of a lower stage come first
+        from its hot end (used to draw the grid diagram).
+    shells : int or None
+        Shells in series [-] (1-2 shell-and-tube units).
+    f_factor : float or None
+        LMTD correction factor F [-].
+    geometry : dict or None
+        The geometry report of the exchanger type, when one was asked for.
+    """
+
+    _JSON_TAIL: ClassVar[tuple[str, ...]] = ("area", "cost", "u", "lmtd", "region", "stage", "shells", "f_factor",
+                                             "geometry")
+
+    area: float | None = None
+    cost: float | None = None
+    u: float | None = None
+    lmtd: float | None = None
+    stage: int = 0
+    shells: int | None = None
+    f_factor: float | None = None
+    geometry: dict | None = field(default=None, compare=False)
+
+    def to_dict(self) -> dict:
+        """The stable JSON shape: the unit's own attributes in their order, then ``_JSON_TAIL``."""
+        tail = self._JSON_TAIL
+        return {**{f.name: getattr(self, f.name) for f in fields(self) if f.name not in tail},
+                **{k: getattr(self, k) for k in tail}}
+
+
 @dataclass(frozen=True)
-class Exchanger:
+class Exchanger(_Unit):
     """A process-to-process exchanger (counter-current unless sized otherwise).
 
     Attributes
@@ -99,17 +144,16 @@ class Exchanger:
         Terminal temperatures [°C].
     hot_fraction, cold_fraction : float
         Share of the stream's flow through this unit [-]; 1 when the stream is not split here.
-    area : float or None
-        Heat-transfer area [m²]; None when film coefficients are not known.
-    cost : float or None
-        Capital cost [money per year when annualised, else money].
-    stage : int
-        Stage of the placement, hot end first [-]: along every stream, units of a lower stage come first
-        from its hot end (used to draw the grid diagram).
     region : str
         Pinch subnetwork the unit belongs to ("above", "below" or "whole").
+
+    The size, cost and stage are keyword-only (see ``area``, ``cost``, ``u``, ``lmtd``, ``stage``,
+    ``shells``, ``f_factor``, ``geometry`` of the heater and cooler alike).
     """
 
+    _JSON_TAIL: ClassVar[tuple[str, ...]] = ("area", "cost", "u", "lmtd", "shells", "f_factor", "region", "stage",
+                                             "geometry")
+
     hot: str
     cold: str
     duty: float
@@ -119,28 +163,12 @@ class Exchanger:
     cold_out: float
     hot_fraction: float = 1.0
     cold_fraction: float = 1.0
-    area: float | None = None
-    cost: float | None = None
-    stage: int = 0
     region: str = "whole"
-    u: float | None = None
-    lmtd: float | None = None
-    shells: int | None = None
-    f_factor: float | None = None
-    geometry: dict | None = field(default=None, compare=False)
-
-    def to_dict(self) -> dict:
-        return {"hot": self.hot, "cold": self.cold, "duty": self.duty, "hot_in": self.hot_in,
-                "hot_out": self.hot_out, "cold_in": self.cold_in, "cold_out": self.cold_out,
-                "hot_fraction": self.hot_fraction, "cold_fraction": self.cold_fraction,
-                "area": self.area, "cost": self.cost, "u": self.u, "lmtd": self.lmtd,
-                "shells": self.shells, "f_factor": self.f_factor, "region": self.region,
-                "stage": self.stage, "geometry": self.geometry}
 
 
 @dataclass(frozen=True)
-class Heater:
-    """A utility heater on a cold stream."""
+class Heater(_Unit):
+    """A utility heater on a cold stream (utility temperatures in [°C], duty in [kW])."""
 
     cold: str
     utility: str
@@ -150,27 +178,12 @@ class Heater:
     utility_in: float
     utility_out: float
     cold_fraction: float = 1.0
-    area: float | None = None
-    cost: float | None = None
     region: str = "above"
-    u: float | None = None
-    lmtd: float | None = None
-    stage: int = 0
-    shells: int | None = None
-    f_factor: float | None = None
-    geometry: dict | None = field(default=None, compare=False)
-
-    def to_dict(self) -> dict:
-        return {"cold": self.cold, "utility": self.utility, "duty": self.duty, "cold_in": self.cold_in,
-                "cold_out": self.cold_out, "utility_in": self.utility_in, "utility_out": self.utility_out,
-                "cold_fraction": self.cold_fraction, "area": self.area, "cost": self.cost, "u": self.u,
-                "lmtd": self.lmtd, "region": self.region, "stage": self.stage,
-                "shells": self.shells, "f_factor": self.f_factor, "geometry": self.geometry}
 
 
 @dataclass(frozen=True)
-class Cooler:
-    """A utility cooler on a hot stream."""
+class Cooler(_Unit):
+    """A utility cooler on a hot stream (utility temperatures in [°C], duty in [kW])."""
 
     hot: str
     utility: str
@@ -180,22 +193,7 @@ class Cooler:
     utility_in: float
     utility_out: float
     hot_fraction: float = 1.0
-    area: float | None = None
-    cost: float | None = None
     region: str = "below"
-    u: float | None = None
-    lmtd: float | None = None
-    stage: int = 0
-    shells: int | None = None
-    f_factor: float | None = None
-    geometry: dict | None = field(default=None, compare=False)
-
-    def to_dict(self) -> dict:
-        return {"hot": self.hot, "utility": self.utility, "duty": self.duty, "hot_in": self.hot_in,
-                "hot_out": self.hot_out, "utility_in": self.utility_in, "utility_out": self.utility_out,
-                "hot_fraction": self.hot_fraction, "area": self.area, "cost": self.cost, "u": self.u,
-                "lmtd": self.lmtd, "region": self.region, "stage": self.stage,
-                "shells": self.shells, "f_factor": self.f_factor, "geometry": self.geometry}
 
 
 @dataclass(frozen=True, eq=False)

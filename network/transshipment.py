@@ -6,11 +6,13 @@ on the shifted scale (hot streams shifted down, cold streams up, by their ΔTmin
 transfer within an interval or downwards respects the minimum approach.  This module holds:
 
 * :func:`temperature_intervals`, the shifted intervals and the heat each stream and utility brings to
-  them, and :func:`ideal_target_utilities`, two ideal utilities for targeting when none are given;
+  them, and :func:`free_target_utilities`, two free utilities for targeting when none are given;
 * :func:`transshipment_model`, the LP of the cheapest utility duties (several levels, hot and cold,
   isothermal or not), built by a function that returns the PuLP problem and a reader of its solution,
   and :func:`transshipment`, which solves it and finds the cascade and its pinches.  It reproduces the
-  problem table and the utility placement of :mod:`heatloom.pinch`.
+  problem table and the utility placement of :mod:`heatloom.pinch`;
+* :func:`pinch_regions`, the stretches of the shifted scale between pinches (:class:`Region`), which both
+  the fewest-matches MILP and the design step work in.
 
 The fewest-matches MILP built on these intervals is in :mod:`heatloom.network.milp`.
 
@@ -37,17 +39,25 @@ from ..pinch.utilities import place_utilities, utility_shifted_range
 from .solvers import SolveReport, SolverName, SolveStatus, new_variable, solve
 
 __all__ = [
+    "HEAT_TOLERANCE",
+    "PINCH_TOLERANCE",
     "Intervals",
     "temperature_intervals",
-    "IDEAL_MARGIN",
-    "ideal_target_utilities",
+    "FREE_UTILITY_MARGIN",
+    "free_target_utilities",
     "Transshipment",
     "transshipment_model",
     "transshipment",
+    "Region",
+    "pinch_regions",
 ]
 
-_REL_TOL = 1e-9      # heat below this share of the problem's duty scale counts as zero (*common practice*)
-_PINCH_TOL = 1e-7    # cascade flow below this share of the duty scale is a pinch (LP round-off margin)
+HEAT_TOLERANCE = 1e-9
+"""Heat below this share of the problem's duty scale counts as zero [-] (*common practice* round-off margin)."""
+
+PINCH_TOLERANCE = 1e-7
+"""Heat cascaded past a boundary below this share of the duty scale makes the boundary a pinch [-] (a margin
+for the LP's round-off); a subnetwork's heat balance may be off by ten times this share."""
 
 
 # ------------------------------------------------------------------------------------------ intervals
@@ -197,17 +207,18 @@ def temperature_intervals(streams: StreamTable, dt_min: float, utilities: Sequen
     return Intervals(dt, temps, tuple(names), is_hot, heat, utilities, frac, scale)
 
 
-IDEAL_MARGIN = 10.0
-"""How far the ideal utilities of :func:`ideal_target_utilities` lie beyond the process [K]."""
+FREE_UTILITY_MARGIN = 10.0
+"""How far the free utilities of :func:`free_target_utilities` lie beyond the process [K]."""
 
 
-def ideal_target_utilities(streams: StreamTable, dt_min: float) -> tuple[Utility, Utility]:
-    """Two ideal utilities for targeting: isothermal, beyond every process temperature, free.
+def free_target_utilities(streams: StreamTable, dt_min: float) -> tuple[Utility, Utility]:
+    """Two free utilities for targeting: isothermal, beyond every process temperature, at no cost.
 
-    The hot one is :data:`IDEAL_MARGIN` above both the hottest process temperature and the hottest
+    Not the priced utilities a design assumes (:func:`heatloom.pinch.utilities.ideal_utilities`): these
+    only reproduce the problem-table targets.  The hot one is :data:`FREE_UTILITY_MARGIN` above both the hottest process temperature and the hottest
     shifted temperature plus ΔTmin/2, the cold one as far below the coldest ones, so each can serve every
     process stream.  At zero price the transshipment LP with them gives the problem-table targets.  They
-    carry the names :mod:`heatloom.pinch` uses for ideal utilities.
+    carry the names :mod:`heatloom.pinch` gives the utilities of targets without utility levels.
 
     Parameters
     ----------
@@ -219,15 +230,15 @@ def ideal_target_utilities(streams: StreamTable, dt_min: float) -> tuple[Utility
     --------
     >>> from heatloom.model import StreamTable
     >>> s = StreamTable.from_arrays(["H1", "C1"], [180, 20], [60, 135], [3.0, 2.0])
-    >>> [(u.name, u.supply_temperature) for u in ideal_target_utilities(s, 10)]
+    >>> [(u.name, u.supply_temperature) for u in free_target_utilities(s, 10)]
     [('hot utility', 190.0), ('cold utility', 10.0)]
     """
     dt = _validate_dt_min(dt_min)
     a = streams.arrays
     upper, lower = shifted_ranges(a, dt)
     temps = np.concatenate((a.supply_temperature, a.target_temperature))
-    top = max(float(temps.max()), float(upper.max()) + 0.5 * dt) + IDEAL_MARGIN
-    bottom = min(float(temps.min()), float(lower.min()) - 0.5 * dt) - IDEAL_MARGIN
+    top = max(float(temps.max()), float(upper.max()) + 0.5 * dt) + FREE_UTILITY_MARGIN
+    bottom = min(float(temps.min()), float(lower.min()) - 0.5 * dt) - FREE_UTILITY_MARGIN
     return (Utility(IDEAL_HOT, top, top, 0.0, UtilityKind.HOT),
             Utility(IDEAL_COLD, bottom, bottom, 0.0, UtilityKind.COLD))
 
@@ -324,8 +335,9 @@ class Transshipment:
     pinches : tuple of float
         Interior boundaries where the cascade carries no heat, hottest first [°C, shifted]: process
         pinches and utility pinches.
-    ideal : bool
-        True when the two ideal utilities of :func:`ideal_target_utilities` were assumed.
+    free_utilities : bool
+        True when no utilities were given and the two free utilities of :func:`free_target_utilities`
+        were assumed.
     reports : tuple of SolveReport
         The cost stage and the tie-break stage.
     """
@@ -334,7 +346,7 @@ class Transshipment:
     duties: tuple[float, ...]
     residuals: np.ndarray
     pinches: tuple[float, ...]
-    ideal: bool
+    free_utilities: bool
     reports: tuple[SolveReport, ...]
 
     @property
@@ -360,7 +372,7 @@ class Transshipment:
     def to_dict(self) -> dict:
         return {"utilities": self.utility_duties, "hot_utility": self.hot_utility,
                 "cold_utility": self.cold_utility, "utility_cost": self.utility_cost,
-                "ideal_utilities": self.ideal, "pinches_shifted": list(self.pinches),
+                "free_utilities": self.free_utilities, "pinches_shifted": list(self.pinches),
                 "shifted_temperatures": self.intervals.temperatures.tolist(),
                 "residuals": self.residuals.tolist(), "solves": [r.to_dict() for r in self.reports]}
 
@@ -387,7 +399,8 @@ def transshipment(streams: StreamTable, dt_min: float, utilities: Sequence[Utili
     dt_min : float
         [K]
     utilities : sequence of Utility, optional
-        Levels with prices [money per kW·year]; the two ideal utilities when omitted.
+        Levels with prices [money per kW·year]; the two free utilities of :func:`free_target_utilities`
+        when omitted.
     solver : SolverName, str or None
         See :func:`heatloom.network.solvers.resolve_solver`.
     time_limit : float
@@ -417,8 +430,8 @@ def transshipment(streams: StreamTable, dt_min: float, utilities: Sequence[Utili
     >>> t.hot_utility, t.cold_utility, t.pinches
     (50.0, 30.0, (85.0,))
     """
-    ideal = utilities is None
-    utilities = ideal_target_utilities(streams, dt_min) if ideal else tuple(utilities)
+    free = utilities is None
+    utilities = free_target_utilities(streams, dt_min) if free else tuple(utilities)
     if not utilities:
         raise InputError("no utilities given for the transshipment model")
     iv = temperature_intervals(streams, dt_min, utilities)
@@ -445,16 +458,81 @@ def transshipment(streams: StreamTable, dt_min: float, utilities: Sequence[Utili
     else:  # keep the first stage; should not happen, as its solution is feasible here
         q = read()
     scale = max(iv.duty_scale, 1.0)
-    q = np.where(q <= _REL_TOL * scale, 0.0, q)
+    q = np.where(q <= HEAT_TOLERANCE * scale, 0.0, q)
     sign = np.array([1.0 if u.is_hot else -1.0 for u in utilities])
     flows = iv.surplus + (sign * q) @ iv.utility_fraction
     residuals = np.concatenate(([0.0], np.cumsum(flows)))
-    residuals = np.where(np.abs(residuals) <= _PINCH_TOL * scale, 0.0, residuals)
+    residuals = np.where(np.abs(residuals) <= PINCH_TOLERANCE * scale, 0.0, residuals)
     # a zero flow is a pinch only with heat exchanged both above and below it (not past unused levels)
     activity = iv.stream_heat.sum(axis=0) + q @ iv.utility_fraction
     above = np.concatenate(([0.0], np.cumsum(activity)))
     below = above[-1] - above
-    active = _REL_TOL * scale
+    active = HEAT_TOLERANCE * scale
     pinches = tuple(float(iv.temperatures[b]) for b in range(1, iv.size)
                     if residuals[b] == 0.0 and above[b] > active and below[b] > active)
-    return Transshipment(iv, tuple(float(x) for x in q), residuals, pinches, ideal, tuple(reports))
+    return Transshipment(iv, tuple(float(x) for x in q), residuals, pinches, free, tuple(reports))
+
+
+# ------------------------------------------------------------------------------------- pinch regions
+
+@dataclass(frozen=True)
+class Region:
+    """A stretch of the shifted temperature scale between two pinches, or between a pinch and an end.
+
+    Attributes
+    ----------
+    label : str
+        ``"whole"`` (no pinch), ``"above"``, ``"between pinches k"`` (k from 1, hottest first) or
+        ``"below"``: the ``region`` of the units a design places in it.
+    top, bottom : float or None
+        Its ends on the shifted scale [°C]; None where it runs to the end of the scale.
+    """
+
+    label: str
+    top: float | None
+    bottom: float | None
+
+    @property
+    def description(self) -> str:
+        """The region in words, with its pinch temperatures (shifted, [°C])."""
+        if self.top is None and self.bottom is None:
+            return "whole problem"
+        if self.top is None:
+            return f"above the pinch at {self.bottom:g} °C shifted"
+        if self.bottom is None:
+            return f"below the pinch at {self.top:g} °C shifted"
+        return f"between the pinches at {self.top:g} and {self.bottom:g} °C shifted"
+
+
+def pinch_regions(pinches: Sequence[float]) -> tuple[Region, ...]:
+    """Cut the shifted temperature scale at every pinch: the regions between them, hottest first.
+
+    Heat never crosses a pinch in a network that meets the targets, so each region can be matched and
+    designed on its own (Linnhoff & Hindmarsh 1983).  The fewest-matches MILP cuts at the pinches of
+    :attr:`Transshipment.pinches` (process and utility pinches,
+    :func:`heatloom.network.milp.subnetworks`), the design step at the process pinches of the targets.
+
+    Parameters
+    ----------
+    pinches : sequence of float
+        Shifted pinch temperatures, hottest first [°C]; none gives one ``whole`` region.
+
+    Examples
+    --------
+    >>> [(r.label, r.top, r.bottom) for r in pinch_regions([120.0, 85.0])]
+    [('above', None, 120.0), ('between pinches 1', 120.0, 85.0), ('below', 85.0, None)]
+    >>> [r.description for r in pinch_regions([85.0])]
+    ['above the pinch at 85 °C shifted', 'below the pinch at 85 °C shifted']
+    >>> pinch_regions(())
+    (Region(label='whole', top=None, bottom=None),)
+
+    References
+    ----------
+    Linnhoff, B., Hindmarsh, E. (1983). The pinch design method for heat exchanger networks. Chemical
+    Engineering Science 38(5), 745-763. doi:10.1016/0009-2509(83)80185-7
+    """
+    cuts = [float(t) for t in pinches]
+    if not cuts:
+        return (Region("whole", None, None),)
+    between = [Region(f"between pinches {k}", a, b) for k, (a, b) in enumerate(zip(cuts, cuts[1:]), start=1)]
+    return (Region("above", None, cuts[0]), *between, Region("below", cuts[-1], None))

@@ -43,7 +43,16 @@ from ..model.prices import BASE_NAME, PriceScenario
 from ..pinch.area import CapitalBasis, area_targets
 from ..pinch.targets import target
 from ..tasks import Progress, TaskRunner, describe_executor
-from .sweep import DesignPoint, SweepPoint, _case, _check_dt, _grid, _task_design, _task_points, sweep
+from .sweep import (
+    DesignPoint,
+    SweepPoint,
+    check_dt_min,
+    design_point,
+    dt_min_grid,
+    evaluate_points,
+    sweep,
+    target_case,
+)
 
 __all__ = [
     "ScenarioCase",
@@ -224,7 +233,7 @@ def _task_optimum(streams: StreamTable, low: float, high: float, step: float, ut
 
 def _task_design_safe(case, x: float, solver, time_limit: float) -> DesignPoint:
     try:
-        return _task_design(case, x, solver, time_limit)
+        return design_point(case, x, solver, time_limit)
     except (InfeasibleError, SolverError, InputError) as e:
         return DesignPoint(float(x), error=f"{type(e).__name__}: {e}")
 
@@ -295,7 +304,7 @@ def scenario_study(zones, dt_min_range: tuple[float, float], utilities: Sequence
         utilities of each zone when omitted.
     scenarios : sequence of PriceScenario, optional
         Default: one scenario with the prices as given.
-    costs : heatloom.network.CostSettings, optional
+    costs : heatloom.model.CostSettings, optional
         Cost laws; the defaults of :mod:`heatloom.defaults` when omitted.
     step : float, optional
         ΔTmin grid step of the cases [K] (default 5).
@@ -339,8 +348,8 @@ def scenario_study(zones, dt_min_range: tuple[float, float], utilities: Sequence
     """
     if not isinstance(dt_min_range, (tuple, list)) or len(dt_min_range) != 2:
         raise InputError(f"the ΔTmin range must be two numbers (low, high) [K], got {dt_min_range!r}")
-    low = _check_dt(dt_min_range[0], "lowest ΔTmin")
-    high = _check_dt(dt_min_range[1], "highest ΔTmin")
+    low = check_dt_min(dt_min_range[0], "lowest ΔTmin")
+    high = check_dt_min(dt_min_range[1], "highest ΔTmin")
     if high < low:
         raise InputError(f"the highest ΔTmin ({high:g} K) must not be below the lowest ({low:g} K)", column="dtmin")
     for what, v in (("ΔTmin step", step), ("optimum step", optimum_step)):
@@ -352,13 +361,13 @@ def scenario_study(zones, dt_min_range: tuple[float, float], utilities: Sequence
             raise InputError(f"the {what} must be a finite number > 0 K, got {v!r}")
     if optimum and high > low:
         try:
-            _grid(low, high, min(float(optimum_step), high - low))
+            dt_min_grid(low, high, min(float(optimum_step), high - low))
         except InputError as e:
             raise InputError(f"optimum step: {e.message}") from None
     zone_tables = _zones(zones)
     utilities = None if utilities is None else tuple(utilities)
     plans = _scenarios(scenarios, utilities)
-    xs = tuple(float(x) for x in (_grid(low, high, float(step)) if high > low else [low]))
+    xs = tuple(float(x) for x in (dt_min_grid(low, high, float(step)) if high > low else [low]))
     n_cases = len(zone_tables) * len(plans) * len(xs)
     if n_cases > max_cases:
         raise InputError(f"{len(zone_tables)} zones × {len(plans)} scenarios × {len(xs)} ΔTmin values = {n_cases:,} "
@@ -368,9 +377,9 @@ def scenario_study(zones, dt_min_range: tuple[float, float], utilities: Sequence
     for zone, table in zone_tables.items():
         for plan in plans:
             if utilities is None:
-                case = _case(table, None, costs, default_film_coefficient, capital_basis, x_p, plan.factor)
+                case = target_case(table, None, costs, default_film_coefficient, capital_basis, x_p, plan.factor)
             else:
-                case = _case(table, plan.apply(utilities), costs, default_film_coefficient, capital_basis, x_p)
+                case = target_case(table, plan.apply(utilities), costs, default_film_coefficient, capital_basis, x_p)
             pairs.append((zone, plan, case))
     runner = TaskRunner(workers, cluster, progress)
     try:
@@ -378,7 +387,7 @@ def scenario_study(zones, dt_min_range: tuple[float, float], utilities: Sequence
         parts = 1 if runner.name == "serial" else max(1, min(len(xs), -(-4 * (workers or os.cpu_count() or 1)
                                                                           // len(pairs))))
         chunks = [tuple(float(x) for x in c) for c in np.array_split(np.asarray(xs), parts) if c.size]
-        done = runner.map(_task_points, [(case, c) for _, _, case in pairs for c in chunks], "cases")
+        done = runner.map(evaluate_points, [(case, c) for _, _, case in pairs for c in chunks], "cases")
         grids = [[p for part in done[k * len(chunks):(k + 1) * len(chunks)] for p in part] for k in range(len(pairs))]
         design_of: dict[tuple, DesignPoint] = {}
         if designs:

@@ -60,6 +60,12 @@ __all__ = [
     "sweep",
     "describe_executor",
     "MAX_POINTS",
+    "TargetCase",
+    "target_case",
+    "check_dt_min",
+    "dt_min_grid",
+    "evaluate_points",
+    "design_point",
 ]
 
 MAX_POINTS = 20_001
@@ -229,8 +235,13 @@ class Sweep:
 
 
 @dataclass(frozen=True, eq=False)
-class _Case:
-    """Everything a task needs (pickled once per task)."""
+class TargetCase:
+    """Everything a task of a sweep or a scenario study needs (pickled once per task), from :func:`target_case`.
+
+    The streams; the utilities with their prices [money per kW·year], any price factor applied (None for the
+    ideal utilities); the cost settings; ``default_h``, the film coefficient where none is given [kW/(m²·K)];
+    the capital basis; X_P [-]; ``price_factor`` [-], left on the ideal utilities' energy cost (else 1).
+    """
 
     streams: StreamTable
     utilities: tuple[Utility, ...] | None
@@ -255,14 +266,14 @@ def _pinch_ends(t: Targets) -> tuple:
     return tuple(out)
 
 
-def _targets(case: _Case, x: float) -> Targets | str:
+def _targets(case: TargetCase, x: float) -> Targets | str:
     try:
         return target(case.streams, x, case.utilities)
     except InfeasibleError as e:
         return str(e)
 
 
-def _signature(case: _Case, t: Targets | str, composites=None) -> _Signature:
+def _signature(case: TargetCase, t: Targets | str, composites=None) -> _Signature:
     if isinstance(t, str):
         return _Signature(False, None, None, None, (), None)
     units, mer = unit_targets(t)
@@ -275,7 +286,7 @@ def _signature(case: _Case, t: Targets | str, composites=None) -> _Signature:
     return _Signature(True, units, mer, shells, _pinch_ends(t), None if t.threshold is None else t.threshold.value)
 
 
-def _evaluate(case: _Case, x: float, kind: str = "grid") -> SweepPoint:
+def _evaluate(case: TargetCase, x: float, kind: str = "grid") -> SweepPoint:
     t = _targets(case, x)
     if isinstance(t, str):
         return SweepPoint(float(x), False, kind=kind, note=t, signature=_signature(case, t))
@@ -303,7 +314,7 @@ def sweep_point(streams: StreamTable, dt_min: float, utilities: Sequence[Utility
         [K], > 0.
     utilities : sequence of Utility, optional
         Utility levels; the ideal utilities when omitted.
-    costs : heatloom.network.CostSettings, optional
+    costs : heatloom.model.CostSettings, optional
     default_film_coefficient : float, optional
         [kW/(m²·K)]
     capital_basis : CapitalBasis or str, optional
@@ -323,12 +334,30 @@ def sweep_point(streams: StreamTable, dt_min: float, utilities: Sequence[Utility
     >>> p.hot_utility, p.cold_utility, p.units, round(p.area, 2)
     (0.0, 40.0, 2, 13.53)
     """
-    case = _case(streams, utilities, costs, default_film_coefficient, capital_basis, x_p)
-    _check_dt(dt_min, "ΔTmin")
+    case = target_case(streams, utilities, costs, default_film_coefficient, capital_basis, x_p)
+    check_dt_min(dt_min, "ΔTmin")
     return _evaluate(case, float(dt_min))
 
 
-def _case(streams, utilities, costs, default_h, basis, x_p, price_factor: float = 1.0) -> _Case:
+def target_case(streams: StreamTable, utilities: Sequence[Utility] | None = None, costs=None,
+                default_film_coefficient: float | None = None,
+                capital_basis: CapitalBasis | str = CapitalBasis.UNITS_MER, x_p: float | None = None,
+                price_factor: float = 1.0) -> TargetCase:
+    """Check the inputs of target tasks once and gather them in a :class:`TargetCase`.
+
+    Parameters are those of :func:`sweep` (``price_factor`` [-] multiplies the given utilities' prices
+    here, or is kept for the ideal utilities' energy cost).  Raises :class:`InputError` for an unknown
+    capital basis, a bad default film coefficient or price factor, or film coefficients missing.
+
+    Examples
+    --------
+    >>> from heatloom.model import StreamTable
+    >>> s = StreamTable.from_arrays(["H", "C"], [150, 30], [40, 120], [2.0, 2.0], film_coefficient=[1.0, 1.0])
+    >>> case = target_case(s, price_factor=2.0)
+    >>> case.basis.value, case.price_factor, case.costs.currency != ""
+    ('units_mer', 2.0, True)
+    """
+    default_h, basis = default_film_coefficient, capital_basis
     try:
         basis = CapitalBasis(basis)
     except ValueError:
@@ -354,11 +383,22 @@ def _case(streams, utilities, costs, default_h, basis, x_p, price_factor: float 
     if utilities is not None:
         utilities = tuple(u if price_factor == 1.0 else replace(u, cost=u.cost * price_factor) for u in utilities)
         price_factor = 1.0
-    return _Case(streams, utilities, costs, None if default_h is None else float(default_h), basis, x_p,
+    return TargetCase(streams, utilities, costs, None if default_h is None else float(default_h), basis, x_p,
                  price_factor)
 
 
-def _check_dt(x, what: str) -> float:
+def check_dt_min(x, what: str = "ΔTmin") -> float:
+    """A ΔTmin of a sweep or study as a float [K], checked finite and > 0 (``what`` names it in the message).
+
+    Examples
+    --------
+    >>> check_dt_min("7.5")
+    7.5
+    >>> check_dt_min(0, "lowest ΔTmin")
+    Traceback (most recent call last):
+    ...
+    heatloom.errors.InputError: column 'dtmin': lowest ΔTmin must be a finite number > 0 K (the area target is ...
+    """
     try:
         v = float(x)
     except (TypeError, ValueError):
@@ -373,11 +413,20 @@ def _check_dt(x, what: str) -> float:
 # tasks (module-level functions: they run in other processes)
 
 
-def _task_points(case: _Case, xs: tuple[float, ...], kind: str = "grid") -> list[SweepPoint]:
+def evaluate_points(case: TargetCase, xs: Sequence[float], kind: str = "grid") -> list[SweepPoint]:
+    """The targets of a case at each ΔTmin of ``xs`` [K], as points of kind ``kind`` (a task of its own).
+
+    Examples
+    --------
+    >>> from heatloom.model import StreamTable
+    >>> s = StreamTable.from_arrays(["H", "C"], [150, 30], [40, 120], [2.0, 2.0], film_coefficient=[1.0, 1.0])
+    >>> [(p.dt_min, p.cold_utility) for p in evaluate_points(target_case(s), (10.0, 20.0))]
+    [(10.0, 40.0), (20.0, 40.0)]
+    """
     return [_evaluate(case, x, kind) for x in xs]
 
 
-def _task_locate(case: _Case, a: float, sig_a: _Signature, b: float, sig_b: _Signature,
+def _task_locate(case: TargetCase, a: float, sig_a: _Signature, b: float, sig_b: _Signature,
                  resolution: float) -> list[tuple[SweepPoint, SweepPoint]]:
     """Bisect (a, b) down to ``resolution`` around every change of structure found; both sides evaluated.
 
@@ -400,7 +449,7 @@ def _task_locate(case: _Case, a: float, sig_a: _Signature, b: float, sig_b: _Sig
     return [(_evaluate(case, lo, "breakpoint"), _evaluate(case, hi, "breakpoint")) for lo, hi in found]
 
 
-def _task_refine(case: _Case, low: float, high: float, xtol: float) -> SweepPoint:
+def _task_refine(case: TargetCase, low: float, high: float, xtol: float) -> SweepPoint:
     """Bounded scalar minimisation of the TAC target between ``low`` and ``high``."""
     from scipy.optimize import minimize_scalar
 
@@ -412,7 +461,12 @@ def _task_refine(case: _Case, low: float, high: float, xtol: float) -> SweepPoin
     return _evaluate(case, float(res.x), "optimum")
 
 
-def _task_design(case: _Case, x: float, solver: str | None, time_limit: float) -> DesignPoint:
+def design_point(case: TargetCase, x: float, solver: str | None = None, time_limit: float = 60.0) -> DesignPoint:
+    """Design a maximum-energy-recovery network of a case at ΔTmin ``x`` [K] and cost it (a task of its own).
+
+    ``time_limit`` [s] bounds each MILP solve of :func:`heatloom.network.design.design_mer`; a design that
+    is infeasible or whose solver fails gives a point with its ``error``.
+    """
     from ..network.design import design_mer
 
     try:
@@ -429,7 +483,19 @@ def _task_design(case: _Case, x: float, solver: str | None, time_limit: float) -
 # the sweep
 
 
-def _grid(low: float, high: float, step: float) -> np.ndarray:
+def dt_min_grid(low: float, high: float, step: float) -> np.ndarray:
+    """ΔTmin values ``low, low + step, ...`` up to ``high``, which is always the last [K].
+
+    Raises
+    ------
+    InputError
+        For more than :data:`MAX_POINTS` values.
+
+    Examples
+    --------
+    >>> dt_min_grid(5.0, 12.0, 3.0).tolist()
+    [5.0, 8.0, 11.0, 12.0]
+    """
     n = int(math.floor((high - low) / step + 1e-9))
     if n + 1 > MAX_POINTS:
         raise InputError(f"{n + 1} ΔTmin points from {low:g} to {high:g} K by {step:g} K; at most {MAX_POINTS} "
@@ -448,18 +514,14 @@ def _breakpoint(lo: SweepPoint, hi: SweepPoint, streams: StreamTable) -> Breakpo
                 "the utilities given can no longer serve the process")
         return Breakpoint(lo.dt_min, hi.dt_min, text, ("feasibility",))
     parts, codes = [], []
-    if a.units != b.units:
-        parts.append(f"units target {a.units} → {b.units}")
-        codes.append("units")
-    if a.units_mer != b.units_mer:
-        parts.append(f"MER units target {a.units_mer} → {b.units_mer}")
-        codes.append("units_mer")
-    if a.shells != b.shells:
-        parts.append(f"shells target {a.shells} → {b.shells}")
-        codes.append("shells")
-    if a.threshold != b.threshold:
-        parts.append(f"threshold {a.threshold or 'none'} → {b.threshold or 'none'}")
-        codes.append("threshold")
+    for code, what in (("units", "units target"), ("units_mer", "MER units target"), ("shells", "shells target"),
+                       ("threshold", "threshold")):
+        old, new = getattr(a, code), getattr(b, code)
+        if old != new:
+            if code == "threshold":
+                old, new = old or "none", new or "none"
+            parts.append(f"{what} {old} → {new}")
+            codes.append(code)
     if a.pinch != b.pinch:
         names = streams.names
         idx = streams.arrays.stream_index
@@ -506,7 +568,7 @@ def sweep(streams: StreamTable, dt_min_range: tuple[float, float], utilities: Se
     utilities : sequence of Utility, optional
         Utility levels with prices; the ideal utilities when omitted.  Points where they cannot serve
         the process are kept, marked not feasible.
-    costs : heatloom.network.CostSettings, optional
+    costs : heatloom.model.CostSettings, optional
         Defaults of :mod:`heatloom.defaults` when omitted.
     step : float, optional
         Grid step [K], > 0.
@@ -564,8 +626,8 @@ def sweep(streams: StreamTable, dt_min_range: tuple[float, float], utilities: Se
     """
     if not isinstance(dt_min_range, (tuple, list)) or len(dt_min_range) != 2:
         raise InputError(f"the ΔTmin range must be two numbers (low, high) [K], got {dt_min_range!r}")
-    low = _check_dt(dt_min_range[0], "lowest ΔTmin")
-    high = _check_dt(dt_min_range[1], "highest ΔTmin")
+    low = check_dt_min(dt_min_range[0], "lowest ΔTmin")
+    high = check_dt_min(dt_min_range[1], "highest ΔTmin")
     if not high > low:
         raise InputError(f"the highest ΔTmin ({high:g} K) must be above the lowest ({low:g} K)", column="dtmin")
     try:
@@ -577,14 +639,14 @@ def sweep(streams: StreamTable, dt_min_range: tuple[float, float], utilities: Se
     for name, v in (("resolution", resolution), ("xtol", xtol)):
         if not (float(v) > 0):
             raise InputError(f"{name} must be > 0 K, got {v!r}")
-    design_at = tuple(_check_dt(x, "design ΔTmin") for x in designs)
-    case = _case(streams, utilities, costs, default_film_coefficient, capital_basis, x_p, price_factor)
-    xs = _grid(low, high, step)
+    design_at = tuple(check_dt_min(x, "design ΔTmin") for x in designs)
+    case = target_case(streams, utilities, costs, default_film_coefficient, capital_basis, x_p, price_factor)
+    xs = dt_min_grid(low, high, step)
     runner = TaskRunner(workers, cluster, progress)
     try:
         n_tasks = 1 if runner.name == "serial" else min(len(xs), 4 * (workers or os.cpu_count() or 1))
         chunks = [tuple(float(x) for x in c) for c in np.array_split(xs, n_tasks) if c.size]
-        grid = [p for part in runner.map(_task_points, [(case, c) for c in chunks], "targets") for p in part]
+        grid = [p for part in runner.map(evaluate_points, [(case, c) for c in chunks], "targets") for p in part]
         pairs = [(grid[i], grid[i + 1]) for i in range(len(grid) - 1) if grid[i].signature != grid[i + 1].signature]
         located = runner.map(_task_locate, [(case, a.dt_min, a.signature, b.dt_min, b.signature, resolution)
                                             for a, b in pairs], "breakpoints")
@@ -615,7 +677,7 @@ def sweep(streams: StreamTable, dt_min_range: tuple[float, float], utilities: Se
         optimum = min([*(p for p in refined if p.feasible), best], key=lambda p: (p.total_annual_cost, p.dt_min))
         if optimum is best:
             optimum = replace(best, kind="optimum")
-        design_points = tuple(runner.map(_task_design, [(case, x, solver, design_time_limit) for x in design_at],
+        design_points = tuple(runner.map(design_point, [(case, x, solver, design_time_limit) for x in design_at],
                                          "designs"))
     finally:
         runner.close()

@@ -265,49 +265,40 @@ class _Model:
             rows.append((UnitKind.EXCHANGER, (i, j, k), (0.0, unit_vec(idx)), th[i, k], th[i, k + 1], tc[j, k + 1],
                          tc[j, k], u, p.laws[UnitKind.EXCHANGER], 0.0))
         eq_c, eq_m = [], []
+
+        def utility_chain(cooling: bool, s: int, end, target: float, cp: float, h: float) -> None:
+            """Rows of a stream's utility units in series from its end ``end`` to its target, or, with none,
+            the equality that the stream already reaches its target there."""
+            t_c, t_m = end
+            levels = (cool_by if cooling else heat_by)[s]
+            gap = (t_c - target, t_m) if cooling else (target - t_c, -t_m)   # temperature still to change
+            if not levels:
+                eq_c.append(gap[0])
+                eq_m.append(gap[1])
+                return
+            side, kind = ("cool", UnitKind.COOLER) if cooling else ("heat", UnitKind.HEATER)
+            start, remaining = end, (cp * gap[0], cp * gap[1])
+            for pos, lv in enumerate(levels):
+                util = (p.cool_levels if cooling else p.heat_levels)[lv]
+                if pos < len(levels) - 1:
+                    duty = (0.0, unit_vec(var_of[side, s, lv]))
+                    remaining = (remaining[0], remaining[1] - duty[1])
+                else:
+                    duty = remaining
+                if cooling:
+                    stop = (start[0] - duty[0] / cp, start[1] - duty[1] / cp)
+                else:
+                    stop = (start[0] + duty[0] / cp, start[1] + duty[1] / cp)
+                u = 1.0 / (1.0 / h + 1.0 / util.film_coefficient)
+                ends = ((util.supply_temperature, np.zeros(n)), (util.target_temperature, np.zeros(n)))
+                sides = (start, stop, *ends) if cooling else (*ends, start, stop)
+                rows.append((kind, (side, s, lv), duty, *sides, u, p.laws[kind], util.cost))
+                start = stop
+
         for i in range(n_h):
-            t_c, t_m = th[i, K]
-            levels = cool_by[i]
-            if not levels:
-                eq_c.append(t_c - p.hot_out[i])
-                eq_m.append(t_m)
-                continue
-            start = (t_c, t_m)
-            remaining = (p.hot_cp[i] * (t_c - p.hot_out[i]), p.hot_cp[i] * t_m)
-            for pos, lv in enumerate(levels):
-                util = p.cool_levels[lv]
-                if pos < len(levels) - 1:
-                    duty = (0.0, unit_vec(var_of["cool", i, lv]))
-                    remaining = (remaining[0], remaining[1] - duty[1])
-                else:
-                    duty = remaining
-                end = (start[0] - duty[0] / p.hot_cp[i], start[1] - duty[1] / p.hot_cp[i])
-                u = 1.0 / (1.0 / p.hot_h[i] + 1.0 / util.film_coefficient)
-                rows.append((UnitKind.COOLER, ("cool", i, lv), duty, start, end, (util.supply_temperature, np.zeros(n)),
-                             (util.target_temperature, np.zeros(n)), u, p.laws[UnitKind.COOLER], util.cost))
-                start = end
+            utility_chain(True, i, th[i, K], p.hot_out[i], p.hot_cp[i], p.hot_h[i])
         for j in range(n_c):
-            t_c, t_m = tc[j, 0]
-            levels = heat_by[j]
-            if not levels:
-                eq_c.append(p.cold_out[j] - t_c)
-                eq_m.append(-t_m)
-                continue
-            start = (t_c, t_m)
-            remaining = (p.cold_cp[j] * (p.cold_out[j] - t_c), -p.cold_cp[j] * t_m)
-            for pos, lv in enumerate(levels):
-                util = p.heat_levels[lv]
-                if pos < len(levels) - 1:
-                    duty = (0.0, unit_vec(var_of["heat", j, lv]))
-                    remaining = (remaining[0], remaining[1] - duty[1])
-                else:
-                    duty = remaining
-                end = (start[0] + duty[0] / p.cold_cp[j], start[1] + duty[1] / p.cold_cp[j])
-                u = 1.0 / (1.0 / util.film_coefficient + 1.0 / p.cold_h[j])
-                rows.append((UnitKind.HEATER, ("heat", j, lv), duty, (util.supply_temperature, np.zeros(n)),
-                             (util.target_temperature, np.zeros(n)), start, end, u, p.laws[UnitKind.HEATER],
-                             util.cost))
-                start = end
+            utility_chain(False, j, tc[j, 0], p.cold_out[j], p.cold_cp[j], p.cold_h[j])
         self.rows = rows
         self.kinds = [r[0] for r in rows]
         self.keys = [r[1] for r in rows]

@@ -6,8 +6,8 @@ The sequence (DEVELOPERS.md, "Method notes"):
    design_mer` at ΔTmin 10 K, its exchangers laid into stages along every stream; (b) the stagewise MILP
    of Yee & Grossmann (1990) with K = max(#hot, #cold) stages, utilities at the stream ends and isothermal
    mixing, whose area cost is linearised as a fixed charge per unit plus a cost per kW estimated from the
-   current load and approach-temperature estimates (:func:`stagewise_milp`); the estimates are updated
-   from the refined network and the MILP solved again a few times.
+   current load and approach-temperature estimates (:func:`heatloom.network.tac.starts.stagewise_milp`);
+   the estimates are updated from the refined network and the MILP solved again a few times.
 2. **Exact refinement** of each topology (:func:`heatloom.network.tac.nlp.solve_topology`): loads,
    stage temperatures and utility duties by SLSQP (trust-constr when SLSQP fails at once) against the exact
    TAC with the exact LMTD and EMAT at both ends of every unit, isothermal mixing; units whose load
@@ -41,14 +41,13 @@ from collections.abc import Callable, Sequence
 from concurrent.futures import ProcessPoolExecutor
 
 import numpy as np
-import pulp
 
 from ... import defaults
 from ...equipment.sizing import log_mean
 from ...errors import InfeasibleError, InputError
 from ...model import StreamTable, Utility
 from ...model.costs import CostSettings, UnitKind
-from ..solvers import new_variable, solve
+from ..solvers import solve
 from ..structure import Cooler, Exchanger, Heater, Network, check_network
 from .nlp import (
     TacProblem,
@@ -59,8 +58,9 @@ from .nlp import (
     solve_topology,
     unit_costs,
 )
+from .starts import stagewise_milp, topology_from_network, unit_estimates
 
-__all__ = ["design_tac", "stagewise_milp", "topology_from_network", "network_from_solution"]
+__all__ = ["design_tac", "network_from_solution"]
 
 MER_DT_MIN = 10.0
 """ΔTmin of the maximum-energy-recovery network used as a starting topology [K] (*common practice* value
@@ -321,222 +321,6 @@ def _run_start(args) -> tuple[TopologySolution, int, bool]:
     return best, s.evals, s.timed_out
 
 
-# ----------------------------------------------------------------------------------------------- MILP
-
-def _unit_area_cost_per_kw(law, u: float, load: float, approach: float) -> float:
-    """Secant of the area term of a law through zero and the estimated load [money per kW·year]."""
-    _, b, c = law
-    load = max(load, 1e-6)
-    return b * (load / (u * max(approach, 1e-3))) ** c / load
-
-
-def stagewise_milp(p: TacProblem, stages: int, estimates: dict, *, name: str = "tac stagewise MILP"
-                   ) -> tuple[pulp.LpProblem, Callable[[], Topology]]:
-    """The stagewise superstructure MILP with a linearised area cost; the problem and a reader of its topology.
-
-    .. math::
-
-        \\min \\sum_u p_u Q_u + \\sum_{ijk} (a\\,z_{ijk} + c_{ijk} q_{ijk})
-        + \\sum_{util} (a\\,z_u + c_u Q_u)
-
-    subject to the stage and overall heat balances, monotone stage temperatures, logical constraints
-    q ≤ Ω z and approach constraints ΔT ≥ EMAT − Γ(1 − z) at both ends of every unit (Yee & Grossmann 1990,
-    constraints (1)-(12)), with utility units at the stream ends, one per utility level in series ordered
-    by temperature.  The per-kW area costs :math:`c` are secants of b·(Q/(U·θ))^c through zero at an
-    estimated load Q̂ and approach θ̂ (``estimates``), updated by the caller from refined networks.
-
-    Parameters
-    ----------
-    p : TacProblem
-    stages : int
-        K [-].
-    estimates : dict
-        (unit key) → (load [kW], log-mean approach [K]) for matches (i, j, k), ("heat", j, level) and
-        ("cool", i, level); missing keys are estimated from the stream temperatures.
-    """
-    prob = pulp.LpProblem(name.replace(" ", "_"), pulp.LpMinimize)
-    K = stages
-    nh, nc = len(p.hot_names), len(p.cold_names)
-    temps = np.concatenate([p.hot_in, p.hot_out, p.cold_in, p.cold_out,
-                            [u.supply_temperature for u in (*p.heat_levels, *p.cool_levels)]])
-    gamma = float(temps.max() - temps.min() + 2 * p.emat)
-    th = {(i, 0): float(p.hot_in[i]) for i in range(nh)}
-    tc = {(j, K): float(p.cold_in[j]) for j in range(nc)}
-    for i in range(nh):
-        for k in range(1, K + 1):
-            th[i, k] = new_variable(prob, f"th_{i}_{k}", float(p.hot_out[i]), float(p.hot_in[i]))
-    for j in range(nc):
-        for k in range(K):
-            tc[j, k] = new_variable(prob, f"tc_{j}_{k}", float(p.cold_in[j]), float(p.cold_out[j]))
-    q, z = {}, {}
-    cost_terms = []
-
-    def guess(key, default_load, default_dt):
-        return estimates.get(key, (default_load, default_dt))
-
-    for i in range(nh):
-        for j in range(nc):
-            if not p.can_match(i, j):
-                continue
-            omega = float(min(p.hot_duty[i], p.cold_duty[j]))
-            u = 1.0 / (1.0 / p.hot_h[i] + 1.0 / p.cold_h[j])
-            for k in range(K):
-                key = (i, j, k)
-                # default approach: the two streams' temperatures at the stage's middle, if evenly cooled/heated
-                f = (k + 0.5) / K
-                th_mid = p.hot_in[i] - f * (p.hot_in[i] - p.hot_out[i])
-                tc_mid = p.cold_out[j] - f * (p.cold_out[j] - p.cold_in[j])
-                load, dt = guess(key, 0.5 * omega, max(th_mid - tc_mid, 2 * p.emat))
-                q[key] = new_variable(prob, f"q_{i}_{j}_{k}", 0, omega)
-                z[key] = new_variable(prob, f"z_{i}_{j}_{k}", cat=pulp.LpBinary)
-                prob += q[key] <= omega * z[key]
-                prob += th[i, k] - tc[j, k] >= p.emat - gamma * (1 - z[key])
-                prob += th[i, k + 1] - tc[j, k + 1] >= p.emat - gamma * (1 - z[key])
-                law = p.laws[UnitKind.EXCHANGER]
-                cost_terms.append(law[0] * z[key] + _unit_area_cost_per_kw(law, u, load, dt) * q[key])
-    for i in range(nh):
-        for k in range(K):
-            prob += p.hot_cp[i] * (th[i, k] - th[i, k + 1]) == pulp.lpSum(
-                q[i, j, k] for j in range(nc) if (i, j, k) in q)
-    for j in range(nc):
-        for k in range(K):
-            prob += p.cold_cp[j] * (tc[j, k] - tc[j, k + 1]) == pulp.lpSum(
-                q[i, j, k] for i in range(nh) if (i, j, k) in q)
-    util_q, util_z = {}, {}
-    # utility units in series at the stream ends
-    for side in ("cool", "heat"):
-        count = nh if side == "cool" else nc
-        levels = p.cool_levels if side == "cool" else p.heat_levels
-        for s in range(count):
-            possible = [lv for lv in range(len(levels))
-                        if (p.cool_level_possible(s, lv) if side == "cool" else p.heat_level_possible(s, lv))]
-            cp = p.hot_cp[s] if side == "cool" else p.cold_cp[s]
-            duty = p.hot_duty[s] if side == "cool" else p.cold_duty[s]
-            end = th[s, K] if side == "cool" else tc[s, 0]
-            target = p.hot_out[s] if side == "cool" else p.cold_out[s]
-            h_s = p.hot_h[s] if side == "cool" else p.cold_h[s]
-            before = end
-            total = []
-            for lv in possible:
-                util = levels[lv]
-                key = (side, s, lv)
-                util_q[key] = new_variable(prob, f"q{side}_{s}_{lv}", 0, float(duty))
-                util_z[key] = new_variable(prob, f"z{side}_{s}_{lv}", cat=pulp.LpBinary)
-                prob += util_q[key] <= float(duty) * util_z[key]
-                sign = -1.0 if side == "cool" else 1.0
-                after = before + sign * util_q[key] * (1.0 / cp)
-                if side == "cool":   # hot end: stream before − utility outlet; cold end: after − utility inlet
-                    prob += before - util.target_temperature >= p.emat - gamma * (1 - util_z[key])
-                    prob += after - util.supply_temperature >= p.emat - gamma * (1 - util_z[key])
-                    dt0 = max(0.5 * (p.hot_out[s] + p.hot_in[s]) - util.target_temperature, 2 * p.emat)
-                else:
-                    prob += util.supply_temperature - after >= p.emat - gamma * (1 - util_z[key])
-                    prob += util.target_temperature - before >= p.emat - gamma * (1 - util_z[key])
-                    dt0 = max(util.target_temperature - 0.5 * (p.cold_out[s] + p.cold_in[s]), 2 * p.emat)
-                u = 1.0 / (1.0 / h_s + 1.0 / util.film_coefficient)
-                load, dt = guess(key, 0.5 * duty, dt0)
-                law = p.laws[UnitKind.COOLER if side == "cool" else UnitKind.HEATER]
-                cost_terms.append(law[0] * util_z[key] + (_unit_area_cost_per_kw(law, u, load, dt) + util.cost)
-                                  * util_q[key])
-                total.append(util_q[key])
-                before = after
-            sign = 1.0 if side == "cool" else -1.0
-            prob += cp * sign * (end - target) == pulp.lpSum(total)
-    prob += pulp.lpSum(cost_terms)
-
-    def read() -> Topology:
-        tol = 1e-6 * p.scale
-        matches = frozenset(k for k, v in q.items() if (v.varValue or 0.0) > tol)
-        heaters = frozenset((s, lv) for (side, s, lv), v in util_q.items() if side == "heat" and (v.varValue or 0) > tol)
-        coolers = frozenset((s, lv) for (side, s, lv), v in util_q.items() if side == "cool" and (v.varValue or 0) > tol)
-        return Topology(K, matches, heaters, coolers)
-
-    return prob, read
-
-
-def _estimates(p: TacProblem, sol: TopologySolution) -> dict:
-    """(load, log-mean approach) of every unit of a refined solution, for the next MILP."""
-    out = {}
-    for d in unit_costs(p, sol.topology, sol.x):
-        a, b = d["hot_in"] - d["cold_out"], d["hot_out"] - d["cold_in"]
-        if d["duty"] > 0 and a > 0 and b > 0:
-            out[d["key"]] = (d["duty"], float(log_mean(a, b)))
-    return out
-
-
-# ------------------------------------------------------------------------------------ MER topology
-
-def topology_from_network(p: TacProblem, net: Network) -> Topology | None:
-    """Lay the exchangers of a network into stages along every stream (None if they cannot be).
-
-    Units of a stream are ordered from its hot end; units with the same temperatures on a stream are its
-    parallel branches and share a stage.  Each unit's stage is the length of the longest chain of units
-    before it; a network whose orders conflict (a loop of precedences) has no stagewise form.  Utility
-    units are put at the stream ends, one per stream that uses any.
-    """
-    hot_idx = {n: k for k, n in enumerate(p.hot_names)}
-    cold_idx = {n: k for k, n in enumerate(p.cold_names)}
-    ex = [e for e in net.exchangers if e.hot in hot_idx and e.cold in cold_idx]
-    parent = list(range(len(ex)))
-
-    def find(a):
-        while parent[a] != a:
-            parent[a] = parent[parent[a]]
-            a = parent[a]
-        return a
-
-    edges = set()
-    for side in ("hot", "cold"):
-        by_stream: dict = {}
-        for n, e in enumerate(ex):
-            t = (round(e.hot_in, 6), round(e.hot_out, 6)) if side == "hot" else (round(e.cold_out, 6),
-                                                                                    round(e.cold_in, 6))
-            by_stream.setdefault(getattr(e, side), {}).setdefault(t, []).append(n)
-        for groups in by_stream.values():
-            ordered = [groups[t] for t in sorted(groups, reverse=True)]
-            for g in ordered:
-                for n in g[1:]:
-                    parent[find(n)] = find(g[0])
-            for g1, g2 in zip(ordered, ordered[1:]):
-                edges.add((g1[0], g2[0]))
-    nodes = sorted({find(n) for n in range(len(ex))})
-    succ = {n: set() for n in nodes}
-    for a, b in edges:
-        ra, rb = find(a), find(b)
-        if ra == rb:
-            return None
-        succ[ra].add(rb)
-    level = {n: 0 for n in nodes}
-    indeg = {n: 0 for n in nodes}
-    for a in nodes:
-        for b in succ[a]:
-            indeg[b] += 1
-    ready = [n for n in nodes if indeg[n] == 0]
-    seen = 0
-    while ready:
-        a = ready.pop()
-        seen += 1
-        for b in succ[a]:
-            level[b] = max(level[b], level[a] + 1)
-            indeg[b] -= 1
-            if indeg[b] == 0:
-                ready.append(b)
-    if seen != len(nodes):
-        return None
-    matches = set()
-    for n, e in enumerate(ex):
-        key = (hot_idx[e.hot], cold_idx[e.cold], level[find(n)])
-        if key in matches:
-            return None
-        matches.add(key)
-    heaters = {(cold_idx[h.cold], lv) for h in net.heaters if h.cold in cold_idx
-               for lv, u in enumerate(p.heat_levels) if u.name == h.utility}
-    coolers = {(hot_idx[c.hot], lv) for c in net.coolers if c.hot in hot_idx
-               for lv, u in enumerate(p.cool_levels) if u.name == c.utility}
-    stages = max((k for (_, _, k) in matches), default=0) + 1
-    return Topology(stages, frozenset(matches), frozenset(heaters), frozenset(coolers))
-
-
 # ------------------------------------------------------------------------------------------- network
 
 def network_from_solution(p: TacProblem, sol: TopologySolution, streams: StreamTable, utilities: Sequence[Utility],
@@ -620,7 +404,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         Process streams of one constant CP each, with film coefficients.
     utilities : sequence of Utility, optional
         Utility levels with prices [money per kW·year] and film coefficients; when omitted, the assumed
-        utilities of :func:`heatloom.network.design.ideal_utilities` (stated in the notes).
+        utilities of :func:`heatloom.pinch.utilities.ideal_utilities` (stated in the notes).
     costs : CostSettings, optional
         Cost laws and annualisation; the defaults of :mod:`heatloom.defaults` when omitted.
     emat : float
@@ -742,7 +526,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         # (b) the stagewise MILP with linearised area costs, estimates updated from the refined networks
         est: dict = {}
         for c in candidates:
-            est.update(_estimates(p, c))
+            est.update(unit_estimates(p, c))
         seen = set()
         for it in range(milp_iterations):
             if deadline - time.monotonic() < 0.3 * time_limit:
@@ -760,7 +544,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
             sol = search.evaluate(top)
             keep(sol, f"MILP iteration {it + 1}")
             if sol is not None:
-                est.update(_estimates(p, sol))
+                est.update(unit_estimates(p, sol))
         if not candidates:
             raise InfeasibleError(f"no network keeps EMAT {emat:g} K: some stream cannot be served by any utility")
         order = sorted(range(len(candidates)), key=lambda n: candidates[n].tac)

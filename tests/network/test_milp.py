@@ -288,7 +288,7 @@ def test_plan_to_dict_and_note(reference):
     data, streams = reference("targeting_sinnott_four_stream")
     plan = plan_matches(streams, data["dtmin"])
     d = plan.to_dict()
-    assert d["ideal_utilities"] and "ideal utilities assumed" in d["note"]
+    assert d["free_utilities"] and "free utilities assumed" in d["note"]
     assert d["utilities"] == pytest.approx({"hot utility": 50.0, "cold utility": 30.0})
     assert d["number_of_matches"] == len(d["matches"]) == 6
     assert {m["kind"] for m in d["matches"]} == {"exchanger", "heater", "cooler"}

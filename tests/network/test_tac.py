@@ -21,7 +21,8 @@ from heatloom.model.costs import CostLaw, CostSettings
 from heatloom.network.design import design_mer
 from heatloom.network.structure import check_network
 from heatloom.network.tac.nlp import Topology, _log_mean_and_gradient, make_problem, solve_topology
-from heatloom.network.tac.search import design_tac, stagewise_milp, topology_from_network
+from heatloom.network.tac.search import design_tac
+from heatloom.network.tac.starts import stagewise_milp, topology_from_network
 
 
 def recomputed_tac(net, data, streams) -> float:

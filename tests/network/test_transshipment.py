@@ -16,8 +16,8 @@ from synthesis_problems import SYNTHESIS, TARGETING, problems
 from heatloom.errors import InfeasibleError, InputError
 from heatloom.model import Utility
 from heatloom.network.transshipment import (
-    IDEAL_MARGIN,
-    ideal_target_utilities,
+    FREE_UTILITY_MARGIN,
+    free_target_utilities,
     temperature_intervals,
     transshipment,
 )
@@ -48,7 +48,7 @@ def test_lp_reproduces_published_targets(reference, name, hot, cold):
     t = transshipment(streams, data["dtmin"])
     assert t.hot_utility == pytest.approx(hot, abs=1e-6)
     assert t.cold_utility == pytest.approx(cold, abs=1e-6)
-    assert t.ideal
+    assert t.free_utilities
     # pinch printed as hot / cold temperatures: shifted = their mean
     p = data["published"]
     assert t.pinches == pytest.approx([(p["pinch_hot_C"] + p["pinch_cold_C"]) / 2], abs=1e-9)
@@ -151,11 +151,11 @@ def test_lp_errors(reference):
         transshipment(streams, 10, [Utility("steam", 250, 249, 10.0), Utility("generation", 20, 30, -50.0)])
 
 
-def test_ideal_utilities_lie_beyond_the_process(reference):
+def test_free_utilities_lie_beyond_the_process(reference):
     data, streams = reference("targeting_klemes_table_4_2")
-    hot, cold = ideal_target_utilities(streams, data["dtmin"])
+    hot, cold = free_target_utilities(streams, data["dtmin"])
     assert hot.supply_temperature == max(max(s.supply_temperature, s.target_temperature) for s in streams) \
-        + IDEAL_MARGIN
+        + FREE_UTILITY_MARGIN
     assert cold.supply_temperature < min(min(s.supply_temperature, s.target_temperature) for s in streams)
 
 
@@ -165,10 +165,10 @@ def test_lp_agrees_with_targeting_on_random_problems(problem):
     streams, dt_min, levels = problem
     scale = streams_scale(streams)
     pt = target(streams, dt_min)
-    ideal = transshipment(streams, dt_min)
-    assert ideal.hot_utility == pytest.approx(pt.hot_utility, abs=1e-7 * scale)
-    assert ideal.cold_utility == pytest.approx(pt.cold_utility, abs=1e-7 * scale)
-    assert ideal.pinches == pytest.approx([p.shifted for p in pt.pinches], abs=1e-9)
+    free = transshipment(streams, dt_min)
+    assert free.hot_utility == pytest.approx(pt.hot_utility, abs=1e-7 * scale)
+    assert free.cold_utility == pytest.approx(pt.cold_utility, abs=1e-7 * scale)
+    assert free.pinches == pytest.approx([p.shifted for p in pt.pinches], abs=1e-9)
     t = transshipment(streams, dt_min, levels)
     placement = place_utilities(problem_table(streams, dt_min), levels)
     for d in placement.duties:
