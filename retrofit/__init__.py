@@ -5,17 +5,15 @@ from .diagnose import (
     CrossPinch,
     CrossPinchUnit,
     Diagnosis,
-    NetworkPinch,
-    PathShift,
     RetrofitCurve,
     area_efficiency,
     cross_pinch,
     diagnose,
     existing_dt_min,
-    network_pinch,
     retrofit_curve,
 )
-from .existing import ExistingNetwork, heat_between, temperature_after
+from .existing import ExistingNetwork
+from .network_pinch import NetworkPinch, PathShift, network_pinch
 from .options import (
     Change,
     ChangeKind,
@@ -26,6 +24,7 @@ from .options import (
     apply_changes,
     retrofit_options,
 )
+from .profiles import heat_between, temperature_after
 from .simulate import Simulation, UnitState, simulate
 
 __all__ = [
@@ -33,16 +32,16 @@ __all__ = [
     "CrossPinch",
     "CrossPinchUnit",
     "Diagnosis",
-    "NetworkPinch",
-    "PathShift",
     "RetrofitCurve",
     "area_efficiency",
     "cross_pinch",
     "diagnose",
     "existing_dt_min",
-    "network_pinch",
     "retrofit_curve",
     "ExistingNetwork",
+    "NetworkPinch",
+    "PathShift",
+    "network_pinch",
     "heat_between",
     "temperature_after",
     "Change",

@@ -21,22 +21,14 @@ from collections.abc import Sequence
 from dataclasses import dataclass, replace
 
 from ..equipment.rating import max_effectiveness, ntu_from_effectiveness
-from ..equipment.segments import cut_profile, size_segments
 from ..equipment.sizing import overall_coefficient
 from ..errors import InputError, SolverError, TemperatureCrossError
-from ..model import Segment, Utility
+from ..model import Utility
 from ..model.costs import RetrofitCosts, capital_recovery_factor
 from ..model.exchangers import FlowArrangement
 from ..model.existing import ExistingUnit, OperatingMode, UnitRole
-from .existing import (
-    ISOTHERMAL_GLIDE,
-    ExistingNetwork,
-    _min_approach,
-    _secant_cp,
-    film_coefficient_of,
-    heat_between,
-    temperature_after,
-)
+from .existing import ExistingNetwork, film_coefficient_of
+from .profiles import heat_between, mean_cp_between, smallest_approach, temperature_after, utility_match_area
 from .selection import SetValue
 from .simulate import Simulation, simulate
 
@@ -325,19 +317,10 @@ def _trim_area(net: ExistingNetwork, st) -> float | None:
     util = net.utility(unit.hot if heater else unit.cold)
     stream = net.stream(unit.cold if heater else unit.hot)
     t_in, t_out = (st.cold_in, st.cold_out) if heater else (st.hot_in, st.hot_out)
-    side = [util.supply_temperature, util.target_temperature]
-    if side[0] == side[1]:
-        side[1] += -ISOTHERMAL_GLIDE if util.is_hot else ISOTHERMAL_GLIDE
-    u_seg = [Segment(side[0], side[1], st.duty / abs(side[0] - side[1]))]
-    lo, hi = sorted((stream.supply_temperature, stream.target_temperature))
     if abs(t_out - t_in) < 1e-9:
         return 0.0
-    inside = lo - 1e-9 <= min(t_in, t_out) and max(t_in, t_out) <= hi + 1e-9
-    s_seg = list(cut_profile(stream.segments, t_in, t_out)) if inside else \
-        [Segment(t_in, t_out, st.duty / abs(t_out - t_in))]
-    hot, cold = (u_seg, s_seg) if heater else (s_seg, u_seg)
     try:
-        return float(size_segments(hot, cold, u=unit.u, rel_tol=1e-6).area)
+        return utility_match_area(util, stream, t_in, t_out, st.duty, unit.u)
     except (TemperatureCrossError, InputError):
         return math.inf
 
@@ -391,7 +374,7 @@ def _largest_duty(hot, cold, th: float, tc: float, emat: float, cap: float) -> f
         return 0.0
 
     def ok(q):
-        return _min_approach(hot, cold, th, temperature_after(hot, th, q), tc,
+        return smallest_approach(hot, cold, th, temperature_after(hot, th, q), tc,
                              temperature_after(cold, tc, q)) >= emat
 
     if ok(top):
@@ -410,8 +393,8 @@ def _largest_duty(hot, cold, th: float, tc: float, emat: float, cap: float) -> f
 def _area_for(hot, cold, th: float, tc: float, q: float, u: float, arrangement=FlowArrangement.COUNTER_CURRENT,
               shells: int = 1, limit: float = 1.0) -> float | None:
     """Area [m²] that transfers ``q`` [kW] from these inlets by ε-NTU (mean CPs over the ranges covered)."""
-    ch = _secant_cp(hot, th, temperature_after(hot, th, q)) if not isinstance(hot, Utility) else math.inf
-    cc = _secant_cp(cold, tc, temperature_after(cold, tc, q)) if not isinstance(cold, Utility) else math.inf
+    ch = mean_cp_between(hot, th, temperature_after(hot, th, q)) if not isinstance(hot, Utility) else math.inf
+    cc = mean_cp_between(cold, tc, temperature_after(cold, tc, q)) if not isinstance(cold, Utility) else math.inf
     cmin, cmax = min(ch, cc), max(ch, cc)
     eps = q / (cmin * (th - tc))
     cr = cmin / cmax

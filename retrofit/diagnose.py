@@ -10,8 +10,10 @@ Four looks at a simulated network (:func:`heatloom.retrofit.simulate.simulate`),
   ΔTmin whose energy target equals the network's hot utility, over the installed area;
 * :func:`retrofit_curve` — energy saving against extra area over a range of ΔTmin, at constant α (and,
   for comparison, with the new area used at target efficiency, "incremental α = 1");
-* :func:`network_pinch` — the minimum approach of every exchanger, and the exchanger that stops more heat
-  recovery when load is shifted along utility paths (heater → exchangers → cooler), areas free.
+* :func:`~heatloom.retrofit.network_pinch.network_pinch` (its own module,
+  :mod:`heatloom.retrofit.network_pinch`) — the minimum approach of every exchanger, and the exchanger that
+  stops more heat recovery when load is shifted along utility paths (heater → exchangers → cooler), areas
+  free; :func:`diagnose` runs all four.
 
 References
 ----------
@@ -38,13 +40,15 @@ from collections.abc import Sequence
 from dataclasses import asdict, dataclass
 
 import numpy as np
-from scipy.optimize import brentq
 
 from ..errors import InfeasibleError, InputError
 from ..model import Stream, StreamTable
 from ..model.existing import UnitRole
 from ..pinch import Pinch, problem_table, target, zero_tolerance
-from .existing import ExistingNetwork, _min_approach, heat_between, temperature_after
+from .checks import non_negative
+from .existing import ExistingNetwork
+from .network_pinch import NetworkPinch, network_pinch
+from .profiles import heat_between
 from .simulate import Simulation, simulate
 
 __all__ = [
@@ -56,22 +60,9 @@ __all__ = [
     "area_efficiency",
     "RetrofitCurve",
     "retrofit_curve",
-    "PathShift",
-    "NetworkPinch",
-    "network_pinch",
     "Diagnosis",
     "diagnose",
 ]
-
-
-def _dt(dt_min, what: str = "ΔTmin") -> float:
-    try:
-        x = float(dt_min)
-    except (TypeError, ValueError):
-        raise InputError(f"{what} must be a number of kelvin, got {dt_min!r}") from None
-    if not (x >= 0) or not np.isfinite(x):
-        raise InputError(f"{what} must be a finite number >= 0 K, got {dt_min!r}")
-    return x
 
 
 # --------------------------------------------------------------------------------------------------
@@ -227,7 +218,7 @@ def cross_pinch(simulation: Simulation, dt_min: float | None = None) -> CrossPin
     >>> [(c.unit, c.kind, round(c.net, 6)) for c in x.units], round(x.total(), 6), round(x.excess, 6)
     ([('C1', 'cooler above the pinch', 60.0)], 60.0, 60.0)
     """
-    dt = simulation.dt_min if dt_min is None else _dt(dt_min)
+    dt = simulation.dt_min if dt_min is None else non_negative(dt_min, "ΔTmin", "K")
     if dt is None:
         raise InputError("cross-pinch analysis needs a ΔTmin (give dt_min here or to simulate)")
     net = simulation.network
@@ -551,7 +542,7 @@ def retrofit_curve(simulation: Simulation, dt_mins: Sequence[float] | None = Non
             raise InputError(f"points must be a whole number >= 2, got {points!r}")
         dts = np.linspace(dt_e, 0.1 * dt_e, points)
     else:
-        dts = np.array([_dt(x) for x in dt_mins], dtype=float)
+        dts = np.array([non_negative(x, "ΔTmin", "K") for x in dt_mins], dtype=float)
         if dts.size == 0 or not np.all(dts > 0):
             raise InputError("dt_mins must hold ΔTmin values > 0 K (the area target is infinite at 0 K)")
     notes: list[str] = [] if eff.utilities else ["ideal utilities in the area targets, as for α"]
@@ -563,273 +554,6 @@ def retrofit_curve(simulation: Simulation, dt_mins: Sequence[float] | None = Non
                  f"efficiently as the existing one (α = {eff.alpha:.4g})")
     return RetrofitCurve(dts, qh, qc, eff.hot_utility - qh, area, with_alpha, with_alpha - eff.area_existing,
                          area - area_e, eff, tuple(dict.fromkeys(notes)))
-
-
-# --------------------------------------------------------------------------------------------------
-# network pinch
-
-
-@dataclass(frozen=True)
-class PathShift:
-    """Load shifted along one utility path until something stops it (see :func:`network_pinch`).
-
-    Attributes
-    ----------
-    heater, cooler : str
-        The path's ends.
-    exchangers : tuple of str
-        Exchangers along the path from the heater's stream to the cooler's.
-    signs : tuple of int
-        +1 where the exchanger's duty grows, −1 where it falls.
-    shift : float
-        Heat that can be shifted (hot and cold utility both fall by as much) [kW].
-    limit : str
-        The unit that stops the shift.
-    reason : str
-        ``"approach"`` (its minimum approach reaches the allowed one) or ``"duty"`` (its duty reaches 0:
-        it could be removed).
-    """
-
-    heater: str
-    cooler: str
-    exchangers: tuple[str, ...]
-    signs: tuple[int, ...]
-    shift: float
-    limit: str
-    reason: str
-
-    def to_dict(self) -> dict:
-        return asdict(self)
-
-
-@dataclass(frozen=True, eq=False)
-class NetworkPinch:
-    """Approaches of the exchangers and what limits more recovery (see :func:`network_pinch`).
-
-    Attributes
-    ----------
-    min_approach : float
-        Smallest approach allowed [K] (exchanger minimum approach temperature).
-    approaches : dict
-        Exchanger name → its smallest approach in the simulated network [K].
-    paths : tuple of PathShift
-        Every utility path of the simulated network, each shifted on its own, largest shift first.
-    moves : tuple of PathShift
-        The shifts made one after the other, each time along the path that allowed the most.
-    recovery : float
-        Extra heat recovery of those moves [kW] (hot and cold utility both fall by as much).
-    pinching : tuple of str
-        Exchangers whose approach blocks a utility path after the moves.
-    network_pinch : str or None
-        The exchanger that blocks the most utility paths after the moves; None when no path is left
-        blocked by an approach (every path ended because a heater, cooler or exchanger duty reached zero:
-        more recovery needs a new match, not a bigger exchanger).
-    notes : tuple of str
-    """
-
-    min_approach: float
-    approaches: dict[str, float]
-    paths: tuple[PathShift, ...]
-    moves: tuple[PathShift, ...]
-    recovery: float
-    pinching: tuple[str, ...]
-    network_pinch: str | None
-    notes: tuple[str, ...] = ()
-
-    def to_dict(self) -> dict:
-        return {"min_approach": self.min_approach, "approaches": dict(self.approaches),
-                "paths": [p.to_dict() for p in self.paths], "moves": [p.to_dict() for p in self.moves],
-                "recovery": self.recovery, "pinching": list(self.pinching), "network_pinch": self.network_pinch,
-                "notes": list(self.notes)}
-
-
-def _walk(net: ExistingNetwork, duties: dict[str, float]) -> dict[str, tuple[float, float, float, float]]:
-    """Terminal temperatures of every unit for given duties, areas free (energy balances only)."""
-    ends: dict[tuple[str, str], tuple[float, float]] = {}
-    for s in net.streams:
-        t = s.supply_temperature
-        for u in net.on_stream(s.name):
-            t2 = temperature_after(s, t, duties[u.name])
-            ends[(u.name, "hot" if u.hot == s.name else "cold")] = (t, t2)
-            t = t2
-    out = {}
-    for u in net.units:
-        h = ends.get((u.name, "hot"))
-        c = ends.get((u.name, "cold"))
-        if h is None:
-            util = net.utility(u.hot)
-            h = (util.supply_temperature, util.target_temperature)
-        if c is None:
-            util = net.utility(u.cold)
-            c = (util.supply_temperature, util.target_temperature)
-        out[u.name] = (h[0], h[1], c[0], c[1])
-    return out
-
-
-def _approaches(net: ExistingNetwork, duties: dict[str, float], names: Sequence[str]) -> dict[str, float]:
-    temps = _walk(net, duties)
-    return {n: _min_approach(net._side(net.unit(n).hot), net._side(net.unit(n).cold), *temps[n]) for n in names}
-
-
-def _paths(net: ExistingNetwork, duties: dict[str, float], tol: float, max_paths: int):
-    """Utility paths (heater, cooler, exchangers) through the stream graph; and whether any were cut off."""
-    import networkx as nx
-
-    g = nx.MultiGraph()
-    g.add_nodes_from(s.name for s in net.streams)
-    for u in net.exchangers:
-        g.add_edge(u.hot, u.cold, key=u.name)
-    out = []
-    for heater in net.heaters:
-        for cooler in net.coolers:
-            if duties[heater.name] <= tol or duties[cooler.name] <= tol:
-                continue
-            for path in nx.all_simple_edge_paths(g, heater.cold, cooler.hot):
-                if len(out) >= max_paths:
-                    return out, True
-                out.append((heater.name, cooler.name, tuple(k for _, _, k in path)))
-    return out, False
-
-
-def network_pinch(simulation: Simulation, min_approach: float, *, max_paths: int = 200,
-                  tolerance: float = 1e-6, max_moves: int = 100) -> NetworkPinch:
-    """Exchanger approaches and the exchanger that limits further heat recovery (after Asante & Zhu 1997).
-
-    The network pinch of Asante & Zhu is the exchanger whose approach reaches the minimum allowed when the
-    existing topology is pushed to its largest heat recovery.  **Simplified here**: heat is shifted along
-    utility paths — a heater, a chain of exchangers joined by streams, a cooler, found with networkx —
-    raising and lowering the exchangers' duties in turn (+x, −x, ..., +x) so that the heater and the cooler
-    both lose x while every other duty stays; areas are free (temperatures follow from energy balances
-    alone, exact for segmented streams).  A shift stops when a unit's approach reaches ``min_approach``
-    (a unit already closer may not get closer than it is; a heater or cooler must keep a positive
-    difference) or a duty reaches zero.  Paths are taken greedily, the one allowing the largest shift
-    first, until no path can move heat; the exchanger that then blocks the most paths is the network pinch.
-    Loops (which shift heat without changing utilities) and simultaneous moves along several paths are not
-    used, so the recovery found is a lower bound of what the topology allows with unlimited area.
-
-    Parameters
-    ----------
-    simulation : Simulation
-    min_approach : float
-        Smallest approach allowed in an exchanger [K] (EMAT), > 0.
-    max_paths : int, optional
-        Paths examined at most in each round (the notes say when there were more).
-    tolerance : float, optional
-        Precision of the shifts, relative to the largest duty [-].
-    max_moves : int, optional
-        Greedy moves at most.
-
-    Returns
-    -------
-    NetworkPinch
-
-    Examples
-    --------
-    The example of :func:`cross_pinch`: shifting x kW along heater → E1 → cooler lowers the exchanger's
-    cold-end approach from 40 K by x/2 (the hot outlet falls x/2 K), so it reaches 10 K at x = 60 kW,
-    before the cooler's 120 kW or the heater's 80 kW run out.
-
-    >>> from heatloom.model import StreamTable, Utility
-    >>> from heatloom.retrofit.existing import ExistingNetwork
-    >>> from heatloom.model.existing import ExistingUnit
-    >>> from heatloom.retrofit.simulate import simulate
-    >>> s = StreamTable.from_arrays(["H1", "C1"], [150, 60], [40, 120], [2.0, 3.0])
-    >>> u = [Utility("steam", 180, 179, 100.0), Utility("water", 20, 30, 10.0)]
-    >>> net = ExistingNetwork(s, [ExistingUnit("E1", "H1", "C1", duty=100.0, u=0.5),
-    ...                           ExistingUnit("H1", "steam", "C1", duty=80.0),
-    ...                           ExistingUnit("C1", "H1", "water", duty=120.0)], u)
-    >>> p = network_pinch(simulate(net), 10)
-    >>> p.network_pinch, round(p.recovery, 3), p.paths[0].reason
-    ('E1', 60.0, 'approach')
-    """
-    emat = _dt(min_approach, "minimum approach")
-    if not emat > 0:
-        raise InputError(f"minimum approach must be > 0 K, got {min_approach!r}")
-    net = simulation.network
-    duties = {u.name: u.duty for u in simulation.units}
-    exchangers = [u.name for u in simulation.units if u.role is UnitRole.EXCHANGER]
-    current = {u.name: u.min_approach for u in simulation.units}
-    floors = {n: (min(emat, a) if n in exchangers else min(0.0, a)) for n, a in current.items()}
-    tol = tolerance * max([abs(q) for q in duties.values()] + [1.0])
-    notes: list[str] = []
-    cut = False
-
-    def round_of(state):
-        nonlocal cut
-        found, more = _paths(net, state, tol, max_paths)
-        cut = cut or more
-        return [_shift_path(net, state, h, c, names, floors, tol) for h, c, names in found]
-
-    first = sorted(round_of(duties), key=lambda p: -p.shift)
-    state, moves, last = dict(duties), [], first
-    for _ in range(max_moves):
-        best = max(last, key=lambda p: p.shift, default=None)
-        if best is None or best.shift <= tol:
-            break
-        moves.append(best)
-        state[best.heater] -= best.shift
-        state[best.cooler] -= best.shift
-        for n, sgn in zip(best.exchangers, best.signs):
-            state[n] += sgn * best.shift
-        last = round_of(state)
-    else:
-        notes.append(f"stopped after {max_moves} moves")
-    if cut:
-        notes.append(f"more than {max_paths} utility paths: only the first {max_paths} were examined")
-    if not first:
-        notes.append("no utility path (heater → exchangers → cooler): heat recovery cannot grow without a new "
-                     "match")
-    blocked = [p.limit for p in last if p.reason == "approach" and p.shift <= tol and p.limit in exchangers]
-    pinching = tuple(dict.fromkeys(blocked))
-    pinch = max(pinching, key=blocked.count) if pinching else None
-    if moves and not last:
-        notes.append("after the moves no utility path is left (a heater or cooler on every path reached zero): "
-                     "more recovery needs a new match")
-    below = [n for n in exchangers if current[n] < emat - 1e-9]
-    if below:
-        notes.append(f"exchangers already below the minimum approach {emat:g} K: {', '.join(below)} (they may "
-                     "not get closer)")
-    return NetworkPinch(emat, {n: current[n] for n in exchangers}, tuple(first), tuple(moves),
-                        float(sum(m.shift for m in moves)), pinching, pinch, tuple(notes))
-
-
-def _shift_path(net, duties, heater, cooler, names, floors, tol) -> PathShift:
-    """How far heat can be shifted along one path from the given duties."""
-    signs = tuple(1 if i % 2 == 0 else -1 for i in range(len(names)))
-    moved = {heater: -1, cooler: -1}
-    for n, sgn in zip(names, signs):
-        moved[n] = moved.get(n, 0) + sgn
-    touched = {s for n in moved for s in net.unit(n).process_streams}   # only their temperatures move
-    checked = [u.name for u in net.units if u.name in moved
-               or (u.role is UnitRole.EXCHANGER and touched & set(u.process_streams))]
-
-    def state(x):
-        d = dict(duties)
-        for n, sgn in moved.items():
-            d[n] = duties[n] + sgn * x
-        return d
-
-    def margin(x):
-        a = _approaches(net, state(x), checked)
-        return min(a[n] - floors[n] for n in checked) + 1e-9, a
-
-    falling = [n for n, sgn in moved.items() if sgn < 0]
-    x_max = max(0.0, min(duties[n] / -moved[n] for n in falling))
-    if margin(0.0)[0] < 0:   # the present state already sits on a floor that the shift tightens
-        _, a = margin(min(x_max, tol))
-        limit = min(checked, key=lambda n: a[n] - floors[n])
-        return PathShift(heater, cooler, names, signs, 0.0, limit, "approach")
-    prev = 0.0
-    for x in np.linspace(0.0, x_max, 17)[1:]:
-        m, _ = margin(x)
-        if m < 0:
-            root = brentq(lambda y: margin(y)[0], prev, x, xtol=tol)
-            _, a = margin(min(x, root + max(tol, 1e-9 * x_max)))
-            limit = min(checked, key=lambda n: a[n] - floors[n])
-            return PathShift(heater, cooler, names, signs, float(root), limit, "approach")
-        prev = x
-    limit = min(falling, key=lambda n: duties[n] / -moved[n])
-    return PathShift(heater, cooler, names, signs, float(x_max), limit, "duty")
 
 
 # --------------------------------------------------------------------------------------------------
@@ -889,7 +613,7 @@ def diagnose(network: ExistingNetwork | Simulation, dt_min: float, *, min_approa
         α and the retrofit curve are None (with a note) when unit areas or film coefficients are missing
         or the network's utility matches no ΔTmin.
     """
-    dt = _dt(dt_min)
+    dt = non_negative(dt_min, "ΔTmin", "K")
     sim = network if isinstance(network, Simulation) else simulate(network, dt)
     if sim.dt_min != dt:
         sim = simulate(sim.network, dt)

@@ -38,25 +38,20 @@ from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, replace
 
 from ..equipment.rating import max_effectiveness, ntu_from_effectiveness
-from ..equipment.segments import size_segments
 from ..equipment.sizing import overall_coefficient
 from ..errors import InputError, TemperatureCrossError
-from ..model import Segment, Stream, StreamTable, Utility
+from ..model import Stream, StreamTable, Utility
 from ..model.exchangers import FlowArrangement
 from ..model.existing import ExistingUnit, OperatingMode, UnitRole, UnitTable
-from ..network.structure import stream_enthalpy, stream_temperature
+from .profiles import heat_between, smallest_approach, temperature_after, utility_match_area
 
 __all__ = [
     "ExistingNetwork",
-    "heat_between",
-    "temperature_after",
     "film_coefficient_of",
     "MAX_ISOTHERMAL_GLIDE",
+    "DUTY_CONSISTENCY",
 ]
 
-ISOTHERMAL_GLIDE = 1e-6
-"""Glide given to an isothermal utility when it is sized as a segment [K] (changes an LMTD by less than
-one part in a million)."""
 MAX_ISOTHERMAL_GLIDE = 1.0
 """A utility whose temperature changes by at most this much [K] (condensing steam written 250 → 249 °C) can
 rate a heater or cooler inside a stream by its area, as a constant-temperature side at its mean
@@ -67,45 +62,7 @@ a stream, relative to the stream's duty [-] (rounded plant data)."""
 
 
 # --------------------------------------------------------------------------------------------------
-# stream profiles, extrapolated beyond the supply and target with the end segments' CP
-
-
-def heat_between(stream: Stream, t_from: float, t_to: float) -> float:
-    """Heat a stream exchanges going from ``t_from`` to ``t_to`` [kW], positive in its own direction.
-
-    Positive when a hot stream cools or a cold stream warms.  Piecewise linear over the segments and
-    extrapolated beyond the supply and target temperatures with the end segments' heat capacity flow.
-
-    Examples
-    --------
-    >>> s = Stream("vapour", (Segment(120, 110, 2.0), Segment(110, 109, 100.0)))
-    >>> heat_between(s, 120, 109.5), heat_between(s, 109, 108)
-    (70.0, 100.0)
-    """
-    return stream_enthalpy(stream, t_to, extrapolate=True) - stream_enthalpy(stream, t_from, extrapolate=True)
-
-
-def temperature_after(stream: Stream, t_in: float, heat: float) -> float:
-    """Temperature of a stream after exchanging ``heat`` [kW] in its own direction from ``t_in`` [°C].
-
-    The inverse of :func:`heat_between`: ``heat_between(s, t, temperature_after(s, t, q)) == q``.
-
-    Examples
-    --------
-    >>> s = Stream("vapour", (Segment(120, 110, 2.0), Segment(110, 109, 100.0)))
-    >>> temperature_after(s, 120, 70.0)
-    109.5
-    """
-    return stream_temperature(stream, stream_enthalpy(stream, t_in, extrapolate=True) + heat, extrapolate=True)
-
-
-def _secant_cp(stream: Stream, t_a: float, t_b: float) -> float:
-    """Mean heat capacity flow of a stream between two temperatures [kW/K] (local CP if they meet)."""
-    dt = abs(t_b - t_a)
-    if dt > 1e-9 * max(1.0, abs(t_a)):
-        return abs(heat_between(stream, t_a, t_b)) / dt
-    eps = 1e-6 * max(1.0, abs(t_a))
-    return abs(heat_between(stream, t_a - eps, t_a + eps)) / (2 * eps)
+# film coefficients
 
 
 def film_coefficient_of(side: Stream | Utility) -> float | None:
@@ -116,6 +73,7 @@ def film_coefficient_of(side: Stream | Utility) -> float | None:
 
     Examples
     --------
+    >>> from heatloom.model import Segment
     >>> film_coefficient_of(Stream("S", (Segment(100, 90, 1.0, 1.0), Segment(90, 80, 1.0, 0.5))))
     0.6666666666666666
     """
@@ -124,44 +82,6 @@ def film_coefficient_of(side: Stream | Utility) -> float | None:
     if any(g.film_coefficient is None for g in side.segments):
         return None
     return side.duty / sum(g.duty / g.film_coefficient for g in side.segments)
-
-
-def _min_approach(hot: Stream | Utility, cold: Stream | Utility, hot_in: float, hot_out: float,
-                  cold_in: float, cold_out: float) -> float:
-    """Smallest hot − cold difference along a counter-current unit [K], ends and inner breakpoints."""
-    ends = [hot_in - cold_out, hot_out - cold_in]
-    q_h = heat_between(hot, hot_in, hot_out) if isinstance(hot, Stream) else None
-    q_c = heat_between(cold, cold_in, cold_out) if isinstance(cold, Stream) else None
-    q = q_h if q_h is not None else q_c
-    if q is None or not q > 0:
-        return min(ends)
-    xs = []  # heat from the hot end (hot inlet, cold outlet)
-    if isinstance(hot, Stream):
-        for g in hot.segments:
-            x = heat_between(hot, hot_in, g.target_temperature) * q / q_h
-            if 0 < x < q:
-                xs.append(x)
-    if isinstance(cold, Stream):
-        for g in cold.segments:
-            x = heat_between(cold, g.target_temperature, cold_out) * q / q_c
-            if 0 < x < q:
-                xs.append(x)
-
-    def t_hot(x):
-        if isinstance(hot, Stream):
-            return temperature_after(hot, hot_in, x * q_h / q)
-        return hot_in + (hot_out - hot_in) * x / q
-
-    def t_cold(x):
-        if isinstance(cold, Stream):
-            return temperature_after(cold, cold_out, -x * q_c / q)
-        return cold_out + (cold_in - cold_out) * x / q
-
-    return min(ends + [t_hot(x) - t_cold(x) for x in xs])
-
-
-# --------------------------------------------------------------------------------------------------
-# units
 
 
 # --------------------------------------------------------------------------------------------------
@@ -358,7 +278,7 @@ class ExistingNetwork:
         if unit.u is not None:
             return unit.u
         missing = [f"{'stream' if n in self._stream_names else 'utility'} '{n}'" for n in (unit.hot, unit.cold)
-                   if film_coefficient_of(self._side(n)) is None]
+                   if film_coefficient_of(self.side(n)) is None]
         raise InputError(f"unit '{unit.name}' {why} but has no U and no film coefficient h for "
                          f"{' and '.join(missing)}: give U [kW/(m²·K)] in the network table or h in the "
                          "stream/utility table", row=unit.row, column="U")
@@ -366,15 +286,6 @@ class ExistingNetwork:
     @functools.cached_property
     def _stream_names(self) -> set[str]:
         return {s.name for s in self.streams}
-
-    def _side(self, name: str) -> Stream | Utility:
-        for s in self.streams:
-            if s.name == name:
-                return s
-        for u in self.utilities:
-            if u.name == name:
-                return u
-        raise KeyError(name)
 
     def _duties(self, units: list[ExistingUnit], streams: dict, utilities: dict,
                 notes: list[str]) -> list[ExistingUnit]:
@@ -497,7 +408,7 @@ class ExistingNetwork:
     def _check_duty(self, u: ExistingUnit, temps, streams: dict, utilities: dict, notes: list[str]) -> ExistingUnit:
         """Check a stated duty against the driving force; compute the area from it when needed."""
         hot_in, hot_out, cold_in, cold_out = temps
-        hot, cold = self._side(u.hot), self._side(u.cold)
+        hot, cold = self.side(u.hot), self.side(u.cold)
         where = {"row": u.row, "column": "duty"}
         sides = f"hot {hot_in:.4g} → {hot_out:.4g} °C, cold {cold_in:.4g} → {cold_out:.4g} °C"
         if u.role is UnitRole.EXCHANGER:
@@ -508,7 +419,7 @@ class ExistingNetwork:
                                  f"({hot_in:.4g} °C) is not above its cold inlet ({cold_in:.4g} °C)", **where)
             eps = u.duty / (cmin * (hot_in - cold_in))
             top = float(max_effectiveness(cmin / cmax, u.arrangement, shells=u.shells))
-            approach = _min_approach(hot, cold, hot_in, hot_out, cold_in, cold_out)
+            approach = smallest_approach(hot, cold, hot_in, hot_out, cold_in, cold_out)
             if not eps < top or (u.arrangement is not FlowArrangement.SHELL_AND_TUBE_1_2 and not approach > 0):
                 raise InputError(f"unit '{u.name}' cannot do its stated duty {u.duty:.6g} kW: the driving force "
                                  f"allows less ({sides}; effectiveness {eps:.4g}, the {u.arrangement.value} "
@@ -525,24 +436,16 @@ class ExistingNetwork:
         util = hot if u.role is UnitRole.HEATER else cold
         stream = cold if u.role is UnitRole.HEATER else hot
         t_in, t_out = (cold_in, cold_out) if u.role is UnitRole.HEATER else (hot_in, hot_out)
-        u_side = [util.supply_temperature, util.target_temperature]
-        if u_side[0] == u_side[1]:
-            u_side[1] += -ISOTHERMAL_GLIDE if util.is_hot else ISOTHERMAL_GLIDE
-        u_seg = [Segment(u_side[0], u_side[1], u.duty / abs(u_side[0] - u_side[1]))]
-        lo, hi = sorted((stream.supply_temperature, stream.target_temperature))
-        inside = lo - 1e-9 <= min(t_in, t_out) and max(t_in, t_out) <= hi + 1e-9
-        s_seg = _cut(stream, t_in, t_out) if inside else [Segment(t_in, t_out, u.duty / abs(t_out - t_in))]
-        hot_segs, cold_segs = (u_seg, s_seg) if u.role is UnitRole.HEATER else (s_seg, u_seg)
         uu = u.u if u.u is not None else 1.0
         try:
-            sized = size_segments(hot_segs, cold_segs, u=uu, rel_tol=1e-6)
+            area = utility_match_area(util, stream, t_in, t_out, u.duty, uu)
         except TemperatureCrossError:
             raise InputError(f"{u.role.value} '{u.name}' cannot do its stated duty {u.duty:.6g} kW: utility "
                              f"'{util.name}' ({util.supply_temperature:g} → {util.target_temperature:g} °C) has no "
                              f"driving force against stream '{stream.name}' at {t_in:.4g} → {t_out:.4g} °C",
                              **where) from None
         if u.area is None and u.u is not None:
-            u = replace(u, area=sized.area, area_from_duty=True)
+            u = replace(u, area=area, area_from_duty=True)
         return u
 
     # -- queries --------------------------------------------------------------------------------
@@ -560,6 +463,17 @@ class ExistingNetwork:
 
     def utility(self, name: str) -> Utility:
         """The utility of that name (KeyError if none)."""
+        for u in self.utilities:
+            if u.name == name:
+                return u
+        raise KeyError(name)
+
+    def side(self, name: str) -> Stream | Utility:
+        """The process stream or utility of that name, as a unit's hot or cold side names it (KeyError if
+        none)."""
+        for s in self.streams:
+            if s.name == name:
+                return s
         for u in self.utilities:
             if u.name == name:
                 return u
@@ -760,9 +674,3 @@ def _pair(x) -> str:
     cold = getattr(x, "cold", None) or getattr(x, "utility", "?")
     return f"{hot} → {cold}"
 
-
-def _cut(stream: Stream, t_in: float, t_out: float) -> list[Segment]:
-    """The part of a stream between two temperatures inside its range, as segments."""
-    from ..equipment.segments import cut_profile
-
-    return list(cut_profile(stream.segments, t_in, t_out))

@@ -81,6 +81,7 @@ from .changes import (
     new_exchanger_candidates,
     touched_streams,
 )
+from .checks import non_negative
 from .diagnose import area_efficiency, cross_pinch
 from .existing import ExistingNetwork
 from .selection import (
@@ -90,7 +91,6 @@ from .selection import (
     Item,
     SelectionObjective,
     SetValue,
-    _check_limit,
     agree,
     select,
 )
@@ -419,16 +419,16 @@ def retrofit_options(network: ExistingNetwork, dt_min: float, *, costs: CostSett
     >>> round(best.saving, 1), best.steps[0].startswith("add"), round(best.milp_saving, 1)
     (60.0, True, 60.0)
     """
-    dt = _check_limit(dt_min, "ΔTmin", "K")
+    dt = non_negative(dt_min, "ΔTmin", "K", optional=True)
     if dt is None:
         raise InputError("ΔTmin is required [K]")
-    emat = _check_limit(min_approach, "minimum approach", "K")
+    emat = non_negative(min_approach, "minimum approach", "K", optional=True)
     emat = (dt if dt > 0 else 1.0) if emat is None else emat
     if not emat > 0:
         raise InputError(f"minimum approach must be > 0 K, got {min_approach!r}")
-    budget = _check_limit(budget, "budget", "money")
-    max_payback = _check_limit(max_payback, "largest payback", "years")
-    required_saving = _check_limit(required_saving, "required saving", "kW")
+    budget = non_negative(budget, "budget", "money", optional=True)
+    max_payback = non_negative(max_payback, "largest payback", "years", optional=True)
+    required_saving = non_negative(required_saving, "required saving", "kW", optional=True)
     sizes = tuple(float(f) for f in sizes)
     if not sizes or not all(0 < f <= 1 for f in sizes):
         raise InputError(f"sizes must be fractions in (0, 1], got {sizes!r}")

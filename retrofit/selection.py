@@ -42,14 +42,14 @@ Balas, E., Jeroslow, R. (1972) Canonical cuts on the unit hypercube. SIAM Journa
 from __future__ import annotations
 
 import enum
-import math
 from collections.abc import Callable, Mapping, MutableMapping, MutableSet, Sequence
 from dataclasses import dataclass, field
 
 import pulp
 
-from ..errors import InputError, SolverError
+from ..errors import SolverError
 from ..network.solvers import SolveReport, SolverName, SolveStatus, new_variable, solve
+from .checks import non_negative
 
 __all__ = [
     "SelectionObjective",
@@ -199,18 +199,6 @@ def _pairs(subset):
     return [(a, b) for i, a in enumerate(items) for b in items[i + 1:]]
 
 
-def _check_limit(value, what: str, unit: str) -> float | None:
-    if value is None:
-        return None
-    try:
-        x = float(value)
-    except (TypeError, ValueError):
-        raise InputError(f"{what} must be a number [{unit}], got {value!r}") from None
-    if not (x >= 0) or not math.isfinite(x):
-        raise InputError(f"{what} must be a finite number >= 0 {unit}, got {value!r}")
-    return x
-
-
 def selection_model(items: Sequence[Item], known: Mapping[frozenset, SetValue] | None = None, forbidden=(), *,
                     objective: SelectionObjective = SelectionObjective.MAX_NPV, annuity: float = 1.0,
                     capacities: Mapping[str, float] | None = None, budget: float | None = None,
@@ -259,9 +247,9 @@ def selection_model(items: Sequence[Item], known: Mapping[frozenset, SetValue] |
     ([0, 1], 150.0)
     """
     known = {} if known is None else known
-    budget = _check_limit(budget, "budget", "money")
-    max_payback = _check_limit(max_payback, "largest payback", "years")
-    required_saving = _check_limit(required_saving, "required saving", "kW")
+    budget = non_negative(budget, "budget", "money", optional=True)
+    max_payback = non_negative(max_payback, "largest payback", "years", optional=True)
+    required_saving = non_negative(required_saving, "required saving", "kW", optional=True)
     sense = pulp.LpMinimize if objective is SelectionObjective.MIN_INVESTMENT else pulp.LpMaximize
     problem = pulp.LpProblem("retrofit_selection", sense)
     keys = [it.key for it in items]

@@ -39,11 +39,13 @@ import numpy as np
 from scipy.optimize import brentq
 
 from ..equipment.rating import effectiveness_from_ntu
-from ..errors import InputError, SolverError
+from ..errors import SolverError
 from ..model.exchangers import FlowArrangement
 from ..model.existing import ExistingUnit, OperatingMode, UnitRole
 from ..pinch import target
-from .existing import ExistingNetwork, _min_approach, _secant_cp, heat_between, temperature_after
+from .checks import non_negative
+from .existing import ExistingNetwork
+from .profiles import heat_between, mean_cp_between, smallest_approach, temperature_after
 
 __all__ = ["UnitState", "Simulation", "simulate"]
 
@@ -271,8 +273,8 @@ def _unit_cps(network: ExistingNetwork, u: ExistingUnit, streams: dict, inlets: 
         dt = th - tc
 
         def cps(q):
-            return (_secant_cp(hot, th, temperature_after(hot, th, q)),
-                    _secant_cp(cold, tc, temperature_after(cold, tc, q)))
+            return (mean_cp_between(hot, th, temperature_after(hot, th, q)),
+                    mean_cp_between(cold, tc, temperature_after(cold, tc, q)))
 
         def residual(q):
             ch, cc = cps(q)
@@ -293,18 +295,18 @@ def _unit_cps(network: ExistingNetwork, u: ExistingUnit, streams: dict, inlets: 
         return {}
     t_in = inlets[side]
     if u.mode is OperatingMode.FIXED_DUTY:
-        return {side: _secant_cp(stream, t_in, temperature_after(stream, t_in, u.duty))}
+        return {side: mean_cp_between(stream, t_in, temperature_after(stream, t_in, u.duty))}
     t_u = _utility_temperature(u, network)
     drive = (t_u - t_in) if side == "cold" else (t_in - t_u)   # heat flows into the stream's direction
 
     def residual_u(q):
-        c = _secant_cp(stream, t_in, temperature_after(stream, t_in, q))
+        c = mean_cp_between(stream, t_in, temperature_after(stream, t_in, q))
         return q - float(effectiveness_from_ntu(u.u * u.area / c, 0.0)) * c * drive
 
     if drive == 0:
-        return {side: _secant_cp(stream, t_in, t_in)}
+        return {side: mean_cp_between(stream, t_in, t_in)}
     q = _root(residual_u, heat_between(stream, t_in, t_u))
-    return {side: _secant_cp(stream, t_in, temperature_after(stream, t_in, q))}
+    return {side: mean_cp_between(stream, t_in, temperature_after(stream, t_in, q))}
 
 
 def _system(network: ExistingNetwork, streams: dict, index: dict, pos: dict, cp: dict,
@@ -420,14 +422,7 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
     >>> sim.hot_utility_target, sim.hot_utility_excess > 0
     (45.0, True)
     """
-    if dt_min is not None:
-        try:
-            dt = float(dt_min)
-        except (TypeError, ValueError):
-            raise InputError(f"ΔTmin must be a number of kelvin, got {dt_min!r}") from None
-        if not dt >= 0 or not np.isfinite(dt):
-            raise InputError(f"ΔTmin must be a finite number >= 0 K, got {dt_min!r}")
-        dt_min = dt
+    dt_min = non_negative(dt_min, "ΔTmin", "K", optional=True)
     streams = {s.name: s for s in network.streams}
     seqs = {name: network.on_stream(name) for name in streams}
     index: dict[tuple[str, int], int] = {}
@@ -518,7 +513,7 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
                                 f"{stream.target_temperature:.4g} °C")
             duties[getattr(u, "hot" if u.role is UnitRole.HEATER else "cold")] = \
                 duties.get(getattr(u, "hot" if u.role is UnitRole.HEATER else "cold"), 0.0) + q
-        approach = _min_approach(network._side(u.hot), network._side(u.cold), hi, ho, ci, co) \
+        approach = smallest_approach(network.side(u.hot), network.side(u.cold), hi, ho, ci, co) \
             if abs(q) > check else min(hi - co, ho - ci)
         if u.role is not UnitRole.EXCHANGER and abs(q) > check and not approach > 0:
             util, proc = (u.hot, u.cold) if u.role is UnitRole.HEATER else (u.cold, u.hot)

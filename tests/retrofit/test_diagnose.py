@@ -1,4 +1,5 @@
-"""Tests of heatloom.retrofit.diagnose: cross-pinch heat, area efficiency, retrofit curve, network pinch.
+"""Tests of heatloom.retrofit.diagnose and .network_pinch: cross-pinch heat, area efficiency, retrofit curve,
+network pinch.
 
 Sources: the published targeting problems of tests/data/references/ (Sinnott, Coulson & Richardson Vol. 6,
 ch. 3, Table 3.6: 50 kW hot utility at ΔTmin 10 K; Ray & Das, Process Equipment and Plant Design, ch. 5,
@@ -35,10 +36,10 @@ from heatloom.retrofit.diagnose import (
     cross_pinch,
     diagnose,
     existing_dt_min,
-    network_pinch,
     retrofit_curve,
 )
 from heatloom.retrofit.existing import ExistingNetwork
+from heatloom.retrofit.network_pinch import network_pinch
 from heatloom.retrofit.simulate import simulate
 
 CASE = Path(__file__).resolve().parents[2] / "case_studies" / "existing_network"

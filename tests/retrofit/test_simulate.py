@@ -1,4 +1,4 @@
-"""Tests of heatloom.retrofit.existing and heatloom.retrofit.simulate: rating an existing network.
+"""Tests of heatloom.retrofit.existing, .profiles and .simulate: rating an existing network.
 
 Sources: single units are checked against the reference library ``ht`` (Caleb Bell, PyPI;
 ht.effectiveness_NTU_method, which rates one exchanger by ε-NTU); networks designed by heatloom for the
@@ -25,7 +25,8 @@ from heatloom.model.exchangers import FlowArrangement
 from heatloom.model.existing import ExistingUnit, OperatingMode, UnitRole
 from heatloom.network import check_network, design_mer
 from heatloom.pinch.utilities import ideal_utilities
-from heatloom.retrofit.existing import ExistingNetwork, heat_between, temperature_after
+from heatloom.retrofit.existing import ExistingNetwork
+from heatloom.retrofit.profiles import heat_between, temperature_after
 from heatloom.retrofit.simulate import simulate
 
 CC, CO, ST = FlowArrangement.COUNTER_CURRENT, FlowArrangement.CO_CURRENT, FlowArrangement.SHELL_AND_TUBE_1_2
