@@ -19,11 +19,13 @@ from __future__ import annotations
 
 import math
 from dataclasses import asdict, dataclass
+from typing import ClassVar
 
 from .. import defaults
 from ..errors import InputError
 from ..model.exchangers import ExchangerType
-from .sizing import ShellDesign, _ceil, _finite, area_from_duty, lmtd, shell_design
+from ..validation import enum_member, positive_float, round_up_count
+from .sizing import ShellDesign, area_from_duty, lmtd, shell_design
 
 __all__ = [
     "DoublePipeSizing",
@@ -39,8 +41,18 @@ __all__ = [
 # exchanger types with geometry
 
 
+class _TypedSizing:
+    """What the sizings of every exchanger type share: their type and their dictionary form."""
+
+    exchanger_type: ClassVar[ExchangerType]
+
+    def to_dict(self) -> dict:
+        """The fields (nested results as dictionaries too), with the type's value under ``type``."""
+        return {"type": self.exchanger_type.value, **asdict(self)}
+
+
 @dataclass(frozen=True)
-class DoublePipeSizing:
+class DoublePipeSizing(_TypedSizing):
     """A counter-current double-pipe exchanger made of hairpins (see :func:`size_double_pipe`).
 
     Convention: a hairpin has two straight legs of length L; its area is π·d·2L on the diameter d that U
@@ -72,21 +84,16 @@ class DoublePipeSizing:
     area_per_hairpin: float
     installed_area: float
 
-    @property
-    def exchanger_type(self) -> ExchangerType:
-        return ExchangerType.DOUBLE_PIPE
+    exchanger_type: ClassVar[ExchangerType] = ExchangerType.DOUBLE_PIPE
 
     @property
     def shells(self) -> int:
         """Units to cost: one double-pipe unit (however many hairpins) [-]."""
         return 1
 
-    def to_dict(self) -> dict:
-        return {"type": self.exchanger_type.value, **asdict(self)}
-
 
 @dataclass(frozen=True)
-class ShellAndTubeSizing:
+class ShellAndTubeSizing(_TypedSizing):
     """1-2 shell-and-tube shells in series (see :func:`size_shell_and_tube`).
 
     Attributes: ``duty`` [kW], ``u`` [kW/(m²·K)], ``lmtd`` (counter-current) [K], ``f`` [-], ``area``
@@ -102,21 +109,7 @@ class ShellAndTubeSizing:
     area_per_shell: float
     design: ShellDesign
 
-    @property
-    def exchanger_type(self) -> ExchangerType:
-        return ExchangerType.SHELL_AND_TUBE_1_2
-
-    def to_dict(self) -> dict:
-        d = {"type": self.exchanger_type.value, **asdict(self)}
-        d["design"] = self.design.to_dict()
-        return d
-
-
-def _positive(x, what, unit) -> float:
-    v = _finite(x, what, unit)
-    if not v > 0:
-        raise InputError(f"{what} must be > 0 {unit}, got {v:g}")
-    return v
+    exchanger_type: ClassVar[ExchangerType] = ExchangerType.SHELL_AND_TUBE_1_2
 
 
 def size_double_pipe(duty, u, hot_in, hot_out, cold_in, cold_out, *, tube_diameter,
@@ -146,10 +139,10 @@ def size_double_pipe(duty, u, hot_in, hot_out, cold_in, cold_out, *, tube_diamet
     >>> round(d.area, 3), d.hairpins, round(d.installed_area, 3)
     (2.857, 3, 3.77)
     """
-    q = _positive(duty, "duty", "kW")
-    uu = _positive(u, "overall coefficient U", "kW/(m²·K)")
-    d = _positive(tube_diameter, "tube diameter", "m")
-    length = _positive(hairpin_length, "hairpin length", "m")
+    q = positive_float(duty, "duty", "kW")
+    uu = positive_float(u, "overall coefficient U", "kW/(m²·K)")
+    d = positive_float(tube_diameter, "tube diameter", "m")
+    length = positive_float(hairpin_length, "hairpin length", "m")
     dt = float(lmtd(hot_in, hot_out, cold_in, cold_out))
     a = q / (uu * dt)
     tube_length, n, per = hairpins_for_area(a, d, length)
@@ -167,13 +160,11 @@ def hairpins_for_area(area, tube_diameter, hairpin_length) -> tuple[float, int, 
     >>> round(length, 2), n, round(per, 4)
     (18.19, 3, 1.2566)
     """
-    a = _finite(area, "area", "m²")
-    if not a > 0:
-        raise InputError(f"area must be > 0 m², got {a:g}")
-    d = _positive(tube_diameter, "tube diameter", "m")
-    length = _positive(hairpin_length, "hairpin length", "m")
+    a = positive_float(area, "area", "m²")
+    d = positive_float(tube_diameter, "tube diameter", "m")
+    length = positive_float(hairpin_length, "hairpin length", "m")
     per = math.pi * d * 2 * length
-    return a / (math.pi * d), max(1, _ceil(a / per)), per
+    return a / (math.pi * d), max(1, round_up_count(a / per)), per
 
 
 def size_shell_and_tube(duty, u, hot_in, hot_out, cold_in, cold_out, *, x_p=defaults.X_P,
@@ -201,8 +192,8 @@ def size_shell_and_tube(duty, u, hot_in, hot_out, cold_in, cold_out, *, x_p=defa
     >>> s.shells, round(s.f, 3), round(s.area, 2), round(s.area_per_shell, 2)
     (2, 0.871, 76.54, 38.27)
     """
-    q = _positive(duty, "duty", "kW")
-    uu = _positive(u, "overall coefficient U", "kW/(m²·K)")
+    q = positive_float(duty, "duty", "kW")
+    uu = positive_float(u, "overall coefficient U", "kW/(m²·K)")
     design = shell_design(hot_in, hot_out, cold_in, cold_out, x_p=x_p, min_f=min_f)
     dt = float(lmtd(hot_in, hot_out, cold_in, cold_out))
     a = float(area_from_duty(q, uu, dt, design.f))
@@ -217,11 +208,7 @@ def size_exchanger(exchanger_type, duty, u, hot_in, hot_out, cold_in, cold_out, 
     >>> size_exchanger(ExchangerType.SHELL_AND_TUBE_1_2, 1000.0, 0.5, 100, 50, 20, 70).shells
     2
     """
-    try:
-        kind = ExchangerType(exchanger_type)
-    except ValueError:
-        allowed = ", ".join(t.value for t in ExchangerType)
-        raise InputError(f"unknown exchanger type {exchanger_type!r}; allowed: {allowed}") from None
+    kind = enum_member(ExchangerType, exchanger_type, "exchanger type")
     fn, allowed = ((size_double_pipe, ("tube_diameter", "hairpin_length")) if kind is ExchangerType.DOUBLE_PIPE
                    else (size_shell_and_tube, ("x_p", "min_f")))
     unknown = sorted(set(options) - set(allowed))

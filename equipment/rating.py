@@ -3,16 +3,15 @@
 Pure functions on floats (and numpy arrays where natural) in canonical units: °C, K for differences,
 kW, kW/K, kW/(m²·K), m².  In ε-NTU, NTU = UA/C_min and C_r = C_min/C_max ∈ [0, 1]; several 1-2 shells
 in series share the total area equally.  The arrangements are those of
-:class:`heatloom.equipment.sizing.FlowArrangement`; the counter-current relations and the 1-2 shell
-series use the private helpers of :mod:`heatloom.equipment.sizing`, written with ``log1p``/``expm1``
-ratios that stay exact at C_r = 1.
+:class:`heatloom.model.exchangers.FlowArrangement`; the counter-current relations, the 1-2 shell and
+the series of shells are the kernels of :mod:`heatloom.equipment.kernels`, exact at C_r = 1.
 
 References
 ----------
 Incropera, F.P., DeWitt, D.P., Bergman, T.L., Lavine, A.S. (2007) Fundamentals of Heat and Mass
 Transfer, 6th ed., Wiley, Table 11.3 (the ε-NTU closed forms).
 Underwood, A.J.V. (1934); Bowman, R.A., Mueller, A.C., Nagle, W.M. (1940): the 1-2 shell relation, as
-cited in :mod:`heatloom.equipment.sizing`.
+cited in :mod:`heatloom.equipment.kernels`.
 
 Sizing results are screening estimates: fouling, design margins, pressure and temperature limits
 and any temperature cross must be checked, and designs checked against local codes and standards by
@@ -27,19 +26,23 @@ import numpy as np
 
 from ..errors import InputError, TemperatureCrossError
 from ..model.exchangers import FlowArrangement
-from .sizing import (
-    _arrangement,
-    _array,
-    _cc_effectiveness,
-    _cc_ntu,
-    _check_shells,
-    _finite,
-    _ntu_1_2,
-    _out,
-    _p_max_1_2,
-    _require,
-    _series_total,
-    _series_unit,
+from ..validation import (
+    as_float_array,
+    enum_member,
+    finite_float,
+    positive_float,
+    require,
+    scalar_or_array,
+    whole_number,
+)
+from .kernels import (
+    counter_current_effectiveness,
+    counter_current_ntu,
+    effectiveness_1_2_shell,
+    ntu_1_2_shell,
+    p_max_1_2_shell,
+    series_effectiveness,
+    unit_effectiveness_in_series,
 )
 
 __all__ = [
@@ -56,8 +59,8 @@ __all__ = [
 
 
 def _check_cr(cr):
-    cr = _array(cr, "capacity ratio C_r")
-    _require((cr >= 0) & (cr <= 1), cr, "capacity ratio C_r = C_min/C_max must be in [0, 1], got {}")
+    cr = as_float_array(cr, "capacity ratio C_r")
+    require((cr >= 0) & (cr <= 1), cr, "capacity ratio C_r = C_min/C_max must be in [0, 1], got {}")
     return cr
 
 
@@ -93,19 +96,17 @@ def effectiveness_from_ntu(ntu, capacity_ratio, arrangement=FlowArrangement.COUN
     >>> round(effectiveness_from_ntu(1.0, 0.5, FlowArrangement.CO_CURRENT), 4)
     0.5179
     """
-    arrangement = _arrangement(arrangement)
-    n = _check_shells(shells)
-    ntu = _array(ntu, "NTU")
-    _require((ntu >= 0) & np.isfinite(ntu), ntu, "NTU must be >= 0 and finite, got {}")
+    arrangement = enum_member(FlowArrangement, arrangement, "flow arrangement")
+    n = whole_number(shells, "number of shells")
+    ntu = as_float_array(ntu, "NTU")
+    require((ntu >= 0) & np.isfinite(ntu), ntu, "NTU must be >= 0 and finite, got {}")
     cr = _check_cr(capacity_ratio)
     if arrangement is FlowArrangement.COUNTER_CURRENT:
-        return _out(_cc_effectiveness(ntu, cr))
+        return scalar_or_array(counter_current_effectiveness(ntu, cr))
     if arrangement is FlowArrangement.CO_CURRENT:
-        return _out(-np.expm1(-ntu * (1.0 + cr)) / (1.0 + cr))
-    s = np.sqrt(1.0 + cr * cr)
-    t = np.tanh(ntu / n * s / 2)
-    e1 = 2.0 * t / ((1.0 + cr) * t + s)
-    return _out(e1 if n == 1 else _series_total(e1, cr, n))
+        return scalar_or_array(-np.expm1(-ntu * (1.0 + cr)) / (1.0 + cr))
+    e1 = effectiveness_1_2_shell(ntu / n, cr)
+    return scalar_or_array(e1 if n == 1 else series_effectiveness(e1, cr, n))
 
 
 def max_effectiveness(capacity_ratio, arrangement=FlowArrangement.COUNTER_CURRENT, *, shells=1):
@@ -118,14 +119,14 @@ def max_effectiveness(capacity_ratio, arrangement=FlowArrangement.COUNTER_CURREN
     >>> max_effectiveness(1.0, FlowArrangement.CO_CURRENT)
     0.5
     """
-    arrangement = _arrangement(arrangement)
-    n = _check_shells(shells)
+    arrangement = enum_member(FlowArrangement, arrangement, "flow arrangement")
+    n = whole_number(shells, "number of shells")
     cr = _check_cr(capacity_ratio)
     if arrangement is FlowArrangement.COUNTER_CURRENT:
-        return _out(np.ones_like(cr))
+        return scalar_or_array(np.ones_like(cr))
     if arrangement is FlowArrangement.CO_CURRENT:
-        return _out(1.0 / (1.0 + cr))
-    return _out(_series_total(_p_max_1_2(cr), cr, n))
+        return scalar_or_array(1.0 / (1.0 + cr))
+    return scalar_or_array(series_effectiveness(p_max_1_2_shell(cr), cr, n))
 
 
 def ntu_from_effectiveness(effectiveness, capacity_ratio, arrangement=FlowArrangement.COUNTER_CURRENT, *,
@@ -160,12 +161,12 @@ def ntu_from_effectiveness(effectiveness, capacity_ratio, arrangement=FlowArrang
     >>> round(ntu_from_effectiveness(0.5, 1.0), 6)
     1.0
     """
-    arrangement = _arrangement(arrangement)
-    n = _check_shells(shells)
-    eps = _array(effectiveness, "effectiveness")
+    arrangement = enum_member(FlowArrangement, arrangement, "flow arrangement")
+    n = whole_number(shells, "number of shells")
+    eps = as_float_array(effectiveness, "effectiveness")
     cr = _check_cr(capacity_ratio)
-    _require(eps >= 0, eps, "effectiveness must be >= 0, got {}")
-    top = _array(max_effectiveness(cr, arrangement, shells=n), "maximum effectiveness")
+    require(eps >= 0, eps, "effectiveness must be >= 0, got {}")
+    top = as_float_array(max_effectiveness(cr, arrangement, shells=n), "maximum effectiveness")
     ok = eps < top
     if not np.all(ok):
         e, c, m = (np.broadcast_to(x, ok.shape)[~ok].flat[0] for x in np.broadcast_arrays(eps, cr, top))
@@ -173,11 +174,11 @@ def ntu_from_effectiveness(effectiveness, capacity_ratio, arrangement=FlowArrang
         raise InputError(f"effectiveness {e:g} is not reachable by a {arrangement.value.replace('_', '-')} "
                          f"exchanger{extra} at C_r = {c:g}: it must be below {m:.6g}")
     if arrangement is FlowArrangement.COUNTER_CURRENT:
-        return _out(_cc_ntu(eps, cr))
+        return scalar_or_array(counter_current_ntu(eps, cr))
     if arrangement is FlowArrangement.CO_CURRENT:
-        return _out(-np.log1p(-eps * (1.0 + cr)) / (1.0 + cr))
-    e1 = eps if n == 1 else _series_unit(eps, cr, n)
-    return _out(n * _ntu_1_2(e1, cr))
+        return scalar_or_array(-np.log1p(-eps * (1.0 + cr)) / (1.0 + cr))
+    e1 = eps if n == 1 else unit_effectiveness_in_series(eps, cr, n)
+    return scalar_or_array(n * ntu_1_2_shell(e1, cr))
 
 
 @dataclass(frozen=True)
@@ -238,16 +239,14 @@ def rate_exchanger(hot_in, cold_in, hot_heat_capacity_flow, cold_heat_capacity_f
     >>> round(r.duty, 3), round(r.hot_out, 3), round(r.cold_out, 3)
     (160.0, 70.0, 110.0)
     """
-    arrangement = _arrangement(arrangement)
-    n = _check_shells(shells)
-    th, tc = _finite(hot_in, "hot inlet temperature", "°C"), _finite(cold_in, "cold inlet temperature", "°C")
-    ch = _finite(hot_heat_capacity_flow, "hot heat capacity flow rate", "kW/K")
-    cc = _finite(cold_heat_capacity_flow, "cold heat capacity flow rate", "kW/K")
-    uu, a = _finite(u, "overall coefficient U", "kW/(m²·K)"), _finite(area, "area", "m²")
-    for v, name, unit in ((ch, "hot heat capacity flow rate", "kW/K"), (cc, "cold heat capacity flow rate", "kW/K"),
-                          (uu, "overall coefficient U", "kW/(m²·K)")):
-        if not v > 0:
-            raise InputError(f"{name} must be > 0 {unit}, got {v:g}")
+    arrangement = enum_member(FlowArrangement, arrangement, "flow arrangement")
+    n = whole_number(shells, "number of shells")
+    th = finite_float(hot_in, "hot inlet temperature", "°C")
+    tc = finite_float(cold_in, "cold inlet temperature", "°C")
+    ch = positive_float(hot_heat_capacity_flow, "hot heat capacity flow rate", "kW/K")
+    cc = positive_float(cold_heat_capacity_flow, "cold heat capacity flow rate", "kW/K")
+    uu = positive_float(u, "overall coefficient U", "kW/(m²·K)")
+    a = finite_float(area, "area", "m²")
     if not a >= 0:
         raise InputError(f"area must be >= 0 m², got {a:g}")
     if th < tc:

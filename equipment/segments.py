@@ -21,7 +21,8 @@ import numpy as np
 
 from ..errors import InputError, TemperatureCrossError
 from ..model import Segment
-from .sizing import _finite, log_mean, overall_coefficient
+from ..validation import positive_float
+from .sizing import log_mean, overall_coefficient
 
 __all__ = [
     "SizingInterval",
@@ -191,9 +192,7 @@ def size_segments(hot_segments: Sequence[Segment], cold_segments: Sequence[Segme
                          f"a match needs equal duties (tolerance {rel_tol:g} relative)")
     u_fixed = None
     if u is not None:
-        u_fixed = _finite(u, "overall coefficient U", "kW/(m²·K)")
-        if not u_fixed > 0:
-            raise InputError(f"overall coefficient U must be > 0 kW/(m²·K), got {u_fixed:g}")
+        u_fixed = positive_float(u, "overall coefficient U", "kW/(m²·K)")
         # fouling adds to the given clean U exactly as to the film resistances
         u_fixed = float(overall_coefficient(2 * u_fixed, 2 * u_fixed, hot_fouling=hot_fouling,
                                             cold_fouling=cold_fouling))

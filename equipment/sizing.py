@@ -11,25 +11,14 @@ kW, kW/K, kW/(m²·K), m²·K/kW for fouling resistances, m².  Conventions used
 
 Where the two ends of a log mean are nearly equal, the log mean is written
 (ΔT₁ + ΔT₂)/2 · r/artanh(r) with r = (ΔT₁ − ΔT₂)/(ΔT₁ + ΔT₂) and a series for small r, so it is exact
-(to rounding) at and across ΔT₁ = ΔT₂; the F-factor, the shell count and the counter-current ε-NTU
-relations are likewise written with ``log1p``/``expm1`` ratios that stay exact at R = 1 and C_r = 1.
+(to rounding) at and across ΔT₁ = ΔT₂.  The F-factor and the shell count are built on the
+effectiveness–NTU kernels of :mod:`heatloom.equipment.kernels`, exact at R = 1; their sources are cited
+there and in :func:`f_factor` and :func:`shell_design`.
 
 The limits X_P and the minimum F are defined once in :mod:`heatloom.defaults`.
 
 ε-NTU rating is in :mod:`heatloom.equipment.rating`, segment-wise area in
-:mod:`heatloom.equipment.segments` and exchanger geometry in :mod:`heatloom.equipment.geometry`; they use
-the private helpers of this module.
-
-References
-----------
-Underwood, A.J.V. (1934) The calculation of the mean temperature difference in multi-pass heat
-exchangers, J. Inst. Petroleum Technologists 20, 145-158.
-Bowman, R.A., Mueller, A.C., Nagle, W.M. (1940) Mean temperature difference in design,
-Trans. ASME 62, 283-294.
-Fakheri, A. (2003) A general expression for the determination of the log mean temperature
-correction factor for shell and tube heat exchangers, J. Heat Transfer 125(3), 527-530.
-Ahmad, S., Linnhoff, B., Smith, R. (1988) Design of multipass heat exchangers: an alternative
-approach, J. Heat Transfer 110(2), 304-309.
+:mod:`heatloom.equipment.segments` and exchanger geometry in :mod:`heatloom.equipment.geometry`.
 
 Sizing results are screening estimates: fouling, design margins, pressure and temperature limits
 and any temperature cross must be checked, and designs checked against local codes and standards by
@@ -38,7 +27,6 @@ qualified, licensed engineers.
 
 from __future__ import annotations
 
-import math
 from dataclasses import asdict, dataclass
 
 import numpy as np
@@ -46,6 +34,23 @@ import numpy as np
 from .. import defaults
 from ..errors import InputError, TemperatureCrossError
 from ..model.exchangers import FlowArrangement
+from ..validation import (
+    as_float_array,
+    enum_member,
+    finite_float,
+    require,
+    round_up_count,
+    scalar_or_array,
+    whole_number,
+)
+from .kernels import (
+    counter_current_ntu,
+    ntu_1_2_shell,
+    p_max_1_2_shell,
+    real_shell_count,
+    series_effectiveness,
+    unit_effectiveness_in_series,
+)
 
 __all__ = [
     "overall_coefficient",
@@ -59,126 +64,6 @@ __all__ = [
     "ShellDesign",
     "shell_design",
 ]
-
-
-# --------------------------------------------------------------------------------------------------
-# small helpers
-
-
-def _array(x, what: str) -> np.ndarray:
-    try:
-        return np.asarray(x, dtype=float)
-    except (TypeError, ValueError):
-        raise InputError(f"{what} must be a number or an array of numbers, got {x!r}") from None
-
-
-def _out(a):
-    a = np.asarray(a, dtype=float)
-    return float(a) if a.ndim == 0 else a
-
-
-def _require(ok, values, message: str) -> None:
-    """Raise InputError(message.format(first bad value)) unless ``ok`` holds everywhere."""
-    ok = np.asarray(ok)
-    if not ok.all():
-        bad = np.broadcast_to(np.asarray(values, dtype=float), ok.shape)[~ok].flat[0]
-        raise InputError(message.format(f"{bad:g}"))
-
-
-def _log1p_ratio(u):
-    """log(1 + u)/u, equal to 1 at u = 0 (series below |u| = 1e-5)."""
-    u = np.asarray(u, dtype=float)
-    small = np.abs(u) < 1e-5
-    us = np.where(small, 1.0, u)
-    return np.where(small, 1.0 - u / 2 + u * u / 3 - u ** 3 / 4, np.log1p(us) / us)
-
-
-def _expm1_ratio(x):
-    """(exp(x) − 1)/x, equal to 1 at x = 0 (series below |x| = 1e-5)."""
-    x = np.asarray(x, dtype=float)
-    small = np.abs(x) < 1e-5
-    xs = np.where(small, 1.0, x)
-    return np.where(small, 1.0 + x / 2 + x * x / 6 + x ** 3 / 24, np.expm1(xs) / xs)
-
-
-def _cc_ntu(p, r):
-    """Counter-current NTU of the side with effectiveness p and capacity ratio r = C_this/C_other.
-
-    NTU = ln[(1 − rP)/(1 − P)]/(1 − r), written P/(1 − P)·log1p(u)/u with u = P(1 − r)/(1 − P) so that
-    r = 1 gives P/(1 − P) exactly.  Needs P < 1 and rP < 1.
-    """
-    p = np.asarray(p, dtype=float)
-    r = np.asarray(r, dtype=float)
-    q = p / (1.0 - p)
-    return q * _log1p_ratio(q * (1.0 - r))
-
-
-def _cc_effectiveness(ntu, r):
-    """Counter-current effectiveness from NTU and r; the inverse of :func:`_cc_ntu`.
-
-    P = expm1(a)/(expm1(a) + 1 − r) with a = NTU(1 − r), written Q/(1 + Q), Q = NTU·expm1(a)/a, for
-    |a| ≤ 1 (exact at r = 1) and with exp(−|a|) above (no overflow).
-    """
-    ntu = np.asarray(ntu, dtype=float)
-    r = np.asarray(r, dtype=float)
-    a = ntu * (1.0 - r)
-    small = np.abs(a) <= 1.0
-    q = ntu * _expm1_ratio(np.where(small, a, 0.0))
-    a_large = np.where(small, 1.0, a)
-    e = np.exp(-np.abs(a_large))
-    # a > 0 (r < 1): 1 − r·e > 0; a < 0 (r > 1): r − e > 0
-    large = (1.0 - e) / np.where(a_large > 0, 1.0 - r * e, r - e)
-    return np.where(small, q / (1.0 + q), large)
-
-
-def _ntu_1_2(p, r):
-    """NTU of one 1-2 shell from P and R (Underwood 1934; Bowman, Mueller & Nagle 1940).
-
-    NTU = ln{[2 − P(1 + R − S)]/[2 − P(1 + R + S)]}/S, S = √(1 + R²).  Needs P < 2/(1 + R + S).
-    """
-    s = np.sqrt(1.0 + r * r)
-    # near P_max, 2 − P(1 + R + S) is written (1 + R + S)(P_max − P): the gap to P_max is taken first,
-    # so P one rounding step below P_max still gives a finite NTU (a gap lost to rounding counts as one step)
-    pm = _p_max_1_2(r)
-    x = p * (1.0 + r + s) / 2
-    near = x > 0.5
-    gap = np.maximum(pm - p, np.spacing(pm))
-    far_term = np.log1p(-np.where(near, 0.0, x))
-    near_term = np.log((1.0 + r + s) * np.where(near, gap, 1.0) / 2)
-    return (np.log1p(-p * (1.0 + r - s) / 2) - np.where(near, near_term, far_term)) / s
-
-
-def _p_max_1_2(r):
-    """Largest P one 1-2 shell reaches (infinite area): 2/(1 + R + √(1 + R²))."""
-    return 2.0 / (1.0 + r + np.sqrt(1.0 + r * r))
-
-
-def _ceil(x: float) -> int:
-    return int(math.ceil(x - 1e-9 * max(1.0, abs(x))))
-
-
-def _check_shells(shells) -> int:
-    if isinstance(shells, bool) or not isinstance(shells, (int, np.integer)) or shells < 1:
-        raise InputError(f"number of shells must be a whole number >= 1, got {shells!r}")
-    return int(shells)
-
-
-def _arrangement(arrangement) -> FlowArrangement:
-    try:
-        return FlowArrangement(arrangement)
-    except ValueError:
-        allowed = ", ".join(a.value for a in FlowArrangement)
-        raise InputError(f"unknown flow arrangement {arrangement!r}; allowed: {allowed}") from None
-
-
-def _finite(x, what, unit) -> float:
-    try:
-        v = float(x)
-    except (TypeError, ValueError):
-        raise InputError(f"{what} must be a number [{unit}], got {x!r}") from None
-    if not math.isfinite(v):
-        raise InputError(f"{what} must be a finite number [{unit}], got {v!r}")
-    return v
 
 
 # --------------------------------------------------------------------------------------------------
@@ -212,15 +97,15 @@ def overall_coefficient(hot_film_coefficient, cold_film_coefficient, *, hot_foul
     >>> overall_coefficient(1.0, 1.0, hot_fouling=0.5)
     0.4
     """
-    hh = _array(hot_film_coefficient, "hot film coefficient")
-    hc = _array(cold_film_coefficient, "cold film coefficient")
-    fh = _array(hot_fouling, "hot fouling resistance")
-    fc = _array(cold_fouling, "cold fouling resistance")
-    _require(hh > 0, hh, "hot film coefficient must be > 0 kW/(m²·K), got {}")
-    _require(hc > 0, hc, "cold film coefficient must be > 0 kW/(m²·K), got {}")
-    _require((fh >= 0) & np.isfinite(fh), fh, "hot fouling resistance must be >= 0 m²·K/kW and finite, got {}")
-    _require((fc >= 0) & np.isfinite(fc), fc, "cold fouling resistance must be >= 0 m²·K/kW and finite, got {}")
-    return _out(1.0 / (1.0 / hh + 1.0 / hc + fh + fc))
+    hh = as_float_array(hot_film_coefficient, "hot film coefficient")
+    hc = as_float_array(cold_film_coefficient, "cold film coefficient")
+    fh = as_float_array(hot_fouling, "hot fouling resistance")
+    fc = as_float_array(cold_fouling, "cold fouling resistance")
+    require(hh > 0, hh, "hot film coefficient must be > 0 kW/(m²·K), got {}")
+    require(hc > 0, hc, "cold film coefficient must be > 0 kW/(m²·K), got {}")
+    require((fh >= 0) & np.isfinite(fh), fh, "hot fouling resistance must be >= 0 m²·K/kW and finite, got {}")
+    require((fc >= 0) & np.isfinite(fc), fc, "cold fouling resistance must be >= 0 m²·K/kW and finite, got {}")
+    return scalar_or_array(1.0 / (1.0 / hh + 1.0 / hc + fh + fc))
 
 
 def log_mean(dt1, dt2):
@@ -256,15 +141,15 @@ def log_mean(dt1, dt2):
     >>> round(log_mean(40.0, 10.0), 4)
     21.6404
     """
-    a = _array(dt1, "ΔT₁")
-    b = _array(dt2, "ΔT₂")
+    a = as_float_array(dt1, "ΔT₁")
+    b = as_float_array(dt2, "ΔT₂")
     for x, name in ((a, "ΔT₁"), (b, "ΔT₂")):
         ok = x > 0
         if not np.all(ok):
             bad = np.broadcast_to(x, ok.shape)[~ok].flat[0]
             raise TemperatureCrossError(f"end temperature difference {name} = {bad:g} K: a log mean needs "
                                         "both differences > 0 K (temperature cross or pinch at that end)")
-    _require(np.isfinite(a) & np.isfinite(b), np.where(np.isfinite(a), b, a),
+    require(np.isfinite(a) & np.isfinite(b), np.where(np.isfinite(a), b, a),
              "end temperature differences must be finite, got {}")
     mean = 0.5 * (a + b)
     r = (a - b) / (a + b)
@@ -274,17 +159,17 @@ def log_mean(dt1, dt2):
     ratio = np.where(small, 1.0 - r * r / 3 - 4 * r ** 4 / 45, rs / np.arctanh(rs))
     a_far, b_far = np.where(far, a, 2.0), np.where(far, b, 1.0)
     plain = (a_far - b_far) / (np.log(a_far) - np.log(b_far))
-    return _out(np.where(far, plain, mean * ratio))
+    return scalar_or_array(np.where(far, plain, mean * ratio))
 
 
 def _end_differences(hot_in, hot_out, cold_in, cold_out, arrangement):
-    th1, th2 = _array(hot_in, "hot inlet temperature"), _array(hot_out, "hot outlet temperature")
-    tc1, tc2 = _array(cold_in, "cold inlet temperature"), _array(cold_out, "cold outlet temperature")
+    th1, th2 = as_float_array(hot_in, "hot inlet temperature"), as_float_array(hot_out, "hot outlet temperature")
+    tc1, tc2 = as_float_array(cold_in, "cold inlet temperature"), as_float_array(cold_out, "cold outlet temperature")
     for x, name in ((th1, "hot inlet"), (th2, "hot outlet"), (tc1, "cold inlet"), (tc2, "cold outlet")):
-        _require(np.isfinite(x), x, f"{name} temperature must be a finite number [°C], got {{}}")
-    _require(th1 >= th2, th1 - th2, "hot inlet is below hot outlet (hot side would be heated by {} K); "
+        require(np.isfinite(x), x, f"{name} temperature must be a finite number [°C], got {{}}")
+    require(th1 >= th2, th1 - th2, "hot inlet is below hot outlet (hot side would be heated by {} K); "
              "give the hot side as inlet, outlet with inlet >= outlet")
-    _require(tc2 >= tc1, tc1 - tc2, "cold outlet is below cold inlet (cold side would be cooled by {} K); "
+    require(tc2 >= tc1, tc1 - tc2, "cold outlet is below cold inlet (cold side would be cooled by {} K); "
              "give the cold side as inlet, outlet with outlet >= inlet")
     if arrangement is FlowArrangement.CO_CURRENT:
         ends = ((th1 - tc1, "inlet end (hot inlet − cold inlet)"),
@@ -336,7 +221,7 @@ def lmtd(hot_in, hot_out, cold_in, cold_out, arrangement=FlowArrangement.COUNTER
     >>> lmtd(100, 60, 20, 60)
     40.0
     """
-    arrangement = _arrangement(arrangement)
+    arrangement = enum_member(FlowArrangement, arrangement, "flow arrangement")
     dt1, dt2 = _end_differences(hot_in, hot_out, cold_in, cold_out, arrangement)
     return log_mean(dt1, dt2)
 
@@ -370,7 +255,7 @@ def area_from_duty(duty, u, lmtd, f=1.0):
     62.5
     """
     q, uu, dt, ff = _check_qudf(duty, u, lmtd, f, "duty", "Q", "kW")
-    return _out(q / (uu * ff * dt))
+    return scalar_or_array(q / (uu * ff * dt))
 
 
 def duty_from_area(area, u, lmtd, f=1.0):
@@ -395,16 +280,16 @@ def duty_from_area(area, u, lmtd, f=1.0):
     1000.0
     """
     a, uu, dt, ff = _check_qudf(area, u, lmtd, f, "area", "A", "m²")
-    return _out(uu * a * ff * dt)
+    return scalar_or_array(uu * a * ff * dt)
 
 
 def _check_qudf(x, u, dt, f, what, symbol, unit):
-    x = _array(x, what)
-    uu, dt, ff = _array(u, "U"), _array(dt, "LMTD"), _array(f, "F")
-    _require((x >= 0) & np.isfinite(x), x, f"{what} {symbol} must be >= 0 {unit} and finite, got {{}}")
-    _require((uu > 0) & np.isfinite(uu), uu, "overall coefficient U must be > 0 kW/(m²·K) and finite, got {}")
-    _require((dt > 0) & np.isfinite(dt), dt, "LMTD must be > 0 K and finite, got {}")
-    _require((ff > 0) & (ff <= 1), ff, "F-factor must be in (0, 1], got {}")
+    x = as_float_array(x, what)
+    uu, dt, ff = as_float_array(u, "U"), as_float_array(dt, "LMTD"), as_float_array(f, "F")
+    require((x >= 0) & np.isfinite(x), x, f"{what} {symbol} must be >= 0 {unit} and finite, got {{}}")
+    require((uu > 0) & np.isfinite(uu), uu, "overall coefficient U must be > 0 kW/(m²·K) and finite, got {}")
+    require((dt > 0) & np.isfinite(dt), dt, "LMTD must be > 0 K and finite, got {}")
+    require((ff > 0) & (ff <= 1), ff, "F-factor must be in (0, 1], got {}")
     return x, uu, dt, ff
 
 
@@ -437,22 +322,10 @@ def p_max(r, shells=1):
     >>> round(p_max(1.0, shells=2), 4)
     0.7388
     """
-    n = _check_shells(shells)
-    rr = _array(r, "R")
-    _require((rr >= 0) & np.isfinite(rr), rr, "capacity ratio R must be >= 0 and finite, got {}")
-    return _out(_series_total(_p_max_1_2(rr), rr, n))
-
-
-def _series_total(p1, r, n):
-    """P of n identical units in counter-current series, each at p1 (exact at r = 1)."""
-    p1 = np.asarray(p1, dtype=float)
-    safe = np.where(p1 >= 1.0, 0.5, p1)
-    return np.where(p1 >= 1.0, 1.0, _cc_effectiveness(n * _cc_ntu(safe, r), r))
-
-
-def _series_unit(p, r, n):
-    """p1 of each of n identical units in counter-current series that together reach p."""
-    return _cc_effectiveness(_cc_ntu(p, r) / n, r)
+    n = whole_number(shells, "number of shells")
+    rr = as_float_array(r, "R")
+    require((rr >= 0) & np.isfinite(rr), rr, "capacity ratio R must be >= 0 and finite, got {}")
+    return scalar_or_array(series_effectiveness(p_max_1_2_shell(rr), rr, n))
 
 
 def f_factor(r, p, shells=1):
@@ -504,26 +377,26 @@ def f_factor(r, p, shells=1):
     >>> round(f_factor(1.0, 0.5, shells=2), 4)
     0.9568
     """
-    n = _check_shells(shells)
-    rr, pp = _array(r, "R"), _array(p, "P")
-    _require((rr >= 0) & np.isfinite(rr), rr, "capacity ratio R must be >= 0 and finite, got {}")
-    _require(pp >= 0, pp, "P must be >= 0, got {}")
-    pm = _series_total(_p_max_1_2(rr), rr, n)
+    n = whole_number(shells, "number of shells")
+    rr, pp = as_float_array(r, "R"), as_float_array(p, "P")
+    require((rr >= 0) & np.isfinite(rr), rr, "capacity ratio R must be >= 0 and finite, got {}")
+    require(pp >= 0, pp, "P must be >= 0, got {}")
+    pm = series_effectiveness(p_max_1_2_shell(rr), rr, n)
     ok = pp < pm
     if not np.all(ok):
         i = np.flatnonzero(~np.broadcast_to(ok, np.broadcast(rr, pp).shape).ravel())[0]
         rb, pb, mb = (np.broadcast_to(x, ok.shape).ravel()[i] for x in np.broadcast_arrays(rr, pp, pm))
         raise TemperatureCrossError(f"P = {pb:g} cannot be reached by {n} 1-2 shell(s) in series at R = {rb:g} "
                                     f"(largest reachable P = {mb:.6g}); more shells are needed")
-    p1 = pp if n == 1 else _series_unit(pp, rr, n)
+    p1 = pp if n == 1 else unit_effectiveness_in_series(pp, rr, n)
     pos = p1 > 0
-    p1s = np.where(pos, p1, 0.5 * _p_max_1_2(rr))
-    f = _cc_ntu(p1s, rr) / _ntu_1_2(p1s, rr)
-    return _out(np.where(pos, np.minimum(f, 1.0), 1.0))
+    p1s = np.where(pos, p1, 0.5 * p_max_1_2_shell(rr))
+    f = counter_current_ntu(p1s, rr) / ntu_1_2_shell(p1s, rr)
+    return scalar_or_array(np.where(pos, np.minimum(f, 1.0), 1.0))
 
 
 def _r_and_p(hot_in, hot_out, cold_in, cold_out):
-    th1, th2, tc1, tc2 = (_finite(x, f"{name} temperature", "°C") for x, name in
+    th1, th2, tc1, tc2 = (finite_float(x, f"{name} temperature", "°C") for x, name in
                           ((hot_in, "hot inlet"), (hot_out, "hot outlet"), (cold_in, "cold inlet"),
                            (cold_out, "cold outlet")))
     _end_differences(th1, th2, tc1, tc2, FlowArrangement.COUNTER_CURRENT)
@@ -563,7 +436,7 @@ def f_factor_from_temperatures(hot_in, hot_out, cold_in, cold_out, shells=1):
     """
     r, p = _r_and_p(hot_in, hot_out, cold_in, cold_out)
     if r is None:
-        _check_shells(shells)
+        whole_number(shells, "number of shells")
         return 1.0
     try:
         return float(f_factor(r, p, shells))
@@ -624,14 +497,12 @@ def shell_design(hot_in, hot_out, cold_in, cold_out, *, x_p=defaults.X_P, min_f=
     """Number of 1-2 shells in series by the X_P criterion, and F per shell.
 
     Ahmad, Linnhoff & Smith fix the P of each shell at X_P times the largest P a 1-2 shell can reach,
-    P₁ = X_P·2/(R + 1 + √(R² + 1)), and obtain the real-valued number of shells in series
-
-    .. math:: N = \\frac{\\ln[(1-RP)/(1-P)]}{\\ln W},\\qquad
-              W = \\frac{R + 1 + \\sqrt{R^2+1} - 2 R X_P}{R + 1 + \\sqrt{R^2+1} - 2 X_P}
-
-    (at R = 1: N = [P/(1−P)]/[P₁/(1−P₁)], evaluated without a branch).  The count is N rounded up;
+    P₁ = X_P·2/(R + 1 + √(R² + 1)); the real-valued number of shells in series N that this gives is
+    :func:`heatloom.equipment.kernels.real_shell_count` (exact at R = 1).  The count is N rounded up;
     if F with that count is still below ``min_f`` (possible near R = 1), shells are added until it is
-    not, and ``set_by`` says so.
+    not, and ``set_by`` says so.  A side that does not change temperature (condensing or boiling) needs
+    one shell whatever P: F = 1 in any arrangement (common practice; at C_r = 0 every arrangement has
+    ε = 1 − e^{−NTU}, Incropera, DeWitt, Bergman & Lavine 2007, Table 11.3).
 
     Parameters
     ----------
@@ -672,14 +543,13 @@ def shell_design(hot_in, hot_out, cold_in, cold_out, *, x_p=defaults.X_P, min_f=
     r, p = _r_and_p(hot_in, hot_out, cold_in, cold_out)
     if r is None:
         return ShellDesign(1, 1.0, None, None, None, None, 1.0, x_p, min_f, "isothermal side")
-    p1 = x_p * float(_p_max_1_2(r))
-    n_real = float(_cc_ntu(p, r) / _cc_ntu(p1, r))
-    n = max(1, _ceil(n_real))
+    n_real = float(real_shell_count(p, r, x_p))
+    n = max(1, round_up_count(n_real))
     set_by = "X_P"
     f = float(f_factor(r, p, n))
     while f < min_f:
         n += 1
         set_by = "minimum F"
         f = float(f_factor(r, p, n))
-    return ShellDesign(n, f, r, p, float(_series_unit(p, r, n)), float(_p_max_1_2(r)), n_real, x_p, min_f,
-                       set_by)
+    return ShellDesign(n, f, r, p, float(unit_effectiveness_in_series(p, r, n)), float(p_max_1_2_shell(r)), n_real,
+                       x_p, min_f, set_by)

@@ -13,13 +13,12 @@ that both curves span the same enthalpy) and reads off, before any network exist
 * capital, energy and total annual cost targets (:func:`area_targets`).
 
 Utilities enter the balanced composites as streams: those of the targets' utility placement when
-utility levels were given, else the two ideal utilities of :func:`heatloom.network.design.ideal_utilities`
+utility levels were given, else the two ideal utilities of :func:`heatloom.pinch.utilities.ideal_utilities`
 (isothermal, :data:`heatloom.defaults.IDEAL_UTILITY_MARGIN` plus ΔTmin beyond the process, with the
 stated default prices and film coefficients), so targets and designs see the same utilities.
 
-Layering note: this module uses the sizing functions, cost laws and tabulated defaults of
-:mod:`heatloom.network` (imported inside the functions, so that importing :mod:`heatloom.pinch` does not
-import :mod:`heatloom.network`, which itself imports :mod:`heatloom.pinch`).
+The log mean and the shell count are the public kernels of :mod:`heatloom.equipment`, the layer above
+this one; the cost settings come from :mod:`heatloom.model` and the defaults from :mod:`heatloom.defaults`.
 
 Targets are screening estimates (clean surfaces, counter-current, no fouling allowance): designs must be
 checked against local codes and standards by qualified, licensed engineers.
@@ -48,8 +47,12 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .. import defaults
+from ..equipment.kernels import real_shell_count
+from ..equipment.sizing import log_mean
 from ..errors import InputError, TemperatureCrossError
 from ..model import StreamTable, Utility
+from ..validation import enum_member, round_up_count
 from .problem_table import shifted_ranges, zero_tolerance
 from .targets import Targets
 
@@ -130,8 +133,11 @@ class BalancedComposites:
         TemperatureCrossError
             Where the curves touch (ΔT = 0: the area would be infinite).
         """
-        from ..equipment.sizing import log_mean
+        dt1, dt2 = self._check_approach()
+        return np.asarray(log_mean(dt1, dt2), dtype=float)
 
+    def _check_approach(self) -> tuple[np.ndarray, np.ndarray]:
+        """ΔT at the high- and low-enthalpy end of each interval [K], all > 0, or TemperatureCrossError."""
         dt1 = self.hot_high - self.cold_high
         dt2 = self.hot_low - self.cold_low
         bad = ~((dt1 > 0) & (dt2 > 0))
@@ -143,7 +149,7 @@ class BalancedComposites:
                 f"the balanced composite curves touch or cross at {h:.6g} kW (ΔT = {dt:.3g} K) at ΔTmin "
                 f"{self.dt_min:g} K: the area target would be infinite; ΔTmin (and every ΔTmin "
                 "contribution) must leave a positive approach")
-        return np.asarray(log_mean(dt1, dt2), dtype=float)
+        return dt1, dt2
 
     def to_frame(self):
         """One row per enthalpy interval, units in the headers."""
@@ -223,7 +229,7 @@ def target_utilities(targets: Targets) -> tuple[tuple[Utility, float], ...]:
     """The utilities of a targeting run and their duties [kW], zero duties left out.
 
     The placed levels when the targets were computed with utilities; else the ideal utilities of
-    :func:`heatloom.network.design.ideal_utilities` at the minimum duties.
+    :func:`heatloom.pinch.utilities.ideal_utilities` at the minimum duties.
 
     Examples
     --------
@@ -517,27 +523,38 @@ def unit_targets(targets: Targets) -> tuple[int, int]:
 
 
 def _real_shells(hot_in, hot_out, cold_in, cold_out, x_p: float) -> np.ndarray:
-    """Real-valued number of 1-2 shells in series at P = X_P·P_max per shell, interval by interval.
+    """Real-valued 1-2 shells in series of each interval (see :func:`shell_target`).
 
-    N = NTU_cc(P, R)/NTU_cc(X_P·P_max(R), R), the count of Ahmad, Linnhoff & Smith written as in
-    :func:`heatloom.equipment.sizing.shell_design` (whose vectorised private helpers it uses, exact at
-    R = 1).  A side that does not change temperature gives R = 0 after swapping sides (which leaves the
-    F-factor unchanged): N = ln(1 − P)/ln(1 − X_P), P_max being 1 there.  Both sides isothermal: 0.
+    A side that does not change temperature gives R = 0 after swapping sides (F is unchanged), P being
+    the other side's change over the inlet difference: N = ln(1 − P)/ln(1 − X_P); both isothermal: 0.
+    Along each run of intervals where one side stays at one temperature (one isothermal piece of a
+    composite) the counts, which add up along the run as NTU does, are scaled to sum to one at most.
     """
-    from ..equipment.sizing import _cc_ntu, _p_max_1_2
-
     hot_in, hot_out, cold_in, cold_out = (np.asarray(x, dtype=float) for x in (hot_in, hot_out, cold_in, cold_out))
     span = hot_in - cold_in
     dh, dc = hot_in - hot_out, cold_out - cold_in
     small = 1e-9 * np.maximum(span, 1.0)
     iso_h, iso_c = dh <= small, dc <= small
     general = ~(iso_h | iso_c)
-    r = np.where(general, dh / np.where(iso_c, 1.0, dc), 1.0)
-    p = np.where(general, dc / span, 0.5)
-    n_general = _cc_ntu(p, r) / _cc_ntu(x_p * _p_max_1_2(r), r)
-    p_one = np.where(iso_h & iso_c, 0.0, np.maximum(dh, dc) / span)
-    n_one = np.log1p(-p_one) / math.log1p(-x_p)
-    return np.where(general, n_general, n_one)
+    r = np.where(general, dh / np.where(iso_c, 1.0, dc), 0.0)
+    change = np.where(general, dc, np.where(iso_h & iso_c, 0.0, np.maximum(dh, dc)))
+    n = np.asarray(real_shell_count(change / span, r, x_p), dtype=float)
+    for iso, level in ((iso_h & ~iso_c, hot_in), (iso_c & ~iso_h, cold_in)):
+        n = _one_shell_per_isothermal_run(n, iso, level, small)
+    return n
+
+
+def _one_shell_per_isothermal_run(n, iso, level, small) -> np.ndarray:
+    """``n`` scaled so that each run of consecutive ``iso`` intervals at one ``level`` sums to one at most."""
+    if not iso.any():
+        return n
+    same_as_before = np.zeros_like(iso)
+    same_as_before[1:] = iso[1:] & iso[:-1] & (np.abs(level[1:] - level[:-1]) <= small[1:])
+    run = np.cumsum(iso & ~same_as_before) - 1
+    total = np.bincount(run[iso], weights=n[iso])
+    scale = np.ones_like(n)
+    scale[iso] = 1.0 / np.maximum(total[run[iso]], 1.0)
+    return n * scale
 
 
 def shell_target(composites: BalancedComposites, *, x_p: float | None = None) -> tuple[int, float]:
@@ -545,13 +562,19 @@ def shell_target(composites: BalancedComposites, *, x_p: float | None = None) ->
 
     In every enthalpy interval *k* of the balanced composites the real-valued number of 1-2 shells in
     series N_k that takes the composites from their interval inlet to outlet temperatures, each shell at
-    P = X_P·P_max (Ahmad, Linnhoff & Smith 1988; the count of :func:`heatloom.equipment.sizing.shell_design`), is
-    multiplied by the number of units the interval needs, S_k − 1 (S_k streams and utilities present):
+    P = X_P·P_max (Ahmad, Linnhoff & Smith 1988; :func:`heatloom.equipment.real_shell_count`, the count
+    of :func:`heatloom.equipment.shell_design`), is multiplied by the number of units the interval needs,
+    S_k − 1 (S_k streams and utilities present):
 
     .. math:: N_{shells} = \\Big\\lceil \\sum_k N_k\\,(S_k - 1) \\Big\\rceil
 
     (the interval method as recalled from Ahmad & Smith 1989, from memory, unverified in its details).
-    Real counts add up along a match of constant capacity ratio, since each is an NTU ratio.
+    Real counts add up along a match of constant capacity ratio, since each is an NTU ratio.  A side that
+    does not change temperature (an isothermal utility such as condensing steam) needs one shell whatever
+    P, F being 1 in any arrangement (common practice; Incropera, DeWitt, Bergman & Lavine 2007,
+    Fundamentals of Heat and Mass Transfer, 6th ed., Table 11.3: at C_r = 0 every arrangement has
+    ε = 1 − e^{−NTU}), as :func:`heatloom.equipment.shell_design` counts it: along each isothermal piece
+    of a composite the N_k add up to one at most (they are scaled down where they add up to more).
 
     Parameters
     ----------
@@ -575,15 +598,14 @@ def shell_target(composites: BalancedComposites, *, x_p: float | None = None) ->
     >>> shell_target(balanced_composites(target(s, 10, [cw])))
     (3, 2.99...)
     """
-    from .. import defaults
-
     x_p = defaults.X_P if x_p is None else float(x_p)
     if not (0 < x_p < 1):
         raise InputError(f"X_P must be in (0, 1), got {x_p:g}")
     c = composites
+    c._check_approach()           # touching curves: no finite shell count either
     units = np.maximum(c.hot_count + c.cold_count - 1, 0)
     total = float(np.sum(units * _real_shells(c.hot_high, c.hot_low, c.cold_low, c.cold_high, x_p)))
-    shells = int(math.ceil(total - 1e-9 * max(total, 1.0))) if total > 0 else 0
+    shells = round_up_count(total) if total > 0 else 0
     return shells, float(total)
 
 
@@ -643,14 +665,9 @@ def area_targets(targets: Targets, costs=None, *, default_film_coefficient: floa
     >>> round(a.area, 3), a.units, a.units_mer, round(a.capital_cost, 1), a.energy_cost
     (14.773, 2, 2, 3477.3, 400.0)
     """
-    from .. import defaults
     from ..model.costs import CostSettings, UnitKind
 
-    try:
-        basis_kind = CapitalBasis(capital_basis)
-    except ValueError:
-        allowed = ", ".join(b.value for b in CapitalBasis)
-        raise InputError(f"unknown capital basis {capital_basis!r}; allowed: {allowed}") from None
+    basis_kind = enum_member(CapitalBasis, capital_basis, "capital basis")
     costs = CostSettings() if costs is None else costs
     if not isinstance(costs, CostSettings):
         raise InputError(f"costs must be CostSettings, got {type(costs).__name__}")

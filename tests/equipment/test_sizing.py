@@ -16,7 +16,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from heatloom import defaults
-from heatloom.equipment import sizing
+from heatloom.equipment import unit_effectiveness_in_series
 from heatloom.equipment.sizing import (
     area_from_duty,
     duty_from_area,
@@ -325,7 +325,7 @@ def test_shell_count_matches_independent_search(th1, th2, tc1, tc2):
 def test_shell_count_real_value_meets_x_p_exactly():
     # Ahmad, Linnhoff & Smith (1988): at the real-valued N every shell sits at exactly P1 = X_P·P1,max
     d = shell_design(300, 150, 100, 240)
-    per_shell = sizing._series_unit(d.p, d.r, d.shells_real)
+    per_shell = unit_effectiveness_in_series(d.p, d.r, d.shells_real)
     assert per_shell == pytest.approx(0.9 * d.p_max_per_shell, rel=1e-10)
 
 

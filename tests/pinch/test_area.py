@@ -31,7 +31,16 @@ from scipy.integrate import quad
 from heatloom import defaults as network_data
 from heatloom.equipment import shell_design
 from heatloom.errors import InfeasibleError, InputError, TemperatureCrossError
-from heatloom.model import CostLaw, CostSettings, Segment, Stream, StreamTable, Utility, UtilityKind
+from heatloom.model import (
+    CostLaw,
+    CostSettings,
+    ExchangerType,
+    Segment,
+    Stream,
+    StreamTable,
+    Utility,
+    UtilityKind,
+)
 from heatloom.network import design_mer
 from heatloom.pinch import cold_composite, hot_composite, ideal_utilities, target
 from heatloom.pinch.area import (
@@ -164,6 +173,8 @@ def test_touching_curves_are_refused():
     s = StreamTable.from_arrays(["H", "C"], [100, 50], [50, 100], [1.0, 1.0], film_coefficient=[1.0, 1.0])
     with pytest.raises(TemperatureCrossError, match="area target would be infinite"):
         area_targets(target(s, 0))
+    with pytest.raises(TemperatureCrossError, match="touch or cross"):     # no finite shell count either
+        shell_target(balanced_composites(target(s, 0)))
 
 
 def test_missing_film_coefficients_are_named():
@@ -314,6 +325,59 @@ def test_shells_add_up_along_one_match():
     assert real == pytest.approx(shell_design(150, 60, 30, 120).shells_real, rel=1e-9)
     with pytest.raises(InputError, match="X_P must be in"):
         shell_target(balanced_composites(t), x_p=1.2)
+
+
+def _steam_heater_case(segments):
+    """Invented: one cold stream (the given segments) heated by condensing steam at 150 °C alone."""
+    s = StreamTable((Stream("C", tuple(segments)),))
+    steam = Utility("steam", 150, 150, 100.0, UtilityKind.HOT, 5.0)
+    return s, steam
+
+
+@pytest.mark.parametrize("segments", [
+    (Segment(20, 140, 2.0, 1.0),),                               # one linear cold stream, P = 120/130
+    (Segment(20, 80, 2.0, 1.0), Segment(80, 140, 1.0, 1.0)),     # two segments: two composite intervals
+])
+def test_isothermal_side_needs_one_shell(segments):
+    # A side that does not change temperature (condensing steam) gives F = 1 for any P, whatever the
+    # arrangement (common practice; Incropera, DeWitt, Bergman & Lavine 2007, Fundamentals of Heat and
+    # Mass Transfer, 6th ed., Table 11.3: at C_r = 0 every arrangement has ε = 1 − exp(−NTU); the same
+    # statement in the docstring of ht.hx.effectiveness_from_NTU, checked here with ht): one 1-2 shell
+    # does the whole duty, so the shell target of a steam heater is 1, as the design's heater has.
+    for ntu in (0.5, 2.6, 8.0):
+        assert ht.effectiveness_from_NTU(ntu, 0.0, "S&T") == pytest.approx(
+            ht.effectiveness_from_NTU(ntu, 0.0, "counterflow"), rel=1e-12)
+    s, steam = _steam_heater_case(segments)
+    t = target(s, 10, [steam])
+    assert t.hot_utility == pytest.approx(sum(g.duty for g in segments)) and t.cold_utility == 0
+    shells, real = shell_target(balanced_composites(t))
+    assert shells == 1 and real == pytest.approx(1.0, rel=1e-12)
+    net = design_mer(s, 10, [steam], exchanger_type=ExchangerType.SHELL_AND_TUBE_1_2, time_limit=20)
+    assert [h.shells for h in net.heaters] == [1] and not net.exchangers and not net.coolers
+    assert area_targets(t, capital_basis="shells").shells == 1
+
+
+def test_isothermal_cold_side_needs_one_shell():
+    # The mirror case: a hot stream 200 → 35 °C (two segments) cooled by an isothermal cold utility at
+    # 20 °C, P = 165/180 > X_P; F = 1 for any P with one side isothermal (as above), so 1 shell.
+    hot = Stream("H", (Segment(200, 100, 1.0, 1.0), Segment(100, 35, 2.0, 1.0)))
+    s = StreamTable((hot,))
+    water = Utility("boiling water", 20, 20, 10.0, UtilityKind.COLD, 5.0)
+    t = target(s, 10, [water])
+    assert t.cold_utility == pytest.approx(230.0) and t.hot_utility == 0
+    assert shell_target(balanced_composites(t)) == (1, pytest.approx(1.0, rel=1e-12))
+    net = design_mer(s, 10, [water], exchanger_type=ExchangerType.SHELL_AND_TUBE_1_2, time_limit=20)
+    assert [c.shells for c in net.coolers] == [1]
+
+
+def test_isothermal_side_below_x_p_keeps_its_fraction():
+    # With P below X_P = 0.9 the real count of an isothermal side stays the Ahmad, Linnhoff & Smith
+    # (1988) value at R = 0, ln(1 − P)/ln(1 − X_P) (P_max = 1 there), written out by hand: steam at
+    # 150 °C heating 20 → 80 °C, P = 60/130.
+    s, steam = _steam_heater_case((Segment(20, 80, 2.0, 1.0),))
+    shells, real = shell_target(balanced_composites(target(s, 10, [steam])))
+    assert real == pytest.approx(math.log(1 - 60 / 130) / math.log(1 - 0.9), rel=1e-12)
+    assert shells == 1
 
 
 # --------------------------------------------------------------------------------------------------
