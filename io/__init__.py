@@ -1,5 +1,6 @@
 """Reading stream, utility and cost tables; writing results, figures and reports (installed as heatloom.io)."""
 
+from .cells import Cells, load_cells
 from .costs import costs_from_mapping, read_costs, read_retrofit_costs, retrofit_costs_from_mapping
 from .export import OutputDirectory, to_jsonable
 from .network_table import NETWORK_ALIASES, NETWORK_COLUMNS, read_network
@@ -10,11 +11,9 @@ from .streams import POINT_COLUMNS, SEGMENT_COLUMNS, read_streams
 from .tables import (
     ALIASES,
     COLUMN_KINDS,
-    Cells,
     Table,
     TableColumn,
     find_header,
-    load_cells,
     parse_column_mapping,
     read_table,
 )

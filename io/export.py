@@ -128,13 +128,13 @@ class OutputDirectory:
         return p
 
     def figures(self, stem: str, fig) -> list[Path]:
-        """Write ``fig`` as STEM.png and STEM.svg, then close it."""
-        import matplotlib.pyplot as plt
+        """Write ``fig`` as STEM.png and STEM.svg, then let go of it (:func:`heatloom.io.figures.close_figure`)."""
+        from .figures import close_figure
 
         try:
             return [self.figure(f"{stem}.{ext}", fig) for ext in FIGURE_FORMATS]
         finally:
-            plt.close(fig)
+            close_figure(fig)
 
 
 def targets_workbook_sheets(targets) -> dict:

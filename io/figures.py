@@ -5,18 +5,22 @@ quantities in a dark brick red with solid lines, cold quantities in a slate blue
 curves stay apart when printed in greyscale), the pinch as a dotted grey line with its temperatures written
 beside it, and the utility targets as hatched bands.  Functions return matplotlib figures; writing them is
 :class:`heatloom.io.export.OutputDirectory`'s job.
+
+Figures are :class:`matplotlib.figure.Figure` objects on the Agg canvas, made without pyplot
+(:func:`new_figure`): importing this module chooses no backend and changes no global setting of
+matplotlib.
 """
 
 from __future__ import annotations
 
-import matplotlib
+import sys
 
-matplotlib.use("Agg")  # no screen on servers and CI; figures go to files
+import numpy as np
+from matplotlib.backends.backend_agg import FigureCanvasAgg
+from matplotlib.figure import Figure
 
-import matplotlib.pyplot as plt  # noqa: E402
-import numpy as np  # noqa: E402
-
-__all__ = ["STYLE", "composite_figure", "grand_composite_figure", "grid_diagram"]
+__all__ = ["STYLE", "new_figure", "new_axes", "style_axes", "close_figure", "composite_figure",
+           "grand_composite_figure", "grid_diagram"]
 
 STYLE = {
     "hot": {"color": "#8c2d19", "linestyle": "-", "linewidth": 2.2},
@@ -26,18 +30,90 @@ STYLE = {
     "font_size": 10,
     "figure_size": (7.0, 4.6),
 }
+"""The one visual style: line styles of hot, cold and net quantities and of the pinch, font size [pt] and
+figure size [in]."""
 
 
-def _axes(title: str, xlabel: str, ylabel: str):
-    fig, ax = plt.subplots(figsize=STYLE["figure_size"])
+def new_figure(figsize: tuple[float, float] | None = None) -> Figure:
+    """An empty figure drawn by matplotlib's Agg canvas, outside pyplot.
+
+    No backend is chosen and nothing global changes: the figure is not registered with pyplot, so no
+    window can open and nothing is left to close (see :func:`close_figure`); ``fig.savefig`` writes it
+    in any format.
+
+    Parameters
+    ----------
+    figsize : (float, float), optional
+        Width and height [in]; default ``STYLE["figure_size"]``.
+
+    Examples
+    --------
+    >>> fig = new_figure()
+    >>> fig.get_size_inches().tolist(), type(fig.canvas).__name__
+    ([7.0, 4.6], 'FigureCanvasAgg')
+    """
+    fig = Figure(figsize=STYLE["figure_size"] if figsize is None else figsize)
+    FigureCanvasAgg(fig)
+    return fig
+
+
+def style_axes(ax, *, tick_size: float | None = None) -> None:
+    """Give an axes the frame of the house style: two sides only, light grid behind the data.
+
+    Parameters
+    ----------
+    ax : matplotlib.axes.Axes
+    tick_size : float, optional
+        Font size of the tick labels [pt]; default one point under ``STYLE["font_size"]``.
+    """
+    ax.spines[["top", "right"]].set_visible(False)
+    ax.tick_params(labelsize=STYLE["font_size"] - 1 if tick_size is None else tick_size)
+    ax.grid(True, color="#e4e4e4", linewidth=0.6)
+    ax.set_axisbelow(True)
+
+
+def new_axes(title: str, xlabel: str, ylabel: str) -> tuple[Figure, object]:
+    """A figure of the standard size with one axes in the house style, titled and labelled.
+
+    Parameters
+    ----------
+    title : str
+        Written at the top left.
+    xlabel, ylabel : str
+        Axis labels, each with its unit in brackets (``"Heat flow [kW]"``).
+
+    Returns
+    -------
+    (matplotlib.figure.Figure, matplotlib.axes.Axes)
+
+    Examples
+    --------
+    >>> fig, ax = new_axes("Demo", "Heat flow [kW]", "Temperature [°C]")
+    >>> ax.get_title(loc="left"), ax.get_xlabel(), ax.spines["top"].get_visible()
+    ('Demo', 'Heat flow [kW]', False)
+    """
+    fig = new_figure()
+    ax = fig.subplots()
     ax.set_title(title, fontsize=STYLE["font_size"] + 1, loc="left")
     ax.set_xlabel(xlabel, fontsize=STYLE["font_size"])
     ax.set_ylabel(ylabel, fontsize=STYLE["font_size"])
-    ax.spines[["top", "right"]].set_visible(False)
-    ax.tick_params(labelsize=STYLE["font_size"] - 1)
-    ax.grid(True, color="#e4e4e4", linewidth=0.6)
-    ax.set_axisbelow(True)
+    style_axes(ax)
     return fig, ax
+
+
+def close_figure(fig) -> None:
+    """Let go of a figure once it is written: closed in pyplot when pyplot holds it.
+
+    The figures of this package (:func:`new_figure`) are not held by pyplot and need nothing; a figure a
+    caller made with pyplot is closed there, so that pyplot does not keep it.  pyplot is not imported here.
+
+    Parameters
+    ----------
+    fig : matplotlib.figure.Figure
+    """
+    pyplot = sys.modules.get("matplotlib.pyplot")
+    if pyplot is not None:
+        pyplot.close(fig)
 
 
 def composite_figure(targets, *, shifted: bool = False, title: str | None = None):
@@ -52,7 +128,7 @@ def composite_figure(targets, *, shifted: bool = False, title: str | None = None
     hot = targets.shifted_hot_composite() if shifted else targets.hot_composite()
     cold = targets.shifted_cold_composite() if shifted else targets.cold_composite()
     what = "Shifted composite curves" if shifted else "Composite curves"
-    fig, ax = _axes(title or f"{what}, ΔTmin = {targets.dt_min:g} K", "Heat flow [kW]",
+    fig, ax = new_axes(title or f"{what}, ΔTmin = {targets.dt_min:g} K", "Heat flow [kW]",
                     "Shifted temperature [°C]" if shifted else "Temperature [°C]")
     if hot.enthalpy.size:
         ax.plot(hot.enthalpy, hot.temperature, label="hot composite", **STYLE["hot"])
@@ -90,7 +166,7 @@ def grand_composite_figure(targets, *, title: str | None = None):
     targets : heatloom.pinch.Targets
     """
     g = targets.grand_composite()
-    fig, ax = _axes(title or f"Grand composite curve, ΔTmin = {targets.dt_min:g} K", "Net heat flow [kW]",
+    fig, ax = new_axes(title or f"Grand composite curve, ΔTmin = {targets.dt_min:g} K", "Net heat flow [kW]",
                     "Shifted temperature [°C]")
     ax.plot(g.enthalpy, g.temperature, label="grand composite", **STYLE["net"])
     for p in targets.pinches:
@@ -157,7 +233,8 @@ def grid_diagram(network, streams, *, title: str | None = None, approach: str = 
     units.sort(key=key)
     n = len(units)
     height = 0.55 * (len(hot) + len(cold)) + 1.6
-    fig, ax = plt.subplots(figsize=(max(7.0, 1.0 + 0.75 * n), height))
+    fig = new_figure((max(7.0, 1.0 + 0.75 * n), height))
+    ax = fig.subplots()
     ax.set_title(title or f"Grid diagram, {approach} = {network.dt_min:g} K, {network.units} units", loc="left",
                  fontsize=STYLE["font_size"] + 1)
     x_end = n + 1.0

@@ -42,8 +42,8 @@ import numpy as np
 from ..errors import InputError
 from ..model.exchangers import FlowArrangement
 from ..model.existing import ExistingUnit, UnitTable
+from .cells import cell_text
 from .tables import Table, normalise_name, parse_column_mapping, read_table
-from .tables import _cell_text as _text
 from .units import QuantityKind
 
 __all__ = ["NETWORK_COLUMNS", "NETWORK_ALIASES", "read_network"]
@@ -134,10 +134,6 @@ def read_network(path: str | os.PathLike, *, sheet: str | None = None,
 # rows → units
 
 
-def _optional(table: Table, name: str, what: str) -> np.ndarray:
-    return table.numbers(name, required=False, what=what) if name in table else np.full(len(table), np.nan)
-
-
 def _whole(table: Table, values: np.ndarray, name: str, what: str) -> list[int | None]:
     out: list[int | None] = []
     for i, v in enumerate(values.tolist()):
@@ -145,8 +141,8 @@ def _whole(table: Table, values: np.ndarray, name: str, what: str) -> list[int |
             out.append(None)
             continue
         if not (v >= 1 and float(v).is_integer()):
-            raise table.error(f"{what} must be a whole number >= 1, got {_text(table.columns[name].cells[i])}",
-                              index=i, column=name)
+            written = cell_text(table.columns[name].cells[i])
+            raise table.error(f"{what} must be a whole number >= 1, got {written}", index=i, column=name)
         out.append(int(v))
     return out
 
@@ -155,14 +151,14 @@ def _units(table: Table) -> list[ExistingUnit]:
     names = table.text("unit")
     hot = table.text("hot")
     cold = table.text("cold")
-    area = _optional(table, "area", "area")
-    duty = _optional(table, "duty", "duty")
-    u = _optional(table, "U", "overall coefficient U")
-    hot_order = _whole(table, _optional(table, "hot_order", "hot_order"), "hot_order",
+    area = table.optional_numbers("area", what="area")
+    duty = table.optional_numbers("duty", what="duty")
+    u = table.optional_numbers("U", what="overall coefficient U")
+    hot_order = _whole(table, table.optional_numbers("hot_order", what="hot_order"), "hot_order",
                        "hot_order (position along the hot stream from its supply end)")
-    cold_order = _whole(table, _optional(table, "cold_order", "cold_order"), "cold_order",
+    cold_order = _whole(table, table.optional_numbers("cold_order", what="cold_order"), "cold_order",
                         "cold_order (position along the cold stream from its supply end)")
-    shells = _whole(table, _optional(table, "shells", "shells"), "shells", "shells")
+    shells = _whole(table, table.optional_numbers("shells", what="shells"), "shells", "shells")
     types = table.text("type") if "type" in table else [""] * len(table)
     out = []
     for i in range(len(table)):
@@ -175,8 +171,8 @@ def _units(table: Table) -> list[ExistingUnit]:
                               column="area" if "area" in table else "duty")
         for column, values, unit in (("area", area, "m²"), ("duty", duty, "kW"), ("U", u, "kW/(m²·K)")):
             if values[i] == values[i] and not values[i] > 0:
-                raise table.error(f"{column} must be > 0 {unit}, got {_text(table.columns[column].cells[i])}",
-                                  index=i, column=column)
+                written = cell_text(table.columns[column].cells[i])
+                raise table.error(f"{column} must be > 0 {unit}, got {written}", index=i, column=column)
         if types[i]:
             arrangement = _TYPES.get(normalise_name(types[i]))
             if arrangement is None:

@@ -30,7 +30,7 @@ import numpy as np
 from ..errors import InputError
 from ..model import Segment
 
-__all__ = ["DEFAULT_FIT_TOLERANCE", "fit_points", "fit_vertices", "point_problem"]
+__all__ = ["DEFAULT_FIT_TOLERANCE", "check_fit_tolerance", "fit_points", "fit_vertices", "point_problem"]
 
 DEFAULT_FIT_TOLERANCE = 0.5
 """Default largest temperature deviation of a fitted curve from the data [K]."""
@@ -78,7 +78,24 @@ def point_problem(temperatures: np.ndarray, cumulative_duties: np.ndarray
     return None
 
 
-def _tolerance(tolerance: float) -> float:
+def check_fit_tolerance(tolerance: float) -> float:
+    """The fit tolerance as a float [K], checked: a finite number >= 0.
+
+    Parameters
+    ----------
+    tolerance : float
+        Largest deviation of a fitted curve from the data [K].
+
+    Raises
+    ------
+    InputError
+        Not a number, negative, NaN or infinite.
+
+    Examples
+    --------
+    >>> check_fit_tolerance("0.5")
+    0.5
+    """
     try:
         tol = float(tolerance)
     except (TypeError, ValueError):
@@ -102,7 +119,7 @@ def fit_vertices(temperatures, cumulative_duties, *, tolerance: float = DEFAULT_
     if problem is not None:
         k, _, message = problem
         raise InputError(f"point {k + 1}: {message}")
-    tol = _tolerance(tolerance)
+    tol = check_fit_tolerance(tolerance)
     x = np.abs(q - q[0])
     hot = t[-1] < t[0]
     n = t.size

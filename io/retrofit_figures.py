@@ -1,5 +1,5 @@
 """Figures of a retrofit study: the existing and the proposed network on grid diagrams, savings against
-investment.
+investment, and the retrofit targets (energy saving against extra area).
 
 Both follow the project's one visual style (:data:`heatloom.io.figures.STYLE`).  The grid diagrams are
 :func:`heatloom.io.figures.grid_diagram` of :meth:`heatloom.retrofit.simulate.Simulation.to_network`, with
@@ -10,9 +10,9 @@ from __future__ import annotations
 
 from collections.abc import Collection
 
-from .figures import STYLE, _axes, grid_diagram
+from .figures import STYLE, grid_diagram, new_axes
 
-__all__ = ["HIGHLIGHT", "grid_figures", "savings_investment_figure"]
+__all__ = ["HIGHLIGHT", "grid_figures", "savings_investment_figure", "retrofit_curve_figure"]
 
 HIGHLIGHT = {"edgecolor": "#303030", "facecolor": "none", "linestyle": (0, (3, 2)), "linewidth": 1.1}
 """Frame drawn around new and changed units on the proposed grid diagram."""
@@ -98,7 +98,7 @@ def savings_investment_figure(retrofit, *, title: str | None = None):
     matplotlib.figure.Figure
     """
     cur = retrofit.costs.currency
-    fig, ax = _axes(title or f"Savings against investment, ΔTmin = {retrofit.dt_min:g} K",
+    fig, ax = new_axes(title or f"Savings against investment, ΔTmin = {retrofit.dt_min:g} K",
                     f"Investment [{cur}]", "Hot utility saved [kW]")
     if retrofit.points:
         xs, ys, _ = zip(*retrofit.points)
@@ -123,6 +123,33 @@ def savings_investment_figure(retrofit, *, title: str | None = None):
                     (0, excess), xytext=(4, -12), textcoords="offset points", fontsize=STYLE["font_size"] - 1,
                     color="#505050")
     ax.set_xlim(left=0)
+    ax.set_ylim(bottom=0)
+    ax.legend(frameon=False, fontsize=STYLE["font_size"] - 1, loc="lower right")
+    fig.tight_layout()
+    return fig
+
+
+def retrofit_curve_figure(curve, *, title: str | None = None):
+    """Hot utility saving against the extra area of a retrofit, at constant α and with new area at α = 1.
+
+    Parameters
+    ----------
+    curve : heatloom.retrofit.diagnose.RetrofitCurve
+        The retrofit targets of a diagnosis (:attr:`heatloom.retrofit.diagnose.Diagnosis.curve`).
+    title : str, optional
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+        One axes: a line at constant area efficiency α (hot style), one with new area at α = 1 (cold
+        style), and a dotted line at no extra area.
+    """
+    fig, ax = new_axes(title or "Retrofit targets: energy saving against extra area", "Extra area [m²]",
+                       "Hot utility saving [kW]")
+    ax.plot(curve.investment_constant_alpha, curve.saving, label=f"at constant α = {curve.efficiency.alpha:.2f}",
+            **STYLE["hot"])
+    ax.plot(curve.investment_incremental, curve.saving, label="new area at α = 1", **STYLE["cold"])
+    ax.axvline(0.0, **STYLE["pinch"])
     ax.set_ylim(bottom=0)
     ax.legend(frameon=False, fontsize=STYLE["font_size"] - 1, loc="lower right")
     fig.tight_layout()

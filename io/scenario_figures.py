@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import math
 
-from .figures import STYLE
+from .figures import STYLE, new_figure
 
 __all__ = ["scenario_cost_figure", "MAX_PANELS"]
 
@@ -33,15 +33,13 @@ def scenario_cost_figure(study, *, title: str | None = None):
     study : heatloom.studies.scenarios.ScenarioStudy
     title : str, optional
     """
-    import matplotlib.pyplot as plt
-
     zones = list(study.zones[:MAX_PANELS])
     n = len(zones)
     cols = 1 if n == 1 else 2 if n <= 4 else 3
     rows = math.ceil(n / cols)
     w, h = STYLE["figure_size"]
-    fig, axes = plt.subplots(rows, cols, figsize=(w if cols == 1 else 4.2 * cols, 0.75 * h * rows + 0.9),
-                             squeeze=False)
+    fig = new_figure((w if cols == 1 else 4.2 * cols, 0.75 * h * rows + 0.9))
+    axes = fig.subplots(rows, cols, squeeze=False)
     cur = study.currency
     names = [s.name for s in study.scenarios]
     optimum = {(o.zone, o.scenario): o for o in study.optima}

@@ -15,10 +15,9 @@ from __future__ import annotations
 
 import math
 
-import matplotlib.pyplot as plt
 import numpy as np
 
-from .figures import STYLE, _axes
+from .figures import STYLE, new_axes, new_figure, style_axes
 
 __all__ = ["site_profiles_figure", "zone_profiles_figure"]
 
@@ -52,15 +51,30 @@ def site_profiles_figure(site, *, title: str | None = None):
     Parameters
     ----------
     site : heatloom.pinch.site.SiteTargets
+    title : str, optional
+        Default: the number of zones, ΔTmin (and site ΔT) and the heat recovered through the mains.
 
     Returns
     -------
     matplotlib.figure.Figure
+
+    Examples
+    --------
+    Two invented zones and one steam main; the main is drawn as a labelled line:
+
+    >>> from heatloom.model import StreamTable
+    >>> from heatloom.model.site import SteamMain
+    >>> from heatloom.pinch.site import site_targets
+    >>> a = StreamTable.from_arrays(["H1", "C1"], [200, 40], [120, 100], [2.0, 1.0])
+    >>> b = StreamTable.from_arrays(["H2", "C2"], [90, 130], [40, 170], [1.0, 2.0])
+    >>> fig = site_profiles_figure(site_targets({"A": a, "B": b}, [SteamMain("LP", 140.0, 50.0)], 10.0))
+    >>> [t.get_text().split(":")[0] for t in fig.axes[0].texts]
+    ['LP 140 °C']
     """
     dt = f"ΔTmin {site.dt_min:g} K" + (f", site ΔT {site.dt_site:g} K" if site.dt_site else "")
     summary = (f"recovered through the mains {site.recovered:,.0f} kW; site hot utility "
                f"{site.site_hot_utility:,.0f} kW (zone by zone {site.zone_by_zone_hot_utility:,.0f} kW)")
-    fig, ax = _axes(title or f"Site source and sink profiles ({len(site.zones)} zones, {dt})\n{summary}",
+    fig, ax = new_axes(title or f"Site source and sink profiles ({len(site.zones)} zones, {dt})\n{summary}",
                     _XLABEL, _YLABEL)
     _draw_profiles(ax, site.source_profile, site.sink_profile)
     y0, y1 = _y_limits([site.source_profile, site.sink_profile], [b.main for b in site.mains])
@@ -88,22 +102,33 @@ def site_profiles_figure(site, *, title: str | None = None):
 
 
 def zone_profiles_figure(site, *, title: str | None = None):
-    """Each zone's source and sink profiles with the mains, one panel per zone.
+    """Each zone's source and sink profiles with the mains, one panel per zone (three to a row).
 
     Parameters
     ----------
     site : heatloom.pinch.site.SiteTargets
+    title : str, optional
+        Default: what the line styles stand for.
 
     Returns
     -------
     matplotlib.figure.Figure
+
+    Examples
+    --------
+    >>> from heatloom.model import StreamTable
+    >>> from heatloom.pinch.site import site_targets
+    >>> a = StreamTable.from_arrays(["H1", "C1"], [200, 40], [120, 100], [2.0, 1.0])
+    >>> fig = zone_profiles_figure(site_targets({"A": a, "B": a, "C": a, "D": a}, [], 10.0))
+    >>> [ax.get_title(loc="left") for ax in fig.axes if ax.axison]
+    ['A (ΔTmin 10 K)', 'B (ΔTmin 10 K)', 'C (ΔTmin 10 K)', 'D (ΔTmin 10 K)']
     """
     n = len(site.zones)
     cols = min(3, n)
     rows = math.ceil(n / cols)
     w, h = STYLE["figure_size"]
-    fig, axes = plt.subplots(rows, cols, figsize=(max(w, 3.4 * cols), 0.75 * h * rows + 0.6), sharey=True,
-                             squeeze=False)
+    fig = new_figure((max(w, 3.4 * cols), 0.75 * h * rows + 0.6))
+    axes = fig.subplots(rows, cols, sharey=True, squeeze=False)
     curves = [c for z in site.zones for c in (z.source, z.sink)]
     y0, y1 = _y_limits(curves, [b.main for b in site.mains])
     for k, ax in enumerate(axes.flat):
@@ -111,10 +136,7 @@ def zone_profiles_figure(site, *, title: str | None = None):
             ax.axis("off")
             continue
         z = site.zones[k]
-        ax.spines[["top", "right"]].set_visible(False)
-        ax.tick_params(labelsize=STYLE["font_size"] - 2)
-        ax.grid(True, color="#e4e4e4", linewidth=0.6)
-        ax.set_axisbelow(True)
+        style_axes(ax, tick_size=STYLE["font_size"] - 2)
         ax.set_title(f"{z.name} (ΔTmin {z.dt_min:g} K)", fontsize=STYLE["font_size"], loc="left")
         _draw_profiles(ax, z.source, z.sink, labels=False)
         for b in site.mains:

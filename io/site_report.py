@@ -2,10 +2,11 @@
 
 A :class:`SiteStudy` gathers a site run (:func:`heatloom.pinch.site.site_targets`) with its inputs and the
 tables the ``site`` command writes (zones, mains, steam per zone, profiles).  :func:`render_site_report`
-turns it into a page in the style of the study report (:func:`heatloom.io.report.render_report`: inline
-SVG figures, no script, well-formed XML, units in every header) with these sections: summary, input data,
-assumptions, zone targets, site profiles and steam mains, price scenarios (when the folder holds a prices
-table), safety and limits, methods and references, about this report.  :func:`site_sheets` gives the workbook's sheets.
+turns it into a page in the style of the study report (:func:`heatloom.io.report.render_report`), built
+from the same blocks (:mod:`heatloom.io.html`: inline SVG figures, no script, well-formed XML, units in every
+header), with these sections: summary, input data, assumptions, zone targets, site profiles and steam mains,
+price scenarios (when the folder holds a prices table), safety and limits, methods and references, about
+this report.  :func:`site_sheets` gives the workbook's sheets.
 
 The site targets are screening estimates: steam systems must be checked against local codes by qualified,
 licensed engineers (the safety section says so).
@@ -17,19 +18,19 @@ from collections.abc import Mapping
 from dataclasses import dataclass, field
 
 from .. import defaults
-from .report import (
+from ..studies.study import NotComputed
+from .html import (
+    Page,
     RenderedReport,
-    _about_table,
-    _assumptions,
-    _frame_table,
-    _long_table,
-    _methods_table,
-    _p,
-    _Page,
-    _safety,
+    about_table,
+    assumptions_section,
     build_page,
+    frame_table,
+    long_table,
+    methods_table,
+    paragraph,
+    safety_section,
 )
-from .workbook import NotComputed
 
 __all__ = ["SiteStudy", "SITE_SHEETS", "site_methods", "render_site_report", "site_sheets"]
 
@@ -167,7 +168,7 @@ def site_methods(study: SiteStudy) -> list[tuple[str, str, str]]:
 # sections
 
 
-def _summary(study: SiteStudy, page: _Page) -> str:
+def _summary(study: SiteStudy, page: Page) -> str:
     site = study.site
     rows = [("zones", len(site.zones), "-"), ("steam and cooling mains", len(site.mains), "-"),
             ("zone-by-zone hot utility", site.zone_by_zone_hot_utility, "kW"),
@@ -180,41 +181,41 @@ def _summary(study: SiteStudy, page: _Page) -> str:
              ("site cold utility", site.site_cold_utility, "kW")]
     if site.saving_money is not None:
         rows.append(("saving per year (priced mains)", site.saving_money, "money/yr"))
-    intro = _p(f"Site of {len(site.zones)} zones and {len(site.mains)} mains at ΔTmin {site.dt_min:g} K "
-               f"({study.dt_min_note}). Every number below is a screening estimate; see “Safety and limits”.")
-    return intro + _long_table(rows, "Key results", "summary-table")
+    intro = paragraph(f"Site of {len(site.zones)} zones and {len(site.mains)} mains at ΔTmin {site.dt_min:g} K "
+                      f"({study.dt_min_note}). Every number below is a screening estimate; see “Safety and limits”.")
+    return intro + long_table(rows, "Key results", "summary-table")
 
 
-def _inputs(study: SiteStudy, page: _Page) -> str:
+def _inputs(study: SiteStudy, page: Page) -> str:
     import pandas as pd
 
     site = study.site
     frame = pd.DataFrame([{"zone": z.name, "file": study.zone_sources.get(z.name, "given in code"),
                            "hot streams [-]": len(z.targets.streams.hot),
                            "cold streams [-]": len(z.targets.streams.cold)} for z in site.zones])
-    parts = [_p("Each zone's stream table, converted to canonical units (°C, kW/K); the mains table gives each "
-                "main's temperature, kind and price."),
-             _frame_table(frame, "Zones as read", "zones-input-table")]
+    parts = [paragraph("Each zone's stream table, converted to canonical units (°C, kW/K); the mains table gives "
+                       "each main's temperature, kind and price."),
+             frame_table(frame, "Zones as read", "zones-input-table")]
     mains = study.frames["mains"]
     if len(mains):
-        parts.append(_frame_table(mains[["main", "kind", "T [°C]", "price [money/kW·yr]"]],
-                                  f"Mains as read ({study.mains_source or 'given'})", "mains-input-table"))
+        parts.append(frame_table(mains[["main", "kind", "T [°C]", "price [money/kW·yr]"]],
+                                 f"Mains as read ({study.mains_source or 'given'})", "mains-input-table"))
     return "".join(parts)
 
 
-def _zones(study: SiteStudy, page: _Page) -> str:
+def _zones(study: SiteStudy, page: Page) -> str:
     from .site_figures import zone_profiles_figure
 
     return "".join([
-        _p("Each zone targeted on its own at its ΔTmin: minimum hot and cold utility, pinch, and the heat it needs "
-           "above the hottest steam main and rejects below the coldest one."),
-        _frame_table(study.frames["zones"], "Targets of each zone", "zones-table"),
+        paragraph("Each zone targeted on its own at its ΔTmin: minimum hot and cold utility, pinch, and the heat "
+                  "it needs above the hottest steam main and rejects below the coldest one."),
+        frame_table(study.frames["zones"], "Targets of each zone", "zones-table"),
         page.figure("fig-zone-profiles", lambda: zone_profiles_figure(study.site),
                     "Source (left of zero) and sink (right) profiles of each zone on the utility temperature "
                     "scale, with the mains.")])
 
 
-def _mains(study: SiteStudy, page: _Page) -> str:
+def _mains(study: SiteStudy, page: Page) -> str:
     from .site_figures import site_profiles_figure
 
     site = study.site
@@ -222,13 +223,14 @@ def _mains(study: SiteStudy, page: _Page) -> str:
                          "Site source and sink profiles against utility temperature, with every main and the steam "
                          "raised and used there.")]
     if not site.mains:
-        parts.append(_p("No mains were given: the zones exchange no heat and the site targets are the zones' own."))
+        parts.append(paragraph("No mains were given: the zones exchange no heat and the site targets are the "
+                               "zones' own."))
         return "".join(parts)
-    parts += [_frame_table(study.frames["mains"], "Balance of each main: steam raised by the zones, used by the "
-                           "zones, let down, from boilers; duties zone by zone and across the site",
-                           "mains-table"),
-              _frame_table(study.frames["zone mains"], "Steam of each zone at each main (net export: + the zone "
-                           "could raise it, − the zone must take it)", "zone-steam-table")]
+    parts += [frame_table(study.frames["mains"], "Balance of each main: steam raised by the zones, used by the "
+                          "zones, let down, from boilers; duties zone by zone and across the site",
+                          "mains-table"),
+              frame_table(study.frames["zone mains"], "Steam of each zone at each main (net export: + the zone "
+                          "could raise it, − the zone must take it)", "zone-steam-table")]
     rows = [("site hot utility", site.site_hot_utility, "kW"), ("zone-by-zone hot utility",
                                                                 site.zone_by_zone_hot_utility, "kW"),
             ("site cold utility", site.site_cold_utility, "kW"),
@@ -238,37 +240,35 @@ def _mains(study: SiteStudy, page: _Page) -> str:
         rows += [("site cost of the priced mains", site.site_cost, "money/yr"),
                  ("zone-by-zone cost of the priced mains", site.zone_by_zone_cost, "money/yr"),
                  ("saving per year", site.saving_money, "money/yr")]
-    parts.append(_long_table(rows, "Saving against zone-by-zone targeting", "saving-table"))
+    parts.append(long_table(rows, "Saving against zone-by-zone targeting", "saving-table"))
     return "".join(parts)
 
 
-def _scenarios(study: SiteStudy, page: _Page) -> str:
+def _scenarios(study: SiteStudy, page: Page) -> str:
     from .scenario_figures import scenario_cost_figure
 
     sc = study.scenarios
     if isinstance(sc, NotComputed):
         return page.missing("Price scenarios", "the price-scenario study", sc.reason)
     frames = sc.frames()
-    parts = [_p(f"Each zone's total annual cost target against ΔTmin under {len(sc.scenarios)} price scenarios "
-                f"({len(sc.cases)} cases), the optimum ΔTmin of every zone under every scenario, and the site "
-                "total at those optima. Zones are targeted alone here (no heat through the mains)."),
+    parts = [paragraph(f"Each zone's total annual cost target against ΔTmin under {len(sc.scenarios)} price "
+                       f"scenarios ({len(sc.cases)} cases), the optimum ΔTmin of every zone under every scenario, "
+                       "and the site total at those optima. Zones are targeted alone here (no heat through the "
+                       "mains)."),
              page.figure("fig-scenario-costs", lambda: scenario_cost_figure(sc),
                          "Total annual cost target against ΔTmin for each zone, one line per price scenario; dots "
                          "mark each scenario's optimum."),
-             _frame_table(frames["optima"], "Optimum ΔTmin of each zone under each price scenario", "optima-table"),
-             _frame_table(frames["totals"], "Site total at each zone's optimum, per scenario", "totals-table")]
+             frame_table(frames["optima"], "Optimum ΔTmin of each zone under each price scenario", "optima-table"),
+             frame_table(frames["totals"], "Site total at each zone's optimum, per scenario", "totals-table")]
     return "".join(parts)
 
 
-def _methods(study: SiteStudy, page: _Page) -> str:
-    return _methods_table(site_methods(study), "Methods used")
+def _methods(study: SiteStudy, page: Page) -> str:
+    return methods_table(site_methods(study), "Methods used")
 
 
-def _about(study: SiteStudy, page: _Page) -> str:
-    rows = [("made by", f"heatloom {study.version}"), ("made on", study.created)]
-    rows += [(f"input: {k}", v) for k, v in study.sources.items()]
-    rows.append(("workbook", "study.xlsx beside this page: every table, one sheet per result"))
-    return _about_table(rows, study.command)
+def _about(study: SiteStudy, page: Page) -> str:
+    return about_table(study, study.command)
 
 
 def render_site_report(study: SiteStudy) -> RenderedReport:
@@ -289,13 +289,13 @@ def render_site_report(study: SiteStudy) -> RenderedReport:
     (2, ['summary', 'inputs', 'assumptions', 'zones', 'mains', 'safety', 'methods', 'about'])
     """
     plan = [("summary", "Summary", _summary), ("inputs", "Input data", _inputs),
-            ("assumptions", "Assumptions and defaults", _assumptions), ("zones", "Targets of each zone", _zones),
+            ("assumptions", "Assumptions and defaults", assumptions_section), ("zones", "Targets of each zone", _zones),
             ("mains", "Site profiles, steam mains and saving", _mains)]
     if study.scenarios is not None:
         plan.append(("scenarios", "Price scenarios", _scenarios))
-    plan += [("safety", "Safety and limits", _safety), ("methods", "Methods and references", _methods),
+    plan += [("safety", "Safety and limits", safety_section), ("methods", "Methods and references", _methods),
              ("about", "About this report", _about)]
-    return build_page(study, plan, _Page(), lede="Site study")
+    return build_page(study, plan, Page(), lede="Site study")
 
 
 def site_sheets(study: SiteStudy) -> dict:

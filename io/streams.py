@@ -40,8 +40,9 @@ import numpy as np
 
 from ..errors import InputError
 from ..model import Segment, Stream, StreamTable
-from .points import DEFAULT_FIT_TOLERANCE, _tolerance, fit_vertices, point_problem
-from .tables import IGNORE, Cells, Table, find_header, load_cells, parse_column_mapping, read_table
+from .cells import Cells, cell_text, load_cells
+from .points import DEFAULT_FIT_TOLERANCE, check_fit_tolerance, fit_vertices, point_problem
+from .tables import IGNORE, Table, find_header, parse_column_mapping, read_table
 
 __all__ = ["SEGMENT_COLUMNS", "POINT_COLUMNS", "read_streams"]
 
@@ -95,7 +96,7 @@ def read_streams(path: str | os.PathLike, *, sheet: str | None = None,
     >>> s.supply_temperature, s.target_temperature, s.duty
     (100.0, 0.0, 200.0)
     """
-    tolerance = _tolerance(fit_tolerance)
+    tolerance = check_fit_tolerance(fit_tolerance)
     mapping = parse_column_mapping(columns)
     cells = load_cells(path, sheet=sheet)
     if _is_point_layout(cells, mapping):
@@ -129,18 +130,21 @@ def _is_point_layout(cells: Cells, mapping: Mapping[str, str]) -> bool:
 
 def _as_written(table: Table, name: str, i: int) -> str:
     col = table.columns[name]
-    cell = col.cells[i]
-    text = (str(int(cell)) if cell.is_integer() else repr(cell)) if isinstance(cell, float) else str(cell).strip()
     unit = col.unit or (col.conversion.kind.canonical if col.conversion is not None else "")
-    return f"{text} {unit}".strip()
+    return f"{cell_text(col.cells[i])} {unit}".strip()
 
 
 def _first(mask: np.ndarray) -> int | None:
     return int(np.argmax(mask)) if mask.any() else None
 
 
-def _optional(table: Table, name: str, what: str, n: int) -> np.ndarray:
-    return table.numbers(name, required=False, what=what) if name in table else np.full(n, np.nan)
+def _check_film_and_contribution(table: Table, h: np.ndarray, dtc: np.ndarray) -> None:
+    """Film coefficients h [kW/(m²·K)] must be > 0 and ΔTmin contributions [K] >= 0 where given (not NaN)."""
+    if (i := _first(~np.isnan(h) & ~(h > 0))) is not None:
+        raise table.error(f"film coefficient h must be > 0, got {_as_written(table, 'h', i)}", index=i, column="h")
+    if (i := _first(~np.isnan(dtc) & ~(dtc >= 0))) is not None:
+        raise table.error(f"ΔTmin contribution must be >= 0, got {_as_written(table, 'dT_min_contrib', i)}",
+                          index=i, column="dT_min_contrib")
 
 
 def _groups(table: Table, names: list[str]) -> list[tuple[int, int]]:
@@ -171,10 +175,10 @@ def _segment_streams(table: Table) -> list[Stream]:
     names = table.text("name")
     ts = table.numbers("T_supply", what="supply temperature")
     tt = table.numbers("T_target", what="target temperature")
-    cp = _optional(table, "CP", "heat capacity flow rate CP", n)
-    duty = _optional(table, "duty", "duty", n)
-    h = _optional(table, "h", "film coefficient h", n)
-    dtc = _optional(table, "dT_min_contrib", "ΔTmin contribution", n)
+    cp = table.optional_numbers("CP", what="heat capacity flow rate CP")
+    duty = table.optional_numbers("duty", what="duty")
+    h = table.optional_numbers("h", what="film coefficient h")
+    dtc = table.optional_numbers("dT_min_contrib", what="ΔTmin contribution")
     runs = _groups(table, names)
 
     if (i := _first(ts == tt)) is not None:
@@ -198,12 +202,7 @@ def _segment_streams(table: Table) -> list[Stream]:
                           f"{cp[i] * span[i]:.6g} kW (more than {_CP_DUTY_RTOL:g} relative); give one of "
                           "them or make them agree", index=i, column="duty")
     cp = np.where(np.isnan(cp), cp_from_duty, cp)
-    if (i := _first(~np.isnan(h) & ~(h > 0))) is not None:
-        raise table.error(f"film coefficient h must be > 0, got {_as_written(table, 'h', i)}", index=i,
-                          column="h")
-    if (i := _first(~np.isnan(dtc) & ~(dtc >= 0))) is not None:
-        raise table.error(f"ΔTmin contribution must be >= 0, got {_as_written(table, 'dT_min_contrib', i)}",
-                          index=i, column="dT_min_contrib")
+    _check_film_and_contribution(table, h, dtc)
     if "kind" in table:
         for i, k in enumerate(table.text("kind")):
             if not k:
@@ -246,17 +245,12 @@ def _per_stream(table: Table, values: np.ndarray, name: str, what: str, a: int, 
 
 
 def _point_streams(table: Table, tolerance: float) -> list[Stream]:
-    n = len(table)
     names = table.text("name")
     t = table.numbers("T", what="temperature")
     q = table.numbers("Q_cumulative", what="cumulative duty")
-    h = _optional(table, "h", "film coefficient h", n)
-    dtc = _optional(table, "dT_min_contrib", "ΔTmin contribution", n)
-    if (i := _first(~np.isnan(h) & ~(h > 0))) is not None:
-        raise table.error(f"film coefficient h must be > 0, got {_as_written(table, 'h', i)}", index=i, column="h")
-    if (i := _first(~np.isnan(dtc) & ~(dtc >= 0))) is not None:
-        raise table.error(f"ΔTmin contribution must be >= 0, got {_as_written(table, 'dT_min_contrib', i)}",
-                          index=i, column="dT_min_contrib")
+    h = table.optional_numbers("h", what="film coefficient h")
+    dtc = table.optional_numbers("dT_min_contrib", what="ΔTmin contribution")
+    _check_film_and_contribution(table, h, dtc)
     streams = []
     for a, b in _groups(table, names):
         tg, qg = t[a:b], q[a:b]

@@ -14,7 +14,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .figures import STYLE, _axes
+from .figures import STYLE, new_axes
 
 __all__ = ["cost_figure", "targets_figure"]
 
@@ -39,7 +39,7 @@ def cost_figure(sweep, *, title: str | None = None):
     title : str, optional
     """
     cur = sweep.currency
-    fig, ax = _axes(title or "Cost targets against ΔTmin", "ΔTmin [K]", f"Annual cost [{cur}/year]")
+    fig, ax = new_axes(title or "Cost targets against ΔTmin", "ΔTmin [K]", f"Annual cost [{cur}/year]")
     x, energy = _series(sweep, "energy_cost")
     _, capital = _series(sweep, "capital_cost")
     _, total = _series(sweep, "total_annual_cost")
@@ -74,7 +74,7 @@ def targets_figure(sweep, *, title: str | None = None):
     sweep : heatloom.studies.sweep.Sweep
     title : str, optional
     """
-    fig, ax = _axes(title or "Energy and area targets against ΔTmin", "ΔTmin [K]", "Utility duty [kW]")
+    fig, ax = new_axes(title or "Energy and area targets against ΔTmin", "ΔTmin [K]", "Utility duty [kW]")
     x, hot = _series(sweep, "hot_utility")
     _, cold = _series(sweep, "cold_utility")
     _, area = _series(sweep, "area")

@@ -2,11 +2,9 @@
 
 The readers of stream, utility and temperature–duty tables all go through here.  What is handled:
 
-* **Files.** CSV (or any text table) with comma, semicolon, tab or ``|`` delimiters, sniffed from the
-  file; UTF-8 with or without BOM, UTF-16 with BOM, else Windows-1252 / Latin-1.  With a semicolon
-  delimiter a decimal comma (``2,5``) is accepted.  Excel workbooks ``.xlsx``/``.xlsm`` (a named
-  sheet, else the first); stored values are read, formulas are not evaluated.  The file is only read,
-  never written.
+* **Files.** CSV (or any text table) and Excel workbooks, loaded as a raw grid of cells by
+  :func:`heatloom.io.cells.load_cells` (delimiters, encodings, sheets).  With a semicolon delimiter a
+  decimal comma (``2,5``) is accepted.  The file is only read, never written.
 * **Header.** Title lines above the header are skipped: the header is the first row (among the first
   100) with at least two recognisable column names.  A *units row* right under the header (cells
   such as ``°C``, ``[kW/K]``, ``-``) is recognised and used.  Units may also be written in the header
@@ -22,33 +20,25 @@ The readers of stream, utility and temperature–duty tables all go through here
 
 from __future__ import annotations
 
-import codecs
-import csv
-import datetime as _dt
-import io as _io
 import os
 import re
 import unicodedata
-import zipfile
-from collections import Counter
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
-from pathlib import Path
 
 import numpy as np
 
 from ..errors import InputError
 from ..model import ABSOLUTE_ZERO
+from .cells import Cells, cell_text, load_cells
 from .units import QuantityKind, UnitConversion, parse_unit
 
 __all__ = [
     "ALIASES",
     "COLUMN_KINDS",
     "IGNORE",
-    "Cells",
     "TableColumn",
     "Table",
-    "load_cells",
     "read_table",
     "find_header",
     "parse_column_mapping",
@@ -106,9 +96,6 @@ a temperature–duty table."""
 _HEADER_SCAN_ROWS = 100
 _UNIT_LABEL = re.compile(r"^[\[(]?\s*(?:-|–|—|units?|uom|dim\.?|)\s*:?\s*[\])]?$", re.IGNORECASE)
 _SEPARATORS = re.compile(r"[\s_\-.]+")
-_XLSX_SUFFIXES = (".xlsx", ".xlsm", ".xltx", ".xltm")
-_CONTROL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f]")
-_OLE2 = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
 
 
 def normalise_name(text: str) -> str:
@@ -234,165 +221,6 @@ def parse_column_mapping(text: str | Mapping[str, str] | None, columns: Sequence
 
 
 @dataclass(frozen=True, eq=False)
-class Cells:
-    """The raw grid of a text table or worksheet: ``rows[i]`` is spreadsheet row ``i + 1``.
-
-    Cells are strings (text files, text cells) or floats (numeric workbook cells); empty cells are ``""``.
-    """
-
-    source: str
-    rows: list[list]
-    sheet: str | None = None
-    decimal_comma: bool = False
-
-    @property
-    def label(self) -> str:
-        """File (and sheet) as named in messages."""
-        return self.source if self.sheet is None else f"{self.source}, sheet '{self.sheet}'"
-
-
-def _decode(data: bytes, source: str) -> str:
-    if data.startswith(codecs.BOM_UTF8):
-        data = data[len(codecs.BOM_UTF8):]
-    elif data.startswith((codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE)):
-        try:
-            return data.decode("utf-16")
-        except UnicodeDecodeError:
-            raise InputError("cannot read the file: it starts like UTF-16 text but is not", file=source) from None
-    if b"\x00" in data:
-        raise InputError("this is not a text table (binary content); give a CSV file or an .xlsx workbook",
-                         file=source)
-    text = None
-    for encoding in ("utf-8", "cp1252", "latin-1"):
-        try:
-            text = data.decode(encoding)
-            break
-        except UnicodeDecodeError:
-            continue
-    assert text is not None  # latin-1 decodes any bytes
-    control = len(_CONTROL.findall(text))
-    if control > max(2, len(text) // 100):
-        raise InputError("this is not a text table (binary content); give a CSV file or an .xlsx workbook",
-                         file=source)
-    return text
-
-
-def _sniff(text: str) -> str:
-    lines = [line for line in text[:65536].splitlines() if line.strip()][:60]
-    best, best_score = ",", (0, 0)
-    for delimiter in (",", ";", "\t", "|"):
-        counts = [len(r) for r in csv.reader(lines, delimiter=delimiter)]
-        multi = [c for c in counts if c > 1]
-        if not multi:
-            continue
-        mode, freq = Counter(multi).most_common(1)[0]
-        if (freq, mode) > best_score:
-            best, best_score = delimiter, (freq, mode)
-    return best
-
-
-def _load_text(data: bytes, source: str) -> Cells:
-    text = _decode(data, source)
-    if not text.strip():
-        raise InputError("the file is empty", file=source)
-    delimiter = _sniff(text)
-    try:
-        rows = list(csv.reader(_io.StringIO(text, newline=""), delimiter=delimiter))
-    except csv.Error as e:
-        raise InputError(f"cannot read the file as a delimited text table: {e}", file=source) from None
-    return Cells(source, rows, None, decimal_comma=delimiter == ";")
-
-
-def _excel_value(v):
-    if v is None:
-        return ""
-    if isinstance(v, bool):
-        return "TRUE" if v else "FALSE"
-    if isinstance(v, (int, float)):
-        return float(v)
-    if isinstance(v, (_dt.datetime, _dt.date, _dt.time)):
-        return v.isoformat()
-    return str(v)
-
-
-def _load_workbook(data: bytes, source: str, sheet: str | None) -> Cells:
-    import openpyxl
-    from openpyxl.utils.exceptions import InvalidFileException
-
-    try:
-        wb = openpyxl.load_workbook(_io.BytesIO(data), read_only=True, data_only=True)
-    except (zipfile.BadZipFile, InvalidFileException, KeyError, ValueError, OSError, EOFError, TypeError) as e:
-        why = "it is not a zip archive" if isinstance(e, zipfile.BadZipFile) else str(e) or type(e).__name__
-        raise InputError(f"cannot read the file as an .xlsx workbook ({why}); save it again as .xlsx or CSV",
-                         file=source) from None
-    try:
-        names = list(wb.sheetnames)
-        if sheet is None:
-            sheets = [ws for ws in wb.worksheets if hasattr(ws, "iter_rows")]
-            if not sheets:
-                raise InputError("the workbook has no worksheet", file=source)
-            ws = sheets[0]
-        else:
-            wanted = str(sheet).strip()
-            match = [n for n in names if n == wanted] or [n for n in names if n.strip().casefold() == wanted.casefold()]
-            if not match:
-                raise InputError(f"no sheet named '{sheet}'; sheets: {', '.join(repr(n) for n in names)}",
-                                 file=source)
-            ws = wb[match[0]]
-            if not hasattr(ws, "iter_rows"):
-                raise InputError(f"sheet '{match[0]}' is a chart, not a table", file=source)
-        title = ws.title
-        rows = [[_excel_value(v) for v in row] for row in ws.iter_rows(values_only=True)]
-    finally:
-        wb.close()
-    cells = Cells(source, rows, title)
-    if not any(c != "" for row in rows for c in row):
-        raise InputError("the sheet is empty", file=cells.label)
-    return cells
-
-
-def load_cells(path: str | os.PathLike, *, sheet: str | None = None) -> Cells:
-    """Read the raw grid of a CSV file or a worksheet (no interpretation of headers or units).
-
-    Parameters
-    ----------
-    path : str or path-like
-        A text table (``.csv``, ``.txt``, ``.tsv``...) or an ``.xlsx``/``.xlsm`` workbook; the type
-        is taken from the content (a zip archive is a workbook), not only from the suffix.
-    sheet : str, optional
-        Worksheet name (workbooks only); default the first worksheet.
-
-    Raises
-    ------
-    InputError
-        Missing file, a directory, unreadable or binary content, an old ``.xls`` file, an empty file,
-        an unknown sheet (the message lists the sheets), a sheet given for a text file.
-    """
-    source = os.fspath(path)
-    p = Path(source)
-    if not p.exists():
-        raise InputError("file not found", file=source)
-    if p.is_dir():
-        raise InputError("this is a directory, not a table file", file=source)
-    try:
-        data = p.read_bytes()
-    except OSError as e:
-        raise InputError(f"cannot read the file ({e.strerror or e})", file=source) from None
-    if not data.strip():
-        raise InputError("the file is empty", file=source)
-    suffix = p.suffix.lower()
-    if data.startswith(b"PK\x03\x04") or suffix in _XLSX_SUFFIXES:
-        return _load_workbook(data, source, sheet)
-    if data.startswith(_OLE2) or suffix == ".xls":
-        raise InputError("old binary Excel files (.xls) are not read; save the sheet as .xlsx or CSV",
-                         file=source)
-    if sheet is not None:
-        raise InputError(f"a sheet ('{sheet}') was given but this is a text table, which has no sheets",
-                         file=source)
-    return _load_text(data, source)
-
-
-@dataclass(frozen=True, eq=False)
 class TableColumn:
     """One recognised column: canonical name, header as written, unit and raw cells."""
 
@@ -402,12 +230,6 @@ class TableColumn:
     unit: str | None
     conversion: UnitConversion | None
     cells: list = field(repr=False)
-
-
-def _cell_text(value) -> str:
-    if isinstance(value, float):
-        return str(int(value)) if value.is_integer() and abs(value) < 1e15 else repr(value)
-    return str(value).strip()
 
 
 def _filled(value) -> bool:
@@ -469,7 +291,13 @@ class Table:
 
     def text(self, name: str) -> list[str]:
         """Cells of a text column, stripped (``""`` where empty)."""
-        return [_cell_text(c) for c in self.columns[name].cells]
+        return [cell_text(c) for c in self.columns[name].cells]
+
+    def optional_numbers(self, name: str, *, what: str | None = None) -> np.ndarray:
+        """Cells of an optional numeric column as :meth:`numbers` reads them, all NaN when the table lacks it."""
+        if name not in self.columns:
+            return np.full(len(self), np.nan)
+        return self.numbers(name, required=False, what=what)
 
     def numbers(self, name: str, *, required: bool = True, what: str | None = None) -> np.ndarray:
         """Cells of a numeric column, converted to the canonical unit of the column.
@@ -503,7 +331,7 @@ class Table:
         bad = ~empty & ~np.isfinite(values)
         if bad.any():
             i = int(np.argmax(bad))
-            raise self.error(f"{what} must be a finite number, got {_cell_text(col.cells[i])!r}", index=i,
+            raise self.error(f"{what} must be a finite number, got {cell_text(col.cells[i])!r}", index=i,
                              column=name)
         if required and empty.any():
             i = int(np.argmax(empty))
@@ -517,7 +345,7 @@ class Table:
             if below.any():
                 i = int(np.argmax(below))
                 unit = col.unit or "°C"
-                raise self.error(f"{what} {_cell_text(col.cells[i])} {unit} is below absolute zero "
+                raise self.error(f"{what} {cell_text(col.cells[i])} {unit} is below absolute zero "
                                  f"({ABSOLUTE_ZERO} °C = 0 K = -459.67 °F)", index=i, column=name)
         return out
 
@@ -542,7 +370,7 @@ def _affine(c: UnitConversion) -> tuple[float, float, float, float]:
 
 
 def _row_texts(row: list) -> list[str]:
-    return [_cell_text(c) for c in row]
+    return [cell_text(c) for c in row]
 
 
 def find_header(cells: Cells, vocabulary: Sequence[str], columns: Mapping[str, str] | str | None = None, *,
@@ -622,7 +450,7 @@ def read_table(source: str | os.PathLike | Cells, vocabulary: Sequence[str], *,
 
     header_index, matches = find_header(cells, vocabulary, mapping, aliases=aliases)
     if header_index is None:
-        first = next((i for i, r in enumerate(rows) if any(_cell_text(c) for c in r)), None)
+        first = next((i for i, r in enumerate(rows) if any(cell_text(c) for c in r)), None)
         if first is None:
             raise InputError("the file holds no table", file=label)
         header_index = first

@@ -20,8 +20,6 @@ from __future__ import annotations
 import os
 from collections.abc import Mapping
 
-import numpy as np
-
 from ..errors import InputError
 from ..model import StreamTable, Utility, UtilityKind
 from .tables import read_table
@@ -85,7 +83,7 @@ def read_utilities(path: str | os.PathLike, *, sheet: str | None = None,
     ts = table.numbers("T_supply", what="supply temperature")
     tt = table.numbers("T_target", what="target temperature")
     cost = table.numbers("cost", what="cost")
-    h = table.numbers("h", required=False, what="film coefficient h") if "h" in table else np.full(n, np.nan)
+    h = table.optional_numbers("h", what="film coefficient h")
     kinds = table.text("kind") if "kind" in table else [""] * n
     if process is not None:
         temps = [t for s in process for g in s.segments for t in (g.supply_temperature, g.target_temperature)]

@@ -1,10 +1,6 @@
-"""The study and its workbook: one sheet per result of a study, units in the headers, number formats set.
+"""The study's workbook: one sheet per result of a study, units in the headers, number formats set.
 
-:class:`Study` gathers what one study run computed, each result or a :class:`NotComputed` saying why it
-is missing, with the assumptions and cautions of the run; the HTML report
-(:func:`heatloom.io.report.render_report`) and the workbook are both made from it.
-
-:func:`study_sheets` turns a :class:`Study` into pandas frames, one per sheet: the
+:func:`study_sheets` turns a :class:`heatloom.studies.study.Study` into pandas frames, one per sheet: the
 report's facts and assumptions (``about``), the streams as read, the utilities, the problem table, the
 targets, the units and costs of the designed networks, the ΔTmin sweep and, when an existing network was
 given, its retrofit diagnosis.  A result that was not computed keeps its sheet, holding one ``status``
@@ -14,32 +10,30 @@ input) with a bold frozen header, sized columns and a number format chosen from 
 
 Wide sheets carry the unit of every column in its header (``duty [kW]``); the long sheets (``about``,
 ``targets``, ``costs``, ``retrofit``) hold one quantity per row with a ``unit`` column, and the format of
-each value follows its row's unit.  :func:`number_formats` gives the Python and Excel formats of a unit;
-the HTML report uses the same ones, so the workbook and the report show the same digits.
+each value follows its row's unit (:func:`heatloom.io.formats.number_formats`).  The HTML report
+(:func:`heatloom.io.report.render_report`) shows the same tables with the same digits; the row builders
+here (:func:`target_rows`, :func:`cost_rows`, :func:`retrofit_rows`, :func:`utility_frame`,
+:func:`network_frame`, :func:`retrofit_option_frame`) serve both.
 """
 
 from __future__ import annotations
 
 import math
-import re
-from collections.abc import Mapping, Sequence
-from dataclasses import dataclass, field
+from collections.abc import Mapping
 
 import numpy as np
 
-from .. import defaults
-from ..model import StreamTable, Utility
+from ..studies.study import NotComputed, Study
+from .formats import column_units, number_formats
 
 __all__ = [
-    "NotComputed",
-    "RunSettings",
-    "Study",
     "SHEETS",
-    "unit_of",
-    "column_units",
-    "number_formats",
-    "format_number",
+    "RETROFIT_SHEETS",
     "network_frame",
+    "target_rows",
+    "utility_frame",
+    "cost_rows",
+    "retrofit_rows",
     "retrofit_option_frame",
     "study_sheets",
     "write_workbook",
@@ -52,381 +46,6 @@ SHEETS = ("about", "streams", "utilities", "problem table", "targets", "network 
 
 RETROFIT_SHEETS = ("retrofit", "retrofit units", "retrofit cross-pinch", "retrofit curve", "retrofit options")
 """Sheets added when an existing network was given."""
-
-# --------------------------------------------------------------------------------------------------
-# the study
-
-
-@dataclass(frozen=True)
-class NotComputed:
-    """A result that is missing from a study, and why.
-
-    Attributes
-    ----------
-    reason : str
-        In plain words, for the report.
-    error : str
-        Name of the exception that stopped the step (``InputError``, ``InfeasibleError``...), empty when
-        the step was not run or could not start.
-    """
-
-    reason: str
-    error: str = ""
-
-    def to_dict(self) -> dict:
-        return {"not_computed": self.reason, "error": self.error or None}
-
-
-@dataclass(frozen=True)
-class RunSettings:
-    """Settings of a study run, stated in the report.
-
-    Attributes
-    ----------
-    sweep_range : (float, float) or None
-        ΔTmin range of the sweep [K]; None when no sweep was asked for.
-    sweep_step : float or None
-        [K]
-    sweep_note : str
-        How the range was chosen.
-    capital_basis : str
-        What the target area is shared among for the capital cost target.
-    solver : str or None
-        MILP solver of the designs ("highs", "cbc"; None: the preferred installed one).
-    time_limit : float
-        Limit of each solve of the maximum-energy-recovery design [s].
-    tac : bool
-        Whether the lowest-total-annual-cost design was asked for.
-    emat : float or None
-        Exchanger minimum approach temperature of that design [K].
-    tac_time_limit : float or None
-        Wall-clock limit of that design [s].
-    tac_seed : int
-    command : str
-        The command line that made the report (for the record).
-    """
-
-    sweep_range: tuple[float, float] | None = None
-    sweep_step: float | None = None
-    sweep_note: str = "given"
-    capital_basis: str = "units_mer"
-    solver: str | None = None
-    time_limit: float = 60.0
-    tac: bool = False
-    emat: float | None = None
-    tac_time_limit: float | None = None
-    tac_seed: int = 0
-    command: str = ""
-
-
-def _not_run(what: str) -> NotComputed:
-    return NotComputed(f"{what} was not run")
-
-
-def _missing_h(streams: StreamTable, utilities: Sequence[Utility]) -> list[str]:
-    out = [f"stream '{s.name}'" for s in streams if any(g.film_coefficient is None for g in s.segments)]
-    return out + [f"utility '{u.name}'" for u in utilities if u.film_coefficient is None]
-
-
-@dataclass(frozen=True, eq=False)
-class Study:
-    """Everything one study run computed, for the report and the workbook.
-
-    Attributes
-    ----------
-    title : str
-    streams : StreamTable
-        As read, in canonical units.
-    dt_min : float
-        [K]
-    dt_min_note : str
-        How ΔTmin was chosen ("given", or the default and how to set it).
-    targets : Targets or NotComputed
-    utilities : tuple of Utility or None
-        The utility table given; None when none was (ideal utilities are then assumed).
-    costs : heatloom.network.CostSettings
-        Cost laws in force (given or the package defaults).
-    costs_source : str or None
-        File the costs came from; None for the package defaults.
-    default_film_coefficient : float or None
-        [kW/(m²·K)] assumed where a stream or utility has none.
-    area : AreaTargets or NotComputed
-    sweep : Sweep or NotComputed
-    design : Network or NotComputed
-        Maximum energy recovery, fewest units.
-    tac : Network or NotComputed
-        Lowest total annual cost found.
-    diagnosis : Diagnosis, NotComputed or None
-        None when no existing network was given.
-    retrofit : heatloom.retrofit.options.Retrofit, NotComputed or None
-        Ranked, costed retrofit options of the existing network; None when no existing network was given.
-    existing : ExistingNetwork or None
-    sources : dict
-        Role ("stream table", "utilities", "costs", "existing network") → file.
-    settings : RunSettings
-    safety_note : str
-        The command line's one-line caution.
-    notes : tuple of str
-        Other facts of the run (how a case folder was read, ...).
-    created : str
-        Date and time of the run (ISO 8601).
-    version : str
-        heatloom version.
-    """
-
-    title: str
-    streams: StreamTable
-    dt_min: float
-    dt_min_note: str
-    targets: object
-    utilities: tuple[Utility, ...] | None = None
-    costs: object = None
-    costs_source: str | None = None
-    default_film_coefficient: float | None = None
-    area: object = field(default_factory=lambda: _not_run("the area target"))
-    sweep: object = field(default_factory=lambda: _not_run("the ΔTmin sweep"))
-    design: object = field(default_factory=lambda: _not_run("the maximum-energy-recovery design"))
-    tac: object = field(default_factory=lambda: _not_run("the lowest-total-annual-cost design"))
-    diagnosis: object = None
-    retrofit: object = None
-    existing: object = None
-    sources: dict = field(default_factory=dict)
-    settings: RunSettings = field(default_factory=RunSettings)
-    safety_note: str = ""
-    notes: tuple[str, ...] = ()
-    created: str = ""
-    version: str = ""
-
-    def __post_init__(self) -> None:
-        if self.costs is None:
-            from ..model.costs import CostSettings
-
-            object.__setattr__(self, "costs", CostSettings())
-
-    @property
-    def currency(self) -> str:
-        return self.costs.currency
-
-    @property
-    def utilities_in_force(self) -> tuple[Utility, ...]:
-        """The utilities given, else the two assumed by design (:func:`heatloom.network.design.ideal_utilities`)."""
-        if self.utilities is not None:
-            return tuple(self.utilities)
-        from ..pinch.utilities import ideal_utilities
-
-        return tuple(ideal_utilities(self.streams, self.dt_min))
-
-    def missing_film_coefficients(self) -> list[str]:
-        """Streams and utilities in force without a film coefficient."""
-        return _missing_h(self.streams, self.utilities_in_force)
-
-    def assumption_rows(self) -> list[tuple[str, str, str]]:
-        """(assumption, value with units, basis) of every assumption and default of the run."""
-        cur = self.currency
-        s = self.settings
-        rows = [("ΔTmin", f"{self.dt_min:g} K, the minimum approach of every match and of the targets",
-                 self.dt_min_note)]
-        util = "; ".join(
-            f"{u.name} ({u.kind.value}) {u.supply_temperature:g} → {u.target_temperature:g} °C, "
-            f"{u.cost:g} {cur}/(kW·yr)"
-            + (f", h {u.film_coefficient:g} kW/(m²·K)" if u.film_coefficient is not None else ", no h")
-            for u in self.utilities_in_force)
-        if self.utilities is not None:
-            rows.append(("utilities", util, f"given ({self.sources.get('utilities', 'utility table')})"))
-        else:
-            rows.append(("utilities", "energy targets against ideal utilities (hotter and colder than every "
-                         f"process temperature); designs and costs against {util}",
-                         "assumed: no utility table given (package defaults, common practice); give --utilities"))
-        rows.append(("cost basis", self.costs.describe(),
-                     f"given ({self.costs_source})" if self.costs_source else "package defaults (no costs file)"))
-        missing = self.missing_film_coefficients()
-        h = self.default_film_coefficient
-        if not missing:
-            rows.append(("film coefficients", "given for every stream and utility (column h, kW/(m²·K))", "given"))
-        elif h is not None:
-            rows.append(("film coefficients", f"{h:g} kW/(m²·K) assumed for {', '.join(missing)}",
-                         "assumed (--default-h)"))
-        else:
-            rows.append(("film coefficients", f"missing for {', '.join(missing)}: no areas or costs",
-                         "not given (add an h column, or --default-h)"))
-        rows.append(("heat transfer", "counter-current, clean surfaces (no fouling allowance, no design margin), "
-                     "U from 1/U = 1/h_hot + 1/h_cold", "common practice for targets and screening designs"))
-        if s.sweep_range is not None:
-            basis = {"units_mer": "the minimum units for maximum energy recovery", "units": "the overall minimum "
-                     "units", "shells": "the minimum 1-2 shells"}.get(s.capital_basis, s.capital_basis)
-            rows.append(("ΔTmin sweep", f"{s.sweep_range[0]:g} to {s.sweep_range[1]:g} K by {s.sweep_step:g} K; "
-                         f"capital target: the target area shared among {basis}", s.sweep_note))
-        rows.append(("maximum-energy-recovery design",
-                     f"solver {s.solver or 'preferred installed (HiGHS, else CBC)'}, {s.time_limit:g} s per solve",
-                     "default" if s.solver is None else "given"))
-        if s.tac:
-            rows.append(("lowest-total-annual-cost design",
-                         f"EMAT {s.emat:g} K at both ends of every unit, {s.tac_time_limit:g} s for the whole "
-                         f"search, seed {s.tac_seed}", "given (--tac)"))
-        else:
-            rows.append(("lowest-total-annual-cost design", "not run", "add --tac to run it"))
-        rows.append(("existing network", self.sources.get("existing network", "none given"),
-                     "given" if "existing network" in self.sources else "retrofit diagnosis not run"))
-        r = self.retrofit
-        if r is not None and not isinstance(r, NotComputed):
-            rows.append(("retrofit options", f"every unit keeps at least {r.min_approach:g} K; NPV at "
-                         f"{100 * r.costs.interest_rate:g} % over {r.costs.years:g} years; "
-                         + r.retrofit_costs.describe(r.costs.currency),
-                         f"given ({self.costs_source})" if self.costs_source else "package defaults (no costs file)"))
-        return rows
-
-    def cautions(self) -> list[str]:
-        """The cautions of this run: the general one first, then those its inputs and results call for."""
-        out = [defaults.SAFETY_TEXT]
-        if self.safety_note:
-            out.append(self.safety_note)
-        out.append(f"ΔTmin {self.dt_min:g} K applies to every match: check that it suits the fluids and exchanger "
-                   "types (gases, fouling services and refrigeration usually need other values).")
-        if any(len(s.segments) > 1 for s in self.streams):
-            out.append("Streams of several segments (phase change, varying heat capacity) are only as good as "
-                       "their segmentation: a temperature cross hidden by averaged data can make a real exchanger "
-                       "fail to perform.")
-        if self.utilities is None:
-            out.append("No utility table was given: the targets assume ideal utilities and the designs assumed "
-                       "ones; the site's real steam levels and cooling water may be unable to serve them.")
-        missing = self.missing_film_coefficients()
-        if missing and self.default_film_coefficient is not None:
-            out.append(f"A film coefficient of {self.default_film_coefficient:g} kW/(m²·K) was assumed for "
-                       f"{', '.join(missing)}: every area and capital cost depends on it; replace it with values "
-                       "for the real fluids.")
-        out.append("Areas are for clean surfaces in pure counter-current flow: real exchangers need a fouling "
-                   "allowance and a design margin.")
-        if not isinstance(self.tac, NotComputed):
-            out.append(f"The lowest-cost network keeps only {self.settings.emat:g} K at the ends of its units "
-                       "(EMAT): such close approaches need exchanger types and controls that can hold them.")
-        if self.diagnosis is not None and not isinstance(self.diagnosis, NotComputed):
-            for p in self.diagnosis.simulation.problems:
-                out.append(f"Existing network as simulated: {p}")
-        if self.retrofit is not None and not isinstance(self.retrofit, NotComputed):
-            out.append("Retrofit options are simulated at fixed areas with the film coefficients given: before "
-                       "any change is made, check the plant's data sheets, pressure drops, pump and control "
-                       "margins, materials and fouling, and the cost estimates against vendor quotes.")
-        return out
-
-
-# --------------------------------------------------------------------------------------------------
-# units and formats
-
-
-_UNIT = re.compile(r"\[([^\[\]]*)\]\s*$")
-
-
-def unit_of(header: str) -> str | None:
-    """The unit written in brackets at the end of a column header, or None.
-
-    Examples
-    --------
-    >>> unit_of("duty [kW]"), unit_of("name")
-    ('kW', None)
-    """
-    m = _UNIT.search(str(header))
-    return m.group(1).strip() if m else None
-
-
-def column_units(frame) -> list[str | None]:
-    """The unit of each column of a frame, ``count`` for a dimensionless column of whole numbers.
-
-    Examples
-    --------
-    >>> import pandas as pd
-    >>> column_units(pd.DataFrame({"units [-]": [3.0, None], "share [-]": [0.5, 1.0], "name": ["a", "b"]}))
-    ['count', '-', None]
-    """
-    out = []
-    for c in frame.columns:
-        u = unit_of(c)
-        if u == "-":
-            vals = [v for v in frame[c].tolist() if isinstance(v, (int, float, np.integer, np.floating))
-                    and not isinstance(v, (bool, np.bool_)) and math.isfinite(float(v))]
-            if vals and all(float(v).is_integer() for v in vals) and "fraction" not in str(c):
-                u = "count"
-        out.append(u)
-    return out
-
-
-def number_formats(unit: str | None, value=None) -> tuple[str, str]:
-    """Python format and Excel number format of a value of this unit.
-
-    Temperatures to 0.1 °C, temperature differences to 0.01 K, duties and areas to 0.1, heat capacity
-    flow rates to 0.01 kW/K, film coefficients and dimensionless ratios to 0.001, annual money and money
-    once (a currency code such as ``USD``) to whole units, prices per kW·year and years to 0.01; whole
-    numbers (counts) as integers.
-
-    Parameters
-    ----------
-    unit : str or None
-        As written in a header (``°C``, ``kW``, ``USD/yr``...).
-    value : optional
-        The value, to tell counts (integers) from ratios.
-
-    Examples
-    --------
-    >>> number_formats("kW"), number_formats("-", 3)
-    (('{:,.1f}', '#,##0.0'), ('{:d}', '0'))
-    """
-    u = (unit or "").strip()
-    if isinstance(value, (bool, np.bool_)):
-        return "{}", "General"
-    if isinstance(value, (int, np.integer)):
-        return "{:d}", "0"
-    if u == "count":
-        return "{:,.0f}", "0"
-    if u == "°C":
-        return "{:,.1f}", "#,##0.0"
-    if u == "K":
-        return "{:,.2f}", "0.00"
-    if u in ("kW", "m²", "m2", "kW·yr"):
-        return "{:,.1f}", "#,##0.0"
-    if u == "kW/K":
-        return "{:,.2f}", "#,##0.00"
-    if u.startswith("kW/m") or u.startswith("kW/(m"):
-        return "{:.3f}", "0.000"
-    if u in ("m²K", "m²·K"):
-        return "{:,.2f}", "#,##0.00"
-    if ("yr" in u or "year" in u) and "kW" in u:
-        return "{:,.2f}", "#,##0.00"                      # a price per kW·year
-    if u in ("1/yr", "1/year"):
-        return "{:.4f}", "0.0000"
-    if "/yr" in u or "/year" in u or "per year" in u:
-        return "{:,.0f}", "#,##0"                          # annual money
-    if u in ("h/yr", "h/year", "years"):
-        return "{:,.0f}", "#,##0"
-    if u in ("yr", "year"):
-        return "{:,.2f}", "#,##0.00"                       # a payback
-    if u == "money" or re.fullmatch(r"[A-Z]{3}", u):
-        return "{:,.0f}", "#,##0"                          # money once (an investment, a net present value)
-    if u == "%":
-        return "{:.2f}", "0.00"
-    if u == "s":
-        return "{:.2f}", "0.00"
-    if u in ("-", ""):
-        return "{:.3f}", "0.000"
-    return "{:.4g}", "General"
-
-
-def format_number(value, unit: str | None = None) -> str:
-    """A value as the report and workbook show it (en dash for a missing one).
-
-    Examples
-    --------
-    >>> format_number(772.50000001, "kW"), format_number(None, "kW"), format_number(12, "-")
-    ('772.5', '–', '12')
-    """
-    if value is None:
-        return "–"
-    if isinstance(value, (float, np.floating)) and not math.isfinite(float(value)):
-        return "–"
-    if isinstance(value, (int, float, np.integer, np.floating)) and not isinstance(value, (bool, np.bool_)):
-        fmt, _ = number_formats(unit, value)
-        text = fmt.format(value.item() if hasattr(value, "item") else value)
-        return "0" + text[2:] if text.startswith("-0") and float(text.replace(",", "")) == 0 else text
-    return str(value)
-
 
 # --------------------------------------------------------------------------------------------------
 # frames
@@ -612,12 +231,12 @@ def retrofit_option_frame(retrofit):
                          for o in retrofit.options], columns=columns)
 
 
-def study_sheets(study) -> dict:
+def study_sheets(study: Study) -> dict:
     """The study's results as frames, one per workbook sheet (see :data:`SHEETS`).
 
     Parameters
     ----------
-    study : heatloom.io.report.Study
+    study : heatloom.studies.study.Study
 
     Returns
     -------

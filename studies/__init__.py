@@ -2,6 +2,7 @@
 
 from .scenarios import ScenarioCase, ScenarioOptimum, ScenarioStudy, ScenarioTotal, scenario_study
 from .sweep import Breakpoint, DesignPoint, Sweep, SweepPoint, describe_executor, sweep, sweep_point
+from .study import NotComputed, RunSettings, Study, compute_study, run_step
 
 __all__ = [
     "ScenarioCase",
@@ -16,4 +17,9 @@ __all__ = [
     "describe_executor",
     "sweep",
     "sweep_point",
+    "NotComputed",
+    "RunSettings",
+    "Study",
+    "compute_study",
+    "run_step",
 ]

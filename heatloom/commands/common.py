@@ -237,31 +237,94 @@ def finish(args, result: dict, summary: str, out) -> int:
 
 
 class ProgressBars:
-    """One tqdm bar per phase of a long run (``progress(phase, done, total)``), on stderr."""
+    """Progress of a long run as tqdm bars on stderr, and nothing at all when disabled (--quiet, --json).
 
-    def __init__(self, label: str, enabled: bool) -> None:
+    One object serves the three shapes of progress the commands show, each through a callback of its own
+    to hand to the API:
+
+    * ``bars(phase, done, total)``: a bar per phase of a run of many tasks (``sweep``, ``scenarios``); a
+      new phase closes the bar of the last one;
+    * ``bars.step(name)``: one bar over ``steps`` named steps (``report``), the step under way in its
+      description;
+    * ``bars.best(value, done, total)``: one bar over the rounds of a search (``design --mode tac``), the
+      best value so far after it, as ``describe_best(value)`` writes it.
+
+    Call :meth:`close` when the run ends (also when it fails), e.g. in a ``finally``.
+
+    Parameters
+    ----------
+    label : str
+        What runs (``"heatloom sweep"``), at the head of every bar.
+    enabled : bool
+        False draws nothing and imports nothing.
+    unit : str
+        What one count of a bar is (``"task"``, ``"step"``, ``"epoch"``).
+    steps : int, optional
+        Number of steps, for :meth:`step`.
+    describe_best : callable, optional
+        The text after the bar of :meth:`best` (default: the value).
+
+    Examples
+    --------
+    >>> bars = ProgressBars("heatloom report", enabled=False, unit="step", steps=2)
+    >>> bars.step("energy targets"); bars("cases", 1, 4); bars.best(1.5, 1, 10); bars.close()
+    """
+
+    def __init__(self, label: str, enabled: bool, *, unit: str = "task", steps: int | None = None,
+                 describe_best=None) -> None:
         self.label = label
         self.enabled = enabled
+        self.unit = unit
+        self.steps = steps
+        self.describe_best = describe_best or str
         self.bar = None
         self.phase = None
+        self.stepping = False
 
-    def __call__(self, phase: str, done: int, total: int) -> None:
-        if not self.enabled:
-            return
+    def _open(self, total: int | None, desc: str, **options):
         from tqdm import tqdm
 
+        return tqdm(total=total, desc=desc, unit=self.unit, file=sys.stderr, leave=False, **options)
+
+    def __call__(self, phase: str, done: int, total: int) -> None:
+        """``done`` of ``total`` tasks of ``phase``: a bar per phase."""
+        if not self.enabled:
+            return
         if phase != self.phase:
             self.close()
             self.phase = phase
-            self.bar = tqdm(total=total, desc=f"{self.label}: {phase}", unit="task", file=sys.stderr,
-                            leave=False)
+            self.bar = self._open(total, f"{self.label}: {phase}")
         self.bar.n = done
         self.bar.refresh()
 
+    def step(self, name: str) -> None:
+        """Step ``name`` begins (the one before it is done)."""
+        if not self.enabled:
+            return
+        if self.bar is None:
+            self.bar = self._open(self.steps, self.label, bar_format="{desc} {n_fmt}/{total_fmt} |{bar:20}| {elapsed}")
+            self.stepping = True
+        else:
+            self.bar.update(1)
+        self.bar.set_description_str(f"{self.label}: {name[:36]:<36}")
+
+    def best(self, value: float, done: int, total: int) -> None:
+        """``done`` of ``total`` rounds of a search, ``value`` the best found so far."""
+        if not self.enabled:
+            return
+        if self.bar is None:
+            self.bar = self._open(total, self.label)
+        self.bar.n = done
+        self.bar.set_postfix_str(self.describe_best(value))
+
     def close(self) -> None:
+        """End the bar under way (a bar of steps is first filled: the run is over)."""
         if self.bar is not None:
+            if self.stepping:
+                self.bar.update(self.bar.total - self.bar.n)
             self.bar.close()
             self.bar = None
+            self.stepping = False
 
 
 # --------------------------------------------------------------------------------------------------

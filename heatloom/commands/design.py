@@ -3,10 +3,10 @@
 from __future__ import annotations
 
 import argparse
-import sys
 
 from .. import defaults
 from .common import (
+    ProgressBars,
     add_shared,
     add_table_options,
     dt_min_of,
@@ -78,29 +78,6 @@ def register(sub) -> None:
                      help="kicks of the iterated local search per start (default 40)")
     p.set_defaults(handler=run)
 
-
-class _Progress:
-    """A tqdm bar on stderr: epochs of the search, with the best total annual cost so far."""
-
-    def __init__(self, enabled: bool, currency: str = ""):
-        self.enabled = enabled
-        self.bar = None
-        self.currency = currency
-
-    def __call__(self, best: float, done: int, total: int) -> None:
-        if not self.enabled:
-            return
-        if self.bar is None:
-            from tqdm import tqdm
-
-            self.bar = tqdm(total=total, desc="heatloom design --mode tac", unit="epoch", file=sys.stderr,
-                            leave=False)
-        self.bar.n = done
-        self.bar.set_postfix_str(f"best TAC {best:,.0f} {self.currency}/yr")
-
-    def close(self) -> None:
-        if self.bar is not None:
-            self.bar.close()
 
 def format_network(net, source: str, dt_note: str, approach: str = "ΔTmin") -> str:
     """The human summary of a design: one line per unit, then the costs."""
@@ -175,12 +152,14 @@ def run(args) -> int:
         from .. import defaults as network_data
         from ..network.tac.search import design_tac
 
-        bar = _Progress(not (args.quiet or args.json), costs.currency if costs is not None else network_data.CURRENCY)
+        currency = costs.currency if costs is not None else network_data.CURRENCY
+        bar = ProgressBars("heatloom design --mode tac", not (args.quiet or args.json), unit="epoch",
+                           describe_best=lambda best: f"best TAC {best:,.0f} {currency}/yr")
         try:
             net = design_tac(streams, utilities, costs=costs, emat=dt_min,
                              time_limit=args.time_limit or defaults.TAC_TIME_LIMIT, seed=args.seed, starts=args.starts,
                              rounds=args.rounds, solver=args.solver, default_film_coefficient=args.default_h,
-                             progress=bar)
+                             progress=bar.best)
         finally:
             bar.close()
     else:

@@ -1,11 +1,14 @@
 """``heatloom report``: the whole study of a stream table or a case folder, as an HTML report and a workbook.
 
-One command runs every step that applies: energy targets, area/units/shells/cost targets, the ΔTmin sweep,
-the maximum-energy-recovery design, the lowest-total-annual-cost design (with ``--tac``) and, when an
-existing network is given, its retrofit diagnosis; then it writes ``report.html`` (self-contained: inline
-SVG figures, no script) and ``study.xlsx`` (one sheet per result).  A step that cannot run (a missing film
-coefficient, a part of heatloom not installed, a solver failure) does not stop the report: its section
-says what was not computed and why.
+One command runs every step that applies (:func:`heatloom.studies.study.compute_study`): energy targets,
+area/units/shells/cost targets, the ΔTmin sweep, the maximum-energy-recovery design, the
+lowest-total-annual-cost design (with ``--tac``) and, when an existing network is given, its retrofit
+diagnosis and options; then it writes ``report.html`` (:func:`heatloom.io.report.render_report`;
+self-contained: inline SVG figures, no script) and ``study.xlsx`` (:func:`heatloom.io.workbook.study_sheets`,
+one sheet per result).  A step that cannot run (a missing film coefficient, a part of heatloom not
+installed, a solver failure) does not stop the report: its section says what was not computed and why.
+A site folder gives the site report instead (:func:`run_site`).  This module only reads the options and
+the input files, calls the study and hands the results to the writers.
 """
 
 from __future__ import annotations
@@ -15,13 +18,14 @@ import sys
 from pathlib import Path
 
 from .. import defaults
-from ..errors import HeatloomError, InputError
+from ..errors import InputError
 from .common import (
     CASE_ROLES,
     EXIT_INFEASIBLE,
     EXIT_INPUT,
     EXIT_OK,
     EXIT_UNEXPECTED,
+    ProgressBars,
     add_shared,
     add_table_options,
     case_candidates,
@@ -34,7 +38,7 @@ from .common import (
     read_scenario_inputs,
 )
 
-__all__ = ["register", "run", "run_site", "is_site_folder", "find_case_files", "compute_study", "OUTPUT_FILES", ]
+__all__ = ["register", "run", "run_site", "is_site_folder", "find_case_files", "site_scenarios", "OUTPUT_FILES"]
 
 OUTPUT_FILES = ("report.html", "study.xlsx")
 """Files written into the output folder."""
@@ -156,170 +160,7 @@ def _out_folder(args, files: dict[str, Path]) -> Path:
 
 
 # --------------------------------------------------------------------------------------------------
-# the study
-
-
-def _failed(what: str, e: BaseException) -> str:
-    if isinstance(e, ImportError):
-        return f"{what} is not available in this installation of heatloom ({e})"
-    if isinstance(e, HeatloomError):
-        return str(e)
-    return f"{what} failed unexpectedly ({type(e).__name__}: {e}); please report it with the input files"
-
-
-def _step(fn, what: str, needs=()):
-    """fn() or NotComputed(reason): what a step gives the study."""
-    from ..io.report import NotComputed
-
-    for name, value in needs:
-        if isinstance(value, NotComputed):
-            return NotComputed(f"needs the {name}, which were not computed ({value.reason})")
-    try:
-        return fn()
-    except Exception as e:  # noqa: BLE001 - one step failing must not cost the whole report
-        return NotComputed(_failed(what, e), type(e).__name__)
-
-
-def compute_study(streams, dt_min: float, utilities=None, costs=None, *, existing=None, retrofit_costs=None,
-                  default_film_coefficient: float | None = None, settings=None, progress=None, **fields):
-    """Run every step of a study and gather the results (each a result or a NotComputed).
-
-    Parameters
-    ----------
-    streams : heatloom.model.StreamTable
-    dt_min : float
-        [K]
-    utilities : sequence of Utility, optional
-    costs : heatloom.network.CostSettings, optional
-    existing : heatloom.retrofit.existing.ExistingNetwork, optional
-        An existing network to diagnose and to find ranked, costed retrofit options for.
-    retrofit_costs : heatloom.retrofit.changes.RetrofitCosts, optional
-        Cost laws of the retrofit changes (default: the package's illustrative ones).
-    default_film_coefficient : float, optional
-        [kW/(m²·K)]
-    settings : heatloom.io.report.RunSettings, optional
-    progress : callable, optional
-        Called as ``progress(step_name)`` before each step.
-    **fields
-        Passed to :class:`heatloom.io.report.Study` (title, sources, notes, dt_min_note, ...).
-
-    Returns
-    -------
-    heatloom.io.report.Study
-    """
-    from ..io.report import NotComputed, RunSettings, Study
-    from ..model.costs import CostSettings
-
-    settings = settings or RunSettings()
-    fields.setdefault("title", "Heat-integration study")
-    fields.setdefault("dt_min_note", "given")
-    costs_in_force = costs or CostSettings()
-    tell = progress or (lambda name: None)
-    h = default_film_coefficient
-
-    tell("energy targets")
-
-    def targets():
-        from ..pinch import target
-
-        return target(streams, dt_min, utilities)
-
-    t = _step(targets, "targeting")
-
-    tell("area and cost targets")
-
-    def area():
-        from ..pinch.area import area_targets
-
-        return area_targets(t, costs_in_force, default_film_coefficient=h, capital_basis=settings.capital_basis)
-
-    a = _step(area, "the area and cost targets (heatloom.pinch.area)", [("energy targets", t)])
-    if isinstance(a, NotComputed) and "film coefficient" in a.reason and h is None:
-        a = NotComputed(a.reason + "; or give --default-h")
-
-    tell("ΔTmin sweep")
-
-    def sweep():
-        from ..studies.sweep import sweep as run_sweep
-
-        return run_sweep(streams, settings.sweep_range, utilities, costs_in_force, step=settings.sweep_step,
-                         workers=1, default_film_coefficient=h, capital_basis=settings.capital_basis)
-
-    w = _step(sweep, "the ΔTmin sweep (heatloom.studies.sweep)") if settings.sweep_range is not None else \
-        NotComputed("no ΔTmin range was given")
-
-    tell("network for maximum energy recovery")
-
-    def mer():
-        from ..network.design import design_mer
-
-        return design_mer(streams, dt_min, utilities, costs=costs_in_force, solver=settings.solver,
-                          time_limit=settings.time_limit, default_film_coefficient=h)
-
-    design = _step(mer, "the maximum-energy-recovery design", [("energy targets", t)])
-
-    tell("network of lowest total annual cost")
-    if settings.tac:
-        def tac():
-            from ..network.tac.search import design_tac
-
-            return design_tac(streams, utilities, costs=costs_in_force, emat=settings.emat,
-                              time_limit=settings.tac_time_limit, seed=settings.tac_seed, solver=settings.solver,
-                              default_film_coefficient=h)
-
-        tac_net = _step(tac, "the lowest-total-annual-cost design (heatloom.network.tac.search)")
-    else:
-        tac_net = NotComputed("not asked for: add --tac to search for the network of lowest total annual cost "
-                              f"(a heuristic search of up to --tac-time-limit, {settings.tac_time_limit or defaults.TAC_TIME_LIMIT:g} s by default)")
-
-    diagnosis = retrofit = None
-    if existing is not None:
-        tell("retrofit diagnosis")
-
-        def diagnose():
-            from ..retrofit.diagnose import diagnose as run
-
-            return run(existing, dt_min, default_film_coefficient=h)
-
-        diagnosis = _step(diagnose, "the retrofit diagnosis (heatloom.retrofit.diagnose)")
-        tell("retrofit options")
-
-        def options():
-            from ..retrofit.options import retrofit_options
-
-            return retrofit_options(existing, dt_min, costs=costs_in_force, retrofit_costs=retrofit_costs,
-                                    default_film_coefficient=h, solver=settings.solver)
-
-        retrofit = _step(options, "the retrofit options (heatloom.retrofit.options)")
-    return Study(streams=streams, dt_min=dt_min, targets=t, utilities=None if utilities is None else tuple(utilities),
-                 costs=costs_in_force, default_film_coefficient=h, area=a, sweep=w, design=design, tac=tac_net,
-                 diagnosis=diagnosis, retrofit=retrofit, existing=existing, settings=settings, safety_note=defaults.SAFETY_NOTE, **fields)
-
-
-class _Bar:
-    """A tqdm bar over the steps of the report, on stderr (silent when disabled)."""
-
-    def __init__(self, total: int, enabled: bool) -> None:
-        self.bar = None
-        if enabled:
-            from tqdm import tqdm
-
-            self.bar = tqdm(total=total, desc="heatloom report", unit="step", file=sys.stderr, leave=False,
-                            bar_format="{desc} {n_fmt}/{total_fmt} |{bar:20}| {elapsed}")
-        self.started = False
-
-    def __call__(self, name: str) -> None:
-        if self.bar is None:
-            return
-        if self.started:
-            self.bar.update(1)
-        self.started = True
-        self.bar.set_description_str(f"heatloom report: {name[:36]:<36}")
-
-    def close(self) -> None:
-        if self.bar is not None:
-            self.bar.update(self.bar.total - self.bar.n)
-            self.bar.close()
+# the study (heatloom.studies.study) and its writers
 
 
 SCENARIO_STEP = 5.0
@@ -332,8 +173,8 @@ def site_scenarios(args, zones, found: dict):
     Uses the folder's (or the command line's) utilities and costs, ``--default-h`` where film coefficients are
     missing, ``--hours-per-year`` for prices per energy and ``--sweep`` for the ΔTmin range.
     """
-    from ..io.workbook import NotComputed
     from ..studies.scenarios import scenario_study
+    from ..studies.study import NotComputed, run_step
 
     for role, files in found.items():
         if len(files) > 1:
@@ -351,7 +192,7 @@ def site_scenarios(args, zones, found: dict):
         return scenario_study(zones, args.sweep or defaults.SWEEP_RANGE, utilities, plans, costs, step=SCENARIO_STEP,
                               default_film_coefficient=args.default_h, workers=1)
 
-    return _step(run_study, "the price-scenario study (heatloom.studies.scenarios)")
+    return run_step(run_study, "the price-scenario study (heatloom.studies.scenarios)")
 
 
 def run_site(args) -> int:
@@ -423,9 +264,10 @@ def run(args) -> int:
     from .. import __version__
     from ..io import read_costs, read_streams, read_utilities
     from ..io.export import OutputDirectory
-    from ..io.report import NotComputed, RunSettings, render_report
+    from ..io.report import render_report
     from ..io.tables import parse_column_mapping
     from ..io.workbook import study_sheets, write_workbook
+    from ..studies.study import NotComputed, RunSettings, compute_study
 
     if is_site_folder(args.path):
         return run_site(args)
@@ -462,19 +304,19 @@ def run(args) -> int:
                            time_limit=args.time_limit, tac=args.tac, emat=emat, tac_time_limit=args.tac_time_limit,
                            command=_command_line(args))
     steps = 5 + 2 * (existing is not None) + 2
-    bar = _Bar(steps, enabled=not (args.quiet or args.json))
+    bar = ProgressBars("heatloom report", enabled=not (args.quiet or args.json), unit="step", steps=steps)
     path = Path(args.path)
     title = f"Heat-integration study: {path.name if path.is_dir() else path.stem}"
     sources = {role: str(p) for role, p in files.items()}
     try:
         study = compute_study(streams, dt_min, utilities, costs, existing=existing, retrofit_costs=retrofit_costs,
-                              default_film_coefficient=args.default_h, settings=settings, progress=bar,
+                              default_film_coefficient=args.default_h, settings=settings, progress=bar.step,
                               title=title, dt_min_note=dt_note, costs_source=sources.get("costs"), sources=sources,
                               notes=tuple(notes), version=__version__,
                               created=datetime.datetime.now().astimezone().isoformat(timespec="seconds"))
-        bar("HTML report")
+        bar.step("HTML report")
         rendered = render_report(study)
-        bar("workbook")
+        bar.step("workbook")
         sheets = study_sheets(study)          # everything is built before anything is written
         target = out.target("report.html")
         target.write_text(rendered.html, encoding="utf-8")

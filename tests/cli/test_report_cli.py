@@ -158,6 +158,33 @@ def test_summary_line_progress_and_quiet(case, capsys):
     assert out.startswith("report: 10 sections, 5 figures → ")
 
 
+def test_one_progress_class_serves_steps_phases_and_searches(capsys):
+    # the bars of report (steps), sweep and scenarios (phases) and design --mode tac (best so far)
+    bars = common.ProgressBars("heatloom report", enabled=True, unit="step", steps=3)
+    bars.step("energy targets")
+    bars.step("ΔTmin sweep")
+    bars.close()
+    err = capsys.readouterr().err
+    assert "heatloom report: energy targets" in err and "heatloom report: ΔTmin sweep" in err
+    bars = common.ProgressBars("heatloom sweep", enabled=True)
+    bars("grid", 2, 5)
+    bars("designs", 1, 2)
+    bars.close()
+    err = capsys.readouterr().err
+    assert "heatloom sweep: grid" in err and "heatloom sweep: designs" in err
+    bars = common.ProgressBars("heatloom design --mode tac", enabled=True, unit="epoch",
+                               describe_best=lambda best: f"best TAC {best:,.0f} EUR/yr")
+    bars.best(123456.4, 3, 10)
+    bars.close()
+    assert "best TAC 123,456 EUR/yr" in capsys.readouterr().err
+    quiet = common.ProgressBars("heatloom report", enabled=False, unit="step", steps=3)
+    quiet.step("energy targets")
+    quiet("grid", 1, 2)
+    quiet.best(1.0, 1, 2)
+    quiet.close()
+    assert capsys.readouterr().err == ""
+
+
 def test_refuses_to_overwrite_without_force(case, capsys):
     code, _, _ = run(capsys, "report", case, "--quiet", "--sweep", "5:10")
     assert code == 0

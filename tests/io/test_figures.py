@@ -42,3 +42,42 @@ def test_scenario_figure_has_one_panel_per_zone_and_one_line_per_scenario(sinnot
     assert [line.get_label() for line in labelled] == ["prices ×1", "prices ×2", "prices ×3"]
     assert f"first {MAX_PANELS} of {MAX_PANELS + 2} zones" in fig._suptitle.get_text()
     plt.close(fig)
+
+
+def test_io_changes_no_global_matplotlib_state():
+    # a library must not choose a backend or touch pyplot when imported or when it draws: import every
+    # heatloom.io module and draw and write a figure in a fresh interpreter, then look
+    import subprocess
+    import sys
+
+    code = "\n".join([
+        "import importlib, io, pkgutil, sys",
+        "import matplotlib",
+        "settings = dict(dict.items(matplotlib.rcParams))   # dict.items: reading does not resolve the backend",
+        "import heatloom.io",
+        "for m in pkgutil.walk_packages(heatloom.io.__path__, 'heatloom.io.'):",
+        "    importlib.import_module(m.name)",
+        "from heatloom.io.figures import composite_figure",
+        "from heatloom.model import StreamTable",
+        "from heatloom.pinch import target",
+        "s = StreamTable.from_arrays(['H', 'C'], [150, 30], [60, 120], [2.0, 2.5])",
+        "fig = composite_figure(target(s, 10.0))",
+        "fig.savefig(io.BytesIO(), format='png'); fig.savefig(io.BytesIO(), format='svg')",
+        "assert 'matplotlib.pyplot' not in sys.modules, 'pyplot was imported'",
+        "changed = [k for k, v in dict.items(matplotlib.rcParams) if settings[k] is not v and settings[k] != v]",
+        "assert not changed, f'matplotlib settings changed: {changed}'",
+    ])
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True)
+    assert done.returncode == 0, done.stderr
+
+
+def test_no_io_module_calls_matplotlib_use():
+    import ast
+    import pathlib
+
+    folder = pathlib.Path(__file__).resolve().parents[2] / "io"
+    calls = [f"{path.name}:{node.lineno}" for path in sorted(folder.glob("*.py"))
+             for node in ast.walk(ast.parse(path.read_text(encoding="utf-8")))
+             if isinstance(node, ast.Call) and isinstance(node.func, ast.Attribute) and node.func.attr == "use"
+             and isinstance(node.func.value, ast.Name) and node.func.value.id == "matplotlib"]
+    assert calls == []

@@ -1,4 +1,5 @@
-"""The study report (heatloom.io.report) and workbook (heatloom.io.workbook).
+"""The study (heatloom.studies.study), its report (heatloom.io.report, heatloom.io.html) and workbook
+(heatloom.io.workbook, heatloom.io.formats).
 
 Published numbers: Sinnott, Coulson & Richardson's Chemical Engineering Vol. 6, ch. 3, problem table
 example (Table 3.6): 50 kW hot and 30 kW cold utility, pinch at 90 °C hot side / 80 °C cold side at
@@ -16,15 +17,17 @@ import openpyxl
 import pandas as pd
 import pytest
 
-from heatloom.commands.report import compute_study
 from heatloom.defaults import SAFETY_NOTE
 from heatloom.errors import InputError
 from heatloom.io import read_streams, read_utilities
 from heatloom.io.export import OutputDirectory
-from heatloom.io.report import NotComputed, RunSettings, Study, figure_svg, methods_used, render_report
-from heatloom.io.workbook import SHEETS, format_number, number_formats, study_sheets, unit_of, write_workbook
+from heatloom.io.formats import format_number, number_formats, unit_of
+from heatloom.io.html import figure_svg
+from heatloom.io.report import methods_used, render_report
+from heatloom.io.workbook import SHEETS, study_sheets, write_workbook
 from heatloom.model import Stream, StreamTable
 from heatloom.pinch import target
+from heatloom.studies.study import NotComputed, RunSettings, Study, compute_study
 
 ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "case_studies" / "solvent_recovery"

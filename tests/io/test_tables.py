@@ -14,10 +14,10 @@ import openpyxl
 import pytest
 
 from heatloom.errors import InputError
+from heatloom.io.cells import load_cells
 from heatloom.io.tables import (
     ALIASES,
     COLUMN_KINDS,
-    load_cells,
     normalise_name,
     parse_column_mapping,
     read_table,

@@ -1,0 +1,207 @@
+"""The raw grid of a plant table: a CSV file or a worksheet read into rows of cells, nothing interpreted.
+
+What is handled here (headers, units and column names are :mod:`heatloom.io.tables`' job):
+
+* **Text tables.** CSV or any delimited text with comma, semicolon, tab or ``|`` delimiters, sniffed
+  from the file; UTF-8 with or without BOM, UTF-16 with BOM, else Windows-1252 / Latin-1.  A semicolon
+  delimiter marks a file that may write decimal commas (``2,5``).  Binary content is refused.
+* **Workbooks.** ``.xlsx``/``.xlsm`` (told by their content, a zip archive, as well as by the suffix): a
+  named sheet, else the first; stored values are read, formulas are not evaluated.  Old ``.xls`` files
+  are refused with a hint to save them again.
+
+The file is only read, never written.  Every problem is an :class:`~heatloom.errors.InputError` naming
+the file (and sheet).
+"""
+
+from __future__ import annotations
+
+import codecs
+import csv
+import datetime as _dt
+import io as _io
+import os
+import re
+import zipfile
+from collections import Counter
+from dataclasses import dataclass
+from pathlib import Path
+
+from ..errors import InputError
+
+__all__ = ["Cells", "load_cells", "cell_text"]
+
+_XLSX_SUFFIXES = (".xlsx", ".xlsm", ".xltx", ".xltm")
+_CONTROL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f]")
+_OLE2 = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
+
+
+def cell_text(value) -> str:
+    """A cell as the user wrote it: text stripped, whole numbers without a decimal point.
+
+    Examples
+    --------
+    >>> cell_text(" H1 "), cell_text(120.0), cell_text(0.25), cell_text(1e20)
+    ('H1', '120', '0.25', '1e+20')
+    """
+    if isinstance(value, float):
+        return str(int(value)) if value.is_integer() and abs(value) < 1e15 else repr(value)
+    return str(value).strip()
+
+
+@dataclass(frozen=True, eq=False)
+class Cells:
+    """The raw grid of a text table or worksheet: ``rows[i]`` is spreadsheet row ``i + 1``.
+
+    Cells are strings (text files, text cells) or floats (numeric workbook cells); empty cells are ``""``.
+    """
+
+    source: str
+    rows: list[list]
+    sheet: str | None = None
+    decimal_comma: bool = False
+
+    @property
+    def label(self) -> str:
+        """File (and sheet) as named in messages."""
+        return self.source if self.sheet is None else f"{self.source}, sheet '{self.sheet}'"
+
+
+def _decode(data: bytes, source: str) -> str:
+    if data.startswith(codecs.BOM_UTF8):
+        data = data[len(codecs.BOM_UTF8):]
+    elif data.startswith((codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE)):
+        try:
+            return data.decode("utf-16")
+        except UnicodeDecodeError:
+            raise InputError("cannot read the file: it starts like UTF-16 text but is not", file=source) from None
+    if b"\x00" in data:
+        raise InputError("this is not a text table (binary content); give a CSV file or an .xlsx workbook",
+                         file=source)
+    text = None
+    for encoding in ("utf-8", "cp1252", "latin-1"):
+        try:
+            text = data.decode(encoding)
+            break
+        except UnicodeDecodeError:
+            continue
+    assert text is not None  # latin-1 decodes any bytes
+    control = len(_CONTROL.findall(text))
+    if control > max(2, len(text) // 100):
+        raise InputError("this is not a text table (binary content); give a CSV file or an .xlsx workbook",
+                         file=source)
+    return text
+
+
+def _sniff(text: str) -> str:
+    lines = [line for line in text[:65536].splitlines() if line.strip()][:60]
+    best, best_score = ",", (0, 0)
+    for delimiter in (",", ";", "\t", "|"):
+        counts = [len(r) for r in csv.reader(lines, delimiter=delimiter)]
+        multi = [c for c in counts if c > 1]
+        if not multi:
+            continue
+        mode, freq = Counter(multi).most_common(1)[0]
+        if (freq, mode) > best_score:
+            best, best_score = delimiter, (freq, mode)
+    return best
+
+
+def _load_text(data: bytes, source: str) -> Cells:
+    text = _decode(data, source)
+    if not text.strip():
+        raise InputError("the file is empty", file=source)
+    delimiter = _sniff(text)
+    try:
+        rows = list(csv.reader(_io.StringIO(text, newline=""), delimiter=delimiter))
+    except csv.Error as e:
+        raise InputError(f"cannot read the file as a delimited text table: {e}", file=source) from None
+    return Cells(source, rows, None, decimal_comma=delimiter == ";")
+
+
+def _excel_value(v):
+    if v is None:
+        return ""
+    if isinstance(v, bool):
+        return "TRUE" if v else "FALSE"
+    if isinstance(v, (int, float)):
+        return float(v)
+    if isinstance(v, (_dt.datetime, _dt.date, _dt.time)):
+        return v.isoformat()
+    return str(v)
+
+
+def _load_workbook(data: bytes, source: str, sheet: str | None) -> Cells:
+    import openpyxl
+    from openpyxl.utils.exceptions import InvalidFileException
+
+    try:
+        wb = openpyxl.load_workbook(_io.BytesIO(data), read_only=True, data_only=True)
+    except (zipfile.BadZipFile, InvalidFileException, KeyError, ValueError, OSError, EOFError, TypeError) as e:
+        why = "it is not a zip archive" if isinstance(e, zipfile.BadZipFile) else str(e) or type(e).__name__
+        raise InputError(f"cannot read the file as an .xlsx workbook ({why}); save it again as .xlsx or CSV",
+                         file=source) from None
+    try:
+        names = list(wb.sheetnames)
+        if sheet is None:
+            sheets = [ws for ws in wb.worksheets if hasattr(ws, "iter_rows")]
+            if not sheets:
+                raise InputError("the workbook has no worksheet", file=source)
+            ws = sheets[0]
+        else:
+            wanted = str(sheet).strip()
+            match = [n for n in names if n == wanted] or [n for n in names if n.strip().casefold() == wanted.casefold()]
+            if not match:
+                raise InputError(f"no sheet named '{sheet}'; sheets: {', '.join(repr(n) for n in names)}",
+                                 file=source)
+            ws = wb[match[0]]
+            if not hasattr(ws, "iter_rows"):
+                raise InputError(f"sheet '{match[0]}' is a chart, not a table", file=source)
+        title = ws.title
+        rows = [[_excel_value(v) for v in row] for row in ws.iter_rows(values_only=True)]
+    finally:
+        wb.close()
+    cells = Cells(source, rows, title)
+    if not any(c != "" for row in rows for c in row):
+        raise InputError("the sheet is empty", file=cells.label)
+    return cells
+
+
+def load_cells(path: str | os.PathLike, *, sheet: str | None = None) -> Cells:
+    """Read the raw grid of a CSV file or a worksheet (no interpretation of headers or units).
+
+    Parameters
+    ----------
+    path : str or path-like
+        A text table (``.csv``, ``.txt``, ``.tsv``...) or an ``.xlsx``/``.xlsm`` workbook; the type
+        is taken from the content (a zip archive is a workbook), not only from the suffix.
+    sheet : str, optional
+        Worksheet name (workbooks only); default the first worksheet.
+
+    Raises
+    ------
+    InputError
+        Missing file, a directory, unreadable or binary content, an old ``.xls`` file, an empty file,
+        an unknown sheet (the message lists the sheets), a sheet given for a text file.
+    """
+    source = os.fspath(path)
+    p = Path(source)
+    if not p.exists():
+        raise InputError("file not found", file=source)
+    if p.is_dir():
+        raise InputError("this is a directory, not a table file", file=source)
+    try:
+        data = p.read_bytes()
+    except OSError as e:
+        raise InputError(f"cannot read the file ({e.strerror or e})", file=source) from None
+    if not data.strip():
+        raise InputError("the file is empty", file=source)
+    suffix = p.suffix.lower()
+    if data.startswith(b"PK\x03\x04") or suffix in _XLSX_SUFFIXES:
+        return _load_workbook(data, source, sheet)
+    if data.startswith(_OLE2) or suffix == ".xls":
+        raise InputError("old binary Excel files (.xls) are not read; save the sheet as .xlsx or CSV",
+                         file=source)
+    if sheet is not None:
+        raise InputError(f"a sheet ('{sheet}') was given but this is a text table, which has no sheets",
+                         file=source)
+    return _load_text(data, source)
