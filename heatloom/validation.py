@@ -27,6 +27,8 @@ __all__ = [
     "whole_number",
     "enum_member",
     "round_up_count",
+    "non_negative",
+    "check_dt_min",
 ]
 
 
@@ -297,3 +299,90 @@ def round_up_count(value: float) -> int:
     (2, 2, 3)
     """
     return int(math.ceil(value - 1e-9 * max(1.0, abs(value))))
+
+
+def non_negative(value, what: str, unit: str, *, optional: bool = False) -> float | None:
+    """``value`` as a finite float >= 0, or an InputError naming ``what`` and its unit.
+
+    Parameters
+    ----------
+    value : object
+        The number as given (a float, an int, a numeric string...) [unit].
+    what : str
+        Its name in the message, e.g. ``"ΔTmin"``.
+    unit : str
+        Its unit in the message, e.g. ``"K"``, ``"kW"``, ``"money"``.
+    optional : bool, optional
+        When true, None is allowed and returned as None (a limit that is not set).
+
+    Returns
+    -------
+    float or None
+        [unit]
+
+    Raises
+    ------
+    InputError
+        Not a number, not finite or negative (None too, unless ``optional``).
+
+    Examples
+    --------
+    >>> non_negative("12.5", "ΔTmin", "K"), non_negative(None, "budget", "money", optional=True)
+    (12.5, None)
+    >>> non_negative(-1, "budget", "money")
+    Traceback (most recent call last):
+    ...
+    heatloom.errors.InputError: budget must be a finite number >= 0 money, got -1
+    """
+    if value is None and optional:
+        return None
+    try:
+        x = float(value)
+    except (TypeError, ValueError):
+        raise InputError(f"{what} must be a number [{unit}], got {value!r}") from None
+    if not (x >= 0) or not math.isfinite(x):
+        raise InputError(f"{what} must be a finite number >= 0 {unit}, got {value!r}")
+    return x
+
+
+def check_dt_min(value, what: str = "ΔTmin", *, positive: bool = False) -> float:
+    """A minimum approach temperature as a float [K]: the one check of every ΔTmin heatloom takes.
+
+    Parameters
+    ----------
+    value : object
+        The ΔTmin as given [K].
+    what : str, optional
+        Its name in the message (``"ΔTmin"``, ``"lowest ΔTmin"``, ``"zone 'A': ΔTmin"``).
+    positive : bool, optional
+        Refuse 0 as well (area and cost targets, which are infinite at 0 K).
+
+    Returns
+    -------
+    float
+        [K]
+
+    Raises
+    ------
+    InputError
+        Not a number, not finite, negative (or 0 with ``positive``); the column is ``dtmin``.
+
+    Examples
+    --------
+    >>> check_dt_min("7.5"), check_dt_min(0)
+    (7.5, 0.0)
+    >>> check_dt_min(0, "lowest ΔTmin", positive=True)
+    Traceback (most recent call last):
+    ...
+    heatloom.errors.InputError: column 'dtmin': lowest ΔTmin must be a finite number > 0 K (area and cost targets are infinite at 0 K), got 0
+    """
+    try:
+        x = float(value)
+    except (TypeError, ValueError):
+        raise InputError(f"{what} must be a number [K], got {value!r}", column="dtmin") from None
+    if positive and not (x > 0 and math.isfinite(x)):
+        raise InputError(f"{what} must be a finite number > 0 K (area and cost targets are infinite at 0 K), got "
+                         f"{value!r}", column="dtmin")
+    if not (x >= 0) or not math.isfinite(x):
+        raise InputError(f"{what} must be a finite number >= 0 K, got {value!r}", column="dtmin")
+    return x

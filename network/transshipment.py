@@ -36,6 +36,7 @@ from ..model import StreamTable, Utility, UtilityKind
 from ..pinch.problem_table import problem_table, shifted_ranges
 from ..pinch.targets import IDEAL_COLD, IDEAL_HOT
 from ..pinch.utilities import place_utilities, utility_shifted_range
+from ..validation import check_dt_min
 from .solvers import SolveReport, SolverName, SolveStatus, new_variable, solve
 
 __all__ = [
@@ -61,16 +62,6 @@ for the LP's round-off); a subnetwork's heat balance may be off by ten times thi
 
 
 # ------------------------------------------------------------------------------------------ intervals
-
-def _validate_dt_min(dt_min: float) -> float:
-    try:
-        dt = float(dt_min)
-    except (TypeError, ValueError):
-        raise InputError(f"ΔTmin must be a finite number >= 0 K, got {dt_min!r}", column="dtmin") from None
-    if not dt >= 0 or not np.isfinite(dt):
-        raise InputError(f"ΔTmin must be a finite number >= 0 K, got {dt_min!r}", column="dtmin")
-    return dt
-
 
 def _snap_index(asc: np.ndarray, values: np.ndarray) -> np.ndarray:
     """Index in the ascending boundaries of the nearest boundary to each value."""
@@ -165,7 +156,7 @@ def temperature_intervals(streams: StreamTable, dt_min: float, utilities: Sequen
     >>> iv.temperatures.tolist(), iv.surplus.tolist()
     ([175.0, 145.0, 140.0, 85.0, 55.0, 25.0], [90.0, -2.5, -137.5, 60.0, -30.0])
     """
-    dt = _validate_dt_min(dt_min)
+    dt = check_dt_min(dt_min)
     utilities = tuple(utilities)
     names = [s.name for s in streams]
     seen = set(names)
@@ -233,7 +224,7 @@ def free_target_utilities(streams: StreamTable, dt_min: float) -> tuple[Utility,
     >>> [(u.name, u.supply_temperature) for u in free_target_utilities(s, 10)]
     [('hot utility', 190.0), ('cold utility', 10.0)]
     """
-    dt = _validate_dt_min(dt_min)
+    dt = check_dt_min(dt_min)
     a = streams.arrays
     upper, lower = shifted_ranges(a, dt)
     temps = np.concatenate((a.supply_temperature, a.target_temperature))

@@ -24,8 +24,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..errors import InputError
 from ..model import StreamArrays, StreamTable
+from ..validation import check_dt_min
 
 __all__ = [
     "ProblemTable",
@@ -218,8 +218,7 @@ def problem_table(streams: StreamTable | StreamArrays, dt_min: float) -> Problem
     >>> pt.surplus.tolist()
     [90.0, -2.5, -137.5, 60.0, -30.0]
     """
-    if not dt_min >= 0 or not np.isfinite(dt_min):
-        raise InputError(f"ΔTmin must be a finite number >= 0 K, got {dt_min!r}", column="dtmin")
+    dt_min = check_dt_min(dt_min)
     arrays = streams.arrays if isinstance(streams, StreamTable) else streams
     upper, lower = shifted_ranges(arrays, dt_min)
     signed = np.where(arrays.is_hot, arrays.heat_capacity_flow, -arrays.heat_capacity_flow)

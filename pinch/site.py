@@ -60,6 +60,7 @@ import numpy as np
 from ..errors import InputError
 from ..model import StreamTable
 from ..model.site import SteamMain, Zone, check_mains
+from ..validation import check_dt_min
 from .curves import Curve
 from .targets import Targets, target
 
@@ -595,8 +596,7 @@ def site_targets(zones: Sequence[Zone] | Mapping[str, StreamTable], mains: Seque
     (800.0, 0.0, 200.0, 800.0)
     """
     zones = _as_zones(zones)
-    if not (math.isfinite(dt_min) and dt_min >= 0):
-        raise InputError(f"ΔTmin must be a finite number >= 0 K, got {dt_min!r}", column="dtmin")
+    dt_min = check_dt_min(dt_min)
     mains = check_mains(mains, [z.streams for z in zones])
     steam = [m for m in mains if m.is_steam]                      # hottest first
     cooling = [m for m in mains if not m.is_steam]                # hottest first

@@ -45,7 +45,7 @@ from ..errors import InfeasibleError, InputError
 from ..model import Stream, StreamTable
 from ..model.existing import UnitRole
 from ..pinch import Pinch, problem_table, target, zero_tolerance
-from .checks import non_negative
+from ..validation import check_dt_min
 from .existing import ExistingNetwork
 from .network_pinch import NetworkPinch, network_pinch
 from .profiles import heat_between
@@ -218,7 +218,7 @@ def cross_pinch(simulation: Simulation, dt_min: float | None = None) -> CrossPin
     >>> [(c.unit, c.kind, round(c.net, 6)) for c in x.units], round(x.total(), 6), round(x.excess, 6)
     ([('C1', 'cooler above the pinch', 60.0)], 60.0, 60.0)
     """
-    dt = simulation.dt_min if dt_min is None else non_negative(dt_min, "ΔTmin", "K")
+    dt = simulation.dt_min if dt_min is None else check_dt_min(dt_min)
     if dt is None:
         raise InputError("cross-pinch analysis needs a ΔTmin (give dt_min here or to simulate)")
     net = simulation.network
@@ -542,7 +542,7 @@ def retrofit_curve(simulation: Simulation, dt_mins: Sequence[float] | None = Non
             raise InputError(f"points must be a whole number >= 2, got {points!r}")
         dts = np.linspace(dt_e, 0.1 * dt_e, points)
     else:
-        dts = np.array([non_negative(x, "ΔTmin", "K") for x in dt_mins], dtype=float)
+        dts = np.array([check_dt_min(x) for x in dt_mins], dtype=float)
         if dts.size == 0 or not np.all(dts > 0):
             raise InputError("dt_mins must hold ΔTmin values > 0 K (the area target is infinite at 0 K)")
     notes: list[str] = [] if eff.utilities else ["ideal utilities in the area targets, as for α"]
@@ -613,7 +613,7 @@ def diagnose(network: ExistingNetwork | Simulation, dt_min: float, *, min_approa
         α and the retrofit curve are None (with a note) when unit areas or film coefficients are missing
         or the network's utility matches no ΔTmin.
     """
-    dt = non_negative(dt_min, "ΔTmin", "K")
+    dt = check_dt_min(dt_min)
     sim = network if isinstance(network, Simulation) else simulate(network, dt)
     if sim.dt_min != dt:
         sim = simulate(sim.network, dt)

@@ -30,7 +30,7 @@ from scipy.optimize import brentq
 
 from ..errors import InputError
 from ..model.existing import UnitRole
-from .checks import non_negative
+from ..validation import non_negative
 from .existing import ExistingNetwork
 from .profiles import smallest_approach, temperature_after
 from .simulate import Simulation

@@ -67,6 +67,7 @@ import numpy as np
 from ..errors import InfeasibleError, InputError
 from ..model.costs import CostSettings, RetrofitCosts
 from ..model.existing import OperatingMode
+from ..validation import check_dt_min, non_negative
 from .changes import (
     APPROACH_TOLERANCE,
     Candidate,
@@ -81,7 +82,6 @@ from .changes import (
     new_exchanger_candidates,
     touched_streams,
 )
-from .checks import non_negative
 from .diagnose import area_efficiency, cross_pinch
 from .existing import ExistingNetwork
 from .selection import (
@@ -419,7 +419,7 @@ def retrofit_options(network: ExistingNetwork, dt_min: float, *, costs: CostSett
     >>> round(best.saving, 1), best.steps[0].startswith("add"), round(best.milp_saving, 1)
     (60.0, True, 60.0)
     """
-    dt = non_negative(dt_min, "ΔTmin", "K", optional=True)
+    dt = None if dt_min is None else check_dt_min(dt_min)
     if dt is None:
         raise InputError("ΔTmin is required [K]")
     emat = non_negative(min_approach, "minimum approach", "K", optional=True)

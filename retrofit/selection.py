@@ -49,7 +49,7 @@ import pulp
 
 from ..errors import SolverError
 from ..network.solvers import SolveReport, SolverName, SolveStatus, new_variable, solve
-from .checks import non_negative
+from ..validation import non_negative
 
 __all__ = [
     "SelectionObjective",

@@ -43,7 +43,7 @@ from ..errors import SolverError
 from ..model.exchangers import FlowArrangement
 from ..model.existing import ExistingUnit, OperatingMode, UnitRole
 from ..pinch import target
-from .checks import non_negative
+from ..validation import check_dt_min
 from .existing import ExistingNetwork
 from .profiles import heat_between, mean_cp_between, smallest_approach, temperature_after
 
@@ -422,7 +422,7 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
     >>> sim.hot_utility_target, sim.hot_utility_excess > 0
     (45.0, True)
     """
-    dt_min = non_negative(dt_min, "ΔTmin", "K", optional=True)
+    dt_min = None if dt_min is None else check_dt_min(dt_min)
     streams = {s.name: s for s in network.streams}
     seqs = {name: network.on_stream(name) for name in streams}
     index: dict[tuple[str, int], int] = {}

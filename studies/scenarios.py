@@ -43,10 +43,10 @@ from ..model.prices import BASE_NAME, PriceScenario
 from ..pinch.area import CapitalBasis, area_targets
 from ..pinch.targets import target
 from ..tasks import Progress, TaskRunner, describe_executor
+from ..validation import check_dt_min
 from .sweep import (
     DesignPoint,
     SweepPoint,
-    check_dt_min,
     design_point,
     dt_min_grid,
     evaluate_points,
@@ -348,8 +348,8 @@ def scenario_study(zones, dt_min_range: tuple[float, float], utilities: Sequence
     """
     if not isinstance(dt_min_range, (tuple, list)) or len(dt_min_range) != 2:
         raise InputError(f"the ΔTmin range must be two numbers (low, high) [K], got {dt_min_range!r}")
-    low = check_dt_min(dt_min_range[0], "lowest ΔTmin")
-    high = check_dt_min(dt_min_range[1], "highest ΔTmin")
+    low = check_dt_min(dt_min_range[0], "lowest ΔTmin", positive=True)
+    high = check_dt_min(dt_min_range[1], "highest ΔTmin", positive=True)
     if high < low:
         raise InputError(f"the highest ΔTmin ({high:g} K) must not be below the lowest ({low:g} K)", column="dtmin")
     for what, v in (("ΔTmin step", step), ("optimum step", optimum_step)):

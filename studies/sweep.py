@@ -50,6 +50,7 @@ from ..pinch.area import CapitalBasis, area_targets, missing_film_coefficients, 
 from ..pinch.problem_table import shifted_ranges
 from ..pinch.targets import Targets, target
 from ..tasks import Progress, TaskRunner, describe_executor
+from ..validation import check_dt_min
 
 __all__ = [
     "SweepPoint",
@@ -62,7 +63,6 @@ __all__ = [
     "MAX_POINTS",
     "TargetCase",
     "target_case",
-    "check_dt_min",
     "dt_min_grid",
     "evaluate_points",
     "design_point",
@@ -335,7 +335,7 @@ def sweep_point(streams: StreamTable, dt_min: float, utilities: Sequence[Utility
     (0.0, 40.0, 2, 13.53)
     """
     case = target_case(streams, utilities, costs, default_film_coefficient, capital_basis, x_p)
-    check_dt_min(dt_min, "ΔTmin")
+    check_dt_min(dt_min, "ΔTmin", positive=True)
     return _evaluate(case, float(dt_min))
 
 
@@ -385,28 +385,6 @@ def target_case(streams: StreamTable, utilities: Sequence[Utility] | None = None
         price_factor = 1.0
     return TargetCase(streams, utilities, costs, None if default_h is None else float(default_h), basis, x_p,
                  price_factor)
-
-
-def check_dt_min(x, what: str = "ΔTmin") -> float:
-    """A ΔTmin of a sweep or study as a float [K], checked finite and > 0 (``what`` names it in the message).
-
-    Examples
-    --------
-    >>> check_dt_min("7.5")
-    7.5
-    >>> check_dt_min(0, "lowest ΔTmin")
-    Traceback (most recent call last):
-    ...
-    heatloom.errors.InputError: column 'dtmin': lowest ΔTmin must be a finite number > 0 K (the area target is ...
-    """
-    try:
-        v = float(x)
-    except (TypeError, ValueError):
-        raise InputError(f"{what} must be a number of kelvin, got {x!r}", column="dtmin") from None
-    if not (v > 0) or not math.isfinite(v):
-        raise InputError(f"{what} must be a finite number > 0 K (the area target is infinite at 0 K), got {x!r}",
-                         column="dtmin")
-    return v
 
 
 # --------------------------------------------------------------------------------------------------
@@ -626,8 +604,8 @@ def sweep(streams: StreamTable, dt_min_range: tuple[float, float], utilities: Se
     """
     if not isinstance(dt_min_range, (tuple, list)) or len(dt_min_range) != 2:
         raise InputError(f"the ΔTmin range must be two numbers (low, high) [K], got {dt_min_range!r}")
-    low = check_dt_min(dt_min_range[0], "lowest ΔTmin")
-    high = check_dt_min(dt_min_range[1], "highest ΔTmin")
+    low = check_dt_min(dt_min_range[0], "lowest ΔTmin", positive=True)
+    high = check_dt_min(dt_min_range[1], "highest ΔTmin", positive=True)
     if not high > low:
         raise InputError(f"the highest ΔTmin ({high:g} K) must be above the lowest ({low:g} K)", column="dtmin")
     try:
@@ -639,7 +617,7 @@ def sweep(streams: StreamTable, dt_min_range: tuple[float, float], utilities: Se
     for name, v in (("resolution", resolution), ("xtol", xtol)):
         if not (float(v) > 0):
             raise InputError(f"{name} must be > 0 K, got {v!r}")
-    design_at = tuple(check_dt_min(x, "design ΔTmin") for x in designs)
+    design_at = tuple(check_dt_min(x, "design ΔTmin", positive=True) for x in designs)
     case = target_case(streams, utilities, costs, default_film_coefficient, capital_basis, x_p, price_factor)
     xs = dt_min_grid(low, high, step)
     runner = TaskRunner(workers, cluster, progress)

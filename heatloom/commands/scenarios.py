@@ -5,6 +5,8 @@ from __future__ import annotations
 import argparse
 
 from .. import defaults
+from ..errors import InputError
+from ..validation import check_dt_min
 from .common import (
     ProgressBars,
     add_cost_target_options,
@@ -57,11 +59,9 @@ def parse_span(text: str) -> tuple[float, float]:
     """
     if ":" not in str(text):
         try:
-            x = float(text)
-        except ValueError:
-            raise argparse.ArgumentTypeError(f"expected LO:HI or one ΔTmin in kelvin, e.g. 5:40, got {text!r}") from None
-        if not (x > 0) or x == float("inf"):
-            raise argparse.ArgumentTypeError(f"ΔTmin must be a finite number > 0 K, got {text!r}")
+            x = check_dt_min(text, positive=True)
+        except InputError as e:
+            raise argparse.ArgumentTypeError(f"expected LO:HI or one ΔTmin, e.g. 5:40: {e.message}") from None
         return x, x
     parts = str(text).split(":")
     if len(parts) == 2 and parts[0].strip() and parts[0].strip() == parts[1].strip():

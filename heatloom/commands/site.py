@@ -6,6 +6,7 @@ import argparse
 
 from .. import defaults
 from ..errors import InputError
+from ..validation import check_dt_min
 from .common import (
     add_output_options,
     add_site_table_options,
@@ -76,13 +77,7 @@ def parse_zone_dt_min(items: list[str], zones: list[str]) -> dict[str, float]:
         zone = by_key.get(name.strip().casefold())
         if zone is None:
             raise InputError(f"--zone-dtmin: no zone named {name.strip()!r}; zones: {', '.join(zones)}")
-        try:
-            x = float(value)
-        except ValueError:
-            raise InputError(f"--zone-dtmin: ΔTmin of zone '{zone}' must be a number of kelvin, got "
-                             f"{value.strip()!r}") from None
-        if not (x >= 0) or x == float("inf"):
-            raise InputError(f"--zone-dtmin: ΔTmin of zone '{zone}' must be a finite number >= 0 K, got {x:g}")
+        x = check_dt_min(value.strip(), f"--zone-dtmin: ΔTmin of zone '{zone}'")
         if zone in out:
             raise InputError(f"--zone-dtmin: zone '{zone}' is given twice")
         out[zone] = x

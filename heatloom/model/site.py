@@ -12,6 +12,7 @@ from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field
 
 from ..errors import InputError
+from ..validation import check_dt_min
 from .streams import StreamTable
 
 __all__ = [
@@ -127,9 +128,8 @@ class Zone:
     def __post_init__(self) -> None:
         if not str(self.name).strip():
             raise InputError("a zone needs a name")
-        if self.dt_min is not None and not (math.isfinite(float(self.dt_min)) and float(self.dt_min) >= 0):
-            raise InputError(f"zone '{self.name}': ΔTmin must be a finite number >= 0 K, got {self.dt_min!r}",
-                             column="dtmin")
+        if self.dt_min is not None:
+            object.__setattr__(self, "dt_min", check_dt_min(self.dt_min, f"zone '{self.name}': ΔTmin"))
 
 
 def _extremes(site: Iterable[StreamTable] | None) -> tuple[float, float]:
