@@ -124,6 +124,7 @@ def done(case, capsys):
     return case, code, json.loads(out), err
 
 
+@pytest.mark.slow
 def test_case_folder_report_and_workbook(done):
     case, code, data, err = done
     assert code == 0
@@ -147,6 +148,7 @@ def test_case_folder_report_and_workbook(done):
     assert len(sheets["tac network units"]) >= 1 and "status" not in sheets["tac network units"]
 
 
+@pytest.mark.slow
 def test_summary_line_progress_and_quiet(case, capsys):
     code, out, err = run(capsys, "report", case / "streams.csv", "--out", case / "a", "--sweep", "5:20")
     assert code == 0
@@ -185,6 +187,7 @@ def test_one_progress_class_serves_steps_phases_and_searches(capsys):
     assert capsys.readouterr().err == ""
 
 
+@pytest.mark.slow
 def test_refuses_to_overwrite_without_force(case, capsys):
     code, _, _ = run(capsys, "report", case, "--quiet", "--sweep", "5:10")
     assert code == 0
@@ -259,6 +262,7 @@ def test_infeasible_utilities_give_a_report_and_exit_3(tmp_path, reference, caps
     assert "Not computed: energy targets." in html
 
 
+@pytest.mark.slow
 def test_existing_network_gives_the_retrofit_diagnosis_and_options(tmp_path, capsys):
     from heatloom.io import read_costs, read_streams, read_utilities
     from heatloom.io.costs import read_retrofit_costs
@@ -355,6 +359,7 @@ def test_site_folder_gives_a_site_report(tmp_path, capsys):
     assert code == 2 and "already exists" in err
 
 
+@pytest.mark.slow
 def test_site_folder_with_a_prices_table_adds_the_price_scenarios(tmp_path, capsys):
     """The three-zone case (invented) holds utilities.csv and prices.csv: the report adds each zone's optimum
     ΔTmin under every price scenario; its numbers are those of heatloom.studies.scenarios.scenario_study."""

@@ -83,6 +83,7 @@ def test_budget_and_payback_in_json(capsys):
         assert o["payback_years"] <= 0.5 * 1.001
 
 
+@pytest.mark.slow
 def test_spreadsheet_to_ranked_costed_options_with_figures(capsys, workbook_case, tmp_path):
     out_dir = tmp_path / "results"
     code, out, err = run(capsys, "retrofit", workbook_case, "--out", out_dir, *FAST)

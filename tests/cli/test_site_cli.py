@@ -88,6 +88,7 @@ def test_site_dt_and_zone_dt_min(capsys, hand_site):
         run(capsys, "site", hand_site, "--zone-dtmin", "A")
 
 
+@pytest.mark.slow
 def test_out_writes_files_and_never_overwrites(capsys, hand_site, tmp_path):
     out_dir = tmp_path / "results"
     code, out, _ = run(capsys, "site", hand_site, "--out", out_dir, "--quiet")

@@ -51,6 +51,7 @@ def run(capsys, *args):
     return code, out.out, out.err
 
 
+@pytest.mark.slow
 def test_json_shape_emat_and_independent_tac(capsys, files):
     s, u, c = files
     code, out, err = run(capsys, "design", s, "--mode", "tac", "--utilities", u, "--costs", c, "--json", *FAST)
@@ -85,6 +86,7 @@ def test_json_shape_emat_and_independent_tac(capsys, files):
         assert min(e["hot_in"] - e["cold_out"], e["hot_out"] - e["cold_in"]) >= 1.0 - 1e-6
 
 
+@pytest.mark.slow
 def test_summary_states_emat_and_progress_goes_to_stderr(capsys, files):
     s, u, c = files
     code, out, err = run(capsys, "design", s, "--mode", "tac", "--utilities", u, "--costs", c, "--emat", "2",
@@ -99,6 +101,7 @@ def test_summary_states_emat_and_progress_goes_to_stderr(capsys, files):
     assert err == ""
 
 
+@pytest.mark.slow
 def test_same_seed_same_network(capsys, files):
     s, u, c = files
     outs = []

@@ -149,6 +149,7 @@ def test_infeasible_utilities_exit_3(capsys, sinnott_csv, tmp_path):
     assert code == 3 and "infeasible" in err and out == ""
 
 
+@pytest.mark.slow
 def test_console_script_and_module_entry_point(sinnott_csv):
     # the installed console command and `python -m heatloom` run the same code
     for cmd in ([sys.executable, "-m", "heatloom"], [str(Path(sys.executable).parent / "heatloom")]):

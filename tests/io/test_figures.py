@@ -30,6 +30,7 @@ def test_grid_diagram_title_names_the_approach(sinnott):
         plt.close(fig)
 
 
+@pytest.mark.slow
 def test_scenario_figure_has_one_panel_per_zone_and_one_line_per_scenario(sinnott):
     zones = {f"unit {i}": sinnott for i in range(MAX_PANELS + 2)}
     study = scenario_study(zones, (5, 15), scenarios=price_factor_scenarios([1, 2, 3]), step=5, workers=1,
@@ -44,6 +45,7 @@ def test_scenario_figure_has_one_panel_per_zone_and_one_line_per_scenario(sinnot
     plt.close(fig)
 
 
+@pytest.mark.slow
 def test_io_changes_no_global_matplotlib_state():
     # a library must not choose a backend or touch pyplot when imported or when it draws: import every
     # heatloom.io module and draw and write a figure in a fresh interpreter, then look

@@ -115,6 +115,7 @@ def test_optimal_infeasible_unbounded(name):
     assert r.objective is None and not r.has_solution
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("name", each_solver())
 def test_time_limit_with_a_feasible_solution(name):
     # the optimisation form always has a solution (all x = 0) but its optimum cannot be proven in 1 s
@@ -127,6 +128,7 @@ def test_time_limit_with_a_feasible_solution(name):
     assert "time" in r.detail.lower()
 
 
+@pytest.mark.slow
 @pytest.mark.parametrize("name", each_solver())
 def test_time_limit_without_a_solution(name):
     problem = market_split(5, 40, seed=2, slack=False)

@@ -99,6 +99,7 @@ def test_colberg_morari_3h4c_within_two_percent_of_best_published():
     assert_sound(net, data, streams, utilities)
 
 
+@pytest.mark.slow
 def test_short_run_is_sound_and_reproducible_with_a_seed():
     # Roetzel, Luo & Chen 2020, Table 6.16 data; a short search (the published-TAC tests above run longer)
     runs = [design_reference("synthesis_yee_grossmann_2h2c", seed=11, starts=1, rounds=2, time_limit=120)
@@ -252,6 +253,7 @@ def test_refusals():
         design_tac(streams, only_hot)
 
 
+@pytest.mark.slow
 def test_parallel_starts_give_the_same_network_as_one_process():
     # Roetzel, Luo & Chen 2020, Table 6.16 data: two starts on two local processes or in this process
     options = {"seed": 4, "starts": 2, "rounds": 1, "milp_iterations": 1, "time_limit": 120}

@@ -180,6 +180,7 @@ def test_cases_equal_sweep_point_with_a_utility_table(colberg_morari):
 # 3. optima
 
 
+@pytest.mark.slow
 def test_optima_equal_sweep_and_beat_every_case(sinnott, ray_das, colberg_morari):
     factors = [0.3, 1.0, 3.0]
     zones = {"S": sinnott, "R": ray_das}
