@@ -20,7 +20,14 @@ from .kernels import (
     unit_effectiveness_in_series,
 )
 from .rating import Rating, effectiveness_from_ntu, max_effectiveness, ntu_from_effectiveness, rate_exchanger
-from .segments import SegmentedSizing, SizingInterval, cut_profile, size_segments
+from .segments import (
+    ISOTHERMAL_GLIDE,
+    SegmentedSizing,
+    SizingInterval,
+    cut_profile,
+    size_segments,
+    utility_segment,
+)
 from .sizing import (
     ShellDesign,
     area_from_duty,
@@ -60,6 +67,8 @@ __all__ = [
     "SegmentedSizing",
     "SizingInterval",
     "cut_profile",
+    "ISOTHERMAL_GLIDE",
+    "utility_segment",
     "size_segments",
     "ShellDesign",
     "area_from_duty",

@@ -24,7 +24,7 @@ from typing import ClassVar
 from .. import defaults
 from ..errors import InputError
 from ..model.exchangers import ExchangerType
-from ..validation import enum_member, positive_float, round_up_count
+from ..validation import positive_float, round_up_count
 from .sizing import ShellDesign, area_from_duty, lmtd, shell_design
 
 __all__ = [
@@ -201,19 +201,42 @@ def size_shell_and_tube(duty, u, hot_in, hot_out, cold_in, cold_out, *, x_p=defa
 
 
 def size_exchanger(exchanger_type, duty, u, hot_in, hot_out, cold_in, cold_out, **options):
-    """Size an exchanger of the given :class:`ExchangerType`; ``options`` go to the type's function.
+    """Size an exchanger of a kind that has a geometry; ``options`` go to the kind's function.
+
+    The kinds with a geometry are those whose :attr:`ExchangerType.has_geometry` is True:
+    ``DOUBLE_PIPE`` (:func:`size_double_pipe`, options ``tube_diameter`` and ``hairpin_length`` [m],
+    both required) and ``SHELL_AND_TUBE_1_2`` (:func:`size_shell_and_tube`, options ``x_p`` and
+    ``min_f`` [-]).
+
+    Raises
+    ------
+    InputError
+        For a kind without a geometry (counter-current, co-current: size their area with
+        :func:`~heatloom.equipment.sizing.area_from_duty`), an unknown option or a missing double-pipe option.
 
     Examples
     --------
     >>> size_exchanger(ExchangerType.SHELL_AND_TUBE_1_2, 1000.0, 0.5, 100, 50, 20, 70).shells
     2
     """
-    kind = enum_member(ExchangerType, exchanger_type, "exchanger type")
-    fn, allowed = ((size_double_pipe, ("tube_diameter", "hairpin_length")) if kind is ExchangerType.DOUBLE_PIPE
-                   else (size_shell_and_tube, ("x_p", "min_f")))
+    allowed_kinds = ", ".join(k.value for k in _SIZERS)
+    try:
+        kind = ExchangerType(exchanger_type)
+    except ValueError:
+        raise InputError(f"unknown exchanger type {exchanger_type!r}; allowed: {allowed_kinds}") from None
+    if not kind.has_geometry:
+        raise InputError(f"exchanger type {kind.value} has no geometry to size (size its area alone, "
+                         f"e.g. with area_from_duty); allowed: {allowed_kinds}")
+    fn, allowed = _SIZERS[kind]
     unknown = sorted(set(options) - set(allowed))
     if unknown:
         raise InputError(f"{kind.value}: unknown option(s) {', '.join(unknown)}; allowed: {', '.join(allowed)}")
     if kind is ExchangerType.DOUBLE_PIPE and len(options) < 2:
         raise InputError("double_pipe: tube_diameter [m] and hairpin_length [m] are required")
     return fn(duty, u, hot_in, hot_out, cold_in, cold_out, **options)
+
+
+_SIZERS = {ExchangerType.DOUBLE_PIPE: (size_double_pipe, ("tube_diameter", "hairpin_length")),
+           ExchangerType.SHELL_AND_TUBE_1_2: (size_shell_and_tube, ("x_p", "min_f"))}
+"""The geometry of each kind that has one: its sizing function and its options (the kinds whose
+:attr:`ExchangerType.has_geometry` is True, checked by the tests)."""

@@ -2,9 +2,11 @@
 
 Pure functions on floats (and numpy arrays where natural) in canonical units: °C, K for differences,
 kW, kW/K, kW/(m²·K), m².  In ε-NTU, NTU = UA/C_min and C_r = C_min/C_max ∈ [0, 1]; several 1-2 shells
-in series share the total area equally.  The arrangements are those of
-:class:`heatloom.model.exchangers.FlowArrangement`; the counter-current relations, the 1-2 shell and
-the series of shells are the kernels of :mod:`heatloom.equipment.kernels`, exact at C_r = 1.
+in series share the total area equally.  The kinds are those of
+:class:`heatloom.model.exchangers.ExchangerType`, each rated by its flow pattern
+(:attr:`~heatloom.model.exchangers.ExchangerType.flow_pattern`: a double pipe is counter-current); the
+counter-current relations, the 1-2 shell and the series of shells are the kernels of
+:mod:`heatloom.equipment.kernels`, exact at C_r = 1.
 
 References
 ----------
@@ -25,7 +27,7 @@ from dataclasses import asdict, dataclass
 import numpy as np
 
 from ..errors import InputError, TemperatureCrossError
-from ..model.exchangers import FlowArrangement
+from ..model.exchangers import ExchangerType
 from ..validation import (
     as_float_array,
     enum_member,
@@ -64,7 +66,7 @@ def _check_cr(cr):
     return cr
 
 
-def effectiveness_from_ntu(ntu, capacity_ratio, arrangement=FlowArrangement.COUNTER_CURRENT, *, shells=1):
+def effectiveness_from_ntu(ntu, capacity_ratio, arrangement=ExchangerType.COUNTER_CURRENT, *, shells=1):
     """Thermal effectiveness ε = Q/[C_min(T_h,in − T_c,in)] from NTU = UA/C_min and C_r = C_min/C_max.
 
     Counter-current: ε = [1 − e^{−NTU(1−C_r)}]/[1 − C_r e^{−NTU(1−C_r)}] (NTU/(1 + NTU) at C_r = 1,
@@ -80,7 +82,8 @@ def effectiveness_from_ntu(ntu, capacity_ratio, arrangement=FlowArrangement.COUN
         NTU [-], >= 0.
     capacity_ratio : float or array
         C_r [-], in [0, 1].
-    arrangement : FlowArrangement, optional
+    arrangement : ExchangerType, optional
+        Kind of exchanger, rated by its flow pattern; counter-current by default [-].
     shells : int, optional
         Shells in series, for ``SHELL_AND_TUBE_1_2`` only [-].
 
@@ -93,43 +96,43 @@ def effectiveness_from_ntu(ntu, capacity_ratio, arrangement=FlowArrangement.COUN
     --------
     >>> round(effectiveness_from_ntu(1.0, 1.0), 6)
     0.5
-    >>> round(effectiveness_from_ntu(1.0, 0.5, FlowArrangement.CO_CURRENT), 4)
+    >>> round(effectiveness_from_ntu(1.0, 0.5, ExchangerType.CO_CURRENT), 4)
     0.5179
     """
-    arrangement = enum_member(FlowArrangement, arrangement, "flow arrangement")
+    pattern = enum_member(ExchangerType, arrangement, "flow arrangement").flow_pattern
     n = whole_number(shells, "number of shells")
     ntu = as_float_array(ntu, "NTU")
     require((ntu >= 0) & np.isfinite(ntu), ntu, "NTU must be >= 0 and finite, got {}")
     cr = _check_cr(capacity_ratio)
-    if arrangement is FlowArrangement.COUNTER_CURRENT:
+    if pattern is ExchangerType.COUNTER_CURRENT:
         return scalar_or_array(counter_current_effectiveness(ntu, cr))
-    if arrangement is FlowArrangement.CO_CURRENT:
+    if pattern is ExchangerType.CO_CURRENT:
         return scalar_or_array(-np.expm1(-ntu * (1.0 + cr)) / (1.0 + cr))
     e1 = effectiveness_1_2_shell(ntu / n, cr)
     return scalar_or_array(e1 if n == 1 else series_effectiveness(e1, cr, n))
 
 
-def max_effectiveness(capacity_ratio, arrangement=FlowArrangement.COUNTER_CURRENT, *, shells=1):
+def max_effectiveness(capacity_ratio, arrangement=ExchangerType.COUNTER_CURRENT, *, shells=1):
     """Effectiveness reached with infinite area [-] (the supremum; never reached).
 
     Counter-current 1; co-current 1/(1 + C_r); 1-2 shells: :func:`p_max`.
 
     Examples
     --------
-    >>> max_effectiveness(1.0, FlowArrangement.CO_CURRENT)
+    >>> max_effectiveness(1.0, ExchangerType.CO_CURRENT)
     0.5
     """
-    arrangement = enum_member(FlowArrangement, arrangement, "flow arrangement")
+    pattern = enum_member(ExchangerType, arrangement, "flow arrangement").flow_pattern
     n = whole_number(shells, "number of shells")
     cr = _check_cr(capacity_ratio)
-    if arrangement is FlowArrangement.COUNTER_CURRENT:
+    if pattern is ExchangerType.COUNTER_CURRENT:
         return scalar_or_array(np.ones_like(cr))
-    if arrangement is FlowArrangement.CO_CURRENT:
+    if pattern is ExchangerType.CO_CURRENT:
         return scalar_or_array(1.0 / (1.0 + cr))
     return scalar_or_array(series_effectiveness(p_max_1_2_shell(cr), cr, n))
 
 
-def ntu_from_effectiveness(effectiveness, capacity_ratio, arrangement=FlowArrangement.COUNTER_CURRENT, *,
+def ntu_from_effectiveness(effectiveness, capacity_ratio, arrangement=ExchangerType.COUNTER_CURRENT, *,
                            shells=1):
     """NTU needed for an effectiveness: the inverse of :func:`effectiveness_from_ntu`.
 
@@ -143,7 +146,8 @@ def ntu_from_effectiveness(effectiveness, capacity_ratio, arrangement=FlowArrang
         ε [-], 0 <= ε < :func:`max_effectiveness`.
     capacity_ratio : float or array
         C_r [-], in [0, 1].
-    arrangement : FlowArrangement, optional
+    arrangement : ExchangerType, optional
+        Kind of exchanger, rated by its flow pattern; counter-current by default [-].
     shells : int, optional
 
     Returns
@@ -161,21 +165,22 @@ def ntu_from_effectiveness(effectiveness, capacity_ratio, arrangement=FlowArrang
     >>> round(ntu_from_effectiveness(0.5, 1.0), 6)
     1.0
     """
-    arrangement = enum_member(FlowArrangement, arrangement, "flow arrangement")
+    arrangement = enum_member(ExchangerType, arrangement, "flow arrangement")
+    pattern = arrangement.flow_pattern
     n = whole_number(shells, "number of shells")
     eps = as_float_array(effectiveness, "effectiveness")
     cr = _check_cr(capacity_ratio)
     require(eps >= 0, eps, "effectiveness must be >= 0, got {}")
-    top = as_float_array(max_effectiveness(cr, arrangement, shells=n), "maximum effectiveness")
+    top = as_float_array(max_effectiveness(cr, pattern, shells=n), "maximum effectiveness")
     ok = eps < top
     if not np.all(ok):
         e, c, m = (np.broadcast_to(x, ok.shape)[~ok].flat[0] for x in np.broadcast_arrays(eps, cr, top))
-        extra = f" with {n} shell(s)" if arrangement is FlowArrangement.SHELL_AND_TUBE_1_2 else ""
+        extra = f" with {n} shell(s)" if pattern is ExchangerType.SHELL_AND_TUBE_1_2 else ""
         raise InputError(f"effectiveness {e:g} is not reachable by a {arrangement.value.replace('_', '-')} "
                          f"exchanger{extra} at C_r = {c:g}: it must be below {m:.6g}")
-    if arrangement is FlowArrangement.COUNTER_CURRENT:
+    if pattern is ExchangerType.COUNTER_CURRENT:
         return scalar_or_array(counter_current_ntu(eps, cr))
-    if arrangement is FlowArrangement.CO_CURRENT:
+    if pattern is ExchangerType.CO_CURRENT:
         return scalar_or_array(-np.log1p(-eps * (1.0 + cr)) / (1.0 + cr))
     e1 = eps if n == 1 else unit_effectiveness_in_series(eps, cr, n)
     return scalar_or_array(n * ntu_1_2_shell(e1, cr))
@@ -195,7 +200,7 @@ class Rating:
     effectiveness: float
     ntu: float
     capacity_ratio: float
-    arrangement: FlowArrangement
+    arrangement: ExchangerType
     shells: int
 
     def to_dict(self) -> dict:
@@ -205,7 +210,7 @@ class Rating:
 
 
 def rate_exchanger(hot_in, cold_in, hot_heat_capacity_flow, cold_heat_capacity_flow, u, area,
-                   arrangement=FlowArrangement.COUNTER_CURRENT, *, shells=1) -> Rating:
+                   arrangement=ExchangerType.COUNTER_CURRENT, *, shells=1) -> Rating:
     """Duty and outlet temperatures of an exchanger of known area (ε-NTU rating).
 
     .. math:: NTU = UA/C_{min},\\quad Q = \\varepsilon\\,C_{min}\\,(T_{h,in} - T_{c,in}),\\quad
@@ -221,7 +226,8 @@ def rate_exchanger(hot_in, cold_in, hot_heat_capacity_flow, cold_heat_capacity_f
         [kW/(m²·K)], > 0.
     area : float
         [m²], >= 0 (for ``shells`` > 1, the total area of all shells).
-    arrangement : FlowArrangement, optional
+    arrangement : ExchangerType, optional
+        Kind of exchanger, rated by its flow pattern; counter-current by default [-].
     shells : int, optional
 
     Returns
@@ -239,7 +245,7 @@ def rate_exchanger(hot_in, cold_in, hot_heat_capacity_flow, cold_heat_capacity_f
     >>> round(r.duty, 3), round(r.hot_out, 3), round(r.cold_out, 3)
     (160.0, 70.0, 110.0)
     """
-    arrangement = enum_member(FlowArrangement, arrangement, "flow arrangement")
+    arrangement = enum_member(ExchangerType, arrangement, "flow arrangement")
     n = whole_number(shells, "number of shells")
     th = finite_float(hot_in, "hot inlet temperature", "°C")
     tc = finite_float(cold_in, "cold inlet temperature", "°C")

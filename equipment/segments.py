@@ -20,7 +20,7 @@ from dataclasses import asdict, dataclass, field
 import numpy as np
 
 from ..errors import InputError, TemperatureCrossError
-from ..model import Segment
+from ..model import Segment, Utility
 from ..validation import positive_float
 from .sizing import log_mean, overall_coefficient
 
@@ -28,6 +28,8 @@ __all__ = [
     "SizingInterval",
     "SegmentedSizing",
     "cut_profile",
+    "ISOTHERMAL_GLIDE",
+    "utility_segment",
     "size_segments",
 ]
 
@@ -136,6 +138,46 @@ def cut_profile(segments: Sequence[Segment], start: float, end: float) -> tuple[
         if keep:
             out.append(Segment(a2, b2, s.heat_capacity_flow, s.film_coefficient, s.dt_min_contribution, s.row))
     return tuple(out)
+
+
+ISOTHERMAL_GLIDE = 1e-6
+"""Temperature glide given to an isothermal utility when it is sized as a segment [K]; changes an LMTD by
+less than one part in a million."""
+
+
+def utility_segment(utility: Utility, t_in: float, t_out: float, duty: float,
+                    film_coefficient: float | None = None) -> Segment:
+    """A utility side of a heater or cooler as one segment, for :func:`size_segments`.
+
+    The utility runs linearly from ``t_in`` to ``t_out`` carrying ``duty``; an isothermal one (``t_in``
+    equal to ``t_out``: condensing steam, boiling water) is given a glide of :data:`ISOTHERMAL_GLIDE` in
+    its direction, so that it has a finite heat capacity flow.
+
+    Parameters
+    ----------
+    utility : Utility
+        The utility (hot for a heater, cold for a cooler).
+    t_in, t_out : float
+        Its inlet and outlet temperatures in the unit [°C].
+    duty : float
+        Heat the unit transfers [kW], > 0.
+    film_coefficient : float, optional
+        h of the utility side [kW/(m²·K)]; None when U is given to :func:`size_segments`.
+
+    Returns
+    -------
+    Segment
+
+    Examples
+    --------
+    >>> from heatloom.model import UtilityKind
+    >>> g = utility_segment(Utility("steam", 200, 200, 100.0, UtilityKind.HOT), 200, 200, 50.0)
+    >>> g.target_temperature == 200 - ISOTHERMAL_GLIDE, round(g.heat_capacity_flow * ISOTHERMAL_GLIDE, 6)
+    (True, 50.0)
+    """
+    if t_in == t_out:
+        t_out = t_in - ISOTHERMAL_GLIDE if utility.is_hot else t_in + ISOTHERMAL_GLIDE
+    return Segment(t_in, t_out, duty / abs(t_in - t_out), film_coefficient)
 
 
 def size_segments(hot_segments: Sequence[Segment], cold_segments: Sequence[Segment], *, u=None,

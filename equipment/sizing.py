@@ -33,7 +33,7 @@ import numpy as np
 
 from .. import defaults
 from ..errors import InputError, TemperatureCrossError
-from ..model.exchangers import FlowArrangement
+from ..model.exchangers import ExchangerType
 from ..validation import (
     as_float_array,
     enum_member,
@@ -171,7 +171,7 @@ def _end_differences(hot_in, hot_out, cold_in, cold_out, arrangement):
              "give the hot side as inlet, outlet with inlet >= outlet")
     require(tc2 >= tc1, tc1 - tc2, "cold outlet is below cold inlet (cold side would be cooled by {} K); "
              "give the cold side as inlet, outlet with outlet >= inlet")
-    if arrangement is FlowArrangement.CO_CURRENT:
+    if arrangement.flow_pattern is ExchangerType.CO_CURRENT:
         ends = ((th1 - tc1, "inlet end (hot inlet − cold inlet)"),
                 (th2 - tc2, "outlet end (hot outlet − cold outlet)"))
     else:
@@ -188,19 +188,21 @@ def _end_differences(hot_in, hot_out, cold_in, cold_out, arrangement):
     return ends[0][0], ends[1][0]
 
 
-def lmtd(hot_in, hot_out, cold_in, cold_out, arrangement=FlowArrangement.COUNTER_CURRENT):
+def lmtd(hot_in, hot_out, cold_in, cold_out, arrangement=ExchangerType.COUNTER_CURRENT):
     """Log-mean temperature difference of an exchanger from its four terminal temperatures.
 
     Counter-current: ΔT₁ = T_h,in − T_c,out, ΔT₂ = T_h,out − T_c,in.  Co-current:
     ΔT₁ = T_h,in − T_c,in, ΔT₂ = T_h,out − T_c,out.  For ``SHELL_AND_TUBE_1_2`` the counter-current
-    value is returned, to be multiplied by the F-factor (the usual convention).  See :func:`log_mean`.
+    value is returned, to be multiplied by the F-factor (the usual convention); a ``DOUBLE_PIPE`` is
+    counter-current (its :attr:`~heatloom.model.exchangers.ExchangerType.flow_pattern`).  See
+    :func:`log_mean`.
 
     Parameters
     ----------
     hot_in, hot_out, cold_in, cold_out : float or array
         Terminal temperatures [°C]; hot_in >= hot_out and cold_out >= cold_in.
-    arrangement : FlowArrangement, optional
-        Counter-current by default.
+    arrangement : ExchangerType, optional
+        Kind of exchanger; counter-current by default [-].
 
     Returns
     -------
@@ -221,7 +223,7 @@ def lmtd(hot_in, hot_out, cold_in, cold_out, arrangement=FlowArrangement.COUNTER
     >>> lmtd(100, 60, 20, 60)
     40.0
     """
-    arrangement = enum_member(FlowArrangement, arrangement, "flow arrangement")
+    arrangement = enum_member(ExchangerType, arrangement, "flow arrangement")
     dt1, dt2 = _end_differences(hot_in, hot_out, cold_in, cold_out, arrangement)
     return log_mean(dt1, dt2)
 
@@ -399,7 +401,7 @@ def _r_and_p(hot_in, hot_out, cold_in, cold_out):
     th1, th2, tc1, tc2 = (finite_float(x, f"{name} temperature", "°C") for x, name in
                           ((hot_in, "hot inlet"), (hot_out, "hot outlet"), (cold_in, "cold inlet"),
                            (cold_out, "cold outlet")))
-    _end_differences(th1, th2, tc1, tc2, FlowArrangement.COUNTER_CURRENT)
+    _end_differences(th1, th2, tc1, tc2, ExchangerType.COUNTER_CURRENT)
     dh, dc = th1 - th2, tc2 - tc1
     if dh == 0 or dc == 0:
         return None, None           # one side isothermal: F = 1 whatever the arrangement

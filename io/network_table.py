@@ -22,9 +22,9 @@ Columns:
 * ``hot_order``, ``cold_order`` — position of the unit along its hot and its cold process stream from the
   stream's supply end, 1, 2, ...; default the row order.  Give them for every unit of a stream or for
   none; leave them empty on a utility side;
-* ``type`` — ``counter-current`` (default), ``co-current`` or ``1-2`` (shell-and-tube, one shell pass and
+* ``type`` — ``counter-current`` (default), ``co-current``, ``1-2`` (shell-and-tube, one shell pass and
   an even number of tube passes), with ``shells`` in series (1 by default; ``shells`` > 1 without a type
-  means 1-2 shells).
+  means 1-2 shells), or ``double pipe`` (``hairpin``; rated as counter-current).
 
 Units may be written in the headers (``area [ft2]``, ``duty (MW)``, ``U [W/m2K]``) or in a units row under
 the header, converted with :mod:`heatloom.io.units`; title lines are skipped and foreign headers can be
@@ -40,7 +40,7 @@ from collections.abc import Mapping
 import numpy as np
 
 from ..errors import InputError
-from ..model.exchangers import FlowArrangement
+from ..model.exchangers import ExchangerType
 from ..model.existing import ExistingUnit, UnitTable
 from .cells import cell_text
 from .tables import Table, normalise_name, parse_column_mapping, read_table
@@ -68,10 +68,12 @@ NETWORK_ALIASES: dict[str, tuple[str, ...]] = {
 _KINDS = {"area": QuantityKind.AREA, "duty": QuantityKind.DUTY, "U": QuantityKind.FILM_COEFFICIENT}
 _TYPES = {
     **dict.fromkeys(("countercurrent", "counter", "counterflow", "cc", "countercurrentflow"),
-                    FlowArrangement.COUNTER_CURRENT),
-    **dict.fromkeys(("cocurrent", "co", "parallel", "parallelflow", "cocurrentflow"), FlowArrangement.CO_CURRENT),
+                    ExchangerType.COUNTER_CURRENT),
+    **dict.fromkeys(("cocurrent", "co", "parallel", "parallelflow", "cocurrentflow"), ExchangerType.CO_CURRENT),
     **dict.fromkeys(("12", "12shell", "shellandtube", "shellandtube12", "s&t", "st", "stx", "12shellandtube",
-                     "shellandtube1shell2tubepasses", "shellandtube12shells"), FlowArrangement.SHELL_AND_TUBE_1_2),
+                     "shellandtube1shell2tubepasses", "shellandtube12shells"), ExchangerType.SHELL_AND_TUBE_1_2),
+    **dict.fromkeys(("doublepipe", "hairpin", "hairpins", "doublepipehairpin", "doublepipehairpins"),
+                    ExchangerType.DOUBLE_PIPE),
 }
 
 
@@ -177,11 +179,11 @@ def _units(table: Table) -> list[ExistingUnit]:
             arrangement = _TYPES.get(normalise_name(types[i]))
             if arrangement is None:
                 raise table.error(f"unknown type {types[i]!r}; allowed: counter-current, co-current, 1-2 "
-                                  "(shell-and-tube)", index=i, column="type")
+                                  "(shell-and-tube), double pipe (hairpin)", index=i, column="type")
         elif shells[i] is not None and shells[i] > 1:
-            arrangement = FlowArrangement.SHELL_AND_TUBE_1_2
+            arrangement = ExchangerType.SHELL_AND_TUBE_1_2
         else:
-            arrangement = FlowArrangement.COUNTER_CURRENT
+            arrangement = ExchangerType.COUNTER_CURRENT
         try:
             out.append(ExistingUnit(names[i], hot[i], cold[i], area=_or_none(area[i]), duty=_or_none(duty[i]),
                                     u=_or_none(u[i]), arrangement=arrangement,

@@ -22,7 +22,7 @@ from collections.abc import Sequence
 
 from .. import defaults
 from ..equipment.geometry import hairpins_for_area
-from ..equipment.segments import cut_profile, size_segments
+from ..equipment.segments import cut_profile, size_segments, utility_segment
 from ..equipment.sizing import shell_design
 from ..errors import InfeasibleError, InputError
 from ..model import Segment, Stream, StreamTable, Utility
@@ -30,16 +30,13 @@ from ..model.costs import CostSettings, UnitKind
 from ..model.exchangers import ExchangerType
 from ..pinch import target
 from ..pinch.utilities import ideal_utilities
+from ..validation import enum_member
 from .placement import Side, stage_model
 from .solvers import solve
 from .structure import Cooler, Exchanger, Heater, Network, check_network, stream_enthalpy
 from .transshipment import Region, pinch_regions
 
 __all__ = ["design_mer"]
-
-ISOTHERMAL_GLIDE = 1e-6
-"""Temperature glide given to an isothermal utility when it is sized as a segment [K]; changes the
-LMTD by less than one part in a million."""
 
 
 def _process_side(stream: Stream, region: Region, shift: float) -> Side | None:
@@ -82,10 +79,18 @@ def _with_h(segments, default: float | None, scale: float = 1.0) -> list[Segment
                     g.film_coefficient if g.film_coefficient is not None else default) for g in segments]
 
 
-def _utility_segment(u: Utility, t_in: float, t_out: float, duty: float, h: float | None) -> Segment:
-    if t_in == t_out:  # isothermal: a tiny glide keeps it a segment (see ISOTHERMAL_GLIDE)
-        t_out = t_in - ISOTHERMAL_GLIDE if u.is_hot else t_in + ISOTHERMAL_GLIDE
-    return Segment(t_in, t_out, duty / abs(t_in - t_out), h)
+def _geometry_kind(exchanger_type) -> ExchangerType | None:
+    """The kind whose geometry the design reports (None: counter-current area only)."""
+    if exchanger_type is None:
+        return None
+    kind = enum_member(ExchangerType, exchanger_type, "exchanger type")
+    if kind is ExchangerType.COUNTER_CURRENT:
+        return None
+    if not kind.has_geometry:
+        allowed = ", ".join(k.value for k in ExchangerType if k.has_geometry)
+        raise InputError(f"exchanger type {kind.value} has no geometry to report: the design sizes "
+                         f"counter-current areas, or the geometry of one of {allowed}")
+    return kind
 
 
 def _geometry(area: float, unit, exchanger_type: ExchangerType | None, options: dict):
@@ -127,9 +132,10 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
         Film coefficient assumed where a stream or utility has none [kW/(m²·K)]; without it a missing
         coefficient is an error (areas cannot be computed).
     exchanger_type : ExchangerType, optional
-        Report every unit's geometry as this type: ``SHELL_AND_TUBE_1_2`` (shells in series and F, area
-        raised by 1/F, cost law per shell) or ``DOUBLE_PIPE`` (hairpins; needs ``tube_diameter`` [m] and
-        ``hairpin_length`` [m]).  None: counter-current area only.
+        Report every unit's geometry as this kind, one whose :attr:`~ExchangerType.has_geometry` is True:
+        ``SHELL_AND_TUBE_1_2`` (shells in series and F, area raised by 1/F, cost law per shell) or
+        ``DOUBLE_PIPE`` (hairpins; needs ``tube_diameter`` [m] and ``hairpin_length`` [m]).  None or
+        ``COUNTER_CURRENT``: counter-current area only.
 
     Returns
     -------
@@ -139,7 +145,8 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
     Raises
     ------
     InputError
-        Film coefficients missing and no default given.
+        Film coefficients missing and no default given; an exchanger type without a geometry other
+        than counter-current; a double pipe without its tube diameter or hairpin length.
     InfeasibleError
         No utility can serve the process, or no placement keeps ΔTmin.
     """
@@ -147,6 +154,7 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
 
     notes: list[str] = []
     geometry_options = {"tube_diameter": tube_diameter, "hairpin_length": hairpin_length}
+    exchanger_type = _geometry_kind(exchanger_type)
     if exchanger_type is ExchangerType.DOUBLE_PIPE and (tube_diameter is None or hairpin_length is None):
         raise InputError("double-pipe units need a tube diameter [m] and a hairpin leg length [m] "
                          "(--tube-diameter, --hairpin-length)")
@@ -235,13 +243,13 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
             hot_segs = _with_h(cut_profile(hot_s.segments, p.hot_in, p.hot_out), default_h, p.hot_fraction)
         else:
             h = hot_u.film_coefficient if hot_u.film_coefficient is not None else default_h
-            hot_segs = [_utility_segment(hot_u, p.hot_in, p.hot_out, p.duty, h)]
+            hot_segs = [utility_segment(hot_u, p.hot_in, p.hot_out, p.duty, h)]
         if cold_s is not None:
             cold_segs = _with_h(cut_profile(cold_s.segments, p.cold_in, p.cold_out), default_h,
                                 p.cold_fraction)
         else:
             h = cold_u.film_coefficient if cold_u.film_coefficient is not None else default_h
-            cold_segs = [_utility_segment(cold_u, p.cold_in, p.cold_out, p.duty, h)]
+            cold_segs = [utility_segment(cold_u, p.cold_in, p.cold_out, p.duty, h)]
         sizing = size_segments(hot_segs, cold_segs, rel_tol=1e-5)
         # effective LMTD and mean U of the whole unit: Q = U·A·LMTD with LMTD = Q / Σ(Q_k / LMTD_k)
         lm = p.duty / sum(i.duty / i.lmtd for i in sizing.intervals)

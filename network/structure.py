@@ -3,7 +3,9 @@
 The result objects of design (:class:`Network`, :class:`Exchanger`, :class:`Heater`, :class:`Cooler`) are
 frozen dataclasses whose ``to_dict`` gives the stable JSON shape of ``heatloom design --json`` (see
 DEVELOPERS.md).  :func:`check_network` verifies the energy balance of every stream and of every unit and
-the minimum approach at both ends of every unit; a network that fails it is never returned by design.
+the minimum approach at both ends of every unit (and at the segment breaks inside it, by
+:func:`smallest_approach`, which the rating of existing networks uses too); a network that fails it is
+never returned by design.
 """
 
 from __future__ import annotations
@@ -25,6 +27,7 @@ __all__ = [
     "Network",
     "stream_enthalpy",
     "stream_temperature",
+    "smallest_approach",
     "check_network",
     "approach_violations",
 ]
@@ -297,39 +300,99 @@ def _side_duty(stream: Stream, t_in: float, t_out: float, fraction: float) -> fl
     return fraction * abs(stream_enthalpy(stream, t_out) - stream_enthalpy(stream, t_in))
 
 
-def _min_approach_inside(hot: Stream | None, cold: Stream | None, e, hot_frac: float, cold_frac: float,
-                         hot_temps: tuple[float, float], cold_temps: tuple[float, float]) -> float:
+def smallest_approach(hot: Stream | Utility | None, cold: Stream | Utility | None, hot_in: float, hot_out: float,
+                      cold_in: float, cold_out: float, *, duty: float | None = None,
+                      hot_fraction: float | None = None, cold_fraction: float | None = None) -> float:
     """Smallest hot − cold temperature difference along a counter-current unit [K].
 
-    Both sides are piecewise linear in duty; the minimum lies at a breakpoint of either side.
+    Checked at both ends (hot inlet against cold outlet, hot outlet against cold inlet) and at every
+    segment break of a process stream inside the unit: both sides are piecewise linear in the heat
+    transferred, so the minimum lies at one of these points.  The two profiles are paired by the heat
+    transferred from the hot end.  A process side follows its stream's enthalpy profile
+    (:func:`stream_enthalpy`, continued beyond the supply and target temperatures with the end segments'
+    CP); a utility side (or None) runs linearly between the two temperatures given.
+
+    Parameters
+    ----------
+    hot, cold : Stream, Utility or None
+        The unit's two sides; a Utility or None is a linear side.
+    hot_in, hot_out, cold_in, cold_out : float
+        Terminal temperatures [°C].
+    duty : float, optional
+        Heat the unit transfers [kW]; by default the heat the hot stream's share exchanges between its
+        terminal temperatures (the cold stream's when the hot side is a utility).
+    hot_fraction, cold_fraction : float, optional
+        Share of each stream's flow that passes the unit (a split branch) [-]; by default the share whose
+        heat between the side's terminal temperatures is ``duty``.
+
+    Returns
+    -------
+    float
+        [K]; negative where the profiles cross.  Only the ends count when neither side is a stream or
+        the duty is not > 0.
+
+    Examples
+    --------
+    A hot stream cooled 150 → 100 °C (1 kW/K) then condensing 100 → 90 °C (10 kW/K), 150 kW, heats a cold
+    stream of 1.5 kW/K from 20 to 120 °C.  The ends give 30 K and 70 K; at the break the hot side has given
+    50 kW, so the cold side is at 120 − 50/1.5 = 86.667 °C: 13.333 K, the smallest.  Against condensing
+    steam only the ends count.
+
+    >>> from heatloom.model import Segment
+    >>> h = Stream("H", (Segment(150, 100, 1.0), Segment(100, 90, 10.0)))
+    >>> c = Stream.simple("C", 20, 120, 1.5)
+    >>> round(smallest_approach(h, c, 150, 90, 20, 120), 3)
+    13.333
+    >>> smallest_approach(Utility("steam", 180, 179, 100.0), c, 180, 179, 20, 120)
+    60
     """
-    (h_in, h_out), (c_in, c_out) = hot_temps, cold_temps
-    q = e.duty
-    pts = {0.0, q}
+    ends = [hot_in - cold_out, hot_out - cold_in]
+    hot_s = hot if isinstance(hot, Stream) else None
+    cold_s = cold if isinstance(cold, Stream) else None
+    # heat each stream exchanges between its terminal temperatures, whole flow [kW]
+    base_h = stream_enthalpy(hot_s, hot_in, extrapolate=True) if hot_s is not None else 0.0
+    base_c = stream_enthalpy(cold_s, cold_out, extrapolate=True) if cold_s is not None else 0.0
+    q_h = stream_enthalpy(hot_s, hot_out, extrapolate=True) - base_h if hot_s is not None else None
+    q_c = base_c - stream_enthalpy(cold_s, cold_in, extrapolate=True) if cold_s is not None else None
+    q = duty
+    if q is None:
+        q = q_h * (1.0 if hot_fraction is None else hot_fraction) if q_h is not None else \
+            q_c * (1.0 if cold_fraction is None else cold_fraction) if q_c is not None else None
+    if q is None or not q > 0:
+        return min(ends)
 
-    def hot_t(x):  # temperature of the hot side after giving x kW from its inlet
-        if hot is None:
-            return h_in + (h_out - h_in) * (x / q if q > 0 else 0.0)
-        return stream_temperature(hot, stream_enthalpy(hot, h_in) + x / hot_frac)
+    def stream_heat(x: float, fraction: float | None, q_side: float) -> float:
+        """Heat of the whole stream [kW] while the unit transfers x kW."""
+        return x / fraction if fraction is not None else x * q_side / q
 
-    def cold_t(x):  # cold side temperature at the same cross-section (it leaves at the hot inlet end)
-        if cold is None:
-            return c_out - (c_out - c_in) * (x / q if q > 0 else 0.0)
-        return stream_temperature(cold, stream_enthalpy(cold, c_out) - x / cold_frac)
+    def unit_heat(y: float, fraction: float | None, q_side: float) -> float:
+        """Heat the unit transfers [kW] while the whole stream exchanges y kW (inverse of stream_heat)."""
+        return y * fraction if fraction is not None else y * q / q_side
 
-    if hot is not None:
-        base = stream_enthalpy(hot, h_in)
-        for g_t in (g.target_temperature for g in hot.segments):
-            x = (stream_enthalpy(hot, g_t) - base) * hot_frac
+    xs = []  # heat from the hot end (hot inlet, cold outlet)
+    if hot_s is not None:
+        for g in hot_s.segments:
+            x = unit_heat(stream_enthalpy(hot_s, g.target_temperature, extrapolate=True) - base_h, hot_fraction, q_h)
             if 0 < x < q:
-                pts.add(x)
-    if cold is not None:
-        base = stream_enthalpy(cold, c_out)
-        for g_t in (g.target_temperature for g in cold.segments):
-            x = (base - stream_enthalpy(cold, g_t)) * cold_frac
+                xs.append(x)
+    if cold_s is not None:
+        for g in cold_s.segments:
+            x = unit_heat(base_c - stream_enthalpy(cold_s, g.target_temperature, extrapolate=True), cold_fraction,
+                          q_c)
             if 0 < x < q:
-                pts.add(x)
-    return min(hot_t(x) - cold_t(x) for x in sorted(pts))
+                xs.append(x)
+
+    def t_hot(x):
+        if hot_s is not None:
+            return stream_temperature(hot_s, base_h + stream_heat(x, hot_fraction, q_h), extrapolate=True)
+        return hot_in + (hot_out - hot_in) * x / q
+
+    def t_cold(x):
+        if cold_s is not None:
+            return stream_temperature(cold_s, base_c - stream_heat(x, cold_fraction, q_c), extrapolate=True)
+        return cold_out + (cold_in - cold_out) * x / q
+
+    return min(ends + [t_hot(x) - t_cold(x) for x in xs])
 
 
 def approach_violations(network: Network, streams: StreamTable, utilities: Sequence[Utility] = (), *,
@@ -352,22 +415,22 @@ def approach_violations(network: Network, streams: StreamTable, utilities: Seque
     problems = []
     for e in network.exchangers:
         hot, cold = by_name[e.hot], by_name[e.cold]
-        d = _min_approach_inside(hot, cold, e, e.hot_fraction, e.cold_fraction, (e.hot_in, e.hot_out),
-                                 (e.cold_in, e.cold_out))
+        d = smallest_approach(hot, cold, e.hot_in, e.hot_out, e.cold_in, e.cold_out, duty=e.duty,
+                              hot_fraction=e.hot_fraction, cold_fraction=e.cold_fraction)
         if d < need(hot, cold) - tol:
             problems.append(f"exchanger {e.hot}→{e.cold}: smallest approach {d:.4g} K < {need(hot, cold):g} K "
                             f"(ΔTmin {dt:g} K)")
     for h in network.heaters:
         cold = by_name[h.cold]
-        d = _min_approach_inside(None, cold, h, 1.0, h.cold_fraction, (h.utility_in, h.utility_out),
-                                 (h.cold_in, h.cold_out))
+        d = smallest_approach(None, cold, h.utility_in, h.utility_out, h.cold_in, h.cold_out, duty=h.duty,
+                              cold_fraction=h.cold_fraction)
         if d < need(None, cold) - tol:
             problems.append(f"heater {h.utility}→{h.cold}: smallest approach {d:.4g} K < {need(None, cold):g} K "
                             f"(ΔTmin {dt:g} K)")
     for c in network.coolers:
         hot = by_name[c.hot]
-        d = _min_approach_inside(hot, None, c, c.hot_fraction, 1.0, (c.hot_in, c.hot_out),
-                                 (c.utility_in, c.utility_out))
+        d = smallest_approach(hot, None, c.hot_in, c.hot_out, c.utility_in, c.utility_out, duty=c.duty,
+                              hot_fraction=c.hot_fraction)
         if d < need(hot, None) - tol:
             problems.append(f"cooler {c.hot}→{c.utility}: smallest approach {d:.4g} K < {need(hot, None):g} K "
                             f"(ΔTmin {dt:g} K)")

@@ -25,10 +25,11 @@ from ..equipment.sizing import overall_coefficient
 from ..errors import InputError, SolverError, TemperatureCrossError
 from ..model import Utility
 from ..model.costs import RetrofitCosts, capital_recovery_factor
-from ..model.exchangers import FlowArrangement
+from ..model.exchangers import ExchangerType
 from ..model.existing import ExistingUnit, OperatingMode, UnitRole
+from ..network.structure import smallest_approach
 from .existing import ExistingNetwork, film_coefficient_of
-from .profiles import heat_between, mean_cp_between, smallest_approach, temperature_after, utility_match_area
+from .profiles import heat_between, mean_cp_between, temperature_after, utility_match_area
 from .selection import SetValue
 from .simulate import Simulation, simulate
 
@@ -390,7 +391,7 @@ def _largest_duty(hot, cold, th: float, tc: float, emat: float, cap: float) -> f
     return float(lo)
 
 
-def _area_for(hot, cold, th: float, tc: float, q: float, u: float, arrangement=FlowArrangement.COUNTER_CURRENT,
+def _area_for(hot, cold, th: float, tc: float, q: float, u: float, arrangement=ExchangerType.COUNTER_CURRENT,
               shells: int = 1, limit: float = 1.0) -> float | None:
     """Area [m²] that transfers ``q`` [kW] from these inlets by ε-NTU (mean CPs over the ranges covered)."""
     ch = mean_cp_between(hot, th, temperature_after(hot, th, q)) if not isinstance(hot, Utility) else math.inf
@@ -425,7 +426,7 @@ def added_area_candidates(ctx: Evaluator, net: ExistingNetwork, sim: Simulation,
     gain = q_top - st.duty
     if not gain > max(0.5, 1e-3 * st.duty):
         return []
-    limit = MAX_1_2_EFFECTIVENESS if unit.arrangement is FlowArrangement.SHELL_AND_TUBE_1_2 else 1.0
+    limit = MAX_1_2_EFFECTIVENESS if unit.arrangement is ExchangerType.SHELL_AND_TUBE_1_2 else 1.0
     out = []
     for f in sizes:
         area = _area_for(hot, cold, th, tc, st.duty + f * gain, unit.u, unit.arrangement, unit.shells, limit)

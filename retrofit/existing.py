@@ -41,9 +41,10 @@ from ..equipment.rating import max_effectiveness, ntu_from_effectiveness
 from ..equipment.sizing import overall_coefficient
 from ..errors import InputError, TemperatureCrossError
 from ..model import Stream, StreamTable, Utility
-from ..model.exchangers import FlowArrangement
+from ..model.exchangers import ExchangerType
 from ..model.existing import ExistingUnit, OperatingMode, UnitRole, UnitTable
-from .profiles import heat_between, smallest_approach, temperature_after, utility_match_area
+from ..network.structure import smallest_approach
+from .profiles import heat_between, temperature_after, utility_match_area
 
 __all__ = [
     "ExistingNetwork",
@@ -420,7 +421,7 @@ class ExistingNetwork:
             eps = u.duty / (cmin * (hot_in - cold_in))
             top = float(max_effectiveness(cmin / cmax, u.arrangement, shells=u.shells))
             approach = smallest_approach(hot, cold, hot_in, hot_out, cold_in, cold_out)
-            if not eps < top or (u.arrangement is not FlowArrangement.SHELL_AND_TUBE_1_2 and not approach > 0):
+            if not eps < top or (u.arrangement is not ExchangerType.SHELL_AND_TUBE_1_2 and not approach > 0):
                 raise InputError(f"unit '{u.name}' cannot do its stated duty {u.duty:.6g} kW: the driving force "
                                  f"allows less ({sides}; effectiveness {eps:.4g}, the {u.arrangement.value} "
                                  f"limit is {top:.4g})", **where)

@@ -30,9 +30,10 @@ from scipy.optimize import brentq
 
 from ..errors import InputError
 from ..model.existing import UnitRole
+from ..network.structure import smallest_approach
 from ..validation import non_negative
 from .existing import ExistingNetwork
-from .profiles import smallest_approach, temperature_after
+from .profiles import temperature_after
 from .simulate import Simulation
 
 __all__ = ["PathShift", "NetworkPinch", "network_pinch"]

@@ -40,12 +40,13 @@ from scipy.optimize import brentq
 
 from ..equipment.rating import effectiveness_from_ntu
 from ..errors import SolverError
-from ..model.exchangers import FlowArrangement
+from ..model.exchangers import ExchangerType
 from ..model.existing import ExistingUnit, OperatingMode, UnitRole
+from ..network.structure import smallest_approach
 from ..pinch import target
 from ..validation import check_dt_min
 from .existing import ExistingNetwork
-from .profiles import heat_between, mean_cp_between, smallest_approach, temperature_after
+from .profiles import heat_between, mean_cp_between, temperature_after
 
 __all__ = ["UnitState", "Simulation", "simulate"]
 
@@ -358,7 +359,7 @@ def _system(network: ExistingNetwork, streams: dict, index: dict, pos: dict, cp:
         else:   # rated against an isothermal utility: C_r = 0, ε = 1 − exp(−NTU)
             c = cp[(u.name, side)]
             ntu = u.u * u.area / c
-            eps = float(effectiveness_from_ntu(ntu, 0.0, FlowArrangement.COUNTER_CURRENT))
+            eps = float(effectiveness_from_ntu(ntu, 0.0, ExchangerType.COUNTER_CURRENT))
             coefficient[u.name] = (eps, ntu, eps * c)
             term(row, stream, k - 1, -(1.0 - eps))
             b[row] += eps * _utility_temperature(u, network)
@@ -555,7 +556,7 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
                      "covers in that unit (fixed-point iteration, "
                      f"{iterations} linear solves); energy balances exact, ε-NTU approximate where a segment "
                      "break falls inside a unit")
-    if any(u.arrangement is not FlowArrangement.COUNTER_CURRENT for u in units):
+    if any(u.arrangement.flow_pattern is not ExchangerType.COUNTER_CURRENT for u in units):
         notes.append("min approach of co-current and 1-2 shell units is the counter-current pairing of their "
                      "end temperatures")
     hot_target = cold_target = None

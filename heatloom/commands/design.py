@@ -18,7 +18,7 @@ from .common import (
     whole_number,
 )
 
-__all__ = ["register", "run", "format_network"]
+__all__ = ["EXCHANGER_TYPES", "register", "run", "format_network"]
 
 EPILOG_DESIGN = """\
 examples:
@@ -36,6 +36,10 @@ Areas need a film coefficient h for every stream and utility (column h, kW/(m²�
 one where it is missing, and the output says so.
 """
 
+EXCHANGER_TYPES = {"counter-current": "counter_current", "shell-and-tube": "shell_and_tube_1_2",
+                   "double-pipe": "double_pipe"}
+"""Values of ``--exchanger-type`` → the value of their :class:`heatloom.model.ExchangerType`; the design
+refuses a kind without a geometry other than counter-current (see :func:`heatloom.network.design_mer`)."""
 
 
 def register(sub) -> None:
@@ -59,7 +63,7 @@ def register(sub) -> None:
                    help="mer: time limit of each solve [s] (default 60 s); tac: of the whole run [s] "
                         "(default 120 s)")
     geo = p.add_argument_group("geometry (--mode mer)")
-    geo.add_argument("--exchanger-type", choices=["counter-current", "shell-and-tube", "double-pipe"],
+    geo.add_argument("--exchanger-type", choices=list(EXCHANGER_TYPES),
                      default="counter-current",
                      help="report every unit as this type: 1-2 shell-and-tube (shells by the X_P criterion, F, "
                           "cost per shell) or double-pipe hairpins (default: counter-current area only)")
@@ -166,8 +170,7 @@ def run(args) -> int:
         from ..model import ExchangerType
         from ..network import design_mer
 
-        kind = {"counter-current": None, "shell-and-tube": ExchangerType.SHELL_AND_TUBE_1_2,
-                "double-pipe": ExchangerType.DOUBLE_PIPE}[args.exchanger_type]
+        kind = ExchangerType(EXCHANGER_TYPES[args.exchanger_type])
         net = design_mer(streams, dt_min, utilities, costs=costs, solver=args.solver,
                          time_limit=args.time_limit or 60.0, default_film_coefficient=args.default_h,
                          exchanger_type=kind, tube_diameter=args.tube_diameter,

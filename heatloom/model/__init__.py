@@ -7,7 +7,7 @@ types; the computing layers take them.
 """
 
 from .costs import CostLaw, CostSettings, RetrofitCosts, UnitKind, capital_recovery_factor, price_per_kw_year
-from .exchangers import ExchangerType, FlowArrangement
+from .exchangers import ExchangerType
 from .existing import ExistingUnit, OperatingMode, UnitRole, UnitTable
 from .prices import BASE_NAME, PriceScenario, price_factor_scenarios
 from .site import WATER_CRITICAL_TEMPERATURE, WATER_TRIPLE_POINT, MainKind, SteamMain, Zone, check_mains
@@ -25,7 +25,7 @@ from .streams import (
 __all__ = [
     "ABSOLUTE_ZERO", "finite_number", "Segment", "Stream", "StreamTable", "StreamArrays", "UtilityKind", "Utility",
     "CostLaw", "CostSettings", "RetrofitCosts", "UnitKind", "capital_recovery_factor", "price_per_kw_year",
-    "ExchangerType", "FlowArrangement",
+    "ExchangerType",
     "ExistingUnit", "OperatingMode", "UnitRole", "UnitTable",
     "BASE_NAME", "PriceScenario", "price_factor_scenarios",
     "WATER_CRITICAL_TEMPERATURE", "WATER_TRIPLE_POINT", "MainKind", "SteamMain", "Zone", "check_mains",

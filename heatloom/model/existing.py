@@ -14,7 +14,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import InputError
-from .exchangers import FlowArrangement
+from .exchangers import ExchangerType
 
 __all__ = ["UnitRole", "OperatingMode", "ExistingUnit", "UnitTable"]
 
@@ -39,13 +39,13 @@ class OperatingMode(enum.Enum):
     """Heater or cooler inside a stream: keeps its stated duty."""
 
 
-def _arrangement_of(value) -> FlowArrangement:
-    if isinstance(value, FlowArrangement):
+def _arrangement_of(value) -> ExchangerType:
+    if isinstance(value, ExchangerType):
         return value
     try:
-        return FlowArrangement(value)
+        return ExchangerType(value)
     except ValueError:
-        allowed = ", ".join(a.value for a in FlowArrangement)
+        allowed = ", ".join(a.value for a in ExchangerType)
         raise InputError(f"unknown exchanger type {value!r}; allowed: {allowed}", column="type") from None
 
 
@@ -68,8 +68,9 @@ class ExistingUnit:
     u : float, optional
         Overall heat transfer coefficient [kW/(m²·K)]; filled in from the film coefficients of the two
         sides, 1/U = 1/h_hot + 1/h_cold (``u_from_films`` is then True).
-    arrangement : FlowArrangement, optional
-        Counter-current (default), co-current or 1-2 shell-and-tube.
+    arrangement : ExchangerType, optional
+        Counter-current (default), co-current, 1-2 shell-and-tube or double pipe (rated as
+        counter-current, see :attr:`ExchangerType.flow_pattern`).
     shells : int, optional
         1-2 shells in series [-] (shell-and-tube only).
     hot_position, cold_position : int, optional
@@ -88,7 +89,7 @@ class ExistingUnit:
     area: float | None = None
     duty: float | None = None
     u: float | None = None
-    arrangement: FlowArrangement = FlowArrangement.COUNTER_CURRENT
+    arrangement: ExchangerType = ExchangerType.COUNTER_CURRENT
     shells: int = 1
     hot_position: int | None = None
     cold_position: int | None = None
@@ -133,7 +134,7 @@ class ExistingUnit:
         if isinstance(shells, bool) or not isinstance(shells, (int, np.integer)) or shells < 1:
             raise InputError(f"unit '{name}': shells must be a whole number >= 1, got {self.shells!r}",
                              column="shells", **where)
-        if shells > 1 and self.arrangement is not FlowArrangement.SHELL_AND_TUBE_1_2:
+        if shells > 1 and self.arrangement is not ExchangerType.SHELL_AND_TUBE_1_2:
             raise InputError(f"unit '{name}': {shells} shells given for a {self.arrangement.value} unit; shells "
                              "in series apply to type shell_and_tube_1_2 only", column="shells", **where)
         object.__setattr__(self, "shells", int(shells))

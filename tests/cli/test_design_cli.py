@@ -106,3 +106,13 @@ def test_exchanger_type_reports_geometry(capsys, ray_das):
                        "--tube-diameter", "0.05", "--hairpin-length", "6", "--json")
     assert code == 0
     assert all(e["geometry"]["hairpins"] >= 1 for e in json.loads(out)["exchangers"])
+
+
+def test_exchanger_type_refuses_kinds_without_geometry(capsys, ray_das):
+    # the command line offers the three kinds it can report; any other (e.g. co-current, which has no
+    # geometry) is refused with a one-line message, exit 2, no traceback
+    with pytest.raises(SystemExit) as exc:
+        run(capsys, "design", ray_das, "--default-h", "1", "--exchanger-type", "co-current")
+    err = capsys.readouterr().err
+    assert exc.value.code == 2 and "invalid choice: 'co-current'" in err and "Traceback" not in err
+    assert "counter-current" in err and "shell-and-tube" in err and "double-pipe" in err

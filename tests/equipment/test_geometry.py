@@ -41,6 +41,29 @@ def test_shell_and_tube_geometry():
     assert s.to_dict()["design"]["shells"] == 2 and s.exchanger_type is ExchangerType.SHELL_AND_TUBE_1_2
 
 
+def test_exchanger_type_registry():
+    # one enum names every kind; the values are those of JSON/CSV files and must not change
+    assert [k.value for k in ExchangerType] == ["counter_current", "co_current", "shell_and_tube_1_2", "double_pipe"]
+    # a double pipe flows counter-current (common practice); the other kinds are their own flow pattern
+    assert {k: k.flow_pattern for k in ExchangerType} == {
+        ExchangerType.COUNTER_CURRENT: ExchangerType.COUNTER_CURRENT, ExchangerType.CO_CURRENT: ExchangerType.CO_CURRENT,
+        ExchangerType.SHELL_AND_TUBE_1_2: ExchangerType.SHELL_AND_TUBE_1_2,
+        ExchangerType.DOUBLE_PIPE: ExchangerType.COUNTER_CURRENT}
+    assert {k for k in ExchangerType if k.has_geometry} == {ExchangerType.SHELL_AND_TUBE_1_2, ExchangerType.DOUBLE_PIPE}
+
+
+@pytest.mark.parametrize("kind", list(ExchangerType))
+def test_size_exchanger_sizes_exactly_the_kinds_with_a_geometry(kind):
+    options = {"tube_diameter": 0.05, "hairpin_length": 4.0} if kind is ExchangerType.DOUBLE_PIPE else {}
+    if kind.has_geometry:
+        sized = size_exchanger(kind, 100.0, 0.5, 150, 100, 30, 80, **options)
+        assert sized.exchanger_type is kind and sized.to_dict()["type"] == kind.value
+    else:
+        with pytest.raises(InputError, match=f"exchanger type {kind.value} has no geometry to size.*allowed: "
+                                             "double_pipe, shell_and_tube_1_2"):
+            size_exchanger(kind.value, 100.0, 0.5, 150, 100, 30, 80)
+
+
 def test_size_exchanger_rejects():
     with pytest.raises(InputError, match="unknown exchanger type 'plate'; allowed: double_pipe, shell_and_tube_1_2"):
         size_exchanger("plate", 100.0, 0.5, 150, 100, 30, 80)

@@ -24,9 +24,10 @@ from heatloom.equipment.rating import (
 )
 from heatloom.equipment.sizing import area_from_duty, lmtd, p_max
 from heatloom.errors import InputError, TemperatureCrossError
-from heatloom.model.exchangers import FlowArrangement
+from heatloom.model.exchangers import ExchangerType
 
-CC, CO, ST = FlowArrangement.COUNTER_CURRENT, FlowArrangement.CO_CURRENT, FlowArrangement.SHELL_AND_TUBE_1_2
+CC, CO, ST = ExchangerType.COUNTER_CURRENT, ExchangerType.CO_CURRENT, ExchangerType.SHELL_AND_TUBE_1_2
+DP = ExchangerType.DOUBLE_PIPE
 HT_SUBTYPE = {CC: "counterflow", CO: "parallel", ST: "S&T"}
 
 
@@ -46,6 +47,38 @@ def test_effectiveness_matches_ht(ntu, cr, arrangement):
     # reference: ht.NTU_from_effectiveness(effectiveness, Cr, subtype=...)
     assert ntu_from_effectiveness(expected, cr, arrangement) == pytest.approx(
         ht.NTU_from_effectiveness(expected, cr, HT_SUBTYPE[arrangement]), rel=1e-9)
+
+
+@pytest.mark.parametrize("ntu, cr", list(itertools.product(NTUS, CRS)))
+@pytest.mark.parametrize("kind", [DP, "double_pipe"])
+def test_double_pipe_rated_as_counter_current_matches_ht(ntu, cr, kind):
+    # a double pipe is a counter-current exchanger (common practice), so it is rated by the counterflow
+    # relation; reference: ht.effectiveness_from_NTU(NTU, Cr, subtype='counterflow') and
+    # ht.NTU_from_effectiveness(effectiveness, Cr, subtype='counterflow') (Caleb Bell, ht.hx module)
+    expected = ht.effectiveness_from_NTU(ntu, cr, "counterflow")
+    assert effectiveness_from_ntu(ntu, cr, kind) == pytest.approx(expected, rel=1e-12)
+    assert ntu_from_effectiveness(expected, cr, kind) == pytest.approx(
+        ht.NTU_from_effectiveness(expected, cr, "counterflow"), rel=1e-9)
+    assert max_effectiveness(cr, kind) == 1.0
+
+
+@pytest.mark.parametrize("ch, cc, ua", [(2.0, 3.0, 4.0), (5.0, 1.5, 2.0), (2.0, 2.0, 4.0), (1.0, 8.0, 30.0)])
+def test_double_pipe_rating_matches_ht_counterflow(ch, cc, ua):
+    # reference: ht.effectiveness_NTU_method(mh, mc, Cph, Cpc, subtype='counterflow', Thi=..., Tci=..., UA=...)
+    ref = ht.effectiveness_NTU_method(mh=ch, mc=cc, Cph=1.0, Cpc=1.0, subtype="counterflow", Thi=180.0, Tci=25.0,
+                                      UA=ua)
+    r = rate_exchanger(180.0, 25.0, ch, cc, 0.5, ua / 0.5, DP)
+    assert (r.duty, r.hot_out, r.cold_out) == pytest.approx((ref["Q"], ref["Tho"], ref["Tco"]), rel=1e-10)
+    assert r.arrangement is DP and r.to_dict()["arrangement"] == "double_pipe"
+
+
+def test_double_pipe_lmtd_is_counter_current_and_names_its_kind():
+    # reference: ht.LMTD(Thi, Tho, Tci, Tco, counterflow=True)
+    assert lmtd(150.0, 60.0, 30.0, 100.0, DP) == pytest.approx(ht.LMTD(150.0, 60.0, 30.0, 100.0), rel=1e-12)
+    with pytest.raises(TemperatureCrossError, match="temperature cross in a double-pipe exchanger"):
+        lmtd(150.0, 60.0, 70.0, 160.0, DP)
+    with pytest.raises(InputError, match="effectiveness 1 is not reachable by a double-pipe exchanger at"):
+        ntu_from_effectiveness(1.0, 0.5, DP)
 
 
 @pytest.mark.parametrize("shells", [1, 2, 3, 5])

@@ -13,10 +13,10 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from heatloom.equipment.segments import cut_profile, size_segments
+from heatloom.equipment.segments import ISOTHERMAL_GLIDE, cut_profile, size_segments, utility_segment
 from heatloom.equipment.sizing import area_from_duty, lmtd, overall_coefficient
 from heatloom.errors import InputError, TemperatureCrossError
-from heatloom.model import Segment
+from heatloom.model import Segment, Utility, UtilityKind
 
 # --------------------------------------------------------------------------------------------------
 # segment-wise sizing
@@ -102,3 +102,18 @@ def test_segment_sizing_errors():
         size_segments([Segment(20, 120, 1.0, 1.0)], [Segment(20, 120, 1.0, 1.0)])
     with pytest.raises(InputError, match="do not chain"):
         size_segments([Segment(200, 150, 1.0, 1.0), Segment(140, 100, 1.0, 1.0)], [Segment(20, 110, 1.0, 1.0)])
+
+
+def test_isothermal_utility_segment_sizes_as_condensing_steam():
+    # condensing steam at 200 °C heats 1 kW/K from 40 to 140 °C (100 kW), U = 1 kW/(m²·K): by hand the LMTD
+    # is (160 − 60)/ln(160/60) K and A = ln(8/3) m²; the tiny glide changes it by less than 1e-6 relative
+    steam = Utility("steam", 200, 200, 100.0, UtilityKind.HOT)
+    g = utility_segment(steam, 200.0, 200.0, 100.0, 5.0)
+    assert (g.supply_temperature, g.target_temperature) == (200.0, 200.0 - ISOTHERMAL_GLIDE)
+    assert g.duty == pytest.approx(100.0, rel=1e-12) and g.film_coefficient == 5.0
+    area = size_segments([g], [Segment(40, 140, 1.0)], u=1.0).area
+    assert area == pytest.approx(math.log(8 / 3), rel=1e-6)
+    # a cold utility warms; a utility with a glide keeps it
+    water = utility_segment(Utility("water", 20, 20, 1.0, UtilityKind.COLD), 20.0, 20.0, 10.0)
+    assert water.target_temperature == 20.0 + ISOTHERMAL_GLIDE and not water.is_hot
+    assert utility_segment(Utility("oil", 250, 200, 5.0), 250.0, 230.0, 40.0).heat_capacity_flow == 2.0

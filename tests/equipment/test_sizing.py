@@ -29,9 +29,9 @@ from heatloom.equipment.sizing import (
     shell_design,
 )
 from heatloom.errors import InputError, TemperatureCrossError
-from heatloom.model.exchangers import FlowArrangement
+from heatloom.model.exchangers import ExchangerType
 
-CO = FlowArrangement.CO_CURRENT
+CO = ExchangerType.CO_CURRENT
 
 
 # --------------------------------------------------------------------------------------------------

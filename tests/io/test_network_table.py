@@ -16,7 +16,7 @@ from heatloom.errors import InputError
 from heatloom.io import read_streams, read_utilities
 from heatloom.io.network_table import read_network
 from heatloom.model import Stream, StreamTable, Utility
-from heatloom.model.exchangers import FlowArrangement
+from heatloom.model.exchangers import ExchangerType
 from heatloom.model.existing import ExistingUnit, OperatingMode, UnitRole
 from heatloom.retrofit.existing import ExistingNetwork
 
@@ -100,9 +100,17 @@ def test_types_and_shells(tmp_path):
             "E2,H2,C2,3.0,,0.4,,,co-current,\n"
             "E3,H3,C1,3.0,,,,,,3\n")
     net = read(tmp_path, body)
-    assert net.unit("E1").arrangement is FlowArrangement.SHELL_AND_TUBE_1_2 and net.unit("E1").shells == 2
-    assert net.unit("E2").arrangement is FlowArrangement.CO_CURRENT
-    assert net.unit("E3").arrangement is FlowArrangement.SHELL_AND_TUBE_1_2 and net.unit("E3").shells == 3
+    assert net.unit("E1").arrangement is ExchangerType.SHELL_AND_TUBE_1_2 and net.unit("E1").shells == 2
+    assert net.unit("E2").arrangement is ExchangerType.CO_CURRENT
+    assert net.unit("E3").arrangement is ExchangerType.SHELL_AND_TUBE_1_2 and net.unit("E3").shells == 3
+
+
+@pytest.mark.parametrize("written", ["double pipe", "Double-Pipe", "double_pipe", "hairpin", "hairpins"])
+def test_double_pipe_type(tmp_path, written):
+    net = read(tmp_path, f"E1,H1,C1,4.0,,,1,1,{written},\nCW1,H1,water,2.0,,,2,,,\nST1,steam,C1,,100,,,2,,\n")
+    assert net.unit("E1").arrangement is ExchangerType.DOUBLE_PIPE and net.unit("E1").shells == 1
+    with pytest.raises(InputError, match="2 shells given for a double_pipe unit"):
+        read(tmp_path, f"E1,H1,C1,4.0,,,1,1,{written},2\nCW1,H1,water,2.0,,,2,,,\nST1,steam,C1,,100,,,2,,\n")
 
 
 def test_workbook_sheet(tmp_path):
@@ -127,7 +135,7 @@ def test_case_study_reads(tmp_path):
     utilities = read_utilities(CASE / "utilities.csv")
     net = ExistingNetwork.from_table(streams, read_network(CASE / "network.csv"), utilities)
     assert len(net.units) == 9 and len(net.exchangers) == 3
-    assert net.unit("E-102").arrangement is FlowArrangement.SHELL_AND_TUBE_1_2 and net.unit("E-102").u == 0.30
+    assert net.unit("E-102").arrangement is ExchangerType.SHELL_AND_TUBE_1_2 and net.unit("E-102").u == 0.30
     assert all(u.mode is OperatingMode.TRIM for u in net.heaters + net.coolers)
     assert net.total_area == pytest.approx(96.4)
 

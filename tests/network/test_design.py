@@ -219,6 +219,47 @@ def test_double_pipe_units_report_hairpins(reference):
         design_mer(streams, 10, default_film_coefficient=1.0, exchanger_type=ExchangerType.DOUBLE_PIPE)
 
 
+def test_exchanger_type_without_geometry(reference):
+    from heatloom.model import ExchangerType
+
+    data, streams = reference("targeting_ray_das_problem_5_4")
+    # counter-current is the plain design (no geometry to report); co-current has no geometry and is refused
+    plain = design_mer(streams, 10, default_film_coefficient=1.0)
+    cc = design_mer(streams, 10, default_film_coefficient=1.0, exchanger_type=ExchangerType.COUNTER_CURRENT)
+    assert [(e.hot, e.cold, e.area, e.geometry) for e in cc.exchangers] == \
+        [(e.hot, e.cold, e.area, e.geometry) for e in plain.exchangers]
+    assert all(e.geometry is None for e in cc.exchangers)
+    with pytest.raises(InputError, match="exchanger type co_current has no geometry to report.*"
+                                         "shell_and_tube_1_2, double_pipe"):
+        design_mer(streams, 10, default_film_coefficient=1.0, exchanger_type=ExchangerType.CO_CURRENT)
+    with pytest.raises(InputError, match="unknown exchanger type 'plate'"):
+        design_mer(streams, 10, default_film_coefficient=1.0, exchanger_type="plate")
+
+
+def test_smallest_approach_on_a_split_branch():
+    # hand calculation: H cools 150 → 100 °C at 1 kW/K then condenses 100 → 90 °C at 10 kW/K (150 kW); half
+    # its flow (a split branch) gives 75 kW to C, 1.5 kW/K, heated 20 → 70 °C.  The branch reaches the
+    # break at 100 °C after 0.5·50 = 25 kW, where C is at 70 − 25/1.5 = 53.333 °C: 46.667 K, below the
+    # ends (150 − 70 = 80 K, 90 − 20 = 70 K).
+    from heatloom.network.structure import smallest_approach
+
+    h = Stream("H", (Segment(150, 100, 1.0), Segment(100, 90, 10.0)))
+    c = Stream.simple("C", 20, 120, 1.5)
+    expected = 100 - (70 - 25 / 1.5)
+    assert smallest_approach(h, c, 150, 90, 20, 70, duty=75.0, hot_fraction=0.5, cold_fraction=1.0) == \
+        pytest.approx(expected, rel=1e-12)
+    assert smallest_approach(h, c, 150, 90, 20, 70, hot_fraction=0.5) == pytest.approx(expected, rel=1e-12)
+    # without fractions each side's share is the one whose heat is the duty (here 75/150 of H)
+    assert smallest_approach(h, c, 150, 90, 20, 70, duty=75.0) == pytest.approx(expected, rel=1e-12)
+    # the same branch cooled by water 25 → 35 °C (a linear side): ends 115 K and 65 K; at the break the
+    # water is at 35 − 10·25/75 = 31.667 °C, 68.333 K
+    water = Utility("water", 25, 35, 1.0)
+    assert smallest_approach(h, water, 150, 90, 25, 35, hot_fraction=0.5) == pytest.approx(65.0, rel=1e-12)
+    # a utility given as None, 25 → 45 °C against the branch cooled 150 → 95 °C (0.5·(50 + 50) = 50 kW): ends
+    # 105 K and 70 K; at the break (25 kW) it is at 45 − 20·25/50 = 35 °C, 65 K
+    assert smallest_approach(h, None, 150, 95, 25, 45, hot_fraction=0.5) == pytest.approx(65.0, rel=1e-12)
+
+
 def _with_contribution(streams: StreamTable, contributions: dict[str, float]) -> StreamTable:
     return StreamTable(tuple(Stream(s.name, tuple(Segment(g.supply_temperature, g.target_temperature,
                                                           g.heat_capacity_flow, g.film_coefficient,

@@ -40,7 +40,7 @@ from heatloom.io.costs import read_retrofit_costs, retrofit_costs_from_mapping
 from heatloom.io.network_table import read_network
 from heatloom.model import Stream, StreamTable, Utility, UtilityKind
 from heatloom.model.costs import CostLaw, CostSettings
-from heatloom.model.exchangers import FlowArrangement
+from heatloom.model.exchangers import ExchangerType
 from heatloom.model.existing import ExistingUnit
 from heatloom.network import design_mer
 from heatloom.retrofit.existing import ExistingNetwork
@@ -171,7 +171,7 @@ def _structure_of(net):
     streams = {s.name: _Profile([(g.supply_temperature, g.target_temperature, g.heat_capacity_flow,
                                   g.film_coefficient or 1.0) for g in s.segments]) for s in net.streams}
     utilities = {u.name for u in net.utilities}
-    assert all(u.arrangement is FlowArrangement.COUNTER_CURRENT for u in net.units)
+    assert all(u.arrangement is ExchangerType.COUNTER_CURRENT for u in net.units)
     units = {u.name: {"hot": u.hot, "cold": u.cold, "area": u.area, "u": u.u, "subtype": "counterflow", "shells": 1}
              for u in net.units}
     orders = {s.name: [u.name for u in net.on_stream(s.name)] for s in net.streams}

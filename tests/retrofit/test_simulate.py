@@ -21,7 +21,7 @@ from refdata import reference_utilities
 
 from heatloom.errors import InputError
 from heatloom.model import Segment, Stream, StreamTable, Utility, UtilityKind
-from heatloom.model.exchangers import FlowArrangement
+from heatloom.model.exchangers import ExchangerType
 from heatloom.model.existing import ExistingUnit, OperatingMode, UnitRole
 from heatloom.network import check_network, design_mer
 from heatloom.pinch.utilities import ideal_utilities
@@ -29,7 +29,8 @@ from heatloom.retrofit.existing import ExistingNetwork
 from heatloom.retrofit.profiles import heat_between, temperature_after
 from heatloom.retrofit.simulate import simulate
 
-CC, CO, ST = FlowArrangement.COUNTER_CURRENT, FlowArrangement.CO_CURRENT, FlowArrangement.SHELL_AND_TUBE_1_2
+CC, CO, ST = ExchangerType.COUNTER_CURRENT, ExchangerType.CO_CURRENT, ExchangerType.SHELL_AND_TUBE_1_2
+DP = ExchangerType.DOUBLE_PIPE
 STEAM = Utility("steam", 300, 299, 100.0, UtilityKind.HOT)
 WATER = Utility("water", 5, 15, 10.0, UtilityKind.COLD)
 
@@ -56,6 +57,9 @@ def one_exchanger(ch, cc, area, u=1.0, arrangement=CC, shells=1, t_hot=180.0, t_
     (2.0, 3.0, 2.5, ST, 1, "S&T"),
     (2.0, 3.0, 6.0, ST, 2, "S&T"),
     (4.0, 1.5, 3.0, ST, 3, "S&T"),
+    (2.0, 3.0, 2.5, DP, 1, "counterflow"),      # a double pipe is counter-current (common practice)
+    (2.0, 2.0, 4.0, DP, 1, "counterflow"),
+    (5.0, 1.0, 0.7, DP, 1, "counterflow"),
 ])
 def test_single_exchanger_matches_ht(ch, cc, ua, arrangement, shells, subtype):
     net = one_exchanger(ch, cc, area=ua / 0.5, u=0.5, arrangement=arrangement, shells=shells)
@@ -69,6 +73,15 @@ def test_single_exchanger_matches_ht(ch, cc, ua, arrangement, shells, subtype):
     assert e.cold_out == pytest.approx(ref["Tco"], rel=1e-9)
     assert e.effectiveness == pytest.approx(ref["effectiveness"], rel=1e-9)
     assert e.ntu == pytest.approx(ref["NTU"], rel=1e-9)
+
+
+def test_double_pipe_simulates_as_counter_current():
+    # the same unit written as a double pipe and as counter-current rates the same (both counterflow in
+    # ht.effectiveness_NTU_method, checked above); only the co-current and 1-2 shell note differs
+    dp, cc = simulate(one_exchanger(2.0, 3.0, 5.0, arrangement=DP)), simulate(one_exchanger(2.0, 3.0, 5.0))
+    assert dp.unit("E").duty == cc.unit("E").duty and dp.temperatures == cc.temperatures
+    assert not any("co-current and 1-2 shell" in n for n in dp.notes)
+    assert any("co-current and 1-2 shell" in n for n in simulate(one_exchanger(2.0, 3.0, 5.0, arrangement=CO)).notes)
 
 
 def test_rated_utility_unit_against_isothermal_steam():
