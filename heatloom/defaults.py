@@ -117,11 +117,11 @@ hottest cold-stream temperature, and a cold utility as far below the coldest hot
 (illustrative default: it only sets the driving force of heaters and coolers)."""
 
 DEFAULT_HOT_UTILITY_PRICE = 200.0
-"""Price of the assumed hot utility [money per kW·year] (illustrative default, of the order of fired
+"""Price of the assumed hot utility [money/(kW·year)] (illustrative default, of the order of fired
 heat or steam at 8000 h/year; not a quotation)."""
 
 DEFAULT_COLD_UTILITY_PRICE = 20.0
-"""Price of the assumed cold utility [money per kW·year] (illustrative default, of the order of cooling
+"""Price of the assumed cold utility [money/(kW·year)] (illustrative default, of the order of cooling
 water; not a quotation)."""
 
 DEFAULT_HOT_UTILITY_FILM_COEFFICIENT = 4.0

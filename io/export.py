@@ -156,8 +156,8 @@ def targets_workbook_sheets(targets) -> dict:
         sheets["utilities"] = pd.DataFrame([{
             "name": d.utility.name, "kind": d.utility.kind.value,
             "T_supply [°C]": d.utility.supply_temperature, "T_target [°C]": d.utility.target_temperature,
-            "price [money/kW·yr]": d.utility.cost, "duty [kW]": d.duty,
-            "annual cost [money/yr]": d.annual_cost} for d in targets.placement.duties])
+            "price [money/(kW·year)]": d.utility.cost, "duty [kW]": d.duty,
+            "annual cost [money/year]": d.annual_cost} for d in targets.placement.duties])
     curves = [targets.hot_composite(), targets.cold_composite(), targets.grand_composite()]
     sheets["curves"] = pd.concat([c.to_frame() for c in curves], axis=1)
     return sheets

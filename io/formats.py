@@ -103,11 +103,11 @@ def number_formats(unit: str | None, value=None) -> tuple[str, str]:
         return "{:,.2f}", "#,##0.00"
     if ("yr" in u or "year" in u) and "kW" in u:
         return "{:,.2f}", "#,##0.00"                      # a price per kW·year
-    if u in ("1/yr", "1/year"):
+    if u == "1/year":
         return "{:.4f}", "0.0000"
     if "/yr" in u or "/year" in u or "per year" in u:
         return "{:,.0f}", "#,##0"                          # annual money
-    if u in ("h/yr", "h/year", "years"):
+    if u in ("h/year", "years"):
         return "{:,.0f}", "#,##0"
     if u in ("yr", "year"):
         return "{:,.2f}", "#,##0.00"                       # a payback

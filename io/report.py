@@ -172,18 +172,18 @@ def _summary(study: Study, page: Page) -> str:
             rows += [("pinch, hot side", t.pinch.hot, "°C"), ("pinch, cold side", t.pinch.cold, "°C")]
     if _done(study.area):
         rows += [("area target", study.area.area, "m²"),
-                 ("total annual cost target", study.area.total_annual_cost, f"{cur}/yr")]
+                 ("total annual cost target", study.area.total_annual_cost, f"{cur}/year")]
     if _done(study.sweep):
         o = study.sweep.optimum
         lo, hi = study.sweep.dt_min_range
         at_end = " (at an end of the swept range: see section 5)" if min(o.dt_min - lo, hi - o.dt_min) <= 0.011 else ""
         rows += [(f"ΔTmin of lowest total annual cost target{at_end}", o.dt_min, "K"),
-                 ("total annual cost target there", o.total_annual_cost, f"{cur}/yr")]
+                 ("total annual cost target there", o.total_annual_cost, f"{cur}/year")]
     for label, net in (("maximum-energy-recovery network", study.design), ("lowest-cost network", study.tac)):
         if _done(net):
             rows.append((f"{label}: units", net.units, "-"))
             if net.total_annual_cost is not None:
-                rows.append((f"{label}: total annual cost", net.total_annual_cost, f"{cur}/yr"))
+                rows.append((f"{label}: total annual cost", net.total_annual_cost, f"{cur}/year"))
     if _done(study.diagnosis):
         d = study.diagnosis
         rows += [("existing network: hot utility used", d.simulation.hot_utility, "kW"),
@@ -240,8 +240,8 @@ def _targets(study: Study, page: Page) -> str:
         frame = pd.DataFrame([{"utility": d.utility.name, "kind": d.utility.kind.value,
                                "T_supply [°C]": d.utility.supply_temperature,
                                "T_target [°C]": d.utility.target_temperature,
-                               f"price [{cur}/(kW·yr)]": d.utility.cost, "duty [kW]": d.duty,
-                               f"annual cost [{cur}/yr]": d.annual_cost} for d in t.placement.duties])
+                               f"price [{cur}/(kW·year)]": d.utility.cost, "duty [kW]": d.duty,
+                               f"annual cost [{cur}/year]": d.annual_cost} for d in t.placement.duties])
         parts.append(frame_table(frame, "Utility levels: cheapest placement against the grand composite curve",
                                  "utility-levels-table"))
     else:
@@ -267,9 +267,9 @@ def _sweep(study: Study, page: Page) -> str:
     cur = w.currency
     o = w.optimum
     rows = [("ΔTmin of lowest total annual cost target", o.dt_min, "K"),
-            ("total annual cost target", o.total_annual_cost, f"{cur}/yr"),
-            ("capital cost target (annualised)", o.capital_cost, f"{cur}/yr"),
-            ("energy cost target", o.energy_cost, f"{cur}/yr"),
+            ("total annual cost target", o.total_annual_cost, f"{cur}/year"),
+            ("capital cost target (annualised)", o.capital_cost, f"{cur}/year"),
+            ("energy cost target", o.energy_cost, f"{cur}/year"),
             ("hot utility", o.hot_utility, "kW"), ("cold utility", o.cold_utility, "kW"),
             ("area target", o.area, "m²"), ("units target (MER)", o.units_mer, "-"), ("shells target", o.shells, "-")]
     lo, hi = w.dt_min_range
@@ -298,8 +298,8 @@ def _sweep(study: Study, page: Page) -> str:
     frame = pd.DataFrame([{"ΔTmin [K]": p.dt_min, "feasible": "yes" if p.feasible else "no",
                            "hot utility [kW]": p.hot_utility, "cold utility [kW]": p.cold_utility,
                            "area [m²]": p.area, "units MER [-]": p.units_mer,
-                           f"capital [{cur}/yr]": p.capital_cost, f"energy [{cur}/yr]": p.energy_cost,
-                           f"total [{cur}/yr]": p.total_annual_cost} for p in shown])
+                           f"capital [{cur}/year]": p.capital_cost, f"energy [{cur}/year]": p.energy_cost,
+                           f"total [{cur}/year]": p.total_annual_cost} for p in shown])
     parts.append(frame_table(frame, "Targets at selected ΔTmin (every point is in the workbook)", "sweep-table"))
     parts.append(notes_list(list(w.notes)))
     return "".join(parts)
@@ -318,9 +318,9 @@ def _network_section(study: Study, page: Page, net, section: str, what: str, key
     rows += [("hot utility", net.hot_utility, "kW"), ("cold utility", net.cold_utility, "kW"),
              ("heat recovery", net.heat_recovery, "kW")]
     if net.total_annual_cost is not None:
-        rows += [("capital cost (annualised)", net.capital_cost, f"{cur}/yr"),
-                 ("utility cost", net.operating_cost, f"{cur}/yr"),
-                 ("total annual cost", net.total_annual_cost, f"{cur}/yr")]
+        rows += [("capital cost (annualised)", net.capital_cost, f"{cur}/year"),
+                 ("utility cost", net.operating_cost, f"{cur}/year"),
+                 ("total annual cost", net.total_annual_cost, f"{cur}/year")]
     return "".join([
         paragraph(intro), long_table(rows, f"The {what}", f"{key}-summary-table"),
         frame_table(network_frame(net, cur), "Units: E exchangers, H heaters, C coolers", f"{key}-units-table"),

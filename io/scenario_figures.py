@@ -60,7 +60,7 @@ def scenario_cost_figure(study, *, title: str | None = None):
                         markerfacecolor="white", markeredgecolor=style["color"], linestyle="none")
         ax.set_title(zone, fontsize=STYLE["font_size"])
         ax.set_xlabel("ΔTmin [K]", fontsize=STYLE["font_size"] - 1)
-        ax.set_ylabel(f"TAC target [{cur}/yr]", fontsize=STYLE["font_size"] - 1)
+        ax.set_ylabel(f"TAC target [{cur}/year]", fontsize=STYLE["font_size"] - 1)
         ax.tick_params(labelsize=STYLE["font_size"] - 2)
         ax.grid(True, color="#e0e0e0", linewidth=0.6)
         ax.set_ylim(bottom=0)

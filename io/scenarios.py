@@ -61,7 +61,7 @@ def read_price_scenarios(path: str | os.PathLike, utilities: Sequence[Utility] |
     Returns
     -------
     tuple of PriceScenario
-        In order of first appearance; prices in money per kW·year.
+        In order of first appearance; prices in money/(kW·year).
 
     Raises
     ------

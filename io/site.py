@@ -19,7 +19,7 @@ messages all apply.  The mains table::
     cooling water,30,8,cooling
 
 ``T`` (also ``temperature``) is the saturation temperature in °C (for a cooling main, the highest
-temperature it reaches); optional ``cost`` (also ``price``) is money per kW·year of steam from boilers or
+temperature it reaches); optional ``cost`` (also ``price``) is money/(kW·year) of steam from boilers or
 of cooling duty (empty: not priced); optional ``kind`` is ``steam`` (default) or ``cooling``.
 """
 
@@ -156,7 +156,7 @@ def read_mains(path: str | os.PathLike, *, sheet: str | None = None,
     Returns
     -------
     tuple of SteamMain
-        In table order; temperatures in °C, prices in money per kW·year (``None`` where empty).
+        In table order; temperatures in °C, prices in money/(kW·year) (``None`` where empty).
 
     Raises
     ------
@@ -180,7 +180,7 @@ def read_mains(path: str | os.PathLike, *, sheet: str | None = None,
         sheet = named[0] if len(named) == 1 else None
     table = read_table(p, MAINS_COLUMNS, required=("name", "T"), sheet=sheet, columns=columns,
                        hint=" (a mains table needs name and T, the saturation temperature; optional cost "
-                            "[money per kW·year] and kind: steam or cooling)")
+                            "[money/(kW·year)] and kind: steam or cooling)")
     n = len(table)
     names = table.text("name")
     temps = table.numbers("T", what="main temperature")

@@ -108,7 +108,7 @@ class SiteStudy:
         if site.mains:
             for b in site.mains:
                 m = b.main
-                price = "not priced" if m.price is None else f"{m.price:g} money/(kW·yr)"
+                price = "not priced" if m.price is None else f"{m.price:g} money/(kW·year)"
                 what = "saturation temperature" if m.is_steam else "highest temperature reached"
                 rows.append((f"main: {m.name}", f"{m.kind.value}, {what} {m.temperature:g} °C, {price}",
                              f"given ({self.mains_source})" if self.mains_source else "given"))
@@ -180,7 +180,7 @@ def _summary(study: SiteStudy, page: Page) -> str:
              ("fuel above the mains", site.fuel_above_mains, "kW"), ("steam from boilers", site.boiler_steam, "kW"),
              ("site cold utility", site.site_cold_utility, "kW")]
     if site.saving_money is not None:
-        rows.append(("saving per year (priced mains)", site.saving_money, "money/yr"))
+        rows.append(("saving per year (priced mains)", site.saving_money, "money/year"))
     intro = paragraph(f"Site of {len(site.zones)} zones and {len(site.mains)} mains at ΔTmin {site.dt_min:g} K "
                       f"({study.dt_min_note}). Every number below is a screening estimate; see “Safety and limits”.")
     return intro + long_table(rows, "Key results", "summary-table")
@@ -198,7 +198,7 @@ def _inputs(study: SiteStudy, page: Page) -> str:
              frame_table(frame, "Zones as read", "zones-input-table")]
     mains = study.frames["mains"]
     if len(mains):
-        parts.append(frame_table(mains[["main", "kind", "T [°C]", "price [money/kW·yr]"]],
+        parts.append(frame_table(mains[["main", "kind", "T [°C]", "price [money/(kW·year)]"]],
                                  f"Mains as read ({study.mains_source or 'given'})", "mains-input-table"))
     return "".join(parts)
 
@@ -237,9 +237,9 @@ def _mains(study: SiteStudy, page: Page) -> str:
             ("zone-by-zone cold utility", site.zone_by_zone_cold_utility, "kW"),
             ("saving", site.saving, "kW")]
     if site.saving_money is not None:
-        rows += [("site cost of the priced mains", site.site_cost, "money/yr"),
-                 ("zone-by-zone cost of the priced mains", site.zone_by_zone_cost, "money/yr"),
-                 ("saving per year", site.saving_money, "money/yr")]
+        rows += [("site cost of the priced mains", site.site_cost, "money/year"),
+                 ("zone-by-zone cost of the priced mains", site.zone_by_zone_cost, "money/year"),
+                 ("saving per year", site.saving_money, "money/year")]
     parts.append(long_table(rows, "Saving against zone-by-zone targeting", "saving-table"))
     return "".join(parts)
 

@@ -51,7 +51,7 @@ def cost_figure(sweep, *, title: str | None = None):
     o = sweep.optimum
     ax.plot([o.dt_min], [o.total_annual_cost], marker="o", markersize=7, color=STYLE["net"]["color"],
             linestyle="none")
-    ax.annotate(f"optimum {o.dt_min:.2f} K\n{o.total_annual_cost:,.0f} {cur}/yr", (o.dt_min, o.total_annual_cost),
+    ax.annotate(f"optimum {o.dt_min:.2f} K\n{o.total_annual_cost:,.0f} {cur}/year", (o.dt_min, o.total_annual_cost),
                 xytext=(8, 10), textcoords="offset points", fontsize=STYLE["font_size"] - 1, color="#303030")
     done = [d for d in sweep.designs if not d.error]
     if done:

@@ -6,7 +6,7 @@ Table layout::
     HP steam,250,249,160
     cooling water,20,30,12
 
-``T_supply``/``T_target`` in °C and ``cost`` in money per kW·year unless a unit is written in the
+``T_supply``/``T_target`` in °C and ``cost`` in money/(kW·year) unless a unit is written in the
 header or a units row (``cost [€/MW/yr]``); optional ``h`` [kW/(m²·K)] and ``kind`` (``hot`` or
 ``cold``).  Hot or cold follows from the temperatures (falling: hot, rising: cold).  A utility with
 equal temperatures (condensing steam, evaporating refrigerant) is hot when it lies above every process
@@ -54,12 +54,12 @@ def read_utilities(path: str | os.PathLike, *, sheet: str | None = None,
         temperatures and no ``kind``.
     hours_per_year : float, optional
         Operating hours per year [h/year]; needed only when prices are per energy (``cost [$/kWh]``),
-        which are then turned into money per kW·year.
+        which are then turned into money/(kW·year).
 
     Returns
     -------
     tuple of Utility
-        In table order, canonical units (°C, money per kW·year, kW/(m²·K)).
+        In table order, canonical units (°C, money/(kW·year), kW/(m²·K)).
 
     Raises
     ------

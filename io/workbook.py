@@ -78,8 +78,8 @@ def network_frame(network, currency: str):
         rows.append({"unit": tag, "type": kind, "hot side": hot, "cold side": cold, "duty [kW]": u.duty,
                      "hot in [°C]": hot_in, "hot out [°C]": hot_out, "cold in [°C]": cold_in,
                      "cold out [°C]": cold_out, "hot fraction [-]": hot_fraction,
-                     "cold fraction [-]": cold_fraction, "U [kW/m²K]": u.u, "LMTD [K]": u.lmtd,
-                     "area [m²]": u.area, f"capital cost [{cur}/yr]": u.cost, "region": u.region})
+                     "cold fraction [-]": cold_fraction, "U [kW/(m²·K)]": u.u, "LMTD [K]": u.lmtd,
+                     "area [m²]": u.area, f"capital cost [{cur}/year]": u.cost, "region": u.region})
 
     for k, e in enumerate(network.exchangers, 1):
         row(f"E{k}", "exchanger", e.hot, e.cold, e, e.hot_in, e.hot_out, e.cold_in, e.cold_out, e.hot_fraction,
@@ -91,8 +91,8 @@ def network_frame(network, currency: str):
         row(f"C{k}", "cooler", c.hot, c.utility, c, c.hot_in, c.hot_out, c.utility_in, c.utility_out,
             c.hot_fraction, 1.0)
     columns = ["unit", "type", "hot side", "cold side", "duty [kW]", "hot in [°C]", "hot out [°C]", "cold in [°C]",
-               "cold out [°C]", "hot fraction [-]", "cold fraction [-]", "U [kW/m²K]", "LMTD [K]", "area [m²]",
-               f"capital cost [{cur}/yr]", "region"]
+               "cold out [°C]", "hot fraction [-]", "cold fraction [-]", "U [kW/(m²·K)]", "LMTD [K]", "area [m²]",
+               f"capital cost [{cur}/year]", "region"]
     return pd.DataFrame(rows, columns=columns)
 
 
@@ -121,7 +121,7 @@ def target_rows(study) -> list[tuple]:
     rows.append(("threshold problem", t.threshold.value if t.threshold is not None else "no", ""))
     if t.placement is not None:
         cur = study.currency
-        rows.append(("utility cost at the targets", t.placement.annual_cost, f"{cur}/yr"))
+        rows.append(("utility cost at the targets", t.placement.annual_cost, f"{cur}/year"))
         for u in t.placement.utility_pinches:
             rows.append(("utility pinch, shifted", u, "°C"))
     a = study.area
@@ -131,9 +131,9 @@ def target_rows(study) -> list[tuple]:
                  ("minimum units, overall (N − 1)", a.units, "-"),
                  ("minimum units for maximum energy recovery", a.units_mer, "-"),
                  ("minimum 1-2 shells", a.shells, "-"),
-                 ("capital cost target (annualised)", a.capital_cost, f"{cur}/yr"),
-                 ("energy cost target", a.energy_cost, f"{cur}/yr"),
-                 ("total annual cost target", a.total_annual_cost, f"{cur}/yr")]
+                 ("capital cost target (annualised)", a.capital_cost, f"{cur}/year"),
+                 ("energy cost target", a.energy_cost, f"{cur}/year"),
+                 ("total annual cost target", a.total_annual_cost, f"{cur}/year")]
     return rows
 
 
@@ -153,9 +153,9 @@ def utility_frame(study):
         else:
             duty = duties.get(u.name)
         rows.append({"name": u.name, "kind": u.kind.value, "T_supply [°C]": u.supply_temperature,
-                     "T_target [°C]": u.target_temperature, f"price [{cur}/(kW·yr)]": u.cost,
-                     "h [kW/m²K]": u.film_coefficient, "duty at targets [kW]": duty,
-                     f"annual cost at targets [{cur}/yr]": None if duty is None else duty * u.cost,
+                     "T_target [°C]": u.target_temperature, f"price [{cur}/(kW·year)]": u.cost,
+                     "h [kW/(m²·K)]": u.film_coefficient, "duty at targets [kW]": duty,
+                     f"annual cost at targets [{cur}/year]": None if duty is None else duty * u.cost,
                      "source": "given" if study.utilities is not None else "assumed (none given)"})
     return pd.DataFrame(rows)
 
@@ -172,23 +172,23 @@ def cost_rows(study) -> list[tuple]:
             ("laws give money per year", "yes" if c.annualised else "no", "")]
     if not c.annualised:
         rows += [("interest rate", 100 * c.interest_rate, "%"), ("plant life", c.years, "years")]
-    rows += [("annualisation factor", c.annualisation_factor, "1/yr"),
-             ("operating hours", c.hours_per_year, "h/yr")]
+    rows += [("annualisation factor", c.annualisation_factor, "1/year"),
+             ("operating hours", c.hours_per_year, "h/year")]
     if not _skipped(study.area):
         a = study.area
-        rows += [("target: capital (annualised)", a.capital_cost, f"{cur}/yr"),
-                 ("target: energy", a.energy_cost, f"{cur}/yr"),
-                 ("target: total annual cost", a.total_annual_cost, f"{cur}/yr")]
+        rows += [("target: capital (annualised)", a.capital_cost, f"{cur}/year"),
+                 ("target: energy", a.energy_cost, f"{cur}/year"),
+                 ("target: total annual cost", a.total_annual_cost, f"{cur}/year")]
     for label, net in (("MER network", study.design), ("lowest-TAC network", study.tac)):
         if _skipped(net) or net.total_annual_cost is None:
             continue
-        rows += [(f"{label}: capital (annualised)", net.capital_cost, f"{cur}/yr"),
-                 (f"{label}: utilities", net.operating_cost, f"{cur}/yr"),
-                 (f"{label}: total annual cost", net.total_annual_cost, f"{cur}/yr")]
+        rows += [(f"{label}: capital (annualised)", net.capital_cost, f"{cur}/year"),
+                 (f"{label}: utilities", net.operating_cost, f"{cur}/year"),
+                 (f"{label}: total annual cost", net.total_annual_cost, f"{cur}/year")]
     if not _skipped(study.sweep):
         o = study.sweep.optimum
         rows += [("sweep optimum: ΔTmin", o.dt_min, "K"),
-                 ("sweep optimum: total annual cost target", o.total_annual_cost, f"{cur}/yr")]
+                 ("sweep optimum: total annual cost target", o.total_annual_cost, f"{cur}/year")]
     return rows
 
 
@@ -222,10 +222,10 @@ def retrofit_option_frame(retrofit):
     import pandas as pd
 
     cur = retrofit.costs.currency
-    columns = ["rank", "saving [kW]", "cold saving [kW]", f"saving [{cur}/yr]", f"investment [{cur}]",
+    columns = ["rank", "saving [kW]", "cold saving [kW]", f"saving [{cur}/year]", f"investment [{cur}]",
                "payback [yr]", f"NPV [{cur}]", "hot utility after [kW]", "changes"]
     return pd.DataFrame([{"rank": o.rank, "saving [kW]": o.saving, "cold saving [kW]": o.cold_saving,
-                          f"saving [{cur}/yr]": o.saving_per_year, f"investment [{cur}]": o.investment,
+                          f"saving [{cur}/year]": o.saving_per_year, f"investment [{cur}]": o.investment,
                           "payback [yr]": o.payback_years, f"NPV [{cur}]": o.npv,
                           "hot utility after [kW]": o.hot_utility, "changes": "; ".join(o.steps)}
                          for o in retrofit.options], columns=columns)

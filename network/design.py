@@ -121,7 +121,7 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
     dt_min : float
         Minimum approach temperature every unit keeps [K].
     utilities : sequence of Utility, optional
-        Utility levels with prices [money per kW·year]; when omitted, :func:`ideal_utilities`.
+        Utility levels with prices [money/(kW·year)]; when omitted, :func:`ideal_utilities`.
     costs : CostSettings, optional
         Cost laws and annualisation; the defaults of :mod:`heatloom.defaults` when omitted.
     solver : str, optional
@@ -162,9 +162,9 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
         utilities = ideal_utilities(streams, dt_min)
         hu, cu = utilities
         notes.append(f"no utilities given: assumed an isothermal hot utility at {hu.supply_temperature:g} °C "
-                     f"(h {hu.film_coefficient:g} kW/(m²·K), {hu.cost:g} money per kW·year) and an isothermal "
+                     f"(h {hu.film_coefficient:g} kW/(m²·K), {hu.cost:g} money/(kW·year)) and an isothermal "
                      f"cold utility at {cu.supply_temperature:g} °C (h {cu.film_coefficient:g} kW/(m²·K), "
-                     f"{cu.cost:g} money per kW·year); defaults, give --utilities FILE")
+                     f"{cu.cost:g} money/(kW·year)); defaults, give --utilities FILE")
     costs = costs or CostSettings()
     if default_film_coefficient is not None and not default_film_coefficient > 0:
         raise InputError(f"default film coefficient must be > 0 kW/(m²·K), got {default_film_coefficient!r}")

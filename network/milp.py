@@ -638,7 +638,7 @@ class MatchPlan:
                 "shifted_temperatures": self.transshipment.intervals.temperatures.tolist(),
                 "subnetworks": [s.to_dict() for s in self.subnetworks],
                 "matches": [m.to_dict() for m in self.matches],
-                "units": {"temperature": "°C", "duty": "kW", "dtmin": "K", "utility_cost": "money per year"},
+                "units": {"temperature": "°C", "duty": "kW", "dtmin": "K", "utility_cost": "money/year"},
                 "solves": [r.to_dict() for r in self.reports]}
 
 
@@ -659,7 +659,7 @@ def plan_matches(streams: StreamTable, dt_min: float, utilities: Sequence[Utilit
     dt_min : float
         [K]
     utilities : sequence of Utility, optional
-        Utility levels with prices [money per kW·year]; when omitted, two free utilities (a hot one
+        Utility levels with prices [money/(kW·year)]; when omitted, two free utilities (a hot one
         hotter and a cold one colder than every process temperature, see
         :func:`heatloom.network.transshipment.free_target_utilities`) and the result's ``note`` says so.
     solver, time_limit, tie_break, forbidden

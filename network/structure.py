@@ -98,7 +98,7 @@ class _Unit:
     area : float or None
         Heat-transfer area [m²]; None when film coefficients are not known.
     cost : float or None
-        Capital cost [money per year when annualised, else money].
+        Capital cost [money/year when annualised, else money].
     u : float or None
         Overall heat-transfer coefficient [kW/(m²·K)].
     lmtd : float or None
@@ -209,7 +209,7 @@ class Network:
     dt_min : float
         Minimum approach every unit keeps [K].
     capital_cost, operating_cost, total_annual_cost : float or None
-        [money per year]; None when areas could not be computed (no film coefficients).
+        [money/year]; None when areas could not be computed (no film coefficients).
     currency : str
     notes : tuple of str
         Assumptions and defaults in force, in plain words.
@@ -280,19 +280,19 @@ class Network:
                          "duty [kW]": e.duty, "hot in [°C]": e.hot_in, "hot out [°C]": e.hot_out,
                          "cold in [°C]": e.cold_in, "cold out [°C]": e.cold_out,
                          "hot fraction [-]": e.hot_fraction, "cold fraction [-]": e.cold_fraction,
-                         "area [m²]": e.area, "cost [money/yr]": e.cost})
+                         "area [m²]": e.area, "cost [money/year]": e.cost})
         for h in self.heaters:
             rows.append({"unit": f"H{sum(r['type'] == 'heater' for r in rows) + 1}", "type": "heater",
                          "hot": h.utility, "cold": h.cold, "duty [kW]": h.duty, "hot in [°C]": h.utility_in,
                          "hot out [°C]": h.utility_out, "cold in [°C]": h.cold_in, "cold out [°C]": h.cold_out,
                          "hot fraction [-]": 1.0, "cold fraction [-]": h.cold_fraction,
-                         "area [m²]": h.area, "cost [money/yr]": h.cost})
+                         "area [m²]": h.area, "cost [money/year]": h.cost})
         for c in self.coolers:
             rows.append({"unit": f"C{sum(r['type'] == 'cooler' for r in rows) + 1}", "type": "cooler",
                          "hot": c.hot, "cold": c.utility, "duty [kW]": c.duty, "hot in [°C]": c.hot_in,
                          "hot out [°C]": c.hot_out, "cold in [°C]": c.utility_in,
                          "cold out [°C]": c.utility_out, "hot fraction [-]": c.hot_fraction,
-                         "cold fraction [-]": 1.0, "area [m²]": c.area, "cost [money/yr]": c.cost})
+                         "cold fraction [-]": 1.0, "area [m²]": c.area, "cost [money/year]": c.cost})
         return pd.DataFrame(rows)
 
 

@@ -263,7 +263,7 @@ def transshipment_model(intervals: Intervals, *, cost_budget: float | None = Non
     intervals : Intervals
         From :func:`temperature_intervals`, with the utilities on offer.
     cost_budget : float, optional
-        Second stage [money per year]: keep :math:`\\sum_u c_u Q_u` at or below this and minimise
+        Second stage [money/year]: keep :math:`\\sum_u c_u Q_u` at or below this and minimise
         :math:`\\sum_u w_u Q_u` instead, with weights slightly above 1 that prefer the coolest hot and the
         warmest cold level (so ties in price and zero prices give the least energy at the mildest
         levels, as :func:`heatloom.pinch.place_utilities` does).
@@ -357,7 +357,7 @@ class Transshipment:
 
     @property
     def utility_cost(self) -> float:
-        """[money per year]"""
+        """[money/year]"""
         return float(sum(d * u.cost for u, d in zip(self.intervals.utilities, self.duties)))
 
     def to_dict(self) -> dict:
@@ -390,7 +390,7 @@ def transshipment(streams: StreamTable, dt_min: float, utilities: Sequence[Utili
     dt_min : float
         [K]
     utilities : sequence of Utility, optional
-        Levels with prices [money per kW·year]; the two free utilities of :func:`free_target_utilities`
+        Levels with prices [money/(kW·year)]; the two free utilities of :func:`free_target_utilities`
         when omitted.
     solver : SolverName, str or None
         See :func:`heatloom.network.solvers.resolve_solver`.

@@ -685,7 +685,7 @@ def area_targets(targets: Targets, costs=None, *, default_film_coefficient: floa
     if targets.placement is None:
         util_text = ("ideal utilities assumed (no utility levels given): " + "; ".join(
             f"{u.name} at {u.supply_temperature:g} °C, h {u.film_coefficient:g} kW/(m²·K), "
-            f"{u.cost:g} money per kW·year" for u, _ in used) + " (illustrative defaults, common practice)")
+            f"{u.cost:g} money/(kW·year)" for u, _ in used) + " (illustrative defaults, common practice)")
     else:
         util_text = "utilities of the placement: " + "; ".join(
             f"{u.name} {q:,.1f} kW at {u.cost:g} per kW·year" for u, q in used)

@@ -32,7 +32,7 @@ Conventions
   that no steam main takes, hottest cooling main first; they must lie below every steam main.  All heat
   recovered through the steam mains would otherwise have gone to the hottest cooling main, so its duty
   falls by the recovery.
-* **Money.**  A main's price is money per kW·year of steam from boilers (steam mains) or of cooling duty
+* **Money.**  A main's price is money/(kW·year) of steam from boilers (steam mains) or of cooling duty
   (cooling mains).  The money saving is Σ price × (zone-by-zone duty − site duty) over the priced mains;
   fuel above the hottest main has no price here and is the same in both cases.
 
@@ -337,13 +337,13 @@ class MainBalance:
 
     @property
     def zone_by_zone_cost(self) -> float | None:
-        """[money per year]; None when the main has no price."""
+        """[money/year]; None when the main has no price."""
         p = self.main.price
         return None if p is None else p * self.zone_by_zone_duty
 
     @property
     def site_cost(self) -> float | None:
-        """[money per year]; None when the main has no price."""
+        """[money/year]; None when the main has no price."""
         p = self.main.price
         return None if p is None else p * self.site_duty
 
@@ -428,21 +428,21 @@ class SiteTargets:
 
     @property
     def zone_by_zone_cost(self) -> float | None:
-        """Cost of the priced mains when each zone is targeted alone [money per year]."""
+        """Cost of the priced mains when each zone is targeted alone [money/year]."""
         if not self.priced:
             return None
         return float(sum(m.zone_by_zone_cost for m in self.mains if m.main.price is not None))
 
     @property
     def site_cost(self) -> float | None:
-        """Cost of the priced mains on the site [money per year]."""
+        """Cost of the priced mains on the site [money/year]."""
         if not self.priced:
             return None
         return float(sum(m.site_cost for m in self.mains if m.main.price is not None))
 
     @property
     def saving_money(self) -> float | None:
-        """[money per year]; None when no main has a price."""
+        """[money/year]; None when no main has a price."""
         if not self.priced:
             return None
         return self.zone_by_zone_cost - self.site_cost
@@ -479,8 +479,8 @@ class SiteTargets:
                        "unpriced_mains": self.unpriced_mains},
             "source_profile": self.source_profile.to_dict(),
             "sink_profile": self.sink_profile.to_dict(),
-            "units": {"temperature": "°C", "duty": "kW", "dtmin": "K", "price": "money per kW·year",
-                      "cost": "money per year"},
+            "units": {"temperature": "°C", "duty": "kW", "dtmin": "K", "price": "money/(kW·year)",
+                      "cost": "money/year"},
         }
 
     def frames(self) -> dict:
@@ -496,15 +496,15 @@ class SiteTargets:
             "heat above mains [kW]": z.above_mains, "heat below mains [kW]": z.below_mains} for z in self.zones])
         mains = pd.DataFrame([{
             "main": b.main.name, "kind": b.main.kind.value, "T [°C]": b.main.temperature,
-            "price [money/kW·yr]": b.main.price, "raised [kW]": b.raised, "used [kW]": b.used,
+            "price [money/(kW·year)]": b.main.price, "raised [kW]": b.raised, "used [kW]": b.used,
             "recovered [kW]": b.recovered, "letdown in [kW]": b.letdown_in, "letdown out [kW]": b.letdown_out,
             "from boilers [kW]": b.from_boilers, "surplus [kW]": b.surplus,
             "zone by zone duty [kW]": b.zone_by_zone_duty, "site duty [kW]": b.site_duty,
-            "zone by zone cost [money/yr]": b.zone_by_zone_cost, "site cost [money/yr]": b.site_cost}
-            for b in self.mains], columns=["main", "kind", "T [°C]", "price [money/kW·yr]", "raised [kW]",
+            "zone by zone cost [money/year]": b.zone_by_zone_cost, "site cost [money/year]": b.site_cost}
+            for b in self.mains], columns=["main", "kind", "T [°C]", "price [money/(kW·year)]", "raised [kW]",
                                            "used [kW]", "recovered [kW]", "letdown in [kW]", "letdown out [kW]",
                                            "from boilers [kW]", "surplus [kW]", "zone by zone duty [kW]",
-                                           "site duty [kW]", "zone by zone cost [money/yr]", "site cost [money/yr]"])
+                                           "site duty [kW]", "zone by zone cost [money/year]", "site cost [money/year]"])
         flows = pd.DataFrame([{"zone": z.name, "main": name, "raised [kW]": z.raised[name], "used [kW]": z.used[name],
                                "net export [kW]": z.raised[name] - z.used[name], "rejected alone [kW]": None}
                               for z in self.zones for name in z.raised]
@@ -528,7 +528,7 @@ class SiteTargets:
             ("zone-by-zone hot utility", self.zone_by_zone_hot_utility, "kW"),
             ("zone-by-zone cold utility", self.zone_by_zone_cold_utility, "kW"),
             ("recovered through the mains", self.recovered, "kW"), ("saving", self.saving, "kW"),
-            ("saving per year", self.saving_money, "money/yr"),
+            ("saving per year", self.saving_money, "money/year"),
         ], columns=["quantity", "value", "unit"])
         return {"summary": summary, "zones": zones, "mains": mains, "zone mains": flows, "profiles": profiles}
 

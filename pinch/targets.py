@@ -147,7 +147,7 @@ class Targets:
             "cold_process_duty": self.cold_process_duty,
             "utilities": self.utility_duties,
             "units_of_measure": {"temperature": "°C", "duty": "kW", "dtmin": "K", "area": "m²",
-                      "utility_cost": "money per year"},
+                      "utility_cost": "money/year"},
         }
         if self.placement is not None:
             out["utility_levels"] = [d.to_dict() for d in self.placement.duties]
@@ -168,7 +168,7 @@ def target(streams: StreamTable, dt_min: float, utilities: Sequence[Utility] | N
     dt_min : float
         Global minimum approach temperature [K].
     utilities : sequence of Utility, optional
-        Utility levels with prices [money per kW·year].  When omitted, the targets assume ideal utilities
+        Utility levels with prices [money/(kW·year)].  When omitted, the targets assume ideal utilities
         (hotter and colder than every process temperature), and the output says so.
 
     Returns

@@ -42,7 +42,7 @@ class UtilityDuty:
     duty : float
         [kW]
     annual_cost : float
-        duty × price [money per year].
+        duty × price [money/year].
     """
 
     utility: Utility
@@ -87,7 +87,7 @@ class UtilityPlacement:
 
     @property
     def annual_cost(self) -> float:
-        """[money per year]"""
+        """[money/year]"""
         return float(sum(d.annual_cost for d in self.duties))
 
 
@@ -166,7 +166,7 @@ def place_utilities(table: ProblemTable, utilities: Sequence[Utility]) -> Utilit
     table : ProblemTable
         Problem table of the process streams.
     utilities : sequence of Utility
-        The utility levels on offer, prices in [money per kW·year].
+        The utility levels on offer, prices in [money/(kW·year)].
 
     Returns
     -------

@@ -666,7 +666,7 @@ class ExistingNetwork:
 
         return pd.DataFrame([{"unit": u.name, "role": u.role.value, "mode": u.mode.value, "hot": u.hot,
                               "cold": u.cold, "hot_order": u.hot_position, "cold_order": u.cold_position,
-                              "area [m²]": u.area, "duty [kW]": u.duty, "U [kW/m²K]": u.u,
+                              "area [m²]": u.area, "duty [kW]": u.duty, "U [kW/(m²·K)]": u.u,
                               "type": u.arrangement.value, "shells": u.shells} for u in self.units])
 
 

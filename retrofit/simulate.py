@@ -212,7 +212,7 @@ class Simulation:
         return pd.DataFrame([{"unit": u.name, "role": u.role.value, "mode": u.mode.value, "hot": u.hot,
                               "cold": u.cold, "duty [kW]": u.duty, "stated duty [kW]": u.stated_duty,
                               "hot in [°C]": u.hot_in, "hot out [°C]": u.hot_out, "cold in [°C]": u.cold_in,
-                              "cold out [°C]": u.cold_out, "area [m²]": u.area, "U [kW/m²K]": u.u,
+                              "cold out [°C]": u.cold_out, "area [m²]": u.area, "U [kW/(m²·K)]": u.u,
                               "effectiveness [-]": u.effectiveness, "NTU [-]": u.ntu,
                               "min approach [K]": u.min_approach} for u in self.units])
 

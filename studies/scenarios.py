@@ -206,13 +206,13 @@ _UNITS = {"dtmin": "K", "hot_utility": "kW", "cold_utility": "kW", "area": "m²"
 
 
 def _label(key: str, currency: str) -> str:
-    """``design_total_annual_cost`` → ``design total annual cost [USD/yr]``."""
+    """``design_total_annual_cost`` → ``design total annual cost [USD/year]``."""
     prefix = ""
     for p in ("best_design_", "design_"):
         if key.startswith(p):
             prefix, key = p.replace("_", " "), key[len(p):]
             break
-    unit = f"{currency}/yr" if key.endswith("_cost") else _UNITS.get(key)
+    unit = f"{currency}/year" if key.endswith("_cost") else _UNITS.get(key)
     name = {"dtmin": "ΔTmin", "units_mer": "units MER"}.get(key, key.replace("_", " "))
     return f"{prefix}{name}" + (f" [{unit}]" if unit else "")
 

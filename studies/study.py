@@ -218,7 +218,7 @@ class Study:
                  self.dt_min_note)]
         util = "; ".join(
             f"{u.name} ({u.kind.value}) {u.supply_temperature:g} → {u.target_temperature:g} °C, "
-            f"{u.cost:g} {cur}/(kW·yr)"
+            f"{u.cost:g} {cur}/(kW·year)"
             + (f", h {u.film_coefficient:g} kW/(m²·K)" if u.film_coefficient is not None else ", no h")
             for u in self.utilities_in_force)
         if self.utilities is not None:

@@ -225,8 +225,8 @@ class Sweep:
             "ΔTmin [K]": p.dt_min, "kind": p.kind, "feasible": p.feasible, "hot utility [kW]": p.hot_utility,
             "cold utility [kW]": p.cold_utility, "area [m²]": p.area, "units [-]": p.units,
             "units MER [-]": p.units_mer, "shells [-]": p.shells,
-            f"capital cost [{cur}/yr]": p.capital_cost, f"energy cost [{cur}/yr]": p.energy_cost,
-            f"total annual cost [{cur}/yr]": p.total_annual_cost, "pinch hot [°C]": p.pinch_hot,
+            f"capital cost [{cur}/year]": p.capital_cost, f"energy cost [{cur}/year]": p.energy_cost,
+            f"total annual cost [{cur}/year]": p.total_annual_cost, "pinch hot [°C]": p.pinch_hot,
             "pinch cold [°C]": p.pinch_cold, "note": p.note} for p in self.points])
 
 
@@ -238,7 +238,7 @@ class Sweep:
 class TargetCase:
     """Everything a task of a sweep or a scenario study needs (pickled once per task), from :func:`target_case`.
 
-    The streams; the utilities with their prices [money per kW·year], any price factor applied (None for the
+    The streams; the utilities with their prices [money/(kW·year)], any price factor applied (None for the
     ideal utilities); the cost settings; ``default_h``, the film coefficient where none is given [kW/(m²·K)];
     the capital basis; X_P [-]; ``price_factor`` [-], left on the ideal utilities' energy cost (else 1).
     """

@@ -90,7 +90,7 @@ def add_shared(p: argparse.ArgumentParser) -> None:
     p.add_argument("--dtmin", type=positive_or_zero, default=None, metavar="K",
                    help=f"minimum approach temperature [K] (default {defaults.DT_MIN:g} K)")
     p.add_argument("--utilities", metavar="FILE",
-                   help="utility table (CSV or .xlsx): name,T_supply,T_target,cost [money per kW·year]")
+                   help="utility table (CSV or .xlsx): name,T_supply,T_target,cost [money/(kW·year)]")
     p.add_argument("--hours-per-year", type=positive, default=None, metavar="H",
                    help="operating hours per year [h/year], to read utility prices given per kWh or MWh "
                         "(e.g. 'cost [USD/kWh]'); prices are otherwise per kW·year")

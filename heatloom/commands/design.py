@@ -93,7 +93,7 @@ def format_network(net, source: str, dt_note: str, approach: str = "ΔTmin") -> 
              f"heat recovery {fmt(net.heat_recovery)}",
              "",
              f"  {'unit':<5} {'hot side':<18} {'cold side':<18} {'duty':>9} {'hot in→out':>15} "
-             f"{'cold in→out':>15} {'split h/c':>10} {'area':>8} {'cost/yr':>10}",
+             f"{'cold in→out':>15} {'split h/c':>10} {'area':>8} {'cost/year':>10}",
              f"  {'':<5} {'':<18} {'':<18} {'[kW]':>9} {'[°C]':>15} {'[°C]':>15} {'[-]':>10} {'[m²]':>8} "
              f"{'[' + cur + ']':>10}"]
 
@@ -112,9 +112,9 @@ def format_network(net, source: str, dt_note: str, approach: str = "ΔTmin") -> 
         lines.append(row(f"C{k}", c.hot, c.utility, c.duty, c.hot_in, c.hot_out, c.utility_in, c.utility_out,
                          c.hot_fraction, 1.0, c.area, c.cost))
     lines += ["",
-              f"  capital (annualised)  {net.capital_cost:>14,.0f} {cur}/yr",
-              f"  utilities             {net.operating_cost:>14,.0f} {cur}/yr",
-              f"  total annual cost     {net.total_annual_cost:>14,.0f} {cur}/yr"]
+              f"  capital (annualised)  {net.capital_cost:>14,.0f} {cur}/year",
+              f"  utilities             {net.operating_cost:>14,.0f} {cur}/year",
+              f"  total annual cost     {net.total_annual_cost:>14,.0f} {cur}/year"]
     lines.append("  " + solves_summary(net.solves))
     for n in net.notes:
         lines.append(f"  note: {n}")
@@ -158,7 +158,7 @@ def run(args) -> int:
 
         currency = costs.currency if costs is not None else network_data.CURRENCY
         bar = ProgressBars("heatloom design --mode tac", not (args.quiet or args.json), unit="epoch",
-                           describe_best=lambda best: f"best TAC {best:,.0f} {currency}/yr")
+                           describe_best=lambda best: f"best TAC {best:,.0f} {currency}/year")
         try:
             net = design_tac(streams, utilities, costs=costs, emat=dt_min,
                              time_limit=args.time_limit or defaults.TAC_TIME_LIMIT, seed=args.seed, starts=args.starts,

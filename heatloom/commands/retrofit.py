@@ -145,9 +145,9 @@ def format_retrofit(result, source: str, dt_note: str) -> str:
     else:
         lines.append(f"  options ranked by net present value ({100 * result.costs.interest_rate:g} % over "
                      f"{result.costs.years:g} years), money in {cur}:")
-        lines.append(f"  {'rank':>4} {'saving':>10} {'saving/yr':>12} {'investment':>12} {'payback':>8} "
+        lines.append(f"  {'rank':>4} {'saving':>10} {'saving/year':>12} {'investment':>12} {'payback':>8} "
                      f"{'NPV':>12} {'hot utility':>12}")
-        lines.append(f"  {'':>4} {'[kW]':>10} {f'[{cur}/yr]':>12} {f'[{cur}]':>12} {'[yr]':>8} {f'[{cur}]':>12} "
+        lines.append(f"  {'':>4} {'[kW]':>10} {f'[{cur}/year]':>12} {f'[{cur}]':>12} {'[year]':>8} {f'[{cur}]':>12} "
                      f"{'after [kW]':>12}")
         for o in result.options:
             payback = f"{o.payback_years:.2f}" if o.payback_years is not None else "-"

@@ -137,7 +137,7 @@ def format_study(study, source: str, range_note: str) -> str:
     if study.optima:
         lines += ["", f"  {'zone':<18} {'scenario':<18} {'ΔTmin':>7} {'hot util':>10} {'cold util':>10} "
                       f"{'area':>9} {'total':>12}",
-                  f"  {'':<18} {'':<18} {'[K]':>7} {'[kW]':>10} {'[kW]':>10} {'[m²]':>9} {'[' + cur + '/yr]':>12}"]
+                  f"  {'':<18} {'':<18} {'[K]':>7} {'[kW]':>10} {'[kW]':>10} {'[m²]':>9} {'[' + cur + '/year]':>12}"]
         for o in study.optima[:40]:
             p = o.optimum
             if p is None:
@@ -155,7 +155,7 @@ def format_study(study, source: str, range_note: str) -> str:
         for t in study.totals:
             miss = f" ({len(t.missing)} zones without a feasible ΔTmin)" if t.missing else ""
             lines.append(f"    {t.scenario}: hot utility {fmt(t.hot_utility)}, cold utility {fmt(t.cold_utility)}, "
-                         f"total annual cost {t.total_annual_cost:,.0f} {cur}/yr{miss}")
+                         f"total annual cost {t.total_annual_cost:,.0f} {cur}/year{miss}")
     for n in study.notes:
         lines.append(f"  note: {n}")
     lines.append(f"  note: {study.basis}")

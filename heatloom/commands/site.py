@@ -26,7 +26,7 @@ examples:
   heatloom site case_studies/three_zone_site --out results
 
 input: a folder with one stream table per zone, each file named '<zone>_streams.csv' (or .xlsx), or a
-workbook with one sheet per zone; the mains table (name, T [°C], optional cost [money per kW·year] and
+workbook with one sheet per zone; the mains table (name, T [°C], optional cost [money/(kW·year)] and
 kind: steam or cooling) is given with --mains or found as a file or sheet whose name contains 'mains'.
 """
 
@@ -48,7 +48,7 @@ def register(sub) -> None:
                    help="folder of zone stream tables ('<zone>_streams.csv'), a workbook with one sheet per zone, "
                         "or one stream table")
     p.add_argument("--mains", metavar="FILE",
-                   help="mains table (CSV or .xlsx): name, T [°C], optional cost [money per kW·year], kind")
+                   help="mains table (CSV or .xlsx): name, T [°C], optional cost [money/(kW·year)], kind")
     p.add_argument("--dtmin", type=positive_or_zero, default=None, metavar="K",
                    help=f"minimum approach temperature of every zone [K] (default {defaults.DT_MIN:g} K)")
     p.add_argument("--zone-dtmin", action="append", default=[], metavar="ZONE=K",

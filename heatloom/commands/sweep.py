@@ -78,7 +78,7 @@ def register(sub) -> None:
     p.add_argument("--step", type=positive, default=defaults.SWEEP_STEP, metavar="K",
                    help=f"grid step [K] (default {defaults.SWEEP_STEP:g})")
     p.add_argument("--utilities", metavar="FILE",
-                   help="utility table (CSV or .xlsx): name,T_supply,T_target,cost [money per kW·year],h")
+                   help="utility table (CSV or .xlsx): name,T_supply,T_target,cost [money/(kW·year)],h")
     p.add_argument("--hours-per-year", type=positive, default=None, metavar="H",
                    help="operating hours per year [h/year], to read utility prices given per kWh or MWh")
     p.add_argument("--costs", metavar="FILE", help="cost laws and annualisation (JSON, YAML or .xlsx)")
@@ -103,7 +103,7 @@ def format_sweep(result, source: str, range_note: str, runner: str) -> str:
     lines = [f"heatloom sweep: {source}",
              f"  ΔTmin          {lo:g} to {hi:g} K by {result.step:g} K ({range_note}); {len(result.points)} points, "
              f"run on {runner}",
-             f"  optimum        ΔTmin {o.dt_min:.2f} K: total annual cost {o.total_annual_cost:,.0f} {cur}/yr "
+             f"  optimum        ΔTmin {o.dt_min:.2f} K: total annual cost {o.total_annual_cost:,.0f} {cur}/year "
              f"(capital {o.capital_cost:,.0f}, energy {o.energy_cost:,.0f})",
              f"                 hot utility {fmt(o.hot_utility)}, cold utility {fmt(o.cold_utility)}, area "
              f"{o.area:,.1f} m², {o.units_mer} units (MER), {o.shells} shells"]
@@ -123,8 +123,8 @@ def format_sweep(result, source: str, range_note: str, runner: str) -> str:
     lines += ["",
               f"  {'ΔTmin':>7} {'hot util':>10} {'cold util':>10} {'area':>9} {'units':>5} {'capital':>11} "
               f"{'energy':>11} {'total':>11}",
-              f"  {'[K]':>7} {'[kW]':>10} {'[kW]':>10} {'[m²]':>9} {'[-]':>5} {'[' + cur + '/yr]':>11} "
-              f"{'[' + cur + '/yr]':>11} {'[' + cur + '/yr]':>11}"]
+              f"  {'[K]':>7} {'[kW]':>10} {'[kW]':>10} {'[m²]':>9} {'[-]':>5} {'[' + cur + '/year]':>11} "
+              f"{'[' + cur + '/year]':>11} {'[' + cur + '/year]':>11}"]
     for p in shown:
         if not p.feasible:
             lines.append(f"  {p.dt_min:>7.2f}  not feasible with the utilities given")
@@ -139,7 +139,7 @@ def format_sweep(result, source: str, range_note: str, runner: str) -> str:
                 lines.append(f"    ΔTmin {d.dt_min:g} K: no design ({d.error})")
             else:
                 lines.append(f"    ΔTmin {d.dt_min:g} K: {d.units} units, area {d.area:,.1f} m², total annual cost "
-                             f"{d.total_annual_cost:,.0f} {cur}/yr")
+                             f"{d.total_annual_cost:,.0f} {cur}/year")
     for n in result.notes:
         lines.append(f"  note: {n}")
     lines.append(f"  note: {result.basis}")

@@ -89,7 +89,7 @@ def format_targets(targets, source: str, dt_min_note: str, area=None, area_note:
     else:
         lines.append("  utility levels (cheapest placement against the grand composite curve):")
         lines.append(f"    {'name':<20} {'kind':<5} {'T_supply':>9} {'T_target':>9} {'duty':>12} "
-                     f"{'cost/yr':>12}")
+                     f"{'cost/year':>12}")
         lines.append(f"    {'':<20} {'':<5} {'[°C]':>9} {'[°C]':>9} {'[kW]':>12} {'[money]':>12}")
         for d in targets.placement.duties:
             u = d.utility

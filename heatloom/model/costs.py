@@ -46,7 +46,7 @@ class UnitKind(enum.Enum):
 
 @dataclass(frozen=True)
 class CostLaw:
-    """Capital cost law a + b·A^c of one unit or shell [money, or money per year if annualised].
+    """Capital cost law a + b·A^c of one unit or shell [money, or money/year if annualised].
 
     Parameters
     ----------

@@ -51,7 +51,7 @@ class SteamMain:
     temperature : float
         Saturation temperature [°C] (for a cooling main, the highest temperature it reaches).
     price : float, optional
-        Price of steam from boilers, or of cooling duty [money per kW·year]; ``None`` when not priced.
+        Price of steam from boilers, or of cooling duty [money/(kW·year)]; ``None`` when not priced.
     kind : MainKind
         Steam (default) or cooling.
     row : int, optional
@@ -84,7 +84,7 @@ class SteamMain:
         if self.price is not None:
             p = float(self.price)
             if not (math.isfinite(p) and p >= 0):
-                raise InputError(f"main '{self.name}': price must be a finite number >= 0 money per kW·year, "
+                raise InputError(f"main '{self.name}': price must be a finite number >= 0 money/(kW·year), "
                                  f"got {self.price!r}", row=self.row, column="cost")
             object.__setattr__(self, "price", p)
         kind = self.kind

@@ -2,7 +2,7 @@
 
 Canonical units (see DEVELOPERS.md, glossary): temperatures in °C, temperature differences in K,
 duties in kW, heat capacity flow rates in kW/K, film coefficients in kW/(m²·K), utility prices in
-money per kW·year.  Nothing here reads files or converts units; :mod:`heatloom.io` does that.
+money/(kW·year).  Nothing here reads files or converts units; :mod:`heatloom.io` does that.
 
 A *stream* is one or more linear *segments* that chain: each segment starts at the temperature where
 the one before it ended and runs in the same direction (all cooling for a hot stream, all heating for a
@@ -355,7 +355,7 @@ class StreamTable:
                 rows.append({"name": s.name, "kind": "hot" if s.is_hot else "cold",
                              "T_supply [°C]": g.supply_temperature, "T_target [°C]": g.target_temperature,
                              "CP [kW/K]": g.heat_capacity_flow, "duty [kW]": g.duty,
-                             "h [kW/m²K]": g.film_coefficient, "dT_min_contrib [K]": g.dt_min_contribution})
+                             "h [kW/(m²·K)]": g.film_coefficient, "dT_min_contrib [K]": g.dt_min_contribution})
         return pd.DataFrame(rows)
 
 
@@ -376,7 +376,7 @@ class Utility:
     supply_temperature, target_temperature : float
         [°C]; equal for a condensing or evaporating utility.
     cost : float
-        Price [money per kW·year] of the duty supplied or removed.
+        Price [money/(kW·year)] of the duty supplied or removed.
     kind : UtilityKind
         Hot or cold; required when the two temperatures are equal.
     film_coefficient : float, optional

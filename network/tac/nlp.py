@@ -118,7 +118,7 @@ def make_problem(streams: StreamTable, utilities, costs: CostSettings, emat: flo
     streams : StreamTable
         Single-segment streams with film coefficients.
     utilities : sequence of Utility
-        At least one hot and one cold utility, with prices [money per kW·year] and film coefficients.
+        At least one hot and one cold utility, with prices [money/(kW·year)] and film coefficients.
     costs : CostSettings
     emat : float
         Exchanger minimum approach temperature [K], > 0.

@@ -403,7 +403,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     streams : StreamTable
         Process streams of one constant CP each, with film coefficients.
     utilities : sequence of Utility, optional
-        Utility levels with prices [money per kW·year] and film coefficients; when omitted, the assumed
+        Utility levels with prices [money/(kW·year)] and film coefficients; when omitted, the assumed
         utilities of :func:`heatloom.pinch.utilities.ideal_utilities` (stated in the notes).
     costs : CostSettings, optional
         Cost laws and annualisation; the defaults of :mod:`heatloom.defaults` when omitted.

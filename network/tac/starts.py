@@ -33,7 +33,7 @@ __all__ = ["stagewise_milp", "unit_estimates", "topology_from_network"]
 
 
 def _unit_area_cost_per_kw(law, u: float, load: float, approach: float) -> float:
-    """Secant of the area term of a law through zero and the estimated load [money per kW·year]."""
+    """Secant of the area term of a law through zero and the estimated load [money/(kW·year)]."""
     _, b, c = law
     load = max(load, 1e-6)
     return b * (load / (u * max(approach, 1e-3))) ** c / load

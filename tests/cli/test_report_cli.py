@@ -341,7 +341,7 @@ def test_site_folder_gives_a_site_report(tmp_path, capsys):
     for b in site.mains:
         assert f'data-value="{b.site_duty!r}"' in html
     for words in ("Dhole, V. R., Linnhoff, B. (1993)", "Klemeš, J.", "site ΔT for steam", "main: HP steam",
-                  "115 money/(kW·yr)", "licensed engineers", "Steam mains also need pressure ratings"):
+                  "115 money/(kW·year)", "licensed engineers", "Steam mains also need pressure ratings"):
         assert words in html
     sheets = pd.read_excel(tmp_path / "study.xlsx", sheet_name=None)
     assert list(sheets) == list(SITE_SHEETS)

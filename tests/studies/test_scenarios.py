@@ -504,7 +504,7 @@ def test_result_shapes(sinnott, ray_das):
     for name in ("cases", "optima", "totals"):
         assert len(frames[name].columns) == len(d[name][0]), name
     assert {"zone", "scenario", "ΔTmin [K]", "hot utility [kW]", "cold utility [kW]", "area [m²]",
-            "capital cost [USD/yr]", "energy cost [USD/yr]", "total annual cost [USD/yr]"} <= set(frames["cases"].columns)
-    assert list(frames["cases"]["total annual cost [USD/yr]"]) == [c["total_annual_cost"] for c in d["cases"]]
+            "capital cost [USD/year]", "energy cost [USD/year]", "total annual cost [USD/year]"} <= set(frames["cases"].columns)
+    assert list(frames["cases"]["total annual cost [USD/year]"]) == [c["total_annual_cost"] for c in d["cases"]]
     assert list(frames["optima"]["ΔTmin [K]"]) == [o["dtmin"] for o in d["optima"]]
     assert list(frames["totals"]["scenario"]) == ["low", "high", "same"]
