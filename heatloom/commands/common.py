@@ -13,7 +13,7 @@ from .. import defaults
 EXIT_OK, EXIT_UNEXPECTED, EXIT_INPUT, EXIT_INFEASIBLE = 0, 1, 2, 3
 """Exit codes of every command."""
 
-__all__ = ["EXIT_OK", "EXIT_UNEXPECTED", "EXIT_INPUT", "EXIT_INFEASIBLE", "positive", "positive_or_zero", "add_shared", "add_table_options",
+__all__ = ["note_lines", "EXIT_OK", "EXIT_UNEXPECTED", "EXIT_INPUT", "EXIT_INFEASIBLE", "positive", "positive_or_zero", "add_shared", "add_table_options",
            "note", "read_inputs", "whole_number", "add_output_options", "dt_min_of", "fmt", "solves_summary", "print_json", "finish", "CASE_SUFFIXES",
            "CASE_ROLES", "case_candidates", "find_case_files", "ProgressBars", "add_cost_target_options",
            "add_site_table_options", "check_cost_target_inputs", "number_list", "zone_streams",
@@ -431,3 +431,17 @@ def find_case_files(folder: str | Path, roles: Mapping[str, str] | None = None, 
             raise InputError(f"no {roles[key]} in the folder: name it with '{key}' (e.g. {key}.csv), or give the "
                              "file itself", file=str(folder))
     return {roles[key]: files[0] for key, files in found.items()}
+
+
+def note_lines(notes=(), *, caution: str = "") -> list[str]:
+    """The closing lines of every command's summary: its notes, then the safety note (with a caution of the
+    command's own, e.g. what a retrofit change also needs checked).
+
+    Examples
+    --------
+    >>> note_lines(["costs in USD (default)"])[0]
+    '  note: costs in USD (default)'
+    >>> note_lines()[-1].startswith("  note: Targets and designs from heatloom are screening estimates")
+    True
+    """
+    return [f"  note: {n}" for n in notes] + [f"  note: {defaults.SAFETY_NOTE}" + (f" {caution}" if caution else "")]

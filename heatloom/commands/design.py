@@ -12,6 +12,7 @@ from .common import (
     dt_min_of,
     finish,
     fmt,
+    note_lines,
     positive,
     read_inputs,
     solves_summary,
@@ -116,9 +117,7 @@ def format_network(net, source: str, dt_note: str, approach: str = "ΔTmin") -> 
               f"  utilities             {net.operating_cost:>14,.0f} {cur}/year",
               f"  total annual cost     {net.total_annual_cost:>14,.0f} {cur}/year"]
     lines.append("  " + solves_summary(net.solves))
-    for n in net.notes:
-        lines.append(f"  note: {n}")
-    lines.append(f"  note: {defaults.SAFETY_NOTE}")
+    lines += note_lines(net.notes)
     return "\n".join(lines)
 
 

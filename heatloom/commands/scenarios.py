@@ -16,6 +16,7 @@ from .common import (
     finish,
     fmt,
     note,
+    note_lines,
     number_list,
     positive,
     read_scenario_inputs,
@@ -156,10 +157,7 @@ def format_study(study, source: str, range_note: str) -> str:
             miss = f" ({len(t.missing)} zones without a feasible ΔTmin)" if t.missing else ""
             lines.append(f"    {t.scenario}: hot utility {fmt(t.hot_utility)}, cold utility {fmt(t.cold_utility)}, "
                          f"total annual cost {t.total_annual_cost:,.0f} {cur}/year{miss}")
-    for n in study.notes:
-        lines.append(f"  note: {n}")
-    lines.append(f"  note: {study.basis}")
-    lines.append(f"  note: {defaults.SAFETY_NOTE}")
+    lines += note_lines([*study.notes, study.basis])
     return "\n".join(lines)
 
 

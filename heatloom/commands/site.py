@@ -14,6 +14,7 @@ from .common import (
     finish,
     fmt,
     note,
+    note_lines,
     positive_or_zero,
 )
 
@@ -137,8 +138,7 @@ def format_site(site, source: str, dt_note: str, mains_source: str | None) -> st
                      f"{site.site_cost:,.0f}, zone by zone {site.zone_by_zone_cost:,.0f})")
         if site.unpriced_mains:
             lines.append(f"                      mains without a price are left out: {', '.join(site.unpriced_mains)}")
-    lines.append(f"  note: {defaults.SAFETY_NOTE} Steam mains also need pressure ratings, relief and letdown design "
-                 "checked by them.")
+    lines += note_lines(caution="Steam mains also need pressure ratings, relief and letdown design checked by them.")
     return "\n".join(lines)
 
 

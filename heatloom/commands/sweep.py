@@ -14,6 +14,7 @@ from .common import (
     finish,
     fmt,
     note,
+    note_lines,
     number_list,
     positive,
     read_inputs,
@@ -140,10 +141,7 @@ def format_sweep(result, source: str, range_note: str, runner: str) -> str:
             else:
                 lines.append(f"    ΔTmin {d.dt_min:g} K: {d.units} units, area {d.area:,.1f} m², total annual cost "
                              f"{d.total_annual_cost:,.0f} {cur}/year")
-    for n in result.notes:
-        lines.append(f"  note: {n}")
-    lines.append(f"  note: {result.basis}")
-    lines.append(f"  note: {defaults.SAFETY_NOTE}")
+    lines += note_lines([*result.notes, result.basis])
     return "\n".join(lines)
 
 

@@ -4,9 +4,8 @@ from __future__ import annotations
 
 import argparse
 
-from .. import defaults
 from ..errors import InputError
-from .common import add_shared, add_table_options, dt_min_of, finish, fmt, read_inputs
+from .common import add_shared, add_table_options, dt_min_of, finish, fmt, note_lines, read_inputs
 
 __all__ = ["register", "run", "format_targets"]
 
@@ -97,7 +96,7 @@ def format_targets(targets, source: str, dt_min_note: str, area=None, area_note:
                          f"{u.target_temperature:>9g} {d.duty:>12,.1f} {d.annual_cost:>12,.0f}")
         for t in targets.placement.utility_pinches:
             lines.append(f"    utility pinch at {t:g} °C shifted")
-    lines.append(f"  note: {defaults.SAFETY_NOTE}")
+    lines += note_lines()
     return "\n".join(lines)
 
 
