@@ -195,7 +195,7 @@ def _summary(study: Study, page: Page) -> str:
         rcur = study.retrofit.costs.currency
         rows += [("retrofit option 1 (largest NPV): hot utility saved", b.saving, "kW"),
                  ("retrofit option 1: investment", b.investment, rcur),
-                 ("retrofit option 1: simple payback", b.payback_years, "yr"),
+                 ("retrofit option 1: simple payback", b.payback_years, "year"),
                  ("retrofit option 1: net present value", b.npv, rcur)]
     intro = paragraph(f"Study of {len(study.streams.hot)} hot and {len(study.streams.cold)} cold streams at "
                       f"ΔTmin {study.dt_min:g} K ({study.dt_min_note}). Every number below is a screening "

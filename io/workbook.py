@@ -223,10 +223,10 @@ def retrofit_option_frame(retrofit):
 
     cur = retrofit.costs.currency
     columns = ["rank", "saving [kW]", "cold saving [kW]", f"saving [{cur}/year]", f"investment [{cur}]",
-               "payback [yr]", f"NPV [{cur}]", "hot utility after [kW]", "changes"]
+               "payback [year]", f"NPV [{cur}]", "hot utility after [kW]", "changes"]
     return pd.DataFrame([{"rank": o.rank, "saving [kW]": o.saving, "cold saving [kW]": o.cold_saving,
                           f"saving [{cur}/year]": o.saving_per_year, f"investment [{cur}]": o.investment,
-                          "payback [yr]": o.payback_years, f"NPV [{cur}]": o.npv,
+                          "payback [year]": o.payback_years, f"NPV [{cur}]": o.npv,
                           "hot utility after [kW]": o.hot_utility, "changes": "; ".join(o.steps)}
                          for o in retrofit.options], columns=columns)
 

@@ -270,7 +270,7 @@ class Retrofit:
         cur = self.costs.currency
         return pd.DataFrame([{"rank": o.rank, "saving [kW]": o.saving, "cold saving [kW]": o.cold_saving,
                               f"saving [{cur}/year]": o.saving_per_year, f"investment [{cur}]": o.investment,
-                              "payback [yr]": o.payback_years, f"NPV [{cur}]": o.npv,
+                              "payback [year]": o.payback_years, f"NPV [{cur}]": o.npv,
                               "MILP saving [kW]": o.milp_saving, "hot utility after [kW]": o.hot_utility,
                               "changes": "; ".join(o.steps), "origin": o.origin} for o in self.options])
 

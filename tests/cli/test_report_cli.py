@@ -300,7 +300,7 @@ def test_existing_network_gives_the_retrofit_diagnosis_and_options(tmp_path, cap
     assert options["saving [kW]"].tolist() == pytest.approx([o.saving for o in r.options])
     assert options["investment [USD]"].tolist() == pytest.approx([o.investment for o in r.options])
     assert options["NPV [USD]"].tolist() == pytest.approx([o.npv for o in r.options])
-    assert options["payback [yr]"].tolist() == pytest.approx([o.payback_years for o in r.options])
+    assert options["payback [year]"].tolist() == pytest.approx([o.payback_years for o in r.options])
     assert options["changes"].tolist() == ["; ".join(o.steps) for o in r.options]
     section = html[html.index('<section id="retrofit_options">'):html.index('<section id="safety">')]
     assert section.count("<svg") == 2                        # savings against investment, proposed grid
