@@ -4,9 +4,9 @@
 report's facts and assumptions (``about``), the streams as read, the utilities, the problem table, the
 targets, the units and costs of the designed networks, the ΔTmin sweep and, when an existing network was
 given, its retrofit diagnosis.  A result that was not computed keeps its sheet, holding one ``status``
-line that says why.  :func:`write_workbook` writes the frames through
-:class:`heatloom.io.export.OutputDirectory` (never over an existing file without ``force``, never over an
-input) with a bold frozen header, sized columns and a number format chosen from each column's unit.
+line that says why.  :meth:`heatloom.io.export.OutputDirectory.workbook` writes the frames (never over an existing file without
+``force``, never over an input, atomically) with a bold frozen header, sized columns and a number format
+chosen from each column's unit.
 
 Wide sheets carry the unit of every column in its header (``duty [kW]``); the long sheets (``about``,
 ``targets``, ``costs``, ``retrofit``) hold one quantity per row with a ``unit`` column, and the format of
@@ -18,13 +18,7 @@ here (:func:`target_rows`, :func:`cost_rows`, :func:`retrofit_rows`, :func:`util
 
 from __future__ import annotations
 
-import math
-from collections.abc import Mapping
-
-import numpy as np
-
 from ..studies.study import NotComputed, Study
-from .formats import column_units, number_formats
 
 __all__ = [
     "SHEETS",
@@ -36,7 +30,6 @@ __all__ = [
     "retrofit_rows",
     "retrofit_option_frame",
     "study_sheets",
-    "write_workbook",
 ]
 
 SHEETS = ("about", "streams", "utilities", "problem table", "targets", "network units", "costs", "sweep",
@@ -311,79 +304,3 @@ def study_sheets(study: Study) -> dict:
         else:
             sheets["retrofit options"] = retrofit_option_frame(r)
     return sheets
-
-
-# --------------------------------------------------------------------------------------------------
-# writing
-
-
-def _cell_value(v):
-    """A value openpyxl can store: numpy scalars as Python ones, NaN and None as empty cells."""
-    if isinstance(v, np.generic):
-        v = v.item()
-    if isinstance(v, float) and not math.isfinite(v):
-        return None
-    return v
-
-
-def write_workbook(out, name: str, sheets: Mapping[str, object]):
-    """Write frames as an .xlsx through an OutputDirectory, with units and number formats.
-
-    Header row bold and frozen, columns sized to their content (at most 60 characters), each numeric
-    cell formatted by the unit of its column (wide sheets) or of its row (sheets with ``value`` and
-    ``unit`` columns), see :func:`number_formats`.
-
-    Parameters
-    ----------
-    out : heatloom.io.export.OutputDirectory
-    name : str
-        File name, e.g. ``study.xlsx``.
-    sheets : mapping
-        Sheet name → pandas DataFrame; names are cut to Excel's 31 characters.
-
-    Returns
-    -------
-    pathlib.Path
-
-    Examples
-    --------
-    >>> import tempfile, pandas as pd
-    >>> from heatloom.io.export import OutputDirectory
-    >>> out = OutputDirectory(tempfile.mkdtemp())
-    >>> p = write_workbook(out, "t.xlsx", {"duties": pd.DataFrame({"unit": ["E1"], "duty [kW]": [120.25]})})
-    >>> import openpyxl; openpyxl.load_workbook(p)["duties"]["B2"].number_format
-    '#,##0.0'
-    """
-    from openpyxl import Workbook
-    from openpyxl.styles import Alignment, Font
-    from openpyxl.utils import get_column_letter
-
-    path = out.target(name)
-    wb = Workbook()
-    wb.remove(wb.active)
-    for sheet, frame in sheets.items():
-        ws = wb.create_sheet(str(sheet)[:31])
-        columns = [str(c) for c in frame.columns]
-        ws.append(columns)
-        for cell in ws[1]:
-            cell.font = Font(bold=True)
-            cell.alignment = Alignment(wrap_text=False)
-        units = column_units(frame)
-        long_value = columns.index("value") if "value" in columns and "unit" in columns else None
-        long_unit = columns.index("unit") if long_value is not None else None
-        for values in frame.itertuples(index=False, name=None):
-            ws.append([_cell_value(v) for v in values])
-            r = ws.max_row
-            for j, v in enumerate(values):
-                v = _cell_value(v)
-                if not isinstance(v, (int, float)) or isinstance(v, bool):
-                    continue
-                unit = values[long_unit] if j == long_value else units[j]
-                ws.cell(row=r, column=j + 1).number_format = number_formats(unit, v)[1]
-        ws.freeze_panes = "A2"
-        for j, c in enumerate(columns, 1):
-            width = max([len(c)] + [len(str(x)) for x in frame.iloc[:, j - 1].head(500)])
-            ws.column_dimensions[get_column_letter(j)].width = min(max(10, width + 2), 60)
-    wb.save(path)
-    out.written.append(path)
-    return path

@@ -203,7 +203,6 @@ def run_site(args) -> int:
     from ..io.export import OutputDirectory
     from ..io.site import read_site
     from ..io.site_report import SiteStudy, render_site_report, site_sheets
-    from ..io.workbook import write_workbook
     from ..pinch.site import site_targets
 
     path = Path(args.path)
@@ -238,10 +237,8 @@ def run_site(args) -> int:
                       command=_command_line(args), scenarios=scenarios)
     rendered = render_site_report(study)
     sheets = site_sheets(study)              # everything is built before anything is written
-    target = out.target("report.html")
-    target.write_text(rendered.html, encoding="utf-8")
-    out.written.append(target)
-    write_workbook(out, "study.xlsx", sheets)
+    out.text("report.html", rendered.html)
+    out.workbook("study.xlsx", sheets)
     report_path = out.path / "report.html"
     if args.json:
         print_json({"report": str(report_path), "workbook": str(out.path / "study.xlsx"),
@@ -266,7 +263,7 @@ def run(args) -> int:
     from ..io.export import OutputDirectory
     from ..io.report import render_report
     from ..io.tables import parse_column_mapping
-    from ..io.workbook import study_sheets, write_workbook
+    from ..io.workbook import study_sheets
     from ..studies.study import NotComputed, RunSettings, compute_study
 
     if is_site_folder(args.path):
@@ -318,10 +315,8 @@ def run(args) -> int:
         rendered = render_report(study)
         bar.step("workbook")
         sheets = study_sheets(study)          # everything is built before anything is written
-        target = out.target("report.html")
-        target.write_text(rendered.html, encoding="utf-8")
-        out.written.append(target)
-        write_workbook(out, "study.xlsx", sheets)
+        out.text("report.html", rendered.html)
+        out.workbook("study.xlsx", sheets)
     finally:
         bar.close()
     report_path = out.path / "report.html"

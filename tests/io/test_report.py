@@ -24,7 +24,7 @@ from heatloom.io.export import OutputDirectory
 from heatloom.io.formats import format_number, number_formats, unit_of
 from heatloom.io.html import figure_svg
 from heatloom.io.report import methods_used, render_report
-from heatloom.io.workbook import SHEETS, study_sheets, write_workbook
+from heatloom.io.workbook import SHEETS, study_sheets
 from heatloom.model import Stream, StreamTable
 from heatloom.pinch import target
 from heatloom.studies.study import NotComputed, RunSettings, Study, compute_study
@@ -291,7 +291,7 @@ def solvent_study():
 
 def test_workbook_opens_with_every_sheet_units_and_formats(tmp_path, solvent_study):
     out = OutputDirectory(tmp_path)
-    path = write_workbook(out, "study.xlsx", study_sheets(solvent_study))
+    path = out.workbook("study.xlsx", study_sheets(solvent_study))
     frames = pd.read_excel(path, sheet_name=None)
     assert list(frames) == list(SHEETS)
     assert frames["streams"].shape[0] == sum(len(s.segments) for s in solvent_study.streams)
@@ -322,12 +322,12 @@ def test_workbook_opens_with_every_sheet_units_and_formats(tmp_path, solvent_stu
 
 def test_workbook_refuses_to_overwrite(tmp_path, solvent_study):
     sheets = study_sheets(solvent_study)
-    write_workbook(OutputDirectory(tmp_path), "study.xlsx", sheets)
+    OutputDirectory(tmp_path).workbook("study.xlsx", sheets)
     before = (tmp_path / "study.xlsx").read_bytes()
     with pytest.raises(InputError, match="already exists"):
-        write_workbook(OutputDirectory(tmp_path), "study.xlsx", sheets)
+        OutputDirectory(tmp_path).workbook("study.xlsx", sheets)
     assert (tmp_path / "study.xlsx").read_bytes() == before
-    write_workbook(OutputDirectory(tmp_path, force=True), "study.xlsx", sheets)
+    OutputDirectory(tmp_path, force=True).workbook("study.xlsx", sheets)
 
 
 def test_not_computed_results_keep_their_sheet(reference):
