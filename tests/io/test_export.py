@@ -14,7 +14,6 @@ import pandas as pd
 import pytest
 
 from heatloom.cli import main
-from heatloom.errors import InputError
 from heatloom.io.export import FORMULA_TRIGGERS, OutputDirectory, neutralise
 
 HOSTILE = "=cmd|' /C calc'!A0"
