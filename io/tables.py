@@ -20,6 +20,7 @@ The readers of stream, utility and temperature–duty tables all go through here
 
 from __future__ import annotations
 
+import functools
 import os
 import re
 import unicodedata
@@ -236,6 +237,43 @@ def _filled(value) -> bool:
     return bool(value.strip()) if isinstance(value, str) else True
 
 
+_COMMA_DECIMAL = re.compile(r"^[+-]?(\d+,\d+|\d{1,3}(\.\d{3})+,\d+)$")
+_POINT_DECIMAL = re.compile(r"^[+-]?(\d+\.\d+|\d{1,3}(,\d{3})+\.\d+)$")
+_DOT_GROUPS = re.compile(r"^[+-]?\d{1,3}(\.\d{3})+$")
+_COMMA_GROUPS = re.compile(r"^[+-]?\d{1,3}(,\d{3})+$")
+
+
+def number_style(cells) -> tuple[str | None, int | None]:
+    """The decimal separator a file writes its numbers with, decided from all of its numeric cells.
+
+    ``"comma"`` when some cell writes a decimal comma (``2,5``, ``1.500,25``), ``"point"`` when some cell
+    writes a decimal point (``12.75``, ``1,500.25``), ``None`` when no cell tells (whole numbers, or only
+    cells such as ``1.500`` or ``1,500`` that read either way).  Returns the style and, when the cells
+    disagree, the index of the first cell that contradicts the style of the cells before it.
+
+    Examples
+    --------
+    >>> number_style(["2,5", "1.500", "7"]), number_style(["12.75", "3"]), number_style(["1.500", "3"])
+    (('comma', None), ('point', None), (None, None))
+    >>> number_style(["2,5", "12.75"])
+    ('comma', 1)
+    """
+    style, first = None, None
+    for k, c in enumerate(cells):
+        if not isinstance(c, str):
+            continue
+        t = c.strip().replace(" ", "")
+        found = "comma" if _COMMA_DECIMAL.match(t) and not _COMMA_GROUPS.match(t) else \
+            "point" if _POINT_DECIMAL.match(t) and not _DOT_GROUPS.match(t) else None
+        if found is None:
+            continue
+        if style is None:
+            style = found
+        elif found != style and first is None:
+            first = k
+    return style, first
+
+
 def _looks_number(text: str) -> bool:
     try:
         float(text.replace(",", "."))
@@ -289,6 +327,22 @@ class Table:
         row = err.row if err.row is not None else (int(self.rows[index]) if index is not None else None)
         return type(err)(err.message, file=err.file or self.label, row=row, column=self.header(err.column))
 
+    @functools.cached_property
+    def decimal_style(self) -> str | None:
+        """``"comma"`` or ``"point"``: the decimal separator of the file, decided once from every numeric
+        column (:func:`number_style`); ``None`` when no cell tells.  Raises when two cells disagree."""
+        numeric = [c for c in self.columns.values() if c.conversion is not None or c.unit is not None]
+        numeric = numeric or list(self.columns.values())
+        cells = [(c, k) for c in numeric for k in range(len(c.cells))]
+        style, first = number_style([c.cells[k] for c, k in cells])
+        if first is not None:
+            c, k = cells[first]
+            raise self.error(f"{c.cells[k].strip()!r} writes its decimals with a "
+                             f"{'point' if style == 'comma' else 'comma'}, but other numbers of the file use a "
+                             f"decimal {style}; use one decimal separator in the whole file", index=k,
+                             column=c.name)
+        return style
+
     def text(self, name: str) -> list[str]:
         """Cells of a text column, stripped (``""`` where empty)."""
         return [cell_text(c) for c in self.columns[name].cells]
@@ -310,7 +364,7 @@ class Table:
         what = what or name
         values = np.empty(n)
         empty = np.zeros(n, dtype=bool)
-        comma = self.decimal_comma
+        style = self.decimal_style
         for i, c in enumerate(col.cells):
             if isinstance(c, float):
                 values[i] = c
@@ -320,10 +374,18 @@ class Table:
                 empty[i] = True
                 values[i] = np.nan
                 continue
-            if comma and "," in s and "." not in s:
-                s = s.replace(",", ".")
+            t = s.replace(" ", "")
+            if style == "comma":
+                if _DOT_GROUPS.match(t.split(",")[0]) and t.count(",") <= 1:
+                    t = t.replace(".", "")                       # 1.500,25: points group thousands
+                t = t.replace(",", ".")
+            elif style is None and (_COMMA_GROUPS.match(t) or (self.decimal_comma and _DOT_GROUPS.match(t))):
+                raise self.error(f"{what} {s!r} could be {t.replace('.', '').replace(',', '')} or "
+                                 f"{t.replace(',', '.')}: no other number of the file shows which separator it "
+                                 "uses for decimals; write it without a thousands separator", index=i,
+                                 column=name)
             try:
-                values[i] = float(s)
+                values[i] = float(t)
             except ValueError:
                 hint = " (write numbers without thousands separators)" if "," in s else ""
                 raise self.error(f"{what} must be a number, got {c.strip()!r}{hint}", index=i,
@@ -520,6 +582,14 @@ def read_table(source: str | os.PathLike | Cells, vocabulary: Sequence[str], *,
         raise InputError("no data rows under the header", file=label,
                          row=units_row or header_row)
     kept = [data_rows[k] for k in keep] if len(keep) != len(data_rows) else data_rows
+    width = max((j + 1 for j, t in enumerate(header_cells) if t), default=0)
+    for k in keep if cells.sheet is None else ():          # text files: a shifted row is a misread
+        extra = [c for c in data_rows[k][width:] if _filled(c)]
+        if extra:
+            raise InputError(f"this row has {width + len(extra)} or more filled fields but the header has {width}: "
+                             f"a stray delimiter or an unquoted decimal comma shifts the values (first extra "
+                             f"field {cell_text(extra[0])!r}); quote the value or remove the field",
+                             file=label, row=k + data_start + 1)
     for target, (j, header, head_unit) in bound.items():
         kind = kind_of[target]
         unit = head_unit

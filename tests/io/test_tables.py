@@ -376,3 +376,42 @@ def test_multi_line_workbook_headers_and_units_label(tmp_path):
     assert t.units_row == 2 and t.header("T_supply") == "Supply temperature [°F]"
     with pytest.raises(InputError, match=r"row 3, column 'Supply temperature \[°F\]': T_supply must be a number"):
         t.numbers("T_supply")
+
+
+# --------------------------------------------------------------------------------------------------
+# silent misreads refused (decimal separators decided per file; rows wider than the header)
+
+
+def _streams(tmp_path, text, name="s.csv"):
+    from heatloom.io import read_streams
+
+    p = tmp_path / name
+    p.write_text(text, encoding="utf-8")
+    return read_streams(p)
+
+
+def test_semicolon_file_with_decimal_commas_reads_points_as_thousands(tmp_path):
+    # the file writes decimals with commas (2,5), so 1.500 groups thousands: 1500 kW/K, not 1.5
+    s = _streams(tmp_path, "name;T_supply;T_target;CP\nH1;180;60;2,5\nC1;20;135;1.500\n")
+    assert [x.heat_capacity_flow for x in (s["H1"].segments[0], s["C1"].segments[0])] == [2.5, 1500.0]
+
+
+def test_semicolon_file_whose_separator_nothing_tells_refuses_the_ambiguous_cell(tmp_path):
+    with pytest.raises(InputError, match=r"row 3.*'1\.500' could be 1500 or 1\.500"):
+        _streams(tmp_path, "name;T_supply;T_target;CP\nH1;180;60;3\nC1;20;135;1.500\n")
+
+
+def test_two_decimal_separators_in_one_file_are_refused(tmp_path):
+    with pytest.raises(InputError, match=r"row 3.*'12\.75' writes its decimals with a point"):
+        _streams(tmp_path, "name;T_supply;T_target;CP\nH1;180;60;2,5\nC1;20;135;12.75\n")
+
+
+def test_point_decimals_are_read_as_before(tmp_path):
+    s = _streams(tmp_path, "name;T_supply;T_target;CP\nH1;180;60;2.5\nC1;20;135;1.25\n")
+    assert s["C1"].segments[0].heat_capacity_flow == 1.25
+
+
+def test_a_row_wider_than_the_header_is_refused(tmp_path):
+    # an unquoted decimal comma shifts the columns: CP would read 5 and h 5 (invented data)
+    with pytest.raises(InputError, match=r"s\.csv, row 2: this row has 6 or more filled fields but the header has 5"):
+        _streams(tmp_path, "name,T_supply,T_target,CP,h\nreactor effluent,210,80,5,5,0.8\nfeed,60,190,4.8,0.8\n")
