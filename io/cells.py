@@ -28,7 +28,7 @@ from pathlib import Path
 
 from ..errors import InputError
 
-__all__ = ["Cells", "load_cells", "cell_text"]
+__all__ = ["Cells", "load_cells", "cell_text", "UnsavedFormula"]
 
 _XLSX_SUFFIXES = (".xlsx", ".xlsm", ".xltx", ".xltm")
 _CONTROL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f]")
@@ -46,6 +46,16 @@ def cell_text(value) -> str:
     if isinstance(value, float):
         return str(int(value)) if value.is_integer() and abs(value) < 1e15 else repr(value)
     return str(value).strip()
+
+
+class UnsavedFormula(str):
+    """A workbook cell that holds a formula whose value was never saved (a file written by a program that
+    does not compute formulas): the text is the formula.  Readers refuse it with its location."""
+
+    @property
+    def advice(self) -> str:
+        return (f"the cell holds the formula {str(self)!r}, whose value was never saved in the file; open the "
+                "workbook in a spreadsheet program and save it (or paste the values) so that the value is stored")
 
 
 @dataclass(frozen=True, eq=False)
@@ -160,10 +170,28 @@ def _load_workbook(data: bytes, source: str, sheet: str | None) -> Cells:
         rows = [[_excel_value(v) for v in row] for row in ws.iter_rows(values_only=True)]
     finally:
         wb.close()
+    if any(c == "" for row in rows for c in row):
+        _mark_unsaved_formulas(data, title, rows)
     cells = Cells(source, rows, title)
     if not any(c != "" for row in rows for c in row):
         raise InputError("the sheet is empty", file=cells.label)
     return cells
+
+
+def _mark_unsaved_formulas(data: bytes, title: str, rows: list[list]) -> None:
+    """Replace empty cells that hold a formula without a stored value by :class:`UnsavedFormula`."""
+    import openpyxl
+
+    wb = openpyxl.load_workbook(_io.BytesIO(data), read_only=True, data_only=False)
+    try:
+        for i, row in enumerate(wb[title].iter_rows(values_only=True)):
+            if i >= len(rows):
+                break
+            for j, v in enumerate(row):
+                if j < len(rows[i]) and rows[i][j] == "" and isinstance(v, str) and v.startswith("="):
+                    rows[i][j] = UnsavedFormula(v)
+    finally:
+        wb.close()
 
 
 def load_cells(path: str | os.PathLike, *, sheet: str | None = None) -> Cells:

@@ -31,7 +31,7 @@ import numpy as np
 
 from ..errors import InputError
 from ..model import ABSOLUTE_ZERO
-from .cells import Cells, cell_text, load_cells
+from .cells import Cells, UnsavedFormula, cell_text, load_cells
 from .units import QuantityKind, UnitConversion, parse_unit
 
 __all__ = [
@@ -344,7 +344,10 @@ class Table:
         return style
 
     def text(self, name: str) -> list[str]:
-        """Cells of a text column, stripped (``""`` where empty)."""
+        """Cells of a text column, stripped (``""`` where empty); a formula without a saved value is refused."""
+        for i, c in enumerate(self.columns[name].cells):
+            if isinstance(c, UnsavedFormula):
+                raise self.error(c.advice, index=i, column=name)
         return [cell_text(c) for c in self.columns[name].cells]
 
     def optional_numbers(self, name: str, *, what: str | None = None) -> np.ndarray:
@@ -369,6 +372,8 @@ class Table:
             if isinstance(c, float):
                 values[i] = c
                 continue
+            if isinstance(c, UnsavedFormula):
+                raise self.error(f"{what}: {c.advice}", index=i, column=name)
             s = c.strip()
             if not s:
                 empty[i] = True
@@ -397,9 +402,7 @@ class Table:
                              column=name)
         if required and empty.any():
             i = int(np.argmax(empty))
-            hint = ("" if self.sheet is None else
-                    " (a formula cell counts as empty unless the workbook was saved by a spreadsheet program)")
-            raise self.error(f"empty cell: {what} is required{hint}", index=i, column=name)
+            raise self.error(f"empty cell: {what} is required", index=i, column=name)
         conv = col.conversion
         out = values if conv is None or conv.is_identity else conv.to_canonical(values)
         if conv is not None and conv.kind is QuantityKind.TEMPERATURE:

@@ -358,7 +358,9 @@ def test_workbook_errors_name_sheet_row_and_column(tmp_path):
 def test_workbook_formula_without_stored_value(tmp_path):
     p = make_workbook(tmp_path / "w.xlsx", {"S": [["name", "T_supply", "T_target", "CP"],
                                                   ["H1", 180, 60, "=1+2"]]})
-    with pytest.raises(InputError, match=r"row 2, column 'CP': empty cell: CP is required \(a formula cell"):
+    # issue: such a cell was reported as "empty"; it is a formula whose value the file never stored
+    with pytest.raises(InputError, match=r"row 2, column 'CP': CP: the cell holds the formula '=1\+2', whose "
+                                         r"value was never saved"):
         read_table(p, STREAM_VOCAB).numbers("CP")
 
 
@@ -415,3 +417,20 @@ def test_a_row_wider_than_the_header_is_refused(tmp_path):
     # an unquoted decimal comma shifts the columns: CP would read 5 and h 5 (invented data)
     with pytest.raises(InputError, match=r"s\.csv, row 2: this row has 6 or more filled fields but the header has 5"):
         _streams(tmp_path, "name,T_supply,T_target,CP,h\nreactor effluent,210,80,5,5,0.8\nfeed,60,190,4.8,0.8\n")
+
+
+def test_a_formula_whose_value_was_never_saved_is_named_as_such(tmp_path):
+    # openpyxl writes formulas without computing them: the file holds no value for D3 (invented data)
+    import openpyxl
+
+    from heatloom.io import read_streams
+
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    ws.append(["name", "T_supply", "T_target", "CP"])
+    ws.append(["H1", 180, 60, 3.0])
+    ws.append(["C1", 20, 135, "=D2*2"])
+    p = tmp_path / "plant.xlsx"
+    wb.save(p)
+    with pytest.raises(InputError, match=r"row 3, column 'CP'.*formula '=D2\*2', whose value was never saved"):
+        read_streams(p)
