@@ -43,6 +43,7 @@ __all__ = [
     "SWEEP_STEP",
     "EMAT",
     "TAC_TIME_LIMIT",
+    "MAX_INPUT_BYTES",
     "IDEAL_UTILITY_MARGIN",
     "DEFAULT_HOT_UTILITY_PRICE",
     "DEFAULT_COLD_UTILITY_PRICE",
@@ -153,6 +154,11 @@ by most published TAC benchmarks; stated in every output)."""
 
 TAC_TIME_LIMIT = 120.0
 """Wall-clock limit of a lowest-total-annual-cost design when none is given [s]."""
+
+MAX_INPUT_BYTES = 200 * 1024 * 1024
+"""Largest input file heatloom reads [bytes] (200 MiB): plant stream tables and workbooks are far smaller,
+and a larger file is almost always the wrong file; :func:`heatloom.io.cells.read_input_bytes` takes
+another limit where one is needed."""
 
 # --------------------------------------------------------------------------------------------------
 # retrofit (heatloom.retrofit.options): illustrative defaults, common practice, not a quotation

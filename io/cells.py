@@ -21,14 +21,16 @@ import datetime as _dt
 import io as _io
 import os
 import re
+import stat
 import zipfile
 from collections import Counter
 from dataclasses import dataclass
 from pathlib import Path
 
+from .. import defaults
 from ..errors import InputError
 
-__all__ = ["Cells", "load_cells", "cell_text", "UnsavedFormula"]
+__all__ = ["Cells", "load_cells", "cell_text", "UnsavedFormula", "read_input_bytes"]
 
 _XLSX_SUFFIXES = (".xlsx", ".xlsm", ".xltx", ".xltm")
 _CONTROL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f]")
@@ -194,6 +196,54 @@ def _mark_unsaved_formulas(data: bytes, title: str, rows: list[list]) -> None:
         wb.close()
 
 
+def read_input_bytes(path: str | os.PathLike, *, what: str = "file",
+                     max_bytes: int = defaults.MAX_INPUT_BYTES) -> bytes:
+    """The bytes of an input file, after checking that it is a regular file of a sensible size.
+
+    A device (``/dev/zero``), a pipe or a socket is refused before anything is read (reading one never ends
+    or never returns), and so is a file larger than ``max_bytes``.
+
+    Parameters
+    ----------
+    path : str or path-like
+    what : str, optional
+        What the file is, for messages (``"costs file"``...).
+    max_bytes : int, optional
+        Largest size read [bytes]; :data:`heatloom.defaults.MAX_INPUT_BYTES` by default.
+
+    Examples
+    --------
+    >>> read_input_bytes("/dev/zero")
+    Traceback (most recent call last):
+    ...
+    heatloom.errors.InputError: /dev/zero: not a regular file (a device, pipe or socket); give a CSV file or a workbook
+    """
+    source = os.fspath(path)
+    try:
+        st = os.stat(source)
+    except FileNotFoundError:
+        raise InputError(f"{'file' if what == 'table file' else what} not found", file=source) from None
+    except OSError as e:
+        raise InputError(f"cannot read the {what} ({e.strerror or e})", file=source) from None
+    if stat.S_ISDIR(st.st_mode):
+        raise InputError(f"not a file: this is a directory, not a {what}", file=source)
+    if not stat.S_ISREG(st.st_mode):
+        raise InputError("not a regular file (a device, pipe or socket); give a CSV file or a workbook",
+                         file=source)
+    if st.st_size > max_bytes:
+        raise InputError(f"the {what} is {st.st_size / 2**20:,.1f} MiB, over the {max_bytes / 2**20:,.0f} MiB "
+                         "heatloom reads; check that this is the right file", file=source)
+    try:
+        with open(source, "rb") as f:
+            data = f.read(max_bytes + 1)
+    except OSError as e:
+        raise InputError(f"cannot read the {what} ({e.strerror or e})", file=source) from None
+    if len(data) > max_bytes:
+        raise InputError(f"the {what} grew over the {max_bytes / 2**20:,.0f} MiB heatloom reads while it was read",
+                         file=source)
+    return data
+
+
 def load_cells(path: str | os.PathLike, *, sheet: str | None = None) -> Cells:
     """Read the raw grid of a CSV file or a worksheet (no interpretation of headers or units).
 
@@ -213,14 +263,7 @@ def load_cells(path: str | os.PathLike, *, sheet: str | None = None) -> Cells:
     """
     source = os.fspath(path)
     p = Path(source)
-    if not p.exists():
-        raise InputError("file not found", file=source)
-    if p.is_dir():
-        raise InputError("this is a directory, not a table file", file=source)
-    try:
-        data = p.read_bytes()
-    except OSError as e:
-        raise InputError(f"cannot read the file ({e.strerror or e})", file=source) from None
+    data = read_input_bytes(source, what="table file")
     if not data.strip():
         raise InputError("the file is empty", file=source)
     suffix = p.suffix.lower()

@@ -47,6 +47,7 @@ from pathlib import Path
 from .. import defaults
 from ..errors import InputError
 from ..model.costs import CostLaw, CostSettings
+from .cells import read_input_bytes
 
 __all__ = ["TOP_KEYS", "LAW_KEYS", "RETROFIT_KEYS", "read_costs", "costs_from_mapping", "read_retrofit_costs",
            "retrofit_costs_from_mapping"]
@@ -298,17 +299,12 @@ def read_costs(path: str | os.PathLike) -> CostSettings:
 
 def _parse_file(p: Path):
     """The parsed mapping of a costs file and, for workbooks, the row of each key."""
-    if not p.is_file():
-        raise InputError("costs file not found" if not p.exists() else "not a file", file=str(p))
+    raw = read_input_bytes(p, what="costs file")
     suffix = p.suffix.lower()
     rows = None
     if suffix in (".xlsx", ".xlsm"):
         parsed, rows = _parse_xlsx(p)
     else:
-        try:
-            raw = p.read_bytes()
-        except OSError as e:
-            raise InputError(f"cannot read the file: {e.strerror or e}", file=str(p)) from None
         try:
             text = raw.decode("utf-8-sig")
         except UnicodeDecodeError:

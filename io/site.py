@@ -37,6 +37,7 @@ from pathlib import Path
 from ..errors import InputError
 from ..model import StreamTable
 from ..model.site import MainKind, SteamMain, Zone, check_mains
+from .cells import read_input_bytes
 from .points import DEFAULT_FIT_TOLERANCE
 from .streams import read_streams
 from .tables import read_table
@@ -100,10 +101,9 @@ def _workbook_sheets(path: Path) -> list[tuple[str, bool]]:
     import openpyxl
     from openpyxl.utils.exceptions import InvalidFileException
 
+    data = read_input_bytes(path, what="workbook")
     try:
-        wb = openpyxl.load_workbook(_io.BytesIO(path.read_bytes()), read_only=True, data_only=True)
-    except OSError as e:
-        raise InputError(f"cannot read the file ({e.strerror or e})", file=str(path)) from None
+        wb = openpyxl.load_workbook(_io.BytesIO(data), read_only=True, data_only=True)
     except (zipfile.BadZipFile, InvalidFileException, KeyError, ValueError, EOFError, TypeError) as e:
         why = "it is not a zip archive" if isinstance(e, zipfile.BadZipFile) else str(e) or type(e).__name__
         raise InputError(f"cannot read the file as an .xlsx workbook ({why}); save it again as .xlsx or CSV",

@@ -434,3 +434,24 @@ def test_a_formula_whose_value_was_never_saved_is_named_as_such(tmp_path):
     wb.save(p)
     with pytest.raises(InputError, match=r"row 3, column 'CP'.*formula '=D2\*2', whose value was never saved"):
         read_streams(p)
+
+
+def test_devices_and_pipes_are_refused_before_reading(tmp_path):
+    from heatloom.io.cells import read_input_bytes
+
+    with pytest.raises(InputError, match=r"/dev/zero: not a regular file"):
+        read_table("/dev/zero", STREAM_VOCAB)
+    fifo = tmp_path / "pipe.csv"
+    os.mkfifo(fifo)                         # reading a pipe with no writer would hang: it must be refused first
+    with pytest.raises(InputError, match=r"pipe\.csv: not a regular file"):
+        read_input_bytes(fifo)
+
+
+def test_a_file_over_the_size_limit_is_refused(tmp_path):
+    from heatloom.io.cells import read_input_bytes
+
+    p = tmp_path / "big.csv"
+    p.write_bytes(b"name,T_supply,T_target,CP\n" + b"H1,180,60,3\n" * 1000)
+    with pytest.raises(InputError, match=r"big\.csv: the table file is 0\.0 MiB, over the 0 MiB heatloom reads"):
+        read_input_bytes(p, what="table file", max_bytes=1024)
+    assert read_input_bytes(p).startswith(b"name,")
