@@ -44,6 +44,8 @@ __all__ = [
     "EMAT",
     "TAC_TIME_LIMIT",
     "MAX_INPUT_BYTES",
+    "MAX_TEMPERATURE",
+    "MAX_HEAT_CAPACITY_FLOW",
     "IDEAL_UTILITY_MARGIN",
     "DEFAULT_HOT_UTILITY_PRICE",
     "DEFAULT_COLD_UTILITY_PRICE",
@@ -154,6 +156,15 @@ by most published TAC benchmarks; stated in every output)."""
 
 TAC_TIME_LIMIT = 120.0
 """Wall-clock limit of a lowest-total-annual-cost design when none is given [s]."""
+
+MAX_TEMPERATURE = 5000.0
+"""Hottest temperature a stream table may give [°C] (a sanity bound, *common practice*: fired
+heaters and flue gases stay well below 2000 °C; a larger value is a unit or typing error)."""
+
+MAX_HEAT_CAPACITY_FLOW = 1.0e9
+"""Largest heat capacity flow rate a stream table may give [kW/K] (a sanity bound, *common practice*: the largest process
+streams are of the order of 1e4–1e5 kW/K, a condensing duty written with a 0.01 K glide about 1e7; above
+1e9 sums of duties lose their precision and a value is almost surely a unit error)."""
 
 MAX_INPUT_BYTES = 200 * 1024 * 1024
 """Largest input file heatloom reads [bytes] (200 MiB): plant stream tables and workbooks are far smaller,

@@ -38,6 +38,7 @@ from collections.abc import Mapping
 
 import numpy as np
 
+from .. import defaults
 from ..errors import InputError
 from ..model import Segment, Stream, StreamTable
 from .cells import Cells, cell_text, load_cells
@@ -202,6 +203,14 @@ def _segment_streams(table: Table) -> list[Stream]:
                           f"{cp[i] * span[i]:.6g} kW (more than {_CP_DUTY_RTOL:g} relative); give one of "
                           "them or make them agree", index=i, column="duty")
     cp = np.where(np.isnan(cp), cp_from_duty, cp)
+    for column, values in (("T_supply", ts), ("T_target", tt)):
+        if (i := _first(values > defaults.MAX_TEMPERATURE)) is not None:
+            raise table.error(f"{_as_written(table, column, i)} is above {defaults.MAX_TEMPERATURE:g} °C, more than "
+                              "any process reaches: check the unit of the column", index=i, column=column)
+    if (i := _first(cp > defaults.MAX_HEAT_CAPACITY_FLOW)) is not None:
+        column = "CP" if "CP" in table and not np.isnan(table.optional_numbers("CP")[i]) else "duty"
+        raise table.error(f"heat capacity flow rate CP {cp[i]:g} kW/K is above {defaults.MAX_HEAT_CAPACITY_FLOW:g} "
+                          "kW/K, beyond any process stream: check the unit of the column", index=i, column=column)
     _check_film_and_contribution(table, h, dtc)
     if "kind" in table:
         for i, k in enumerate(table.text("kind")):

@@ -163,3 +163,15 @@ def test_bad_option_value_exits_2(capsys, sinnott_csv):
     with pytest.raises(SystemExit) as e:
         main(["target", str(sinnott_csv), "--dtmin", "-3"])
     assert e.value.code == 2
+
+
+@pytest.mark.parametrize("row, column, words", [
+    ("H1,180,60,1e308", "CP", "above 1e+09 kW/K"),          # overflowed to 'heat recovery inf kW' before
+    ("H1,1e300,60,3", "T_supply", "above 5000 °C"),
+])
+def test_absurd_magnitudes_are_refused_with_their_location(capsys, tmp_path, row, column, words):
+    p = tmp_path / "s.csv"
+    p.write_text(f"name,T_supply,T_target,CP\n{row}\nC1,20,135,2\n", encoding="utf-8")
+    code, out, err = run(capsys, "target", p, "--json")
+    assert code == 2 and out == ""
+    assert f"row 2, column '{column}'" in err and words in err and "inf" not in err
