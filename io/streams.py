@@ -59,7 +59,8 @@ _COLD = {"cold", "c", "cold stream"}
 
 def read_streams(path: str | os.PathLike, *, sheet: str | None = None,
                  columns: Mapping[str, str] | str | None = None,
-                 fit_tolerance: float = DEFAULT_FIT_TOLERANCE) -> StreamTable:
+                 fit_tolerance: float = DEFAULT_FIT_TOLERANCE, notes: list[str] | None = None,
+                 strict: bool = False) -> StreamTable:
     """Read a stream table from a CSV file or an Excel workbook.
 
     Parameters
@@ -74,6 +75,10 @@ def read_streams(path: str | os.PathLike, *, sheet: str | None = None,
     fit_tolerance : float, optional
         Temperature–duty tables only: largest deviation of the fitted segments from the data [K];
         default 0.5 K.  The fit is always on the safe side.
+    notes : list of str, optional
+        Receives a note naming each header that is not a known column (with the nearest known name).
+    strict : bool, optional
+        Refuse unknown headers instead of noting them.
 
     Returns
     -------
@@ -101,11 +106,12 @@ def read_streams(path: str | os.PathLike, *, sheet: str | None = None,
     mapping = parse_column_mapping(columns)
     cells = load_cells(path, sheet=sheet)
     if _is_point_layout(cells, mapping):
-        table = read_table(cells, POINT_COLUMNS, required=("name", "T", "Q_cumulative"), columns=mapping)
+        table = read_table(cells, POINT_COLUMNS, required=("name", "T", "Q_cumulative"), columns=mapping,
+                           notes=notes, strict=strict)
         streams = _point_streams(table, tolerance)
     else:
         table = read_table(cells, SEGMENT_COLUMNS, required=("name", "T_supply", "T_target", ("CP", "duty")),
-                           columns=mapping,
+                           columns=mapping, notes=notes, strict=strict,
                            hint=" (a temperature–duty table needs columns name, T and Q_cumulative instead)")
         streams = _segment_streams(table)
     try:

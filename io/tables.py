@@ -20,6 +20,7 @@ The readers of stream, utility and temperature–duty tables all go through here
 
 from __future__ import annotations
 
+import difflib
 import functools
 import os
 import re
@@ -473,7 +474,8 @@ def read_table(source: str | os.PathLike | Cells, vocabulary: Sequence[str], *,
                required: Sequence[str | tuple[str, ...]] = (), sheet: str | None = None,
                columns: Mapping[str, str] | str | None = None, hint: str = "",
                hours_per_year: float | None = None, aliases: Mapping[str, Sequence[str]] | None = None,
-               kinds: Mapping[str, QuantityKind | None] | None = None) -> Table:
+               kinds: Mapping[str, QuantityKind | None] | None = None, notes: list[str] | None = None,
+               strict: bool = False) -> Table:
     """Find the header, units and data rows of a table and bind its columns to canonical names.
 
     Parameters
@@ -496,6 +498,11 @@ def read_table(source: str | os.PathLike | Cells, vocabulary: Sequence[str], *,
     aliases, kinds : mapping, optional
         For a table with a vocabulary of its own (the network table): accepted names and quantity of
         each canonical column; default :data:`ALIASES` and :data:`COLUMN_KINDS`.
+    notes : list of str, optional
+        Receives a note for every header that is not a known column (with the nearest known name):
+        such a column is ignored, and a misspelt optional column would otherwise be lost silently.
+    strict : bool, optional
+        Refuse unknown headers instead (an :class:`InputError` naming them).
 
     Returns
     -------
@@ -531,6 +538,23 @@ def read_table(source: str | os.PathLike | Cells, vocabulary: Sequence[str], *,
         if not any(key == normalise_name(name) for t in headers for name, _ in split_header(t)):
             raise InputError(f"column mapping: there is no column '{foreign}'; columns found: "
                              f"{', '.join(headers)}", file=label, row=header_row)
+
+    unknown = [header_cells[j] for j, t in enumerate(header_cells) if t and j not in matches]
+    if unknown:
+        names = ALIASES if aliases is None else aliases
+        known = {normalise_name(a): c for c in vocabulary for a in (c, *names.get(c, ()))}
+
+        def nearest(header: str) -> str:
+            close = difflib.get_close_matches(normalise_name(split_header(header)[0][0]), list(known), n=1,
+                                              cutoff=0.75)
+            return f" (did you mean '{known[close[0]]}'?)" if close else ""
+
+        text = "; ".join(f"'{h}'{nearest(h)}" for h in unknown)
+        if strict:
+            raise InputError(f"unknown column(s) {text}; rename them, map them with --columns, or map them to "
+                             "'-' to ignore them", file=label, row=header_row, column=unknown[0])
+        if notes is not None:
+            notes.append(f"{label}: column(s) not used: {text}")
 
     bound: dict[str, tuple[int, str, str | None]] = {}
     for j, (target, unit) in sorted(matches.items()):

@@ -37,8 +37,8 @@ _KINDS = {
 
 def read_utilities(path: str | os.PathLike, *, sheet: str | None = None,
                    columns: Mapping[str, str] | str | None = None,
-                   process: StreamTable | None = None, hours_per_year: float | None = None
-                   ) -> tuple[Utility, ...]:
+                   process: StreamTable | None = None, hours_per_year: float | None = None,
+                   notes: list[str] | None = None, strict: bool = False) -> tuple[Utility, ...]:
     """Read hot and cold utilities from a CSV file or an Excel workbook.
 
     Parameters
@@ -55,6 +55,10 @@ def read_utilities(path: str | os.PathLike, *, sheet: str | None = None,
     hours_per_year : float, optional
         Operating hours per year [h/year]; needed only when prices are per energy (``cost [$/kWh]``),
         which are then turned into money/(kW·year).
+    notes : list of str, optional
+        Receives a note naming each header that is not a known column (with the nearest known name).
+    strict : bool, optional
+        Refuse unknown headers instead of noting them.
 
     Returns
     -------
@@ -77,7 +81,7 @@ def read_utilities(path: str | os.PathLike, *, sheet: str | None = None,
     [('steam', 'hot', 120.0), ('CW', 'cold', 10.0)]
     """
     table = read_table(path, UTILITY_COLUMNS, required=("name", "T_supply", "T_target", "cost"), sheet=sheet,
-                       columns=columns, hours_per_year=hours_per_year)
+                       columns=columns, hours_per_year=hours_per_year, notes=notes, strict=strict)
     n = len(table)
     names = table.text("name")
     ts = table.numbers("T_supply", what="supply temperature")

@@ -105,6 +105,8 @@ def add_table_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--fit-tolerance", type=positive, default=0.5, metavar="K",
                    help="largest temperature error when fitting temperature–duty points into linear "
                         "segments [K] (default 0.5 K; the fit is always on the safe side)")
+    p.add_argument("--strict", action="store_true",
+                   help="refuse columns the tables do not use (by default they are named on stderr and ignored)")
 
 
 def add_cost_target_options(p: argparse.ArgumentParser) -> None:
@@ -180,11 +182,17 @@ def read_inputs(args):
     from ..io import parse_column_mapping, read_streams, read_utilities
 
     columns = parse_column_mapping(args.columns) if args.columns else None
-    streams = read_streams(args.file, sheet=args.sheet, columns=columns, fit_tolerance=args.fit_tolerance)
+    notes: list[str] = []
+    strict = getattr(args, "strict", False)
+    streams = read_streams(args.file, sheet=args.sheet, columns=columns, fit_tolerance=args.fit_tolerance,
+                           notes=notes, strict=strict)
     utilities = None
     if args.utilities:
         utilities = read_utilities(args.utilities, sheet=args.utilities_sheet, process=streams,
-                                   hours_per_year=args.hours_per_year)
+                                   hours_per_year=args.hours_per_year, notes=notes, strict=strict)
+    if not getattr(args, "quiet", False):
+        for n in notes:
+            print(f"note: {n} (ignored; --strict refuses unknown columns)", file=sys.stderr)
     return streams, utilities
 
 

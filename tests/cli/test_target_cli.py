@@ -175,3 +175,14 @@ def test_absurd_magnitudes_are_refused_with_their_location(capsys, tmp_path, row
     code, out, err = run(capsys, "target", p, "--json")
     assert code == 2 and out == ""
     assert f"row 2, column '{column}'" in err and words in err and "inf" not in err
+
+
+def test_a_misspelt_optional_column_is_named_and_strict_refuses_it(capsys, tmp_path):
+    p = tmp_path / "s.csv"
+    p.write_text("name,T_supply,T_target,CP,dT_min_contib\nH1,180,60,3,2\nC1,20,135,2,2\n", encoding="utf-8")
+    code, out, err = run(capsys, "target", p, "--json")
+    assert code == 0 and json.loads(out)["hot_utility"] >= 0
+    assert "'dT_min_contib' (did you mean 'dT_min_contrib'?)" in err and "ignored" in err
+    code, out, err = run(capsys, "target", p, "--strict")
+    assert code == 2 and out == ""
+    assert "row 1, column 'dT_min_contib': unknown column(s)" in err and "Traceback" not in err
