@@ -400,6 +400,10 @@ class Utility:
         ts = _temperature(self.supply_temperature, "supply temperature", "T_supply")
         tt = _temperature(self.target_temperature, "target temperature", "T_target")
         cost = _finite(self.cost, "cost", "cost")
+        if not cost >= 0:
+            raise InputError(f"utility '{self.name}': price must be >= 0 money/(kW·year), got {cost:g} (a utility "
+                             "that earns money, such as steam raised for export, is not a utility price)",
+                             row=self.row, column="cost")
         object.__setattr__(self, "supply_temperature", ts)
         object.__setattr__(self, "target_temperature", tt)
         object.__setattr__(self, "cost", cost)

@@ -186,3 +186,11 @@ def test_a_misspelt_optional_column_is_named_and_strict_refuses_it(capsys, tmp_p
     code, out, err = run(capsys, "target", p, "--strict")
     assert code == 2 and out == ""
     assert "row 1, column 'dT_min_contib': unknown column(s)" in err and "Traceback" not in err
+
+
+def test_a_negative_utility_price_is_bad_input_with_its_row(capsys, tmp_path):
+    # once a solver error "LP unbounded" with exit 1 and no location
+    u = tmp_path / "u.csv"
+    u.write_text("name,T_supply,T_target,cost\nsteam,250,249,-5\nCW,20,30,10\n", encoding="utf-8")
+    code, _, err = run(capsys, "target", DEMO / "streams.csv", "--utilities", u)
+    assert code == 2 and "u.csv, row 2, column 'cost'" in err and "price must be >= 0" in err
