@@ -16,6 +16,7 @@ results never depend on what ran them.
 from __future__ import annotations
 
 import os
+import re
 from collections.abc import Callable
 from concurrent.futures import ProcessPoolExecutor, as_completed
 
@@ -82,10 +83,7 @@ class TaskRunner:
                 raise InputError("a Dask cluster was asked for but dask.distributed is not installed: "
                                  "pip install 'heatloom[dask]' (or \"dask[distributed]\")") from None
             if isinstance(cluster, str):
-                try:
-                    self._client = Client(cluster, timeout=30)
-                except OSError as e:
-                    raise InputError(f"cannot reach the Dask scheduler at {cluster!r}: {e}") from None
+                self._client = _connect(Client, cluster)
                 self._own_client = True
             elif hasattr(cluster, "submit") and hasattr(cluster, "gather"):
                 self._client = cluster
@@ -138,6 +136,26 @@ class TaskRunner:
         if self._client is not None and self._own_client:
             self._client.close()
             self._client = None
+
+
+SCHEDULER_ADDRESS = re.compile(r"^(inproc://\S+|((tcp|tls|ucx)://)?\[?[\w.:-]+\]?:\d{1,5})$")
+"""A Dask scheduler address: ``tcp://HOST:PORT`` (``tls://``, ``ucx://`` or no scheme also)."""
+
+
+def _connect(client_type, address: str):
+    """A client of the Dask scheduler at ``address``, or an InputError saying what is expected."""
+    expected = "give the scheduler's address, e.g. tcp://HOST:8786"
+    text = address.strip()
+    if text.lower().startswith(("http://", "https://")):
+        raise InputError(f"--cluster {address!r} is a web address (the Dask dashboard, not the scheduler); "
+                         f"{expected}")
+    if not SCHEDULER_ADDRESS.match(text):
+        raise InputError(f"--cluster {address!r} is not a scheduler address; {expected}")
+    try:
+        return client_type(text, timeout=15)
+    except Exception as e:  # noqa: BLE001 - whatever the connection fails with, the user gets one clear line
+        raise InputError(f"cannot use a Dask scheduler at {address!r} ({type(e).__name__}: {e}); is a Dask "
+                         f"scheduler running there? {expected}") from None
 
 
 def describe_executor(workers: int | None = None, cluster=None) -> str:

@@ -5,7 +5,7 @@ from __future__ import annotations
 import argparse
 
 from .. import defaults
-from ..errors import InputError
+from ..errors import InfeasibleError, InputError
 from ..validation import check_dt_min
 from .common import (
     ProgressBars,
@@ -194,6 +194,10 @@ def run(args) -> int:
                                solver=args.solver, design_time_limit=args.time_limit, progress=bars)
     finally:
         bars.close()
+    if study.cases and not any(c.targets.feasible for c in study.cases):
+        first = next((c.targets.note for c in study.cases if c.targets.note), "")
+        raise InfeasibleError(f"none of the {len(study.cases)} cases (zones × price scenarios × ΔTmin) can be "
+                              f"served by the utilities given{': ' + first if first else ''}")
     data = study.to_dict()
     data["source"] = str(args.path)
     data["zone_sources"] = site.zone_sources

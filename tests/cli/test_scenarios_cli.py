@@ -182,3 +182,55 @@ def test_cluster_address_from_the_command_line(run, site):
     assert a["executor"] == "serial" and b["executor"] == f"Dask cluster {address}"
     a.pop("executor"), b.pop("executor")
     assert a == b
+
+
+@pytest.mark.parametrize("address, words", [
+    ("http://127.0.0.1:8787", "web address (the Dask dashboard, not the scheduler)"),
+    ("tcp://", "is not a scheduler address"),
+    ("scheduler at port eighty", "is not a scheduler address"),
+])
+def test_cluster_addresses_that_cannot_be_a_scheduler_are_bad_input(run, tmp_path, address, words):
+    p = tmp_path / "streams.csv"
+    p.write_text("name,T_supply,T_target,CP,h\nH1,180,60,3,1\nC1,20,135,2,1\n", encoding="utf-8")
+    code, _, err = run("scenarios", p, "--cluster", address)
+    assert code == 2 and words in err and "tcp://HOST:8786" in err and "bug" not in err
+
+
+def test_a_server_that_is_not_a_scheduler_is_bad_input(run, tmp_path):
+    import socket
+    import threading
+
+    server = socket.socket()
+    server.bind(("127.0.0.1", 0))
+    server.listen()
+    port = server.getsockname()[1]
+
+    def answer_like_a_web_server():
+        for _ in range(3):
+            try:
+                c, _ = server.accept()
+            except OSError:
+                return
+            c.sendall(b"HTTP/1.1 200 OK\r\n\r\nhello")
+            c.close()
+
+    threading.Thread(target=answer_like_a_web_server, daemon=True).start()
+    p = tmp_path / "streams.csv"
+    p.write_text("name,T_supply,T_target,CP,h\nH1,180,60,3,1\nC1,20,135,2,1\n", encoding="utf-8")
+    try:
+        code, _, err = run("scenarios", p, "--cluster", f"tcp://127.0.0.1:{port}")
+    finally:
+        server.close()
+    assert code == 2 and "is a Dask scheduler running there?" in err and "bug" not in err
+
+
+def test_every_case_infeasible_is_exit_3_as_for_sweep(run, tmp_path):
+    # C1 (CP 4) needs heat up to 170 °C beyond what H1 (CP 3) gives there: steam at 100 °C cannot supply it
+    # (invented data)
+    p = tmp_path / "streams.csv"
+    p.write_text("name,T_supply,T_target,CP,h\nH1,180,60,3,1\nC1,20,170,4,1\n", encoding="utf-8")
+    u = tmp_path / "utilities.csv"
+    u.write_text("name,T_supply,T_target,cost\nsteam,100,99,100\nCW,10,20,10\n", encoding="utf-8")
+    code, out, err = run("scenarios", p, "--utilities", u, "--default-h", "1", "--workers", "1",
+                         "--dtmin", "5:15")
+    assert code == 3 and "none of the" in err and "can be served" in err
