@@ -13,7 +13,7 @@ from .. import defaults
 EXIT_OK, EXIT_UNEXPECTED, EXIT_INPUT, EXIT_INFEASIBLE = 0, 1, 2, 3
 """Exit codes of every command."""
 
-__all__ = ["note_lines", "EXIT_OK", "EXIT_UNEXPECTED", "EXIT_INPUT", "EXIT_INFEASIBLE", "positive", "positive_or_zero", "add_shared", "add_table_options",
+__all__ = ["folder_tables", "note_lines", "EXIT_OK", "EXIT_UNEXPECTED", "EXIT_INPUT", "EXIT_INFEASIBLE", "positive", "positive_or_zero", "add_shared", "add_table_options",
            "note", "read_inputs", "whole_number", "add_output_options", "dt_min_of", "fmt", "solves_summary", "print_json", "finish", "CASE_SUFFIXES",
            "CASE_ROLES", "case_candidates", "find_case_files", "ProgressBars", "add_cost_target_options",
            "add_site_table_options", "check_cost_target_inputs", "number_list", "zone_streams",
@@ -453,3 +453,30 @@ def note_lines(notes=(), *, caution: str = "") -> list[str]:
     True
     """
     return [f"  note: {n}" for n in notes] + [f"  note: {defaults.SAFETY_NOTE}" + (f" {caution}" if caution else "")]
+
+
+def folder_tables(path: str | Path, given: Mapping[str, object]) -> dict[str, Path]:
+    """The tables of a case folder for the roles in ``given`` that the command line left empty (the same
+    finder as ``report`` and ``retrofit``): role → file.  A role with several candidate files is refused
+    with their names; a path that is not a folder finds nothing.
+
+    Examples
+    --------
+    >>> import tempfile, pathlib
+    >>> d = pathlib.Path(tempfile.mkdtemp())
+    >>> for n in ("east_streams.csv", "utilities.csv", "prices.csv"):
+    ...     _ = (d / n).write_text("x")
+    >>> sorted(folder_tables(d, {"utilities": None, "prices": "other.csv", "costs": None}))
+    ['utilities']
+    """
+    from ..errors import InputError
+
+    if not Path(path).is_dir():
+        return {}
+    wanted = tuple(role for role, value in given.items() if not value)
+    found = case_candidates(path, wanted) if wanted else {}
+    for role, files in found.items():
+        if len(files) > 1:
+            raise InputError(f"several files could be the {role} table: {', '.join(f.name for f in files)}; keep "
+                             f"one, or name it with --{role}", file=str(path))
+    return {role: files[0] for role, files in found.items()}

@@ -61,8 +61,8 @@ def register(sub) -> None:
     p.add_argument("--solver", choices=["highs", "cbc"], default=None,
                    help="MILP solver (default: HiGHS when installed, else CBC)")
     p.add_argument("--time-limit", type=positive, default=None, metavar="S",
-                   help="mer: time limit of each solve [s] (default 60 s); tac: of the whole run [s] "
-                        "(default 120 s)")
+                   help="wall-clock budget of the whole run [s], shared by its solves (mer: default 60 s; "
+                        "tac: default 120 s)")
     geo = p.add_argument_group("geometry (--mode mer)")
     geo.add_argument("--exchanger-type", choices=list(EXCHANGER_TYPES),
                      default="counter-current",
@@ -162,7 +162,7 @@ def run(args) -> int:
             net = design_tac(streams, utilities, costs=costs, emat=dt_min,
                              time_limit=args.time_limit or defaults.TAC_TIME_LIMIT, seed=args.seed, starts=args.starts,
                              rounds=args.rounds, solver=args.solver, default_film_coefficient=args.default_h,
-                             progress=bar.best)
+                             segmented_streams=True, progress=bar.best)
         finally:
             bar.close()
     else:

@@ -113,13 +113,20 @@ def register(sub) -> None:
 
 
 def is_site_folder(path: str | Path) -> bool:
-    """Whether a folder is a site: several files with ``streams`` in their names, or one with ``mains``.
+    """Whether a folder is a site: a ``mains`` table, or several zone tables ``<zone>_streams``.
+
+    A folder that holds a plain ``streams`` table is a process case even when other files have
+    ``streams`` in their names (a ``streams_backup.csv`` left beside it): the process finder then refuses
+    the ambiguity and names the files, instead of the report silently becoming a site report.
 
     Examples
     --------
     >>> import tempfile, pathlib
     >>> d = pathlib.Path(tempfile.mkdtemp())
     >>> _ = (d / "streams.csv").write_text("x")
+    >>> is_site_folder(d)
+    False
+    >>> _ = (d / "streams_backup.csv").write_text("x")
     >>> is_site_folder(d)
     False
     >>> _ = (d / "mains.csv").write_text("x")
@@ -130,7 +137,10 @@ def is_site_folder(path: str | Path) -> bool:
     if not path.is_dir():
         return False
     found = case_candidates(path, ("streams", "mains"))
-    return len(found.get("streams", ())) > 1 or "mains" in found
+    if "mains" in found:
+        return True
+    tables = found.get("streams", ())
+    return len(tables) > 1 and not any(f.stem.lower() == "streams" for f in tables)
 
 
 def _inputs(args) -> tuple[dict[str, Path], list[str]]:

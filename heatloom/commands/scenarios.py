@@ -15,6 +15,7 @@ from .common import (
     check_cost_target_inputs,
     finish,
     fmt,
+    folder_tables,
     note,
     note_lines,
     number_list,
@@ -168,9 +169,15 @@ def run(args) -> int:
 
     site = read_site(args.path, sheet_per_zone=not args.one_zone_workbook, columns=args.columns,
                      fit_tolerance=args.fit_tolerance)
+    given = {"utilities": args.utilities, "prices": args.prices, "costs": args.costs}
+    found = folder_tables(args.path, given)
+    if found:
+        note(args, "heatloom scenarios: from the folder, " + "; ".join(f"{role} {p.name}" for role, p in found.items())
+             + " (give the option to use another file)")
     utilities, scenarios, costs, missing = read_scenario_inputs(
-        site.zones, utilities=args.utilities, utilities_sheet=args.utilities_sheet, prices=args.prices,
-        costs=args.costs, hours_per_year=args.hours_per_year)
+        site.zones, utilities=args.utilities or found.get("utilities"), utilities_sheet=args.utilities_sheet,
+        prices=args.prices or found.get("prices"), costs=args.costs or found.get("costs"),
+        hours_per_year=args.hours_per_year)
     scenarios = (*scenarios, *price_factor_scenarios(args.price_factors))
     rng, range_note = (args.dtmin, "given") if args.dtmin is not None else (defaults.SWEEP_RANGE, "default; set with --dtmin LO:HI")
     check_cost_target_inputs(missing, args.default_h, args.cluster)
@@ -178,7 +185,7 @@ def run(args) -> int:
     if args.out:
         from ..io.export import OutputDirectory
 
-        inputs = [*site.files, *(p for p in (args.utilities, args.prices, args.costs) if p)]
+        inputs = [*site.files, *(p for p in (*given.values(), *found.values()) if p)]
         out = OutputDirectory(args.out, inputs, force=args.force)
         out.check(OUTPUT_FILES)
     if missing:

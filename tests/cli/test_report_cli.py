@@ -388,3 +388,17 @@ def test_site_folder_with_a_prices_table_adds_the_price_scenarios(tmp_path, caps
     assert optima["ΔTmin [K]"].tolist() == pytest.approx([o.optimum.dt_min for o in study.optima])
     html = (tmp_path / "b" / "report.html").read_text(encoding="utf-8")
     assert "Price scenarios" in html and "gas +40 %" in html and "Linnhoff, B., Ahmad, S. (1990)" in html
+
+
+def test_a_stray_stream_table_is_refused_not_taken_for_a_site(tmp_path, capsys):
+    # a streams_backup.csv beside streams.csv once turned the report into a two-zone site report
+    folder = tmp_path / "case"
+    folder.mkdir()
+    table = "name,T_supply,T_target,CP\nH1,180,60,3\nC1,20,135,2\n"
+    (folder / "streams.csv").write_text(table, encoding="utf-8")
+    (folder / "streams_backup.csv").write_text(table, encoding="utf-8")
+    assert not is_site_folder(folder)
+    code = cli.main(["report", str(folder), "--out", str(tmp_path / "out")])
+    err = capsys.readouterr().err
+    assert code == 2 and "several files could be the stream table: streams.csv, streams_backup.csv" in err
+    assert not (tmp_path / "out").exists()

@@ -234,3 +234,15 @@ def test_every_case_infeasible_is_exit_3_as_for_sweep(run, tmp_path):
     code, out, err = run("scenarios", p, "--utilities", u, "--default-h", "1", "--workers", "1",
                          "--dtmin", "5:15")
     assert code == 3 and "none of the" in err and "can be served" in err
+
+
+def test_a_folder_s_utilities_and_prices_are_used_and_named(run, site):
+    # the same folder rule as report: the folder's tables play their roles, listed on stderr
+    folder = site / "site"
+    for name in ("utilities.csv", "prices.csv"):
+        (folder / name).write_text((site / name).read_text(encoding="utf-8"), encoding="utf-8")
+    code, out, err = run("scenarios", folder, "--hours-per-year", "8000", "--default-h", "0.8", "--workers", "1",
+                         "--dtmin", "10:20", "--step", "5", "--json", "--no-optimum")
+    assert code == 0, err
+    assert "from the folder, prices prices.csv; utilities utilities.csv" in err
+    assert [s["name"] for s in json.loads(out)["scenarios"]] == ["contract", "dear steam"]   # the prices table
