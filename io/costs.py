@@ -170,6 +170,8 @@ def costs_from_mapping(mapping, *, source: str | os.PathLike | None = None,
     else:
         kwargs.setdefault("interest_rate", None)
         kwargs.setdefault("years", None)
+    if "hours_per_year" in kwargs:
+        kwargs["hours_source"] = "costs file"
     kwargs.setdefault("hours_per_year", defaults.HOURS_PER_YEAR)
     try:
         return CostSettings(**kwargs)

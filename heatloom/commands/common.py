@@ -161,14 +161,15 @@ def read_scenario_inputs(zones, *, utilities=None, utilities_sheet=None, prices=
     Returns (utilities or None, price scenarios from the prices table, cost settings or None, names of the
     streams and utilities without a film coefficient).
     """
-    from ..io import read_costs, read_utilities
+    from ..io import read_utilities
     from ..io.scenarios import read_price_scenarios
     from ..pinch.area import missing_film_coefficients
 
+    settings = read_cost_settings(costs, hours_per_year)
+    hours = price_hours(settings)
     table = None if utilities is None else read_utilities(utilities, sheet=utilities_sheet,
-                                                          process=zone_streams(zones), hours_per_year=hours_per_year)
-    plans = () if prices is None else read_price_scenarios(prices, table, hours_per_year=hours_per_year)
-    settings = None if costs is None else read_costs(costs)
+                                                          process=zone_streams(zones), hours_per_year=hours)
+    plans = () if prices is None else read_price_scenarios(prices, table, hours_per_year=hours)
     missing = sorted({m for z in zones for m in missing_film_coefficients(z.streams, table or ())})
     return table, plans, settings, missing
 
@@ -182,6 +183,7 @@ def read_inputs(args):
     from ..io import parse_column_mapping, read_streams, read_utilities
 
     columns = parse_column_mapping(args.columns) if args.columns else None
+    costs = read_cost_settings(getattr(args, "costs", None), getattr(args, "hours_per_year", None))
     notes: list[str] = []
     strict = getattr(args, "strict", False)
     streams = read_streams(args.file, sheet=args.sheet, columns=columns, fit_tolerance=args.fit_tolerance,
@@ -189,11 +191,39 @@ def read_inputs(args):
     utilities = None
     if args.utilities:
         utilities = read_utilities(args.utilities, sheet=args.utilities_sheet, process=streams,
-                                   hours_per_year=args.hours_per_year, notes=notes, strict=strict)
+                                   hours_per_year=price_hours(costs), notes=notes, strict=strict)
     if not getattr(args, "quiet", False):
         for n in notes:
             print(f"note: {n} (ignored; --strict refuses unknown columns)", file=sys.stderr)
-    return streams, utilities
+    return streams, utilities, costs
+
+
+def read_cost_settings(path, hours_per_year=None):
+    """The cost settings of a run: the costs file's (when given), with ``--hours-per-year`` overriding its
+    operating hours; None when neither is given (the defaults apply).  The result says where its hours come
+    from (:attr:`heatloom.model.CostSettings.hours_source`)."""
+    from dataclasses import replace
+
+    from ..io import read_costs
+    from ..model import CostSettings
+
+    costs = read_costs(path) if path else None
+    if hours_per_year is not None:
+        costs = replace(costs or CostSettings(), hours_per_year=hours_per_year, hours_source="--hours-per-year")
+    return costs
+
+
+def price_hours(costs) -> float | None:
+    """Operating hours [h/year] that turn prices per energy into prices per kW·year: those of
+    ``--hours-per-year`` or of the costs file, never the package default (None: such prices are refused).
+
+    Examples
+    --------
+    >>> from heatloom.model import CostSettings
+    >>> price_hours(None), price_hours(CostSettings()), price_hours(CostSettings(hours_per_year=7000, hours_source="costs file"))
+    (None, None, 7000.0)
+    """
+    return None if costs is None or costs.hours_source == "default" else costs.hours_per_year
 
 
 def fmt(x: float, unit: str = "kW") -> str:

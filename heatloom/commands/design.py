@@ -133,12 +133,7 @@ def run(args) -> int:
     if tac and args.exchanger_type != "counter-current":
         raise InputError(f"--exchanger-type {args.exchanger_type} applies to --mode mer only: the TAC design sizes "
                          "counter-current units")
-    streams, utilities = read_inputs(args)
-    costs = None
-    if args.costs:
-        from ..io import read_costs
-
-        costs = read_costs(args.costs)
+    streams, utilities, costs = read_inputs(args)
     if tac:
         dt_min, dt_note = (defaults.EMAT, "EMAT default for --mode tac; set with --emat") if args.emat is None \
             else (args.emat, "EMAT given")

@@ -34,7 +34,9 @@ from .common import (
     find_case_files,
     positive,
     positive_or_zero,
+    price_hours,
     print_json,
+    read_cost_settings,
     read_scenario_inputs,
 )
 
@@ -269,7 +271,7 @@ def run(args) -> int:
     import datetime
 
     from .. import __version__
-    from ..io import read_costs, read_streams, read_utilities
+    from ..io import read_streams, read_utilities
     from ..io.export import OutputDirectory
     from ..io.report import render_report
     from ..io.tables import parse_column_mapping
@@ -283,11 +285,11 @@ def run(args) -> int:
     out.check(OUTPUT_FILES)   # refuse before computing anything, so nothing is half written
     columns = parse_column_mapping(args.columns) if args.columns else None
     streams = read_streams(files["stream table"], sheet=args.sheet, columns=columns, fit_tolerance=args.fit_tolerance)
+    costs = read_cost_settings(files.get("costs"), args.hours_per_year)
     utilities = None
     if "utilities" in files:
         utilities = read_utilities(files["utilities"], sheet=args.utilities_sheet, process=streams,
-                                   hours_per_year=args.hours_per_year)
-    costs = read_costs(files["costs"]) if "costs" in files else None
+                                   hours_per_year=price_hours(costs))
     retrofit_costs = None
     if "costs" in files and "existing network" in files:
         from ..io.costs import read_retrofit_costs

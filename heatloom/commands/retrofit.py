@@ -17,6 +17,8 @@ from .common import (
     note,
     note_lines,
     positive,
+    price_hours,
+    read_cost_settings,
     solves_summary,
     whole_number,
 )
@@ -189,7 +191,7 @@ def _frames(result):
 
 
 def run(args) -> int:
-    from ..io import read_costs, read_streams, read_utilities
+    from ..io import read_streams, read_utilities
     from ..io.costs import read_retrofit_costs
     from ..io.network_table import read_network
     from ..io.tables import parse_column_mapping
@@ -207,15 +209,13 @@ def run(args) -> int:
         note(args, n)
     columns = parse_column_mapping(args.columns) if args.columns else None
     streams = read_streams(files["streams"], sheet=args.sheet, columns=columns, fit_tolerance=args.fit_tolerance)
+    costs = read_cost_settings(files.get("costs"), args.hours_per_year)
     utilities = ()
     if "utilities" in files:
         utilities = read_utilities(files["utilities"], sheet=args.utilities_sheet, process=streams,
-                                   hours_per_year=args.hours_per_year)
+                                   hours_per_year=price_hours(costs))
     network = ExistingNetwork.from_table(streams, read_network(files["network"]), utilities)
-    costs = rcosts = None
-    if "costs" in files:
-        costs = read_costs(files["costs"])
-        rcosts = read_retrofit_costs(files["costs"])
+    rcosts = read_retrofit_costs(files["costs"]) if "costs" in files else None
     from ..retrofit.options import retrofit_options
 
     result = retrofit_options(network, dt_min, costs=costs, retrofit_costs=rcosts, budget=args.budget,

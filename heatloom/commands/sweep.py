@@ -149,12 +149,7 @@ def run(args) -> int:
     from ..pinch.area import missing_film_coefficients
     from ..studies.sweep import describe_executor, sweep
 
-    streams, utilities = read_inputs(args)
-    costs = None
-    if args.costs:
-        from ..io import read_costs
-
-        costs = read_costs(args.costs)
+    streams, utilities, costs = read_inputs(args)
     rng, range_note = (args.dtmin, "given") if args.dtmin is not None else (defaults.SWEEP_RANGE, "default; set with --dtmin LO:HI")
     missing = missing_film_coefficients(streams, utilities or ())
     check_cost_target_inputs(missing, args.default_h, args.cluster)

@@ -105,7 +105,7 @@ def run(args) -> int:
 
     if args.plot and not args.out:
         raise InputError("--plot writes figures into a folder: add --out DIR (e.g. --out results)")
-    streams, utilities = read_inputs(args)
+    streams, utilities, _ = read_inputs(args)
     dt_min, dt_note = dt_min_of(args)
     out = None
     if args.out:

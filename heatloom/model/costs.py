@@ -218,6 +218,9 @@ class CostSettings:
         Plant life [year]; required when not annualised.
     hours_per_year : float
         Operating hours [h/year], for prices per kWh.
+    hours_source : str, optional
+        Where the operating hours come from, as the outputs state it: ``"default"``, ``"costs file"`` or
+        ``"--hours-per-year"`` (the command-line flag overrides the costs file).
 
     Defaults are those of :mod:`heatloom.defaults` (illustrative, common practice, not a
     quotation).
@@ -241,6 +244,7 @@ class CostSettings:
     interest_rate: float | None = defaults.INTEREST_RATE
     years: float | None = defaults.YEARS
     hours_per_year: float = defaults.HOURS_PER_YEAR
+    hours_source: str = field(default="default", compare=False)
 
     def __post_init__(self) -> None:
         if not isinstance(self.currency, str) or not self.currency.strip():
@@ -334,7 +338,9 @@ class CostSettings:
             parts.append(f"Capital is annualised at {100 * self.interest_rate:g} % interest over {self.years:g} "
                          f"years{' (default)' if tag('interest_rate') and tag('years') else ''}: capital recovery factor "
                          f"{self.annualisation_factor:.4f} per year.")
-        parts.append(f"Operating hours: {self.hours_per_year:g} h/year{tag('hours_per_year')}.")
+        source = {"default": " (default)", "costs file": " (from the costs file)"}.get(
+            self.hours_source, f" (given with {self.hours_source})")
+        parts.append(f"Operating hours: {self.hours_per_year:g} h/year{source}.")
         if any(tag(k) for k in ("exchanger", "heater", "cooler", "annualised", "interest_rate", "years")):
             parts.append("Values marked (default) are illustrative defaults (common practice), not a quotation.")
         parts.append(defaults.SAFETY_NOTE)

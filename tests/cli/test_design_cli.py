@@ -116,3 +116,34 @@ def test_exchanger_type_refuses_kinds_without_geometry(capsys, ray_das):
     err = capsys.readouterr().err
     assert exc.value.code == 2 and "invalid choice: 'co-current'" in err and "Traceback" not in err
     assert "counter-current" in err and "shell-and-tube" in err and "double-pipe" in err
+
+
+def test_operating_hours_come_from_the_costs_file_and_the_flag_overrides_them(tmp_path):
+    # prices per kWh need operating hours: 0.01 USD/kWh × 7000 h/year = 70 USD/(kW·year) (arithmetic)
+    import argparse
+
+    from heatloom.commands.common import read_inputs
+    from heatloom.errors import InputError
+
+    s = tmp_path / "s.csv"
+    s.write_text("name,T_supply,T_target,CP,h\nH1,180,60,3,1\nC1,20,135,2,1\n", encoding="utf-8")
+    u = tmp_path / "u.csv"
+    u.write_text("name,T_supply,T_target,cost [USD/kWh],h\nsteam,250,249,0.01,4\nCW,20,30,0.001,2\n",
+                 encoding="utf-8")
+    c = tmp_path / "costs.json"
+    c.write_text('{"currency": "USD", "annualised": true, "hours_per_year": 7000,'
+                 ' "exchanger": {"fixed": 0, "per_area": 1000, "exponent": 0.6}}', encoding="utf-8")
+
+    def args(**kw):
+        base = dict(file=str(s), sheet=None, columns=None, fit_tolerance=0.5, utilities=str(u), utilities_sheet=None,
+                    costs=None, hours_per_year=None, quiet=True, strict=False)
+        return argparse.Namespace(**{**base, **kw})
+
+    with pytest.raises(InputError, match="operating hours per year"):
+        read_inputs(args())                                          # neither the file nor the flag: refused
+    _, utilities, costs = read_inputs(args(costs=str(c)))
+    assert [x.cost for x in utilities] == pytest.approx([70.0, 7.0])
+    assert "Operating hours: 7000 h/year (from the costs file)" in costs.describe()
+    _, utilities, costs = read_inputs(args(costs=str(c), hours_per_year=8000.0))
+    assert [x.cost for x in utilities] == pytest.approx([80.0, 8.0])
+    assert "Operating hours: 8000 h/year (given with --hours-per-year)" in costs.describe()
