@@ -47,7 +47,7 @@ from .tables import IGNORE, Table, find_header, parse_column_mapping, read_table
 
 __all__ = ["SEGMENT_COLUMNS", "POINT_COLUMNS", "read_streams"]
 
-SEGMENT_COLUMNS = ("name", "T_supply", "T_target", "CP", "duty", "h", "dT_min_contrib", "kind")
+SEGMENT_COLUMNS = ("name", "T_supply", "T_target", "CP", "duty", "mass_flow", "specific_heat", "h", "dT_min_contrib", "kind")
 """Canonical columns of a segment table."""
 POINT_COLUMNS = ("name", "T", "Q_cumulative", "h", "dT_min_contrib")
 """Canonical columns of a temperature–duty table."""
@@ -110,7 +110,7 @@ def read_streams(path: str | os.PathLike, *, sheet: str | None = None,
                            notes=notes, strict=strict)
         streams = _point_streams(table, tolerance)
     else:
-        table = read_table(cells, SEGMENT_COLUMNS, required=("name", "T_supply", "T_target", ("CP", "duty")),
+        table = read_table(cells, SEGMENT_COLUMNS, required=("name", "T_supply", "T_target", ("CP", "duty", "mass_flow")),
                            columns=mapping, notes=notes, strict=strict,
                            hint=" (a temperature–duty table needs columns name, T and Q_cumulative instead)")
         streams = _segment_streams(table)
@@ -192,8 +192,24 @@ def _segment_streams(table: Table) -> list[Stream]:
         raise table.error(f"supply and target temperatures are equal ({_as_written(table, 'T_target', i)}): a "
                           "stream must change temperature (give a phase change a small glide, e.g. 0.1 K)",
                           index=i, column="T_target")
+    mass = table.optional_numbers("mass_flow", what="mass flow rate")
+    specific = table.optional_numbers("specific_heat", what="specific heat")
+    for given, other, words in ((mass, specific, ("mass_flow", "specific_heat", "specific heat")),
+                                (specific, mass, ("specific_heat", "mass_flow", "mass flow rate"))):
+        if (i := _first(~np.isnan(given) & np.isnan(other))) is not None:
+            raise table.error(f"a {words[0]} is given without a {words[2]}: CP = mass flow × specific heat needs "
+                              "both", index=i, column=words[0] if words[1] not in table else words[1])
+        if (i := _first(~np.isnan(given) & ~(given > 0))) is not None:
+            raise table.error(f"{words[0]} must be > 0, got {_as_written(table, words[0], i)}", index=i,
+                              column=words[0])
+    from_mass = mass * specific
+    if (i := _first(~np.isnan(from_mass) & ~np.isnan(cp) & (np.abs(cp - from_mass) > _CP_DUTY_RTOL * cp))) is not None:
+        raise table.error(f"CP {cp[i]:.6g} kW/K disagrees with mass flow × specific heat = {from_mass[i]:.6g} kW/K; give one "
+                          "of them or make them agree", index=i, column="CP")
+    cp = np.where(np.isnan(cp), from_mass, cp)
     if (i := _first(np.isnan(cp) & np.isnan(duty))) is not None:
-        raise table.error("empty cell: give CP or duty", index=i, column="CP" if "CP" in table else "duty")
+        raise table.error("empty cell: give CP or duty (or a mass flow and a specific heat)", index=i,
+                          column="CP" if "CP" in table else "duty" if "duty" in table else "mass_flow")
     if (i := _first(~np.isnan(cp) & ~(cp > 0))) is not None:
         raise table.error(f"heat capacity flow rate CP must be > 0, got {_as_written(table, 'CP', i)}",
                           index=i, column="CP")

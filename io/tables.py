@@ -65,6 +65,8 @@ COLUMN_KINDS: dict[str, QuantityKind | None] = {
     "Q_cumulative": QuantityKind.DUTY,
     "scenario": None,
     "factor": None,
+    "mass_flow": QuantityKind.MASS_FLOW,
+    "specific_heat": QuantityKind.SPECIFIC_HEAT,
 }
 """Canonical column names and the quantity each holds (``None``: text)."""
 
@@ -89,6 +91,9 @@ ALIASES: dict[str, tuple[str, ...]] = {
                      "Q", "duty"),
     "scenario": ("scenario", "scenario name", "case", "case name", "price scenario"),
     "factor": ("factor", "price factor", "multiplier", "price multiplier"),
+    "mass_flow": ("mass_flow", "mass flow", "mass flow rate", "mass flowrate", "mass rate", "mdot", "m_dot",
+                  "flow rate", "flowrate"),
+    "specific_heat": ("specific heat", "specific heat capacity", "cp mass", "mean cp", "mean specific heat"),
 }
 """Accepted names of each canonical column (compared after :func:`normalise_name`).
 
@@ -242,6 +247,17 @@ _COMMA_DECIMAL = re.compile(r"^[+-]?(\d+,\d+|\d{1,3}(\.\d{3})+,\d+)$")
 _POINT_DECIMAL = re.compile(r"^[+-]?(\d+\.\d+|\d{1,3}(,\d{3})+\.\d+)$")
 _DOT_GROUPS = re.compile(r"^[+-]?\d{1,3}(\.\d{3})+$")
 _COMMA_GROUPS = re.compile(r"^[+-]?\d{1,3}(,\d{3})+$")
+
+
+def _is_specific_heat(unit: str | None) -> bool:
+    """Whether a unit written for a CP column measures a specific heat (``kJ/kg.K``)."""
+    if not unit:
+        return False
+    try:
+        parse_unit(unit, QuantityKind.SPECIFIC_HEAT)
+    except InputError:
+        return False
+    return True
 
 
 def number_style(cells) -> tuple[str | None, int | None]:
@@ -621,8 +637,11 @@ def read_table(source: str | os.PathLike | Cells, vocabulary: Sequence[str], *,
         kind = kind_of[target]
         unit = head_unit
         conversion = None
+        row_unit = units.get(target)
+        if target == "CP" and "specific_heat" in vocabulary and "specific_heat" not in bound and \
+                _is_specific_heat(unit or row_unit):
+            target, kind = "specific_heat", kind_of["specific_heat"]     # "Cp [kJ/kg.K]": a specific heat
         if kind is not None:
-            row_unit = units.get(target)
             try:
                 conversion = parse_unit(unit, kind, hours_per_year=hours_per_year)
             except InputError as e:

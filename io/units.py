@@ -81,6 +81,8 @@ class QuantityKind(enum.Enum):
     FILM_COEFFICIENT = "film coefficient"
     AREA = "area"
     COST_RATE = "price per kW·year"
+    MASS_FLOW = "mass flow rate"
+    SPECIFIC_HEAT = "specific heat"
 
     @property
     def canonical(self) -> str:
@@ -108,6 +110,8 @@ _KIND_INFO: dict[QuantityKind, tuple[str, str, str]] = {
                                     "kW/m²K, W/m2K, W/(m2 K), kW/m2/°C, Btu/h/ft²/°F"),
     QuantityKind.AREA: ("m²", "m**2", "m², m2, ft2"),
     QuantityKind.COST_RATE: ("money/(kW·year)", "1/(kW*year)", "€/kW/yr, $/(kW·a), USD/MW/y"),
+    QuantityKind.MASS_FLOW: ("kg/s", "kg/s", "kg/s, kg/h, t/h, lb/h"),
+    QuantityKind.SPECIFIC_HEAT: ("kJ/(kg·K)", "kJ/(kg*K)", "kJ/(kg·K), kJ/kg.K, J/(kg K), kcal/(kg °C), Btu/(lb °F)"),
 }
 
 # Temperature spellings -> scale letter.  Absolute and difference units per letter below.

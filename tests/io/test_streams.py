@@ -136,8 +136,11 @@ def test_round_trip_through_to_frame(tmp_path):
      r"row 1, column 'T_supply \[degX\]': unknown unit 'degX' \(expected a temperature unit"),
     ("name,T_supply,T_target,CP [kW]\nH1,180,60,2\n",
      r"row 1, column 'CP \[kW\]': unit 'kW' measures a duty \(expected a heat capacity flow rate"),
+    # a mass flow is now read (CP = mass flow × specific heat), so alone it lacks its specific heat
     ("name,T_supply,T_target,mass flow\nH1,180,60,2\n",
-     r"row 1: missing required column\(s\) CP or duty; columns found: name, T_supply, T_target, mass flow"),
+     r"row 2, column 'mass flow': a mass_flow is given without a specific heat"),
+    ("name,T_supply,T_target,flux\nH1,180,60,2\n",
+     r"row 1: missing required column\(s\) CP or duty or mass_flow; columns found: name, T_supply, T_target, flux"),
     ("Stream list\nT_supply,T_target,CP\n180,60,2\n",
      r"row 2: missing required column\(s\) name; columns found: T_supply, T_target, CP"),
     ("name,T_supply,T_target,CP\n", r"s\.csv, row 1: no data rows under the header"),
@@ -290,3 +293,26 @@ def test_bad_point_tables(tmp_path, text, match):
 def test_segment_table_wins_when_both_layouts_could_match(tmp_path):
     t = read_streams(csv(tmp_path, "name,T_supply,T_target,Q,T\nH1,180,60,360,1\n"))
     assert t["H1"].segments[0].heat_capacity_flow == 3.0
+
+
+@pytest.mark.parametrize("header, flows, cps", [
+    # CP = mass flow × specific heat; 1 kcal/(kg·°C) = 4.1868 kJ/(kg·K) and 1 Btu/(lb·°F) = 4.1868 kJ/(kg·K)
+    # (International Table definitions, NIST SP 811, 2008 edition, Appendix B); 3.6 t/h = 1 kg/s
+    ("mass flow [kg/s],Cp [kJ/kg.K]", (1.5, 0.5), (2.0, 4.0)),
+    ("mass flow [t/h],specific heat [kcal/(kg °C)]", (5.4, 1.8), (2.0 / 4.1868, 4.0 / 4.1868)),
+])
+def test_mass_flow_and_specific_heat_form_cp(tmp_path, header, flows, cps):
+    p = tmp_path / "s.csv"
+    p.write_text(f"name,T_supply,T_target,{header}\nH1,180,60,{flows[0]},{cps[0]}\nC1,20,135,{flows[1]},{cps[1]}\n",
+                 encoding="utf-8")
+    s = read_streams(p)
+    assert s["H1"].segments[0].heat_capacity_flow == pytest.approx(3.0, rel=1e-12)    # 1.5 kg/s × 2 kJ/(kg·K)
+    assert s["C1"].segments[0].heat_capacity_flow == pytest.approx(2.0, rel=1e-12)    # 0.5 kg/s × 4 kJ/(kg·K)
+
+
+def test_cp_and_mass_flow_that_disagree_are_refused(tmp_path):
+    p = tmp_path / "s.csv"
+    p.write_text("name,T_supply,T_target,CP,mass flow [kg/s],specific heat [kJ/kg.K]\nH1,180,60,3,1.5,3\n",
+                 encoding="utf-8")
+    with pytest.raises(InputError, match=r"row 2, column 'CP': CP 3 kW/K disagrees with mass flow × specific heat"):
+        read_streams(p)

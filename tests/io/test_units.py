@@ -193,4 +193,5 @@ def test_conversion_is_vectorised_and_returns_a_new_array():
 
 
 def test_quantity_kind_canonical_units():
-    assert [k.canonical for k in K] == ["°C", "K", "kW", "kW/K", "kW/(m²·K)", "m²", "money/(kW·year)"]
+    assert [k.canonical for k in K] == ["°C", "K", "kW", "kW/K", "kW/(m²·K)", "m²", "money/(kW·year)", "kg/s",
+                                        "kJ/(kg·K)"]
