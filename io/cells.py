@@ -30,7 +30,27 @@ from pathlib import Path
 from .. import defaults
 from ..errors import InputError
 
-__all__ = ["Cells", "load_cells", "cell_text", "UnsavedFormula", "read_input_bytes"]
+__all__ = ["Cells", "load_cells", "cell_text", "UnsavedFormula", "read_input_bytes", "FORMULA_TRIGGERS", "looks_like_formula"]
+
+FORMULA_TRIGGERS = ("=", "+", "-", "@", "\t", "\r")
+"""First characters that make a spreadsheet program read a text cell as a formula (OWASP, *CSV Injection*
+guidance): heatloom's writers put an apostrophe before them in CSV files, and the readers take that
+apostrophe away again, so that a table written by heatloom reads back as it was."""
+
+
+
+def looks_like_formula(text: str) -> bool:
+    """Whether a CSV writer must put an apostrophe before ``text``: it begins with a formula trigger, or
+    with apostrophes before one (so that the apostrophe the reader takes away is always the writer's).
+
+    Examples
+    --------
+    >>> looks_like_formula("=1+1"), looks_like_formula("'=1"), looks_like_formula("'quoted"), looks_like_formula("H1")
+    (True, True, False, False)
+    """
+    rest = text.lstrip("'")
+    return bool(rest) and rest.startswith(FORMULA_TRIGGERS)
+
 
 _XLSX_SUFFIXES = (".xlsx", ".xlsm", ".xltx", ".xltm")
 _CONTROL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f]")
@@ -127,6 +147,8 @@ def _load_text(data: bytes, source: str) -> Cells:
         rows = list(csv.reader(_io.StringIO(text, newline=""), delimiter=delimiter))
     except csv.Error as e:
         raise InputError(f"cannot read the file as a delimited text table: {e}", file=source) from None
+    rows = [[c[1:] if c.startswith("'") and looks_like_formula(c[1:]) else c for c in row]
+            for row in rows]                    # undo the apostrophe heatloom's CSV writer puts before a formula
     return Cells(source, rows, None, decimal_comma=delimiter == ";")
 
 

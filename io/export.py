@@ -18,9 +18,9 @@ from pathlib import Path
 import numpy as np
 
 from ..errors import InputError
+from .cells import looks_like_formula
 
-__all__ = ["OutputDirectory", "to_jsonable", "targets_workbook_sheets", "FIGURE_FORMATS", "FORMULA_TRIGGERS",
-           "neutralise"]
+__all__ = ["OutputDirectory", "to_jsonable", "targets_workbook_sheets", "FIGURE_FORMATS", "neutralise"]
 
 FIGURE_FORMATS = ("png", "svg")
 """Every figure is written in these formats."""
@@ -51,22 +51,18 @@ def to_jsonable(value):
     return value
 
 
-FORMULA_TRIGGERS = ("=", "+", "-", "@", "\t", "\r")
-"""First characters that make a spreadsheet program read a text cell as a formula (OWASP, *CSV Injection*
-guidance): text cells that begin with one of them are neutralised before they are written."""
-
-
 def neutralise(text):
     """A text cell made inert for spreadsheet programs: a leading apostrophe before ``=``, ``+``, ``-``,
-    ``@``, a tab or a carriage return (OWASP CSV-injection guidance).  Anything that is not text is returned
-    as it is (numbers are never changed).
+    ``@``, a tab or a carriage return (OWASP CSV-injection guidance), and before apostrophes that precede
+    one, so that the reader (:mod:`heatloom.io.cells`) gives the text back exactly.  Anything that is not
+    text is returned as it is (numbers are never changed).
 
     Examples
     --------
     >>> neutralise("=cmd|' /C calc'!A0"), neutralise("reactor feed"), neutralise(-5.0)
     ("'=cmd|' /C calc'!A0", 'reactor feed', -5.0)
     """
-    if isinstance(text, str) and text.startswith(FORMULA_TRIGGERS):
+    if isinstance(text, str) and looks_like_formula(text):
         return "'" + text
     return text
 

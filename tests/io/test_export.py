@@ -14,7 +14,8 @@ import pandas as pd
 import pytest
 
 from heatloom.cli import main
-from heatloom.io.export import FORMULA_TRIGGERS, OutputDirectory, neutralise
+from heatloom.io.cells import FORMULA_TRIGGERS
+from heatloom.io.export import OutputDirectory, neutralise
 
 HOSTILE = "=cmd|' /C calc'!A0"
 
