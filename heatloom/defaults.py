@@ -44,6 +44,7 @@ __all__ = [
     "EMAT",
     "TAC_TIME_LIMIT",
     "MAX_INPUT_BYTES",
+    "MEASURED_BALANCE_TOLERANCE",
     "MAX_TEMPERATURE",
     "MAX_HEAT_CAPACITY_FLOW",
     "IDEAL_UTILITY_MARGIN",
@@ -170,6 +171,11 @@ MAX_INPUT_BYTES = 200 * 1024 * 1024
 """Largest input file heatloom reads [bytes] (200 MiB): plant stream tables and workbooks are far smaller,
 and a larger file is almost always the wrong file; :func:`heatloom.io.cells.read_input_bytes` takes
 another limit where one is needed."""
+
+MEASURED_BALANCE_TOLERANCE = 1e-3
+"""Share of a stream's duty by which an existing network, simulated from measured or design data, may miss
+the stream's target (or pass it) before that is reported as a problem [-] (0.1 %, *common practice* for the
+closure of plant heat balances, which are seldom better than 1-2 %); smaller misses are stated in the notes."""
 
 # --------------------------------------------------------------------------------------------------
 # retrofit (heatloom.retrofit.options): illustrative defaults, common practice, not a quotation
