@@ -412,28 +412,19 @@ def approach_violations(network: Network, streams: StreamTable, utilities: Seque
             return dt
         return sum(0.5 * dt if x is None else x.shift(dt) for x in sides)
 
+    sides = [(f"exchanger {e.hot}→{e.cold}", by_name[e.hot], by_name[e.cold], e,
+              (e.hot_in, e.hot_out, e.cold_in, e.cold_out), e.hot_fraction, e.cold_fraction)
+             for e in network.exchangers]
+    sides += [(f"heater {h.utility}→{h.cold}", None, by_name[h.cold], h,
+               (h.utility_in, h.utility_out, h.cold_in, h.cold_out), None, h.cold_fraction) for h in network.heaters]
+    sides += [(f"cooler {c.hot}→{c.utility}", by_name[c.hot], None, c,
+               (c.hot_in, c.hot_out, c.utility_in, c.utility_out), c.hot_fraction, None) for c in network.coolers]
     problems = []
-    for e in network.exchangers:
-        hot, cold = by_name[e.hot], by_name[e.cold]
-        d = smallest_approach(hot, cold, e.hot_in, e.hot_out, e.cold_in, e.cold_out, duty=e.duty,
-                              hot_fraction=e.hot_fraction, cold_fraction=e.cold_fraction)
+    for label, hot, cold, unit, temperatures, hot_fraction, cold_fraction in sides:
+        d = smallest_approach(hot, cold, *temperatures, duty=unit.duty, hot_fraction=hot_fraction,
+                              cold_fraction=cold_fraction)
         if d < need(hot, cold) - tol:
-            problems.append(f"exchanger {e.hot}→{e.cold}: smallest approach {d:.4g} K < {need(hot, cold):g} K "
-                            f"(ΔTmin {dt:g} K)")
-    for h in network.heaters:
-        cold = by_name[h.cold]
-        d = smallest_approach(None, cold, h.utility_in, h.utility_out, h.cold_in, h.cold_out, duty=h.duty,
-                              cold_fraction=h.cold_fraction)
-        if d < need(None, cold) - tol:
-            problems.append(f"heater {h.utility}→{h.cold}: smallest approach {d:.4g} K < {need(None, cold):g} K "
-                            f"(ΔTmin {dt:g} K)")
-    for c in network.coolers:
-        hot = by_name[c.hot]
-        d = smallest_approach(hot, None, c.hot_in, c.hot_out, c.utility_in, c.utility_out, duty=c.duty,
-                              hot_fraction=c.hot_fraction)
-        if d < need(hot, None) - tol:
-            problems.append(f"cooler {c.hot}→{c.utility}: smallest approach {d:.4g} K < {need(hot, None):g} K "
-                            f"(ΔTmin {dt:g} K)")
+            problems.append(f"{label}: smallest approach {d:.4g} K < {need(hot, cold):g} K (ΔTmin {dt:g} K)")
     return problems
 
 
