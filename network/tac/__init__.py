@@ -1,10 +1,14 @@
 """Lowest total-annual-cost design: stagewise superstructure MILP, NLP refinement, search (heatloom.network.tac)."""
 
-from .nlp import TacProblem, Topology, TopologySolution, make_problem, polish_splits, solve_topology
+from .budget import Budget
+from .nlp import Topology, TopologySolution, polish_splits, solve_topology
+from .problem import TacProblem, make_problem
+from .profiles import solve_segmented
 from .search import design_tac, network_from_solution
-from .starts import stagewise_milp, topology_from_network
+from .starts import mer_network, stagewise_milp, topology_from_network
 
 __all__ = [
-    "design_tac", "network_from_solution", "stagewise_milp", "topology_from_network",
-    "TacProblem", "Topology", "TopologySolution", "make_problem", "polish_splits", "solve_topology",
+    "Budget", "design_tac", "mer_network", "network_from_solution", "stagewise_milp", "topology_from_network",
+    "TacProblem", "Topology", "TopologySolution", "make_problem", "polish_splits", "solve_segmented",
+    "solve_topology",
 ]

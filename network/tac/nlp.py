@@ -43,138 +43,16 @@ import numpy as np
 from scipy.linalg import qr
 from scipy.optimize import Bounds, LinearConstraint, linprog, minimize
 
-from ...errors import InputError
-from ...model import StreamTable, Utility
-from ...model.costs import CostSettings, UnitKind
+from ...model.costs import UnitKind
+from .problem import TacProblem, make_problem
 
-__all__ = ["TacProblem", "Topology", "TopologySolution", "make_problem", "solve_topology", "polish_splits",
-           "unit_costs"]
+__all__ = ["TacProblem", "Topology", "TopologyModel", "TopologySolution", "make_problem", "solve_topology",
+           "polish_splits", "unit_costs"]
 
 APPROACH_MARGIN = 0.0
 """Extra approach kept by the optimiser above EMAT [K]; none: solutions are projected back onto the
 constraints to within 1e-7 K, well inside the 1e-6 K tolerance of the network check, and a margin would
 make problems whose utility just meets EMAT at a fixed end infeasible."""
-
-
-@dataclass(frozen=True)
-class TacProblem:
-    """Stream, utility and cost data of a TAC design, as plain arrays (picklable for worker processes).
-
-    Hot streams i, cold streams j, stages k (boundary 0 is the hot end).  ``heat_levels`` are the hot
-    utilities, coolest first (the order in which a cold stream meets them); ``cool_levels`` the cold
-    utilities, warmest first.  Laws are (fixed, per_area, exponent) per unit kind, already multiplied by
-    the annualisation factor.
-    """
-
-    hot_names: tuple[str, ...]
-    cold_names: tuple[str, ...]
-    hot_in: np.ndarray
-    hot_out: np.ndarray
-    hot_cp: np.ndarray
-    hot_h: np.ndarray
-    cold_in: np.ndarray
-    cold_out: np.ndarray
-    cold_cp: np.ndarray
-    cold_h: np.ndarray
-    heat_levels: tuple[Utility, ...]
-    cool_levels: tuple[Utility, ...]
-    laws: dict
-    emat: float
-
-    @property
-    def hot_duty(self) -> np.ndarray:
-        return self.hot_cp * (self.hot_in - self.hot_out)
-
-    @property
-    def cold_duty(self) -> np.ndarray:
-        return self.cold_cp * (self.cold_out - self.cold_in)
-
-    @property
-    def scale(self) -> float:
-        """Largest stream duty [kW]."""
-        return float(max(self.hot_duty.max(initial=0.0), self.cold_duty.max(initial=0.0), 1.0))
-
-    def can_match(self, i: int, j: int) -> bool:
-        """Whether hot i can heat cold j at all with EMAT (counter-current, any load)."""
-        return self.hot_in[i] - self.cold_in[j] > self.emat
-
-    def heat_level_possible(self, j: int, level: int) -> bool:
-        u = self.heat_levels[level]
-        return u.supply_temperature - self.emat > self.cold_in[j] and \
-            u.target_temperature - self.emat > self.cold_in[j]
-
-    def cool_level_possible(self, i: int, level: int) -> bool:
-        u = self.cool_levels[level]
-        return u.supply_temperature + self.emat < self.hot_in[i] and \
-            u.target_temperature + self.emat < self.hot_in[i]
-
-
-def make_problem(streams: StreamTable, utilities, costs: CostSettings, emat: float, *,
-                 default_film_coefficient: float | None = None) -> TacProblem:
-    """Gather the data of a TAC design; reject what the stagewise model cannot represent.
-
-    Parameters
-    ----------
-    streams : StreamTable
-        Single-segment streams with film coefficients.
-    utilities : sequence of Utility
-        At least one hot and one cold utility, with prices [money/(kW·year)] and film coefficients.
-    costs : CostSettings
-    emat : float
-        Exchanger minimum approach temperature [K], > 0.
-    default_film_coefficient : float, optional
-        [kW/(m²·K)] where a stream or utility has none.
-
-    Examples
-    --------
-    >>> from heatloom.model import UtilityKind
-    >>> s = StreamTable.from_arrays(["H", "C"], [150, 20], [40, 120], [1.0, 1.0], film_coefficient=[1, 1])
-    >>> u = [Utility("steam", 180, 180, 100, UtilityKind.HOT, 2), Utility("water", 10, 20, 10, None, 2)]
-    >>> p = make_problem(s, u, CostSettings(), 5.0)
-    >>> p.hot_names, p.cold_names, float(p.hot_duty[0])
-    (('H',), ('C',), 110.0)
-    """
-    if not (emat > 0) or not np.isfinite(emat):
-        raise InputError(f"EMAT must be a finite number of kelvin > 0, got {emat!r}")
-    d = default_film_coefficient
-
-    def h_of(value, what):
-        h = value if value is not None else d
-        if h is None:
-            raise InputError(f"film coefficient h missing for {what}: the TAC design sizes every unit (add an h "
-                             "column in kW/(m²·K), or assume one with --default-h)")
-        return float(h)
-
-    hot, cold = [], []
-    for s in streams:
-        if len(s.segments) != 1:
-            raise InputError(f"stream '{s.name}' has {len(s.segments)} segments; the TAC design handles streams "
-                             "of one constant CP only (use --mode mer, or give one CP per stream)")
-        (hot if s.is_hot else cold).append(s)
-    if not hot or not cold:
-        raise InputError("the TAC design needs at least one hot and one cold process stream, got "
-                         f"{len(hot)} hot and {len(cold)} cold")
-    hot_u = sorted((u for u in utilities if u.is_hot), key=lambda u: (u.coldest, u.hottest))
-    cold_u = sorted((u for u in utilities if not u.is_hot), key=lambda u: (-u.hottest, -u.coldest))
-    if not hot_u or not cold_u:
-        raise InputError("the TAC design needs at least one hot and one cold utility")
-    for u in (*hot_u, *cold_u):
-        h_of(u.film_coefficient, f"utility '{u.name}'")
-    f = costs.annualisation_factor
-    laws = {k: (costs.law(k).fixed * f, costs.law(k).per_area * f, costs.law(k).exponent) for k in UnitKind}
-
-    def arr(items, fn):
-        return np.array([float(fn(s)) for s in items])
-
-    return TacProblem(
-        tuple(s.name for s in hot), tuple(s.name for s in cold),
-        arr(hot, lambda s: s.supply_temperature), arr(hot, lambda s: s.target_temperature),
-        arr(hot, lambda s: s.segments[0].heat_capacity_flow),
-        arr(hot, lambda s: h_of(s.segments[0].film_coefficient, f"stream '{s.name}'")),
-        arr(cold, lambda s: s.supply_temperature), arr(cold, lambda s: s.target_temperature),
-        arr(cold, lambda s: s.segments[0].heat_capacity_flow),
-        arr(cold, lambda s: h_of(s.segments[0].film_coefficient, f"stream '{s.name}'")),
-        tuple(hot_u), tuple(cold_u), laws, float(emat))
 
 
 @dataclass(frozen=True)
@@ -208,8 +86,12 @@ class _Affine:
     m: np.ndarray
 
 
-class _Model:
-    """The affine maps of one topology: duties and terminal temperatures of every unit."""
+class TopologyModel:
+    """The affine maps of one topology: duties and terminal temperatures of every unit.
+
+    For streams of several segments the "temperatures" are the linear enthalpy coordinates of
+    :mod:`heatloom.network.tac.profiles` (equal to the temperatures at the stream ends).
+    """
 
     def __init__(self, p: TacProblem, top: Topology):
         self.p, self.top = p, top
@@ -259,11 +141,11 @@ class _Model:
                         m[idx] += 1.0 / p.cold_cp[j]
                 tc[j, k] = (c0, m)
         self.th, self.tc = th, tc
-        rows = []  # (kind, key, duty(c, m), hot_in, hot_out, cold_in, cold_out, U, law, price)
+        rows = []  # (kind, key, duty(c, m), hot_in, hot_out, cold_in, cold_out, U, law, price, least approach)
         for idx, (i, j, k) in enumerate(self.matches):
             u = 1.0 / (1.0 / p.hot_h[i] + 1.0 / p.cold_h[j])
             rows.append((UnitKind.EXCHANGER, (i, j, k), (0.0, unit_vec(idx)), th[i, k], th[i, k + 1], tc[j, k + 1],
-                         tc[j, k], u, p.laws[UnitKind.EXCHANGER], 0.0))
+                         tc[j, k], u, p.laws[UnitKind.EXCHANGER], 0.0, p.need(i, j)))
         eq_c, eq_m = [], []
 
         def utility_chain(cooling: bool, s: int, end, target: float, cp: float, h: float) -> None:
@@ -292,7 +174,8 @@ class _Model:
                 u = 1.0 / (1.0 / h + 1.0 / util.film_coefficient)
                 ends = ((util.supply_temperature, np.zeros(n)), (util.target_temperature, np.zeros(n)))
                 sides = (start, stop, *ends) if cooling else (*ends, start, stop)
-                rows.append((kind, (side, s, lv), duty, *sides, u, p.laws[kind], util.cost))
+                need = p.need(s, None) if cooling else p.need(None, s)
+                rows.append((kind, (side, s, lv), duty, *sides, u, p.laws[kind], util.cost, need))
                 start = stop
 
         for i in range(n_h):
@@ -313,6 +196,7 @@ class _Model:
         self.per_area = np.array([r[8][1] for r in rows])
         self.exponent = np.array([r[8][2] for r in rows])
         self.price = np.array([r[9] for r in rows])
+        self.need = np.array([r[10] for r in rows], dtype=float).reshape(len(rows))
         self.d1 = _Affine(self.hot_in.c - self.cold_out.c, self.hot_in.m - self.cold_out.m)
         self.d2 = _Affine(self.hot_out.c - self.cold_in.c, self.hot_out.m - self.cold_in.m)
         eq = _Affine(np.array(eq_c, dtype=float), np.array(eq_m, dtype=float).reshape(len(eq_c), n))
@@ -327,11 +211,12 @@ class _Model:
             eq = _Affine(eq.c[keep], eq.m[keep])
         self.eq = eq
         self.qmin = 1e-5 * p.scale
-        # inequalities G x + g >= 0: both ends >= EMAT (+margin), every utility unit's duty >= qmin
-        emat = p.emat + APPROACH_MARGIN
+        # inequalities G x + g >= 0: both ends >= the unit's least approach (EMAT, or the sum of its sides'
+        # contributions; + margin), every utility unit's duty >= qmin
+        need = self.need + APPROACH_MARGIN
         util_rows = [k for k, kind in enumerate(self.kinds) if kind is not UnitKind.EXCHANGER]
         G = np.vstack([self.d1.m, self.d2.m, self.duty.m[util_rows]])
-        g = np.concatenate([self.d1.c - emat, self.d2.c - emat, self.duty.c[util_rows] - self.qmin])
+        g = np.concatenate([self.d1.c - need, self.d2.c - need, self.duty.c[util_rows] - self.qmin])
         # rows without variables are constants: they hold, or the topology is infeasible
         const = ~np.any(G != 0.0, axis=1)
         self.constant_violation = float(np.max(-g[const], initial=0.0))
@@ -428,7 +313,7 @@ class TopologySolution:
     fractions: dict | None = field(default=None, compare=False)
 
 
-def _refine(model: _Model, x0: np.ndarray, max_iter: int) -> np.ndarray:
+def _refine(model: TopologyModel, x0: np.ndarray, max_iter: int) -> np.ndarray:
     """Minimise the exact cost over the polytope from ``x0``: SLSQP, and scipy's trust-constr if it fails.
 
     Loads are scaled by the largest stream duty, the cost by its starting value, and constraint rows to
@@ -469,7 +354,7 @@ def _refine(model: _Model, x0: np.ndarray, max_iter: int) -> np.ndarray:
     return np.clip(res.x * s, lo * s, hi * s)
 
 
-def _restore(model: _Model, x: np.ndarray) -> np.ndarray | None:
+def _restore(model: TopologyModel, x: np.ndarray) -> np.ndarray | None:
     """Project a nearly feasible point onto the polytope (smallest L1 move, by LP), or None."""
     if model.violation(x) <= 1e-9:
         return x
@@ -495,7 +380,7 @@ def _restore(model: _Model, x: np.ndarray) -> np.ndarray | None:
 
 def solve_topology(p: TacProblem, top: Topology, starts=(), *, max_iter: int = 200,
                    extra_vertex: bool = False) -> TopologySolution | None:
-    """Minimise the exact TAC of one topology; None when no loads keep EMAT everywhere.
+    """Minimise the exact TAC of one topology; None when no loads keep every unit's least approach.
 
     Parameters
     ----------
@@ -509,7 +394,11 @@ def solve_topology(p: TacProblem, top: Topology, starts=(), *, max_iter: int = 2
     extra_vertex : bool
         Also start from the LP vertex of least utility cost.
     """
-    model = _Model(p, top)
+    if p.segmented:
+        from .profiles import solve_segmented
+
+        return solve_segmented(p, top, starts, max_iter=max_iter, extra_vertex=extra_vertex)
+    model = TopologyModel(p, top)
     if model.constant_violation > 1e-9:
         return None
     if model.n == 0:
@@ -558,13 +447,13 @@ def solve_topology(p: TacProblem, top: Topology, starts=(), *, max_iter: int = 2
     return best
 
 
-def _solution(model: _Model, x: np.ndarray) -> TopologySolution:
+def _solution(model: TopologyModel, x: np.ndarray) -> TopologySolution:
     duties = model.duty.c + model.duty.m @ x
     return TopologySolution(model.top, x, model.cost(x, grad=False), tuple(float(d) for d in duties),
                             tuple(model.keys))
 
 
-def _branch_temperatures(p: TacProblem, model: _Model, x: np.ndarray, fractions: dict | None):
+def _branch_temperatures(p: TacProblem, model: TopologyModel, x: np.ndarray, fractions: dict | None):
     """Duties and terminal temperatures of every unit, with branch outlets set by the split fractions."""
     duty = model.duty.c + model.duty.m @ x
     hi, ho, ci, co = (getattr(model, name).c + getattr(model, name).m @ x
@@ -586,8 +475,16 @@ def unit_costs(p: TacProblem, top: Topology, x: np.ndarray, fractions: dict | No
     Under isothermal mixing (``fractions`` None) a branch's share of the flow is its share of the stage's
     duty; otherwise the given fractions set the branch outlet temperatures.
     """
-    model = _Model(p, top)
+    model = TopologyModel(p, top)
     duty, hi, ho, ci, co = _branch_temperatures(p, model, x, fractions)
+    if p.segmented:   # enthalpy coordinates → temperatures on the process sides
+        for r, (kind, key) in enumerate(zip(model.kinds, model.keys)):
+            if kind is not UnitKind.HEATER:
+                prof = p.hot_profiles[key[0] if kind is UnitKind.EXCHANGER else key[1]]
+                hi[r], ho[r] = prof.temperature(hi[r]), prof.temperature(ho[r])
+            if kind is not UnitKind.COOLER:
+                prof = p.cold_profiles[key[1]]
+                ci[r], co[r] = prof.temperature(ci[r]), prof.temperature(co[r])
     stage_hot, stage_cold = {}, {}
     for (i, j, k), q in zip(model.matches, x[:len(model.matches)]):
         stage_hot[i, k] = stage_hot.get((i, k), 0.0) + q
@@ -615,10 +512,14 @@ def polish_splits(p: TacProblem, sol: TopologySolution, *, max_iter: int = 100) 
     The branches of a split stream may then leave a stage at different temperatures; the mixed stage
     outlet is unchanged (:math:`\\sum_b f_b(t_{in} - q_b/(f_b CP)) = t_{in} - \\sum_b q_b/CP`), so only the
     branch outlet temperatures, and with them the branch units' approaches and areas, depend on the
-    fractions.  SLSQP with finite-difference gradients over loads and fractions, EMAT at both ends of every
-    unit.  Returns ``sol`` itself when it has no split or nothing cheaper is found.
+    fractions.  SLSQP with finite-difference gradients over loads and fractions, the least approach (EMAT, or
+    the sum of the sides' ΔTmin contributions) at both ends of every
+    unit.  Returns ``sol`` itself when it has no split or nothing cheaper is found, and for streams of
+    several segments (isothermal mixing only there).
     """
-    model = _Model(p, sol.topology)
+    if p.segmented:   # branch outlets in enthalpy coordinates: not handled here
+        return sol
+    model = TopologyModel(p, sol.topology)
     groups: dict = {}
     for key in model.matches:
         i, j, k = key
@@ -635,7 +536,7 @@ def polish_splits(p: TacProblem, sol: TopologySolution, *, max_iter: int = 100) 
         total = sum(sol.x[col[key]] for key in keys)
         f0 += [sol.x[col[key]] / total for key in keys]
     z0 = np.concatenate([sol.x / s, f0])
-    emat = p.emat + APPROACH_MARGIN
+    need = model.need + APPROACH_MARGIN
     tac0 = max(abs(sol.tac), 1.0)
 
     def unpack(z):
@@ -663,7 +564,7 @@ def polish_splits(p: TacProblem, sol: TopologySolution, *, max_iter: int = 100) 
         # approaches, the linear constraints, and every branch outlet inside its stream's temperature range
         x, fr = unpack(z)
         q, hi, ho, ci, co = _branch_temperatures(p, model, x, fr)
-        return np.concatenate([hi - co - emat, ho - ci - emat, model.G @ x + model.g, ho[hot_rows] - hot_floor,
+        return np.concatenate([hi - co - need, ho - ci - need, model.G @ x + model.g, ho[hot_rows] - hot_floor,
                                cold_ceiling - co[cold_rows]])
 
     members = [[branches.index((g[0], key)) for key in keys] for g, keys in groups.items()]

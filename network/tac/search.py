@@ -19,7 +19,10 @@ The sequence (DEVELOPERS.md, "Method notes"):
    local optima are kicked by a few random moves, more as the walk stalls.  Several starts run in
    parallel in local processes (``concurrent.futures``), each with its own random stream derived from
    ``seed``; start 0 begins while the MILPs are being solved.
-4. The best network is built with its temperatures, sized with the exact LMTD, costed from its own
+4. One wall-clock budget (:mod:`heatloom.network.tac.budget`): the time limit is the whole run's; each
+   solve gets a share of what is left, and one that stops without a solution leaves the run to its other
+   starts (the utilities-only network is always one), with a note.
+5. The best network is built with its temperatures, sized with the exact LMTD, costed from its own
    temperatures and checked by :func:`heatloom.network.structure.check_network` with ΔTmin = EMAT.
 
 There is no ΔTmin: only the exchanger minimum approach temperature (EMAT) bounds the design.  The search is
@@ -47,8 +50,8 @@ from ...equipment.sizing import log_mean
 from ...errors import InfeasibleError, InputError
 from ...model import StreamTable, Utility
 from ...model.costs import CostSettings, UnitKind
-from ..solvers import solve
 from ..structure import Cooler, Exchanger, Heater, Network, check_network
+from .budget import Budget
 from .nlp import (
     TacProblem,
     Topology,
@@ -58,13 +61,19 @@ from .nlp import (
     solve_topology,
     unit_costs,
 )
-from .starts import stagewise_milp, topology_from_network, unit_estimates
+from .starts import mer_network, stagewise_milp, topology_from_network, unit_estimates
 
 __all__ = ["design_tac", "network_from_solution"]
 
 MER_DT_MIN = 10.0
 """ΔTmin of the maximum-energy-recovery network used as a starting topology [K] (*common practice* value
 for a first design; only its topology is kept)."""
+
+MILP_SHARE = 0.15
+"""Part of the remaining time given to each stagewise MILP solve [-]."""
+
+MILP_CAP = 30.0
+"""Longest limit of one stagewise MILP solve [s]."""
 
 
 # --------------------------------------------------------------------------------------------- search
@@ -330,16 +339,21 @@ def network_from_solution(p: TacProblem, sol: TopologySolution, streams: StreamT
     Raises
     ------
     InfeasibleError
-        If the network fails :func:`check_network` with ΔTmin = EMAT (never expected).
+        If the network fails :func:`check_network` with ΔTmin = EMAT, or with the streams' ΔTmin
+        contributions where some are given (never expected).
     """
     exchangers, heaters, coolers = [], [], []
     capital = operating = 0.0
+    sizer = _segment_sizer(p, streams) if p.segmented else None
     for d in unit_costs(p, sol.topology, sol.x, sol.fractions):
         kind, key = d["kind"], d["key"]
         if d["duty"] <= 0:
             continue
-        lm = float(log_mean(d["hot_in"] - d["cold_out"], d["hot_out"] - d["cold_in"]))
-        area = d["duty"] / (d["u"] * lm)
+        if sizer is None:
+            lm = float(log_mean(d["hot_in"] - d["cold_out"], d["hot_out"] - d["cold_in"]))
+            area = d["duty"] / (d["u"] * lm)
+        else:
+            area, lm, d["u"] = sizer(d)
         cost = float(costs.annual_capital_cost(area, kind))
         capital += cost
         common = {"duty": d["duty"], "area": area, "cost": cost, "u": d["u"], "lmtd": lm, "region": "whole"}
@@ -367,7 +381,53 @@ def network_from_solution(p: TacProblem, sol: TopologySolution, streams: StreamT
                   operating_cost=operating, total_annual_cost=capital + operating, currency=costs.currency,
                   notes=tuple(notes), solves=tuple(solves))
     check_network(net, streams, utilities, dt_min=p.emat, contributions=False)
+    if p.has_contributions:   # and every unit keeps the sum of its sides' ΔTmin contributions
+        check_network(net, streams, utilities, dt_min=p.emat, contributions=True)
     return net
+
+
+def _segment_sizer(p: TacProblem, streams: StreamTable):
+    """Sizing of a unit between streams of several segments: (area [m²], effective LMTD [K], mean U
+    [kW/(m²·K)]) by :func:`heatloom.equipment.segments.size_segments`, as for the MER design."""
+    from ...equipment.segments import cut_profile, size_segments, utility_segment
+    from ...model import Segment
+
+    by_name = {s.name: s for s in streams}
+
+    def side(profile_owner: str, t_in, t_out, fraction):
+        stream = by_name[profile_owner]
+        lo, hi = sorted((stream.supply_temperature, stream.target_temperature))
+        # temperatures within rounding (1e-7 K) of a stream end are cut at that end
+        segs = cut_profile(stream.segments, min(max(t_in, lo), hi), min(max(t_out, lo), hi))
+        prof = (p.hot_profiles if by_name[profile_owner].is_hot else p.cold_profiles)[
+            (p.hot_names if by_name[profile_owner].is_hot else p.cold_names).index(profile_owner)]
+        # the film coefficients the design used (a default where the table has none)
+        out = []
+        for g in segs:
+            mid = 0.5 * (g.supply_temperature + g.target_temperature)
+            h = g.film_coefficient if g.film_coefficient is not None else \
+                float(prof.h[np.clip(np.searchsorted(prof.temp, mid) - 1, 0, len(prof.h) - 1)])
+            out.append(Segment(g.supply_temperature, g.target_temperature, g.heat_capacity_flow * fraction, h))
+        return out
+
+    def size(d):
+        kind, key = d["kind"], d["key"]
+        if kind is UnitKind.HEATER:
+            util = p.heat_levels[key[2]]
+            hot = [utility_segment(util, d["hot_in"], d["hot_out"], d["duty"], p.utility_h[0][key[2]])]
+        else:
+            hot = side(p.hot_names[key[0] if kind is UnitKind.EXCHANGER else key[1]], d["hot_in"], d["hot_out"],
+                       d["hot_fraction"])
+        if kind is UnitKind.COOLER:
+            util = p.cool_levels[key[2]]
+            cold = [utility_segment(util, d["cold_in"], d["cold_out"], d["duty"], p.utility_h[1][key[2]])]
+        else:
+            cold = side(p.cold_names[key[1]], d["cold_in"], d["cold_out"], d["cold_fraction"])
+        sizing = size_segments(hot, cold, rel_tol=1e-5)
+        lm = d["duty"] / sum(i.duty / i.lmtd for i in sizing.intervals)
+        return sizing.area, lm, d["duty"] / (sizing.area * lm)
+
+    return size
 
 
 # ------------------------------------------------------------------------------------------- design
@@ -381,7 +441,7 @@ def _fallback_topology(p: TacProblem) -> Topology:
     heaters = set()
     for j in range(len(p.cold_names)):
         ok = [lv for lv, u in enumerate(p.heat_levels)
-              if p.heat_level_possible(j, lv) and u.target_temperature - p.emat > p.cold_in[j]]
+              if p.heat_level_possible(j, lv) and u.target_temperature - p.need(None, j) > p.cold_in[j]]
         heaters.update((j, lv) for lv in ok[-1:])
     coolers = set()
     for i in range(len(p.hot_names)):
@@ -394,14 +454,18 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
                costs: CostSettings | None = None, emat: float = defaults.EMAT, stages: int | None = None,
                time_limit: float = 120.0, seed: int = 0, starts: int = 2, rounds: int = 40,
                workers: int | None = None, milp_iterations: int = 3, solver: str | None = None,
-               default_film_coefficient: float | None = None,
+               default_film_coefficient: float | None = None, segmented_streams: bool = False,
                progress: Callable[[float, int, int], None] | None = None) -> Network:
     """A network of low total annual cost: stagewise MILP topologies refined against the exact cost.
 
     Parameters
     ----------
     streams : StreamTable
-        Process streams of one constant CP each, with film coefficients.
+        Process streams with film coefficients, of one constant CP each or of several segments
+        (:mod:`heatloom.network.tac.profiles`: the approach is kept at every segment break inside a unit,
+        areas are summed segment by segment); a stream's ΔTmin contribution,
+        where given, is a lower bound on the approach of its units (with the other side's, see
+        :meth:`heatloom.network.tac.nlp.TacProblem.need`).
     utilities : sequence of Utility, optional
         Utility levels with prices [money/(kW·year)] and film coefficients; when omitted, the assumed
         utilities of :func:`heatloom.pinch.utilities.ideal_utilities` (stated in the notes).
@@ -412,7 +476,10 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     stages : int, optional
         Stages K of the MILP [-]; max(#hot, #cold) when omitted.  The search may use up to 2K.
     time_limit : float
-        Wall-clock limit of the whole design [s]; the search stops when it is reached (said in the notes).
+        Wall-clock limit of the whole design [s]: every solve inside (the MER start, the stagewise MILPs)
+        is given its share of what is left (:class:`heatloom.network.tac.budget.Budget`), and the search
+        stops when it is reached; the notes say which solves hit their share.  A solve that stops without
+        a solution falls back to the next start, with a note; it never aborts the run.
     seed : int
         Seed of the search's random streams: same inputs, seed, starts and rounds give the same network
         when the time limit is not reached.
@@ -428,6 +495,10 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         "highs" or "cbc" (see :mod:`heatloom.network.solvers`).
     default_film_coefficient : float, optional
         [kW/(m²·K)] assumed where a stream or utility has none.
+    segmented_streams : bool
+        Design streams of several segments (:mod:`heatloom.network.tac.profiles`); when False (the
+        default, kept for the callers that have not opted in yet) such a stream is refused.
+        ``heatloom design --mode tac`` passes True.
     progress : callable, optional
         Called as ``progress(best_tac, done, total)`` after the starting topologies and after each epoch of
         the search (``done`` of ``total`` epochs).
@@ -441,7 +512,8 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     Raises
     ------
     InputError
-        Bad EMAT, budgets, film coefficients, segmented streams, or missing utilities.
+        Bad EMAT, budgets, film coefficients, missing utilities, or a stream of several segments without
+        ``segmented_streams``.
     InfeasibleError
         No network found (no utility can serve some stream).
 
@@ -459,15 +531,20 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     True
     """
     from ...pinch.utilities import ideal_utilities
-    from ..design import design_mer
 
-    t0 = time.monotonic()
     for value, what in ((starts, "starts"), (rounds, "rounds"), (milp_iterations, "MILP iterations")):
         if not isinstance(value, (int, np.integer)) or isinstance(value, bool) or value < (1 if what == "starts" else 0):
             raise InputError(f"{what} must be a whole number >= {1 if what == 'starts' else 0}, got {value!r}")
     if not (time_limit > 0) or not np.isfinite(time_limit):
         raise InputError(f"time limit must be a finite number of seconds > 0, got {time_limit!r}")
-    deadline = t0 + float(time_limit)
+    if not segmented_streams:
+        for s in streams:
+            if len(s.segments) != 1:
+                raise InputError(f"stream '{s.name}' has {len(s.segments)} segments; this TAC design was asked for "
+                                 "streams of one constant CP only (heatloom design --mode tac, or "
+                                 "design_tac(..., segmented_streams=True), designs streams of several segments)")
+    budget = Budget(float(time_limit))
+    deadline = budget.deadline
     notes: list[str] = [f"EMAT {emat:g} K at both ends of every unit (no ΔTmin)"]
     if utilities is None:
         utilities = ideal_utilities(streams, emat)
@@ -477,6 +554,10 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
                      "coefficients; give --utilities FILE")
     costs = costs or CostSettings()
     p = make_problem(streams, utilities, costs, emat, default_film_coefficient=default_film_coefficient)
+    if p.has_contributions:
+        notes.append("ΔTmin contributions of the stream table kept as lower bounds on the approach: each unit "
+                     "keeps the larger of EMAT and the sum of its two sides' contributions (EMAT/2 for a side "
+                     "without one)")
     if default_film_coefficient is not None:
         notes.append(f"film coefficient {default_film_coefficient:g} kW/(m²·K) assumed where none was given")
     K = int(stages) if stages is not None else max(len(p.hot_names), len(p.cold_names))
@@ -485,7 +566,6 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     max_stages = 2 * K
     seq = np.random.SeedSequence(int(seed))
     search = _Search(p, max_stages, seq.spawn(1)[0], deadline)
-    solves: list = []
     candidates: list[TopologySolution] = []
     sources: list[str] = []
 
@@ -495,17 +575,12 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
             sources.append(label)
 
     keep(search.evaluate(_fallback_topology(p)), "utilities only")
-    # (a) the maximum-energy-recovery network's topology
-    try:
-        mer = design_mer(streams, max(MER_DT_MIN, emat), utilities, costs=costs, solver=solver,
-                         time_limit=max(1.0, min(10.0, 0.03 * time_limit)),
-                         default_film_coefficient=default_film_coefficient)
-        solves += list(mer.solves)
-        top = topology_from_network(p, mer)
-        if top is not None:
-            keep(search.evaluate(top), f"MER network at ΔTmin {max(MER_DT_MIN, emat):g} K")
-    except (InfeasibleError, InputError) as exc:
-        notes.append(f"no MER starting network ({exc})")
+    # (a) the maximum-energy-recovery network's topology (none, with a note, when it cannot be had in time)
+    mer = mer_network(streams, max(MER_DT_MIN, emat), utilities, budget, costs=costs, solver=solver,
+                      default_film_coefficient=default_film_coefficient)
+    top = topology_from_network(p, mer) if mer is not None else None
+    if top is not None:
+        keep(search.evaluate(top), f"MER network at ΔTmin {max(MER_DT_MIN, emat):g} K")
     epochs = max(1, -(-rounds // ROUNDS_PER_EPOCH)) if rounds else 0
     n_workers = workers if workers is not None else min(starts, os.cpu_count() or 1)
     pool = ProcessPoolExecutor(max_workers=n_workers) if n_workers > 1 and starts > 1 and epochs else None
@@ -532,10 +607,12 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
             if deadline - time.monotonic() < 0.3 * time_limit:
                 break
             prob, read = stagewise_milp(p, K, est, name=f"tac stagewise MILP {it + 1}")
-            report = solve(prob, solver, time_limit=max(1.0, min(30.0, 0.1 * time_limit)),
-                           name=f"TAC stagewise MILP, iteration {it + 1}", check=False)
-            solves.append(report)
-            if not report.has_solution:
+            label = f"TAC stagewise MILP, iteration {it + 1}"
+            report = budget.solve(prob, solver, fraction=MILP_SHARE, cap=MILP_CAP, name=label)
+            if report is None or not report.has_solution:
+                if report is not None:
+                    budget.notes.append(f"'{label}' gave no topology ({report.status.value}): the search "
+                                        "went on from the other starting topologies")
                 break
             top = read()
             if top.key() in seen:
@@ -578,7 +655,8 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     finally:
         if pool is not None:
             pool.shutdown(cancel_futures=True)
-    wall = time.monotonic() - t0
+    wall = budget.elapsed()
+    notes += budget.summary()
     notes.append(f"TAC search: {len(candidates)} starting topologies ({', '.join(sources)}); {starts} start(s) × "
                  f"{rounds} rounds of iterated local search, seed {seed}; {evals} topologies refined against the "
                  f"exact cost; {wall:.1f} s")
@@ -592,6 +670,21 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         notes.append("isothermal mixing: the branches of a split stream leave a stage at one temperature")
     notes.append("heuristic search: the lowest cost found, not a proven optimum")
     notes.append(costs.describe())
+    if p.segmented:
+        notes.append("streams of several segments: loads and stage temperatures in enthalpy coordinates, the "
+                     "approach kept at both ends and at every segment break inside each unit, areas summed "
+                     "interval by interval between the breaks; split streams mix isothermally")
     notes.append("Areas: counter-current, exact LMTD, U from 1/U = 1/h_hot + 1/h_cold (clean surfaces, no fouling "
-                 "allowance).")
-    return network_from_solution(p, best, streams, utilities, costs, notes=notes, solves=solves)
+                 "allowance)" + ("; streams of several segments sized interval by interval." if p.segmented else "."))
+    # the best network that passes the final check (never expected to fail; if it does, the next best is kept)
+    failures: list[str] = []
+    ranked = sorted({id(c): c for c in (best, *current, *candidates)}.values(), key=lambda c: c.tac)
+    for sol in ranked:
+        try:
+            extra = [f"the {len(failures)} cheaper network(s) found failed the final check ({'; '.join(failures)}); "
+                     "the cheapest that passes is given"] if failures else []
+            return network_from_solution(p, sol, streams, utilities, costs, notes=[*notes, *extra],
+                                         solves=budget.reports)
+        except (InfeasibleError, InputError) as exc:   # a failed check, or a unit the sizing refuses
+            failures.append(str(exc))
+    raise InfeasibleError(f"no network found passes the final check: {failures[0]}")

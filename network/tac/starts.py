@@ -5,7 +5,9 @@
   per kW estimated from loads and approach temperatures (:func:`unit_estimates` updates them from a
   refined network);
 * :func:`topology_from_network`, the exchangers of a network (the maximum-energy-recovery design) laid
-  into stages along every stream.
+  into stages along every stream;
+* :func:`mer_network`, that maximum-energy-recovery design within its share of the run's time budget, or
+  None (with a note) when it cannot be had, so that the search falls back on its other starts.
 
 The search that refines and improves these topologies is in :mod:`heatloom.network.tac.search`.
 
@@ -24,12 +26,21 @@ import numpy as np
 import pulp
 
 from ...equipment.sizing import log_mean
+from ...errors import InfeasibleError, InputError, SolverError
 from ...model.costs import UnitKind
 from ..solvers import new_variable
 from ..structure import Network
+from .budget import Budget
 from .nlp import TacProblem, Topology, TopologySolution, unit_costs
 
-__all__ = ["stagewise_milp", "unit_estimates", "topology_from_network"]
+__all__ = ["stagewise_milp", "unit_estimates", "topology_from_network", "mer_network", "MER_SHARE", "MER_CAP"]
+
+MER_SHARE = 0.1
+"""Part of the remaining time given to the starting MER design [-], as its ``time_limit`` (which
+:func:`heatloom.network.design.design_mer` shares among its solves)."""
+
+MER_CAP = 20.0
+"""Longest time given to the starting MER design [s]."""
 
 
 def _unit_area_cost_per_kw(law, u: float, load: float, approach: float) -> float:
@@ -49,7 +60,8 @@ def stagewise_milp(p: TacProblem, stages: int, estimates: dict, *, name: str = "
         + \\sum_{util} (a\\,z_u + c_u Q_u)
 
     subject to the stage and overall heat balances, monotone stage temperatures, logical constraints
-    q ≤ Ω z and approach constraints ΔT ≥ EMAT − Γ(1 − z) at both ends of every unit (Yee & Grossmann 1990,
+    q ≤ Ω z and approach constraints ΔT ≥ EMAT − Γ(1 − z) at both ends of every unit (the sum of the sides'
+    ΔTmin contributions instead of EMAT where larger, :meth:`TacProblem.need`) (Yee & Grossmann 1990,
     constraints (1)-(12)), with utility units at the stream ends, one per utility level in series ordered
     by temperature.  The per-kW area costs :math:`c` are secants of b·(Q/(U·θ))^c through zero at an
     estimated load Q̂ and approach θ̂ (``estimates``), updated by the caller from refined networks.
@@ -68,7 +80,8 @@ def stagewise_milp(p: TacProblem, stages: int, estimates: dict, *, name: str = "
     nh, nc = len(p.hot_names), len(p.cold_names)
     temps = np.concatenate([p.hot_in, p.hot_out, p.cold_in, p.cold_out,
                             [u.supply_temperature for u in (*p.heat_levels, *p.cool_levels)]])
-    gamma = float(temps.max() - temps.min() + 2 * p.emat)
+    needs = [p.need(i, j) for i in (*range(nh), None) for j in (*range(nc), None)]
+    gamma = float(temps.max() - temps.min() + 2 * max(needs))   # EMAT without contributions
     th = {(i, 0): float(p.hot_in[i]) for i in range(nh)}
     tc = {(j, K): float(p.cold_in[j]) for j in range(nc)}
     for i in range(nh):
@@ -99,8 +112,8 @@ def stagewise_milp(p: TacProblem, stages: int, estimates: dict, *, name: str = "
                 q[key] = new_variable(prob, f"q_{i}_{j}_{k}", 0, omega)
                 z[key] = new_variable(prob, f"z_{i}_{j}_{k}", cat=pulp.LpBinary)
                 prob += q[key] <= omega * z[key]
-                prob += th[i, k] - tc[j, k] >= p.emat - gamma * (1 - z[key])
-                prob += th[i, k + 1] - tc[j, k + 1] >= p.emat - gamma * (1 - z[key])
+                prob += th[i, k] - tc[j, k] >= p.need(i, j) - gamma * (1 - z[key])
+                prob += th[i, k + 1] - tc[j, k + 1] >= p.need(i, j) - gamma * (1 - z[key])
                 law = p.laws[UnitKind.EXCHANGER]
                 cost_terms.append(law[0] * z[key] + _unit_area_cost_per_kw(law, u, load, dt) * q[key])
     for i in range(nh):
@@ -134,13 +147,14 @@ def stagewise_milp(p: TacProblem, stages: int, estimates: dict, *, name: str = "
                 prob += util_q[key] <= float(duty) * util_z[key]
                 sign = -1.0 if side == "cool" else 1.0
                 after = before + sign * util_q[key] * (1.0 / cp)
+                need = p.need(s, None) if side == "cool" else p.need(None, s)
                 if side == "cool":   # hot end: stream before − utility outlet; cold end: after − utility inlet
-                    prob += before - util.target_temperature >= p.emat - gamma * (1 - util_z[key])
-                    prob += after - util.supply_temperature >= p.emat - gamma * (1 - util_z[key])
+                    prob += before - util.target_temperature >= need - gamma * (1 - util_z[key])
+                    prob += after - util.supply_temperature >= need - gamma * (1 - util_z[key])
                     dt0 = max(0.5 * (p.hot_out[s] + p.hot_in[s]) - util.target_temperature, 2 * p.emat)
                 else:
-                    prob += util.supply_temperature - after >= p.emat - gamma * (1 - util_z[key])
-                    prob += util.target_temperature - before >= p.emat - gamma * (1 - util_z[key])
+                    prob += util.supply_temperature - after >= need - gamma * (1 - util_z[key])
+                    prob += util.target_temperature - before >= need - gamma * (1 - util_z[key])
                     dt0 = max(util.target_temperature - 0.5 * (p.cold_out[s] + p.cold_in[s]), 2 * p.emat)
                 u = 1.0 / (1.0 / h_s + 1.0 / util.film_coefficient)
                 load, dt = guess(key, 0.5 * duty, dt0)
@@ -258,3 +272,41 @@ def topology_from_network(p: TacProblem, net: Network) -> Topology | None:
                for lv, u in enumerate(p.cool_levels) if u.name == c.utility}
     stages = max((k for (_, _, k) in matches), default=0) + 1
     return Topology(stages, frozenset(matches), frozenset(heaters), frozenset(coolers))
+
+
+def mer_network(streams, dt_min: float, utilities, budget: Budget, *, costs=None, solver=None,
+                default_film_coefficient: float | None = None) -> Network | None:
+    """The maximum-energy-recovery network of :func:`heatloom.network.design.design_mer`, or None.
+
+    It is given :data:`MER_SHARE` of the time left, at most :data:`MER_CAP`, as its time limit (every
+    solve inside gets at most that); its reports go to the budget.  When the budget is spent, or the design fails (a solve stopped without a solution,
+    no placement keeps ΔTmin, an input the MER design cannot take), the budget gets a note and None is
+    returned: the search starts from its other topologies.
+
+    Parameters
+    ----------
+    streams : StreamTable
+    dt_min : float
+        ΔTmin of the MER design [K].
+    utilities : sequence of Utility
+    budget : Budget
+        The run's time budget.
+    costs, solver, default_film_coefficient
+        As for :func:`heatloom.network.design.design_mer`.
+    """
+    from ..design import design_mer
+
+    label = f"MER network at ΔTmin {dt_min:g} K"
+    limit = budget.share(MER_SHARE, MER_CAP)
+    if limit is None:
+        budget.notes.append(f"no {label} as a starting topology: the time limit was all but spent")
+        return None
+    try:
+        mer = design_mer(streams, dt_min, utilities, costs=costs, solver=solver, time_limit=limit,
+                         default_film_coefficient=default_film_coefficient)
+    except (InfeasibleError, InputError, SolverError) as exc:
+        budget.notes.append(f"no {label} as a starting topology ({exc}); the search started from the others")
+        return None
+    for report in mer.solves:
+        budget.record(report)
+    return mer

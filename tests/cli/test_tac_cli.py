@@ -133,3 +133,53 @@ def test_bad_numbers_are_usage_errors(capsys, files, bad):
     with pytest.raises(SystemExit) as exc:
         main(["design", str(s), "--mode", "tac", *bad])
     assert exc.value.code == 2
+
+
+@pytest.mark.slow
+def test_readme_tour_line_on_the_shipped_case_with_segmented_streams(capsys):
+    # the README's TAC tour line on the shipped solvent-recovery case (invented demo data), whose column
+    # overhead has three segments, with a shorter time limit; the network is checked by `design` itself
+    # (check_network, the approach at every segment break), and here once more from the JSON
+    from pathlib import Path
+
+    from heatloom.io import read_streams
+    from heatloom.network.structure import smallest_approach
+
+    case = Path(__file__).resolve().parents[2] / "case_studies" / "solvent_recovery"
+    code, out, err = run(capsys, "design", case / "streams.csv", "--mode", "tac", "--utilities",
+                         case / "utilities.csv", "--time-limit", "30", "--json")
+    assert code == 0, err
+    data = json.loads(out)
+    assert any("every segment break inside each unit" in n for n in data["notes"])
+    streams = {s.name: s for s in read_streams(case / "streams.csv")}
+    assert len(streams["column overhead"].segments) == 3
+    for e in data["exchangers"]:
+        d = smallest_approach(streams[e["hot"]], streams[e["cold"]], e["hot_in"], e["hot_out"], e["cold_in"],
+                              e["cold_out"], duty=e["duty"], hot_fraction=e["hot_fraction"],
+                              cold_fraction=e["cold_fraction"])
+        assert d >= 1.0 - 1e-6
+    for c in data["coolers"]:
+        d = smallest_approach(streams[c["hot"]], None, c["hot_in"], c["hot_out"], c["utility_in"], c["utility_out"],
+                              duty=c["duty"], hot_fraction=c["hot_fraction"])
+        assert d >= 1.0 - 1e-6
+    assert any(x["hot"] == "column overhead" for x in data["exchangers"] + data["coolers"])
+
+
+@pytest.mark.slow
+def test_a_start_whose_solve_stops_without_a_solution_does_not_abort_the_run(capsys, files, monkeypatch):
+    # the MER start fails as a time-limited placement does on a 20-stream problem (measured on main: exit 1);
+    # the run falls back to its other starts, exits 0 and says why in the notes
+    from heatloom.errors import SolverError
+
+    def mer_times_out(*args, **kwargs):
+        raise SolverError("highs stopped without any solution of 'placement (below, one unit per match)' "
+                          "(Time limit reached; time limit 1 s): raise the time limit or simplify the problem")
+
+    monkeypatch.setattr("heatloom.network.design.design_mer", mer_times_out)
+    s, u, c = files
+    code, out, err = run(capsys, "design", s, "--mode", "tac", "--utilities", u, "--costs", c, "--json", *FAST)
+    assert code == 0, err
+    data = json.loads(out)
+    assert any("no MER network at ΔTmin 10 K as a starting topology" in n and "Time limit reached" in n
+               for n in data["notes"])
+    assert data["exchangers"]
