@@ -157,7 +157,7 @@ def run(args) -> int:
             net = design_tac(streams, utilities, costs=costs, emat=dt_min,
                              time_limit=args.time_limit or defaults.TAC_TIME_LIMIT, seed=args.seed, starts=args.starts,
                              rounds=args.rounds, solver=args.solver, default_film_coefficient=args.default_h,
-                             segmented_streams=True, progress=bar.best)
+                             progress=bar.best)
         finally:
             bar.close()
     else:

@@ -454,7 +454,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
                costs: CostSettings | None = None, emat: float = defaults.EMAT, stages: int | None = None,
                time_limit: float = 120.0, seed: int = 0, starts: int = 2, rounds: int = 40,
                workers: int | None = None, milp_iterations: int = 3, solver: str | None = None,
-               default_film_coefficient: float | None = None, segmented_streams: bool = False,
+               default_film_coefficient: float | None = None,
                progress: Callable[[float, int, int], None] | None = None) -> Network:
     """A network of low total annual cost: stagewise MILP topologies refined against the exact cost.
 
@@ -495,10 +495,6 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         "highs" or "cbc" (see :mod:`heatloom.network.solvers`).
     default_film_coefficient : float, optional
         [kW/(m²·K)] assumed where a stream or utility has none.
-    segmented_streams : bool
-        Design streams of several segments (:mod:`heatloom.network.tac.profiles`); when False (the
-        default, kept for the callers that have not opted in yet) such a stream is refused.
-        ``heatloom design --mode tac`` passes True.
     progress : callable, optional
         Called as ``progress(best_tac, done, total)`` after the starting topologies and after each epoch of
         the search (``done`` of ``total`` epochs).
@@ -512,8 +508,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     Raises
     ------
     InputError
-        Bad EMAT, budgets, film coefficients, missing utilities, or a stream of several segments without
-        ``segmented_streams``.
+        Bad EMAT, budgets, film coefficients, missing utilities.
     InfeasibleError
         No network found (no utility can serve some stream).
 
@@ -537,12 +532,6 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
             raise InputError(f"{what} must be a whole number >= {1 if what == 'starts' else 0}, got {value!r}")
     if not (time_limit > 0) or not np.isfinite(time_limit):
         raise InputError(f"time limit must be a finite number of seconds > 0, got {time_limit!r}")
-    if not segmented_streams:
-        for s in streams:
-            if len(s.segments) != 1:
-                raise InputError(f"stream '{s.name}' has {len(s.segments)} segments; this TAC design was asked for "
-                                 "streams of one constant CP only (heatloom design --mode tac, or "
-                                 "design_tac(..., segmented_streams=True), designs streams of several segments)")
     budget = Budget(float(time_limit))
     deadline = budget.deadline
     notes: list[str] = [f"EMAT {emat:g} K at both ends of every unit (no ΔTmin)"]
