@@ -6,14 +6,20 @@ The sequence (DEVELOPERS.md, "Method notes"):
    (:func:`heatloom.pinch.target`), checked against the Papoulias–Grossmann transshipment LP when the
    match plan is made;
 2. the minimum number of matches with heat-load distribution for each pinch subnetwork (a MILP on PuLP,
-   :func:`heatloom.network.milp.plan_matches`);
-3. placement of those matches with temperatures, in series or in parallel with stream splits, by a
-   stagewise model restricted to them (:func:`heatloom.network.placement.stage_model`); if the matches of
-   the plan cannot be placed as single units, every match of the subnetwork is allowed and the fewest
-   units are sought again (said in the notes);
+   :func:`heatloom.network.milp.plan_matches`); without an integer solution in time, the matches of its
+   LP relaxation, and without that either a greedy heat-load distribution;
+3. placement with temperatures, in series or in parallel with stream splits, by a stagewise model
+   restricted to the matches (:func:`heatloom.network.placement.stage_model`), one model per pinch
+   region and independent stream group (:func:`stream_groups`).  Each planned match as one unit first;
+   if that cannot keep ΔTmin, other sets of as few matches of the group, then the planned matches in
+   two places or any pair of the group (fewer units wins), and as the last resort units interval by
+   interval (:func:`heatloom.network.placement.interval_placement`, no solver).  The notes say which;
 4. sizing of every unit (segment-wise LMTD area, U from the film coefficients), costing, and the checks of
    :func:`heatloom.network.structure.check_network`: a network that breaks a balance or ΔTmin is never
    returned.
+
+``time_limit`` is one wall-clock budget for the whole run (:class:`heatloom.network.solvers.Budget`):
+every solve takes its share of what is left, and the notes name the solves that stopped at theirs.
 """
 
 from __future__ import annotations
@@ -31,12 +37,162 @@ from ..model.exchangers import ExchangerType
 from ..pinch import target
 from ..pinch.utilities import ideal_utilities
 from ..validation import enum_member
-from .placement import Side, stage_model
-from .solvers import solve
+from .placement import Placement, Side, interval_placement, stage_model
+from .solvers import Budget, SolveReport, solve
 from .structure import Cooler, Exchanger, Heater, Network, check_network, stream_enthalpy
 from .transshipment import Region, pinch_regions
 
-__all__ = ["design_mer"]
+__all__ = ["design_mer", "stream_groups"]
+
+
+def stream_groups(hot: Sequence[Side], cold: Sequence[Side], matches: Sequence
+                  ) -> list[tuple[list[Side], list[Side], set[tuple[str, str]]]]:
+    """Independent stream groups of a pinch region: the connected parts of its planned matches.
+
+    Streams linked by no chain of planned matches exchange no heat, so each part can be placed on its
+    own (a much smaller model).  A utility takes part in several groups with the load of its matches in
+    each (utility units run in parallel anyway); each group's utility load is then set by its balance.
+    Returns one group holding everything when the matches leave a side out or a group would not balance
+    (the plan dropped a load below its tolerance).
+
+    Parameters
+    ----------
+    hot, cold : sequence of Side
+        The sides of the region.
+    matches : sequence of heatloom.network.milp.Match
+        The planned matches of the region, with their loads [kW].
+
+    Returns
+    -------
+    list of (hot sides, cold sides, planned pairs)
+
+    Examples
+    --------
+    >>> from types import SimpleNamespace as M
+    >>> h = [Side("H1", True, (150.0, 50.0), (0.0, 100.0), 5.0), Side("H2", True, (90.0, 60.0), (0.0, 30.0), 5.0)]
+    >>> c = [Side("C1", False, (20.0, 70.0), (0.0, 100.0), 5.0), Side("C2", False, (30.0, 45.0), (0.0, 30.0), 5.0)]
+    >>> [sorted(p) for _, _, p in stream_groups(h, c, [M(hot="H1", cold="C1", load=100.0),
+    ...                                                M(hot="H2", cold="C2", load=30.0)])]
+    [[('H1', 'C1')], [('H2', 'C2')]]
+    """
+    everything = [(list(hot), list(cold), {(m.hot, m.cold) for m in matches})]
+    utility = {s.name for s in (*hot, *cold) if s.utility}
+    parent = {s.name: s.name for s in (*hot, *cold) if not s.utility}
+
+    def root(x: str) -> str:
+        while parent[x] != x:
+            parent[x] = parent[parent[x]]
+            x = parent[x]
+        return x
+
+    linked = {m.hot for m in matches} | {m.cold for m in matches}
+    if linked != {s.name for s in (*hot, *cold)}:   # a side without a match, or a match of no side
+        return everything
+    for m in matches:
+        if m.hot in parent and m.cold in parent:
+            parent[root(m.hot)] = root(m.cold)
+    keys = sorted({root(n) for n in parent}, key=lambda r: [n for n in parent].index(r))
+    out = []
+    for key in keys:
+        hs = [s for s in hot if not s.utility and root(s.name) == key]
+        cs = [s for s in cold if not s.utility and root(s.name) == key]
+        mine = [m for m in matches if root(m.cold if m.hot in utility else m.hot) == key]
+        loads: dict[str, float] = {}
+        for m in mine:
+            for n in (m.hot, m.cold):
+                if n in utility:
+                    loads[n] = loads.get(n, 0.0) + m.load
+        imbalance = sum(s.duty for s in hs) - sum(s.duty for s in cs)   # > 0: heat for the cold utility
+        scale = max(sum(s.duty for s in hs), 1.0)
+        if loads:   # the largest utility load closes the group's balance
+            big = max(loads, key=loads.get)
+            is_hot = next(s for s in (*hot, *cold) if s.name == big).hot
+            others = sum(v if next(s for s in (*hot, *cold) if s.name == n).hot else -v
+                         for n, v in loads.items() if n != big)
+            loads[big] = (-imbalance - others) if is_hot else (imbalance + others)
+            if loads[big] <= 1e-9 * scale:
+                return everything
+        elif abs(imbalance) > 1e-7 * scale:
+            return everything
+        for s in (*hot, *cold):
+            if s.name in loads:
+                side = Side(s.name, s.hot, s.temperatures, (0.0, loads[s.name]), s.shift, utility=True)
+                (hs if s.hot else cs).append(side)
+        if not hs or not cs:
+            return everything
+        out.append((hs, cs, {(m.hot, m.cold) for m in mine}))
+    return out
+
+
+def _place(hot: list[Side], cold: list[Side], allowed: set[tuple[str, str]], label: str, proven: bool,
+           solver, budget: Budget, source=None, tries: int = 6) -> tuple[Placement, list[SolveReport], str]:
+    """Place one stream group: stagewise MILPs in turn, then the interval placement (no solver).
+
+    1. each planned match as one unit; 2. when ``source`` (the group's subnetwork and its matches) is
+    given, up to ``tries`` other sets of as few matches, one unit each
+    (:func:`heatloom.network.milp.alternative_matches`); 3. the planned matches, some in two places;
+    4. any pair of the group (fewer units than 3. often); 5. only when neither has a solution, any pair
+    with one more stage; 6. units interval by interval (:func:`interval_placement`).  Of 3. and 4. the
+    placement with fewer units wins (the planned matches on a tie).  A model of more than 20 000 unit
+    binaries is not built (it could not be solved in a share of the budget).
+    Returns the placement, the solve reports and a note when it did not come from the first model.
+    """
+    from .milp import alternative_matches
+
+    stages = max(len(hot), len(cold))
+    reports: list[SolveReport] = []
+
+    def attempt(pairs, k, once, share, what, required=frozenset()):
+        prob, read = stage_model(hot, cold, pairs, k, required=required, once=once, name="placement")
+        report = budget.record(solve(prob, solver=solver, time_limit=budget.share(share), check=False,
+                                     name=f"placement ({label}, {what})"))
+        reports.append(report)
+        return (read(), report.optimal) if report.has_solution else (None, False)
+
+    if not budget.exhausted:
+        result, _ = attempt(allowed, stages, True, 0.5, "one unit per match", allowed if proven else frozenset())
+        if result is not None:
+            return result, reports, ""
+        tried = [set(allowed)]
+        for _ in range(tries if source is not None else 0):
+            if budget.remaining < 0.5 * budget.total or budget.exhausted:
+                break
+            alt, rep = alternative_matches(*source, tried, solver=solver, time_limit=budget.share(0.25))
+            reports.append(budget.record(rep))
+            if alt is None:
+                break
+            tried.append(alt)
+            result, _ = attempt(alt, stages, True, 0.25, "another set of matches, one unit each")
+            if result is not None:
+                return result, reports, (f"subnetwork '{label}': the planned matches could not be placed one "
+                                         f"unit each; another set of {len(alt)} matches could")
+    everything = {(i.name, j.name) for i in hot for j in cold if not (i.utility and j.utility)}
+    best = None
+    for pairs, k, share, what in [(allowed, stages, 0.4, "planned matches in two places"),
+                                  (everything, stages, 0.7, "any match"),
+                                  (everything, stages + 1, 1.0, "any match, one more stage")]:
+        if budget.exhausted or (best is not None and k > stages):
+            break
+        if len(pairs) * k > 20000:   # too large to build and solve in a share of the budget
+            continue
+        result, optimal = attempt(pairs, k, False, share, what, allowed if pairs is allowed and proven
+                                  else frozenset())
+        if result is not None and (best is None or len(result.units) < len(best[0].units)):
+            best = (result, what)   # ties keep the planned matches
+        if optimal and pairs is everything:
+            break
+    if best is not None:
+        return best[0], reports, (f"subnetwork '{label}': the planned matches could not be placed one unit "
+                                  f"each keeping ΔTmin; {len(best[0].units)} units placed allowing "
+                                  f"{best[1]} instead")
+    try:
+        result = interval_placement(hot, cold, preferred=allowed)
+    except ValueError as exc:
+        raise InfeasibleError(f"no placement of the matches of subnetwork '{label}' keeps ΔTmin at both "
+                              f"ends of every unit ({exc})") from None
+    why = "no time left of the budget" if not reports else "the placement models stopped without a solution"
+    return result, reports, (f"subnetwork '{label}': {why}; units placed interval by interval instead "
+                             f"({len(result.units)} units, more than the fewest)")
 
 
 def _process_side(stream: Stream, region: Region, shift: float) -> Side | None:
@@ -127,7 +283,12 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
     solver : str, optional
         "highs" or "cbc"; HiGHS when installed (see :mod:`heatloom.network.solvers`).
     time_limit : float
-        Limit of each MILP solve [s].
+        Wall-clock budget of the whole run [s]: the match plan takes up to 60 % of it, each stream
+        group's placement a part of what is left in proportion to its size, and every solve its share
+        of its part (:class:`heatloom.network.solvers.Budget`); the notes name the solves that stopped at
+        their share.  A solve that stops without a solution falls back to the next method (fewest
+        matches → LP relaxation → greedy heat-load distribution; placement of each planned match once →
+        planned matches → any match → units interval by interval), and the notes say so.
     default_film_coefficient : float, optional
         Film coefficient assumed where a stream or utility has none [kW/(m²·K)]; without it a missing
         coefficient is an error (areas cannot be computed).
@@ -175,16 +336,18 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
                          "--default-h)")
     if missing:
         notes.append(f"film coefficient {default_film_coefficient:g} kW/(m²·K) assumed for {', '.join(missing)}")
+    budget = Budget(time_limit)
     t = target(streams, dt_min, utilities)
-    plan = plan_matches(streams, dt_min, utilities, solver=solver, time_limit=time_limit)
+    plan = plan_matches(streams, dt_min, utilities, solver=solver, budget=budget.part(0.6))
     solves = list(plan.reports)
     duties = plan.utility_duties
     notes.append(f"minimum matches {plan.number_of_matches} "
                  f"({'proven minimal' if plan.proven_minimum else 'best found within the time limit'}); "
                  f"minimum-units target {plan.unit_target} (N − 1 per pinch subnetwork)")
+    notes += plan.notes
     by_utility = {u.name: u for u in utilities}
     regions = pinch_regions([p.shifted for p in t.pinches])   # process pinches (utility pinches: in the plan)
-    placed = []  # (region label, PlacedUnit)
+    groups = []   # (label, hot sides, cold sides, planned pairs, (subnetwork, its matches in the group) or None)
     for r_index, region in enumerate(regions):
         hot_sides, cold_sides = [], []
         for s in streams:
@@ -203,30 +366,25 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
         if not hot_sides or not cold_sides:
             raise InfeasibleError(f"subnetwork '{region.label}' has only "
                                   f"{'hot' if hot_sides else 'cold'} sides; the targets cannot be met")
-        allowed = plan.allowed(top=region.top, bottom=region.bottom)
-        stages = max(len(hot_sides), len(cold_sides))
-        result = None
-        everything = {(i.name, j.name) for i in hot_sides for j in cold_sides if not (i.utility and j.utility)}
-        # 1. each planned match exactly once; 2. planned matches, some possibly twice; 3. any pair, one more
-        # stage.  The first that has a solution wins (notes say when it was not the first).
-        attempts = [(allowed, stages, True), (allowed, stages, False), (everything, stages + 1, False)]
-        for attempt, (pairs, k, once) in enumerate(attempts):
-            required = pairs if attempt < 2 and plan.proven_minimum else frozenset()
-            prob, read = stage_model(hot_sides, cold_sides, pairs, k, required=required, once=once,
-                                     name=f"placement_{r_index}")
-            report = solve(prob, solver=solver, time_limit=time_limit,
-                           name=f"placement ({region.label}, {('one unit per match', 'planned matches', 'any match')[attempt]})")
-            solves.append(report)
-            if report.has_solution:
-                result = read()
-                if attempt == 2:
-                    notes.append(f"subnetwork '{region.label}': the planned matches could not be placed "
-                                 "keeping ΔTmin; every match was allowed and the fewest units found instead")
-                break
-        if result is None:
-            raise InfeasibleError(f"no placement of the matches of subnetwork '{region.label}' keeps ΔTmin "
-                                  f"{dt_min:g} K at both ends of every unit")
-        placed += [(region.label, p) for p in result.units]
+        matches = plan.matches_within(region.top, region.bottom)
+        subs = [s.subnetwork for s in plan.subnetworks if s.matches and s.matches[0] in matches]
+        parts = stream_groups(hot_sides, cold_sides, matches)
+        for k, (hs, cs, pairs) in enumerate(parts):
+            label = region.label if len(parts) == 1 else f"{region.label}, stream group {k + 1} of {len(parts)}"
+            mine = [m for m in matches if (m.hot, m.cold) in pairs] if len(subs) == 1 else None
+            groups.append((label, hs, cs, pairs, (subs[0], mine) if mine else None))
+    weights = [len(g[3]) * max(len(g[1]), len(g[2])) for g in groups]
+    placed = []  # (region label, PlacedUnit)
+    for g, (label, hot_sides, cold_sides, allowed, source) in enumerate(groups):
+        part = budget.part(weights[g] / max(sum(weights[g:]), 1))
+        result, reports, note = _place(hot_sides, cold_sides, allowed, label, plan.proven_minimum, solver, part,
+                                       source)
+        solves += reports
+        if note:
+            notes.append(note)
+        placed += [(label.split(", stream group")[0], p) for p in result.units]
+    if budget.hits:
+        notes.append(budget.hits_note())
 
     if len(placed) > plan.number_of_matches:
         notes.append(f"keeping ΔTmin at both ends of every unit took {len(placed)} units for the "

@@ -38,7 +38,7 @@ import pulp
 
 from ..errors import InfeasibleError, InputError, SolverError
 from ..model import StreamTable, Utility
-from .solvers import SolveReport, SolverName, SolveStatus, new_variable, solve
+from .solvers import Budget, SolveReport, SolverName, SolveStatus, new_variable, solve
 from .transshipment import HEAT_TOLERANCE, PINCH_TOLERANCE, Transshipment, pinch_regions, transshipment
 
 __all__ = [
@@ -50,6 +50,8 @@ __all__ = [
     "SubnetworkMatches",
     "min_matches_model",
     "min_matches",
+    "heuristic_matches",
+    "alternative_matches",
     "MatchPlan",
     "plan_matches",
 ]
@@ -262,18 +264,22 @@ class SubnetworkMatches:
         m + 1 (0 at the top; at the bottom only round-off).
     reports : tuple of SolveReport
         The fewest-matches solve, then the tie-break solve (if any), then the LP that recomputes the
-        loads with the matches fixed (exact balances free of integrality round-off).
+        loads with the matches fixed (exact balances free of integrality round-off); empty when the time
+        budget was spent before any solve.
+    note : str
+        How the matches were found when it was not the fewest-matches MILP ("" otherwise).
     """
 
     subnetwork: Subnetwork
     matches: tuple[Match, ...]
     residuals: dict[str, tuple[float, ...]]
     reports: tuple[SolveReport, ...]
+    note: str = ""
 
     @property
-    def report(self) -> SolveReport:
-        """The fewest-matches solve."""
-        return self.reports[0]
+    def report(self) -> SolveReport | None:
+        """The fewest-matches solve (None when there was none)."""
+        return self.reports[0] if self.reports else None
 
     @property
     def number_of_matches(self) -> int:
@@ -282,12 +288,12 @@ class SubnetworkMatches:
     @property
     def optimal(self) -> bool:
         """True when the number of matches is proven minimal."""
-        return self.report.optimal
+        return bool(self.reports) and self.reports[0].optimal and not self.note
 
     def to_dict(self) -> dict:
         return {**self.subnetwork.to_dict(), "number_of_matches": self.number_of_matches,
                 "optimal": self.optimal, "matches": [m.to_dict() for m in self.matches],
-                "residuals": {k: list(v) for k, v in self.residuals.items()},
+                "residuals": {k: list(v) for k, v in self.residuals.items()}, "note": self.note,
                 "solves": [r.to_dict() for r in self.reports]}
 
 
@@ -449,6 +455,123 @@ def _fix_integers(problem: pulp.LpProblem) -> None:
             v.lowBound = v.upBound = round(v.varValue or 0.0)
 
 
+def heuristic_matches(sub: Subnetwork, forbidden: Iterable[tuple[str, str]] = ()
+                      ) -> tuple[tuple[Match, ...], dict[str, tuple[float, ...]]]:
+    """A feasible heat-load distribution of one subnetwork without a solver (not the fewest matches).
+
+    Goes down the intervals; the heat each hot participant has released at or above an interval and not
+    yet given away may serve the cold demand of that interval (heat only flows down the cascade, so the
+    distribution keeps ΔTmin).  Each demand takes first from hot participants it is already matched with,
+    then from the one with the most heat left: few matches, no proof.  Used when the fewest-matches MILP
+    and its relaxation stop without a solution.
+
+    Returns
+    -------
+    matches, residuals
+        As ``read()`` of :func:`min_matches_model`.
+
+    Raises
+    ------
+    InfeasibleError
+        When some demand cannot be served (only possible with forbidden matches).
+
+    Examples
+    --------
+    >>> from heatloom.model import StreamTable
+    >>> s = StreamTable.from_arrays(["1", "2", "3", "4"], [180, 150, 20, 80], [60, 30, 135, 140],
+    ...                             [3.0, 1.0, 2.0, 4.5])
+    >>> below = subnetworks(transshipment(s, 10))[1]
+    >>> matches, _ = heuristic_matches(below)
+    >>> round(sum(m.load for m in matches), 6) == round(sum(below.cold_duties.values()), 6)
+    True
+    """
+    forbidden = _pairs(forbidden)
+    h, c = sub.hot_heat, sub.cold_heat
+    tol = HEAT_TOLERANCE * max(float(c.sum()), 1.0)
+    avail = np.zeros(len(sub.hot))
+    loads: dict[tuple[int, int], list[tuple[int, float]]] = {}
+    residuals = np.zeros((len(sub.hot), sub.size + 1))
+    for k in range(sub.size):
+        avail += h[:, k]
+        for j in sorted(range(len(sub.cold)), key=lambda j: -c[j, k]):
+            need = float(c[j, k])
+            while need > tol:
+                cands = [i for i in range(len(sub.hot)) if avail[i] > tol
+                         and (sub.hot[i], sub.cold[j]) not in forbidden
+                         and not (sub.hot_is_utility[i] and sub.cold_is_utility[j])]
+                if not cands:
+                    raise InfeasibleError(f"{sub.label}: the demand of '{sub.cold[j]}' between "
+                                          f"{sub.temperatures[k]:g} and {sub.temperatures[k + 1]:g} °C shifted "
+                                          "cannot be served by any allowed hot participant")
+                i = max(cands, key=lambda i: ((i, j) in loads, avail[i]))
+                x = min(need, float(avail[i]))
+                loads.setdefault((i, j), []).append((sub.first + k, x))
+                avail[i] -= x
+                need -= x
+        residuals[:, k + 1] = np.where(avail > tol, avail, 0.0)
+    matches = []
+    for (i, j), cells in sorted(loads.items()):
+        kind = (MatchKind.HEATER if sub.hot_is_utility[i] else MatchKind.COOLER if sub.cold_is_utility[j]
+                else MatchKind.EXCHANGER)
+        matches.append(Match(sub.hot[i], sub.cold[j], float(sum(v for _, v in cells)), kind, sub.index,
+                             sub.label, tuple(cells)))
+    return tuple(matches), {n: tuple(float(v) for v in residuals[i]) for i, n in enumerate(sub.hot)}
+
+
+def alternative_matches(sub: Subnetwork, group: Sequence[Match], tried: Sequence[set[tuple[str, str]]], *,
+                        solver: SolverName | str | None = None, time_limit: float = 60.0
+                        ) -> tuple[set[tuple[str, str]] | None, SolveReport]:
+    """Another set of no more matches for one stream group of a subnetwork, unlike every set tried.
+
+    The group is the participants of ``group`` (a connected part of the plan's matches); its process
+    streams keep their heat, a utility the load of its matches in the group.  The fewest-matches model
+    of the group gets a no-good cut per tried set, :math:`\\sum_{E} y - \\sum_{\\notin E} y \\le |E| - 1`,
+    and at most as many matches as the group has.  Used when the plan's matches cannot be placed one
+    unit each (the alternatives differ in how they can be placed).
+
+    Returns
+    -------
+    pairs, report
+        The new (hot, cold) pairs, or None when the solve has no solution (no other set, or no time).
+    """
+    names = {m.hot for m in group} | {m.cold for m in group}
+    hot = [(i, n) for i, n in enumerate(sub.hot) if n in names]
+    cold = [(j, n) for j, n in enumerate(sub.cold) if n in names]
+    hot_heat, cold_heat = [], []
+    for i, n in hot:
+        row = sub.hot_heat[i]
+        if sub.hot_is_utility[i]:
+            row = row * (sum(m.load for m in group if m.hot == n) / max(float(row.sum()), 1e-300))
+        hot_heat.append(row)
+    for j, n in cold:
+        row = sub.cold_heat[j]
+        if sub.cold_is_utility[j]:
+            row = np.zeros(sub.size)
+            for m in group:
+                if m.cold == n:
+                    for k, q in m.interval_loads:
+                        row[k - sub.first] += q
+        cold_heat.append(row)
+    part = Subnetwork(sub.index, sub.label, sub.first, sub.temperatures, tuple(n for _, n in hot),
+                      tuple(sub.hot_is_utility[i] for i, _ in hot), np.array(hot_heat), tuple(n for _, n in cold),
+                      tuple(sub.cold_is_utility[j] for j, _ in cold), np.array(cold_heat))
+    problem, read = min_matches_model(part)
+    y = {}
+    for v in problem.variables():
+        if v.name.startswith("y_") and v.name.count("_") == 2:
+            _, a, b = v.name.split("_")
+            y[part.hot[int(a)], part.cold[int(b)]] = v
+    problem += pulp.lpSum(y.values()) <= len({(m.hot, m.cold) for m in group}), "no_more_matches"
+    for t, done in enumerate(tried):
+        problem += (pulp.lpSum(v for p, v in y.items() if p in done)
+                    - pulp.lpSum(v for p, v in y.items() if p not in done) <= len(done) - 1), f"nogood_{t}"
+    report = solve(problem, solver, time_limit=time_limit, absolute_gap=0.999, check=False,
+                   name=f"another set of matches, {sub.label}")
+    if not report.has_solution:
+        return None, report
+    return {(m.hot, m.cold) for m in read()[0]}, report
+
+
 def _relaxed_matches(problem: pulp.LpProblem, solver, time_limit: float, label: str) -> SolveReport:
     """Solve the LP relaxation of the fewest-matches model and round every used match up to 1."""
     binaries = [v for v in problem.variables() if v.cat == pulp.LpInteger]
@@ -463,8 +586,8 @@ def _relaxed_matches(problem: pulp.LpProblem, solver, time_limit: float, label: 
 
 
 def min_matches(sub: Subnetwork, *, solver: SolverName | str | None = None, time_limit: float = 60.0,
-                tie_break: TieBreak = TieBreak.NONE, forbidden: Iterable[tuple[str, str]] = ()
-                ) -> SubnetworkMatches:
+                tie_break: TieBreak = TieBreak.NONE, forbidden: Iterable[tuple[str, str]] = (),
+                budget: Budget | None = None) -> SubnetworkMatches:
     """The fewest matches of one subnetwork and their heat loads.
 
     Solves :func:`min_matches_model` (with an absolute gap below one, which proves the integer minimum),
@@ -476,11 +599,14 @@ def min_matches(sub: Subnetwork, *, solver: SolverName | str | None = None, time
     sub : Subnetwork
     solver : SolverName, str or None
     time_limit : float
-        Limit of each solve [s]; when the first one reaches it, the best matches found are returned with
-        ``optimal`` False.
+        Limit of each solve [s] when no ``budget`` is given; when the first one reaches it, the best
+        matches found are returned with ``optimal`` False.
     tie_break : TieBreak
     forbidden : iterable of (str, str)
         (hot, cold) name pairs that must not be matched.
+    budget : Budget, optional
+        Wall-clock budget of this subnetwork: each solve takes its share of what is left instead of
+        ``time_limit``, and solves that stop at their share are recorded in it.
 
     Returns
     -------
@@ -490,9 +616,10 @@ def min_matches(sub: Subnetwork, *, solver: SolverName | str | None = None, time
     ------
     InfeasibleError
         When the heat cannot be distributed (only possible with forbidden matches).
-    SolverError
-        When the solver stops without any solution, even for the LP relaxation (without an integer
-        solution in time, the matches the relaxation uses are returned, not proven minimal).
+
+    Without an integer solution in time, the matches the LP relaxation uses are returned (not proven
+    minimal); when the relaxation has none either, or the budget is spent, those of
+    :func:`heuristic_matches`; ``note`` says so.
 
     Examples
     --------
@@ -509,8 +636,23 @@ def min_matches(sub: Subnetwork, *, solver: SolverName | str | None = None, time
     """
     forbidden = _pairs(forbidden)
     problem, read = min_matches_model(sub, forbidden=forbidden)
-    report = solve(problem, solver, time_limit=time_limit, absolute_gap=0.999, check=False,
-                   name=f"fewest matches, {sub.label}")
+
+    def limit(fraction: float) -> float:
+        return time_limit if budget is None else budget.share(fraction)
+
+    def kept(report: SolveReport) -> SolveReport:
+        return report if budget is None else budget.record(report)
+
+    def heuristic(reports: list[SolveReport], why: str) -> SubnetworkMatches:
+        matches, residuals = heuristic_matches(sub, forbidden)
+        return SubnetworkMatches(sub, matches, residuals, tuple(reports),
+                                 f"{sub.label}: {why}; matches from a greedy heat-load distribution "
+                                 f"({len(matches)} matches, not proven fewest)")
+
+    if budget is not None and budget.exhausted:
+        return heuristic([], "no time left of the budget for the fewest-matches MILP")
+    report = kept(solve(problem, solver, time_limit=limit(0.75), absolute_gap=0.999, check=False,
+                        name=f"fewest matches, {sub.label}"))
     if report.status in (SolveStatus.INFEASIBLE, SolveStatus.INFEASIBLE_OR_UNBOUNDED):
         raise InfeasibleError(f"{sub.label}: no set of matches can distribute the heat"
                               + (" without the forbidden matches given" if forbidden else ""))
@@ -518,25 +660,26 @@ def min_matches(sub: Subnetwork, *, solver: SolverName | str | None = None, time
     if not report.status.has_solution:
         # No integer solution within the time limit: every match the LP relaxation uses is a feasible
         # (not minimal) set of matches; keep it so the design can go on, and say so in the reports.
-        relaxed = _relaxed_matches(problem, solver, time_limit, sub.label)
+        if budget is not None and budget.exhausted:
+            return heuristic(reports, "the fewest-matches MILP stopped without a solution")
+        relaxed = kept(_relaxed_matches(problem, solver, limit(1.0), sub.label))
         reports.append(relaxed)
         if not relaxed.status.has_solution:
-            raise SolverError(f"{sub.label}: the fewest-matches model ended with status "
-                              f"'{report.status.value}' ({report.detail}) and its relaxation with "
-                              f"'{relaxed.status.value}'")
+            return heuristic(reports, "the fewest-matches MILP and its LP relaxation stopped without a "
+                                      "solution")
         tie_break = TieBreak.NONE
-    if tie_break is TieBreak.COMPACT:
+    if tie_break is TieBreak.COMPACT and not (budget is not None and budget.exhausted):
         count = sum(1 for v in problem.variables() if v.name.startswith("y_") and (v.varValue or 0) > 0.5)
         second, read_second = min_matches_model(sub, forbidden=forbidden, max_matches=count)
-        rep2 = solve(second, solver, time_limit=time_limit, absolute_gap=0.999, check=False,
-                     name=f"compact tie-break, {sub.label}")
+        rep2 = kept(solve(second, solver, time_limit=limit(0.5), absolute_gap=0.999, check=False,
+                          name=f"compact tie-break, {sub.label}"))
         reports.append(rep2)
         if rep2.status.has_solution:
             problem, read = second, read_second
     matches, residuals = read()
     _fix_integers(problem)
-    polish = solve(problem, solver, time_limit=time_limit, check=False,
-                   name=f"loads with the matches fixed, {sub.label}")
+    polish = kept(solve(problem, solver, time_limit=limit(1.0), check=False,
+                        name=f"loads with the matches fixed, {sub.label}"))
     reports.append(polish)
     if polish.status is SolveStatus.OPTIMAL:
         matches, residuals = read()
@@ -608,8 +751,13 @@ class MatchPlan:
             out[m.hot, m.cold] = out.get((m.hot, m.cold), 0.0) + m.load
         return out
 
-    def allowed(self, top: float | None = None, bottom: float | None = None) -> set[tuple[str, str]]:
-        """The (hot, cold) pairs matched in the subnetworks lying between two shifted temperatures.
+    @property
+    def notes(self) -> tuple[str, ...]:
+        """How the matches of a subnetwork were found when not by the fewest-matches MILP."""
+        return tuple(s.note for s in self.subnetworks if s.note)
+
+    def matches_within(self, top: float | None = None, bottom: float | None = None) -> tuple[Match, ...]:
+        """The matches of the subnetworks lying between two shifted temperatures.
 
         Parameters
         ----------
@@ -619,12 +767,17 @@ class MatchPlan:
             several when utility levels add pinches of their own).
         """
         tol = 1e-9 * max(1.0, float(np.max(np.abs(self.transshipment.intervals.temperatures))))
-        out = set()
+        out = []
         for s in self.subnetworks:
             t = s.subnetwork.temperatures
             if (top is None or t[0] <= top + tol) and (bottom is None or t[-1] >= bottom - tol):
-                out.update((m.hot, m.cold) for m in s.matches)
-        return out
+                out += s.matches
+        return tuple(out)
+
+    def allowed(self, top: float | None = None, bottom: float | None = None) -> set[tuple[str, str]]:
+        """The (hot, cold) pairs matched in the subnetworks lying between two shifted temperatures
+        (``top``, ``bottom`` [°C] as for :meth:`matches_within`)."""
+        return {(m.hot, m.cold) for m in self.matches_within(top, bottom)}
 
     def to_dict(self) -> dict:
         return {"dtmin": self.transshipment.intervals.dt_min, "free_utilities": self.free_utilities,
@@ -644,8 +797,8 @@ class MatchPlan:
 
 def plan_matches(streams: StreamTable, dt_min: float, utilities: Sequence[Utility] | None = None, *,
                  solver: SolverName | str | None = None, time_limit: float = 60.0,
-                 tie_break: TieBreak = TieBreak.NONE, forbidden: Iterable[tuple[str, str]] = ()
-                 ) -> MatchPlan:
+                 tie_break: TieBreak = TieBreak.NONE, forbidden: Iterable[tuple[str, str]] = (),
+                 budget: Budget | None = None) -> MatchPlan:
     """Cheapest utility duties, then the fewest matches with their heat loads, subnetwork by subnetwork.
 
     Runs :func:`transshipment`, splits at its pinches (:func:`subnetworks`) and runs :func:`min_matches`
@@ -665,6 +818,9 @@ def plan_matches(streams: StreamTable, dt_min: float, utilities: Sequence[Utilit
     solver, time_limit, tie_break, forbidden
         As for :func:`min_matches`; ``time_limit`` [s] bounds each solve (two LP stages, then the solves
         of every subnetwork).
+    budget : Budget, optional
+        Wall-clock budget of the whole plan, used instead of ``time_limit``: the LPs take a fifth of it,
+        each subnetwork a part in proportion to the size of its model.
 
     Returns
     -------
@@ -680,9 +836,17 @@ def plan_matches(streams: StreamTable, dt_min: float, utilities: Sequence[Utilit
     ({'hot utility': 50.0, 'cold utility': 30.0}, 6, 7)
     """
     forbidden = _pairs(forbidden)
-    t = transshipment(streams, dt_min, utilities, solver=solver, time_limit=time_limit)
-    parts = tuple(min_matches(s, solver=solver, time_limit=time_limit, tie_break=tie_break,
-                              forbidden=forbidden) for s in subnetworks(t))
+    t = transshipment(streams, dt_min, utilities, solver=solver,
+                      time_limit=time_limit if budget is None else budget.share(0.2))
+    subs = subnetworks(t)
+    if budget is None:
+        parts = tuple(min_matches(s, solver=solver, time_limit=time_limit, tie_break=tie_break,
+                                  forbidden=forbidden) for s in subs)
+    else:
+        weights = [len(s.hot) * len(s.cold) * s.size for s in subs]
+        parts = tuple(min_matches(s, solver=solver, tie_break=tie_break, forbidden=forbidden,
+                                  budget=budget.part(w / max(sum(weights[k:]), 1)))
+                      for k, (s, w) in enumerate(zip(subs, weights)))
     note = ""
     if t.free_utilities:
         hot, cold = t.intervals.utilities

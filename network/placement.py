@@ -30,7 +30,7 @@ import pulp
 
 from .solvers import new_variable
 
-__all__ = ["Side", "PlacedUnit", "Placement", "stage_model"]
+__all__ = ["Side", "PlacedUnit", "Placement", "stage_model", "interval_placement"]
 
 
 @dataclass(frozen=True)
@@ -72,6 +72,13 @@ class Side:
         if self.isothermal:
             return self.temperatures[0]
         return float(np.interp(enthalpy, self.enthalpies, self.temperatures))
+
+    def enthalpy(self, temperature: float) -> float:
+        """Heat exchanged from the inlet down (hot) or up (cold) to ``temperature`` [kW], clipped to the side."""
+        t, e = np.asarray(self.temperatures), np.asarray(self.enthalpies)
+        if t[0] > t[-1]:
+            t, e = t[::-1], e[::-1]
+        return float(np.interp(temperature, t, e))
 
 
 @dataclass(frozen=True)
@@ -205,13 +212,17 @@ def stage_model(hot: Sequence[Side], cold: Sequence[Side], allowed: set[tuple[st
             c_cold_end = min(j.temperatures) if j.utility else temp[j.name, k + 1]
             prob += h_hot_end - c_hot_end >= need - gamma * (1 - z[i.name, j.name, k])
             prob += h_cold_end - c_cold_end >= need - gamma * (1 - z[i.name, j.name, k])
+    by_side: dict[tuple[str, bool], list] = {}
+    for key, v in q.items():
+        by_side.setdefault((key[0], True), []).append((key[2], v))
+        by_side.setdefault((key[1], False), []).append((key[2], v))
     for side in (*hot, *cold):
-        mine = [v for key, v in q.items() if key[0 if side.hot else 1] == side.name]
+        mine = by_side.get((side.name, side.hot), [])
         if side.utility:
-            prob += pulp.lpSum(mine) == side.duty
+            prob += pulp.lpSum(v for _, v in mine) == side.duty
             continue
         for k in range(K):
-            stage = pulp.lpSum(v for key, v in q.items() if key[0 if side.hot else 1] == side.name and key[2] == k)
+            stage = pulp.lpSum(v for kk, v in mine if kk == k)
             if side.hot:
                 prob += e[side.name, k + 1] - e[side.name, k] == stage
             else:
@@ -266,3 +277,154 @@ def stage_model(hot: Sequence[Side], cold: Sequence[Side], allowed: set[tuple[st
         return Placement(tuple(sorted(units, key=lambda u: (u.stage, u.hot, u.cold))), K)
 
     return prob, read
+
+
+@dataclass(eq=False)
+class _Piece:
+    side: Side
+    k: int              # position from the hot end (shifted interval; -1 hot utility, large cold utility)
+    t_in: float
+    t_out: float
+    heat: float
+    left: float
+
+
+def _pieces(side: Side, grid: np.ndarray, tol: float) -> list[_Piece]:
+    """A side cut at the shifted grid (hottest first); a utility is one piece over its whole range."""
+    if side.utility:
+        return [_Piece(side, -1 if side.hot else len(grid), max(side.temperatures) if side.hot else
+                       min(side.temperatures), min(side.temperatures) if side.hot else max(side.temperatures),
+                       side.duty, side.duty)]
+    s = -side.shift if side.hot else side.shift
+    hi, lo = max(side.temperatures), min(side.temperatures)
+    out = []
+    for k in range(grid.size - 1):
+        top, bottom = float(min(grid[k] - s, hi)), float(max(grid[k + 1] - s, lo))
+        if top - bottom <= 1e-12 * max(abs(top), 1.0):
+            continue
+        heat = abs(side.enthalpy(top) - side.enthalpy(bottom))
+        if heat > tol:
+            out.append(_Piece(side, k, top if side.hot else bottom, bottom if side.hot else top, heat, heat))
+    return out
+
+
+def interval_placement(hot: Sequence[Side], cold: Sequence[Side], preferred: set[tuple[str, str]] = frozenset()
+                       ) -> Placement:
+    """A placement without a solver: units interval by interval, every stream split where it must be.
+
+    The sides are cut at every shifted breakpoint (the temperature intervals of the problem table).
+    Going down the intervals, each piece of a cold side takes heat from pieces of hot sides at or above
+    it (pieces of the same interval or hotter ones), each pairing a unit on parallel branches of both
+    pieces; the shifted grid makes every such unit keep the sum of its sides' shifts at both ends.  Pairs
+    in ``preferred`` (the planned matches) and pairs already used come first; afterwards units that
+    follow each other on unsplit pieces of the same pair are merged.  Many more units than the fewest,
+    but there always is one when the sides balance at the energy targets: the last resort of the design.
+
+    Parameters
+    ----------
+    hot, cold : sequence of Side
+    preferred : set of (hot name, cold name)
+
+    Returns
+    -------
+    Placement
+
+    Raises
+    ------
+    ValueError
+        When some cold piece cannot be served (the sides do not balance at the targets).
+
+    Examples
+    --------
+    >>> h = Side("H", True, (150.0, 50.0), (0.0, 200.0), 5.0)
+    >>> c = Side("C", False, (40.0, 120.0), (0.0, 200.0), 5.0)
+    >>> [(u.hot, u.cold, u.duty) for u in interval_placement([h], [c]).units]
+    [('H', 'C', 200.0)]
+    """
+    sides = (*hot, *cold)
+    scale = max(max(s.duty for s in sides), 1.0)
+    tol = 1e-9 * scale
+    grid = sorted({round(t - s.shift if s.hot else t + s.shift, 9) for s in sides if not s.utility
+                   for t in s.temperatures}, reverse=True)
+    grid_a = np.asarray(grid, dtype=float)
+    hp = [p for s in hot for p in _pieces(s, grid_a, tol)]
+    cp = sorted((p for s in cold for p in _pieces(s, grid_a, tol)), key=lambda p: (p.k, -p.heat))
+    used: set[tuple[str, str]] = set()
+    last: dict[tuple[str, str], int] = {}   # hot piece a pair used last: the next one that continues it wins
+    raw = []
+    for c in cp:
+        need = c.heat
+        while need > tol:
+            cands = [h for h in hp if h.left > tol and not (h.side.utility and c.side.utility)
+                     and h.k <= c.k and h.t_in - c.t_out >= h.side.shift + c.side.shift - 1e-9
+                     and h.t_out - c.t_in >= h.side.shift + c.side.shift - 1e-9]
+            if not cands:
+                raise ValueError(f"no hot side can serve '{c.side.name}' between {c.t_in:g} and {c.t_out:g} °C")
+            pair = {h: (h.side.name, c.side.name) for h in cands}
+            h = max(cands, key=lambda h: (pair[h] in preferred, pair[h] in used,
+                                          h.k - last.get(pair[h], -9) in (0, 1), h.left))
+            x = min(need, h.left)
+            h.left -= x
+            need -= x
+            used.add(pair[h])
+            last[pair[h]] = h.k
+            raw.append([h, c, x])
+    units = []
+    for h, c, x in raw:
+        hf = 1.0 if h.side.utility else min(1.0, x / h.heat)
+        cf = 1.0 if c.side.utility else min(1.0, x / c.heat)
+        units.append(PlacedUnit(h.side.name, c.side.name, max(h.k, 0), x, h.t_in, h.t_out, c.t_in, c.t_out, hf, cf))
+    return Placement(tuple(_merged(units, {x.name: x for x in sides})), max(grid_a.size - 1, 1))
+
+
+def _merged(units: list[PlacedUnit], sides: dict[str, Side]) -> list[PlacedUnit]:
+    """Join units of one pair that follow each other along the streams.
+
+    Units *a* (hotter) and *b* of one pair join when, on each process side, either *b* continues *a*
+    (*a*'s outlet is *b*'s inlet) on branches of equal share, or both use the same piece (their shares
+    add up); at least one side must continue.  The pieces come from the shifted grid, so the joined unit
+    keeps the approach at its ends and at the joint.  An isothermal utility side joins as it is; units
+    on a non-isothermal utility are left alone (the approach inside could break).
+    """
+    units = list(units)
+
+    def side_join(hs: Side, a_in, a_out, a_f, b_in, b_out, b_f):
+        """(inlet, outlet, share, continued) of the joined side, or None; a_* hotter for a hot side."""
+        if hs.utility:
+            return (a_in, a_out, 1.0, False) if hs.isothermal else None
+        if abs(a_out - b_in) <= 1e-9 and abs(a_f - b_f) <= 1e-9:
+            return a_in, b_out, a_f, True
+        if abs(a_in - b_in) <= 1e-9 and abs(a_out - b_out) <= 1e-9:
+            return a_in, a_out, min(1.0, a_f + b_f), False
+        return None
+
+    def join(a: PlacedUnit, b: PlacedUnit) -> PlacedUnit | None:
+        if (a.hot, a.cold) != (b.hot, b.cold):
+            return None
+        h = side_join(sides[a.hot], a.hot_in, a.hot_out, a.hot_fraction, b.hot_in, b.hot_out, b.hot_fraction)
+        c = side_join(sides[a.cold], b.cold_in, b.cold_out, b.cold_fraction, a.cold_in, a.cold_out,
+                      a.cold_fraction)   # a cold side runs from b's inlet up to a's outlet
+        if h is None or c is None:
+            return None
+        return PlacedUnit(a.hot, a.cold, min(a.stage, b.stage), a.duty + b.duty, h[0], h[1], c[0], c[1],
+                          h[2], c[2])
+
+    by_pair: dict[tuple[str, str], list[PlacedUnit]] = {}
+    for u in units:
+        by_pair.setdefault((u.hot, u.cold), []).append(u)
+    units = []
+    for group in by_pair.values():
+        changed = True
+        while changed:
+            changed = False
+            for a in group:
+                for b in group:
+                    m = None if a is b else join(a, b)
+                    if m is not None:
+                        group = [u for u in group if u is not a and u is not b] + [m]
+                        changed = True
+                        break
+                if changed:
+                    break
+        units += group
+    return sorted(units, key=lambda u: (u.stage, u.hot, u.cold))

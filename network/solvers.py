@@ -54,6 +54,7 @@ __all__ = [
     "resolve_solver",
     "solve",
     "new_variable",
+    "Budget",
 ]
 
 
@@ -466,3 +467,88 @@ def new_variable(problem: pulp.LpProblem, name: str, low=None, up=None, cat=pulp
     if hasattr(problem, "add_variable"):
         return problem.add_variable(name, low, up, cat)
     return pulp.LpVariable(name, low, up, cat)  # pragma: no cover - older PuLP
+
+
+class Budget:
+    """One wall-clock budget shared by the solves of a run.
+
+    Every solve asks for its share of what is left (:meth:`share`); a part of the run that holds several
+    solves takes a sub-budget (:meth:`part`) that draws on the same clock.  Solves that stop at their
+    share are collected in :attr:`hits` (shared with every part), so the run can say which ones did.
+
+    Parameters
+    ----------
+    total : float
+        Wall-clock time of the whole run [s], > 0.
+    parent : Budget, optional
+        The budget this one is a part of (internal; use :meth:`part`).
+
+    Examples
+    --------
+    >>> b = Budget(60.0)
+    >>> 0 < b.share(0.5) <= 30.0
+    True
+    >>> p = b.part(0.25)
+    >>> p.total <= 15.0, p.hits is b.hits
+    (True, True)
+    """
+
+    clock = staticmethod(time.monotonic)
+    """The clock every budget reads [s] (a class attribute, so a test can replace it)."""
+
+    def __init__(self, total: float, parent: Budget | None = None) -> None:
+        try:
+            total = float(total)
+        except (TypeError, ValueError):
+            raise InputError(f"time limit must be a number of seconds > 0, got {total!r}") from None
+        if not (total > 0) or not math.isfinite(total):
+            raise InputError(f"time limit must be a finite number of seconds > 0, got {total!r}")
+        self.total = total
+        self.start = self.clock()
+        self.root = parent.root if parent is not None else self
+        self.hits: list[SolveReport] = parent.hits if parent is not None else []
+
+    @property
+    def remaining(self) -> float:
+        """Time left of this budget [s], never below 0."""
+        return max(0.0, self.total - (self.clock() - self.start))
+
+    @property
+    def floor(self) -> float:
+        """Shortest limit worth giving a solve [s]: 1 % of the whole run, at least 0.05 s, at most 1 s."""
+        return min(1.0, max(0.05, 0.01 * self.root.total))
+
+    @property
+    def exhausted(self) -> bool:
+        """True when less than :attr:`floor` is left: the caller should use a method without a solver."""
+        return self.remaining < self.floor
+
+    def share(self, fraction: float = 1.0) -> float:
+        """Time limit of the next solve: ``fraction`` of what is left [s], at least :attr:`floor`.
+
+        Parameters
+        ----------
+        fraction : float
+            Share of the remaining time [-], in (0, 1].
+        """
+        return max(self.floor, min(1.0, max(fraction, 0.0)) * self.remaining)
+
+    def part(self, fraction: float) -> Budget:
+        """A sub-budget of ``fraction`` of what is left [-] (at least twice :attr:`floor` while that is
+        left), on the same clock and list of hits."""
+        left = self.remaining
+        return Budget(max(min(1.0, fraction) * left, min(2 * self.floor, left), 1e-9), parent=self)
+
+    def record(self, report: SolveReport) -> SolveReport:
+        """Note a solve that stopped at its limit (time limit with or without a solution); return it."""
+        if report.status in (SolveStatus.TIME_LIMIT, SolveStatus.ERROR):
+            self.hits.append(report)
+        return report
+
+    def hits_note(self) -> str:
+        """One sentence naming the solves that stopped at their share ("" when none did)."""
+        if not self.hits:
+            return ""
+        parts = [f"'{r.problem}' ({r.time_limit:.3g} s, {r.status.value})" for r in self.hits]
+        return (f"time budget {self.root.total:g} s for the whole run; solves that stopped at their share: "
+                + ", ".join(parts))

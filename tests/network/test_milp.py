@@ -367,3 +367,79 @@ def test_no_integer_solution_in_time_falls_back_to_the_relaxation(reference, mon
         cold[m.cold] += m.load
     assert hot == pytest.approx(below.hot_duties)
     assert cold == pytest.approx(below.cold_duties)
+
+
+def test_no_solution_at_all_falls_back_to_a_greedy_heat_load_distribution(reference, monkeypatch):
+    # When neither the fewest-matches MILP nor its LP relaxation return a solution, a greedy heat-load
+    # distribution is used: not minimal, but it closes the subnetwork's balance at the published targets
+    # (Sinnott, C&R Vol. 6, Table 3.6: hot utility 50 kW, cold utility 30 kW at ΔTmin 10 K) and only
+    # sends heat down the cascade; the note says so.
+    import heatloom.network.milp as milp_module
+    from heatloom.network.solvers import SolveReport, SolveStatus
+
+    def stalled(problem, *args, **kwargs):
+        return SolveReport("highs", SolveStatus.ERROR, None, None, None, 0.0, 1.0, kwargs.get("name", ""),
+                           "Time limit reached")
+
+    monkeypatch.setattr(milp_module, "solve", stalled)
+    data, streams = reference("targeting_sinnott_four_stream")
+    t = transshipment(streams, 10)
+    assert t.utility_duties == pytest.approx({"hot utility": 50.0, "cold utility": 30.0})
+    for sub in subnetworks(t):
+        result = milp_module.min_matches(sub)
+        assert not result.optimal and "greedy" in result.note and len(result.reports) == 2
+        hot = {n: 0.0 for n in sub.hot}
+        cold = {n: 0.0 for n in sub.cold}
+        for m in result.matches:
+            hot[m.hot] += m.load
+            cold[m.cold] += m.load
+            assert (m.hot, m.cold) != ("hot utility", "cold utility")
+        assert hot == pytest.approx(sub.hot_duties)
+        assert cold == pytest.approx(sub.cold_duties)
+        # heat released above a boundary covers what is taken above it (cascade residuals never negative)
+        assert min(min(r) for r in result.residuals.values()) >= 0
+        for i, name in enumerate(sub.hot):
+            given = np.cumsum(sub.hot_heat[i])
+            taken = np.zeros(sub.size)
+            for m in result.matches:
+                if m.hot == name:
+                    for k, q in m.interval_loads:
+                        taken[k - sub.first] += q
+            assert np.all(np.cumsum(taken) <= given + 1e-9)
+
+
+def test_plan_with_a_budget_shares_it(reference):
+    # Every solve of a plan with a budget is given a share of what was left, never more than the budget.
+    from heatloom.network.solvers import Budget
+
+    data, streams = reference("targeting_sinnott_four_stream")
+    budget = Budget(5.0)
+    plan = plan_matches(streams, 10, budget=budget)
+    assert plan.number_of_matches == 6    # as without a budget (Sinnott Table 3.6 data, see above)
+    assert all(r.time_limit <= 5.0 for r in plan.reports)
+    assert all(r.time_limit < 5.0 for r in plan.reports[2:])
+
+
+def test_alternative_sets_of_fewest_matches_are_all_found(reference):
+    # Below the pinch of Sinnott's problem (C&R Vol. 6, Table 3.6 data) every set of three matches that
+    # can carry the heat is found by exhaustive search with the independent transportation LP above;
+    # alternative_matches, cutting off each set it has returned, must return exactly those, then none.
+    from heatloom.network.milp import alternative_matches
+
+    data, streams = reference("targeting_sinnott_four_stream")
+    below = subnetworks(transshipment(streams, 10))[1]
+    first = min_matches(below)
+    pairs = [(i, j) for i in range(len(below.hot)) for j in range(len(below.cold))
+             if not (below.hot_is_utility[i] and below.cold_is_utility[j])]
+    by_search = {frozenset((below.hot[i], below.cold[j]) for i, j in chosen)
+                 for chosen in itertools.combinations(pairs, first.number_of_matches)
+                 if transportation_feasible(below.hot_heat, below.cold_heat, chosen)}
+    assert len(by_search) >= 2
+    tried = [{(m.hot, m.cold) for m in first.matches}]
+    while True:
+        alt, report = alternative_matches(below, first.matches, tried)
+        if alt is None:
+            break
+        assert report.optimal and alt not in tried
+        tried.append(alt)
+    assert {frozenset(t) for t in tried} == by_search

@@ -184,3 +184,26 @@ def test_min_matches_model_same_optimum_on_both(reference):
     b = min_matches(below, solver="cbc", time_limit=30)
     assert a.report.objective == pytest.approx(b.report.objective) == pytest.approx(4.0)
     assert a.number_of_matches == b.number_of_matches == 4
+
+
+# ------------------------------------------------------------------------------------------- budget
+
+def test_budget_shares_what_is_left(monkeypatch):
+    now = [100.0]
+    monkeypatch.setattr(solvers.Budget, "clock", staticmethod(lambda: now[0]))
+    b = solvers.Budget(10.0)
+    assert b.share(0.5) == pytest.approx(5.0)
+    now[0] += 4.0
+    assert b.remaining == pytest.approx(6.0)
+    assert b.share(0.5) == pytest.approx(3.0)
+    p = b.part(0.5)
+    assert p.total == pytest.approx(3.0) and p.hits is b.hits
+    now[0] += 3.0
+    assert p.remaining == 0.0 and p.exhausted and not b.exhausted
+    assert p.share(1.0) == pytest.approx(b.floor) and b.floor == pytest.approx(0.1)
+    report = solvers.SolveReport("highs", SolveStatus.ERROR, None, None, None, 1.0, 1.0, "x", "Time limit")
+    p.record(report)
+    p.record(solvers.SolveReport("highs", SolveStatus.OPTIMAL, 1.0, 0.0, 1.0, 1.0, 1.0, "y"))
+    assert b.hits == [report] and "'x'" in b.hits_note() and "10 s" in b.hits_note()
+    with pytest.raises(InputError):
+        solvers.Budget(0)
