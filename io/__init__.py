@@ -8,15 +8,7 @@ from .points import DEFAULT_FIT_TOLERANCE, fit_points, fit_vertices
 from .scenarios import SCENARIO_COLUMNS, read_price_scenarios
 from .site import MAINS_COLUMNS, Site, read_mains, read_site
 from .streams import POINT_COLUMNS, SEGMENT_COLUMNS, read_streams
-from .tables import (
-    ALIASES,
-    COLUMN_KINDS,
-    Table,
-    TableColumn,
-    find_header,
-    parse_column_mapping,
-    read_table,
-)
+from .tables import ALIASES, COLUMN_KINDS, Table, TableColumn, find_header, parse_column_mapping, read_table
 from .units import UNIT_REGISTRY, QuantityKind, UnitConversion, from_canonical, parse_unit, to_canonical
 from .utilities import UTILITY_COLUMNS, read_utilities
 

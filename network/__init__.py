@@ -6,17 +6,8 @@ topologies and their refinement) are imported from their modules: :mod:`heatloom
 """
 
 from .design import design_mer
-from .milp import (
-    Match,
-    MatchKind,
-    MatchPlan,
-    Subnetwork,
-    SubnetworkMatches,
-    TieBreak,
-    min_matches,
-    plan_matches,
-    subnetworks,
-)
+from .matches import Match, MatchKind, Subnetwork, SubnetworkMatches, TieBreak, subnetworks
+from .milp import MatchPlan, min_matches, plan_matches
 from .solvers import SolveReport, SolverName, SolveStatus, available_solvers, resolve_solver, solve
 from .structure import Cooler, Exchanger, Heater, Network, approach_violations, check_network
 from .tac.search import design_tac

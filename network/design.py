@@ -137,7 +137,7 @@ def _place(hot: list[Side], cold: list[Side], allowed: set[tuple[str, str]], lab
     binaries is not built (it could not be solved in a share of the budget).
     Returns the placement, the solve reports and a note when it did not come from the first model.
     """
-    from .milp import alternative_matches
+    from .matches import alternative_matches
 
     stages = max(len(hot), len(cold))
     reports: list[SolveReport] = []

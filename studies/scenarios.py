@@ -44,15 +44,7 @@ from ..pinch.area import CapitalBasis, area_targets
 from ..pinch.targets import target
 from ..tasks import Progress, TaskRunner, describe_executor
 from ..validation import check_dt_min
-from .sweep import (
-    DesignPoint,
-    SweepPoint,
-    design_point,
-    dt_min_grid,
-    evaluate_points,
-    sweep,
-    target_case,
-)
+from .sweep import DesignPoint, SweepPoint, design_point, dt_min_grid, evaluate_points, sweep, target_case
 
 __all__ = [
     "ScenarioCase",

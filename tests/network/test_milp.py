@@ -20,7 +20,8 @@ from synthesis_problems import SYNTHESIS_SMALL, TARGETING, problems
 
 from heatloom.errors import InfeasibleError, InputError
 from heatloom.model import Stream, StreamTable, Utility
-from heatloom.network.milp import MatchKind, TieBreak, min_matches, plan_matches, subnetworks
+from heatloom.network.matches import MatchKind, TieBreak, subnetworks
+from heatloom.network.milp import min_matches, plan_matches
 from heatloom.network.transshipment import transshipment
 from heatloom.pinch import target
 
@@ -424,7 +425,7 @@ def test_alternative_sets_of_fewest_matches_are_all_found(reference):
     # Below the pinch of Sinnott's problem (C&R Vol. 6, Table 3.6 data) every set of three matches that
     # can carry the heat is found by exhaustive search with the independent transportation LP above;
     # alternative_matches, cutting off each set it has returned, must return exactly those, then none.
-    from heatloom.network.milp import alternative_matches
+    from heatloom.network.matches import alternative_matches
 
     data, streams = reference("targeting_sinnott_four_stream")
     below = subnetworks(transshipment(streams, 10))[1]

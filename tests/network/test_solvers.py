@@ -16,7 +16,8 @@ import pytest
 
 from heatloom.errors import InputError, SolverError, SolverUnavailableError
 from heatloom.network import solvers
-from heatloom.network.milp import min_matches, plan_matches, subnetworks
+from heatloom.network.matches import subnetworks
+from heatloom.network.milp import min_matches, plan_matches
 from heatloom.network.solvers import SolverName, SolveStatus, available_solvers, resolve_solver, solve
 from heatloom.network.transshipment import transshipment
 

@@ -31,13 +31,7 @@ from heatloom.model import Segment, Stream, StreamTable, Utility, UtilityKind
 from heatloom.model.existing import ExistingUnit, UnitRole
 from heatloom.network import design_mer
 from heatloom.pinch import target
-from heatloom.retrofit.diagnose import (
-    area_efficiency,
-    cross_pinch,
-    diagnose,
-    existing_dt_min,
-    retrofit_curve,
-)
+from heatloom.retrofit.diagnose import area_efficiency, cross_pinch, diagnose, existing_dt_min, retrofit_curve
 from heatloom.retrofit.existing import ExistingNetwork
 from heatloom.retrofit.network_pinch import network_pinch
 from heatloom.retrofit.simulate import simulate
