@@ -451,7 +451,7 @@ def scenario_study(zones, dt_min_range: tuple[float, float], utilities: Sequence
     if designs:
         failed = sum(1 for c in cases if c.design is not None and c.design.error and c.targets.feasible)
         notes.append("designs: maximum energy recovery with fewest units (heatloom.network.design.design_mer), "
-                     f"each MILP solve limited to {design_time_limit:g} s"
+                     f"each design within a time budget of {design_time_limit:g} s"
                      + (f"; {failed} feasible cases have no design (see design_error)" if failed else ""))
     at_end = sum(1 for o in optima if any("end of the range" in n for n in o.notes))
     if at_end:

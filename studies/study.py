@@ -247,7 +247,7 @@ class Study:
             rows.append(("ΔTmin sweep", f"{s.sweep_range[0]:g} to {s.sweep_range[1]:g} K by {s.sweep_step:g} K; "
                          f"capital target: the target area shared among {basis}", s.sweep_note))
         rows.append(("maximum-energy-recovery design",
-                     f"solver {s.solver or 'preferred installed (HiGHS, else CBC)'}, {s.time_limit:g} s per solve",
+                     f"solver {s.solver or 'preferred installed (HiGHS, else CBC)'}, {s.time_limit:g} s per design (one budget for all its solves)",
                      "default" if s.solver is None else "given"))
         if s.tac:
             rows.append(("lowest-total-annual-cost design",

@@ -442,7 +442,7 @@ def _task_refine(case: TargetCase, low: float, high: float, xtol: float) -> Swee
 def design_point(case: TargetCase, x: float, solver: str | None = None, time_limit: float = 60.0) -> DesignPoint:
     """Design a maximum-energy-recovery network of a case at ΔTmin ``x`` [K] and cost it (a task of its own).
 
-    ``time_limit`` [s] bounds each MILP solve of :func:`heatloom.network.design.design_mer`; a design that
+    ``time_limit`` [s] is the wall-clock budget of the whole :func:`heatloom.network.design.design_mer` run; a design that
     is infeasible or whose solver fails gives a point with its ``error``.
     """
     from ..network.design import design_mer
@@ -570,7 +570,7 @@ def sweep(streams: StreamTable, dt_min_range: tuple[float, float], utilities: Se
     progress : callable, optional
         Called as ``progress(phase, done, total)`` while tasks complete (for progress bars).
     solver, design_time_limit
-        Passed to design (MILP solver name, time limit of each solve [s]).
+        Passed to design (MILP solver name, wall-clock budget of each design [s]).
     price_factor : float, optional
         Multiplies every utility price [-] (the given utilities', else the assumed ones'), for price
         scenarios (:mod:`heatloom.studies.scenarios`); default 1.
