@@ -18,6 +18,7 @@ from pathlib import Path
 import numpy as np
 
 from ..errors import InputError
+from .cases import case_role
 from .cells import looks_like_formula
 
 __all__ = ["OutputDirectory", "to_jsonable", "targets_workbook_sheets", "FIGURE_FORMATS", "neutralise"]
@@ -128,7 +129,14 @@ class OutputDirectory:
                              "heatloom's earlier results")
 
     def target(self, name: str) -> Path:
-        """Check that ``name`` may be written and return its full path (creating the folder)."""
+        """Check that ``name`` may be written and return its full path (creating the folder).
+
+        No output takes a name that a case folder reads as an input (:func:`heatloom.io.cases.case_role`), so
+        that results written into a case folder can never replace, or be mistaken for, one of its tables.
+        """
+        role = case_role(name)
+        if role is not None:
+            raise ValueError(f"output name {name!r} would be read as the {role} of a case folder; name it otherwise")
         p = self.path / name
         self._refuse(p)
         try:

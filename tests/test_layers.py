@@ -42,7 +42,7 @@ LAYERS = (
 
 # io modules that read user files: they may use the core and each other only
 READERS = frozenset(f"heatloom.io.{m}" for m in (
-    "tables", "cells", "units", "streams", "utilities", "points", "costs", "network_table", "site", "scenarios",
+    "tables", "cells", "cases", "units", "streams", "utilities", "points", "costs", "network_table", "site", "scenarios",
 ))
 
 

@@ -9,6 +9,7 @@ from collections.abc import Collection, Mapping
 from pathlib import Path
 
 from .. import defaults
+from ..io.cases import CASE_SUFFIXES, case_candidates
 
 EXIT_OK, EXIT_UNEXPECTED, EXIT_INPUT, EXIT_INFEASIBLE = 0, 1, 2, 3
 """Exit codes of every command."""
@@ -368,54 +369,8 @@ class ProgressBars:
 # --------------------------------------------------------------------------------------------------
 # case folders
 
-_TABLE_SUFFIXES = (".csv", ".xlsx", ".xlsm")
-
-CASE_SUFFIXES = {"streams": _TABLE_SUFFIXES, "utilities": _TABLE_SUFFIXES,
-                 "costs": (".json", ".yaml", ".yml", ".xlsx", ".xlsm"), "network": _TABLE_SUFFIXES,
-                 "mains": _TABLE_SUFFIXES, "prices": _TABLE_SUFFIXES}
-"""Keyword found in a case folder's file name (case ignored) → the suffixes a file of that role may have."""
-
 CASE_ROLES = {"streams": "stream table", "utilities": "utilities", "costs": "costs", "network": "existing network"}
 """Keyword → the name of the role in messages and in the result of :func:`find_case_files` (the defaults)."""
-
-
-def case_candidates(folder: str | Path, keywords: Collection[str] = tuple(CASE_SUFFIXES)) -> dict[str, list[Path]]:
-    """Every file of a case folder whose name holds one of the keywords, by keyword (no check of counts).
-
-    Only the folder's own files are looked at (not its subfolders, not hidden or lock files), with the
-    suffixes of :data:`CASE_SUFFIXES`; keywords with no file are left out.
-
-    Raises
-    ------
-    InputError
-        The folder is missing, or a file's name fits two of the keywords.
-
-    Examples
-    --------
-    >>> import tempfile, pathlib
-    >>> d = pathlib.Path(tempfile.mkdtemp())
-    >>> for n in ("east_streams.csv", "west_streams.csv", "mains.csv"):
-    ...     _ = (d / n).write_text("x")
-    >>> {k: [f.name for f in v] for k, v in case_candidates(d).items()}
-    {'streams': ['east_streams.csv', 'west_streams.csv'], 'mains': ['mains.csv']}
-    """
-    from ..errors import InputError
-
-    folder = Path(folder)
-    if not folder.is_dir():
-        raise InputError("case folder not found", file=str(folder))
-    found: dict[str, list[Path]] = {}
-    for f in sorted(folder.iterdir()):
-        if not f.is_file() or f.name.startswith((".", "~$")):
-            continue
-        name = f.stem.lower()
-        keys = [k for k in keywords if k in name and f.suffix.lower() in CASE_SUFFIXES[k]]
-        if len(keys) > 1:
-            raise InputError(f"the name of {f.name} fits several roles ({', '.join(keys)}); rename it or give "
-                             "the files one by one", file=str(folder))
-        for k in keys:
-            found.setdefault(k, []).append(f)
-    return found
 
 
 def find_case_files(folder: str | Path, roles: Mapping[str, str] | None = None, *,

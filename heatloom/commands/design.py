@@ -145,7 +145,7 @@ def run(args) -> int:
 
         out = OutputDirectory(args.out, [p for p in (args.file, args.utilities, args.costs) if p],
                               force=args.force)
-        out.check(["network.json", "network.csv", "network.xlsx", "grid_diagram.png", "grid_diagram.svg"])
+        out.check(["design.json", "design_units.csv", "design.xlsx", "grid_diagram.png", "grid_diagram.svg"])
     if tac:
         from .. import defaults as network_data
         from ..network.tac.search import design_tac
@@ -180,10 +180,10 @@ def run(args) -> int:
     if out is not None:
         from ..io.figures import grid_diagram
 
-        out.json("network.json", result)
+        out.json("design.json", result)
         frame = net.to_frame()
-        out.csv("network.csv", frame)
-        out.workbook("network.xlsx", {"units": frame, "streams": streams.to_frame()})
+        out.csv("design_units.csv", frame)
+        out.workbook("design.xlsx", {"units": frame, "streams": streams.to_frame()})
         out.figures("grid_diagram", grid_diagram(net, streams, approach="EMAT" if tac else "ΔTmin"))
     return finish(args, result, format_network(net, str(args.file), dt_note, "EMAT" if tac else "ΔTmin"), out)
 

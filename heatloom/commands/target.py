@@ -112,7 +112,7 @@ def run(args) -> int:
         from ..io.export import OutputDirectory
 
         out = OutputDirectory(args.out, [p for p in (args.file, args.utilities) if p], force=args.force)
-        names = ["targets.json", "streams.csv", "problem_table.csv", "targets.xlsx"]
+        names = ["targets.json", "stream_table.csv", "problem_table.csv", "targets.xlsx"]
         if args.plot:
             names += [f"{n}.{e}" for n in ("composite_curves", "shifted_composite_curves",
                                           "grand_composite_curve") for e in ("png", "svg")]
@@ -128,7 +128,7 @@ def run(args) -> int:
         from ..io.export import targets_workbook_sheets
 
         out.json("targets.json", result)
-        out.csv("streams.csv", streams.to_frame())
+        out.csv("stream_table.csv", streams.to_frame())
         out.csv("problem_table.csv", t.table.to_frame())
         out.workbook("targets.xlsx", targets_workbook_sheets(t))
         if args.plot:

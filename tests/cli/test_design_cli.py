@@ -66,9 +66,10 @@ def test_demo_case_with_utilities_and_out(capsys, tmp_path):
                        DEMO / "utilities.csv", "--out", out_dir)
     assert code == 0
     assert "total annual cost" in out and "licensed engineers" in out
-    for n in ("network.json", "network.csv", "network.xlsx", "grid_diagram.png", "grid_diagram.svg"):
+    # no output takes a name a case folder reads as an input (once network.csv replaced a case's network table)
+    for n in ("design.json", "design_units.csv", "design.xlsx", "grid_diagram.png", "grid_diagram.svg"):
         assert (out_dir / n).stat().st_size > 0
-    units = pd.read_excel(out_dir / "network.xlsx", sheet_name="units")
+    units = pd.read_excel(out_dir / "design.xlsx", sheet_name="units")
     assert {"duty [kW]", "area [m²]"} <= set(units.columns)
     # the second run refuses to overwrite
     code, _, err = run(capsys, "design", DEMO / "streams.csv", "--out", out_dir)
@@ -147,3 +148,21 @@ def test_operating_hours_come_from_the_costs_file_and_the_flag_overrides_them(tm
     _, utilities, costs = read_inputs(args(costs=str(c), hours_per_year=8000.0))
     assert [x.cost for x in utilities] == pytest.approx([80.0, 8.0])
     assert "Operating hours: 8000 h/year (given with --hours-per-year)" in costs.describe()
+
+
+def test_design_into_a_case_folder_leaves_its_network_table_alone(capsys, tmp_path):
+    # once: design --out CASE --force replaced the case's existing-network table and called it earlier results
+    case = tmp_path / "case"
+    case.mkdir()
+    for name in ("streams.csv", "utilities.csv"):
+        (case / name).write_text((DEMO / name).read_text(encoding="utf-8"), encoding="utf-8")
+    table = "unit,hot,cold,area\nE-1,reactor effluent,reactor feed,10\n"
+    (case / "network.csv").write_text(table, encoding="utf-8")
+    code, _, err = run(capsys, "design", case / "streams.csv", "--utilities", case / "utilities.csv",
+                       "--out", case, "--force")
+    assert code == 0, err
+    assert (case / "network.csv").read_text(encoding="utf-8") == table
+    from heatloom.io.cases import case_role
+
+    assert not [p.name for p in case.iterdir() if case_role(p.name) and p.name not in
+                ("streams.csv", "utilities.csv", "network.csv")]

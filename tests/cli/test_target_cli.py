@@ -73,7 +73,7 @@ def test_out_writes_files_and_never_overwrites(capsys, sinnott_csv, tmp_path):
     code, _, _ = run(capsys, "target", sinnott_csv, "--out", out_dir, "--plot")
     assert code == 0
     names = {p.name for p in out_dir.iterdir()}
-    for n in ("targets.json", "streams.csv", "problem_table.csv", "targets.xlsx", "composite_curves.png",
+    for n in ("targets.json", "stream_table.csv", "problem_table.csv", "targets.xlsx", "composite_curves.png",
               "composite_curves.svg", "grand_composite_curve.png", "grand_composite_curve.svg"):
         assert n in names
     before = (out_dir / "targets.json").read_bytes()
@@ -86,7 +86,7 @@ def test_out_writes_files_and_never_overwrites(capsys, sinnott_csv, tmp_path):
 
 
 def test_input_file_is_never_written_over(capsys, tmp_path):
-    src = tmp_path / "streams.csv"
+    src = tmp_path / "stream_table.csv"          # named like one of target's outputs, in the --out folder
     src.write_text(SINNOTT_CSV, encoding="utf-8")
     code, _, err = run(capsys, "target", src, "--out", tmp_path, "--force")
     assert code == 2 and "input files" in err

@@ -47,7 +47,7 @@ def test_target_outputs_carry_no_live_formula(capsys, tmp_path):
     out_dir = tmp_path / "o"
     code, _, err = run(capsys, "target", src, "--dtmin", "10", "--out", out_dir)
     assert code == 0, err
-    with open(out_dir / "streams.csv", encoding="utf-8", newline="") as f:
+    with open(out_dir / "stream_table.csv", encoding="utf-8", newline="") as f:
         names = [row[0] for row in csv.reader(f)][1:]
     assert "'" + HOSTILE in names and "'+SUM(A1)" in names and "'@lookup" in names and "'-3 feed" in names
     assert not any(n.startswith(FORMULA_TRIGGERS) for n in names)
@@ -67,7 +67,7 @@ def test_force_replaces_a_hard_link_without_touching_the_input(capsys, tmp_path)
     src.write_text(TABLE, encoding="utf-8")
     out_dir = tmp_path / "o"
     out_dir.mkdir()
-    os.link(src, out_dir / "streams.csv")                  # the output's name, hard-linked to the input
+    os.link(src, out_dir / "stream_table.csv")             # an output's name, hard-linked to the input
     code, _, err = run(capsys, "target", src, "--out", out_dir, "--force")
     assert code == 2 and "input files" in err             # the same file as an input: refused
     assert src.read_text(encoding="utf-8") == TABLE

@@ -57,6 +57,6 @@ def _same(a: StreamTable, b: StreamTable, rel: float) -> None:
 def test_a_written_stream_table_reads_back_exactly(suffix, table):
     with tempfile.TemporaryDirectory() as d:
         out = OutputDirectory(Path(d))
-        path = out.csv("streams.csv", table.to_frame()) if suffix == "csv" else \
-            out.workbook("streams.xlsx", {"streams": table.to_frame()})
+        path = out.csv("table.csv", table.to_frame()) if suffix == "csv" else \
+            out.workbook("table.xlsx", {"streams": table.to_frame()})
         _same(table, read_streams(path), 0.0 if suffix == "csv" else 1e-15)
