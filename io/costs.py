@@ -1,4 +1,4 @@
-"""Reading the costs file into :class:`heatloom.equipment.cost.CostSettings`.
+"""Reading the costs file into :class:`heatloom.model.CostSettings`.
 
 Accepted forms (chosen by the file suffix; an unknown suffix is tried as JSON, then YAML):
 
@@ -113,7 +113,7 @@ def _law(value, key: str, source, rows) -> CostLaw:
 
 def costs_from_mapping(mapping, *, source: str | os.PathLike | None = None,
                        rows: Mapping[str, int] | None = None) -> CostSettings:
-    """Check a parsed costs mapping and build :class:`~heatloom.equipment.cost.CostSettings`.
+    """Check a parsed costs mapping and build :class:`~heatloom.model.CostSettings`.
 
     Parameters
     ----------

@@ -633,7 +633,7 @@ def area_targets(targets: Targets, costs=None, *, default_film_coefficient: floa
     targets : Targets
         Energy targets at one ΔTmin; its utility placement when utilities were given, else the ideal
         utilities (:func:`target_utilities`).
-    costs : heatloom.network.CostSettings, optional
+    costs : heatloom.model.CostSettings, optional
         Cost laws and annualisation; the defaults of :mod:`heatloom.defaults` when omitted.
     default_film_coefficient : float, optional
         Film coefficient assumed where a stream or utility has none [kW/(m²·K)].

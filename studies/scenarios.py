@@ -239,7 +239,7 @@ def _zones(zones) -> dict[str, StreamTable]:
         return {"process": zones}
     if isinstance(zones, Mapping):
         items = list(zones.items())
-    else:   # a sequence of heatloom.pinch.site.Zone, or of stream tables (named zone 1, zone 2, ...)
+    else:   # a sequence of heatloom.model.Zone, or of stream tables (named zone 1, zone 2, ...)
         items = [(f"zone {i}", z) if isinstance(z, StreamTable) else (getattr(z, "name", f"zone {i}"), getattr(z, "streams", z))
                  for i, z in enumerate(zones, start=1)]
     if not items:

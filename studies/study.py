@@ -124,7 +124,7 @@ class Study:
     targets : Targets or NotComputed
     utilities : tuple of Utility or None
         The utility table given; None when none was (ideal utilities are then assumed).
-    costs : heatloom.network.CostSettings
+    costs : heatloom.model.CostSettings
         Cost laws in force (given or the package defaults).
     costs_source : str or None
         File the costs came from; None for the package defaults.
@@ -199,7 +199,7 @@ class Study:
 
     @property
     def utilities_in_force(self) -> tuple[Utility, ...]:
-        """The utilities given, else the two assumed by design (:func:`heatloom.network.design.ideal_utilities`)."""
+        """The utilities given, else the two assumed by design (:func:`heatloom.pinch.utilities.ideal_utilities`)."""
         if self.utilities is not None:
             return tuple(self.utilities)
         from ..pinch.utilities import ideal_utilities
@@ -360,7 +360,7 @@ def compute_study(streams: StreamTable, dt_min: float, utilities: Sequence[Utili
         Default: the package's illustrative cost laws.
     existing : heatloom.retrofit.existing.ExistingNetwork, optional
         An existing network to diagnose and to find ranked, costed retrofit options for.
-    retrofit_costs : heatloom.retrofit.changes.RetrofitCosts, optional
+    retrofit_costs : heatloom.model.RetrofitCosts, optional
         Cost laws of the retrofit changes (default: the package's illustrative ones).
     default_film_coefficient : float, optional
         Assumed where a stream or utility has no film coefficient [kW/(m²·K)].

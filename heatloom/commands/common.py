@@ -157,7 +157,7 @@ def zone_streams(zones):
 
 def read_scenario_inputs(zones, *, utilities=None, utilities_sheet=None, prices=None, costs=None,
                          hours_per_year=None):
-    """The inputs of a price-scenario study over ``zones`` (heatloom.pinch.site.Zone objects).
+    """The inputs of a price-scenario study over ``zones`` (heatloom.model.Zone objects).
 
     Returns (utilities or None, price scenarios from the prices table, cost settings or None, names of the
     streams and utilities without a film coefficient).
