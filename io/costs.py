@@ -172,6 +172,8 @@ def costs_from_mapping(mapping, *, source: str | os.PathLike | None = None,
         kwargs.setdefault("years", None)
     if "hours_per_year" in kwargs:
         kwargs["hours_source"] = "costs file"
+    if "currency" in kwargs:
+        kwargs["currency_source"] = "costs file"
     kwargs.setdefault("hours_per_year", defaults.HOURS_PER_YEAR)
     try:
         return CostSettings(**kwargs)

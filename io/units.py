@@ -55,6 +55,7 @@ __all__ = [
     "parse_unit",
     "to_canonical",
     "from_canonical",
+    "currency_of",
 ]
 
 UNIT_REGISTRY = pint.UnitRegistry()
@@ -403,6 +404,28 @@ def _describe(dim) -> str:
 
 def _round15(x: float) -> float:
     return float(f"{x:.15g}")
+
+
+_CURRENCY_SIGNS = {"$": "USD", "€": "EUR", "£": "GBP", "¥": "JPY", "₹": "INR"}
+
+
+def currency_of(text: str | None) -> str | None:
+    """The currency a price unit names (``"EUR"`` for ``€/MWh``, ``"USD"`` for ``$/kW/yr`` or
+    ``kUSD/MW/y``), or None when it names none (``money/(kW·year)``, no unit).
+
+    Examples
+    --------
+    >>> currency_of("EUR/MWh"), currency_of("[€/kW/yr]"), currency_of("k$/MW/y"), currency_of("money/(kW·year)")
+    ('EUR', 'EUR', 'USD', None)
+    """
+    if not text:
+        return None
+    for atom in re.split(r"[\s/*·.()\[\]{}^-]+|per", str(text)):
+        m = _CURRENCY.match(atom)
+        if m and atom not in _ATOM_ALIASES and not atom.lower().endswith(("money", "currency")):
+            code = atom[1:] if m.group("k") else atom
+            return _CURRENCY_SIGNS.get(code, code)
+    return None
 
 
 @functools.lru_cache(maxsize=1024)

@@ -23,6 +23,7 @@ from collections.abc import Mapping
 from ..errors import InputError
 from ..model import StreamTable, Utility, UtilityKind
 from .tables import read_table
+from .units import currency_of
 
 __all__ = ["UTILITY_COLUMNS", "read_utilities"]
 
@@ -87,6 +88,7 @@ def read_utilities(path: str | os.PathLike, *, sheet: str | None = None,
     ts = table.numbers("T_supply", what="supply temperature")
     tt = table.numbers("T_target", what="target temperature")
     cost = table.numbers("cost", what="cost")
+    currency = currency_of(table.columns["cost"].unit)
     h = table.optional_numbers("h", what="film coefficient h")
     kinds = table.text("kind") if "kind" in table else [""] * n
     if process is not None:
@@ -125,7 +127,7 @@ def read_utilities(path: str | os.PathLike, *, sheet: str | None = None,
             raise table.error(f"film coefficient h must be > 0, got {h[i]:g} kW/(m²·K)", index=i, column="h")
         try:
             out.append(Utility(name, float(ts[i]), float(tt[i]), float(cost[i]), kind,
-                               None if h[i] != h[i] else float(h[i]), row=int(table.rows[i])))
+                               None if h[i] != h[i] else float(h[i]), row=int(table.rows[i]), currency=currency))
         except InputError as e:
             raise table.locate(e, i) from None
     return tuple(out)

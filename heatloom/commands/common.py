@@ -14,7 +14,7 @@ from ..io.cases import CASE_SUFFIXES, case_candidates
 EXIT_OK, EXIT_UNEXPECTED, EXIT_INPUT, EXIT_INFEASIBLE = 0, 1, 2, 3
 """Exit codes of every command."""
 
-__all__ = ["folder_tables", "note_lines", "EXIT_OK", "EXIT_UNEXPECTED", "EXIT_INPUT", "EXIT_INFEASIBLE", "positive", "positive_or_zero", "add_shared", "add_table_options",
+__all__ = ["settle_currency", "price_hours", "read_cost_settings", "folder_tables", "note_lines", "EXIT_OK", "EXIT_UNEXPECTED", "EXIT_INPUT", "EXIT_INFEASIBLE", "positive", "positive_or_zero", "add_shared", "add_table_options",
            "note", "read_inputs", "whole_number", "add_output_options", "dt_min_of", "fmt", "solves_summary", "print_json", "finish", "CASE_SUFFIXES",
            "CASE_ROLES", "case_candidates", "find_case_files", "ProgressBars", "add_cost_target_options",
            "add_site_table_options", "check_cost_target_inputs", "number_list", "zone_streams",
@@ -171,6 +171,7 @@ def read_scenario_inputs(zones, *, utilities=None, utilities_sheet=None, prices=
     table = None if utilities is None else read_utilities(utilities, sheet=utilities_sheet,
                                                           process=zone_streams(zones), hours_per_year=hours)
     plans = () if prices is None else read_price_scenarios(prices, table, hours_per_year=hours)
+    settings = settle_currency(settings, table)
     missing = sorted({m for z in zones for m in missing_film_coefficients(z.streams, table or ())})
     return table, plans, settings, missing
 
@@ -196,7 +197,7 @@ def read_inputs(args):
     if not getattr(args, "quiet", False):
         for n in notes:
             print(f"note: {n} (ignored; --strict refuses unknown columns)", file=sys.stderr)
-    return streams, utilities, costs
+    return streams, utilities, settle_currency(costs, utilities)
 
 
 def read_cost_settings(path, hours_per_year=None):
@@ -212,6 +213,43 @@ def read_cost_settings(path, hours_per_year=None):
     if hours_per_year is not None:
         costs = replace(costs or CostSettings(), hours_per_year=hours_per_year, hours_source="--hours-per-year")
     return costs
+
+
+def settle_currency(costs, utilities):
+    """The cost settings with the currency the utility prices name, when the costs file names none; a
+    costs file and prices in two currencies are refused (nothing is converted between currencies).
+
+    Examples
+    --------
+    >>> from heatloom.model import CostSettings, Utility
+    >>> u = [Utility("steam", 180, 179, 50.0, currency="EUR")]
+    >>> c = settle_currency(None, u)
+    >>> c.currency, c.currency_source
+    ('EUR', 'utility prices')
+    >>> settle_currency(CostSettings(currency="USD", currency_source="costs file"), u)
+    Traceback (most recent call last):
+    ...
+    heatloom.errors.InputError: the costs file is in USD but the utility prices are in EUR; give both in one currency (heatloom converts no currency)
+    """
+    from dataclasses import replace
+
+    from ..errors import InputError
+    from ..io.units import currency_of
+    from ..model import CostSettings
+
+    named = sorted({u.currency for u in utilities or () if u.currency})
+    if len(named) > 1:
+        raise InputError(f"utility prices are in several currencies ({', '.join(named)}); give them in one")
+    if not named:
+        return costs
+    (price,) = named
+    if costs is not None and costs.currency_source == "costs file":
+        stated = currency_of(costs.currency) or costs.currency.strip().upper()
+        if stated != price:
+            raise InputError(f"the costs file is in {costs.currency} but the utility prices are in {price}; give "
+                             "both in one currency (heatloom converts no currency)")
+        return costs
+    return replace(costs or CostSettings(), currency=price, currency_source="utility prices")
 
 
 def price_hours(costs) -> float | None:

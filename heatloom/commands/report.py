@@ -38,6 +38,7 @@ from .common import (
     print_json,
     read_cost_settings,
     read_scenario_inputs,
+    settle_currency,
 )
 
 __all__ = ["register", "run", "run_site", "is_site_folder", "find_case_files", "site_scenarios", "OUTPUT_FILES"]
@@ -290,6 +291,7 @@ def run(args) -> int:
     if "utilities" in files:
         utilities = read_utilities(files["utilities"], sheet=args.utilities_sheet, process=streams,
                                    hours_per_year=price_hours(costs))
+        costs = settle_currency(costs, utilities)
     retrofit_costs = None
     if "costs" in files and "existing network" in files:
         from ..io.costs import read_retrofit_costs

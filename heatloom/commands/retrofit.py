@@ -19,6 +19,7 @@ from .common import (
     positive,
     price_hours,
     read_cost_settings,
+    settle_currency,
     solves_summary,
     whole_number,
 )
@@ -214,6 +215,7 @@ def run(args) -> int:
     if "utilities" in files:
         utilities = read_utilities(files["utilities"], sheet=args.utilities_sheet, process=streams,
                                    hours_per_year=price_hours(costs))
+        costs = settle_currency(costs, utilities)
     network = ExistingNetwork.from_table(streams, read_network(files["network"]), utilities)
     rcosts = read_retrofit_costs(files["costs"]) if "costs" in files else None
     from ..retrofit.options import retrofit_options

@@ -218,6 +218,9 @@ class CostSettings:
         Plant life [year]; required when not annualised.
     hours_per_year : float
         Operating hours [h/year], for prices per kWh.
+    currency_source : str, optional
+        Where the currency label comes from, as the outputs state it: ``"default"``, ``"costs file"`` or
+        ``"utility prices"``.
     hours_source : str, optional
         Where the operating hours come from, as the outputs state it: ``"default"``, ``"costs file"`` or
         ``"--hours-per-year"`` (the command-line flag overrides the costs file).
@@ -245,6 +248,7 @@ class CostSettings:
     years: float | None = defaults.YEARS
     hours_per_year: float = defaults.HOURS_PER_YEAR
     hours_source: str = field(default="default", compare=False)
+    currency_source: str = field(default="default", compare=False)
 
     def __post_init__(self) -> None:
         if not isinstance(self.currency, str) or not self.currency.strip():
@@ -322,7 +326,8 @@ class CostSettings:
             return " (default)" if getattr(self, key) == getattr(d, key) else ""
 
         per = " per year" if self.annualised else ""
-        parts = [f"Costs in {self.currency}{tag('currency')}.",
+        parts = [f"Costs in {self.currency}" + {"default": " (default)", "costs file": " (from the costs file)"}.get(
+                     self.currency_source, f" (from the {self.currency_source})") + ".",
                  f"Exchanger capital cost per unit or shell: {self.exchanger.text(self.currency)}{per}, "
                  f"A in m²{tag('exchanger')}."]
         for key in ("heater", "cooler"):

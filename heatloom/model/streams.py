@@ -381,6 +381,8 @@ class Utility:
         Hot or cold; required when the two temperatures are equal.
     film_coefficient : float, optional
         [kW/(m²·K)]
+    currency : str, optional
+        The money the price is in, when the table names it (``"EUR"`` for ``cost [€/MWh]``); a label only.
 
     Examples
     --------
@@ -395,6 +397,7 @@ class Utility:
     kind: UtilityKind | None = None
     film_coefficient: float | None = None
     row: int | None = field(default=None, compare=False)
+    currency: str | None = field(default=None, compare=False)
 
     def __post_init__(self) -> None:
         ts = _temperature(self.supply_temperature, "supply temperature", "T_supply")

@@ -166,3 +166,30 @@ def test_design_into_a_case_folder_leaves_its_network_table_alone(capsys, tmp_pa
 
     assert not [p.name for p in case.iterdir() if case_role(p.name) and p.name not in
                 ("streams.csv", "utilities.csv", "network.csv")]
+
+
+def test_the_currency_comes_from_the_prices_or_the_costs_file_and_they_must_agree(tmp_path):
+    # once: prices in EUR/MWh and no costs file gave results labelled USD, "Costs in USD (default)"
+    import argparse
+
+    from heatloom.commands.common import read_inputs
+    from heatloom.errors import InputError
+
+    s = tmp_path / "s.csv"
+    s.write_text("name,T_supply,T_target,CP,h\nH1,180,60,3,1\nC1,20,135,2,1\n", encoding="utf-8")
+    u = tmp_path / "u.csv"
+    u.write_text("name,T_supply,T_target,cost [EUR/MWh],h\nsteam,250,249,30,4\nCW,20,30,2,2\n", encoding="utf-8")
+    usd = tmp_path / "costs.json"
+    usd.write_text('{"currency": "USD", "annualised": true, "exchanger": {"fixed": 0, "per_area": 1000, '
+                   '"exponent": 0.6}}', encoding="utf-8")
+
+    def args(**kw):
+        base = dict(file=str(s), sheet=None, columns=None, fit_tolerance=0.5, utilities=str(u), utilities_sheet=None,
+                    costs=None, hours_per_year=8000.0, quiet=True, strict=False)
+        return argparse.Namespace(**{**base, **kw})
+
+    _, utilities, costs = read_inputs(args())
+    assert {x.currency for x in utilities} == {"EUR"} and costs.currency == "EUR"
+    assert costs.describe().startswith("Costs in EUR (from the utility prices).")
+    with pytest.raises(InputError, match="the costs file is in USD but the utility prices are in EUR"):
+        read_inputs(args(costs=str(usd)))
