@@ -104,20 +104,17 @@ class OutputDirectory:
         self.written: list[Path] = []
 
     def _is_input(self, p: Path) -> bool:
-        if not p.exists():
-            return False
-        for q in self.protected:
+        """Whether ``p`` is one of the run's input files, under this name, another link or a hard link."""
+        def same(q: Path) -> bool:
             try:
-                if q.exists() and os.path.samefile(p, q):
-                    return True
+                return q.exists() and os.path.samefile(p, q)
             except OSError:
-                continue
-            if p.resolve() == q.resolve():
-                return True
-        return False
+                return False
+
+        return p.exists() and any(same(q) for q in self.protected)
 
     def _refuse(self, p: Path) -> None:
-        if self._is_input(p) or p.resolve() in {q.resolve() for q in self.protected}:
+        if self._is_input(p):
             raise InputError(f"refusing to write {p}: it is one of the input files of this run")
         if p.is_symlink():
             folder = self.path.resolve()

@@ -206,6 +206,7 @@ def _segment_streams(table: Table) -> list[Stream]:
     if (i := _first(~np.isnan(from_mass) & ~np.isnan(cp) & (np.abs(cp - from_mass) > _CP_DUTY_RTOL * cp))) is not None:
         raise table.error(f"CP {cp[i]:.6g} kW/K disagrees with mass flow × specific heat = {from_mass[i]:.6g} kW/K; give one "
                           "of them or make them agree", index=i, column="CP")
+    given_cp = cp
     cp = np.where(np.isnan(cp), from_mass, cp)
     if (i := _first(np.isnan(cp) & np.isnan(duty))) is not None:
         raise table.error("empty cell: give CP or duty (or a mass flow and a specific heat)", index=i,
@@ -230,7 +231,7 @@ def _segment_streams(table: Table) -> list[Stream]:
             raise table.error(f"{_as_written(table, column, i)} is above {defaults.MAX_TEMPERATURE:g} °C, more than "
                               "any process reaches: check the unit of the column", index=i, column=column)
     if (i := _first(cp > defaults.MAX_HEAT_CAPACITY_FLOW)) is not None:
-        column = "CP" if "CP" in table and not np.isnan(table.optional_numbers("CP")[i]) else "duty"
+        column = "CP" if not np.isnan(given_cp[i]) else "duty"
         raise table.error(f"heat capacity flow rate CP {cp[i]:g} kW/K is above {defaults.MAX_HEAT_CAPACITY_FLOW:g} "
                           "kW/K, beyond any process stream: check the unit of the column", index=i, column=column)
     _check_film_and_contribution(table, h, dtc)

@@ -492,14 +492,7 @@ def folder_tables(path: str | Path, given: Mapping[str, object]) -> dict[str, Pa
     >>> sorted(folder_tables(d, {"utilities": None, "prices": "other.csv", "costs": None}))
     ['utilities']
     """
-    from ..errors import InputError
-
     if not Path(path).is_dir():
         return {}
-    wanted = tuple(role for role, value in given.items() if not value)
-    found = case_candidates(path, wanted) if wanted else {}
-    for role, files in found.items():
-        if len(files) > 1:
-            raise InputError(f"several files could be the {role} table: {', '.join(f.name for f in files)}; keep "
-                             f"one, or name it with --{role}", file=str(path))
-    return {role: files[0] for role, files in found.items()}
+    wanted = {role: role for role, value in given.items() if not value}
+    return find_case_files(path, wanted, required=()) if wanted else {}
