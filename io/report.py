@@ -306,7 +306,7 @@ def _sweep(study: Study, page: Page) -> str:
 
 
 def _network_section(study: Study, page: Page, net, section: str, what: str, key: str, intro: str) -> str:
-    from .figures import grid_diagram
+    from .grid_figures import grid_diagram
     from .workbook import network_frame
 
     if not _done(net):

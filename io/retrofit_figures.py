@@ -2,7 +2,7 @@
 investment, and the retrofit targets (energy saving against extra area).
 
 Both follow the project's one visual style (:data:`heatloom.io.figures.STYLE`).  The grid diagrams are
-:func:`heatloom.io.figures.grid_diagram` of :meth:`heatloom.retrofit.simulate.Simulation.to_network`, with
+:func:`heatloom.io.grid_figures.grid_diagram` of :meth:`heatloom.retrofit.simulate.Simulation.to_network`, with
 the unit names written beside each unit and, on the proposed network, the new and changed units framed.
 """
 
@@ -10,7 +10,8 @@ from __future__ import annotations
 
 from collections.abc import Collection
 
-from .figures import STYLE, grid_diagram, new_axes
+from .figures import STYLE, new_axes
+from .grid_figures import grid_diagram
 
 __all__ = ["HIGHLIGHT", "grid_figures", "savings_investment_figure", "retrofit_curve_figure"]
 

@@ -178,7 +178,7 @@ def run(args) -> int:
         result["starts"] = args.starts
         result["rounds"] = args.rounds
     if out is not None:
-        from ..io.figures import grid_diagram
+        from ..io.grid_figures import grid_diagram
 
         out.json("design.json", result)
         frame = net.to_frame()

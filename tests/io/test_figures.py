@@ -10,7 +10,7 @@ import matplotlib.pyplot as plt  # noqa: E402
 import pytest  # noqa: E402
 from refdata import load_reference  # noqa: E402
 
-from heatloom.io.figures import grid_diagram
+from heatloom.io.grid_figures import grid_diagram
 from heatloom.io.scenario_figures import MAX_PANELS, scenario_cost_figure
 from heatloom.model.prices import price_factor_scenarios
 from heatloom.network.design import design_mer
