@@ -32,6 +32,7 @@ from ..errors import InputError
 from ..model import Utility
 from ..model.prices import PriceScenario
 from .tables import read_table
+from .units import currency_of
 
 __all__ = ["SCENARIO_COLUMNS", "read_price_scenarios"]
 
@@ -89,6 +90,13 @@ def read_price_scenarios(path: str | os.PathLike, utilities: Sequence[Utility] |
     cost = table.numbers("cost", required=False, what="price") if "cost" in table else np.full(n, np.nan)
     factor = table.numbers("factor", required=False, what="price factor") if "factor" in table else np.full(n, np.nan)
     base = None if utilities is None else {u.name: u for u in utilities}
+    currency = currency_of(table.columns["cost"].unit) if "cost" in table else None
+    if currency is not None and base is not None:
+        named = sorted({u.currency for u in base.values() if u.currency} - {currency})
+        if named:
+            raise table.error(f"the scenario prices are in {currency} but the utility table's prices are in "
+                              f"{', '.join(named)}; give both in one currency (heatloom converts no currency)",
+                              column="cost")
     order: list[str] = []
     prices: dict[str, dict[str, float]] = {}
     factors: dict[str, float] = {}
@@ -134,6 +142,6 @@ def read_price_scenarios(path: str | os.PathLike, utilities: Sequence[Utility] |
             raise table.error(f"scenario '{name}' prices utility '{u}' twice", index=i, column="name")
         prices[name][u] = float(cost[i]) if has_cost else base[u].cost * float(factor[i])
     try:
-        return tuple(PriceScenario(s, tuple(prices[s].items()), factors.get(s, 1.0)) for s in order)
+        return tuple(PriceScenario(s, tuple(prices[s].items()), factors.get(s, 1.0), currency) for s in order)
     except InputError as e:   # not expected after the checks above; keep the file in the message anyway
         raise InputError(e.message, file=table.label, column=e.column) from None

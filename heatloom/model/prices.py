@@ -28,6 +28,8 @@ class PriceScenario:
         Utility name → price [money/(kW·year)] for the utilities whose price this scenario sets.
     factor : float, optional
         Multiplies the price of every utility not named in ``prices`` [-] (default 1).
+    currency : str or None, optional
+        Currency code the prices table names (``"EUR"`` for ``cost [EUR/MWh]``); None when it names none.
 
     Examples
     --------
@@ -41,6 +43,7 @@ class PriceScenario:
     name: str
     prices: tuple[tuple[str, float], ...] = ()
     factor: float = 1.0
+    currency: str | None = None
 
     def __post_init__(self) -> None:
         if not isinstance(self.name, str) or not self.name.strip():

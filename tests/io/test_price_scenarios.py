@@ -85,3 +85,17 @@ def test_file_is_never_modified(tmp_path):
     p = write(tmp_path, text)
     read_price_scenarios(p, BASE)
     assert p.read_text(encoding="utf-8") == text
+
+
+def test_the_currency_of_the_prices_is_kept_and_must_match_the_utility_table(tmp_path):
+    p = write(tmp_path, "scenario,utility,cost [EUR/MWh],factor\nx,HP steam,25,\n")
+    (s,) = read_price_scenarios(p, BASE, hours_per_year=8000)
+    assert s.currency == "EUR"
+    assert dict(s.prices) == pytest.approx({"HP steam": 200.0})          # 25 EUR/MWh × 8000 h / 1000
+    usd = tuple(Utility(u.name, u.supply_temperature, u.target_temperature, u.cost, currency="USD") for u in BASE)
+    with pytest.raises(InputError, match=r"prices.csv, column 'cost \[EUR/MWh\]'.*in EUR but the utility table's prices are "
+                                         r"in USD") as e:
+        read_price_scenarios(p, usd, hours_per_year=8000)
+    assert "converts no currency" in str(e.value)
+    (plain,) = read_price_scenarios(write(tmp_path, "scenario,factor\nx,1.3\n", "f.csv"), usd)
+    assert plain.currency is None
