@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import argparse
+from dataclasses import replace
 
 from .. import defaults
 from ..errors import InputError
@@ -17,6 +18,7 @@ from .common import (
     note_lines,
     positive_or_zero,
 )
+from .console import Column, text_table
 
 __all__ = ["register", "run", "format_site", "parse_zone_dt_min"]
 
@@ -91,38 +93,37 @@ def format_site(site, source: str, dt_note: str, mains_source: str | None) -> st
              f"  zones          {len(site.zones)}; mains {len(site.mains)}"
              + (f" ({mains_source})" if mains_source else " (none given: no heat exchanged between zones)"),
              f"  ΔTmin          {site.dt_min:g} K ({dt_note}); site ΔT for steam {site.dt_site:g} K",
-             "",
-             f"  {'zone':<20} {'ΔTmin':>6} {'hot utility':>12} {'cold utility':>12} {'pinch hot/cold':>15} "
-             f"{'above mains':>12} {'below mains':>12}",
-             f"  {'':<20} {'[K]':>6} {'[kW]':>12} {'[kW]':>12} {'[°C]':>15} {'[kW]':>12} {'[kW]':>12}"]
-    for z in site.zones:
-        p = z.targets.pinch
-        pinch = f"{p.hot:g}/{p.cold:g}" if p is not None else "none"
-        lines.append(f"  {z.name[:20]:<20} {z.dt_min:>6g} {z.hot_utility:>12,.1f} {z.cold_utility:>12,.1f} "
-                     f"{pinch:>15} {z.above_mains:>12,.1f} {z.below_mains:>12,.1f}")
+             ""]
+    kw = Column("", "[kW]", ",.1f")
+    lines += text_table(
+        [Column("zone"), Column("ΔTmin", "[K]", "g"), replace(kw, header="hot utility"),
+         replace(kw, header="cold utility"), Column("pinch hot/cold", "[°C]", align=">"),
+         replace(kw, header="above mains"), replace(kw, header="below mains")],
+        [[z.name, z.dt_min, z.hot_utility, z.cold_utility,
+          f"{z.targets.pinch.hot:g}/{z.targets.pinch.cold:g}" if z.targets.pinch is not None else "none",
+          z.above_mains, z.below_mains] for z in site.zones])
     if site.mains:
-        lines += ["",
-                  f"  {'main':<16} {'kind':<8} {'T':>6} {'raised':>10} {'used':>10} {'recovered':>10} "
-                  f"{'letdown in':>10} {'boilers':>10} {'surplus':>10}",
-                  f"  {'':<16} {'':<8} {'[°C]':>6} {'[kW]':>10} {'[kW]':>10} {'[kW]':>10} {'[kW]':>10} "
-                  f"{'[kW]':>10} {'[kW]':>10}"]
-        for b in site.mains:
-            m = b.main
-            if m.is_steam:
-                lines.append(f"  {m.name[:16]:<16} {'steam':<8} {m.temperature:>6g} {b.raised:>10,.1f} "
-                             f"{b.used:>10,.1f} {b.recovered:>10,.1f} {b.letdown_in:>10,.1f} "
-                             f"{b.from_boilers:>10,.1f} {b.surplus:>10,.1f}")
-            else:
-                lines.append(f"  {m.name[:16]:<16} {'cooling':<8} {m.temperature:>6g}   takes "
-                             f"{b.site_duty:,.1f} kW ({b.zone_by_zone_duty:,.1f} kW zone by zone)")
-        steam = [b.main.name for b in site.mains if b.main.is_steam]
+        steam_rows = [b for b in site.mains if b.main.is_steam]
+        if steam_rows:
+            lines += [""] + text_table(
+                [Column("steam main"), Column("T", "[°C]", "g"), replace(kw, header="raised"),
+                 replace(kw, header="used"), replace(kw, header="recovered"), replace(kw, header="letdown in"),
+                 replace(kw, header="boilers"), replace(kw, header="surplus")],
+                [[b.main.name, b.main.temperature, b.raised, b.used, b.recovered, b.letdown_in, b.from_boilers,
+                  b.surplus] for b in steam_rows])
+        cooling = [b for b in site.mains if not b.main.is_steam]
+        if cooling:
+            lines += [""] + text_table(
+                [Column("cooling main"), Column("T", "[°C]", "g"), replace(kw, header="site duty"),
+                 replace(kw, header="zone by zone")],
+                [[b.main.name, b.main.temperature, b.site_duty, b.zone_by_zone_duty] for b in cooling])
+        steam = [b.main.name for b in steam_rows]
         if steam:
-            lines += ["", "  net steam export per zone [kW] (+ could raise, − must take)",
-                      f"  {'zone':<20} " + " ".join(f"{n[:12]:>12}" for n in steam)]
-            for z in site.zones:
-                lines.append(f"  {z.name[:20]:<20} " + " ".join(
-                    f"{z.raised[n] - z.used[n]:>+12,.1f}" if (z.raised[n] or z.used[n]) else f"{'-':>12}"
-                    for n in steam))
+            lines += ["", "  net steam export per zone [kW] (+ could raise, − must take)"]
+            lines += text_table(
+                [Column("zone")] + [Column(n, spec="+,.1f") for n in steam],
+                [[z.name] + [z.raised[n] - z.used[n] if (z.raised[n] or z.used[n]) else "-" for n in steam]
+                 for z in site.zones])
     lines += ["",
               f"  site hot utility    {fmt(site.site_hot_utility):>14}   fuel above the mains "
               f"{fmt(site.fuel_above_mains)}, steam from boilers {fmt(site.boiler_steam)}",

@@ -154,3 +154,22 @@ def test_through_main(capsys, hand_site, tmp_path):
     assert json.loads(capsys.readouterr().out)["saving"]["duty"] == pytest.approx(800.0)
     assert main(["site", str(tmp_path / "missing")]) == 2
     assert "site not found" in capsys.readouterr().err
+
+
+def test_console_tables_widen_for_long_names_instead_of_cutting_them(capsys, hand_site):
+    # Names longer than any fixed column (issue 15: "cooling tower wate" was printed for a longer name).
+    long_zone = "A_zone_with_a_really_long_descriptive_name"
+    (hand_site / "A_streams.csv").rename(hand_site / f"{long_zone}_streams.csv")
+    (hand_site / "mains.csv").write_text("name,T,cost,kind\nLP steam header of the north unit,135,60,steam\n"
+                                         "cooling tower water north bank,25,5,cooling\n", encoding="utf-8")
+    code, out, _ = run(capsys, "site", hand_site)
+    assert code == 0
+    for name in (long_zone, "LP steam header of the north unit", "cooling tower water north bank"):
+        assert name in out
+    # the values still line up under their headings: the duty column of the cooling main ends where its
+    # heading ends (hand value: 1000 kW condensed − 800 kW taken by zone B = 200 kW cooled)
+    lines = out.splitlines()
+    head = next(line for line in lines if line.lstrip().startswith("cooling main"))
+    row = next(line for line in lines if line.lstrip().startswith("cooling tower water north bank"))
+    assert row.split()[-2] == "200.0"
+    assert row.index("200.0") + len("200.0") == head.index("site duty") + len("site duty")
