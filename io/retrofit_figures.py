@@ -2,65 +2,44 @@
 investment, and the retrofit targets (energy saving against extra area).
 
 Both follow the project's one visual style (:data:`heatloom.io.figures.STYLE`).  The grid diagrams are
-:func:`heatloom.io.grid_figures.grid_diagram` of :meth:`heatloom.retrofit.simulate.Simulation.to_network`, with
-the unit names written beside each unit and, on the proposed network, the new and changed units framed.
+:func:`heatloom.io.grid_figures.grid_diagram` of :meth:`heatloom.retrofit.simulate.Simulation.to_network`:
+every unit carries its name from the network table (new units their new names), the new and changed units
+are framed on the proposed network, and units whose duty fell to 0 kW are drawn hollow and grey as removed
+(idle on the existing network).
 """
 
 from __future__ import annotations
 
-from collections.abc import Collection
+from collections.abc import Collection, Mapping
 
 from .figures import STYLE, new_axes
-from .grid_figures import grid_diagram
+from .grid_figures import FRAME, grid_diagram
 
-__all__ = ["HIGHLIGHT", "grid_figures", "savings_investment_figure", "retrofit_curve_figure"]
+__all__ = ["HIGHLIGHT", "IDLE_DUTY", "idle_units", "grid_figures", "savings_investment_figure",
+           "retrofit_curve_figure"]
 
-HIGHLIGHT = {"edgecolor": "#303030", "facecolor": "none", "linestyle": (0, (3, 2)), "linewidth": 1.1}
+HIGHLIGHT = FRAME
 """Frame drawn around new and changed units on the proposed grid diagram."""
 
-
-def _unit_columns(simulation) -> list[tuple[str, str, str | None]]:
-    """(unit name, upper row's stream, lower row's stream or None) in the left-to-right order that
-    grid_diagram draws them (exchangers, heaters, coolers, each sorted by grid column, stable)."""
-    from ..model.existing import UnitRole
-
-    column, _ = simulation.network.grid_positions()
-    ordered = ([u for u in simulation.units if u.role is UnitRole.EXCHANGER]
-               + [u for u in simulation.units if u.role is UnitRole.HEATER]
-               + [u for u in simulation.units if u.role is UnitRole.COOLER])
-    ordered.sort(key=lambda u: column[u.name])
-    out = []
-    for u in ordered:
-        if u.role is UnitRole.EXCHANGER:
-            out.append((u.name, u.hot, u.cold))
-        elif u.role is UnitRole.HEATER:
-            out.append((u.name, u.cold, None))
-        else:
-            out.append((u.name, u.hot, None))
-    return out
+IDLE_DUTY = 0.5
+"""A unit whose simulated duty is at most this, in magnitude, is out of service [kW] (the threshold below
+which the retrofit options call a unit idle)."""
 
 
-def _grid(simulation, streams, title: str, changed: Collection[str] = ()):
-    import matplotlib.patches as mpatches
+def idle_units(simulation) -> list[str]:
+    """Names of the units of a simulated network whose duty is 0 kW (within :data:`IDLE_DUTY`)."""
+    return [u.name for u in simulation.units if abs(u.duty) <= IDLE_DUTY]
 
-    fig = grid_diagram(simulation.to_network(), streams, title=title)
-    ax = fig.axes[0]
-    hot = [s for s in streams if s.is_hot]
-    cold = [s for s in streams if not s.is_hot]
-    rows = {s.name: i for i, s in enumerate(hot)}
-    rows.update({s.name: len(hot) + 0.6 + i for i, s in enumerate(cold)})
-    for k, (name, top, bottom) in enumerate(_unit_columns(simulation), start=1):
-        y_top = -rows[top]
-        ax.text(k, y_top + 0.22, name, ha="center", va="bottom", fontsize=STYLE["font_size"] - 2, color="#505050")
-        if name in changed:
-            y_low = -rows[bottom] if bottom is not None else y_top
-            ax.add_patch(mpatches.FancyBboxPatch((k - 0.3, y_low - 0.3), 0.6, (y_top - y_low) + 0.85,
-                                                 boxstyle="round,pad=0.02", **HIGHLIGHT))
-    return fig
+
+def _grid(simulation, streams, title: str, changed: Collection[str] = (), removed: Mapping[str, str] | None = None):
+    return grid_diagram(simulation.to_network(), streams, title=title, changed=changed, removed=removed or {})
 
 
 def grid_figures(existing, proposed, streams, *, changed: Collection[str] = (), label: str = "proposed"):
     """Grid diagrams of the existing and the proposed network, unit names written, changes framed.
+
+    Units whose duty is 0 kW (:func:`idle_units`) are drawn hollow and grey: "removed" on the proposed
+    network when they were in service before, "idle" otherwise.
 
     Parameters
     ----------
@@ -77,13 +56,16 @@ def grid_figures(existing, proposed, streams, *, changed: Collection[str] = (), 
     tuple of matplotlib.figure.Figure
         (existing, proposed); proposed is None when no proposed network is given.
     """
+    idle_before = idle_units(existing)
     first = _grid(existing, streams, f"Existing network: hot utility {existing.hot_utility:,.0f} kW, "
-                                     f"cold utility {existing.cold_utility:,.0f} kW")
+                                     f"cold utility {existing.cold_utility:,.0f} kW",
+                  removed=dict.fromkeys(idle_before, "idle"))
     if proposed is None:
         return first, None
-    second = _grid(proposed, streams, f"{label}: hot utility {proposed.hot_utility:,.0f} kW, cold utility "
-                                      f"{proposed.cold_utility:,.0f} kW (changed units framed)", changed)
-    return first, second
+    removed = {name: "idle" if name in idle_before else "removed" for name in idle_units(proposed)}
+    title = f"{label}: hot utility {proposed.hot_utility:,.0f} kW, cold utility {proposed.cold_utility:,.0f} kW " \
+            "(changed units framed" + (", removed units hollow)" if "removed" in removed.values() else ")")
+    return first, _grid(proposed, streams, title, changed, removed)
 
 
 def savings_investment_figure(retrofit, *, title: str | None = None):

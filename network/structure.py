@@ -2,7 +2,9 @@
 
 The result objects of design (:class:`Network`, :class:`Exchanger`, :class:`Heater`, :class:`Cooler`) are
 frozen dataclasses whose ``to_dict`` gives the stable JSON shape of ``heatloom design --json`` (see
-DEVELOPERS.md).  :func:`check_network` verifies the energy balance of every stream and of every unit and
+DEVELOPERS.md).  Every unit of a network has a name (``X1``, ``HU-1``, ``CU-1``, ... by :func:`name_units`,
+never a stream's or utility's name), the same in the JSON, the units table (:meth:`Network.to_frame`, which
+is also the network table a retrofit study reads) and the grid diagram.  :func:`check_network` verifies the energy balance of every stream and of every unit and
 the minimum approach at both ends of every unit (and at the segment breaks inside it, by
 :func:`smallest_approach`, which the rating of existing networks uses too); a network that fails it is
 never returned by design.
@@ -11,6 +13,7 @@ never returned by design.
 from __future__ import annotations
 
 import functools
+import string
 from collections.abc import Sequence
 from dataclasses import dataclass, field, fields, replace
 from typing import ClassVar
@@ -25,6 +28,13 @@ __all__ = [
     "Heater",
     "Cooler",
     "Network",
+    "UNIT_PREFIXES",
+    "EXCHANGER_TYPE_LABELS",
+    "FRAME_COLUMNS",
+    "grid_key",
+    "name_units",
+    "unit_names",
+    "stream_positions",
     "stream_enthalpy",
     "stream_temperature",
     "smallest_approach",
@@ -112,6 +122,9 @@ class _Unit:
         LMTD correction factor F [-].
     geometry : dict or None
         The geometry report of the exchanger type, when one was asked for.
+    name : str or None
+        The unit's name (tag) in tables and figures.  Left None by the builders: :class:`Network` names
+        its unnamed units (:func:`name_units`); names given (e.g. an existing network's tags) are kept.
     """
 
     _JSON_TAIL: ClassVar[tuple[str, ...]] = ("area", "cost", "u", "lmtd", "region", "stage", "shells", "f_factor",
@@ -125,12 +138,13 @@ class _Unit:
     shells: int | None = None
     f_factor: float | None = None
     geometry: dict | None = field(default=None, compare=False)
+    name: str | None = field(default=None, compare=False)
 
     def to_dict(self) -> dict:
-        """The stable JSON shape: the unit's own attributes in their order, then ``_JSON_TAIL``."""
-        tail = self._JSON_TAIL
-        return {**{f.name: getattr(self, f.name) for f in fields(self) if f.name not in tail},
-                **{k: getattr(self, k) for k in tail}}
+        """The stable JSON shape: ``name``, the unit's own attributes in their order, then ``_JSON_TAIL``."""
+        tail = self._JSON_TAIL + ("name",)
+        return {"name": self.name, **{f.name: getattr(self, f.name) for f in fields(self) if f.name not in tail},
+                **{k: getattr(self, k) for k in self._JSON_TAIL}}
 
 
 @dataclass(frozen=True)
@@ -150,8 +164,8 @@ class Exchanger(_Unit):
     region : str
         Pinch subnetwork the unit belongs to ("above", "below" or "whole").
 
-    The size, cost and stage are keyword-only (see ``area``, ``cost``, ``u``, ``lmtd``, ``stage``,
-    ``shells``, ``f_factor``, ``geometry`` of the heater and cooler alike).
+    The size, cost, stage and name are keyword-only (see ``area``, ``cost``, ``u``, ``lmtd``, ``stage``,
+    ``shells``, ``f_factor``, ``geometry``, ``name`` of the heater and cooler alike).
     """
 
     _JSON_TAIL: ClassVar[tuple[str, ...]] = ("area", "cost", "u", "lmtd", "shells", "f_factor", "region", "stage",
@@ -199,6 +213,134 @@ class Cooler(_Unit):
     region: str = "below"
 
 
+UNIT_PREFIXES: dict[str, str] = {"exchanger": "X", "heater": "HU-", "cooler": "CU-"}
+"""Prefix of the names :func:`name_units` gives (then 1, 2, ... in grid order): exchangers ``X1``, heaters
+``HU-1``, coolers ``CU-1``.  Chosen so that the common stream names (H1, C1) and utility names (HU, CU)
+are never a unit's name; a name that still meets a stream, utility or other unit name gets a letter
+(``X1a``, ``X1b``, ...)."""
+
+EXCHANGER_TYPE_LABELS: dict[str, str] = {"counter_current": "counter-current", "co_current": "co-current",
+                                         "shell_and_tube_1_2": "1-2", "double_pipe": "double pipe"}
+"""Exchanger type (:class:`heatloom.model.ExchangerType` value) → its word in the units table."""
+
+_REGION_RANK = {"above": 0, "whole": 0, "below": 2}
+
+
+def grid_key(unit) -> tuple[int, int]:
+    """Left-to-right place of a unit on the grid diagram [-]: pinch region (above or whole, then below)
+    and stage of the placement, hot end first; a lower key comes first from every hot stream's supply end
+    and last from every cold stream's supply end.
+
+    Examples
+    --------
+    >>> grid_key(Heater("C", "steam", 100.0, 50, 90, 180, 179, stage=1)) < grid_key(
+    ...     Cooler("H", "water", 80.0, 60, 40, 20, 30, stage=0, region="below"))
+    True
+    """
+    return (_REGION_RANK.get(unit.region, 1), unit.stage)
+
+
+def _free(name: str, taken: set[str]) -> str:
+    """``name``, or the first of ``name`` + a, b, ..., z, aa, ... that is not taken."""
+    if name not in taken:
+        return name
+    k = 0
+    while True:
+        k += 1
+        suffix, n = "", k
+        while n:
+            n, r = divmod(n - 1, 26)
+            suffix = string.ascii_lowercase[r] + suffix
+        if name + suffix not in taken:
+            return name + suffix
+
+
+def name_units(exchangers: Sequence, heaters: Sequence, coolers: Sequence) -> tuple[tuple, tuple, tuple]:
+    """The units with a name each: names given are kept, the others named ``X1``..., ``HU-1``...,
+    ``CU-1``... (:data:`UNIT_PREFIXES`).
+
+    Each kind is numbered in grid order (:func:`grid_key`, then the given order), so on the grid diagram
+    the numbers rise from left to right.  No name meets a stream or utility name of the units, nor
+    another unit's name: a clash gets a letter (``X1a``), deterministically; a name given twice keeps its
+    first use and gets a letter after.
+
+    Parameters
+    ----------
+    exchangers, heaters, coolers : sequence of Exchanger, Heater, Cooler
+
+    Returns
+    -------
+    tuple
+        (exchangers, heaters, coolers) as tuples, in the given order, every unit named.
+
+    Examples
+    --------
+    Streams named like units: the exchanger on stream "X1" is "X1a".
+
+    >>> e = Exchanger("X1", "C1", 100.0, 150, 100, 40, 90)
+    >>> h = Heater("C1", "HU", 50.0, 90, 100, 180, 179)
+    >>> ex, he, co = name_units([e], [h], [])
+    >>> ex[0].name, he[0].name
+    ('X1a', 'HU-1')
+    """
+    groups = [tuple(exchangers), tuple(heaters), tuple(coolers)]
+    taken: set[str] = set()
+    for group in groups:
+        for u in group:
+            for side in ("hot", "cold", "utility"):
+                if isinstance(getattr(u, side, None), str):
+                    taken.add(getattr(u, side))
+    named: list[list] = [list(g) for g in groups]
+    seen: set[str] = set()
+    for g in named:
+        for i, u in enumerate(g):
+            if u.name:
+                if u.name in seen:
+                    g[i] = replace(u, name=_free(u.name, taken | seen))
+                seen.add(g[i].name)
+    taken |= seen
+    for g, prefix in zip(named, UNIT_PREFIXES.values()):
+        order = sorted(range(len(g)), key=lambda i: grid_key(g[i]))
+        for k, i in enumerate(order, start=1):
+            if not g[i].name:
+                name = _free(f"{prefix}{k}", taken)
+                taken.add(name)
+                g[i] = replace(g[i], name=name)
+    return tuple(named[0]), tuple(named[1]), tuple(named[2])
+
+
+def unit_names(network: Network) -> dict[str, object]:
+    """Name → unit of every unit of a network, exchangers, heaters, coolers in the network's order."""
+    return {u.name: u for u in (*network.exchangers, *network.heaters, *network.coolers)}
+
+
+def stream_positions(network: Network) -> dict[str, tuple[int | None, int | None]]:
+    """Unit name → (position along its hot process stream, along its cold process stream) from the
+    stream's supply end, 1, 2, ... [-]; None on a utility side.
+
+    Derived from the grid order (:func:`grid_key`): a hot stream meets its units in rising key, a cold
+    stream in falling key; units of one key on one stream (parallel branches of a split) follow their
+    temperatures, then the network's order.
+    """
+    out: dict[str, list[int | None]] = {}
+    on: dict[tuple[str, str], list] = {}
+    for i, u in enumerate((*network.exchangers, *network.heaters, *network.coolers)):
+        out[u.name] = [None, None]
+        if not isinstance(u, Heater):
+            on.setdefault(("hot", u.hot), []).append((i, u))
+        if not isinstance(u, Cooler):
+            on.setdefault(("cold", u.cold), []).append((i, u))
+    for (side, _), units in on.items():
+        if side == "hot":
+            units.sort(key=lambda p: (grid_key(p[1]), -p[1].hot_in, p[0]))
+        else:
+            units.sort(key=lambda p: (tuple(-k for k in grid_key(p[1])), p[1].cold_in, p[0]))
+        for k, (_, u) in enumerate(units, start=1):
+            out[u.name][0 if side == "hot" else 1] = k
+    return {name: (a, b) for name, (a, b) in out.items()}
+
+
+
 @dataclass(frozen=True, eq=False)
 class Network:
     """A designed network.
@@ -215,6 +357,9 @@ class Network:
         Assumptions and defaults in force, in plain words.
     solves : tuple
         Solver reports of the models solved to build the network.
+
+    Every unit has a name once the network is built: unnamed units are named by :func:`name_units`
+    (``X1``, ``HU-1``, ``CU-1``, ...), so no builder has to.
     """
 
     exchangers: tuple[Exchanger, ...]
@@ -228,6 +373,16 @@ class Network:
     notes: tuple[str, ...] = ()
     solves: tuple = field(default=(), compare=False)
     unit_target: int | None = None
+
+    def __post_init__(self) -> None:
+        units = (*self.exchangers, *self.heaters, *self.coolers)
+        names = [u.name for u in units]
+        if all(names) and len(set(names)) == len(names):
+            return
+        ex, he, co = name_units(self.exchangers, self.heaters, self.coolers)
+        object.__setattr__(self, "exchangers", ex)
+        object.__setattr__(self, "heaters", he)
+        object.__setattr__(self, "coolers", co)
 
     @property
     def units(self) -> int:
@@ -272,28 +427,42 @@ class Network:
         }
 
     def to_frame(self):
+        """The units table, one row per unit: exchangers, heaters, coolers, each in grid order.
+
+        Columns (:data:`FRAME_COLUMNS`, the cost header with the network's currency): name, role, the two
+        sides, duty, area, U, LMTD, F, shells, area per shell, type, the position along the hot and the
+        cold process stream from its supply end (empty on a utility side, :func:`stream_positions`), the
+        terminal temperatures, the flow fractions and the cost.  It is the network table that a retrofit
+        study reads back.
+        """
         import pandas as pd
 
+        positions = stream_positions(self)
+        cost = f"cost [{self.currency or 'money'}/year]"
         rows = []
-        for e in self.exchangers:
-            rows.append({"unit": f"E{len(rows) + 1}", "type": "exchanger", "hot": e.hot, "cold": e.cold,
-                         "duty [kW]": e.duty, "hot in [°C]": e.hot_in, "hot out [°C]": e.hot_out,
-                         "cold in [°C]": e.cold_in, "cold out [°C]": e.cold_out,
-                         "hot fraction [-]": e.hot_fraction, "cold fraction [-]": e.cold_fraction,
-                         "area [m²]": e.area, "cost [money/year]": e.cost})
-        for h in self.heaters:
-            rows.append({"unit": f"H{sum(r['type'] == 'heater' for r in rows) + 1}", "type": "heater",
-                         "hot": h.utility, "cold": h.cold, "duty [kW]": h.duty, "hot in [°C]": h.utility_in,
-                         "hot out [°C]": h.utility_out, "cold in [°C]": h.cold_in, "cold out [°C]": h.cold_out,
-                         "hot fraction [-]": 1.0, "cold fraction [-]": h.cold_fraction,
-                         "area [m²]": h.area, "cost [money/year]": h.cost})
-        for c in self.coolers:
-            rows.append({"unit": f"C{sum(r['type'] == 'cooler' for r in rows) + 1}", "type": "cooler",
-                         "hot": c.hot, "cold": c.utility, "duty [kW]": c.duty, "hot in [°C]": c.hot_in,
-                         "hot out [°C]": c.hot_out, "cold in [°C]": c.utility_in,
-                         "cold out [°C]": c.utility_out, "hot fraction [-]": c.hot_fraction,
-                         "cold fraction [-]": 1.0, "area [m²]": c.area, "cost [money/year]": c.cost})
-        return pd.DataFrame(rows)
+        for role, group in (("exchanger", self.exchangers), ("heater", self.heaters), ("cooler", self.coolers)):
+            for u in sorted(group, key=grid_key):
+                hot, cold = (u.utility, u.cold) if role == "heater" else (u.hot, u.utility) if role == "cooler" \
+                    else (u.hot, u.cold)
+                temps = (u.utility_in, u.utility_out, u.cold_in, u.cold_out) if role == "heater" else \
+                    (u.hot_in, u.hot_out, u.utility_in, u.utility_out) if role == "cooler" else \
+                    (u.hot_in, u.hot_out, u.cold_in, u.cold_out)
+                kind = (u.geometry or {}).get("type") or ("shell_and_tube_1_2" if (u.shells or 1) > 1
+                                                          else "counter_current")
+                per_shell = None if u.area is None else u.area / (u.shells or 1)
+                hot_order, cold_order = positions[u.name]
+                rows.append(dict(zip(FRAME_COLUMNS[:-1] + (cost,), (
+                    u.name, role, hot, cold, u.duty, u.area, u.u, u.lmtd, u.f_factor, u.shells or 1, per_shell,
+                    EXCHANGER_TYPE_LABELS.get(kind, kind), hot_order, cold_order, *temps,
+                    getattr(u, "hot_fraction", 1.0), getattr(u, "cold_fraction", 1.0), u.cost))))
+        frame = pd.DataFrame(rows, columns=list(FRAME_COLUMNS[:-1] + (cost,)))
+        return frame.astype({"hot_order": "Int64", "cold_order": "Int64", "shells": "Int64"})
+
+
+FRAME_COLUMNS = ("unit", "role", "hot", "cold", "duty [kW]", "area [m²]", "U [kW/(m²·K)]", "LMTD [K]", "F [-]",
+                 "shells", "area per shell [m²]", "type", "hot_order", "cold_order", "hot in [°C]", "hot out [°C]",
+                 "cold in [°C]", "cold out [°C]", "hot fraction [-]", "cold fraction [-]", "cost [money/year]")
+"""Columns of :meth:`Network.to_frame`, in order (the cost header carries the network's currency)."""
 
 
 def _side_duty(stream: Stream, t_in: float, t_out: float, fraction: float) -> float:

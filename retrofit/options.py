@@ -483,7 +483,9 @@ def retrofit_options(network: ExistingNetwork, dt_min: float, *, costs: CostSett
     kept = {k: 0 for k in ChangeKind}
     items: list[Item] = []
     by_key: dict[int, Candidate] = {}
-    names = {u.name for u in network.units}
+    # names of new units (N-1, N-2, ...) meet no unit, stream or utility name of the network
+    names = {u.name for u in network.units} | {s.name for s in network.streams} | \
+        {u.name for u in network.utilities}
 
     def fresh(k: int) -> str:
         n = k

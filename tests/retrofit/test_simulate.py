@@ -163,9 +163,12 @@ def _round_trip(streams, dt, utilities):
     return design, existing, simulate(existing, dt)
 
 
-def _design_units(design):
-    return ([("E", k, e) for k, e in enumerate(design.exchangers, 1)] + [("H", k, h) for k, h in enumerate(design.heaters, 1)]
-            + [("C", k, c) for k, c in enumerate(design.coolers, 1)])
+def _design_units(design, existing):
+    """(role, name in the existing network, design unit): from_network keeps the design's unit order."""
+    units = ([("E", e) for e in design.exchangers] + [("H", h) for h in design.heaters]
+             + [("C", c) for c in design.coolers])
+    assert len(existing.units) == len(units)
+    return [(role, x.name, d) for (role, d), x in zip(units, existing.units)]
 
 
 @pytest.mark.parametrize(("name", "hot", "cold"), ROUND_TRIP)
@@ -175,8 +178,8 @@ def test_simulating_a_heatloom_design_gives_back_its_temperatures(reference, nam
     utilities = ideal_utilities(streams, dt)
     design, existing, sim = _round_trip(streams, dt, utilities)
     assert sim.ok, sim.problems
-    for prefix, k, d in _design_units(design):
-        s = sim.unit(f"{prefix}{k}")
+    for prefix, name, d in _design_units(design, existing):
+        s = sim.unit(name)
         assert s.duty == pytest.approx(d.duty, rel=1e-9, abs=1e-9)
         if prefix != "H":
             assert (s.hot_in, s.hot_out) == pytest.approx((d.hot_in, d.hot_out), abs=1e-9)
@@ -196,9 +199,47 @@ def test_round_trip_with_published_utilities_and_film_coefficients(reference):
     utilities = reference_utilities(data)
     design, existing, sim = _round_trip(streams, 10, utilities)
     assert all(u.u == pytest.approx(0.8) for u in existing.exchangers)
-    for prefix, k, d in _design_units(design):
-        assert sim.unit(f"{prefix}{k}").duty == pytest.approx(d.duty, rel=1e-9)
+    for _, name, d in _design_units(design, existing):
+        assert sim.unit(name).duty == pytest.approx(d.duty, rel=1e-9)
     assert sim.utility_duties == pytest.approx({"HU": design.hot_utility, "CU": design.cold_utility})
+
+
+def test_the_simulated_network_keeps_the_unit_names(reference):
+    # names of the network table, not names made up by the Network: the grid diagram and the units table
+    # of a retrofit show the plant's tags
+    data, streams = reference("synthesis_yee_grossmann_2h2c")
+    utilities = reference_utilities(data)
+    design, existing, sim = _round_trip(streams, 10, utilities)
+    net = sim.to_network()
+    assert sorted(u.name for u in (*net.exchangers, *net.heaters, *net.coolers)) == \
+        sorted(u.name for u in existing.units)
+    assert sorted(net.to_frame()["unit"]) == sorted(u.name for u in existing.units)
+    for u in net.exchangers:
+        assert (u.hot, u.cold, u.duty) == (sim.unit(u.name).hot, sim.unit(u.name).cold, sim.unit(u.name).duty)
+
+
+def test_new_units_of_retrofit_options_meet_no_stream_or_unit_name(reference):
+    # Sinnott, C&R Vol. 6, Table 3.6, streams renamed N-1 ... N-4 (the names retrofit gives new units), film
+    # coefficients 1 kW/(m²·K) and the utilities invented; designed at ΔTmin 40 K, retrofitted at 10 K
+    from heatloom.retrofit.options import retrofit_options
+
+    _, published = reference("targeting_sinnott_four_stream")
+    streams = StreamTable(tuple(Stream.simple(f"N-{k}", s.supply_temperature, s.target_temperature,
+                                              s.segments[0].heat_capacity_flow, film_coefficient=1.0)
+                                for k, s in enumerate(published, start=1)))
+    utilities = [Utility("HU", 230, 229, 150.0, UtilityKind.HOT, 2.0),
+                 Utility("CU", -30, -25, 10.0, UtilityKind.COLD, 2.0)]
+    existing = ExistingNetwork.from_network(design_mer(streams, 40, utilities), streams, utilities)
+    r = retrofit_options(existing, 10, sizes=(0.5, 1.0), max_groups=4, kinds=["new exchanger"])
+    assert r.options
+    taken = {s.name for s in streams} | {u.name for u in utilities}
+    for o in r.options:
+        net = o.network()
+        names = [u.name for u in (*net.exchangers, *net.heaters, *net.coolers)]
+        assert len(set(names)) == len(names) and not set(names) & taken
+        assert {u.name for u in existing.units} <= set(names)     # existing units keep their names
+        new = {c.unit for c in o.changes if c.kind.value == "new exchanger"}
+        assert new and new <= set(names) - {u.name for u in existing.units}
 
 
 # --------------------------------------------------------------------------------------------------
