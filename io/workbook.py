@@ -55,38 +55,20 @@ def _skipped(value) -> bool:
 
 
 def network_frame(network, currency: str):
-    """One row per unit of a designed network (E1.., H1.., C1..), canonical units in the headers.
+    """The units table of a designed network (:meth:`heatloom.network.Network.to_frame`: unit names, U,
+    LMTD, F, shells, positions along the streams), its cost header in ``currency`` when the network names
+    none; the same table ``design`` writes and ``retrofit`` reads.
 
     Parameters
     ----------
     network : heatloom.network.Network
     currency : str
     """
-    import pandas as pd
+    from dataclasses import replace
 
-    cur = currency or "money"
-    rows = []
-
-    def row(tag, kind, hot, cold, u, hot_in, hot_out, cold_in, cold_out, hot_fraction, cold_fraction):
-        rows.append({"unit": tag, "type": kind, "hot side": hot, "cold side": cold, "duty [kW]": u.duty,
-                     "hot in [°C]": hot_in, "hot out [°C]": hot_out, "cold in [°C]": cold_in,
-                     "cold out [°C]": cold_out, "hot fraction [-]": hot_fraction,
-                     "cold fraction [-]": cold_fraction, "U [kW/(m²·K)]": u.u, "LMTD [K]": u.lmtd,
-                     "area [m²]": u.area, f"capital cost [{cur}/year]": u.cost, "region": u.region})
-
-    for k, e in enumerate(network.exchangers, 1):
-        row(f"E{k}", "exchanger", e.hot, e.cold, e, e.hot_in, e.hot_out, e.cold_in, e.cold_out, e.hot_fraction,
-            e.cold_fraction)
-    for k, h in enumerate(network.heaters, 1):
-        row(f"H{k}", "heater", h.utility, h.cold, h, h.utility_in, h.utility_out, h.cold_in, h.cold_out, 1.0,
-            h.cold_fraction)
-    for k, c in enumerate(network.coolers, 1):
-        row(f"C{k}", "cooler", c.hot, c.utility, c, c.hot_in, c.hot_out, c.utility_in, c.utility_out,
-            c.hot_fraction, 1.0)
-    columns = ["unit", "type", "hot side", "cold side", "duty [kW]", "hot in [°C]", "hot out [°C]", "cold in [°C]",
-               "cold out [°C]", "hot fraction [-]", "cold fraction [-]", "U [kW/(m²·K)]", "LMTD [K]", "area [m²]",
-               f"capital cost [{cur}/year]", "region"]
-    return pd.DataFrame(rows, columns=columns)
+    if currency and not network.currency:
+        network = replace(network, currency=currency)
+    return network.to_frame()
 
 
 def _long(rows):
