@@ -103,7 +103,14 @@ def figure_svg(fig, key: str, label: str) -> str:
     text = buf.getvalue()
     text = text[text.index("<svg"):]
     text = re.sub(r"\s*<metadata>.*?</metadata>", "", text, flags=re.S)
-    text = re.sub(r'\bid="([^"]+)"', lambda m: f'id="{key}-{m.group(1)}"', text)
+    seen: dict[str, int] = {}
+
+    def unique(m) -> str:
+        # figure artists share semantic ids (every temperature label of a stream); an HTML page needs each once
+        n = seen[m.group(1)] = seen.get(m.group(1), 0) + 1
+        return f'id="{key}-{m.group(1)}"' if n == 1 else f'id="{key}-{m.group(1)}-{n}"'
+
+    text = re.sub(r'\bid="([^"]+)"', unique, text)
     text = re.sub(r'\b((?:xlink:)?href)="#([^"]+)"', lambda m: f'{m.group(1)}="#{key}-{m.group(2)}"', text)
     text = re.sub(r"url\(#([^)]+)\)", lambda m: f"url(#{key}-{m.group(1)})", text)
     return text.replace("<svg ", f'<svg class="chart" role="img" aria-label="{escape(label)}" ', 1).strip()

@@ -52,9 +52,12 @@ _REFERENCES = {
     "pta": ("Problem table algorithm", "minimum utilities and pinch",
             "Linnhoff, B., Flower, J. R. (1978). Synthesis of heat exchanger networks: I. Systematic generation of "
             "energy optimal networks. AIChE Journal 24(4), 633-642. doi:10.1002/aic.690240411"),
-    "curves": ("Composite and grand composite curves", "the figures of the energy targets",
+    "curves": ("Composite, grand composite and balanced composite curves; driving-force plot",
+               "the figures of the energy targets",
                "Hohmann (1971); Linnhoff, B. et al. (1982). User Guide on Process Integration for the Efficient "
-               "Use of Energy, IChemE, ch. 2 (as cited in heatloom.pinch.curves)"),
+               "Use of Energy, IChemE, ch. 2 (as cited in heatloom.pinch.curves); Kemp, I. C. (2007). Pinch "
+               "Analysis and Process Integration, 2nd ed., Butterworth-Heinemann (balanced composites and the "
+               "driving-force plot; chapter not checked)"),
     "placement": ("Utility placement by the transshipment model of Papoulias–Grossmann",
                   "duties of the utility levels against the grand composite curve (linear programme)",
                   "Papoulias, S. A., Grossmann, I. E. (1983). A structural optimization approach in process "
@@ -221,7 +224,12 @@ def _inputs(study: Study, page: Page) -> str:
 
 
 def _targets(study: Study, page: Page) -> str:
-    from .figures import composite_figure, grand_composite_figure
+    from .figures import (
+        balanced_composite_figure,
+        composite_figure,
+        driving_force_figure,
+        grand_composite_figure,
+    )
     from .workbook import target_rows
 
     t = study.targets
@@ -253,6 +261,13 @@ def _targets(study: Study, page: Page) -> str:
     parts.append(page.figure("fig-grand-composite", lambda: grand_composite_figure(t),
                              "Grand composite curve (net heat flow against shifted temperature)"
                              + (", with the utility levels placed." if t.placement is not None else ".")))
+    parts.append(page.figure("fig-balanced-composite", lambda: balanced_composite_figure(t),
+                             "Balanced composite curves: the composites with the "
+                             + ("utility levels placed" if t.placement is not None else "two assumed utilities")
+                             + " added, so that both curves carry the same heat."))
+    parts.append(page.figure("fig-driving-force", lambda: driving_force_figure(t),
+                             "Driving-force plot: temperature difference between the hot and cold composite curves "
+                             "against heat flow over the heat-recovery range; the smallest is ΔTmin, at the pinch."))
     parts.append(frame_table(t.table.to_frame(), "Problem table: shifted temperature intervals and the feasible "
                              "heat cascade", "problem-table"))
     return "".join(parts)
@@ -449,7 +464,7 @@ def render_report(study: Study) -> RenderedReport:
     >>> s = StreamTable.from_arrays(["H", "C"], [150, 30], [60, 120], [2.0, 2.5])
     >>> r = render_report(Study("demo", s, 10.0, "given", target(s, 10.0)))
     >>> r.figures, [k for k, _ in r.sections][:4], r.html.count("<svg")
-    (2, ['summary', 'inputs', 'assumptions', 'targets'], 2)
+    (4, ['summary', 'inputs', 'assumptions', 'targets'], 4)
     >>> [w for w, _ in r.not_computed]
     ['Energy targets', 'Cost targets against ΔTmin', 'Network for maximum energy recovery', 'Network of lowest total annual cost']
     """

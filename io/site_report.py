@@ -4,7 +4,8 @@ A :class:`SiteStudy` gathers a site run (:func:`heatloom.pinch.site.site_targets
 tables the ``site`` command writes (zones, mains, steam per zone, profiles).  :func:`render_site_report`
 turns it into a page in the style of the study report (:func:`heatloom.io.report.render_report`), built
 from the same blocks (:mod:`heatloom.io.html`: inline SVG figures, no script, well-formed XML, units in every
-header), with these sections: summary, input data, assumptions, zone targets, site profiles and steam mains,
+header), with these sections: summary, input data, assumptions, zone targets (each zone's grand composite
+curve against the mains and its source and sink profiles), site profiles and steam mains,
 price scenarios (when the folder holds a prices table), safety and limits, methods and references, about
 this report.  :func:`site_sheets` gives the workbook's sheets.
 
@@ -80,6 +81,9 @@ class SiteStudy:
     command : str
     scenarios : heatloom.studies.scenarios.ScenarioStudy, NotComputed or None
         The price-scenario study of the zones when the folder holds a prices table (None when it does not).
+    assumed : tuple of (str, str, str)
+        Further assumptions of the run as (assumption, value with units, basis), e.g. the film coefficient
+        assumed for the price scenarios (``--default-h``).
     """
 
     title: str
@@ -95,6 +99,7 @@ class SiteStudy:
     version: str = ""
     command: str = ""
     scenarios: object = None
+    assumed: tuple[tuple[str, str, str], ...] = ()
 
     def assumption_rows(self) -> list[tuple[str, str, str]]:
         """(assumption, value with units, basis) of every assumption and default of the site run."""
@@ -128,6 +133,7 @@ class SiteStudy:
                          "values; each zone's optimum located between them", "report default (--sweep sets the "
                          "range)"))
             rows += [("scenario note", n, "scenario study") for n in sc.notes]
+        rows += list(self.assumed)
         return rows
 
     def cautions(self) -> list[str]:
@@ -204,13 +210,19 @@ def _inputs(study: SiteStudy, page: Page) -> str:
 
 
 def _zones(study: SiteStudy, page: Page) -> str:
-    from .site_figures import zone_profiles_figure
+    from .site_figures import zone_grand_composite_figure, zone_profiles_figure
 
+    site = study.site
+    shift = f"ΔTmin/2{' + site ΔT' if site.dt_site else ''}"
     return "".join([
         paragraph("Each zone targeted on its own at its ΔTmin: minimum hot and cold utility, pinch, and the heat "
                   "it needs above the hottest steam main and rejects below the coldest one."),
         frame_table(study.frames["zones"], "Targets of each zone", "zones-table"),
-        page.figure("fig-zone-profiles", lambda: zone_profiles_figure(study.site),
+        page.figure("fig-zone-grand-composite", lambda: zone_grand_composite_figure(site),
+                    "Grand composite curve of each zone (shifted temperature) against the mains: steam used at "
+                    f"the main's temperature − {shift} (solid), steam raised and heat rejected at + {shift} "
+                    "(dashed), stacked from the axis."),
+        page.figure("fig-zone-profiles", lambda: zone_profiles_figure(site),
                     "Source (left of zero) and sink (right) profiles of each zone on the utility temperature "
                     "scale, with the mains.")])
 
@@ -286,7 +298,7 @@ def render_site_report(study: SiteStudy) -> RenderedReport:
     >>> site = site_targets({"A": a, "B": b}, [SteamMain("LP", 140.0, 50.0)], 10.0)
     >>> r = render_site_report(SiteStudy("demo site", site, site.frames()))
     >>> r.figures, [k for k, _ in r.sections]
-    (2, ['summary', 'inputs', 'assumptions', 'zones', 'mains', 'safety', 'methods', 'about'])
+    (3, ['summary', 'inputs', 'assumptions', 'zones', 'mains', 'safety', 'methods', 'about'])
     """
     plan = [("summary", "Summary", _summary), ("inputs", "Input data", _inputs),
             ("assumptions", "Assumptions and defaults", assumptions_section), ("zones", "Targets of each zone", _zones),

@@ -44,6 +44,7 @@ from typing import NamedTuple
 
 import numpy as np
 
+from ..defaults import small_dt_min_caution
 from ..errors import InfeasibleError, InputError, SolverError
 from ..model import StreamTable, Utility
 from ..pinch.area import CapitalBasis, area_targets, missing_film_coefficients, shell_target, unit_targets
@@ -70,6 +71,7 @@ __all__ = [
 
 MAX_POINTS = 20_001
 """Largest number of grid points a sweep accepts [-] (a guard against a mistyped step)."""
+
 
 class _Signature(NamedTuple):
     """What may change at a breakpoint: feasibility, unit targets, the pinch-defining stream ends."""
@@ -485,12 +487,20 @@ def dt_min_grid(low: float, high: float, step: float) -> np.ndarray:
     return xs
 
 
-def _breakpoint(lo: SweepPoint, hi: SweepPoint, streams: StreamTable) -> Breakpoint:
+def _breakpoint(lo: SweepPoint, hi: SweepPoint, streams: StreamTable, inner: Sequence[SweepPoint] = ()
+                ) -> Breakpoint:
+    """The change from ``lo`` to ``hi``; ``inner``: points between them whose structure is seen there only."""
     a, b = lo.signature, hi.signature
     if a.feasible != b.feasible:
         text = ("the utilities given can serve the process" if b.feasible else
                 "the utilities given can no longer serve the process")
         return Breakpoint(lo.dt_min, hi.dt_min, text, ("feasibility",))
+    names = streams.names
+    idx = streams.arrays.stream_index
+
+    def who(p):
+        return ", ".join(sorted({names[idx[i]] for pinch in p for i, _ in pinch})) or "none"
+
     parts, codes = [], []
     for code, what in (("units", "units target"), ("units_mer", "MER units target"), ("shells", "shells target"),
                        ("threshold", "threshold")):
@@ -501,15 +511,36 @@ def _breakpoint(lo: SweepPoint, hi: SweepPoint, streams: StreamTable) -> Breakpo
             parts.append(f"{what} {old} → {new}")
             codes.append(code)
     if a.pinch != b.pinch:
-        names = streams.names
-        idx = streams.arrays.stream_index
-
-        def who(p):
-            return ", ".join(sorted({names[idx[i]] for pinch in p for i, _ in pinch})) or "none"
-
-        parts.append(f"pinch set by {who(a.pinch)} → {who(b.pinch)}")
+        before, after = who(a.pinch), who(b.pinch)
+        parts.append(f"pinch set by {before} → {after}" if before != after else
+                     f"pinch set by other ends of {after}")
         codes.append("pinch")
+    for p in inner:
+        if p.signature.feasible and a.feasible and p.signature.pinch not in (a.pinch, b.pinch):
+            parts.append(f"pinch set by {who(p.signature.pinch)} at {p.dt_min:g} K only")
+            if "pinch" not in codes:
+                codes.append("pinch")
+            break
     return Breakpoint(lo.dt_min, hi.dt_min, "; ".join(parts) or "structure changed", tuple(codes))
+
+
+def _merge_touching(sides: list[tuple[SweepPoint, SweepPoint]], resolution: float
+                    ) -> list[tuple[SweepPoint, SweepPoint, tuple[SweepPoint, ...]]]:
+    """One breakpoint for changes that touch: brackets closer than ``resolution`` merged into one.
+
+    A grid point that falls exactly on a change (a stream end passing through the pinch temperature, so
+    that two stream ends set the pinch at that ΔTmin only) differs from both of its neighbours, so the
+    bisections on either side of it find the same change twice, one ``resolution`` apart.  It is one
+    change: returned as (point below, point above, the points in between).
+    """
+    merged: list[list] = []
+    for lo, hi in sorted(sides, key=lambda pair: pair[0].dt_min):
+        if merged and lo.dt_min - merged[-1][1].dt_min <= resolution:
+            merged[-1][2] += [merged[-1][1], lo]
+            merged[-1][1] = hi
+        else:
+            merged.append([lo, hi, []])
+    return [(lo, hi, tuple(dict.fromkeys(inner))) for lo, hi, inner in merged]
 
 
 def _segments(points: list[SweepPoint]) -> list[list[int]]:
@@ -632,7 +663,7 @@ def sweep(streams: StreamTable, dt_min_range: tuple[float, float], utilities: Se
         points = sorted(grid + [p for pair in sides for p in pair], key=lambda p: p.dt_min)
         # identical ΔTmin from two sources (a grid point within the resolution of a change): keep one
         points = [p for i, p in enumerate(points) if i == 0 or p.dt_min != points[i - 1].dt_min]
-        breakpoints = tuple(_breakpoint(a, b, streams) for a, b in sides)
+        breakpoints = tuple(_breakpoint(a, b, streams, inner) for a, b, inner in _merge_touching(sides, resolution))
         feasible = [p for p in points if p.feasible]
         if not feasible:
             raise InfeasibleError(f"no ΔTmin from {low:g} to {high:g} K can be served by the utilities given: "
@@ -672,6 +703,9 @@ def sweep(streams: StreamTable, dt_min_range: tuple[float, float], utilities: Se
                          f"{b.high:g} K): other utility levels may move it")
     basis = area_targets(target(streams, optimum.dt_min, case.utilities), case.costs,
                          default_film_coefficient=case.default_h, capital_basis=case.basis, x_p=case.x_p).basis
+    caution = small_dt_min_caution(optimum.dt_min)
+    if caution:
+        notes.append(caution)
     notes.append(f"breakpoints located by bisection to {resolution:g} K; optimum refined by bounded scalar "
                  f"minimisation to {xtol:g} K")
     return Sweep(tuple(points), breakpoints, optimum, design_points, (low, high), step, case.costs.currency, basis,

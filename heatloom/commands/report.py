@@ -14,6 +14,7 @@ the input files, calls the study and hands the results to the writers.
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 from pathlib import Path
 
@@ -32,6 +33,7 @@ from .common import (
     check_cost_target_inputs,
     dt_min_of,
     find_case_files,
+    note,
     positive,
     positive_or_zero,
     price_hours,
@@ -41,7 +43,8 @@ from .common import (
     settle_currency,
 )
 
-__all__ = ["register", "run", "run_site", "is_site_folder", "find_case_files", "site_scenarios", "OUTPUT_FILES"]
+__all__ = ["register", "run", "run_site", "is_site_folder", "find_case_files", "site_scenarios", "OUTPUT_FILES",
+           "default_out_folder"]
 
 OUTPUT_FILES = ("report.html", "study.xlsx")
 """Files written into the output folder."""
@@ -51,14 +54,16 @@ ROLES = CASE_ROLES
 
 EPILOG_REPORT = """\
 examples:
-  heatloom report case_studies/solvent_recovery             # a case folder; writes its report/ subfolder
+  heatloom report case_studies/solvent_recovery             # a case folder; writes ./solvent_recovery_report/
   heatloom report streams.csv --dtmin 15 --utilities utilities.csv --costs costs.json --out study
   heatloom report plant_case/ --default-h 0.5 --tac --force  # assume h where missing, add the TAC design
 
 A case folder holds the stream table (a file with 'streams' in its name, CSV or .xlsx) and optionally
 the utilities ('utilities'), the costs ('costs': JSON, YAML or .xlsx) and an existing network ('network')
 for the retrofit diagnosis and options; options given on the command line take precedence. Without --out
-the report goes into a 'report' folder beside the stream table (inside the case folder).
+the report goes into a folder '<case name>_report' in the current directory (the case folder's name, or
+the stream table's name without its extension), never into the case folder itself; the command says so
+on stderr. --force lets it replace an earlier report there.
 
 A site folder (several files with 'streams' in their names, one per zone, e.g. 'evaporation_streams.csv',
 and/or a mains table with 'mains' in its name) gives a site report: the targets of each zone, the site
@@ -165,11 +170,40 @@ def _inputs(args) -> tuple[dict[str, Path], list[str]]:
     return files, notes
 
 
-def _out_folder(args, files: dict[str, Path]) -> Path:
+def default_out_folder(path: str | Path) -> Path:
+    """The report folder when no --out is given: ``<case name>_report`` in the current directory.
+
+    The case name is the folder's name for a case or site folder, the stream table's name without its
+    extension for a file.  The folder is outside the case, so a report never writes into the case's
+    own (perhaps version-controlled) files.
+
+    Parameters
+    ----------
+    path : str or Path
+        The PATH argument of ``report``.
+
+    Examples
+    --------
+    >>> import tempfile, pathlib
+    >>> d = pathlib.Path(tempfile.mkdtemp()) / "plant_a"
+    >>> d.mkdir()
+    >>> default_out_folder(d), default_out_folder(d / "streams.csv")
+    (PosixPath('plant_a_report'), PosixPath('streams_report'))
+    """
+    path = Path(path)
+    name = path.resolve().name if path.is_dir() else path.stem
+    return Path(f"{name or 'heatloom'}_report")
+
+
+def _out_folder(args) -> Path:
+    """The --out folder, or the default one (said on stderr unless --quiet)."""
     if args.out:
         return Path(args.out)
-    base = Path(args.path) if Path(args.path).is_dir() else files["stream table"].parent
-    return base / "report"
+    folder = default_out_folder(args.path)
+    if not args.quiet:
+        print(f"heatloom: writing the report into {folder}{os.sep} in the current directory (default; set with "
+              "--out DIR)", file=sys.stderr)
+    return folder
 
 
 # --------------------------------------------------------------------------------------------------
@@ -180,11 +214,12 @@ SCENARIO_STEP = 5.0
 """ΔTmin step of a site report's price-scenario cases [K] (each zone's optimum is still located to 0.01 K)."""
 
 
-def site_scenarios(args, zones, found: dict):
+def site_scenarios(args, zones, found: dict, assumed: list | None = None):
     """The price-scenario study of a site folder that holds a prices table, or NotComputed with the reason.
 
     Uses the folder's (or the command line's) utilities and costs, ``--default-h`` where film coefficients are
-    missing, ``--hours-per-year`` for prices per energy and ``--sweep`` for the ΔTmin range.
+    missing, ``--hours-per-year`` for prices per energy and ``--sweep`` for the ΔTmin range.  When a film
+    coefficient is assumed, a row (assumption, value, basis) saying where is appended to ``assumed``.
     """
     from ..studies.scenarios import scenario_study
     from ..studies.study import NotComputed, run_step
@@ -202,6 +237,9 @@ def site_scenarios(args, zones, found: dict):
             zones, utilities=args.utilities or first("utilities"), prices=first("prices"),
             costs=args.costs or first("costs"), hours_per_year=args.hours_per_year)
         check_cost_target_inputs(missing, args.default_h, None)
+        if missing and assumed is not None:
+            assumed.append(("film coefficient (price scenarios)", f"{args.default_h:g} kW/(m²·K) assumed for "
+                            f"{', '.join(missing)}", "given (--default-h): the tables give no h there"))
         return scenario_study(zones, args.sweep or defaults.SWEEP_RANGE, utilities, plans, costs, step=SCENARIO_STEP,
                               default_film_coefficient=args.default_h, workers=1)
 
@@ -220,8 +258,9 @@ def run_site(args) -> int:
 
     path = Path(args.path)
     site_in = read_site(path, columns=args.columns, fit_tolerance=args.fit_tolerance)
-    folder = Path(args.out) if args.out else path / "report"
-    out = OutputDirectory(folder, list(site_in.files), force=args.force)
+    out = OutputDirectory(_out_folder(args), list(site_in.files), force=args.force)
+    if out.redirect_note:
+        note(args, f"note: {out.redirect_note}")
     out.check(OUTPUT_FILES)   # refuse before computing anything, so nothing is half written
     found = case_candidates(path, ("utilities", "prices", "costs"))
     notes = [f"site folder {path}: zones " + "; ".join(f"{z} ({Path(f).name})" for z, f in
@@ -240,14 +279,15 @@ def run_site(args) -> int:
     if site_in.mains_source:
         sources["mains"] = site_in.mains_source
     scenarios = None
+    assumed: list = []
     if "prices" in found:
-        scenarios = site_scenarios(args, site_in.zones, found)
+        scenarios = site_scenarios(args, site_in.zones, found, assumed)
         sources.update({role: str(files[0]) for role, files in found.items() if len(files) == 1})
     study = SiteStudy(title=f"Site study: {path.name}", site=site, frames=site.frames(), dt_min_note=dt_note,
                       zone_sources=dict(site_in.zone_sources), mains_source=site_in.mains_source, sources=sources,
                       notes=tuple(notes), safety_note=defaults.SAFETY_NOTE, version=__version__,
                       created=datetime.datetime.now().astimezone().isoformat(timespec="seconds"),
-                      command=_command_line(args), scenarios=scenarios)
+                      command=_command_line(args), scenarios=scenarios, assumed=tuple(assumed))
     rendered = render_site_report(study)
     sheets = site_sheets(study)              # everything is built before anything is written
     out.text("report.html", rendered.html)
@@ -282,7 +322,9 @@ def run(args) -> int:
     if is_site_folder(args.path):
         return run_site(args)
     files, notes = _inputs(args)
-    out = OutputDirectory(_out_folder(args, files), [str(p) for p in files.values()], force=args.force)
+    out = OutputDirectory(_out_folder(args), [str(p) for p in files.values()], force=args.force)
+    if out.redirect_note:
+        note(args, f"note: {out.redirect_note}")
     out.check(OUTPUT_FILES)   # refuse before computing anything, so nothing is half written
     columns = parse_column_mapping(args.columns) if args.columns else None
     streams = read_streams(files["stream table"], sheet=args.sheet, columns=columns, fit_tolerance=args.fit_tolerance)

@@ -7,13 +7,17 @@ import argparse
 from ..errors import InputError
 from .common import add_shared, add_table_options, dt_min_of, finish, fmt, note_lines, read_inputs
 
-__all__ = ["register", "run", "format_targets"]
+__all__ = ["register", "run", "format_targets", "PLOT_FILES"]
+
+PLOT_FILES = ("composite_curves", "shifted_composite_curves", "grand_composite_curve", "balanced_composite_curves",
+              "driving_force")
+"""Figures written into --out with --plot (each as PNG and SVG)."""
 
 EPILOG_TARGET = """\
 examples:
   heatloom target streams.csv --dtmin 10
   heatloom target plant.xlsx --sheet "Stream data" --dtmin 15 --utilities utilities.csv
-  heatloom target export.csv --columns "Stream=name,Tin=T_supply,Tout=T_target,FCp=CP" --json
+  heatloom target export.csv --columns "Line=name,Inlet=T_supply,Outlet=T_target,Wcp=CP" --json
   heatloom target streams.csv --out results --plot
 
 input: a CSV or .xlsx table with columns name, T_supply, T_target, CP (°C and kW/K unless the header
@@ -32,7 +36,9 @@ def register(sub) -> None:
     add_shared(p)
     add_table_options(p)
     p.add_argument("--plot", action="store_true",
-                   help="write composite and grand composite curve figures (PNG and SVG) into --out")
+                   help="write figures (PNG and SVG) into --out: composite, shifted composite, grand composite and "
+                        "balanced composite curves (utilities included) and the driving-force plot (ΔT between "
+                        "the composites against heat flow)")
     p.set_defaults(handler=run)
 
 
@@ -114,8 +120,7 @@ def run(args) -> int:
         out = OutputDirectory(args.out, [p for p in (args.file, args.utilities) if p], force=args.force)
         names = ["targets.json", "stream_table.csv", "problem_table.csv", "targets.xlsx"]
         if args.plot:
-            names += [f"{n}.{e}" for n in ("composite_curves", "shifted_composite_curves",
-                                          "grand_composite_curve") for e in ("png", "svg")]
+            names += [f"{n}.{e}" for n in PLOT_FILES for e in ("png", "svg")]
         out.check(names)  # refuse before computing anything, so nothing is half written
     t = target(streams, dt_min, utilities)
     result = t.to_dict()
@@ -132,9 +137,16 @@ def run(args) -> int:
         out.csv("problem_table.csv", t.table.to_frame())
         out.workbook("targets.xlsx", targets_workbook_sheets(t))
         if args.plot:
-            from ..io.figures import composite_figure, grand_composite_figure
+            from ..io.figures import (
+                balanced_composite_figure,
+                composite_figure,
+                driving_force_figure,
+                grand_composite_figure,
+            )
 
             out.figures("composite_curves", composite_figure(t))
             out.figures("shifted_composite_curves", composite_figure(t, shifted=True))
             out.figures("grand_composite_curve", grand_composite_figure(t))
+            out.figures("balanced_composite_curves", balanced_composite_figure(t))
+            out.figures("driving_force", driving_force_figure(t))
     return finish(args, result, format_targets(t, str(args.file), dt_note, area, area_note), out)

@@ -89,8 +89,11 @@ def test_input_file_is_never_written_over(capsys, tmp_path):
     src = tmp_path / "stream_table.csv"          # named like one of target's outputs, in the --out folder
     src.write_text(SINNOTT_CSV, encoding="utf-8")
     code, _, err = run(capsys, "target", src, "--out", tmp_path, "--force")
-    assert code == 2 and "input files" in err
+    # the folder holds an input of the run, so the results go to its results/ subfolder, said on stderr
+    assert code == 0 and "results" in err
     assert src.read_text(encoding="utf-8") == SINNOTT_CSV
+    assert (tmp_path / "results" / "stream_table.csv").is_file()
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["results", "stream_table.csv"]
 
 
 def test_workbook_has_every_sheet(capsys, sinnott_csv, tmp_path):
@@ -100,6 +103,27 @@ def test_workbook_has_every_sheet(capsys, sinnott_csv, tmp_path):
     sheets = pd.read_excel(tmp_path / "o" / "targets.xlsx", sheet_name=None)
     assert {"targets", "streams", "problem table", "curves"} <= set(sheets)
     assert "T_supply [°C]" in sheets["streams"].columns
+
+
+def test_plot_writes_the_balanced_composites_and_the_driving_force(capsys, sinnott_csv, tmp_path):
+    import re
+
+    from heatloom.commands.target import PLOT_FILES
+
+    out_dir = tmp_path / "plots"
+    code, _, _ = run(capsys, "target", sinnott_csv, "--dtmin", "10", "--out", out_dir, "--plot")
+    assert code == 0
+    names = {p.name for p in out_dir.iterdir()}
+    assert {f"{n}.{e}" for n in PLOT_FILES for e in ("png", "svg")} <= names
+    assert {"balanced_composite_curves", "driving_force"} <= set(PLOT_FILES)
+    texts = re.findall(r"<!-- (.*?) -->", (out_dir / "driving_force.svg").read_text(encoding="utf-8"))
+    # Sinnott, C&R Vol. 6, ch. 3, Table 3.6: the composites come closest, ΔTmin 10 K, at the pinch (90 / 80 °C),
+    # 150 kW along the hot composite (hand calculation: 30 kW of stream 2 below 60 °C, then 4 kW/K from 60 to 90 °C)
+    assert "smallest ΔT 10 K at 150 kW (pinch)" in texts
+    texts = re.findall(r"<!-- (.*?) -->", (out_dir / "balanced_composite_curves.svg").read_text(encoding="utf-8"))
+    assert "hot utility (assumed): 50 kW" in texts and "cold utility (assumed): 30 kW" in texts
+    texts = re.findall(r"<!-- (.*?) -->", (out_dir / "shifted_composite_curves.svg").read_text(encoding="utf-8"))
+    assert "pinch 85 °C shifted" in texts
 
 
 def test_plot_needs_out(capsys, sinnott_csv):

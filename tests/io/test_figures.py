@@ -10,24 +10,14 @@ import matplotlib.pyplot as plt  # noqa: E402
 import pytest  # noqa: E402
 from refdata import load_reference  # noqa: E402
 
-from heatloom.io.grid_figures import grid_diagram
 from heatloom.io.scenario_figures import MAX_PANELS, scenario_cost_figure
 from heatloom.model.prices import price_factor_scenarios
-from heatloom.network.design import design_mer
 from heatloom.studies.scenarios import scenario_study
 
 
 @pytest.fixture(scope="module")
 def sinnott():
     return load_reference("targeting_sinnott_four_stream")[1]
-
-
-def test_grid_diagram_title_names_the_approach(sinnott):
-    net = design_mer(sinnott, 10, default_film_coefficient=0.5)
-    for approach in ("ΔTmin", "EMAT"):
-        fig = grid_diagram(net, sinnott, approach=approach)
-        assert fig.axes[0].get_title(loc="left") == f"Grid diagram, {approach} = 10 K, {net.units} units"
-        plt.close(fig)
 
 
 @pytest.mark.slow

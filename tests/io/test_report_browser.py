@@ -22,9 +22,10 @@ ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "case_studies" / "solvent_recovery"
 SITE = ROOT / "case_studies" / "three_zone_site"
 CASES = {   # case folder, figures, sections that must be there
-    "study": (DEMO, 5, ("summary", "targets", "sweep", "design", "safety", "methods")),   # composite, grand
-    # composite, two sweep figures, grid diagram
-    "site": (SITE, 2, ("summary", "zones", "mains", "safety", "methods")),   # zone profiles, site profiles
+    "study": (DEMO, 7, ("summary", "targets", "sweep", "design", "safety", "methods")),   # composite, grand
+    # composite, balanced composite, driving force, two sweep figures, grid diagram
+    "site": (SITE, 3, ("summary", "zones", "mains", "safety", "methods")),   # zone grand composites, zone
+    # profiles, site profiles
 }
 FLAGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
          "--disable-background-networking", "--disable-component-update", "--disable-sync", "--hide-scrollbars"]

@@ -1,4 +1,5 @@
-"""Total annual cost targets (supertargets) beside the networks published for the same problems.
+"""Total annual cost targets (ΔTmin optimisation before design) beside the networks published for the same
+problems.
 
 Sources (cited beside each use): the four synthesis problems of tests/data/references/ with their film
 coefficients, utilities, annualised cost laws and published total annual costs of designed networks
@@ -11,7 +12,7 @@ confidence), so the Townsend–Linnhoff area itself is checked elsewhere against
 ht.LMTD and an independent integral.  Here the whole cost-target chain (area, units, cost law,
 annualisation, utility placement and prices, optimum ΔTmin) is compared with the cost of the best
 networks the literature reports for the same data.  A target is an estimate, not a bound: with equal
-film coefficients the supertarget is expected within roughly 10 % of good designs (Linnhoff & Ahmad 1990,
+film coefficients the total annual cost target is expected within roughly 10 % of good designs (Linnhoff & Ahmad 1990,
 Cost optimum heat exchanger networks - 1, Comput. Chem. Eng. 14(7) 729-750; the figure is from memory,
 unverified), and the Bath formula is known to overestimate the area when film coefficients differ widely
 (Colberg & Morari 1990, Area and capital cost targets for heat exchanger network synthesis with
