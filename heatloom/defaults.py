@@ -20,6 +20,8 @@ Examples
 
 from __future__ import annotations
 
+from contextlib import contextmanager
+from contextvars import ContextVar
 from types import MappingProxyType
 
 __all__ = [
@@ -44,7 +46,10 @@ __all__ = [
     "EMAT",
     "TAC_TIME_LIMIT",
     "MAX_INPUT_BYTES",
+    "max_input_bytes",
+    "input_size_limit",
     "MEASURED_BALANCE_TOLERANCE",
+    "OUTPUT_PRECISION",
     "MAX_TEMPERATURE",
     "MAX_HEAT_CAPACITY_FLOW",
     "IDEAL_UTILITY_MARGIN",
@@ -170,12 +175,57 @@ streams are of the order of 1e4–1e5 kW/K, a condensing duty written with a 0.0
 MAX_INPUT_BYTES = 200 * 1024 * 1024
 """Largest input file heatloom reads [bytes] (200 MiB): plant stream tables and workbooks are far smaller,
 and a larger file is almost always the wrong file; :func:`heatloom.io.cells.read_input_bytes` takes
-another limit where one is needed."""
+another limit where one is needed, and a run sets another with :func:`input_size_limit` (the commands'
+``--max-input-mb``); :func:`max_input_bytes` gives the limit in force."""
+
+_INPUT_LIMIT: ContextVar[int] = ContextVar("heatloom_max_input_bytes", default=MAX_INPUT_BYTES)
+
+
+def max_input_bytes() -> int:
+    """The largest input file read now [bytes]: :data:`MAX_INPUT_BYTES`, or the limit of the enclosing
+    :func:`input_size_limit`.
+
+    Examples
+    --------
+    >>> max_input_bytes() == MAX_INPUT_BYTES
+    True
+    >>> with input_size_limit(1024):
+    ...     max_input_bytes()
+    1024
+    """
+    return _INPUT_LIMIT.get()
+
+
+@contextmanager
+def input_size_limit(max_bytes: int | None):
+    """Within the block, input files up to ``max_bytes`` [bytes] are read (None: the default limit).
+
+    The limit holds for the current thread or task only (a context variable) and is restored on leaving.
+    """
+    if max_bytes is None:
+        yield
+        return
+    if not max_bytes > 0:
+        raise ValueError(f"the input size limit must be > 0 bytes, got {max_bytes!r}")
+    token = _INPUT_LIMIT.set(int(max_bytes))
+    try:
+        yield
+    finally:
+        _INPUT_LIMIT.reset(token)
 
 MEASURED_BALANCE_TOLERANCE = 1e-3
 """Share of a stream's duty by which an existing network, simulated from measured or design data, may miss
 the stream's target (or pass it) before that is reported as a problem [-] (0.1 %, *common practice* for the
 closure of plant heat balances, which are seldom better than 1-2 %); smaller misses are stated in the notes."""
+
+OUTPUT_PRECISION = MappingProxyType({"duty": 3, "temperature": 3, "area": 3, "money": 2})
+"""Decimal places of the numbers written to JSON, CSV and XLSX, by kind of quantity [-]: duties to 0.001 kW,
+temperatures and temperature differences to 0.001 °C / 0.001 K, areas to 0.001 m², money (costs, investments,
+savings, per year or once) to 0.01 of the currency.  Values are rounded only when written
+(:mod:`heatloom.io.export`), never inside a computation, so that float noise such as 772.5000000000009 kW is
+written as 772.5; quantities of any other kind (CP, film coefficients, prices, ratios) are written unrounded,
+and so are tables of inputs (stream and utility tables as read), which must read back exactly.
+The precision is far below what plant data or any of the models resolve (*common practice*)."""
 
 # --------------------------------------------------------------------------------------------------
 # retrofit (heatloom.retrofit.options): illustrative defaults, common practice, not a quotation
@@ -204,3 +254,31 @@ __all__ += [
     "RETROFIT_REPIPE_COST",
     "RETROFIT_RESEQUENCE_COST",
 ]
+
+
+SMALL_DT_MIN = 3.0
+"""ΔTmin under which an optimum gets a caution [K] (*common practice*: approaches under about 3 K are
+close-approach duty, not a value from a standard)."""
+
+
+def small_dt_min_caution(dt_min: float) -> str | None:
+    """The caution for an optimum ΔTmin under :data:`SMALL_DT_MIN`, or None.
+
+    Parameters
+    ----------
+    dt_min : float
+        Optimum ΔTmin [K].
+
+    Examples
+    --------
+    >>> small_dt_min_caution(5.0) is None, small_dt_min_caution(2.4).startswith("the optimum ΔTmin 2.40 K")
+    (True, True)
+    """
+    if not dt_min < SMALL_DT_MIN:
+        return None
+    return (f"the optimum ΔTmin {dt_min:.2f} K is under {SMALL_DT_MIN:g} K (a common-practice limit, not a "
+            "standard): approaches this close are only practical with plate or other close-approach exchangers; "
+            "fouling eats a small driving force quickly (the targets assume clean surfaces), and control has "
+            "little margin for upsets and load changes. Check practicality before choosing a ΔTmin this small")
+
+__all__ += ["SMALL_DT_MIN", "small_dt_min_caution"]

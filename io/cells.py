@@ -219,7 +219,7 @@ def _mark_unsaved_formulas(data: bytes, title: str, rows: list[list]) -> None:
 
 
 def read_input_bytes(path: str | os.PathLike, *, what: str = "file",
-                     max_bytes: int = defaults.MAX_INPUT_BYTES) -> bytes:
+                     max_bytes: int | None = None) -> bytes:
     """The bytes of an input file, after checking that it is a regular file of a sensible size.
 
     A device (``/dev/zero``), a pipe or a socket is refused before anything is read (reading one never ends
@@ -231,7 +231,8 @@ def read_input_bytes(path: str | os.PathLike, *, what: str = "file",
     what : str, optional
         What the file is, for messages (``"costs file"``...).
     max_bytes : int, optional
-        Largest size read [bytes]; :data:`heatloom.defaults.MAX_INPUT_BYTES` by default.
+        Largest size read [bytes]; by default :func:`heatloom.defaults.max_input_bytes` (the
+        :data:`~heatloom.defaults.MAX_INPUT_BYTES` default, or the run's ``--max-input-mb``).
 
     Examples
     --------
@@ -252,6 +253,8 @@ def read_input_bytes(path: str | os.PathLike, *, what: str = "file",
     if not stat.S_ISREG(st.st_mode):
         raise InputError("not a regular file (a device, pipe or socket); give a CSV file or a workbook",
                          file=source)
+    if max_bytes is None:
+        max_bytes = defaults.max_input_bytes()
     if st.st_size > max_bytes:
         raise InputError(f"the {what} is {st.st_size / 2**20:,.1f} MiB, over the {max_bytes / 2**20:,.0f} MiB "
                          "heatloom reads; check that this is the right file", file=source)

@@ -24,7 +24,23 @@ Columns:
   none; leave them empty on a utility side;
 * ``type`` — ``counter-current`` (default), ``co-current``, ``1-2`` (shell-and-tube, one shell pass and
   an even number of tube passes), with ``shells`` in series (1 by default; ``shells`` > 1 without a type
-  means 1-2 shells), or ``double pipe`` (``hairpin``; rated as counter-current).
+  means 1-2 shells), or ``double pipe`` (``hairpin``; rated as counter-current);
+* ``role`` (optional) — ``exchanger``, ``heater`` or ``cooler``; checked against the hot and cold names
+  (a unit between two process streams is an exchanger, one with a hot utility a heater, one with a cold
+  utility a cooler).
+
+A heater or cooler that is the last unit on its stream (a *trim* unit) may leave both area and duty empty:
+it takes the rest of its stream's duty (a heater brings its cold stream to target, a cooler its hot
+stream).  Every other unit needs an area or a duty; that is checked when the table is resolved against the
+streams (:class:`heatloom.retrofit.ExistingNetwork`), which knows which unit is last on its stream.
+
+The units table that ``heatloom design`` writes (``design_units.csv``, sheet ``units`` of ``design.xlsx``,
+from :meth:`heatloom.network.Network.to_frame`) is a network table: besides the columns above it carries
+``LMTD [K]``, ``F [-]``, ``area per shell [m²]``, ``hot in``/``hot out``/``cold in``/``cold out [°C]``,
+``hot fraction``/``cold fraction [-]`` and ``cost [<currency>/year]``.  These are *informative*
+(:data:`INFORMATIVE_COLUMNS`): accepted and not used, since the temperatures and costs follow from the
+streams, the areas and the costs file, except the fractions: a unit on a split branch (fraction below 1) is
+refused, because the existing-network model of retrofit passes every stream through its units in series.
 
 Units may be written in the headers (``area [ft2]``, ``duty (MW)``, ``U [W/m2K]``) or in a units row under
 the header, converted with :mod:`heatloom.io.units`; title lines are skipped and foreign headers can be
@@ -41,15 +57,20 @@ import numpy as np
 
 from ..errors import InputError
 from ..model.exchangers import ExchangerType
-from ..model.existing import ExistingUnit, UnitTable
+from ..model.existing import ExistingUnit, UnitRole, UnitTable
 from .cells import cell_text
 from .tables import Table, normalise_name, parse_column_mapping, read_table
 from .units import QuantityKind
 
-__all__ = ["NETWORK_COLUMNS", "NETWORK_ALIASES", "read_network"]
+__all__ = ["NETWORK_COLUMNS", "INFORMATIVE_COLUMNS", "NETWORK_ALIASES", "read_network"]
 
-NETWORK_COLUMNS = ("unit", "hot", "cold", "area", "duty", "U", "hot_order", "cold_order", "type", "shells")
-"""Canonical columns of a network table."""
+NETWORK_COLUMNS = ("unit", "role", "hot", "cold", "area", "duty", "U", "hot_order", "cold_order", "type", "shells")
+"""Canonical columns of a network table that are read."""
+
+INFORMATIVE_COLUMNS = ("LMTD", "F", "area_per_shell", "hot_in", "hot_out", "cold_in", "cold_out", "hot_fraction",
+                       "cold_fraction", "cost")
+"""Columns of a designed network's units table that are accepted and not used (the fractions are checked:
+stream splits are refused)."""
 
 NETWORK_ALIASES: dict[str, tuple[str, ...]] = {
     "unit": ("unit", "name", "tag", "unit name", "exchanger", "equipment", "item"),
@@ -62,10 +83,26 @@ NETWORK_ALIASES: dict[str, tuple[str, ...]] = {
     "cold_order": ("cold_order", "cold position", "position on cold", "cold sequence", "cold seq"),
     "type": ("type", "arrangement", "flow arrangement", "exchanger type", "configuration"),
     "shells": ("shells", "number of shells", "shells in series", "shell count", "n shells"),
+    "role": ("role", "unit role", "service"),
+    "LMTD": ("LMTD", "log mean temperature difference"),
+    "F": ("F", "F factor", "LMTD correction factor"),
+    "area_per_shell": ("area per shell", "area_per_shell", "shell area"),
+    "hot_in": ("hot in", "hot inlet", "hot_in"),
+    "hot_out": ("hot out", "hot outlet", "hot_out"),
+    "cold_in": ("cold in", "cold inlet", "cold_in"),
+    "cold_out": ("cold out", "cold outlet", "cold_out"),
+    "hot_fraction": ("hot fraction", "hot_fraction", "hot split fraction"),
+    "cold_fraction": ("cold fraction", "cold_fraction", "cold split fraction"),
+    "cost": ("cost", "annual cost", "cost per year"),
 }
 """Accepted names of each column (compared ignoring case, spaces, underscores, hyphens and dots)."""
 
-_KINDS = {"area": QuantityKind.AREA, "duty": QuantityKind.DUTY, "U": QuantityKind.FILM_COEFFICIENT}
+_KINDS = {"area": QuantityKind.AREA, "duty": QuantityKind.DUTY, "U": QuantityKind.FILM_COEFFICIENT,
+          "LMTD": QuantityKind.TEMPERATURE_DIFFERENCE, "area_per_shell": QuantityKind.AREA,
+          **dict.fromkeys(("hot_in", "hot_out", "cold_in", "cold_out"), QuantityKind.TEMPERATURE)}
+_VOCABULARY = NETWORK_COLUMNS + INFORMATIVE_COLUMNS
+_ROLES = {"exchanger": UnitRole.EXCHANGER, "processexchanger": UnitRole.EXCHANGER, "heater": UnitRole.HEATER,
+          "cooler": UnitRole.COOLER}
 _TYPES = {
     **dict.fromkeys(("countercurrent", "counter", "counterflow", "cc", "countercurrentflow"),
                     ExchangerType.COUNTER_CURRENT),
@@ -78,7 +115,8 @@ _TYPES = {
 
 
 def read_network(path: str | os.PathLike, *, sheet: str | None = None,
-                 columns: Mapping[str, str] | str | None = None) -> UnitTable:
+                 columns: Mapping[str, str] | str | None = None, notes: list[str] | None = None,
+                 strict: bool = False) -> UnitTable:
     """Read the units of an existing network (one row per unit) from a CSV file or an Excel workbook.
 
     The table is checked row by row here; :meth:`heatloom.retrofit.ExistingNetwork.from_table` resolves
@@ -94,6 +132,10 @@ def read_network(path: str | os.PathLike, *, sheet: str | None = None,
     columns : mapping or str, optional
         Foreign header → canonical column name, e.g. ``{"Tag": "unit", "Surface": "area"}`` or
         ``"Tag=unit,Surface=area"``; ``"-"`` ignores a column.
+    notes : list of str, optional
+        Receives a note naming every column that is not used (with the nearest known name).
+    strict : bool, optional
+        Refuse unknown columns instead.
 
     Returns
     -------
@@ -104,10 +146,11 @@ def read_network(path: str | os.PathLike, *, sheet: str | None = None,
     ------
     InputError
         One line naming file, row and column: missing/unreadable file, missing columns, text in a number
-        cell, unknown units, an empty name, no area and no duty, an unknown type, shells or positions that
-        are not whole numbers.  What needs the streams (unknown streams or utilities, a side of the wrong
-        kind, positions that repeat or skip, no U and no film coefficients, stated duties a stream cannot
-        give or take) is found by :meth:`~heatloom.retrofit.ExistingNetwork.from_table`, located the same
+        cell, unknown units, an empty name, an unknown type or role, shells or positions that are not whole
+        numbers, a unit on a split branch.  What needs the streams (unknown streams or utilities, a side of
+        the wrong kind, a role that the sides contradict, positions that repeat or skip, no area and no duty
+        on a unit other than a trim heater or cooler, no U and no film coefficients, stated duties a stream
+        cannot give or take) is found by :meth:`~heatloom.retrofit.ExistingNetwork.from_table`, located the same
         way.
 
     Examples
@@ -120,16 +163,17 @@ def read_network(path: str | os.PathLike, *, sheet: str | None = None,
     >>> [(x.name, round(x.area, 3) if x.area else x.duty) for x in table.units]
     [('E1', 2.671), ('H1', 125.0), ('C1', 80.0)]
     """
-    mapping = parse_column_mapping(columns, NETWORK_COLUMNS)
-    table = read_table(path, NETWORK_COLUMNS, required=("unit", "hot", "cold", ("area", "duty")), sheet=sheet,
-                       columns=mapping, aliases=NETWORK_ALIASES,
-                       kinds={c: _KINDS.get(c) for c in NETWORK_COLUMNS})
+    mapping = parse_column_mapping(columns, _VOCABULARY)
+    table = read_table(path, _VOCABULARY, required=("unit", "hot", "cold", ("area", "duty")), sheet=sheet,
+                       columns=mapping, aliases=NETWORK_ALIASES, kinds={c: _KINDS.get(c) for c in _VOCABULARY},
+                       notes=notes, strict=strict)
     units = _units(table)
-    notes = []
+    _refuse_splits(table, units)
+    assumed = []
     if any(u.shells > 1 for u in units) and "type" not in table:
-        notes.append("units with more than one shell and no type are taken as 1-2 shell-and-tube")
-    headers = tuple((c, table.header(c)) for c in NETWORK_COLUMNS if c in table)
-    return UnitTable(tuple(units), source=table.label, headers=headers, notes=tuple(notes))
+        assumed.append("units with more than one shell and no type are taken as 1-2 shell-and-tube")
+    headers = tuple((c, table.header(c)) for c in _VOCABULARY if c in table)
+    return UnitTable(tuple(units), source=table.label, headers=headers, notes=tuple(assumed))
 
 
 # --------------------------------------------------------------------------------------------------
@@ -162,15 +206,13 @@ def _units(table: Table) -> list[ExistingUnit]:
                         "cold_order (position along the cold stream from its supply end)")
     shells = _whole(table, table.optional_numbers("shells", what="shells"), "shells", "shells")
     types = table.text("type") if "type" in table else [""] * len(table)
+    roles = table.text("role") if "role" in table else [""] * len(table)
     out = []
     for i in range(len(table)):
         for column, values, what in (("unit", names, "unit name"), ("hot", hot, "hot side (a hot stream or "
                                      "hot utility)"), ("cold", cold, "cold side (a cold stream or cold utility)")):
             if not values[i]:
                 raise table.error(f"empty cell: the {what} is required", index=i, column=column)
-        if area[i] != area[i] and duty[i] != duty[i]:
-            raise table.error(f"unit '{names[i]}' has neither area nor duty; give one of them", index=i,
-                              column="area" if "area" in table else "duty")
         for column, values, unit in (("area", area, "m²"), ("duty", duty, "kW"), ("U", u, "kW/(m²·K)")):
             if values[i] == values[i] and not values[i] > 0:
                 written = cell_text(table.columns[column].cells[i])
@@ -184,14 +226,42 @@ def _units(table: Table) -> list[ExistingUnit]:
             arrangement = ExchangerType.SHELL_AND_TUBE_1_2
         else:
             arrangement = ExchangerType.COUNTER_CURRENT
+        role = None
+        if roles[i]:
+            role = _ROLES.get(normalise_name(roles[i]))
+            if role is None:
+                raise table.error(f"unknown role {roles[i]!r}; allowed: exchanger, heater, cooler", index=i,
+                                  column="role")
         try:
             out.append(ExistingUnit(names[i], hot[i], cold[i], area=_or_none(area[i]), duty=_or_none(duty[i]),
+                                    stated_role=role,
                                     u=_or_none(u[i]), arrangement=arrangement,
                                     shells=1 if shells[i] is None else shells[i], hot_position=hot_order[i],
                                     cold_position=cold_order[i], row=int(table.rows[i])))
         except InputError as e:
             raise table.locate(e, i) from None
     return out
+
+
+def _refuse_splits(table: Table, units: list[ExistingUnit]) -> None:
+    """A unit on a split branch (hot or cold fraction below 1) cannot be represented: refuse it, named."""
+    for side in ("hot", "cold"):
+        column = f"{side}_fraction"
+        values = table.optional_numbers(column, what=f"{side} fraction")
+        for i, f in enumerate(values.tolist()):
+            if f != f:
+                continue
+            if not 0 < f <= 1 + 1e-9:
+                written = cell_text(table.columns[column].cells[i])
+                raise table.error(f"{side} fraction must be in (0, 1] (the share of the stream through this unit), "
+                                  f"got {written}", index=i, column=column)
+            if f < 1 - 1e-6:
+                u = units[i]
+                raise table.error(
+                    f"unit '{u.name}' sits on a split branch: it takes {f:.4g} of {side} stream "
+                    f"'{getattr(u, side)}'; an existing network for retrofit passes every stream through its units "
+                    "in series and cannot represent stream splits. Give the network without splits (one unit "
+                    "after another on each stream) or leave this network out of retrofit", index=i, column=column)
 
 
 def _or_none(x: float) -> float | None:

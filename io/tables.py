@@ -12,7 +12,7 @@ The readers of stream, utility and temperature–duty tables all go through here
 * **Column names.** :data:`ALIASES` lists the accepted names of each canonical column; matching
   ignores case, spaces, underscores, hyphens and dots.  A user mapping ``{foreign header: canonical
   name}`` (or ``"-"`` to ignore a column) handles foreign layouts; :func:`parse_column_mapping` reads
-  the command-line form ``"Stream=name,Tin=T_supply"``.  Other columns are ignored.
+  the command-line form ``"Line=name,Inlet=T_supply"``.  Other columns are ignored.
 * **Rows.** Rows whose recognised cells are all empty are skipped.  Every problem is an
   :class:`~heatloom.errors.InputError` naming the file (and sheet), the row as a spreadsheet shows it
   (1-based, title lines and header counted) and the column header as the user wrote it.
@@ -165,7 +165,7 @@ def split_header(text: str) -> list[tuple[str, str | None]]:
 
 def parse_column_mapping(text: str | Mapping[str, str] | None, columns: Sequence[str] | None = None
                          ) -> dict[str, str]:
-    """Read a column mapping ``"Stream=name,Tin=T_supply"`` (foreign header = canonical name).
+    """Read a column mapping ``"Line=name,Inlet=T_supply"`` (foreign header = canonical name).
 
     Pairs are separated by commas or semicolons; a target of ``-`` ignores that column.  Canonical
     names are checked against ``columns`` (by default those of :data:`ALIASES`; case and underscores do

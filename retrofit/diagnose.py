@@ -432,7 +432,8 @@ def area_efficiency(simulation: Simulation, *, default_film_coefficient: float |
     unknown = [u.name for u in net.units if u.area is None]
     if unknown:
         raise InputError(f"area efficiency needs the area of every unit; unknown for {', '.join(unknown)} (give "
-                         "their area, or a U so their stated duty can be turned into one)")
+                         "their area, or a U so their stated duty can be turned into one; a trim heater or cooler given "
+                         "with neither takes the rest of its stream's duty but has no known area: give its area)")
     notes: list[str] = []
     if simulation.problems:
         notes.append("the simulated network has problems (see the simulation): α describes it as simulated")

@@ -12,7 +12,8 @@ How each unit works in the simulation (the *operating mode*, :class:`OperatingMo
 * an exchanger is **rated** by ε-NTU at its area and U (:func:`heatloom.equipment.rating.effectiveness_from_ntu`);
 * a heater or cooler that is the **last unit on its stream** is a **trim** unit: it takes whatever duty
   brings the stream to its target (its utility flow is controlled), so its area does not enter the
-  simulation;
+  simulation, and it may be given without duty and without area (it takes the rest of the stream's duty;
+  its area then counts as unknown);
 * a heater or cooler elsewhere on its stream keeps its stated duty (**fixed duty**); without a duty it is
   **rated** by ε-NTU against its utility, which must then be (nearly) isothermal — condensing steam,
   boiling refrigerant, a glide of at most :data:`MAX_ISOTHERMAL_GLIDE` — taken at its mean temperature
@@ -191,7 +192,13 @@ class ExistingNetwork:
                                  + (f" (first in row {first})" if first is not None else "")
                                  + "; unit names must be unique", row=unit.row, column="unit")
             seen[unit.name] = unit
-            units.append(replace(unit, role=self._role(unit, streams, utilities)))
+            role = self._role(unit, streams, utilities)
+            if unit.stated_role is not None and unit.stated_role is not role:
+                raise InputError(f"unit '{unit.name}' is stated as {_article(unit.stated_role.value)} but joins "
+                                 f"'{unit.hot}' and '{unit.cold}', which makes it {_article(role.value)} (a "
+                                 f"{_ROLE_RULE}); correct the role or the hot/cold names", row=unit.row,
+                                 column="role")
+            units.append(replace(unit, role=role))
         units = self._positions(units, streams)
         units = [self._coefficient(u, streams, utilities) for u in units]
         return self._duties(units, streams, utilities, notes)
@@ -331,8 +338,9 @@ class ExistingNetwork:
                     raise InputError(
                         f"unit '{u.name}': the stated duties of the units of stream '{name}' add up to "
                         f"{walked:.6g} kW but the stream {'gives' if s.is_hot else 'takes'} {s.duty:.6g} kW "
-                        f"between supply and target, which the {u.role.value} at its end reaches (leave this "
-                        f"unit's duty empty to let it take the rest)", row=u.row, column="duty")
+                        f"between supply and target, which the {u.role.value} at its end reaches (leave the duty "
+                        f"and area of the {u.role.value} '{seq[-1].name}' empty to let it take the rest)",
+                        row=u.row, column="duty")
                 if k == 0 or seq[k - 1].duty is None:
                     break
                 t = temperature_after(s, t, -seq[k - 1].duty)
@@ -366,7 +374,7 @@ class ExistingNetwork:
                 u = self._check_duty(u, temps, streams, utilities, notes)
             if u.area is None and mode is not OperatingMode.FIXED_DUTY and mode is not OperatingMode.TRIM:
                 if u.duty is None:
-                    raise InputError(f"unit '{u.name}' has neither area nor duty; give one of them",
+                    raise InputError(f"unit '{u.name}' has neither area nor duty; {_NEITHER}",
                                      row=u.row, column="area")
                 raise InputError(
                     f"unit '{u.name}' gives a duty but no area, and its temperatures are not known without "
@@ -376,9 +384,10 @@ class ExistingNetwork:
             if u.mode is OperatingMode.RATED:
                 self._need_u(u, "is rated by its area")
             if u.area is None and u.duty is None:
-                raise InputError(f"unit '{u.name}' has neither area nor duty; give one of them", row=u.row,
-                                 column="area")
-            if u.area is None:
+                notes.append(f"{u.role.value} '{u.name}' given without duty or area: as the last unit on stream "
+                             f"'{u.process_streams[0]}' it takes the rest of the stream's duty; its area is "
+                             "unknown and does not count in the network's area")
+            elif u.area is None:
                 notes.append(f"{u.role.value} '{u.name}': area unknown (its temperatures or U are not known "
                              "from the table); it does not count in the network's area")
             out.append(u)
@@ -668,6 +677,16 @@ class ExistingNetwork:
                               "cold": u.cold, "hot_order": u.hot_position, "cold_order": u.cold_position,
                               "area [m²]": u.area, "duty [kW]": u.duty, "U [kW/(m²·K)]": u.u,
                               "type": u.arrangement.value, "shells": u.shells} for u in self.units])
+
+
+_ROLE_RULE = ("unit between two process streams is an exchanger, one with a hot utility a heater, one with a cold "
+              "utility a cooler")
+_NEITHER = ("give one of them (only a heater or cooler that is the last unit on its stream may leave both empty: "
+            "it takes the rest of the stream's duty)")
+
+
+def _article(word: str) -> str:
+    return f"{'an' if word[0] in 'aeiou' else 'a'} {word}"
 
 
 def _pair(x) -> str:

@@ -16,7 +16,8 @@ EXIT_OK, EXIT_UNEXPECTED, EXIT_INPUT, EXIT_INFEASIBLE = 0, 1, 2, 3
 
 __all__ = ["settle_currency", "price_hours", "read_cost_settings", "folder_tables", "note_lines", "EXIT_OK", "EXIT_UNEXPECTED", "EXIT_INPUT", "EXIT_INFEASIBLE", "positive", "positive_or_zero", "add_shared", "add_table_options",
            "note", "read_inputs", "whole_number", "add_output_options", "dt_min_of", "fmt", "solves_summary", "print_json", "finish", "CASE_SUFFIXES",
-           "CASE_ROLES", "case_candidates", "find_case_files", "ProgressBars", "add_cost_target_options",
+           "CASE_ROLES", "case_candidates", "find_case_files", "ProgressBars", "stderr_is_terminal",
+           "megabytes", "add_input_limit_option", "input_limit", "add_cost_target_options",
            "add_site_table_options", "check_cost_target_inputs", "number_list", "zone_streams",
            "read_scenario_inputs"]
 
@@ -98,16 +99,48 @@ def add_shared(p: argparse.ArgumentParser) -> None:
     add_output_options(p)
 
 
+def megabytes(text: str) -> int:
+    """An argparse type: a size in MiB (``"500"``, ``"0.5"``) → bytes.
+
+    Examples
+    --------
+    >>> megabytes("1"), megabytes("0.5")
+    (1048576, 524288)
+    """
+    try:
+        x = float(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"expected a size in MiB, e.g. 500, got {text!r}") from None
+    if not (x > 0) or x == float("inf") or x * 2**20 < 1:
+        raise argparse.ArgumentTypeError(f"must be a finite size > 0 MiB, got {text!r}")
+    return int(x * 2**20)
+
+
+def add_input_limit_option(p: argparse.ArgumentParser) -> None:
+    """--max-input-mb: the largest input file read (every command that reads files)."""
+    p.add_argument("--max-input-mb", dest="max_input_bytes", type=megabytes, default=None, metavar="MB",
+                   help=f"largest input file read [MiB] (default {defaults.MAX_INPUT_BYTES / 2**20:g} MiB; a larger "
+                        "file is refused as almost surely the wrong one; devices and pipes are always refused)")
+
+
+def input_limit(args):
+    """The input size limit of a run (``--max-input-mb``) in force for the block, as a context manager:
+    ``with input_limit(args): ...`` (:func:`heatloom.defaults.input_size_limit`)."""
+    return defaults.input_size_limit(getattr(args, "max_input_bytes", None))
+
+
 def add_table_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--sheet", metavar="NAME", help="worksheet of the stream table (default: the first)")
     p.add_argument("--utilities-sheet", metavar="NAME", help="worksheet of the utility table")
     p.add_argument("--columns", metavar="MAP",
-                   help='map foreign column headers, e.g. "Stream=name,Tin=T_supply,Tout=T_target,FCp=CP"')
+                   help='map column headers heatloom does not know to its columns, e.g. '
+                        '"Line=name,Inlet=T_supply,Outlet=T_target,Wcp=CP"')
     p.add_argument("--fit-tolerance", type=positive, default=0.5, metavar="K",
                    help="largest temperature error when fitting temperature–duty points into linear "
                         "segments [K] (default 0.5 K; the fit is always on the safe side)")
     p.add_argument("--strict", action="store_true",
                    help="refuse columns the tables do not use (by default they are named on stderr and ignored)")
+    add_input_limit_option(p)
 
 
 def add_cost_target_options(p: argparse.ArgumentParser) -> None:
@@ -128,9 +161,11 @@ def add_site_table_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--one-zone-workbook", action="store_true",
                    help="read a workbook's first sheet as one zone instead of one zone per sheet")
     p.add_argument("--columns", metavar="MAP",
-                   help='map foreign column headers of the stream tables, e.g. "Stream=name,Tin=T_supply"')
+                   help='map column headers of the stream tables that heatloom does not know, e.g. '
+                        '"Line=name,Inlet=T_supply,Outlet=T_target,Wcp=CP"')
     p.add_argument("--fit-tolerance", type=positive, default=0.5, metavar="K",
                    help="largest temperature error when fitting temperature–duty points [K] (default 0.5 K)")
+    add_input_limit_option(p)
 
 
 def check_cost_target_inputs(missing: list[str], default_h: float | None, cluster: str | None) -> None:
@@ -303,7 +338,11 @@ def print_json(result) -> None:
 
 
 def finish(args, result: dict, summary: str, out) -> int:
-    """Print the run's outcome: the JSON object with --json, else the summary and the files written."""
+    """Print the run's outcome: the JSON object with --json, else the summary and the files written; on
+    stderr, why the results went to a subfolder of --out (:attr:`heatloom.io.export.OutputDirectory.redirect_note`).
+    """
+    if out is not None and out.redirect_note and not args.quiet:
+        print(f"note: {out.redirect_note}", file=sys.stderr)
     if args.json:
         print_json(result)
     else:
@@ -313,8 +352,26 @@ def finish(args, result: dict, summary: str, out) -> int:
     return EXIT_OK
 
 
+def stderr_is_terminal() -> bool:
+    """Whether stderr is a terminal: progress bars are drawn only there, never into a log file or a pipe
+    (where every redraw would leave a line of junk).
+
+    Examples
+    --------
+    >>> import contextlib, io
+    >>> with contextlib.redirect_stderr(io.StringIO()):
+    ...     stderr_is_terminal()
+    False
+    """
+    try:
+        return bool(sys.stderr.isatty())
+    except (AttributeError, ValueError):    # no stderr, or a closed one
+        return False
+
+
 class ProgressBars:
-    """Progress of a long run as tqdm bars on stderr, and nothing at all when disabled (--quiet, --json).
+    """Progress of a long run as tqdm bars on stderr, and nothing at all when disabled (--quiet, --json) or
+    when stderr is not a terminal (:func:`stderr_is_terminal`: a log file or a pipe gets no bars).
 
     One object serves the three shapes of progress the commands show, each through a callback of its own
     to hand to the API:
@@ -333,7 +390,7 @@ class ProgressBars:
     label : str
         What runs (``"heatloom sweep"``), at the head of every bar.
     enabled : bool
-        False draws nothing and imports nothing.
+        False draws nothing and imports nothing; True draws only when stderr is a terminal.
     unit : str
         What one count of a bar is (``"task"``, ``"step"``, ``"epoch"``).
     steps : int, optional
@@ -350,7 +407,7 @@ class ProgressBars:
     def __init__(self, label: str, enabled: bool, *, unit: str = "task", steps: int | None = None,
                  describe_best=None) -> None:
         self.label = label
-        self.enabled = enabled
+        self.enabled = enabled and stderr_is_terminal()
         self.unit = unit
         self.steps = steps
         self.describe_best = describe_best or str

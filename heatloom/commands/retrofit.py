@@ -14,6 +14,7 @@ from .common import (
     find_case_files,
     finish,
     fmt,
+    input_limit,
     note,
     note_lines,
     positive,
@@ -34,10 +35,13 @@ examples:
   heatloom retrofit plant/ --costs plant/costs.json --out plant/retrofit --force
 
 NETWORK is the existing network table (one row per unit: unit, hot, cold, area and/or duty, U,
-hot_order, cold_order, type, shells), or a case folder whose files are found by name: 'streams',
+hot_order, cold_order, type, shells, role), or a case folder whose files are found by name: 'streams',
 'network', 'utilities' and 'costs' (CSV or .xlsx; costs JSON, YAML or .xlsx); options given on the
-command line take precedence. The costs file may carry a 'retrofit' section pricing new exchangers,
-added area, repiping and resequencing (illustrative defaults otherwise).
+command line take precedence. A heater or cooler last on its stream may leave area and duty empty: it
+takes the rest of the stream's duty. The units table 'heatloom design' writes (design_units.csv, or
+the sheet 'units' of design.xlsx) is a network table too, read as it is when it has no stream splits.
+The costs file may carry a 'retrofit' section pricing new exchangers, added area, repiping and
+resequencing (illustrative defaults otherwise).
 
 Options are ranked by net present value (interest rate and plant life from the costs file); every
 option is simulated after the change and keeps the minimum approach in every unit.
@@ -62,6 +66,7 @@ def register(sub) -> None:
                        epilog=EPILOG_RETROFIT, formatter_class=argparse.RawDescriptionHelpFormatter)
     p.add_argument("network", metavar="NETWORK", help="existing network table (CSV or .xlsx), or a case folder")
     p.add_argument("--streams", metavar="FILE", help="stream table (CSV or .xlsx); found by name in a case folder")
+    p.add_argument("--network-sheet", metavar="NAME", help="worksheet of the network table (default: the first)")
     add_shared(p)
     add_table_options(p)
     p.add_argument("--costs", metavar="FILE", help="cost laws, interest rate, plant life and an optional "
@@ -192,6 +197,11 @@ def _frames(result):
 
 
 def run(args) -> int:
+    with input_limit(args):
+        return _run(args)
+
+
+def _run(args) -> int:
     from ..io import read_streams, read_utilities
     from ..io.costs import read_retrofit_costs
     from ..io.network_table import read_network
@@ -216,7 +226,11 @@ def run(args) -> int:
         utilities = read_utilities(files["utilities"], sheet=args.utilities_sheet, process=streams,
                                    hours_per_year=price_hours(costs))
         costs = settle_currency(costs, utilities)
-    network = ExistingNetwork.from_table(streams, read_network(files["network"]), utilities)
+    column_notes: list[str] = []
+    table = read_network(files["network"], sheet=args.network_sheet, notes=column_notes, strict=args.strict)
+    for n in column_notes:
+        note(args, f"note: {n} (ignored; --strict refuses unknown columns)")
+    network = ExistingNetwork.from_table(streams, table, utilities)
     rcosts = read_retrofit_costs(files["costs"]) if "costs" in files else None
     from ..retrofit.options import retrofit_options
 

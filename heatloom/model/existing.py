@@ -78,6 +78,13 @@ class ExistingUnit:
         order of the units in the network.  None on a utility side.
     row : int, optional
         Row of the source table (for messages).
+    stated_role : UnitRole, optional
+        The role the table states (its ``role`` column), checked against the one the hot and cold sides
+        give when the network is resolved.
+
+    A heater or cooler that is the last unit on its stream (a *trim* unit) may have neither area nor duty:
+    it takes the rest of its stream's duty, bringing the stream to its target.  Every other unit needs an
+    area or a duty (checked by :class:`ExistingNetwork`, which knows the streams).
 
     Attributes filled in by :class:`ExistingNetwork`: ``role`` (:class:`UnitRole`), ``mode``
     (:class:`OperatingMode`), ``area_from_duty``, ``u_from_films``.
@@ -94,6 +101,7 @@ class ExistingUnit:
     hot_position: int | None = None
     cold_position: int | None = None
     row: int | None = field(default=None, compare=False)
+    stated_role: UnitRole | None = None
     role: UnitRole | None = None
     mode: OperatingMode | None = None
     area_from_duty: bool = False
@@ -124,6 +132,12 @@ class ExistingUnit:
                 raise InputError(f"unit '{name}': {column} must be a finite number > 0 {unit}, got {v!r}",
                                  column=column, **where)
             object.__setattr__(self, attr, x)
+        if self.stated_role is not None and not isinstance(self.stated_role, UnitRole):
+            try:
+                object.__setattr__(self, "stated_role", UnitRole(str(self.stated_role).strip().lower()))
+            except ValueError:
+                raise InputError(f"unit '{name}': unknown role {self.stated_role!r}; allowed: exchanger, heater, "
+                                 "cooler", column="role", **where) from None
         try:
             object.__setattr__(self, "arrangement", _arrangement_of(self.arrangement))
         except InputError as e:

@@ -34,6 +34,15 @@ def report_command(monkeypatch):
     monkeypatch.setattr(cli, "COMMANDS", tuple(dict.fromkeys((*cli.COMMANDS, "report"))))
 
 
+@pytest.fixture(autouse=True)
+def work_dir(tmp_path, monkeypatch):
+    """Every test runs in a folder of its own: without --out a report goes into the current directory."""
+    folder = tmp_path / "cwd"
+    folder.mkdir()
+    monkeypatch.chdir(folder)
+    return folder
+
+
 def run(capsys, *args):
     code = cli.main([str(a) for a in args])
     out = capsys.readouterr()
@@ -125,16 +134,19 @@ def done(case, capsys):
 
 
 @pytest.mark.slow
-def test_case_folder_report_and_workbook(done):
+def test_case_folder_report_and_workbook(done, work_dir):
     case, code, data, err = done
     assert code == 0
-    out = case / "report"                                  # default: a report folder inside the case folder
+    out = Path("sinnott case_report")                      # default: <case name>_report in the current directory
     assert data["report"] == str(out / "report.html") and data["workbook"] == str(out / "study.xlsx")
-    assert sorted(p.name for p in out.iterdir()) == ["report.html", "study.xlsx"]
+    assert sorted(p.name for p in (work_dir / out).iterdir()) == ["report.html", "study.xlsx"]
+    assert sorted(p.name for p in case.iterdir()) == ["costs.json", "notes.txt", "streams.csv"]   # case untouched
+    assert "writing the report into sinnott case_report/ in the current directory (default; set with --out" in err
     assert data["sections"] == ["summary", "inputs", "assumptions", "targets", "sweep", "design", "tac", "safety",
                                 "methods", "about"]
     assert data["not_computed"] == []
-    assert data["figures"] == 6                            # composite, grand composite, 2 sweep, 2 grid diagrams
+    # composite, grand composite, balanced composite, driving force, 2 sweep, 2 grid diagrams
+    assert data["figures"] == 8
     # Sinnott, Coulson & Richardson Vol. 6, ch. 3, Table 3.6: 50 kW hot, 30 kW cold, pinch 90/80 °C
     t = data["targets"]
     assert (t["hot_utility"], t["cold_utility"], t["pinch"]["hot"], t["pinch"]["cold"]) == (50, 30, 90, 80)
@@ -152,12 +164,12 @@ def test_case_folder_report_and_workbook(done):
 def test_summary_line_progress_and_quiet(case, capsys):
     code, out, err = run(capsys, "report", case / "streams.csv", "--out", case / "a", "--sweep", "5:20")
     assert code == 0
-    assert re.fullmatch(r"report: 10 sections, 5 figures → .*report\.html\n", out)
+    assert re.fullmatch(r"report: 10 sections, 7 figures → .*report\.html\n", out)
     assert "heatloom report" in err                        # the progress bar, on stderr
     assert "not computed" in err and "--tac" in err         # the TAC design was not asked for, and it says so
     code, out, err = run(capsys, "report", case / "streams.csv", "--out", case / "b", "--sweep", "5:20", "--quiet")
     assert code == 0 and err == ""
-    assert out.startswith("report: 10 sections, 5 figures → ")
+    assert out.startswith("report: 10 sections, 7 figures → ")
 
 
 def test_one_progress_class_serves_steps_phases_and_searches(capsys):
@@ -191,7 +203,7 @@ def test_one_progress_class_serves_steps_phases_and_searches(capsys):
 def test_refuses_to_overwrite_without_force(case, capsys):
     code, _, _ = run(capsys, "report", case, "--quiet", "--sweep", "5:10")
     assert code == 0
-    report = case / "report" / "report.html"
+    report = Path("sinnott case_report") / "report.html"
     before = report.read_bytes()
     code, out, err = run(capsys, "report", case, "--quiet")
     assert code == 2 and "already exists" in err and "--force" in err and out == ""
@@ -248,7 +260,7 @@ def test_missing_film_coefficients_still_give_a_report(tmp_path, reference, caps
     assert all("film coefficient" in n["why"] for n in data["not_computed"] if n["where"] != "Network of lowest "
                "total annual cost")
     html = (tmp_path / "r" / "report.html").read_text(encoding="utf-8")
-    assert "--default-h" in html and html.count("<svg") == data["figures"] == 2
+    assert "--default-h" in html and html.count("<svg") == data["figures"] == 4   # the four curve figures
 
 
 def test_infeasible_utilities_give_a_report_and_exit_3(tmp_path, reference, capsys):
@@ -258,7 +270,7 @@ def test_infeasible_utilities_give_a_report_and_exit_3(tmp_path, reference, caps
                                             "cooling water,20,30,5\n", encoding="utf-8")
     code, out, err = run(capsys, "report", tmp_path, "--quiet")
     assert code == 3 and "energy targets not computed" in err
-    html = (tmp_path / "report" / "report.html").read_text(encoding="utf-8")
+    html = (Path(f"{tmp_path.name}_report") / "report.html").read_text(encoding="utf-8")
     assert "Not computed: energy targets." in html
 
 
@@ -276,9 +288,9 @@ def test_existing_network_gives_the_retrofit_diagnosis_and_options(tmp_path, cap
     assert code == 0
     data = json.loads(out)
     assert data["sections"][-5:] == ["retrofit", "retrofit_options", "safety", "methods", "about"]
-    # composite, grand composite, 2 sweep, MER grid, TAC grid, existing grid, retrofit curve, savings,
-    # proposed grid: the TAC design now takes the overhead's three segments too
-    assert data["figures"] == 10
+    # composite, grand composite, balanced composite, driving force, 2 sweep, MER grid, TAC grid, existing
+    # grid, retrofit curve, savings, proposed grid: the TAC design now takes the overhead's three segments too
+    assert data["figures"] == 12
     assert data["not_computed"] == []
     streams = read_streams(EXISTING / "streams.csv")
     utilities = read_utilities(EXISTING / "utilities.csv", process=streams)
@@ -287,7 +299,8 @@ def test_existing_network_gives_the_retrofit_diagnosis_and_options(tmp_path, cap
     sheets = pd.read_excel(tmp_path / "study.xlsx", sheet_name=None)
     assert {"retrofit", "retrofit units", "retrofit cross-pinch", "retrofit curve", "retrofit options"} <= set(sheets)
     cross = sheets["retrofit cross-pinch"]
-    assert cross["net [kW]"].tolist() == pytest.approx([u.net for u in d.cross_pinch.units])
+    # written to 0.001 kW (heatloom.defaults.OUTPUT_PRECISION)
+    assert cross["net [kW]"].tolist() == pytest.approx([u.net for u in d.cross_pinch.units], abs=1e-3)
     html = (tmp_path / "report.html").read_text(encoding="utf-8")
     for u in d.cross_pinch.units:
         assert f'data-value="{u.net!r}"' in html
@@ -297,9 +310,9 @@ def test_existing_network_gives_the_retrofit_diagnosis_and_options(tmp_path, cap
     assert r.options
     options = sheets["retrofit options"]
     assert options["rank"].tolist() == [o.rank for o in r.options]
-    assert options["saving [kW]"].tolist() == pytest.approx([o.saving for o in r.options])
-    assert options["investment [USD]"].tolist() == pytest.approx([o.investment for o in r.options])
-    assert options["NPV [USD]"].tolist() == pytest.approx([o.npv for o in r.options])
+    assert options["saving [kW]"].tolist() == pytest.approx([o.saving for o in r.options], abs=1e-3)
+    assert options["investment [USD]"].tolist() == pytest.approx([o.investment for o in r.options], abs=1e-2)
+    assert options["NPV [USD]"].tolist() == pytest.approx([o.npv for o in r.options], abs=1e-2)
     assert options["payback [year]"].tolist() == pytest.approx([o.payback_years for o in r.options])
     assert options["changes"].tolist() == ["; ".join(o.steps) for o in r.options]
     section = html[html.index('<section id="retrofit_options">'):html.index('<section id="safety">')]
@@ -329,11 +342,11 @@ def test_site_folder_gives_a_site_report(tmp_path, capsys):
     assert code == 0
     data = json.loads(out)
     assert data["sections"] == ["summary", "inputs", "assumptions", "zones", "mains", "safety", "methods", "about"]
-    assert data["figures"] == 2 and data["not_computed"] == []
+    assert data["figures"] == 3 and data["not_computed"] == []    # zone grand composites, zone and site profiles
     site = site_targets(list(read_site(SITE).zones), read_site(SITE).mains, 10.0)
     assert data["site"]["saving"]["duty"] == pytest.approx(site.saving)
     html = (tmp_path / "report.html").read_text(encoding="utf-8")
-    assert html.count("<svg") == 2
+    assert html.count("<svg") == 3
     for z in site.zones:
         assert f'data-value="{z.hot_utility!r}"' in html and f'data-value="{z.cold_utility!r}"' in html
     for value in (site.saving, site.site_hot_utility, site.zone_by_zone_hot_utility, site.saving_money):
@@ -347,7 +360,7 @@ def test_site_folder_gives_a_site_report(tmp_path, capsys):
     assert list(sheets) == list(SITE_SHEETS)
     zones = sheets["zones"]
     assert zones["zone"].tolist() == [z.name for z in site.zones]
-    assert zones["hot utility [kW]"].tolist() == pytest.approx([z.hot_utility for z in site.zones])
+    assert zones["hot utility [kW]"].tolist() == pytest.approx([z.hot_utility for z in site.zones], abs=1e-3)
     mains = sheets["mains"].set_index("main")
     for b in site.mains:
         assert mains.loc[b.main.name, "site duty [kW]"] == pytest.approx(b.site_duty)
@@ -370,13 +383,13 @@ def test_site_folder_with_a_prices_table_adds_the_price_scenarios(tmp_path, caps
     code, out, _ = run(capsys, "report", SITE, "--out", tmp_path / "a", "--json")
     assert code == 0
     data = json.loads(out)                   # prices per MWh without --hours-per-year: said, not fatal
-    assert "scenarios" in data["sections"] and data["figures"] == 2
+    assert "scenarios" in data["sections"] and data["figures"] == 3
     assert any(n["where"] == "Price scenarios" and "--hours-per-year" in n["why"] for n in data["not_computed"])
     code, out, _ = run(capsys, "report", SITE, "--out", tmp_path / "b", "--json", "--hours-per-year", "8000",
                        "--default-h", "0.8", "--sweep", "5:25")
     assert code == 0
     data = json.loads(out)
-    assert data["figures"] == 3 and data["not_computed"] == []
+    assert data["figures"] == 4 and data["not_computed"] == []
     zones = read_site(SITE).zones
     utilities = read_utilities(SITE / "utilities.csv", process=common.zone_streams(zones))
     plans = read_price_scenarios(SITE / "prices.csv", utilities, hours_per_year=8000)
@@ -385,7 +398,7 @@ def test_site_folder_with_a_prices_table_adds_the_price_scenarios(tmp_path, caps
     sheets = pd.read_excel(tmp_path / "b" / "study.xlsx", sheet_name=None)
     optima = sheets["scenario optima"]
     assert len(optima) == len(study.optima) == 3 * 4
-    assert optima["ΔTmin [K]"].tolist() == pytest.approx([o.optimum.dt_min for o in study.optima])
+    assert optima["ΔTmin [K]"].tolist() == pytest.approx([o.optimum.dt_min for o in study.optima], abs=1e-3)
     html = (tmp_path / "b" / "report.html").read_text(encoding="utf-8")
     assert "Price scenarios" in html and "gas +40 %" in html and "Linnhoff, B., Ahmad, S. (1990)" in html
 
@@ -402,3 +415,59 @@ def test_a_stray_stream_table_is_refused_not_taken_for_a_site(tmp_path, capsys):
     err = capsys.readouterr().err
     assert code == 2 and "several files could be the stream table: streams.csv, streams_backup.csv" in err
     assert not (tmp_path / "out").exists()
+
+
+# --------------------------------------------------------------------------------------------------
+# where the report goes by default (issue 15: never into the case folder)
+
+
+def test_default_folder_is_outside_the_case_and_said(case, work_dir, capsys):
+    code, out, err = run(capsys, "report", case / "streams.csv", "--sweep", "5:10")
+    assert code == 0
+    folder = work_dir / "streams_report"                   # the stream table's name, in the current directory
+    assert sorted(p.name for p in folder.iterdir()) == ["report.html", "study.xlsx"]
+    assert "writing the report into streams_report/ in the current directory (default; set with --out DIR)" in err
+    assert sorted(p.name for p in case.iterdir()) == ["costs.json", "notes.txt", "streams.csv"]
+    code, _, err = run(capsys, "report", case / "streams.csv", "--sweep", "5:10", "--quiet")
+    assert code == 2 and "already exists" in err and "writing the report into" not in err   # --quiet: said nothing
+    assert report.default_out_folder(case) == Path("sinnott case_report")
+
+
+def test_help_states_the_default_folder(capsys):
+    with pytest.raises(SystemExit):
+        cli.main(["report", "--help"])
+    text = " ".join(capsys.readouterr().out.split())
+    assert "'<case name>_report' in the current directory" in text and "never into the case folder itself" in text
+
+
+@pytest.mark.slow
+def test_shipped_site_case_runs_every_section(work_dir, capsys):
+    """The shipped three-zone case (invented) with the command of its README: every section computed, the film
+    coefficient assumed for the price scenarios stated, each zone's grand composite curve against the mains."""
+    import xml.etree.ElementTree as ET
+
+    code, out, err = run(capsys, "report", SITE, "--hours-per-year", "8000", "--default-h", "0.8", "--sweep", "2:30",
+                         "--json")
+    assert code == 0
+    data = json.loads(out)
+    assert data["not_computed"] == []
+    assert data["sections"] == ["summary", "inputs", "assumptions", "zones", "mains", "scenarios", "safety",
+                                "methods", "about"]
+    assert data["report"] == str(Path("three_zone_site_report") / "report.html")
+    html = (work_dir / data["report"]).read_text(encoding="utf-8")
+    assert "Not computed" not in html
+    assert "film coefficient (price scenarios)" in html and "0.8 kW/(m²·K) assumed for" in html
+    root = ET.fromstring(html.replace("<!DOCTYPE html>", ""))
+    figures = {f.get("id"): f for f in root.iter("figure")}
+    assert list(figures) == ["fig-zone-grand-composite", "fig-zone-profiles", "fig-site-profiles",
+                             "fig-scenario-costs"] and data["figures"] == 4
+    # the figures by their SVG text (matplotlib keeps each text as a comment beside its glyphs)
+    svgs = re.findall(r"<figure id=\"([^\"]+)\".*?</figure>", html, flags=re.S)
+    assert svgs == list(figures)
+    blocks = dict(zip(svgs, re.findall(r"<figure id=\"[^\"]+\".*?</figure>", html, flags=re.S)))
+    gcc = re.findall(r"<!-- (.*?) -->", blocks["fig-zone-grand-composite"])
+    assert {"evaporation (ΔTmin 10 K)", "polymer_finishing (ΔTmin 10 K)", "synthesis_loop (ΔTmin 10 K)"} <= set(gcc)
+    assert any(t.startswith("HP steam raise") for t in gcc) and any(t.startswith("LP steam use") for t in gcc)
+    scen = re.findall(r"<!-- (.*?) -->", blocks["fig-scenario-costs"])
+    for name in ("2026 contract", "gas +40 %", "carbon levy on steam", "cheap gas"):
+        assert scen.count(name) == 4                         # a label at the line's end in 3 panels, the legend

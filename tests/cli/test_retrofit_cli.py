@@ -71,7 +71,8 @@ def test_json_shape_on_the_case_folder(capsys):
         assert o["payback_years"] == pytest.approx(o["investment"] / o["saving_per_year"])
         net = o["network"]
         assert {"exchangers", "heaters", "coolers", "hot_utility", "cold_utility", "units"} <= set(net)
-        assert net["hot_utility"] == pytest.approx(data["current"]["hot_utility"] - o["saving"])
+        # three values each written to 0.001 kW (heatloom.defaults.OUTPUT_PRECISION)
+        assert net["hot_utility"] == pytest.approx(data["current"]["hot_utility"] - o["saving"], abs=1.5e-3)
     assert data["interest_rate"] == 0.08 and data["years"] == 8                 # from the case's costs.json
 
 
@@ -124,9 +125,53 @@ def test_missing_stream_table_is_an_input_error(capsys, tmp_path):
 
 
 def test_earlier_result_in_the_out_folder_is_kept(capsys, tmp_path):
+    # --out names the case folder, which holds the inputs: the results go to its subfolder 'results'
     folder = tmp_path / "case"
     shutil.copytree(CASE, folder, ignore=shutil.ignore_patterns("outputs"))
-    (folder / "retrofit.json").write_text("{}", encoding="utf-8")
+    (folder / "results").mkdir()
+    (folder / "results" / "retrofit.json").write_text("{}", encoding="utf-8")
     code, _, err = run(capsys, "retrofit", folder, "--out", folder, *FAST)
     assert code == 2 and "already exists" in err
-    assert (folder / "retrofit.json").read_text(encoding="utf-8") == "{}"
+    assert (folder / "results" / "retrofit.json").read_text(encoding="utf-8") == "{}"
+
+
+def test_out_into_the_case_folder_writes_into_its_results_subfolder(capsys, tmp_path):
+    folder = tmp_path / "case"
+    shutil.copytree(CASE, folder, ignore=shutil.ignore_patterns("outputs", "report"))
+    before = sorted(p.name for p in folder.iterdir())
+    code, out, err = run(capsys, "retrofit", folder, "--out", folder, *FAST)
+    assert code == 0, err
+    assert sorted(p.name for p in folder.iterdir()) == sorted(before + ["results"])   # nothing beside the inputs
+    assert (folder / "results" / "retrofit.json").is_file()
+    assert f"note: --out {folder} holds input files of this run (" in err
+    assert f"results go to {folder / 'results'}/, never beside the inputs" in err
+    assert f"files to {folder / 'results'}/" in out
+
+
+def test_design_units_table_is_read_by_retrofit(capsys, tmp_path):
+    # issue 14 item 16: the network design writes is an existing network for retrofit.  Streams, film
+    # coefficients and utilities of Yee & Grossmann (1990) as given by Roetzel, Luo & Chen (2020), ch. 6,
+    # Table 6.16 (tests/data/references/synthesis_yee_grossmann_2h2c.json); at ΔTmin 10 K the design has no
+    # stream split.  Minimum hot utility 200 kW by the problem table by hand (tests/io/test_design_table_roundtrip.py).
+    data = json.loads((ROOT / "tests" / "data" / "references" / "synthesis_yee_grossmann_2h2c.json").read_text())
+    k = 273.15
+    (tmp_path / "streams.csv").write_text("name,T_supply [K],T_target [K],CP [kW/K],h [kW/m2K]\n" + "".join(
+        f"{x['name']},{x['T_supply']},{x['T_target']},{x['CP']},{x['h']}\n" for x in data["streams"]))
+    (tmp_path / "utilities.csv").write_text("name,T_supply [°C],T_target [°C],cost [USD/(kW·year)],h [kW/m2K]\n" + "".join(
+        f"{x['name']},{x['T_supply'] - k:.2f},{x['T_target'] - k:.2f},{x['cost_per_kW_year']},{x['h']}\n"
+        for x in data["utilities"]))
+    inputs = ("--utilities", tmp_path / "utilities.csv")
+    code, _, err = run(capsys, "design", tmp_path / "streams.csv", *inputs, "--dtmin", "10",
+                       "--out", tmp_path / "designed", "--quiet")
+    assert code == 0, err
+    units = pd.read_csv(tmp_path / "designed" / "design_units.csv")
+    assert (units["hot fraction [-]"] == 1).all() and (units["cold fraction [-]"] == 1).all()
+    for source, extra in ((tmp_path / "designed" / "design_units.csv", ()),
+                          (tmp_path / "designed" / "design.xlsx", ("--network-sheet", "units"))):
+        code, out, err = run(capsys, "retrofit", source, "--streams", tmp_path / "streams.csv", *inputs,
+                             "--dtmin", "10", "--json", "--strict", *extra, *FAST)
+        assert code == 0, err
+        result = json.loads(out)
+        assert result["targets"]["hot_utility"] == pytest.approx(200.0, rel=1e-9)
+        # a maximum-energy-recovery design sits on its targets at its own areas
+        assert result["current"]["hot_utility"] == pytest.approx(200.0, rel=1e-3)

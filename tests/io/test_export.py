@@ -12,10 +12,12 @@ import os
 import openpyxl
 import pandas as pd
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from heatloom.cli import main
 from heatloom.io.cells import FORMULA_TRIGGERS
-from heatloom.io.export import OutputDirectory, neutralise
+from heatloom.io.export import OutputDirectory, neutralise, rounded, to_jsonable, unit_precision
 
 HOSTILE = "=cmd|' /C calc'!A0"
 
@@ -120,3 +122,110 @@ def test_an_output_folder_that_cannot_be_made_is_an_input_error(capsys, tmp_path
     code, _, err = run(capsys, "target", src, "--out", blocker / "results")
     assert code == 2 and "cannot create the output folder" in err and str(blocker) in err
     assert "Traceback" not in err and "bug" not in err
+
+
+# --------------------------------------------------------------------------------------------------
+# output precision (issue 15: float noise), heatloom.defaults.OUTPUT_PRECISION
+
+
+def test_float_noise_is_rounded_away_in_json_csv_and_xlsx(tmp_path):
+    import json
+
+    from heatloom import defaults
+
+    assert dict(defaults.OUTPUT_PRECISION) == {"duty": 3, "temperature": 3, "area": 3, "money": 2}
+    out = OutputDirectory(tmp_path)
+    frame = pd.DataFrame({"unit": ["E1"], "duty [kW]": [772.5000000000009], "hot in [°C]": [149.85000000000002],
+                          "LMTD [K]": [27.659887023], "area [m²]": [14.310735723567204],
+                          "cost [EUR/year]": [2721.733452441149], "CP [kW/K]": [4.800000000000011]})
+    out.csv("units.csv", frame)
+    row = next(csv.DictReader((tmp_path / "units.csv").open(encoding="utf-8")))
+    assert row["duty [kW]"] == "772.5" and row["hot in [°C]"] == "149.85" and row["LMTD [K]"] == "27.66"
+    assert row["area [m²]"] == "14.311" and row["cost [EUR/year]"] == "2721.73"
+    assert row["CP [kW/K]"] == "4.800000000000011"      # a heat capacity flow rate is not a rounded kind
+    out.workbook("units.xlsx", {"units": frame})
+    ws = openpyxl.load_workbook(tmp_path / "units.xlsx")["units"]
+    assert [c.value for c in ws[2]][1:6] == [772.5, 149.85, 27.66, 14.311, 2721.73]
+    out.json("result.json", {"hot_utility": 772.5000000000009, "exchangers": [{"duty": 1659.5000000000011,
+                             "hot_in": 149.85000000000002, "area": 144.42154023057333, "u": 0.631578947368421,
+                             "cost": 2721.733452441149}], "utilities": {"steam": 100.00000000000003}})
+    data = json.loads((tmp_path / "result.json").read_text(encoding="utf-8"))
+    assert data == {"hot_utility": 772.5, "exchangers": [{"duty": 1659.5, "hot_in": 149.85, "area": 144.422,
+                    "u": 0.631578947368421, "cost": 2721.73}], "utilities": {"steam": 100.0}}
+    # a long table: each value takes the unit of its row
+    out.workbook("targets.xlsx", {"t": pd.DataFrame({"quantity": ["hot utility", "net CP"],
+                                                     "value": [772.5000000000009, 4.800000000000011],
+                                                     "unit": ["kW", "kW/K"]})})
+    ws = openpyxl.load_workbook(tmp_path / "targets.xlsx")["t"]
+    assert ws["B2"].value == 772.5 and ws["B3"].value == 4.800000000000011
+
+
+@settings(max_examples=200, deadline=None)
+@given(st.floats(min_value=-1e9, max_value=1e9, allow_nan=False),
+       st.sampled_from(["kW", "°C", "K", "m²", "USD", "EUR/year", "money/year"]))
+def test_rounding_changes_a_value_by_at_most_half_its_last_place(x, unit):
+    places = unit_precision(unit)
+    y = rounded(x, places)
+    assert abs(y - x) <= 0.5 * 10.0 ** -places * (1 + 1e-9) + abs(x) * 1e-15
+    assert rounded(y, places) == y                        # idempotent: writing twice changes nothing
+    assert to_jsonable({"duty": x})["duty"] == rounded(x, 3)
+
+
+def test_only_the_stated_kinds_are_rounded():
+    for unit in ("kW/K", "kW/(m²·K)", "USD/(kW·year)", "-", "%", "1/year", "h/year", None):
+        assert unit_precision(unit) is None
+        assert rounded(0.123456789, unit_precision(unit)) == 0.123456789
+    assert to_jsonable({"wall_time": 0.123456789, "gap": 1e-7, "interest_rate": 0.0812345}) == \
+        {"wall_time": 0.123456789, "gap": 1e-7, "interest_rate": 0.0812345}
+
+
+# --------------------------------------------------------------------------------------------------
+# --out naming a folder of inputs: results go to its subfolder (issue 14, item 8)
+
+
+def test_results_go_to_a_subfolder_of_a_folder_holding_inputs(tmp_path):
+    from heatloom.io.export import RESULTS_FOLDER
+
+    case = tmp_path / "case"
+    case.mkdir()
+    (case / "streams.csv").write_text(TABLE, encoding="utf-8")
+    (case / "notes.txt").write_text("mine", encoding="utf-8")
+    out = OutputDirectory(case, [case / "streams.csv"])
+    assert out.path == case / RESULTS_FOLDER
+    assert out.redirect_note == (f"--out {case} holds input files of this run (streams.csv): results go to "
+                                 f"{case / RESULTS_FOLDER}/, never beside the inputs")
+    out.text("a.txt", "x")
+    assert sorted(p.name for p in case.iterdir()) == ["notes.txt", RESULTS_FOLDER, "streams.csv"]
+    # a folder without inputs is used as it is
+    other = OutputDirectory(tmp_path / "elsewhere", [case / "streams.csv"])
+    assert other.path == tmp_path / "elsewhere" and other.redirect_note is None
+    # an input named through a link in --out counts, and so does --out where a linked input lives
+    linked = tmp_path / "linked"
+    linked.mkdir()
+    os.symlink(case / "streams.csv", linked / "feed.csv")
+    assert OutputDirectory(linked, [linked / "feed.csv"]).path == linked / RESULTS_FOLDER
+    assert OutputDirectory(case, [linked / "feed.csv"]).path == case / RESULTS_FOLDER
+
+
+def test_target_out_into_the_case_folder_says_where_results_went(capsys, tmp_path):
+    case = tmp_path / "case"
+    case.mkdir()
+    (case / "streams.csv").write_text("name,T_supply,T_target,CP\nH1,180,60,3\nC1,20,135,2\n", encoding="utf-8")
+    code, out, err = run(capsys, "target", case / "streams.csv", "--out", case)
+    assert code == 0, err
+    assert sorted(p.name for p in case.iterdir()) == ["results", "streams.csv"]
+    assert "results go to" in err and f"{case / 'results'}/" in out
+    code, out, err = run(capsys, "target", case / "streams.csv", "--out", case, "--force", "--quiet")
+    assert code == 0 and err == ""
+
+
+def test_tables_of_inputs_are_written_exactly(tmp_path):
+    # a stream table as read must read back exactly (issue 14): its numbers are never rounded
+    from heatloom.io import read_streams
+    from heatloom.model import Stream, StreamTable
+
+    table = StreamTable([Stream.simple("H1", 150.123456, 60.0000001, 0.0625), Stream.simple("C1", 30, 120, 2.5)])
+    out = OutputDirectory(tmp_path)
+    back = read_streams(out.csv("stream_table.csv", table.to_frame()))
+    assert [(s.supply_temperature, s.target_temperature, s.duty) for s in back] == \
+        [(s.supply_temperature, s.target_temperature, s.duty) for s in table]
