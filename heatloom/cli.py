@@ -17,7 +17,7 @@ __all__ = ["main", "build_parser", "COMMANDS"]
 
 from .commands.common import EXIT_INFEASIBLE, EXIT_INPUT, EXIT_UNEXPECTED
 
-COMMANDS = ("target", "design", "sweep", "site", "scenarios", "retrofit", "report")
+COMMANDS = ("target", "design", "evaluate", "sweep", "site", "scenarios", "retrofit", "report")
 """Command modules under heatloom.commands, in the order of the help text; each has register(sub)."""
 
 
@@ -41,8 +41,11 @@ def main(argv: list[str] | None = None) -> int:
     """Run the command line; returns the exit code."""
     parser = build_parser()
     args = parser.parse_args(argv)
+    from .commands.common import input_limit
+
     try:
-        return args.handler(args)
+        with input_limit(args):      # --max-input-mb holds for every file the run reads
+            return args.handler(args)
     except InputError as e:
         print(f"heatloom: error: {e}", file=sys.stderr)
         if args.debug:

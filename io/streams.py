@@ -12,7 +12,9 @@ Two layouts are read, told apart by their columns:
 (``T_supply [degF]``, ``CP (MW/K)``) or in a units row under it.  Optional columns: ``duty`` [kW]
 instead of CP (CP = duty/|T_supply − T_target|; when both are given they must agree within a relative
 1e-6), ``h`` [kW/(m²·K)], ``dT_min_contrib`` [K], ``kind`` (``hot``/``cold``, checked against the
-temperatures).  Consecutive rows with one name are the segments of one stream; they must chain.
+temperatures), and ``forbid`` and ``require``: the names of the streams or utilities this stream may not
+be matched with, or must be, separated by ``;`` (read by :func:`read_match_rules`; a network design then
+keeps to them).  Consecutive rows with one name are the segments of one stream; they must chain.
 
 **Temperature–duty table** (as simulators export heating and cooling curves), one row per point, from
 the supply state to the target state::
@@ -25,7 +27,8 @@ the supply state to the target state::
 detected when there are ``T`` and cumulative-duty columns (``Q_cumulative``, ``Q``, ``duty``,
 ``heat flow``, ``enthalpy``...) but no ``T_supply``/``T_target``.  Each stream is fitted with the
 fewest linear segments that stay within ``fit_tolerance`` kelvin of the data on the safe side (see
-:mod:`heatloom.io.points`).  Optional ``h`` and ``dT_min_contrib`` columns hold one value per stream.
+:mod:`heatloom.io.points`).  Optional ``h`` and ``dT_min_contrib`` columns hold one value per stream,
+``forbid`` and ``require`` as in a segment table.
 
 Column names, title lines, units rows and file formats are handled by :mod:`heatloom.io.tables`.
 Every problem raises :class:`~heatloom.errors.InputError` naming the file, row and column.
@@ -40,17 +43,27 @@ import numpy as np
 
 from .. import defaults
 from ..errors import InputError
-from ..model import Segment, Stream, StreamTable
+from ..model import MatchRules, Segment, Stream, StreamTable
 from .cells import Cells, cell_text, load_cells
 from .points import DEFAULT_FIT_TOLERANCE, check_fit_tolerance, fit_vertices, point_problem
-from .tables import IGNORE, Table, find_header, parse_column_mapping, read_table
+from .tables import ALIASES, COLUMN_KINDS, IGNORE, Table, find_header, parse_column_mapping, read_table
 
-__all__ = ["SEGMENT_COLUMNS", "POINT_COLUMNS", "read_streams"]
+__all__ = ["SEGMENT_COLUMNS", "POINT_COLUMNS", "MATCH_SEPARATOR", "STREAM_ALIASES", "read_streams",
+           "read_match_rules"]
 
-SEGMENT_COLUMNS = ("name", "T_supply", "T_target", "CP", "duty", "mass_flow", "specific_heat", "h", "dT_min_contrib", "kind")
+SEGMENT_COLUMNS = ("name", "T_supply", "T_target", "CP", "duty", "mass_flow", "specific_heat", "h", "dT_min_contrib", "kind",
+                   "forbid", "require")
 """Canonical columns of a segment table."""
-POINT_COLUMNS = ("name", "T", "Q_cumulative", "h", "dT_min_contrib")
+POINT_COLUMNS = ("name", "T", "Q_cumulative", "h", "dT_min_contrib", "forbid", "require")
 """Canonical columns of a temperature–duty table."""
+MATCH_SEPARATOR = ";"
+"""Separator of the names in a ``forbid`` or ``require`` cell."""
+STREAM_ALIASES = {**ALIASES,
+                  "forbid": ("forbid", "forbidden", "forbidden matches", "forbid matches", "never match"),
+                  "require": ("require", "required", "required matches", "require matches", "must match")}
+"""Accepted names of the columns of a stream table: those of :data:`heatloom.io.tables.ALIASES` and the two
+match columns."""
+_KINDS = {**COLUMN_KINDS, "forbid": None, "require": None}
 
 _CP_DUTY_RTOL = 1e-6
 _HOT = {"hot", "h", "hot stream"}
@@ -107,11 +120,11 @@ def read_streams(path: str | os.PathLike, *, sheet: str | None = None,
     cells = load_cells(path, sheet=sheet)
     if _is_point_layout(cells, mapping):
         table = read_table(cells, POINT_COLUMNS, required=("name", "T", "Q_cumulative"), columns=mapping,
-                           notes=notes, strict=strict)
+                           notes=notes, strict=strict, aliases=STREAM_ALIASES, kinds=_KINDS)
         streams = _point_streams(table, tolerance)
     else:
         table = read_table(cells, SEGMENT_COLUMNS, required=("name", "T_supply", "T_target", ("CP", "duty", "mass_flow")),
-                           columns=mapping, notes=notes, strict=strict,
+                           columns=mapping, notes=notes, strict=strict, aliases=STREAM_ALIASES, kinds=_KINDS,
                            hint=" (a temperature–duty table needs columns name, T and Q_cumulative instead)")
         streams = _segment_streams(table)
     try:
@@ -126,10 +139,10 @@ def _is_point_layout(cells: Cells, mapping: Mapping[str, str]) -> bool:
         return True
     if targets & {"T_supply", "T_target", "CP"}:
         return False
-    pt_index, pts = find_header(cells, POINT_COLUMNS, mapping)
+    pt_index, pts = find_header(cells, POINT_COLUMNS, mapping, aliases=STREAM_ALIASES)
     if pt_index is None or not {"T", "Q_cumulative"} <= {m[0] for m in pts.values()}:
         return False
-    seg_index, seg = find_header(cells, SEGMENT_COLUMNS, mapping)
+    seg_index, seg = find_header(cells, SEGMENT_COLUMNS, mapping, aliases=STREAM_ALIASES)
     if seg_index is None or seg_index > pt_index:
         return True
     return seg_index == pt_index and not ({"T_supply", "T_target"} & {m[0] for m in seg.values()})
@@ -305,3 +318,74 @@ def _point_streams(table: Table, tolerance: float) -> list[Stream]:
         except InputError as e:
             raise table.locate(e, a) from None
     return streams
+
+
+def read_match_rules(path: str | os.PathLike, streams: StreamTable, *, sheet: str | None = None,
+                     columns: Mapping[str, str] | str | None = None) -> MatchRules:
+    """The forbidden and required matches of a stream table's optional ``forbid`` and ``require`` columns.
+
+    A cell lists the streams or utilities, by name and separated by ``;``, that the row's stream may not
+    be matched with (``forbid``) or must be (``require``); the cells of all the rows of one stream count
+    together.  Each pair is written hot side first (:class:`heatloom.model.MatchRules`); whether the names
+    exist is checked against the streams and utilities by :meth:`~heatloom.model.MatchRules.check`.
+
+    Parameters
+    ----------
+    path : str or path-like
+        The stream table (as :func:`read_streams` read it).
+    streams : StreamTable
+        Its streams, which say which side of each pair the row's stream is.
+    sheet, columns
+        As for :func:`read_streams`.
+
+    Returns
+    -------
+    MatchRules
+        Empty when the table has neither column.
+
+    Raises
+    ------
+    InputError
+        A stream named in its own cell, or an empty name between separators, naming the file, row and
+        column.
+
+    Examples
+    --------
+    >>> import pathlib, tempfile
+    >>> f = pathlib.Path(tempfile.mkdtemp()) / "streams.csv"
+    >>> _ = f.write_text("name,T_supply,T_target,CP,forbid,require\\nH1,180,60,3,C2,\\nC1,20,135,2,,H1\\n"
+    ...                  "C2,80,140,4,,\\n")
+    >>> r = read_match_rules(f, read_streams(f))
+    >>> r.forbidden, r.required
+    ((('H1', 'C2'),), (('H1', 'C1'),))
+    """
+    mapping = parse_column_mapping(columns)
+    cells = load_cells(path, sheet=sheet)
+    point = _is_point_layout(cells, mapping)
+    table = read_table(cells, POINT_COLUMNS if point else SEGMENT_COLUMNS, required=("name",), columns=mapping,
+                       aliases=STREAM_ALIASES, kinds=_KINDS)
+    pairs: dict[str, list[tuple[str, str]]] = {"forbid": [], "require": []}
+    names = table.text("name")
+    by_name = {s.name: s for s in streams}
+    for column, found in pairs.items():
+        if column not in table:
+            continue
+        for i, cell in enumerate(table.text(column)):
+            if not cell:
+                continue
+            own = names[i]
+            if own not in by_name:
+                continue
+            for other in (x.strip() for x in cell.split(MATCH_SEPARATOR)):
+                if not other:
+                    raise table.error(f"empty name in {cell!r}: list names separated by '{MATCH_SEPARATOR}'",
+                                      index=i, column=column)
+                if other == own:
+                    raise table.error(f"stream '{own}' names itself in its {column} cell", index=i, column=column)
+                found.append((own, other) if by_name[own].is_hot else (other, own))
+    if not pairs["forbid"] and not pairs["require"]:
+        return MatchRules()
+    try:
+        return MatchRules(tuple(pairs["forbid"]), tuple(pairs["require"]), (table.label,))
+    except InputError as e:
+        raise table.locate(e) from None

@@ -6,6 +6,7 @@ topologies and their refinement) are imported from their modules: :mod:`heatloom
 """
 
 from .design import design_mer
+from .evolution import Evolution, EvolutionStep, evolve, size_network
 from .matches import Match, MatchKind, Subnetwork, SubnetworkMatches, TieBreak, subnetworks
 from .milp import MatchPlan, min_matches, plan_matches
 from .solvers import SolveReport, SolverName, SolveStatus, available_solvers, resolve_solver, solve
@@ -15,6 +16,10 @@ from .transshipment import Transshipment, transshipment
 
 __all__ = [
     "design_mer",
+    "Evolution",
+    "EvolutionStep",
+    "evolve",
+    "size_network",
     "Match",
     "MatchKind",
     "MatchPlan",

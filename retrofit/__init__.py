@@ -12,6 +12,7 @@ from .diagnose import (
     existing_dt_min,
     retrofit_curve,
 )
+from .evaluate import Evaluation, evaluate_network
 from .existing import ExistingNetwork
 from .network_pinch import NetworkPinch, PathShift, network_pinch
 from .options import (
@@ -28,6 +29,8 @@ from .profiles import heat_between, temperature_after
 from .simulate import Simulation, UnitState, simulate
 
 __all__ = [
+    "Evaluation",
+    "evaluate_network",
     "AreaEfficiency",
     "CrossPinch",
     "CrossPinchUnit",

@@ -18,8 +18,9 @@ from .common import (
     solves_summary,
     whole_number,
 )
+from .console import Column, text_table
 
-__all__ = ["EXCHANGER_TYPES", "register", "run", "format_network"]
+__all__ = ["EXCHANGER_TYPES", "register", "run", "format_network", "format_evolution", "match_rules"]
 
 EPILOG_DESIGN = """\
 examples:
@@ -28,10 +29,21 @@ examples:
   heatloom design table.csv --dtmin 20 --default-h 0.5 --json
   heatloom design streams.csv --mode tac --utilities utilities.csv --costs costs.json --time-limit 300
   heatloom design streams.csv --mode tac --emat 2 --seed 7 --starts 2 --rounds 40 --json
+  heatloom design streams.csv --dtmin 10 --min-duty 50 --min-area 5
+  heatloom design streams.csv --dtmin 10 --forbid H1:C2 --forbid H2:steam --require H3:C1
 
 --mode tac searches for the lowest total annual cost: no ΔTmin, only the exchanger minimum approach
 temperature (--emat, default 1 K) at both ends of every unit; --time-limit bounds the whole run, and the
 same --seed, --starts and --rounds give the same network when the time limit is not reached.
+
+--min-duty and --min-area evolve the design: units below them are removed by shifting their load around a
+heat-load loop or along a path from a hot to a cold utility, and ΔTmin (EMAT) is restored by path
+relaxation (Linnhoff & Hindmarsh 1983); every step is printed with its energy penalty.
+
+--forbid and --require take HOT:COLD, a hot stream or hot utility and a cold stream or cold utility as named
+in the stream and utility tables (repeat the option for more pairs). A stream table may also carry the
+columns 'forbid' and 'require', listing for each stream the names it may not or must be matched with,
+separated by ';'; both sources are merged.
 
 Areas need a film coefficient h for every stream and utility (column h, kW/(m²·K)); --default-h assumes
 one where it is missing, and the output says so.
@@ -72,6 +84,15 @@ def register(sub) -> None:
                      help="double-pipe: diameter of the inner tube the area refers to [m]")
     geo.add_argument("--hairpin-length", type=positive, metavar="M",
                      help="double-pipe: length of one leg of a hairpin [m]")
+    rules = p.add_argument_group("matches and evolution")
+    rules.add_argument("--forbid", action="append", default=[], metavar="HOT:COLD",
+                       help="a match the design may not use (repeatable; --mode mer)")
+    rules.add_argument("--require", action="append", default=[], metavar="HOT:COLD",
+                       help="a match the design must use (repeatable; --mode mer)")
+    rules.add_argument("--min-duty", type=positive, default=None, metavar="KW",
+                       help="remove units of a smaller duty [kW] by loop breaking and path relaxation")
+    rules.add_argument("--min-area", type=positive, default=None, metavar="M2",
+                       help="remove units of a smaller area [m²] by loop breaking and path relaxation")
     tac = p.add_argument_group("--mode tac")
     tac.add_argument("--emat", type=positive, default=None, metavar="K",
                      help=f"exchanger minimum approach temperature at both ends of every unit [K] "
@@ -85,33 +106,40 @@ def register(sub) -> None:
 
 
 def format_network(net, source: str, dt_note: str, approach: str = "ΔTmin") -> str:
-    """The human summary of a design: one line per unit, then the costs."""
-    cur = net.currency
+    """The human summary of a design: one line per unit (name, sides, duty, temperatures, split, U, LMTD, F,
+    shells, area, cost), then the costs."""
+    from ..network.structure import Cooler, Heater
+
+    cur = net.currency or "money"
     lines = [f"heatloom design: {source}",
              f"  {approach} {net.dt_min:g} K ({dt_note}); {net.units} units"
              + (f" (minimum-units target {net.unit_target})" if net.unit_target is not None else ""),
              f"  hot utility {fmt(net.hot_utility)}, cold utility {fmt(net.cold_utility)}, "
              f"heat recovery {fmt(net.heat_recovery)}",
-             "",
-             f"  {'unit':<5} {'hot side':<18} {'cold side':<18} {'duty':>9} {'hot in→out':>15} "
-             f"{'cold in→out':>15} {'split h/c':>10} {'area':>8} {'cost/year':>10}",
-             f"  {'':<5} {'':<18} {'':<18} {'[kW]':>9} {'[°C]':>15} {'[°C]':>15} {'[-]':>10} {'[m²]':>8} "
-             f"{'[' + cur + ']':>10}"]
+             ""]
 
-    def row(tag, hot, cold, duty, hi, ho, ci, co, fh, fc, area, cost):
+    def temps(a, b):
+        return f"{a:.1f}→{b:.1f}"
+
+    rows = []
+    for u in (*net.exchangers, *net.heaters, *net.coolers):
+        if isinstance(u, Heater):
+            hot, cold, hot_t, fh, fc = u.utility, u.cold, temps(u.utility_in, u.utility_out), 1.0, u.cold_fraction
+            cold_t = temps(u.cold_in, u.cold_out)
+        elif isinstance(u, Cooler):
+            hot, cold, cold_t, fh, fc = u.hot, u.utility, temps(u.utility_in, u.utility_out), u.hot_fraction, 1.0
+            hot_t = temps(u.hot_in, u.hot_out)
+        else:
+            hot, cold, fh, fc = u.hot, u.cold, u.hot_fraction, u.cold_fraction
+            hot_t, cold_t = temps(u.hot_in, u.hot_out), temps(u.cold_in, u.cold_out)
         split = f"{fh:.2f}/{fc:.2f}" if (fh < 0.9995 or fc < 0.9995) else "-"
-        return (f"  {tag:<5} {hot[:18]:<18} {cold[:18]:<18} {duty:>9,.1f} {f'{hi:.1f}→{ho:.1f}':>15} "
-                f"{f'{ci:.1f}→{co:.1f}':>15} {split:>10} {area:>8,.1f} {cost:>10,.0f}")
-
-    for k, e in enumerate(net.exchangers, 1):
-        lines.append(row(f"E{k}", e.hot, e.cold, e.duty, e.hot_in, e.hot_out, e.cold_in, e.cold_out,
-                         e.hot_fraction, e.cold_fraction, e.area, e.cost))
-    for k, h in enumerate(net.heaters, 1):
-        lines.append(row(f"H{k}", h.utility, h.cold, h.duty, h.utility_in, h.utility_out, h.cold_in, h.cold_out,
-                         1.0, h.cold_fraction, h.area, h.cost))
-    for k, c in enumerate(net.coolers, 1):
-        lines.append(row(f"C{k}", c.hot, c.utility, c.duty, c.hot_in, c.hot_out, c.utility_in, c.utility_out,
-                         c.hot_fraction, 1.0, c.area, c.cost))
+        rows.append([u.name, hot, cold, u.duty, hot_t, cold_t, split, u.u, u.lmtd, u.f_factor, u.shells, u.area,
+                     u.cost])
+    lines += text_table([Column("unit"), Column("hot side"), Column("cold side"), Column("duty", "[kW]", ",.1f"),
+                         Column("hot in→out", "[°C]", align=">"), Column("cold in→out", "[°C]", align=">"),
+                         Column("split h/c", "[-]", align=">"), Column("U", "[kW/(m²·K)]", ".3f"),
+                         Column("LMTD", "[K]", ".1f"), Column("F", "[-]", ".3f"), Column("shells", "[-]", "d"),
+                         Column("area", "[m²]", ",.1f"), Column("cost", f"[{cur}/year]", ",.0f")], rows)
     lines += ["",
               f"  capital (annualised)  {net.capital_cost:>14,.0f} {cur}/year",
               f"  utilities             {net.operating_cost:>14,.0f} {cur}/year",
@@ -119,6 +147,37 @@ def format_network(net, source: str, dt_note: str, approach: str = "ΔTmin") -> 
     lines.append("  " + solves_summary(net.solves))
     lines += note_lines(net.notes)
     return "\n".join(lines)
+
+
+def format_evolution(evolution) -> str:
+    """The evolution steps of a design, one per removed unit, with their energy penalties."""
+    lines = ["", f"  evolution: {evolution.original.units} → {evolution.network.units} units, energy penalty "
+                 f"+{fmt(evolution.hot_penalty)} hot, +{fmt(evolution.cold_penalty)} cold utility"]
+    for k, step in enumerate(evolution.steps, 1):
+        lines.append(f"  {k:>3}. {step.describe()}")
+    if not evolution.steps:
+        lines.append("       no unit could be removed keeping the approach in every unit")
+    lines += [f"       - {n}" for n in evolution.notes]
+    return "\n".join(lines)
+
+
+def match_rules(args, streams, utilities, dt_min):
+    """The forbidden and required matches of the command line and of the stream table, merged and checked
+    against the streams and utilities (the assumed ones when none are given)."""
+    from ..io import parse_column_mapping
+    from ..io.streams import read_match_rules
+    from ..model import MatchRules
+
+    columns = parse_column_mapping(args.columns) if args.columns else None
+    rules = read_match_rules(args.file, streams, sheet=args.sheet, columns=columns).merged(
+        MatchRules.from_text(args.forbid, args.require))
+    if rules:
+        if utilities is None:
+            from ..pinch.utilities import ideal_utilities
+
+            utilities = ideal_utilities(streams, dt_min)
+        rules.check(streams, utilities)
+    return rules
 
 
 def run(args) -> int:
@@ -134,6 +193,8 @@ def run(args) -> int:
         raise InputError(f"--exchanger-type {args.exchanger_type} applies to --mode mer only: the TAC design sizes "
                          "counter-current units")
     streams, utilities, costs = read_inputs(args)
+    if tac and (args.forbid or args.require):
+        raise InputError("--forbid and --require apply to --mode mer only")
     if tac:
         dt_min, dt_note = (defaults.EMAT, "EMAT default for --mode tac; set with --emat") if args.emat is None \
             else (args.emat, "EMAT given")
@@ -165,11 +226,24 @@ def run(args) -> int:
         from ..network import design_mer
 
         kind = ExchangerType(EXCHANGER_TYPES[args.exchanger_type])
+        rules = match_rules(args, streams, utilities, dt_min)
+        extra = {"forbidden": list(rules.forbidden), "required": list(rules.required)} if rules else {}
         net = design_mer(streams, dt_min, utilities, costs=costs, solver=args.solver,
                          time_limit=args.time_limit or 60.0, default_film_coefficient=args.default_h,
                          exchanger_type=kind, tube_diameter=args.tube_diameter,
-                         hairpin_length=args.hairpin_length)
+                         hairpin_length=args.hairpin_length, **extra)
+    evolution = None
+    if args.min_duty is not None or args.min_area is not None:
+        from ..network.evolution import evolve
+
+        evolution = evolve(net, streams, utilities, dt_min, min_duty=args.min_duty, min_area=args.min_area,
+                           costs=costs, default_film_coefficient=args.default_h, contributions=not tac)
+        net = evolution.network
     result = net.to_dict()
+    if evolution is not None:
+        result["evolution"] = evolution.to_dict()
+    if not tac and rules:
+        result["matches"] = rules.to_dict()
     result["source"] = str(args.file)
     result["mode"] = args.mode
     if tac:
@@ -185,6 +259,9 @@ def run(args) -> int:
         out.csv("design_units.csv", frame)
         out.workbook("design.xlsx", {"units": frame, "streams": streams.to_frame()})
         out.figures("grid_diagram", grid_diagram(net, streams, approach="EMAT" if tac else "ΔTmin"))
-    return finish(args, result, format_network(net, str(args.file), dt_note, "EMAT" if tac else "ΔTmin"), out)
+    summary = format_network(net, str(args.file), dt_note, "EMAT" if tac else "ΔTmin")
+    if evolution is not None:
+        summary += format_evolution(evolution)
+    return finish(args, result, summary, out)
 
 

@@ -2,13 +2,14 @@
 
 streams and utilities (:mod:`.streams`), cost settings (:mod:`.costs`), exchanger kinds
 (:mod:`.exchangers`), the units of an existing network (:mod:`.existing`), site zones and mains
-(:mod:`.site`) and price scenarios (:mod:`.prices`).  The readers of :mod:`heatloom.io` produce these
-types; the computing layers take them.
+(:mod:`.site`), forbidden and required matches (:mod:`.matches`) and price scenarios (:mod:`.prices`).
+The readers of :mod:`heatloom.io` produce these types; the computing layers take them.
 """
 
 from .costs import CostLaw, CostSettings, RetrofitCosts, UnitKind, capital_recovery_factor, price_per_kw_year
 from .exchangers import ExchangerType
 from .existing import ExistingUnit, OperatingMode, UnitRole, UnitTable
+from .matches import MatchRules, parse_match
 from .prices import BASE_NAME, PriceScenario, price_factor_scenarios
 from .site import WATER_CRITICAL_TEMPERATURE, WATER_TRIPLE_POINT, MainKind, SteamMain, Zone, check_mains
 from .streams import (
@@ -27,6 +28,7 @@ __all__ = [
     "CostLaw", "CostSettings", "RetrofitCosts", "UnitKind", "capital_recovery_factor", "price_per_kw_year",
     "ExchangerType",
     "ExistingUnit", "OperatingMode", "UnitRole", "UnitTable",
+    "MatchRules", "parse_match",
     "BASE_NAME", "PriceScenario", "price_factor_scenarios",
     "WATER_CRITICAL_TEMPERATURE", "WATER_TRIPLE_POINT", "MainKind", "SteamMain", "Zone", "check_mains",
 ]

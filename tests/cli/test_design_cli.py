@@ -193,3 +193,110 @@ def test_the_currency_comes_from_the_prices_or_the_costs_file_and_they_must_agre
     assert costs.describe().startswith("Costs in EUR (from the utility prices).")
     with pytest.raises(InputError, match="the costs file is in USD but the utility prices are in EUR"):
         read_inputs(args(costs=str(usd)))
+
+
+# --- evolution and forbidden/required matches -------------------------------------------------------
+# Sinnott, Coulson & Richardson's Chemical Engineering Vol. 6, ch. 3, Table 3.6: four streams, 50 kW hot and
+# 30 kW cold utility at ΔTmin 10 K (h 0.5 kW/(m²·K) is an assumption of this test).
+SINNOTT = """name,T_supply,T_target,CP,h
+1,180,60,3.0,0.5
+2,150,30,1.0,0.5
+3,20,135,2.0,0.5
+4,80,140,4.5,0.5
+"""
+
+
+@pytest.fixture
+def sinnott(tmp_path):
+    p = tmp_path / "sinnott.csv"
+    p.write_text(SINNOTT, encoding="utf-8")
+    return p
+
+
+def test_min_duty_evolves_the_design_and_reports_the_penalty(capsys, sinnott):
+    code, out, _ = run(capsys, "design", sinnott, "--dtmin", "10", "--min-duty", "40", "--json")
+    assert code == 0
+    data = json.loads(out)
+    evo = data["evolution"]
+    assert evo["units_before"] == data["units"] + 1
+    # the first law: every kW of heat no longer recovered comes back in both utilities
+    assert data["hot_utility"] == pytest.approx(50 + evo["hot_penalty"], abs=1e-6)
+    assert data["cold_utility"] == pytest.approx(30 + evo["cold_penalty"], abs=1e-6)
+    assert evo["steps"][0]["via"] == "loop" and evo["steps"][0]["hot_penalty"] > 0
+    code, out, _ = run(capsys, "design", sinnott, "--dtmin", "10", "--min-duty", "40")
+    assert code == 0 and "evolution: 6 → 5 units" in out and "energy penalty" in out
+
+
+def test_forbid_and_require_reach_the_design(capsys, sinnott, tmp_path):
+    # needs design_mer(forbidden=..., required=...) (network/design.py)
+    code, out, _ = run(capsys, "design", sinnott, "--dtmin", "10", "--forbid", "2:4", "--json")
+    assert code == 0
+    data = json.loads(out)
+    assert ("2", "4") not in {(e["hot"], e["cold"]) for e in data["exchangers"]}
+    assert data["matches"]["forbidden"] == [["2", "4"]]
+    # above the pinch only stream 1 can give stream 4 its 4.5 × 60 = 270 kW (stream 2 has 1 × 60 = 60 kW
+    # there): without match 1→4 the targets cannot be met
+    code, _, err = run(capsys, "design", sinnott, "--dtmin", "10", "--forbid", "1:4")
+    assert code == 3 and "1→4" in err
+    table = tmp_path / "with_rules.csv"
+    table.write_text("name,T_supply,T_target,CP,h,require\n1,180,60,3.0,0.5,3\n2,150,30,1.0,0.5,\n"
+                     "3,20,135,2.0,0.5,\n4,80,140,4.5,0.5,\n", encoding="utf-8")
+    code, out, _ = run(capsys, "design", table, "--dtmin", "10", "--require", "2:3", "--json")
+    assert code == 0
+    data = json.loads(out)
+    assert sorted(map(tuple, data["matches"]["required"])) == [("1", "3"), ("2", "3")]
+    assert {("1", "3"), ("2", "3")} <= {(e["hot"], e["cold"]) for e in data["exchangers"]}
+
+
+@pytest.mark.parametrize(("option", "value", "message"), [
+    ("--forbid", "1:9", "unknown cold side '9'"),
+    ("--require", "3:1", "'3' is a cold stream, not a hot side"),
+    ("--forbid", "1-4", "HOT:COLD"),
+])
+def test_unknown_or_misplaced_match_names_are_input_errors(capsys, sinnott, option, value, message):
+    code, _, err = run(capsys, "design", sinnott, "--dtmin", "10", option, value)
+    assert code == 2 and message in err
+
+
+def test_match_options_refused_in_tac_mode(capsys, sinnott):
+    code, _, err = run(capsys, "design", sinnott, "--mode", "tac", "--forbid", "1:4")
+    assert code == 2 and "--mode mer only" in err
+
+
+def test_min_area_aims_at_small_areas(capsys, sinnott):
+    code, out, _ = run(capsys, "design", sinnott, "--dtmin", "10", "--min-area", "8", "--json")
+    assert code == 0
+    data = json.loads(out)
+    steps = data["evolution"]["steps"]
+    assert steps and all("area" in s["reason"] and "m²" in s["reason"] for s in steps)
+    # every unit left keeps ΔTmin 10 K at both ends (single-segment streams)
+    for e in data["exchangers"]:
+        assert e["hot_in"] - e["cold_out"] >= 10 - 1e-6 and e["hot_out"] - e["cold_in"] >= 10 - 1e-6
+
+
+def test_console_table_names_every_unit_as_the_json_does_with_u_lmtd_f_and_shells(capsys, tmp_path):
+    # Ray & Das Problem 5.4 streams with long names: the console table must not cut them, must name each
+    # unit as the JSON does, and must carry U, LMTD, F and shells (issue 15). The LMTD of each unit is
+    # recomputed here from its terminal temperatures (counter-current log mean, independent of heatloom).
+    import math
+
+    long = RAY_DAS_5_4.replace("\n1,", "\nreactor effluent to the north flare header,", 1)
+    p = tmp_path / "named.csv"
+    p.write_text(long, encoding="utf-8")
+    argv = ("design", p, "--dtmin", "10", "--default-h", "0.5", "--exchanger-type", "shell-and-tube")
+    code, out, _ = run(capsys, *argv)
+    assert code == 0
+    assert "reactor effluent to the north flare header" in out
+    for head in ("U", "LMTD", "F", "shells", "[kW/(m²·K)]"):
+        assert head in out.split()
+    code, js, _ = run(capsys, *argv, "--json")
+    data = json.loads(js)
+    rows = {line.split()[0]: line for line in out.splitlines() if line.startswith("  ") and line.split()}
+    for e in data["exchangers"]:
+        assert e["name"] in rows
+        dt1, dt2 = e["hot_in"] - e["cold_out"], e["hot_out"] - e["cold_in"]
+        lmtd = dt1 if abs(dt1 - dt2) < 1e-9 else (dt1 - dt2) / math.log(dt1 / dt2)
+        assert f"{lmtd:.1f}" in rows[e["name"]].split()
+        assert str(e["shells"]) in rows[e["name"]].split()
+    names = [u["name"] for kind in ("exchangers", "heaters", "coolers") for u in data[kind]]
+    assert len(set(names)) == len(names) and not set(names) & {"1", "2", "3", "4"}

@@ -372,8 +372,6 @@ def test_input_size_limit_holds_in_its_block_only():
         common.megabytes("-1")
 
 
-@pytest.mark.xfail(strict=True, reason="needs io/cells.py to read the limit in force (defaults.max_input_bytes) "
-                                       "and heatloom/cli.py to run every handler within common.input_limit(args)")
 def test_max_input_mb_lowers_and_raises_the_limit(capsys, tmp_path):
     plant = tmp_path / "plant.csv"
     plant.write_text(STREAMS + "".join(f"H{k},180,60,3\n" for k in range(2, 800)), encoding="utf-8")

@@ -316,3 +316,50 @@ def test_cp_and_mass_flow_that_disagree_are_refused(tmp_path):
                  encoding="utf-8")
     with pytest.raises(InputError, match=r"row 2, column 'CP': CP 3 kW/K disagrees with mass flow × specific heat"):
         read_streams(p)
+
+
+# --- forbidden and required matches (columns 'forbid' and 'require') ---------------------------------
+
+
+def test_match_columns_give_hot_cold_pairs_and_are_not_unknown_columns(tmp_path):
+    from heatloom.io.streams import read_match_rules
+
+    p = tmp_path / "s.csv"
+    p.write_text("name,T_supply,T_target,CP,forbid,require\n"
+                 "H1,180,120,3,C2 ; steam,\nH1,120,60,2,,C1\nC1,20,135,2,H2,\nC2,80,140,4,,\nH2,150,30,1,,\n",
+                 encoding="utf-8")
+    notes: list[str] = []
+    streams = read_streams(p, notes=notes, strict=True)
+    assert notes == [] and len(streams["H1"].segments) == 2
+    rules = read_match_rules(p, streams)
+    # a cell of a hot stream names cold sides (the row's stream first); a cold stream's names hot sides
+    assert rules.forbidden == (("H1", "C2"), ("H1", "steam"), ("H2", "C1"))
+    assert rules.required == (("H1", "C1"),)
+    assert len(rules.sources) == 1 and rules.sources[0].endswith("s.csv")
+
+
+def test_match_columns_absent_give_no_rules(tmp_path):
+    from heatloom.io.streams import read_match_rules
+
+    p = csv(tmp_path, "name,T_supply,T_target,CP\nH1,180,60,3\nC1,20,135,2\n")
+    assert not read_match_rules(p, read_streams(p))
+
+
+@pytest.mark.parametrize(("cell", "match"), [
+    ("H1", r"row 2, column 'forbid': stream 'H1' names itself"),
+    ("C1;;C2", r"row 2, column 'forbid': empty name"),
+])
+def test_bad_match_cells_are_located(tmp_path, cell, match):
+    from heatloom.io.streams import read_match_rules
+
+    p = csv(tmp_path, f"name,T_supply,T_target,CP,forbid\nH1,180,60,3,{cell}\nC1,20,135,2,\nC2,80,140,4,\n")
+    with pytest.raises(InputError, match=match):
+        read_match_rules(p, read_streams(p))
+
+
+def test_a_pair_both_forbidden_and_required_is_refused(tmp_path):
+    from heatloom.io.streams import read_match_rules
+
+    p = csv(tmp_path, "name,T_supply,T_target,CP,forbid,require\nH1,180,60,3,C1,C1\nC1,20,135,2,,\n")
+    with pytest.raises(InputError, match="H1:C1 is both forbidden and required"):
+        read_match_rules(p, read_streams(p))

@@ -1,0 +1,198 @@
+"""Evaluation of a network the engineer drew: the checks, sizing and costing a new design gets.
+
+The network comes as a network table (:func:`heatloom.io.read_network`, resolved into an
+:class:`~heatloom.retrofit.existing.ExistingNetwork`: units, their order along every stream, areas and/or
+duties).  It is simulated at its areas (:func:`heatloom.retrofit.simulate.simulate`: a unit given by its
+duty was sized for that duty, so it does that duty; the heater or cooler at the end of a stream takes what
+brings the stream to its target) and then:
+
+* checked as every designed network is (:func:`heatloom.network.structure.check_network`: each unit's and
+  each stream's energy balance, and ΔTmin at both ends and at every inner segment break of every unit,
+  :func:`~heatloom.network.structure.approach_violations`); the simulation's own problems (streams missing
+  their targets, units working backwards) count too;
+* temperature crosses are named per unit (the hot side below the cold side somewhere in the unit);
+* its utilities are compared with the energy targets of the problem table at the same ΔTmin;
+* every unit is sized (segment-wise counter-current LMTD, U from the film coefficients) and costed with the
+  cost laws of a new design (:func:`heatloom.network.evolution.size_network`).
+
+Results are screening estimates: a network must be checked against the plant's data and local codes by
+qualified, licensed engineers.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass, replace
+
+from ..errors import InfeasibleError, InputError, TemperatureCrossError
+from ..model import Stream, StreamTable, Utility
+from ..model.costs import CostSettings
+from ..network.evolution import size_network
+from ..network.structure import Network, approach_violations, check_network
+from ..pinch import target
+from ..validation import check_dt_min
+from .existing import ExistingNetwork
+from .simulate import Simulation, simulate
+
+__all__ = ["Evaluation", "evaluate_network", "with_default_film_coefficient"]
+
+
+def with_default_film_coefficient(streams: StreamTable, utilities: Sequence[Utility], h: float | None
+                                  ) -> tuple[StreamTable, tuple[Utility, ...], list[str]]:
+    """Streams and utilities with ``h`` [kW/(m²·K)] where they have no film coefficient, and what got it.
+
+    Examples
+    --------
+    >>> s = StreamTable.from_arrays(["H1", "C1"], [150, 30], [60, 120], [2.0, 2.5], film_coefficient=[None, 1.0])
+    >>> t, _, given = with_default_film_coefficient(s, [], 0.5)
+    >>> t["H1"].segments[0].film_coefficient, given
+    (0.5, ["stream 'H1'"])
+    """
+    if h is None:
+        return streams, tuple(utilities), []
+    given: list[str] = []
+    out = []
+    for s in streams:
+        if any(g.film_coefficient is None for g in s.segments):
+            given.append(f"stream '{s.name}'")
+            s = Stream(s.name, tuple(replace(g, film_coefficient=h) if g.film_coefficient is None else g
+                                     for g in s.segments))
+        out.append(s)
+    utils = []
+    for u in utilities:
+        if u.film_coefficient is None:
+            given.append(f"utility '{u.name}'")
+            u = replace(u, film_coefficient=h)
+        utils.append(u)
+    return replace(streams, streams=tuple(out)), tuple(utils), given
+
+
+@dataclass(frozen=True, eq=False)
+class Evaluation:
+    """A drawn network evaluated (see :func:`evaluate_network`).
+
+    Attributes
+    ----------
+    network : Network
+        The units at their simulated duties and temperatures, sized and costed when sizing was possible.
+    simulation : Simulation
+    dt_min : float
+        [K]
+    failures : tuple of str
+        Every check the network fails, in words: simulation problems, balance or approach failures.
+    crosses : tuple of str
+        Units whose hot side falls below their cold side somewhere (a temperature cross), one line each.
+    hot_utility_target, cold_utility_target : float
+        Energy targets at ``dt_min`` [kW].
+    sized : bool
+        Whether every unit could be sized (not across a temperature cross).
+    notes : tuple of str
+    """
+
+    network: Network
+    simulation: Simulation
+    dt_min: float
+    failures: tuple[str, ...]
+    crosses: tuple[str, ...]
+    hot_utility_target: float
+    cold_utility_target: float
+    sized: bool
+    notes: tuple[str, ...] = ()
+
+    @property
+    def ok(self) -> bool:
+        """True when the network passes every check."""
+        return not self.failures and not self.crosses
+
+    @property
+    def hot_utility_excess(self) -> float:
+        """Hot utility above its target [kW]."""
+        return self.network.hot_utility - self.hot_utility_target
+
+    @property
+    def cold_utility_excess(self) -> float:
+        """Cold utility above its target [kW]."""
+        return self.network.cold_utility - self.cold_utility_target
+
+    @property
+    def targets_met(self) -> bool:
+        """Whether both utilities are at their targets (within 1e-6 of the larger stream duty)."""
+        tol = 1e-6 * max((s.duty for s in self.simulation.network.streams), default=1.0)
+        return abs(self.hot_utility_excess) <= tol and abs(self.cold_utility_excess) <= tol
+
+    def to_dict(self) -> dict:
+        return {"ok": self.ok, "failures": list(self.failures), "temperature_crosses": list(self.crosses),
+                "dtmin": self.dt_min, "hot_utility_target": self.hot_utility_target,
+                "cold_utility_target": self.cold_utility_target, "hot_utility_excess": self.hot_utility_excess,
+                "cold_utility_excess": self.cold_utility_excess, "targets_met": self.targets_met,
+                "sized": self.sized, "network": self.network.to_dict(), "notes": list(self.notes)}
+
+
+def evaluate_network(network: ExistingNetwork, dt_min: float, *, costs: CostSettings | None = None,
+                     default_film_coefficient: float | None = None) -> Evaluation:
+    """Check, size and cost a network the engineer drew, as a new design is checked, sized and costed.
+
+    Parameters
+    ----------
+    network : ExistingNetwork
+        The network (units, their order along each stream, areas and/or duties), with its streams and
+        utilities (utilities priced in [money/(kW·year)]).
+    dt_min : float
+        Minimum approach every unit must keep, and ΔTmin of the energy targets [K].
+    costs : CostSettings, optional
+        Cost laws; the defaults when omitted.
+    default_film_coefficient : float, optional
+        h assumed for sizing where a stream or utility has none [kW/(m²·K)].
+
+    Returns
+    -------
+    Evaluation
+
+    Examples
+    --------
+    One exchanger of 100 kW between H1 (150 → 60 °C, 2 kW/K) and C1 (30 → 120 °C, 2.5 kW/K), a heater and a
+    cooler at the ends: ΔTmin 10 K is kept; the targets at 10 K (45 kW hot) are missed by 80 kW.
+
+    >>> from heatloom.model import ExistingUnit, StreamTable, Utility, UtilityKind
+    >>> s = StreamTable.from_arrays(["H1", "C1"], [150, 30], [60, 120], [2.0, 2.5], film_coefficient=[1.0, 1.0])
+    >>> u = [Utility("steam", 180, 179, 100.0, UtilityKind.HOT, 5.0), Utility("water", 20, 30, 10.0, UtilityKind.COLD, 2.0)]
+    >>> net = ExistingNetwork(s, [ExistingUnit("E1", "H1", "C1", duty=100.0), ExistingUnit("H1", "steam", "C1"),
+    ...                           ExistingUnit("C1", "H1", "water")], u)
+    >>> ev = evaluate_network(net, 10.0)
+    >>> ev.ok, round(ev.network.hot_utility, 6), ev.hot_utility_target, ev.targets_met
+    (True, 125.0, 45.0, False)
+    """
+    dt = check_dt_min(dt_min)
+    sim = simulate(network, dt)
+    streams = network.streams
+    utilities = list(network.utilities)
+    net = replace(sim.to_network(), dt_min=float(dt))
+    failures = list(sim.problems)
+    crosses = []
+    for u in sim.units:
+        if abs(u.duty) > 0 and u.min_approach < 0:
+            crosses.append(f"{u.role.value} '{u.name}' ({u.hot} → {u.cold}): temperature cross, the hot side is "
+                           f"{-u.min_approach:.4g} K below the cold side (hot {u.hot_in:.4g} → {u.hot_out:.4g} °C, "
+                           f"cold {u.cold_in:.4g} → {u.cold_out:.4g} °C)")
+    failures += [f"unit {v}" for v in approach_violations(net, streams, utilities, dt_min=dt)]
+    try:
+        check_network(net, streams, utilities, dt_min=dt)
+    except InfeasibleError as e:
+        balances = [p for p in str(e).removeprefix("network check failed: ").split("; ")
+                    if "smallest approach" not in p]
+        failures += balances
+    notes = list(sim.notes)
+    try:
+        t = target(streams, dt, utilities) if utilities else target(streams, dt)
+    except InfeasibleError as e:
+        t = target(streams, dt)
+        notes.append(f"targets with ideal utilities: the utilities given cannot meet them at ΔTmin {dt:g} K ({e})")
+    sized = True
+    try:
+        net = size_network(net, streams, utilities, costs=costs, default_film_coefficient=default_film_coefficient)
+    except (TemperatureCrossError, InputError, ValueError) as e:
+        sized = False   # the checks still stand; the notes say why there are no areas and costs
+        notes.append(f"not sized and not costed as a new design: {e}")
+    return Evaluation(net, sim, float(dt), tuple(dict.fromkeys(failures)), tuple(crosses), float(t.hot_utility),
+                      float(t.cold_utility), sized, tuple(notes))
+

@@ -1,0 +1,69 @@
+"""The `heatloom evaluate` command: verdict, exit codes, JSON shape, clear refusals.
+
+Published source: Sinnott, Coulson & Richardson's Chemical Engineering Vol. 6, ch. 3, Table 3.6 (four streams;
+50 kW hot and 30 kW cold utility at ΔTmin 10 K).  The network is that problem's maximum-energy-recovery
+network (duties from the stream data on each side of the 90/80 °C pinch); film coefficients and utility
+temperatures are assumptions of the test.
+"""
+
+import json
+
+import pytest
+
+from heatloom.cli import main
+
+STREAMS = "name,T_supply,T_target,CP,h\n1,180,60,3.0,0.5\n2,150,30,1.0,0.5\n3,20,135,2.0,0.5\n4,80,140,4.5,0.5\n"
+UTILITIES = "name,T_supply,T_target,cost,h\nsteam,180,179,100,0.5\nwater,20,30,10,0.5\n"
+NETWORK = """unit,hot,cold,duty,hot_order,cold_order
+E1,1,4,270,1,1
+E2,2,3,60,1,3
+E3,1,3,90,2,2
+E4,2,3,30,3,1
+H1,steam,3,,,4
+C1,2,water,30,2,
+"""
+
+
+@pytest.fixture
+def files(tmp_path):
+    paths = {}
+    for name, text in (("streams", STREAMS), ("utilities", UTILITIES), ("network", NETWORK)):
+        paths[name] = tmp_path / f"{name}.csv"
+        paths[name].write_text(text, encoding="utf-8")
+    return paths
+
+
+def run(capsys, *args):
+    code = main([str(a) for a in args])
+    out = capsys.readouterr()
+    return code, out.out, out.err
+
+
+def test_mer_network_passes_and_meets_the_published_targets(capsys, files):
+    code, out, _ = run(capsys, "evaluate", files["streams"], files["network"], "--utilities", files["utilities"],
+                       "--dtmin", "10", "--json")
+    assert code == 0
+    data = json.loads(out)
+    assert data["ok"] and data["targets_met"]
+    assert data["hot_utility_target"] == pytest.approx(50) and data["cold_utility_target"] == pytest.approx(30)
+    assert data["network"]["hot_utility"] == pytest.approx(50, abs=1e-6)
+    assert all(u["area"] > 0 for u in data["network"]["exchangers"])
+    assert "safety_note" in data
+    code, out, _ = run(capsys, "evaluate", files["streams"], files["network"], "--utilities", files["utilities"],
+                       "--dtmin", "10")
+    assert code == 0 and "passes every check" in out and "targets met" in out and "screening estimates" in out
+
+
+def test_failed_checks_exit_3_and_say_which(capsys, files, tmp_path):
+    # at ΔTmin 20 K, 2→3 above the pinch leaves only 90 − 80 = 10 K
+    code, out, err = run(capsys, "evaluate", files["streams"], files["network"], "--utilities", files["utilities"],
+                         "--dtmin", "20", "--out", tmp_path / "results")
+    assert code == 3
+    assert "FAILS" in out and "2→3" in err and "< 20 K" in err
+    assert (tmp_path / "results" / "evaluation.json").exists()
+
+
+def test_unknown_stream_in_the_network_is_an_input_error(capsys, files):
+    files["network"].write_text(NETWORK.replace("E4,2,3", "E4,2,C9"), encoding="utf-8")
+    code, _, err = run(capsys, "evaluate", files["streams"], files["network"], "--utilities", files["utilities"])
+    assert code == 2 and "C9" in err

@@ -1,0 +1,97 @@
+"""Evaluation of a drawn network: checks, targets, sizing and costing as for a new design.
+
+Published source: Sinnott, Coulson & Richardson's Chemical Engineering Vol. 6, ch. 3, Table 3.6 (four
+streams; 50 kW hot and 30 kW cold utility at ΔTmin 10 K, pinch 90/80 °C).  The network evaluated is the
+maximum-energy-recovery network of that problem: above the pinch 1→4 (270 kW), 2→3 (60 kW) and a heater on 3
+(50 kW); below it 1→3 (90 kW), 2→3 (30 kW) and a cooler on 2 (30 kW) — each duty follows from the stream
+data (CP × temperature range on each side of the pinch).  Film coefficients 0.5 kW/(m²·K) and the utility
+temperatures are assumptions of the test.  Areas are checked against the reference library ``ht``
+(ht.LMTD) with U = 1/(1/h_hot + 1/h_cold).
+"""
+
+import ht
+import pytest
+
+from heatloom.model import ExistingUnit, StreamTable, Utility, UtilityKind
+from heatloom.model.costs import CostSettings
+from heatloom.retrofit.evaluate import evaluate_network
+from heatloom.retrofit.existing import ExistingNetwork
+
+H = 0.5
+STREAMS = StreamTable.from_arrays(["1", "2", "3", "4"], [180, 150, 20, 80], [60, 30, 135, 140], [3.0, 1.0, 2.0, 4.5],
+                                  film_coefficient=[H] * 4)
+UTILITIES = [Utility("steam", 180, 179, 100.0, UtilityKind.HOT, H), Utility("water", 20, 30, 10.0, UtilityKind.COLD, H)]
+
+# (name, hot, cold, duty, hot_order, cold_order, hot in, hot out, cold in, cold out), temperatures from the duties
+UNITS = [
+    ("E1", "1", "4", 270.0, 1, 1, 180.0, 90.0, 80.0, 140.0),
+    ("E2", "2", "3", 60.0, 1, 3, 150.0, 90.0, 80.0, 110.0),
+    ("E3", "1", "3", 90.0, 2, 2, 90.0, 60.0, 35.0, 80.0),
+    ("E4", "2", "3", 30.0, 3, 1, 60.0, 30.0, 20.0, 35.0),
+]
+
+
+def network() -> ExistingNetwork:
+    units = [ExistingUnit(n, h, c, duty=q, hot_position=hp, cold_position=cp) for n, h, c, q, hp, cp, *_ in UNITS]
+    units += [ExistingUnit("H1", "steam", "3", cold_position=4),
+              ExistingUnit("C1", "2", "water", duty=30.0, hot_position=2)]
+    return ExistingNetwork(STREAMS, units, UTILITIES)
+
+
+def test_mer_network_passes_meets_its_targets_and_is_sized_like_ht():
+    ev = evaluate_network(network(), 10.0)
+    assert ev.ok, ev.failures
+    # Sinnott Table 3.6: 50 kW hot, 30 kW cold utility at ΔTmin 10 K
+    assert ev.hot_utility_target == pytest.approx(50) and ev.cold_utility_target == pytest.approx(30)
+    assert ev.network.hot_utility == pytest.approx(50, abs=1e-6)
+    assert ev.network.cold_utility == pytest.approx(30, abs=1e-6)
+    assert ev.targets_met
+    by_name = {u.name: u for u in ev.network.exchangers}
+    u_overall = 1 / (1 / H + 1 / H)
+    for name, _, _, q, _, _, thi, tho, tci, tco in UNITS:
+        e = by_name[name]
+        assert e.duty == pytest.approx(q, rel=1e-6)
+        assert (e.hot_in, e.hot_out, e.cold_in, e.cold_out) == (pytest.approx(thi, abs=1e-6), pytest.approx(tho, abs=1e-6),
+                                                                pytest.approx(tci, abs=1e-6), pytest.approx(tco, abs=1e-6))
+        area = q / (u_overall * ht.LMTD(thi, tho, tci, tco))
+        assert e.area == pytest.approx(area, rel=1e-5)
+    # costed with the cost law of a new design: default law on every unit's area
+    law = CostSettings()
+    capital = sum(float(law.annual_capital_cost(x.area, kind))
+                  for group, kind in ((ev.network.exchangers, "exchanger"), (ev.network.heaters, "heater"),
+                                      (ev.network.coolers, "cooler")) for x in group)
+    assert ev.network.capital_cost == pytest.approx(capital, rel=1e-9)
+    assert ev.network.operating_cost == pytest.approx(50 * 100.0 + 30 * 10.0, rel=1e-9)
+
+
+def test_a_larger_dtmin_fails_naming_the_units():
+    # at 20 K, 2→3 above the pinch (hot 90 °C out against cold 80 °C in) keeps only 10 K; so does 1→4
+    ev = evaluate_network(network(), 20.0)
+    assert not ev.ok
+    text = "; ".join(ev.failures)
+    assert "2→3" in text and "1→4" in text and "smallest approach 10 K < 20 K" in text
+    # the targets at 20 K are larger than at 10 K, the network's utilities are the same
+    assert ev.hot_utility_target > 50
+
+
+def test_a_stream_left_short_of_its_target_fails():
+    # without E4 and the cooler, stream 2 leaves E2 at 90 °C: 1 × (90 − 30) = 60 kW short of its target
+    units = [ExistingUnit("E1", "1", "4", duty=270.0, hot_position=1, cold_position=1),
+             ExistingUnit("E3", "1", "3", duty=90.0, hot_position=2, cold_position=1),
+             ExistingUnit("E2", "2", "3", duty=60.0, hot_position=1, cold_position=2),
+             ExistingUnit("H1", "steam", "3", cold_position=3)]
+    ev = evaluate_network(ExistingNetwork(STREAMS, units, UTILITIES), 10.0)
+    assert not ev.ok
+    assert any("stream '2'" in f and "60 kW" in f for f in ev.failures), ev.failures
+
+
+def test_without_film_coefficients_the_checks_stand_and_the_notes_say_why_no_areas():
+    plain = StreamTable.from_arrays(["1", "2", "3", "4"], [180, 150, 20, 80], [60, 30, 135, 140], [3.0, 1.0, 2.0, 4.5])
+    units = [ExistingUnit(n, h, c, duty=q, hot_position=hp, cold_position=cp, u=0.25)
+             for n, h, c, q, hp, cp, *_ in UNITS]
+    units += [ExistingUnit("H1", "steam", "3", cold_position=4),
+              ExistingUnit("C1", "2", "water", duty=30.0, hot_position=2)]
+    utilities = [Utility("steam", 180, 179, 100.0, UtilityKind.HOT), Utility("water", 20, 30, 10.0, UtilityKind.COLD)]
+    ev = evaluate_network(ExistingNetwork(plain, units, utilities), 10.0)
+    assert ev.ok and not ev.sized
+    assert any("film coefficient" in n for n in ev.notes)
