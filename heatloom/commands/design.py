@@ -105,18 +105,10 @@ def register(sub) -> None:
     p.set_defaults(handler=run)
 
 
-def format_network(net, source: str, dt_note: str, approach: str = "ΔTmin") -> str:
-    """The human summary of a design: one line per unit (name, sides, duty, temperatures, split, U, LMTD, F,
-    shells, area, cost), then the costs."""
+def unit_lines(net, *, sized: bool = True) -> list[str]:
+    """The units table of a network's summary: name, sides, duty, temperatures, split, U, LMTD, F, shells,
+    area and cost, each column as wide as its widest cell (areas and costs shown as "-" when not ``sized``)."""
     from ..network.structure import Cooler, Heater
-
-    cur = net.currency or "money"
-    lines = [f"heatloom design: {source}",
-             f"  {approach} {net.dt_min:g} K ({dt_note}); {net.units} units"
-             + (f" (minimum-units target {net.unit_target})" if net.unit_target is not None else ""),
-             f"  hot utility {fmt(net.hot_utility)}, cold utility {fmt(net.cold_utility)}, "
-             f"heat recovery {fmt(net.heat_recovery)}",
-             ""]
 
     def temps(a, b):
         return f"{a:.1f}→{b:.1f}"
@@ -133,13 +125,28 @@ def format_network(net, source: str, dt_note: str, approach: str = "ΔTmin") -> 
             hot, cold, fh, fc = u.hot, u.cold, u.hot_fraction, u.cold_fraction
             hot_t, cold_t = temps(u.hot_in, u.hot_out), temps(u.cold_in, u.cold_out)
         split = f"{fh:.2f}/{fc:.2f}" if (fh < 0.9995 or fc < 0.9995) else "-"
-        rows.append([u.name, hot, cold, u.duty, hot_t, cold_t, split, u.u, u.lmtd, u.f_factor, u.shells, u.area,
-                     u.cost])
-    lines += text_table([Column("unit"), Column("hot side"), Column("cold side"), Column("duty", "[kW]", ",.1f"),
-                         Column("hot in→out", "[°C]", align=">"), Column("cold in→out", "[°C]", align=">"),
-                         Column("split h/c", "[-]", align=">"), Column("U", "[kW/(m²·K)]", ".3f"),
-                         Column("LMTD", "[K]", ".1f"), Column("F", "[-]", ".3f"), Column("shells", "[-]", "d"),
-                         Column("area", "[m²]", ",.1f"), Column("cost", f"[{cur}/year]", ",.0f")], rows)
+        rows.append([u.name, hot, cold, u.duty, hot_t, cold_t, split, u.u, u.lmtd, u.f_factor, u.shells,
+                     u.area if sized else None, u.cost if sized else None])
+    cur = net.currency or "money"
+    return text_table([Column("unit"), Column("hot side"), Column("cold side"), Column("duty", "[kW]", ",.1f"),
+                       Column("hot in→out", "[°C]", align=">"), Column("cold in→out", "[°C]", align=">"),
+                       Column("split h/c", "[-]", align=">"), Column("U", "[kW/(m²·K)]", ".3f"),
+                       Column("LMTD", "[K]", ".1f"), Column("F", "[-]", ".3f"), Column("shells", "[-]", "d"),
+                       Column("area", "[m²]", ",.1f"), Column("cost", f"[{cur}/year]", ",.0f")], rows)
+
+
+def format_network(net, source: str, dt_note: str, approach: str = "ΔTmin") -> str:
+    """The human summary of a design: one line per unit (name, sides, duty, temperatures, split, U, LMTD, F,
+    shells, area, cost), then the costs."""
+    cur = net.currency or "money"
+    lines = [f"heatloom design: {source}",
+             f"  {approach} {net.dt_min:g} K ({dt_note}); {net.units} units"
+             + (f" (minimum-units target {net.unit_target})" if net.unit_target is not None else ""),
+             f"  hot utility {fmt(net.hot_utility)}, cold utility {fmt(net.cold_utility)}, "
+             f"heat recovery {fmt(net.heat_recovery)}",
+             ""]
+
+    lines += unit_lines(net)
     lines += ["",
               f"  capital (annualised)  {net.capital_cost:>14,.0f} {cur}/year",
               f"  utilities             {net.operating_cost:>14,.0f} {cur}/year",

@@ -19,6 +19,7 @@ from .common import (
     read_cost_settings,
     settle_currency,
 )
+from .design import unit_lines
 
 __all__ = ["register", "run", "format_evaluation", "OUTPUT_NAMES"]
 
@@ -73,18 +74,7 @@ def format_evaluation(ev, source: str, dt_note: str) -> str:
     lines += [f"  fails: {f}" for f in ev.failures]
     if ev.crosses or ev.failures:
         lines.append("")
-    lines.append(f"  {'unit':<8} {'hot side':<16} {'cold side':<16} {'duty':>9} {'hot in→out':>15} "
-                 f"{'cold in→out':>15} {'area':>8} {'cost/year':>10}")
-    lines.append(f"  {'':<8} {'':<16} {'':<16} {'[kW]':>9} {'[°C]':>15} {'[°C]':>15} {'[m²]':>8} {f'[{cur}]':>10}")
-    for u in (*net.exchangers, *net.heaters, *net.coolers):
-        hot = getattr(u, "hot", None) or u.utility
-        cold = getattr(u, "cold", None) or u.utility
-        hi, ho = (u.hot_in, u.hot_out) if hasattr(u, "hot_in") else (u.utility_in, u.utility_out)
-        ci, co = (u.cold_in, u.cold_out) if hasattr(u, "cold_in") else (u.utility_in, u.utility_out)
-        area = f"{u.area:,.1f}" if u.area is not None and ev.sized else "-"
-        cost = f"{u.cost:,.0f}" if u.cost is not None and ev.sized else "-"
-        lines.append(f"  {str(u.name)[:8]:<8} {hot[:16]:<16} {cold[:16]:<16} {u.duty:>9,.1f} "
-                     f"{f'{hi:.1f}→{ho:.1f}':>15} {f'{ci:.1f}→{co:.1f}':>15} {area:>8} {cost:>10}")
+    lines += unit_lines(net, sized=ev.sized)
     if ev.sized:
         lines += ["",
                   f"  capital (annualised)  {net.capital_cost:>14,.0f} {cur}/year",
