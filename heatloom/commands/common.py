@@ -206,7 +206,7 @@ def read_scenario_inputs(zones, *, utilities=None, utilities_sheet=None, prices=
     table = None if utilities is None else read_utilities(utilities, sheet=utilities_sheet,
                                                           process=zone_streams(zones), hours_per_year=hours)
     plans = () if prices is None else read_price_scenarios(prices, table, hours_per_year=hours)
-    settings = settle_currency(settings, table)
+    settings = settle_currency(settings, [*(table or ()), *plans])   # the prices table names a currency too
     missing = sorted({m for z in zones for m in missing_film_coefficients(z.streams, table or ())})
     return table, plans, settings, missing
 

@@ -246,3 +246,20 @@ def test_a_folder_s_utilities_and_prices_are_used_and_named(run, site):
     assert code == 0, err
     assert "from the folder, prices prices.csv; utilities utilities.csv" in err
     assert [s["name"] for s in json.loads(out)["scenarios"]] == ["contract", "dear steam"]   # the prices table
+
+
+def test_the_prices_table_names_the_currency_and_a_costs_file_in_another_is_refused(run, site):
+    # issue 14 item 13: the currency comes from the prices (here the scenario table's EUR/MWh) when nothing
+    # else names one; a costs file in USD beside EUR prices is an input error (no currency is converted).
+    (site / "prices.csv").write_text(PRICES.replace("USD/MWh", "EUR/MWh"), encoding="utf-8")
+    argv = ("scenarios", site / "site", "--utilities", site / "utilities.csv", "--prices", site / "prices.csv",
+            "--hours-per-year", "8000", "--dtmin", "10:20", "--step", "10", "--workers", "1")
+    code, out, _ = run(*argv, "--json")
+    assert code == 0 and json.loads(out)["currency"] == "EUR"
+    (site / "costs.json").write_text(json.dumps({"currency": "USD", "annualised": False, "interest_rate": 0.1,
+                                                 "years": 10, "exchanger": {"fixed": 10000, "per_area": 800,
+                                                                            "exponent": 0.8}}), encoding="utf-8")
+    before = (site / "prices.csv").read_bytes()
+    code, out, err = run(*argv, "--costs", site / "costs.json")
+    assert code == 2 and "USD" in err and "EUR" in err and "converts no currency" in err
+    assert (site / "prices.csv").read_bytes() == before
