@@ -175,3 +175,13 @@ def test_design_units_table_is_read_by_retrofit(capsys, tmp_path):
         assert result["targets"]["hot_utility"] == pytest.approx(200.0, rel=1e-9)
         # a maximum-energy-recovery design sits on its targets at its own areas
         assert result["current"]["hot_utility"] == pytest.approx(200.0, rel=1e-3)
+
+
+def test_console_summary_gives_the_safety_note_once(capsys):
+    # the cost basis used to carry the safety note as well, so the summary printed it twice (issue 15)
+    from heatloom.defaults import SAFETY_NOTE
+
+    code, out, _ = run(capsys, "retrofit", CASE)
+    assert code == 0
+    assert out.count(SAFETY_NOTE) == 1
+    assert "Costs in USD (from the costs file)" in out        # the cost basis itself is still there
