@@ -461,11 +461,20 @@ def _write_xlsx(path: Path, sheets: Mapping[str, object]) -> None:
     wb.save(path)
 
 
-def targets_workbook_sheets(targets) -> dict:
-    """Frames of a targeting run, one per workbook sheet (units in every header)."""
+def targets_workbook_sheets(targets, area=None, area_note: str | None = None) -> dict:
+    """Frames of a targeting run, one per workbook sheet (units in every header).
+
+    Parameters
+    ----------
+    targets : heatloom.pinch.Targets
+    area : heatloom.pinch.area.AreaTargets, optional
+        The area, units and shells targets, written beside the energy targets as ``--json`` carries them.
+    area_note : str, optional
+        Why they were not computed, written in their place when ``area`` is None.
+    """
     import pandas as pd
 
-    summary = pd.DataFrame([
+    rows = [
         ("ΔTmin", targets.dt_min, "K"),
         ("minimum hot utility", targets.hot_utility, "kW"),
         ("minimum cold utility", targets.cold_utility, "kW"),
@@ -473,15 +482,25 @@ def targets_workbook_sheets(targets) -> dict:
         ("hot pinch temperature", targets.pinch.hot if targets.pinch else None, "°C"),
         ("cold pinch temperature", targets.pinch.cold if targets.pinch else None, "°C"),
         ("threshold", targets.threshold.value if targets.threshold else "no", ""),
-    ], columns=["quantity", "value", "unit"])
+    ]
+    if area is not None:
+        rows += [("minimum area (Townsend–Linnhoff)", area.area, "m²"),
+                 ("minimum units (Euler, N − 1)", area.units, "-"),
+                 ("minimum units for maximum energy recovery", area.units_mer, "-"),
+                 ("minimum 1-2 shells", area.shells, "-")]
+    elif area_note:
+        rows.append(("area, units and shells targets", f"not computed: {area_note}", ""))
+    summary = pd.DataFrame(rows, columns=["quantity", "value", "unit"])
+    currencies = {d.utility.currency for d in (targets.placement.duties if targets.placement else ())}
+    cur = currencies.pop() if len(currencies) == 1 and None not in currencies else "money"
     sheets = {"targets": summary, "streams": targets.streams.to_frame(),
               "problem table": targets.table.to_frame()}
     if targets.placement is not None:
         sheets["utilities"] = pd.DataFrame([{
             "name": d.utility.name, "kind": d.utility.kind.value,
             "T_supply [°C]": d.utility.supply_temperature, "T_target [°C]": d.utility.target_temperature,
-            "price [money/(kW·year)]": d.utility.cost, "duty [kW]": d.duty,
-            "annual cost [money/year]": d.annual_cost} for d in targets.placement.duties])
+            f"price [{cur}/(kW·year)]": d.utility.cost, "duty [kW]": d.duty,
+            f"annual cost [{cur}/year]": d.annual_cost} for d in targets.placement.duties])
     curves = [targets.hot_composite(), targets.cold_composite(), targets.grand_composite()]
     sheets["curves"] = pd.concat([c.to_frame() for c in curves], axis=1)
     return sheets

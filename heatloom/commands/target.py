@@ -6,6 +6,7 @@ import argparse
 
 from ..errors import InputError
 from .common import add_shared, add_table_options, dt_min_of, finish, fmt, note_lines, read_inputs
+from .console import Column, text_table
 
 __all__ = ["register", "run", "format_targets", "PLOT_FILES"]
 
@@ -93,13 +94,14 @@ def format_targets(targets, source: str, dt_min_note: str, area=None, area_note:
                      "process temperature); give --utilities FILE to place real levels")
     else:
         lines.append("  utility levels (cheapest placement against the grand composite curve):")
-        lines.append(f"    {'name':<20} {'kind':<5} {'T_supply':>9} {'T_target':>9} {'duty':>12} "
-                     f"{'cost/year':>12}")
-        lines.append(f"    {'':<20} {'':<5} {'[°C]':>9} {'[°C]':>9} {'[kW]':>12} {'[money]':>12}")
-        for d in targets.placement.duties:
-            u = d.utility
-            lines.append(f"    {u.name[:20]:<20} {u.kind.value:<5} {u.supply_temperature:>9g} "
-                         f"{u.target_temperature:>9g} {d.duty:>12,.1f} {d.annual_cost:>12,.0f}")
+        currencies = {d.utility.currency for d in targets.placement.duties}
+        cur = currencies.pop() if len(currencies) == 1 and None not in currencies else "money"
+        lines += text_table([Column("name"), Column("kind"), Column("T_supply", "[°C]", "g"),
+                             Column("T_target", "[°C]", "g"), Column("duty", "[kW]", ",.1f"),
+                             Column("cost", f"[{cur}/year]", ",.0f")],
+                            [[d.utility.name, d.utility.kind.value, d.utility.supply_temperature,
+                              d.utility.target_temperature, d.duty, d.annual_cost]
+                             for d in targets.placement.duties], indent="    ")
         for t in targets.placement.utility_pinches:
             lines.append(f"    utility pinch at {t:g} °C shifted")
     lines += note_lines()
@@ -135,7 +137,7 @@ def run(args) -> int:
         out.json("targets.json", result)
         out.csv("stream_table.csv", streams.to_frame())
         out.csv("problem_table.csv", t.table.to_frame())
-        out.workbook("targets.xlsx", targets_workbook_sheets(t))
+        out.workbook("targets.xlsx", targets_workbook_sheets(t, area, area_note))
         if args.plot:
             from ..io.figures import (
                 balanced_composite_figure,

@@ -218,3 +218,29 @@ def test_a_negative_utility_price_is_bad_input_with_its_row(capsys, tmp_path):
     u.write_text("name,T_supply,T_target,cost\nsteam,250,249,-5\nCW,20,30,10\n", encoding="utf-8")
     code, _, err = run(capsys, "target", DEMO / "streams.csv", "--utilities", u)
     assert code == 2 and "u.csv, row 2, column 'cost'" in err and "price must be >= 0" in err
+
+
+def test_workbook_targets_sheet_carries_what_json_carries_and_the_currency(capsys, tmp_path):
+    # issue 15: the XLSX targets sheet left out area, units and shells; cost headers said [money] although
+    # the utility prices name EUR. Sinnott Table 3.6 streams (50 kW hot, 30 kW cold at ΔTmin 10 K) with an
+    # invented h of 0.5 kW/(m²·K) on every stream and invented utilities.
+    import pandas as pd
+
+    with_h = "\n".join(line + (",h" if k == 0 else ",0.5") for k, line in enumerate(SINNOTT_CSV.splitlines()))
+    (tmp_path / "s.csv").write_text(with_h + "\n", encoding="utf-8")
+    (tmp_path / "u.csv").write_text("name,T_supply,T_target,cost [EUR/kW/yr],h\nsteam,250,249,120,4\n"
+                                    "water,10,15,10,1.5\n", encoding="utf-8")
+    argv = ("target", tmp_path / "s.csv", "--utilities", tmp_path / "u.csv")
+    code, out, _ = run(capsys, *argv, "--json")
+    assert code == 0
+    data = json.loads(out)
+    assert (data["hot_utility"], data["cold_utility"]) == pytest.approx((50.0, 30.0))      # Sinnott Table 3.6
+    code, out, _ = run(capsys, *argv, "--out", tmp_path / "o")
+    assert "[EUR/year]" in out and "[money]" not in out
+    sheets = pd.read_excel(tmp_path / "o" / "targets.xlsx", sheet_name=None)
+    rows = sheets["targets"].set_index("quantity")["value"]
+    assert float(rows["minimum area (Townsend–Linnhoff)"]) == pytest.approx(data["area"], abs=1e-3)
+    assert int(rows["minimum units (Euler, N − 1)"]) == data["units"]
+    assert int(rows["minimum units for maximum energy recovery"]) == data["units_mer"]
+    assert int(rows["minimum 1-2 shells"]) == data["shells"]
+    assert {"price [EUR/(kW·year)]", "annual cost [EUR/year]"} <= set(sheets["utilities"].columns)
