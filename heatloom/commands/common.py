@@ -531,8 +531,16 @@ def note_lines(notes=(), *, caution: str = "") -> list[str]:
     '  note: costs in USD (default)'
     >>> note_lines()[-1].startswith("  note: Targets and designs from heatloom are screening estimates")
     True
+
+    A note that carries the safety note itself (a cost basis does) gives it up, so it is said once:
+
+    >>> from heatloom.defaults import SAFETY_NOTE
+    >>> sum(line.count(SAFETY_NOTE) for line in note_lines([f"Costs in USD. {SAFETY_NOTE}"]))
+    1
     """
-    return [f"  note: {n}" for n in notes] + [f"  note: {defaults.SAFETY_NOTE}" + (f" {caution}" if caution else "")]
+    said = [" ".join(str(n).replace(defaults.SAFETY_NOTE, "").split()) if defaults.SAFETY_NOTE in str(n) else n
+            for n in notes]
+    return [f"  note: {n}" for n in said if n] + [f"  note: {defaults.SAFETY_NOTE}" + (f" {caution}" if caution else "")]
 
 
 def folder_tables(path: str | Path, given: Mapping[str, object]) -> dict[str, Path]:

@@ -22,6 +22,7 @@ from .common import (
     positive,
     read_scenario_inputs,
 )
+from .console import Column, text_table
 from .sweep import parse_range
 
 __all__ = ["register", "run", "format_study", "parse_factors", "parse_span", "DEFAULT_STEP", "OUTPUT_FILES"]
@@ -137,19 +138,23 @@ def format_study(study, source: str, range_note: str) -> str:
     lines.append(f"  ΔTmin          {lo:g} to {hi:g} K, {len(study.dt_mins)} values ({range_note})")
     lines.append(f"  cases          {len(study.cases):,}, run on {study.executor}")
     if study.optima:
-        lines += ["", f"  {'zone':<18} {'scenario':<18} {'ΔTmin':>7} {'hot util':>10} {'cold util':>10} "
-                      f"{'area':>9} {'total':>12}",
-                  f"  {'':<18} {'':<18} {'[K]':>7} {'[kW]':>10} {'[kW]':>10} {'[m²]':>9} {'[' + cur + '/year]':>12}"]
+        rows = []
         for o in study.optima[:40]:
             p = o.optimum
             if p is None:
-                lines.append(f"  {o.zone[:18]:<18} {o.scenario[:18]:<18}  no feasible ΔTmin ({o.error[:60]})")
+                rows.append([o.zone, o.scenario, None, None, None, None, None, f"no feasible ΔTmin ({o.error})"])
                 continue
-            extra = ""
-            if o.best_design is not None:
-                extra = f"  (best design {o.best_design.total_annual_cost:,.0f} at {o.best_design.dt_min:g} K)"
-            lines.append(f"  {o.zone[:18]:<18} {o.scenario[:18]:<18} {p.dt_min:>7.2f} {p.hot_utility:>10,.1f} "
-                         f"{p.cold_utility:>10,.1f} {p.area:>9,.1f} {p.total_annual_cost:>12,.0f}{extra}")
+            best = (f"{o.best_design.total_annual_cost:,.0f} at {o.best_design.dt_min:g} K"
+                    if o.best_design is not None else None)
+            rows.append([o.zone, o.scenario, p.dt_min, p.hot_utility, p.cold_utility, p.area, p.total_annual_cost,
+                         best])
+        columns = [Column("zone"), Column("scenario"), Column("ΔTmin", "[K]", ".2f"),
+                   Column("hot util", "[kW]", ",.1f"), Column("cold util", "[kW]", ",.1f"),
+                   Column("area", "[m²]", ",.1f"), Column("total", f"[{cur}/year]", ",.0f"),
+                   Column("best design", f"[{cur}/year]")]
+        if all(r[-1] is None for r in rows):
+            columns, rows = columns[:-1], [r[:-1] for r in rows]
+        lines += [""] + text_table(columns, rows)
         if len(study.optima) > 40:
             lines.append(f"  ... {len(study.optima) - 40} more (see --json or --out)")
     if study.totals and len(study.zones) > 1:

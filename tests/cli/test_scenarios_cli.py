@@ -263,3 +263,19 @@ def test_the_prices_table_names_the_currency_and_a_costs_file_in_another_is_refu
     code, out, err = run(*argv, "--costs", site / "costs.json")
     assert code == 2 and "USD" in err and "EUR" in err and "converts no currency" in err
     assert (site / "prices.csv").read_bytes() == before
+
+
+def test_console_names_long_zones_and_scenarios_whole_and_the_safety_note_once(run, site):
+    # issue 15: names were cut at 18 characters; the cost basis repeated the safety note
+    from heatloom.defaults import SAFETY_NOTE
+
+    (site / "site" / "north_streams.csv").rename(site / "site" / "north_bank_evaporator_train_streams.csv")
+    (site / "prices.csv").write_text(PRICES.replace("dear steam", "dear steam after the 2027 contract"),
+                                     encoding="utf-8")
+    code, out, _ = run("scenarios", site / "site", "--utilities", site / "utilities.csv", "--prices",
+                       site / "prices.csv", "--hours-per-year", "8000", "--dtmin", "10:20", "--step", "10",
+                       "--workers", "1")
+    assert code == 0
+    rows = [line for line in out.splitlines() if line.startswith("  north_bank_evaporator_train ")]
+    assert any("dear steam after the 2027 contract" in line for line in rows)
+    assert out.count(SAFETY_NOTE) == 1
