@@ -7,7 +7,9 @@ designed with `heatloom.network.design_mer` at ΔTmin 10 K within a wall-clock b
 below is printed: units in the network, the minimum-units target (Euler, N − 1 per pinch subnetwork)
 and the excess over it, the number of planned matches, wall time, whether `check_network` passed
 (design_mer never returns a network that fails it; "yes" is re-checked here), the status of every
-solve, and the number of fallbacks the notes report. Asserts nothing; run:
+solve, the number of fallbacks the notes report and the method that produced the network ("tick-off": the
+tick-off method of heatloom.network.tickoff, used above design.TICK_OFF_ABOVE process streams; "matches":
+the fewest-matches MILP and the stagewise placement). Asserts nothing; run:
 
     python benchmarks/bench_design.py [--sizes 10 20 40 60 100] [--time-limit S] [--solver highs]
     python benchmarks/bench_design.py --quick          # 10 and 20 streams only
@@ -54,7 +56,7 @@ def main() -> None:
     args = ap.parse_args()
     sizes = [10, 20] if args.quick else args.sizes
     print(f"{'streams':>8} {'units':>6} {'target':>7} {'excess':>7} {'matches':>8} {'budget':>7} "
-          f"{'time [s]':>9} {'check':>6} {'fallbacks':>9}  statuses")
+          f"{'time [s]':>9} {'check':>6} {'fallbacks':>9} {'method':>9}  statuses")
     for n in sizes:
         table = generated(n)
         limit = args.time_limit if args.time_limit is not None else (60.0 if n <= 40 else 300.0)
@@ -64,7 +66,7 @@ def main() -> None:
                              default_film_coefficient=1.0)
         except HeatloomError as e:
             print(f"{n:>8} {'-':>6} {'-':>7} {'-':>7} {'-':>8} {limit:>7g} {time.perf_counter() - t0:>9.2f} "
-                  f"{'-':>6} {'-':>9}  failed: {e}")
+                  f"{'-':>6} {'-':>9} {'-':>9}  failed: {e}")
             continue
         wall = time.perf_counter() - t0
         try:
@@ -75,10 +77,12 @@ def main() -> None:
         statuses = Counter(s.status.value for s in net.solves)
         matches = next((s for s in net.notes if s.startswith("minimum matches")), "")
         fallbacks = sum(1 for s in net.notes if "instead" in s or "greedy" in s)
+        method = "tick-off" if any(s.startswith("heat-load distribution and placement by the tick-off")
+                                   for s in net.notes) else "matches"
         excess = f"{100 * (net.units / net.unit_target - 1):+.0f}%" if net.unit_target else "-"
         print(f"{n:>8} {net.units:>6} {net.unit_target!s:>7} {excess:>7} "
               f"{matches[16:].split()[0] if matches else '-':>8} {limit:>7g} {wall:>9.2f} {checked:>6} "
-              f"{fallbacks:>9}  {dict(statuses)}", flush=True)
+              f"{fallbacks:>9} {method:>9}  {dict(statuses)}", flush=True)
 
 
 if __name__ == "__main__":

@@ -12,8 +12,13 @@ The sequence (DEVELOPERS.md, "Method notes"):
    restricted to the matches (:func:`heatloom.network.placement.stage_model`), one model per pinch
    region and independent stream group (:func:`stream_groups`).  Each planned match as one unit first;
    if that cannot keep ΔTmin, other sets of as few matches of the group, then the planned matches in
-   two places or any pair of the group (fewer units wins), and as the last resort units interval by
-   interval (:func:`heatloom.network.placement.interval_placement`, no solver).  The notes say which;
+   two places or any pair of the group (fewer units wins), and as the last resort the tick-off method or
+   units interval by interval (:func:`heatloom.network.placement.interval_placement`), no solver, the one
+   with fewer units.  The notes say which.  Forbidden and required matches hold at every step;
+   Above :data:`TICK_OFF_ABOVE` process streams, steps 2 and 3 are one: the tick-off method
+   (:mod:`heatloom.network.tickoff`) distributes the heat and places the units region by region, every
+   unit ticking off a stream part while the remainder still meets the targets; the MILP chain is the
+   fallback there;
 4. sizing of every unit (segment-wise LMTD area, U from the film coefficients), costing, and the checks of
    :func:`heatloom.network.structure.check_network`: a network that breaks a balance or ΔTmin is never
    returned.
@@ -24,7 +29,7 @@ every solve takes its share of what is left, and the notes name the solves that 
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Iterable, Sequence
 
 from .. import defaults
 from ..equipment.geometry import hairpins_for_area
@@ -40,9 +45,18 @@ from ..validation import enum_member
 from .placement import Placement, Side, interval_placement, stage_model
 from .solvers import Budget, SolveReport, solve
 from .structure import Cooler, Exchanger, Heater, Network, check_network, stream_enthalpy
+from .tickoff import tick_off_placement
 from .transshipment import Region, pinch_regions
 
-__all__ = ["design_mer", "stream_groups"]
+__all__ = ["TICK_OFF_ABOVE", "design_mer", "stream_groups", "match_rules"]
+
+TICK_OFF_ABOVE = 12
+"""Above this many process streams [-] the design places units by the tick-off method
+(:mod:`heatloom.network.tickoff`) without the fewest-matches MILP; at or below it the MILP chain runs and
+the tick-off method is one of its fallbacks.  Our choice from benchmarks/bench_design.py (generated
+problems, ΔTmin 10 K): at 10 streams both reach the target, at 20 the tick-off method 24 units against
+the target 24 in under a second where the MILP chain placed 25-27 in 30-45 s, and the fifteen-stream
+published problem (Björk & Pettersson 2003 data) gets 29 units either way."""
 
 
 def stream_groups(hot: Sequence[Side], cold: Sequence[Side], matches: Sequence
@@ -125,25 +139,31 @@ def stream_groups(hot: Sequence[Side], cold: Sequence[Side], matches: Sequence
 
 
 def _place(hot: list[Side], cold: list[Side], allowed: set[tuple[str, str]], label: str, proven: bool,
-           solver, budget: Budget, source=None, tries: int = 6) -> tuple[Placement, list[SolveReport], str]:
-    """Place one stream group: stagewise MILPs in turn, then the interval placement (no solver).
+           solver, budget: Budget, source=None, tries: int = 6, forbidden=frozenset(), required=frozenset()
+           ) -> tuple[Placement, list[SolveReport], str]:
+    """Place one stream group: stagewise MILPs in turn, then the tick-off or the interval placement.
 
     1. each planned match as one unit; 2. when ``source`` (the group's subnetwork and its matches) is
     given, up to ``tries`` other sets of as few matches, one unit each
     (:func:`heatloom.network.milp.alternative_matches`); 3. the planned matches, some in two places;
     4. any pair of the group (fewer units than 3. often); 5. only when neither has a solution, any pair
-    with one more stage; 6. units interval by interval (:func:`interval_placement`).  Of 3. and 4. the
-    placement with fewer units wins (the planned matches on a tie).  A model of more than 20 000 unit
-    binaries is not built (it could not be solved in a share of the budget).
+    with one more stage; 6. the tick-off placement (:func:`heatloom.network.tickoff.tick_off_placement`)
+    or units interval by interval (:func:`interval_placement`), the one with fewer units.  Of 3. and 4.
+    the placement with fewer units wins (the planned matches on a tie).  A model of more than 20 000 unit
+    binaries is not built (it could not be solved in a share of the budget).  No step matches a pair of
+    ``forbidden``; the pairs of ``required`` in the group are placed by every step.
     Returns the placement, the solve reports and a note when it did not come from the first model.
     """
     from .matches import alternative_matches
 
     stages = max(len(hot), len(cold))
     reports: list[SolveReport] = []
+    names = {s.name for s in (*hot, *cold)}
+    mine = {p for p in required if p[0] in names and p[1] in names}
 
     def attempt(pairs, k, once, share, what, required=frozenset()):
-        prob, read = stage_model(hot, cold, pairs, k, required=required, once=once, name="placement")
+        prob, read = stage_model(hot, cold, pairs, k, required=set(required) | (mine & set(pairs)), once=once,
+                                 name="placement")
         report = budget.record(solve(prob, solver=solver, time_limit=budget.share(share), check=False,
                                      name=f"placement ({label}, {what})"))
         reports.append(report)
@@ -157,7 +177,8 @@ def _place(hot: list[Side], cold: list[Side], allowed: set[tuple[str, str]], lab
         for _ in range(tries if source is not None else 0):
             if budget.remaining < 0.5 * budget.total or budget.exhausted:
                 break
-            alt, rep = alternative_matches(*source, tried, solver=solver, time_limit=budget.share(0.25))
+            alt, rep = alternative_matches(*source, tried, solver=solver, time_limit=budget.share(0.25),
+                                           forbidden=forbidden, required=mine)
             reports.append(budget.record(rep))
             if alt is None:
                 break
@@ -166,7 +187,8 @@ def _place(hot: list[Side], cold: list[Side], allowed: set[tuple[str, str]], lab
             if result is not None:
                 return result, reports, (f"subnetwork '{label}': the planned matches could not be placed one "
                                          f"unit each; another set of {len(alt)} matches could")
-    everything = {(i.name, j.name) for i in hot for j in cold if not (i.utility and j.utility)}
+    everything = {(i.name, j.name) for i in hot for j in cold if not (i.utility and j.utility)
+                  and (i.name, j.name) not in forbidden}
     best = None
     for pairs, k, share, what in [(allowed, stages, 0.4, "planned matches in two places"),
                                   (everything, stages, 0.7, "any match"),
@@ -185,14 +207,82 @@ def _place(hot: list[Side], cold: list[Side], allowed: set[tuple[str, str]], lab
         return best[0], reports, (f"subnetwork '{label}': the planned matches could not be placed one unit "
                                   f"each keeping ΔTmin; {len(best[0].units)} units placed allowing "
                                   f"{best[1]} instead")
-    try:
-        result = interval_placement(hot, cold, preferred=allowed)
-    except ValueError as exc:
-        raise InfeasibleError(f"no placement of the matches of subnetwork '{label}' keeps ΔTmin at both "
-                              f"ends of every unit ({exc})") from None
     why = "no time left of the budget" if not reports else "the placement models stopped without a solution"
+    ticked = tick_off_placement(hot, cold, forbidden=forbidden, required=mine,
+                                time_limit=max(0.5 * budget.remaining, 0.5), tries=20)
+    try:
+        result = interval_placement(hot, cold, preferred=allowed, forbidden=forbidden)
+    except ValueError as exc:
+        if ticked is None:
+            raise InfeasibleError(f"no placement of the matches of subnetwork '{label}' keeps ΔTmin at both "
+                                  f"ends of every unit ({exc})") from None
+        result = None
+    if ticked is not None and (result is None or len(ticked.placement.units) < len(result.units)
+                               or not mine <= {(u.hot, u.cold) for u in result.units}):
+        return ticked.placement, reports, (f"subnetwork '{label}': {why}; {_tick_off_words(ticked)} instead")
     return result, reports, (f"subnetwork '{label}': {why}; units placed interval by interval instead "
                              f"({len(result.units)} units, more than the fewest)")
+
+
+def _tick_off_words(result) -> str:
+    rest = (f", {result.remainder} of them for what was left placed interval by interval"
+            if result.remainder else "")
+    return (f"units placed by the tick-off method ({len(result.placement.units)} units{rest}; best of "
+            f"{result.tries} searches)")
+
+
+def match_rules(streams: StreamTable, utilities: Sequence[Utility], forbidden, required
+                ) -> tuple[set[tuple[str, str]], set[tuple[str, str]]]:
+    """Forbidden and required (hot, cold) pairs checked against the names of the streams and utilities.
+
+    Parameters
+    ----------
+    streams : StreamTable
+    utilities : sequence of Utility
+    forbidden, required : iterable of (str, str)
+        (hot, cold) name pairs; a hot name is a hot stream or a hot utility, a cold name a cold stream or
+        a cold utility.
+
+    Raises
+    ------
+    InputError
+        For a name that is not a hot (first) or cold (second) stream or utility, a pair of two utilities,
+        or a pair both forbidden and required; the message names the pairs and the valid names.
+
+    Examples
+    --------
+    >>> from heatloom.pinch.utilities import ideal_utilities
+    >>> s = StreamTable.from_arrays(["H1", "C1"], [180, 20], [60, 135], [3.0, 2.0])
+    >>> match_rules(s, ideal_utilities(s, 10), [("H1", "C1")], [])
+    ({('H1', 'C1')}, set())
+    >>> match_rules(s, ideal_utilities(s, 10), [("H2", "C1")], [])
+    Traceback (most recent call last):
+    ...
+    heatloom.errors.InputError: forbidden match H2→C1: 'H2' is not a hot stream or hot utility (hot: 'H1', 'hot utility (assumed)')
+    """
+    from .matches import pair_set
+
+    hot = [s.name for s in streams if s.is_hot] + [u.name for u in utilities if u.is_hot]
+    cold = [s.name for s in streams if not s.is_hot] + [u.name for u in utilities if not u.is_hot]
+    util = {u.name for u in utilities}
+    out = []
+    for what, pairs in (("forbidden", forbidden), ("required", required)):
+        pairs = pair_set(pairs, what)
+        for h, c in sorted(pairs):
+            if h not in hot:
+                raise InputError(f"{what} match {h}→{c}: '{h}' is not a hot stream or hot utility (hot: "
+                                 + ", ".join(f"'{n}'" for n in hot) + ")")
+            if c not in cold:
+                raise InputError(f"{what} match {h}→{c}: '{c}' is not a cold stream or cold utility (cold: "
+                                 + ", ".join(f"'{n}'" for n in cold) + ")")
+            if h in util and c in util:
+                raise InputError(f"{what} match {h}→{c}: two utilities never exchange heat in a network")
+        out.append(pairs)
+    both = sorted(out[0] & out[1])
+    if both:
+        raise InputError("match" + ("es " if len(both) > 1 else " ") + ", ".join(f"{h}→{c}" for h, c in both)
+                         + " both forbidden and required")
+    return out[0], out[1]
 
 
 def _process_side(stream: Stream, region: Region, shift: float) -> Side | None:
@@ -265,10 +355,104 @@ def _geometry(area: float, unit, exchanger_type: ExchangerType | None, options: 
     return area, None, None, None
 
 
+def _region_sides(streams: StreamTable, utilities: Sequence[Utility], duties: dict, region: Region,
+                  r_index: int, n_regions: int, dt_min: float, scale: float):
+    """The hot and cold sides of a pinch region (None when it has none)."""
+    hot_sides, cold_sides = [], []
+    for s in streams:
+        side = _process_side(s, region, s.shift(dt_min))
+        if side is not None:
+            (hot_sides if s.is_hot else cold_sides).append(side)
+    for u in utilities:
+        d = duties.get(u.name, 0.0)
+        if d <= 1e-9 * max(scale, 1.0):
+            continue
+        # hot utilities serve the top region, cold utilities the bottom one (nothing crosses a pinch)
+        if (u.is_hot and r_index == 0) or (not u.is_hot and r_index == n_regions - 1):
+            (hot_sides if u.is_hot else cold_sides).append(_utility_side(u, d, dt_min))
+    if not hot_sides and not cold_sides:
+        return None
+    if not hot_sides or not cold_sides:
+        raise InfeasibleError(f"subnetwork '{region.label}' has only "
+                              f"{'hot' if hot_sides else 'cold'} sides; the targets cannot be met")
+    return hot_sides, cold_sides
+
+
+def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, required, budget, solver,
+                     solves):
+    """Units of every region by :func:`tick_off_placement`; (None, reasons) when a region has none or a
+    required pair is left out."""
+    sides = []
+    for r_index, region in enumerate(regions):
+        got = _region_sides(streams, utilities, duties, region, r_index, len(regions), dt_min,
+                            t.table.duty_scale)
+        if got is not None:
+            sides.append((region.label, *got))
+    weights = [len(h) + len(c) for _, h, c in sides]
+    placed, notes = [], []
+    for k, (label, hot, cold) in enumerate(sides):
+        part = budget.part(weights[k] / max(sum(weights[k:]), 1))
+        names = {x.name for x in (*hot, *cold)}
+        mine = {p for p in required if p[0] in names and p[1] in names}
+        result = tick_off_placement(hot, cold, forbidden=forbidden, required=mine,
+                                    time_limit=0.5 * part.remaining, tries=500, solver=solver,
+                                    solve_time=0.6 * part.remaining)
+        if result is not None:
+            solves += [part.record(r) for r in result.reports]
+        if result is None:
+            return None, [f"subnetwork '{label}': its cascade does not hold in the tick-off method's "
+                          "conservative reading of the utilities, or the match rules leave no placement"]
+        notes.append(f"subnetwork '{label}': {_tick_off_words(result)}")
+        placed += [(label, p) for p in result.placement.units]
+    missing = sorted(required - {(p.hot, p.cold) for _, p in placed})
+    if missing:
+        return None, ["required match" + ("es " if len(missing) > 1 else " ")
+                      + ", ".join(f"{h}→{c}" for h, c in missing) + " not placed"]
+    return placed, notes
+
+
+def _chain_design(streams, utilities, plan, regions, t, dt_min, forbidden, required, solver, budget, notes,
+                  solves):
+    """Units of every region placed for the planned matches (:func:`_place`); adds notes and solves."""
+    notes.append(f"minimum matches {plan.number_of_matches} "
+                 f"({'proven minimal' if plan.proven_minimum else 'best found within the time limit'}); "
+                 f"minimum-units target {plan.unit_target} (N − 1 per pinch subnetwork)")
+    notes += plan.notes
+    groups = []   # (label, hot sides, cold sides, planned pairs, (subnetwork, its matches in the group) or None)
+    for r_index, region in enumerate(regions):
+        got = _region_sides(streams, utilities, plan.utility_duties, region, r_index, len(regions), dt_min,
+                            t.table.duty_scale)
+        if got is None:
+            continue
+        hot_sides, cold_sides = got
+        matches = plan.matches_within(region.top, region.bottom)
+        subs = [s.subnetwork for s in plan.subnetworks if s.matches and s.matches[0] in matches]
+        parts = stream_groups(hot_sides, cold_sides, matches)
+        for k, (hs, cs, pairs) in enumerate(parts):
+            label = region.label if len(parts) == 1 else f"{region.label}, stream group {k + 1} of {len(parts)}"
+            mine = [m for m in matches if (m.hot, m.cold) in pairs] if len(subs) == 1 else None
+            groups.append((label, hs, cs, pairs, (subs[0], mine) if mine else None))
+    weights = [len(g[3]) * max(len(g[1]), len(g[2])) for g in groups]
+    placed = []  # (region label, PlacedUnit)
+    for g, (label, hot_sides, cold_sides, allowed, source) in enumerate(groups):
+        part = budget.part(weights[g] / max(sum(weights[g:]), 1))
+        result, reports, note = _place(hot_sides, cold_sides, allowed, label, plan.proven_minimum, solver, part,
+                                       source, forbidden=forbidden, required=required)
+        solves += reports
+        if note:
+            notes.append(note)
+        placed += [(label.split(", stream group")[0], p) for p in result.units]
+    if len(placed) > plan.number_of_matches:
+        notes.append(f"keeping ΔTmin at both ends of every unit took {len(placed)} units for the "
+                     f"{plan.number_of_matches} matches of the plan (a match in two places, or a match added)")
+    return placed
+
+
 def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility] | None = None, *,
                costs: CostSettings | None = None, solver: str | None = None, time_limit: float = 60.0,
                default_film_coefficient: float | None = None, exchanger_type: ExchangerType | None = None,
-               tube_diameter: float | None = None, hairpin_length: float | None = None) -> Network:
+               tube_diameter: float | None = None, hairpin_length: float | None = None,
+               forbidden: Iterable[tuple[str, str]] = (), required: Iterable[tuple[str, str]] = ()) -> Network:
     """A maximum-energy-recovery network with the fewest units, sized and costed.
 
     Parameters
@@ -297,6 +481,17 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
         ``SHELL_AND_TUBE_1_2`` (shells in series and F, area raised by 1/F, cost law per shell) or
         ``DOUBLE_PIPE`` (hairpins; needs ``tube_diameter`` [m] and ``hairpin_length`` [m]).  None or
         ``COUNTER_CURRENT``: counter-current area only.
+    forbidden : iterable of (str, str)
+        (hot, cold) name pairs never matched; a name may be a utility's (forbid steam on a stream).
+        Every method honours them (fewest matches, its relaxation, the greedy distribution, every
+        placement, the tick-off method).
+    required : iterable of (str, str)
+        (hot, cold) name pairs that must appear in the network with a positive duty.
+
+    Above :data:`TICK_OFF_ABOVE` process streams the units of each pinch region come from the tick-off
+    method (:func:`heatloom.network.tickoff.tick_off_placement`) and the fewest-matches MILP is not run;
+    when that method gives no network the MILP chain runs instead.  The notes name the method that
+    produced each region's units.
 
     Returns
     -------
@@ -307,9 +502,12 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
     ------
     InputError
         Film coefficients missing and no default given; an exchanger type without a geometry other
-        than counter-current; a double pipe without its tube diameter or hairpin length.
+        than counter-current; a double pipe without its tube diameter or hairpin length; a forbidden or
+        required pair naming an unknown stream or utility, two utilities, or a pair both forbidden and
+        required; a required pair that can exchange heat nowhere at the energy targets.
     InfeasibleError
-        No utility can serve the process, or no placement keeps ΔTmin.
+        No utility can serve the process, no placement keeps ΔTmin, or the forbidden and required
+        matches leave no network at the energy targets (the message names them).
     """
     from .milp import plan_matches
 
@@ -336,59 +534,46 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
                          "--default-h)")
     if missing:
         notes.append(f"film coefficient {default_film_coefficient:g} kW/(m²·K) assumed for {', '.join(missing)}")
+    forbidden, required = match_rules(streams, utilities, forbidden, required)
+    if forbidden or required:
+        notes.append("match rules: " + "; ".join(
+            [f"forbidden {', '.join(f'{h}→{c}' for h, c in sorted(forbidden))}"] * bool(forbidden)
+            + [f"required {', '.join(f'{h}→{c}' for h, c in sorted(required))}"] * bool(required)))
     budget = Budget(time_limit)
     t = target(streams, dt_min, utilities)
-    plan = plan_matches(streams, dt_min, utilities, solver=solver, budget=budget.part(0.6))
-    solves = list(plan.reports)
-    duties = plan.utility_duties
-    notes.append(f"minimum matches {plan.number_of_matches} "
-                 f"({'proven minimal' if plan.proven_minimum else 'best found within the time limit'}); "
-                 f"minimum-units target {plan.unit_target} (N − 1 per pinch subnetwork)")
-    notes += plan.notes
-    by_utility = {u.name: u for u in utilities}
     regions = pinch_regions([p.shifted for p in t.pinches])   # process pinches (utility pinches: in the plan)
-    groups = []   # (label, hot sides, cold sides, planned pairs, (subnetwork, its matches in the group) or None)
-    for r_index, region in enumerate(regions):
-        hot_sides, cold_sides = [], []
-        for s in streams:
-            side = _process_side(s, region, s.shift(dt_min))
-            if side is not None:
-                (hot_sides if s.is_hot else cold_sides).append(side)
-        for u in utilities:
-            d = duties.get(u.name, 0.0)
-            if d <= 1e-9 * max(t.table.duty_scale, 1.0):
-                continue
-            # hot utilities serve the top region, cold utilities the bottom one (nothing crosses a pinch)
-            if (u.is_hot and r_index == 0) or (not u.is_hot and r_index == len(regions) - 1):
-                (hot_sides if u.is_hot else cold_sides).append(_utility_side(u, d, dt_min))
-        if not hot_sides and not cold_sides:
-            continue
-        if not hot_sides or not cold_sides:
-            raise InfeasibleError(f"subnetwork '{region.label}' has only "
-                                  f"{'hot' if hot_sides else 'cold'} sides; the targets cannot be met")
-        matches = plan.matches_within(region.top, region.bottom)
-        subs = [s.subnetwork for s in plan.subnetworks if s.matches and s.matches[0] in matches]
-        parts = stream_groups(hot_sides, cold_sides, matches)
-        for k, (hs, cs, pairs) in enumerate(parts):
-            label = region.label if len(parts) == 1 else f"{region.label}, stream group {k + 1} of {len(parts)}"
-            mine = [m for m in matches if (m.hot, m.cold) in pairs] if len(subs) == 1 else None
-            groups.append((label, hs, cs, pairs, (subs[0], mine) if mine else None))
-    weights = [len(g[3]) * max(len(g[1]), len(g[2])) for g in groups]
-    placed = []  # (region label, PlacedUnit)
-    for g, (label, hot_sides, cold_sides, allowed, source) in enumerate(groups):
-        part = budget.part(weights[g] / max(sum(weights[g:]), 1))
-        result, reports, note = _place(hot_sides, cold_sides, allowed, label, plan.proven_minimum, solver, part,
-                                       source)
-        solves += reports
-        if note:
-            notes.append(note)
-        placed += [(label.split(", stream group")[0], p) for p in result.units]
+    by_utility = {u.name: u for u in utilities}
+    placed, plan, solves = None, None, []
+    if len(streams) > TICK_OFF_ABOVE:
+        plan = plan_matches(streams, dt_min, utilities, solver=solver, budget=budget.part(0.1), fewest=False,
+                            forbidden=forbidden, required=required)
+        solves = list(plan.reports)
+        placed, why = _tick_off_design(streams, utilities, plan.utility_duties, regions, t, dt_min, forbidden,
+                                       required, budget, solver, solves)
+        if placed is not None:
+            notes.append(f"heat-load distribution and placement by the tick-off method for {len(streams)} "
+                         f"process streams (the fewest-matches MILP is not run above {TICK_OFF_ABOVE}); "
+                         f"minimum-units target {plan.unit_target} (N − 1 per pinch subnetwork)")
+            notes += why
+        else:
+            notes.append(f"the tick-off method gave no network ({'; '.join(why)}); fewest matches and "
+                         "stagewise placement instead")
+    if placed is None:
+        plan = plan_matches(streams, dt_min, utilities, solver=solver, budget=budget.part(0.6),
+                            forbidden=forbidden, required=required)
+        solves += list(plan.reports)
+        placed = _chain_design(streams, utilities, plan, regions, t, dt_min, forbidden, required, solver,
+                               budget, notes, solves)
+    duties = plan.utility_duties
     if budget.hits:
         notes.append(budget.hits_note())
-
-    if len(placed) > plan.number_of_matches:
-        notes.append(f"keeping ΔTmin at both ends of every unit took {len(placed)} units for the "
-                     f"{plan.number_of_matches} matches of the plan (a match in two places, or a match added)")
+    have = {(p.hot, p.cold) for _, p in placed if p.duty > 0}
+    missing = sorted(required - have)
+    if missing:
+        raise InfeasibleError("no network at the energy targets found with the required match"
+                              + ("es " if len(missing) > 1 else " ") + ", ".join(f"{h}→{c}" for h, c in missing)
+                              + (f" (and without the forbidden ones {', '.join(f'{h}→{c}' for h, c in sorted(forbidden))})"
+                                 if forbidden else ""))
     by_name = {s.name: s for s in streams}
     default_h = default_film_coefficient
     exchangers, heaters, coolers = [], [], []

@@ -44,6 +44,7 @@ __all__ = [
     "subnetworks",
     "Match",
     "SubnetworkMatches",
+    "REQUIRED_SHARE",
     "pair_set",
     "min_matches_model",
     "fix_integers",
@@ -288,19 +289,42 @@ class SubnetworkMatches:
                 "solves": [r.to_dict() for r in self.reports]}
 
 
-def pair_set(names: Iterable[tuple[str, str]]) -> set[tuple[str, str]]:
+REQUIRED_SHARE = 1e-3
+"""Least load of a required match in the fewest-matches model, as a share of its largest possible load
+[-]: "required" means a unit with a real duty, not a match of round-off size (our choice)."""
+
+
+def pair_set(names: Iterable[tuple[str, str]], what: str = "forbidden") -> set[tuple[str, str]]:
+    """The (hot, cold) name pairs of an iterable, as a set of str pairs.
+
+    Parameters
+    ----------
+    names : iterable of (str, str)
+    what : str
+        "forbidden" or "required", for the message.
+
+    Raises
+    ------
+    InputError
+        When an item is not a pair.
+
+    Examples
+    --------
+    >>> sorted(pair_set([("H1", "C1"), ["H2", "steam"]]))
+    [('H1', 'C1'), ('H2', 'steam')]
+    """
     out = set()
     for pair in names:
         try:
             h, c = pair
         except (TypeError, ValueError):
-            raise InputError(f"a forbidden match must be a (hot, cold) pair of names, got {pair!r}") from None
+            raise InputError(f"a {what} match must be a (hot, cold) pair of names, got {pair!r}") from None
         out.add((str(h), str(c)))
     return out
 
 
 def min_matches_model(sub: Subnetwork, *, forbidden: Iterable[tuple[str, str]] = (),
-                      max_matches: int | None = None
+                      max_matches: int | None = None, required: Iterable[tuple[str, str]] = ()
                       ) -> tuple[pulp.LpProblem, Callable[[], tuple[tuple[Match, ...], dict]]]:
     """The expanded transshipment MILP of the fewest matches in one subnetwork.
 
@@ -326,6 +350,9 @@ def min_matches_model(sub: Subnetwork, *, forbidden: Iterable[tuple[str, str]] =
     sub : Subnetwork
     forbidden : iterable of (str, str)
         (hot, cold) name pairs that must not be matched.
+    required : iterable of (str, str)
+        (hot, cold) name pairs that must be matched, with at least :data:`REQUIRED_SHARE` of the smaller of
+        their largest possible load and the subnetwork's duty scale.
     max_matches : int, optional
         Tie-break stage (:attr:`TieBreak.COMPACT`): allow at most this many matches and minimise instead
         the number of (match, interval) cells carrying heat, with binaries :math:`z_{ijk} \\le y_{ij}`,
@@ -341,7 +368,8 @@ def min_matches_model(sub: Subnetwork, *, forbidden: Iterable[tuple[str, str]] =
     Raises
     ------
     InfeasibleError
-        When some cold demand cannot be reached by any allowed hot participant.
+        When some cold demand cannot be reached by any allowed hot participant, or a required pair cannot
+        exchange heat in the subnetwork.
 
     Examples
     --------
@@ -361,6 +389,7 @@ def min_matches_model(sub: Subnetwork, *, forbidden: Iterable[tuple[str, str]] =
     (3, 150.0)
     """
     forbidden = pair_set(forbidden)
+    required = pair_set(required, "required")
     m = sub.size
     scale = max(float(sub.hot_heat.sum()), float(sub.cold_heat.sum()), 1e-300)
     h = sub.hot_heat / scale
@@ -385,8 +414,17 @@ def min_matches_model(sub: Subnetwork, *, forbidden: Iterable[tuple[str, str]] =
             for k in ks:
                 q[i, j, k] = new_variable(problem, f"q_{i}_{j}_{k}", 0, min(c[j, k], cum_h[i, k]))
             problem += pulp.lpSum(q[i, j, k] for k in ks) - u_ij * y[i, j] <= 0, f"load_{i}_{j}"
+            if (hn, cn) in required:
+                problem += y[i, j] == 1, f"required_{i}_{j}"
+                problem += pulp.lpSum(q[i, j, k] for k in ks) >= REQUIRED_SHARE * u_ij, f"required_load_{i}_{j}"
             for k in ks:
                 problem += q[i, j, k] - min(c[j, k], cum_h[i, k]) * y[i, j] <= 0, f"cut_{i}_{j}_{k}"
+    missing = sorted(p for p in required if (sub.hot.index(p[0]) if p[0] in sub.hot else -1,
+                                              sub.cold.index(p[1]) if p[1] in sub.cold else -1) not in y)
+    if missing:
+        raise InfeasibleError(f"{sub.label}: the required match{'es' if len(missing) > 1 else ''} "
+                              + ", ".join(f"{a}→{b}" for a, b in missing)
+                              + " cannot exchange heat here without breaking ΔTmin or the energy targets")
     r = {}
     for i in range(len(sub.hot)):
         if not h[i].any():
@@ -447,15 +485,16 @@ def fix_integers(problem: pulp.LpProblem) -> None:
             v.lowBound = v.upBound = round(v.varValue or 0.0)
 
 
-def heuristic_matches(sub: Subnetwork, forbidden: Iterable[tuple[str, str]] = ()
+def heuristic_matches(sub: Subnetwork, forbidden: Iterable[tuple[str, str]] = (),
+                      required: Iterable[tuple[str, str]] = ()
                       ) -> tuple[tuple[Match, ...], dict[str, tuple[float, ...]]]:
     """A feasible heat-load distribution of one subnetwork without a solver (not the fewest matches).
 
     Goes down the intervals; the heat each hot participant has released at or above an interval and not
     yet given away may serve the cold demand of that interval (heat only flows down the cascade, so the
     distribution keeps ΔTmin).  Each demand takes first from hot participants it is already matched with,
-    then from the one with the most heat left: few matches, no proof.  Used when the fewest-matches MILP
-    and its relaxation stop without a solution.
+    then from the one with the most heat left: few matches, no proof.  Pairs in ``required`` come before
+    every other.  Used when the fewest-matches MILP and its relaxation stop without a solution.
 
     Returns
     -------
@@ -465,7 +504,8 @@ def heuristic_matches(sub: Subnetwork, forbidden: Iterable[tuple[str, str]] = ()
     Raises
     ------
     InfeasibleError
-        When some demand cannot be served (only possible with forbidden matches).
+        When some demand cannot be served (only possible with forbidden matches), or a required pair of
+        this subnetwork is not matched.
 
     Examples
     --------
@@ -479,6 +519,7 @@ def heuristic_matches(sub: Subnetwork, forbidden: Iterable[tuple[str, str]] = ()
     True
     """
     forbidden = pair_set(forbidden)
+    required = pair_set(required, "required")
     h, c = sub.hot_heat, sub.cold_heat
     tol = HEAT_TOLERANCE * max(float(c.sum()), 1.0)
     avail = np.zeros(len(sub.hot))
@@ -496,7 +537,7 @@ def heuristic_matches(sub: Subnetwork, forbidden: Iterable[tuple[str, str]] = ()
                     raise InfeasibleError(f"{sub.label}: the demand of '{sub.cold[j]}' between "
                                           f"{sub.temperatures[k]:g} and {sub.temperatures[k + 1]:g} °C shifted "
                                           "cannot be served by any allowed hot participant")
-                i = max(cands, key=lambda i: ((i, j) in loads, avail[i]))
+                i = max(cands, key=lambda i: ((sub.hot[i], sub.cold[j]) in required, (i, j) in loads, avail[i]))
                 x = min(need, float(avail[i]))
                 loads.setdefault((i, j), []).append((sub.first + k, x))
                 avail[i] -= x
@@ -508,11 +549,16 @@ def heuristic_matches(sub: Subnetwork, forbidden: Iterable[tuple[str, str]] = ()
                 else MatchKind.EXCHANGER)
         matches.append(Match(sub.hot[i], sub.cold[j], float(sum(v for _, v in cells)), kind, sub.index,
                              sub.label, tuple(cells)))
+    missing = sorted(required - {(m.hot, m.cold) for m in matches})
+    if missing:
+        raise InfeasibleError(f"{sub.label}: the greedy heat-load distribution could not place the required "
+                              "match" + ("es " if len(missing) > 1 else " ") + ", ".join(f"{a}→{b}" for a, b in missing))
     return tuple(matches), {n: tuple(float(v) for v in residuals[i]) for i, n in enumerate(sub.hot)}
 
 
 def alternative_matches(sub: Subnetwork, group: Sequence[Match], tried: Sequence[set[tuple[str, str]]], *,
-                        solver: SolverName | str | None = None, time_limit: float = 60.0
+                        solver: SolverName | str | None = None, time_limit: float = 60.0,
+                        forbidden: Iterable[tuple[str, str]] = (), required: Iterable[tuple[str, str]] = ()
                         ) -> tuple[set[tuple[str, str]] | None, SolveReport]:
     """Another set of no more matches for one stream group of a subnetwork, unlike every set tried.
 
@@ -520,7 +566,8 @@ def alternative_matches(sub: Subnetwork, group: Sequence[Match], tried: Sequence
     streams keep their heat, a utility the load of its matches in the group.  The fewest-matches model
     of the group gets a no-good cut per tried set, :math:`\\sum_{E} y - \\sum_{\\notin E} y \\le |E| - 1`,
     and at most as many matches as the group has.  Used when the plan's matches cannot be placed one
-    unit each (the alternatives differ in how they can be placed).
+    unit each (the alternatives differ in how they can be placed).  ``forbidden`` pairs stay out and the
+    ``required`` pairs of the group stay in.
 
     Returns
     -------
@@ -548,7 +595,8 @@ def alternative_matches(sub: Subnetwork, group: Sequence[Match], tried: Sequence
     part = Subnetwork(sub.index, sub.label, sub.first, sub.temperatures, tuple(n for _, n in hot),
                       tuple(sub.hot_is_utility[i] for i, _ in hot), np.array(hot_heat), tuple(n for _, n in cold),
                       tuple(sub.cold_is_utility[j] for j, _ in cold), np.array(cold_heat))
-    problem, read = min_matches_model(part)
+    required = {p for p in pair_set(required, "required") if p[0] in part.hot and p[1] in part.cold}
+    problem, read = min_matches_model(part, forbidden=forbidden, required=required)
     y = {}
     for v in problem.variables():
         if v.name.startswith("y_") and v.name.count("_") == 2:

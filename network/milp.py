@@ -27,7 +27,7 @@ from dataclasses import dataclass
 import numpy as np
 import pulp
 
-from ..errors import InfeasibleError
+from ..errors import InfeasibleError, InputError
 from ..model import StreamTable, Utility
 from .matches import (
     Match,
@@ -47,6 +47,7 @@ __all__ = [
     "min_matches",
     "MatchPlan",
     "plan_matches",
+    "required_subnetworks",
 ]
 
 
@@ -54,6 +55,10 @@ __all__ = [
 
 
 # ------------------------------------------------------------------------------ fewest matches (b)
+
+
+def _pairs(pairs) -> str:
+    return ", ".join(f"{h}→{c}" for h, c in sorted(pairs))
 
 
 def _relaxed_matches(problem: pulp.LpProblem, solver, time_limit: float, label: str) -> SolveReport:
@@ -71,7 +76,7 @@ def _relaxed_matches(problem: pulp.LpProblem, solver, time_limit: float, label: 
 
 def min_matches(sub: Subnetwork, *, solver: SolverName | str | None = None, time_limit: float = 60.0,
                 tie_break: TieBreak = TieBreak.NONE, forbidden: Iterable[tuple[str, str]] = (),
-                budget: Budget | None = None) -> SubnetworkMatches:
+                budget: Budget | None = None, required: Iterable[tuple[str, str]] = ()) -> SubnetworkMatches:
     """The fewest matches of one subnetwork and their heat loads.
 
     Solves :func:`min_matches_model` (with an absolute gap below one, which proves the integer minimum),
@@ -91,6 +96,8 @@ def min_matches(sub: Subnetwork, *, solver: SolverName | str | None = None, time
     budget : Budget, optional
         Wall-clock budget of this subnetwork: each solve takes its share of what is left instead of
         ``time_limit``, and solves that stop at their share are recorded in it.
+    required : iterable of (str, str)
+        (hot, cold) name pairs that must be matched in this subnetwork (every method honours them).
 
     Returns
     -------
@@ -99,7 +106,8 @@ def min_matches(sub: Subnetwork, *, solver: SolverName | str | None = None, time
     Raises
     ------
     InfeasibleError
-        When the heat cannot be distributed (only possible with forbidden matches).
+        When the heat cannot be distributed (only possible with forbidden or required matches); the
+        message names them.
 
     Without an integer solution in time, the matches the LP relaxation uses are returned (not proven
     minimal); when the relaxation has none either, or the budget is spent, those of
@@ -119,7 +127,8 @@ def min_matches(sub: Subnetwork, *, solver: SolverName | str | None = None, time
     (3, 4)
     """
     forbidden = pair_set(forbidden)
-    problem, read = min_matches_model(sub, forbidden=forbidden)
+    required = pair_set(required, "required")
+    problem, read = min_matches_model(sub, forbidden=forbidden, required=required)
 
     def limit(fraction: float) -> float:
         return time_limit if budget is None else budget.share(fraction)
@@ -128,7 +137,7 @@ def min_matches(sub: Subnetwork, *, solver: SolverName | str | None = None, time
         return report if budget is None else budget.record(report)
 
     def heuristic(reports: list[SolveReport], why: str) -> SubnetworkMatches:
-        matches, residuals = heuristic_matches(sub, forbidden)
+        matches, residuals = heuristic_matches(sub, forbidden, required)
         return SubnetworkMatches(sub, matches, residuals, tuple(reports),
                                  f"{sub.label}: {why}; matches from a greedy heat-load distribution "
                                  f"({len(matches)} matches, not proven fewest)")
@@ -138,8 +147,10 @@ def min_matches(sub: Subnetwork, *, solver: SolverName | str | None = None, time
     report = kept(solve(problem, solver, time_limit=limit(0.75), absolute_gap=0.999, check=False,
                         name=f"fewest matches, {sub.label}"))
     if report.status in (SolveStatus.INFEASIBLE, SolveStatus.INFEASIBLE_OR_UNBOUNDED):
-        raise InfeasibleError(f"{sub.label}: no set of matches can distribute the heat"
-                              + (" without the forbidden matches given" if forbidden else ""))
+        rules = ([f"without the forbidden matches {_pairs(forbidden)}"] if forbidden else []) + \
+            ([f"with the required matches {_pairs(required)}"] if required else [])
+        raise InfeasibleError(f"{sub.label}: no set of matches can distribute the heat at the energy targets "
+                              + " and ".join(rules))
     reports = [report]
     if not report.status.has_solution:
         # No integer solution within the time limit: every match the LP relaxation uses is a feasible
@@ -154,7 +165,7 @@ def min_matches(sub: Subnetwork, *, solver: SolverName | str | None = None, time
         tie_break = TieBreak.NONE
     if tie_break is TieBreak.COMPACT and not (budget is not None and budget.exhausted):
         count = sum(1 for v in problem.variables() if v.name.startswith("y_") and (v.varValue or 0) > 0.5)
-        second, read_second = min_matches_model(sub, forbidden=forbidden, max_matches=count)
+        second, read_second = min_matches_model(sub, forbidden=forbidden, max_matches=count, required=required)
         rep2 = kept(solve(second, solver, time_limit=limit(0.5), absolute_gap=0.999, check=False,
                           name=f"compact tie-break, {sub.label}"))
         reports.append(rep2)
@@ -282,7 +293,8 @@ class MatchPlan:
 def plan_matches(streams: StreamTable, dt_min: float, utilities: Sequence[Utility] | None = None, *,
                  solver: SolverName | str | None = None, time_limit: float = 60.0,
                  tie_break: TieBreak = TieBreak.NONE, forbidden: Iterable[tuple[str, str]] = (),
-                 budget: Budget | None = None) -> MatchPlan:
+                 budget: Budget | None = None, required: Iterable[tuple[str, str]] = (),
+                 fewest: bool = True) -> MatchPlan:
     """Cheapest utility duties, then the fewest matches with their heat loads, subnetwork by subnetwork.
 
     Runs :func:`transshipment`, splits at its pinches (:func:`subnetworks`) and runs :func:`min_matches`
@@ -305,10 +317,23 @@ def plan_matches(streams: StreamTable, dt_min: float, utilities: Sequence[Utilit
     budget : Budget, optional
         Wall-clock budget of the whole plan, used instead of ``time_limit``: the LPs take a fifth of it,
         each subnetwork a part in proportion to the size of its model.
+    required : iterable of (str, str)
+        (hot, cold) name pairs that must be matched: each in the subnetwork where the pair can carry the
+        most heat (:func:`required_subnetworks`).
+    fewest : bool
+        False: only the utility duties and the subnetworks (no match is planned, no MILP solved); for a
+        design that distributes the heat itself (:mod:`heatloom.network.tickoff`).
 
     Returns
     -------
     MatchPlan
+
+    Raises
+    ------
+    InputError
+        When a required pair can exchange heat in no subnetwork.
+    InfeasibleError
+        When the forbidden and required matches leave no distribution of the heat at the targets.
 
     Examples
     --------
@@ -320,16 +345,22 @@ def plan_matches(streams: StreamTable, dt_min: float, utilities: Sequence[Utilit
     ({'hot utility': 50.0, 'cold utility': 30.0}, 6, 7)
     """
     forbidden = pair_set(forbidden)
+    required = pair_set(required, "required") - forbidden
     t = transshipment(streams, dt_min, utilities, solver=solver,
                       time_limit=time_limit if budget is None else budget.share(0.2))
     subs = subnetworks(t)
-    if budget is None:
+    where = required_subnetworks(subs, required, forbidden)
+    if not fewest:
+        parts = tuple(SubnetworkMatches(s, (), {}, ()) for s in subs)
+    elif budget is None:
         parts = tuple(min_matches(s, solver=solver, time_limit=time_limit, tie_break=tie_break,
-                                  forbidden=forbidden) for s in subs)
+                                  forbidden=forbidden, required={p for p, k in where.items() if k == s.index})
+                      for s in subs)
     else:
         weights = [len(s.hot) * len(s.cold) * s.size for s in subs]
         parts = tuple(min_matches(s, solver=solver, tie_break=tie_break, forbidden=forbidden,
-                                  budget=budget.part(w / max(sum(weights[k:]), 1)))
+                                  budget=budget.part(w / max(sum(weights[k:]), 1)),
+                                  required={p for p, i in where.items() if i == s.index})
                       for k, (s, w) in enumerate(zip(subs, weights)))
     note = ""
     if t.free_utilities:
@@ -338,3 +369,54 @@ def plan_matches(streams: StreamTable, dt_min: float, utilities: Sequence[Utilit
                 f"and '{cold.name}' at {cold.supply_temperature:g} °C, isothermal, hotter / colder than every "
                 "process temperature, at no cost")
     return MatchPlan(t, parts, tie_break, note)
+
+
+def required_subnetworks(subs: Sequence[Subnetwork], required: Iterable[tuple[str, str]],
+                         forbidden: Iterable[tuple[str, str]] = ()) -> dict[tuple[str, str], int]:
+    """The subnetwork (its index) where each required pair is matched: where it can carry the most heat.
+
+    A pair can exchange heat in a subnetwork when both take part in it and the hot side releases heat at
+    or above some interval where the cold side takes heat (the bound :math:`U_{ij}` of
+    :func:`heatloom.network.matches.min_matches_model`).
+
+    Raises
+    ------
+    InputError
+        When a pair is both forbidden and required, or can carry heat in no subnetwork at the targets.
+
+    Examples
+    --------
+    >>> from heatloom.model import StreamTable
+    >>> from heatloom.network.transshipment import transshipment
+    >>> s = StreamTable.from_arrays(["1", "2", "3", "4"], [180, 150, 20, 80], [60, 30, 135, 140],
+    ...                             [3.0, 1.0, 2.0, 4.5])
+    >>> subs = subnetworks(transshipment(s, 10))
+    >>> required_subnetworks(subs, [("2", "4"), ("1", "3")])
+    {('1', '3'): 0, ('2', '4'): 0}
+    """
+    forbidden = pair_set(forbidden)
+    both = sorted(pair_set(required, "required") & forbidden)
+    if both:
+        raise InputError(f"match{'es' if len(both) > 1 else ''} {_pairs(both)} both forbidden and required")
+    out, impossible = {}, []
+    for h, c in sorted(pair_set(required, "required")):
+        best, where = 0.0, None
+        for s in subs:
+            if h not in s.hot or c not in s.cold:
+                continue
+            i, j = s.hot.index(h), s.cold.index(c)
+            if s.hot_is_utility[i] and s.cold_is_utility[j]:
+                continue
+            cum = np.cumsum(s.hot_heat[i])
+            cap = float(np.max(np.minimum(cum, np.cumsum(s.cold_heat[j][::-1])[::-1]), initial=0.0))
+            if cap > best:
+                best, where = cap, s.index
+        if where is None or best <= 1e-9 * max(float(s.hot_heat.sum()) for s in subs):
+            impossible.append((h, c))
+        else:
+            out[h, c] = where
+    if impossible:
+        raise InputError(f"required match{'es' if len(impossible) > 1 else ''} {_pairs(impossible)} cannot "
+                         "exchange heat at the energy targets (the hot side is never hot enough for the cold "
+                         "side within ΔTmin on the same side of a pinch)")
+    return out

@@ -308,8 +308,8 @@ def _pieces(side: Side, grid: np.ndarray, tol: float) -> list[_Piece]:
     return out
 
 
-def interval_placement(hot: Sequence[Side], cold: Sequence[Side], preferred: set[tuple[str, str]] = frozenset()
-                       ) -> Placement:
+def interval_placement(hot: Sequence[Side], cold: Sequence[Side], preferred: set[tuple[str, str]] = frozenset(),
+                       *, forbidden: set[tuple[str, str]] = frozenset()) -> Placement:
     """A placement without a solver: units interval by interval, every stream split where it must be.
 
     The sides are cut at every shifted breakpoint (the temperature intervals of the problem table).
@@ -324,6 +324,8 @@ def interval_placement(hot: Sequence[Side], cold: Sequence[Side], preferred: set
     ----------
     hot, cold : sequence of Side
     preferred : set of (hot name, cold name)
+    forbidden : set of (hot name, cold name), optional
+        Pairs never matched.
 
     Returns
     -------
@@ -332,7 +334,8 @@ def interval_placement(hot: Sequence[Side], cold: Sequence[Side], preferred: set
     Raises
     ------
     ValueError
-        When some cold piece cannot be served (the sides do not balance at the targets).
+        When some cold piece cannot be served (the sides do not balance at the targets, or the forbidden
+        pairs leave a piece without a hot side that may serve it).
 
     Examples
     --------
@@ -356,6 +359,7 @@ def interval_placement(hot: Sequence[Side], cold: Sequence[Side], preferred: set
         need = c.heat
         while need > tol:
             cands = [h for h in hp if h.left > tol and not (h.side.utility and c.side.utility)
+                     and (h.side.name, c.side.name) not in forbidden
                      and h.k <= c.k and h.t_in - c.t_out >= h.side.shift + c.side.shift - 1e-9
                      and h.t_out - c.t_in >= h.side.shift + c.side.shift - 1e-9]
             if not cands:

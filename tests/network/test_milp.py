@@ -274,6 +274,38 @@ def test_forbidden_matches(reference):
         min_matches(above, forbidden=["14x"])
 
 
+def test_required_matches(reference, monkeypatch):
+    # Sinnott's data (C&R Vol. 6, Table 3.6). Above the pinch the fewest matches need no 2-4 match (1-4
+    # balance at 270 kW, see test_forbidden_matches); requiring it gives a plan with 2-4 carrying heat,
+    # still at the published targets (50 / 30 kW), and the greedy fallback honours it too.
+    import heatloom.network.milp as milp_module
+    from heatloom.network.milp import required_subnetworks
+    from heatloom.network.solvers import SolveReport, SolveStatus
+
+    data, streams = reference("targeting_sinnott_four_stream")
+    plan = plan_matches(streams, 10, required=[("2", "4")])
+    assert plan.pair_loads[("2", "4")] > 0
+    assert plan.utility_duties == pytest.approx({"hot utility": 50.0, "cold utility": 30.0})
+    check_heat_load_distribution(plan, streams)
+    subs = subnetworks(transshipment(streams, 10))
+    assert required_subnetworks(subs, [("2", "4")]) == {("2", "4"): 0}
+    # stream 2 ends at 30 °C, stream 4 starts at 80 °C: below the pinch 2 cannot heat 4, above it can
+    with pytest.raises(InputError, match="both forbidden and required"):
+        required_subnetworks(subs, [("2", "4")], [("2", "4")])
+    with pytest.raises(InfeasibleError, match="required match"):
+        min_matches(subs[1], required=[("2", "4")])   # 4 takes no heat below the pinch
+
+    def stalled(problem, *args, **kwargs):
+        return SolveReport("highs", SolveStatus.ERROR, None, None, None, 0.0, 1.0, kwargs.get("name", ""),
+                           "Time limit reached")
+
+    monkeypatch.setattr(milp_module, "solve", stalled)
+    greedy = milp_module.min_matches(subs[0], required=[("2", "4")])
+    assert "greedy" in greedy.note
+    assert ("2", "4") in {(m.hot, m.cold) for m in greedy.matches}
+    assert sum(m.load for m in greedy.matches) == pytest.approx(sum(subs[0].cold_duties.values()))
+
+
 def test_compact_tie_break_keeps_the_number_of_matches(reference):
     data, streams = reference("targeting_klemes_table_4_2")
     plain = plan_matches(streams, data["dtmin"])

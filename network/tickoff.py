@@ -1,0 +1,646 @@
+"""Tick-off placement: a heat-load distribution with few units, placed as it is made (no solver).
+
+For one pinch region (the sides of :mod:`heatloom.network.placement`: each process stream's part in it and
+each utility with its duty there), units are placed one at a time in the manner of the tick-off rule of
+the pinch design method (Linnhoff & Hindmarsh 1983): every unit takes the whole remaining heat of one of
+its two sides, so that side is "ticked off" and each unit removes a side from the problem — at most N − 1
+units for N sides, Euler's minimum-units target, when every step is such a tick-off.
+
+A unit is placed at an end of what is left of each of its sides (a hot stream from its inlet down or from
+its outlet up, a cold stream from its inlet up or from its outlet down; a utility runs over its whole
+range), so what is left of every stream stays one contiguous stretch and the units of a stream are in
+series.  A step is accepted only when
+
+* the unit keeps the sum of its sides' shifts (ΔTmin) at both ends and at every inner breakpoint, and
+* the problem left over still meets the energy targets: its problem-table cascade, with the heat left to
+  each utility, carries no negative heat past any shifted temperature (a hot utility's heat counted from
+  its coldest shifted temperature down, a cold utility's demand from its hottest up, so every unit the
+  cascade promises keeps ΔTmin over the utility's whole range).
+
+Among the accepted steps a required pair wins, then a step ticking off two sides at once, then the most
+vertical one, which keeps driving force for the rest: the least temperature excess over ΔTmin at the
+unit's two ends (summed, or the larger of the two), or the least heat the cascade loses, optionally
+after the steps at the pinch ends of both sides (the pinch design method's order, from the pinch out);
+with a look-ahead, of the four best steps the first after which a tick-off step is still possible.  The search
+runs with these measures, then with randomly perturbed ones while time is left, and keeps the placement
+with the fewest units.  When no step is accepted, what is left is placed interval by interval
+(:func:`heatloom.network.placement.interval_placement`), which always succeeds on a remainder that meets
+the targets, or by the stagewise MILP of :func:`heatloom.network.placement.stage_model` when a solver
+time is given and that gives fewer units.
+
+Besides ticking a side off at its ends, a step may split a stream: a branch of one piece over the stretch
+from one of its ends that keeps ΔTmin against the whole other piece takes all of that piece (the stream
+splits of the pinch design method), or a branch over a piece's whole stretch.  When no such step is
+accepted, a unit taking a part of the smaller side (90 % down to 10 %) keeps the search going.  A branch
+over part of a stretch and a partial unit leave as many pieces as before: each costs one unit above the
+target.  With forbidden pairs a remainder whose cascade holds may still have no placement; the method
+then returns no result and the caller uses another one.
+
+References
+----------
+.. [1] Linnhoff, B., Hindmarsh, E. (1983). The pinch design method for heat exchanger networks. Chemical
+   Engineering Science 38(5), 745-763. doi:10.1016/0009-2509(83)80185-7
+"""
+
+from __future__ import annotations
+
+import time
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import numpy as np
+
+from .placement import PlacedUnit, Placement, Side, interval_placement, stage_model
+from .solvers import SolveReport, solve
+
+__all__ = ["REMAINDER_MILP_SIDES", "TickOffResult", "cascade_feasible", "tick_off_placement"]
+
+REMAINDER_MILP_SIDES = 24
+"""Most sides (pieces) left over for which the stagewise MILP is tried on the remainder [-] (our choice:
+larger models do not solve in a share of the budget)."""
+
+
+@dataclass(frozen=True)
+class TickOffResult:
+    """Outcome of :func:`tick_off_placement`.
+
+    Attributes
+    ----------
+    placement : Placement
+    ticked : int
+        Units placed by ticking off a side [-].
+    remainder : int
+        Units placed interval by interval for what the tick-off steps left [-] (0 when none was left).
+    tries : int
+        Searches run [-].
+    reports : tuple of SolveReport
+        The stagewise MILP of the remainder, when one ran.
+    """
+
+    placement: Placement
+    ticked: int
+    remainder: int
+    tries: int
+    reports: tuple[SolveReport, ...] = ()
+
+
+class _State:
+    """What is left: pieces of the sides, each a stretch [a, b] of a side's enthalpy (from its inlet, at
+    full flow) carried by a share f of its flow; a utility is one piece of its duty."""
+
+    def __init__(self, sides: Sequence[Side]):
+        self.sides = list(sides)
+        self.side = list(range(len(sides)))
+        self.a = [0.0] * len(sides)
+        self.b = [float(s.duty) for s in sides]
+        self.f = [1.0] * len(sides)
+
+    def copy(self) -> _State:
+        out = _State.__new__(_State)
+        out.sides = self.sides
+        out.side, out.a, out.b, out.f = list(self.side), list(self.a), list(self.b), list(self.f)
+        return out
+
+    def left(self, k: int) -> float:
+        return self.f[k] * (self.b[k] - self.a[k])
+
+    def of(self, k: int) -> Side:
+        return self.sides[self.side[k]]
+
+
+def _shifted(side: Side) -> float:
+    return -side.shift if side.hot else side.shift
+
+
+def _above(side: Side, a: float, b: float, f: float, points: np.ndarray) -> np.ndarray:
+    """Heat of a piece (stretch [a, b], flow share f) released (hot) or taken (cold) above each shifted
+    point [kW]."""
+    if side.utility:
+        if side.hot:   # counted from its coldest shifted temperature down
+            return np.where(points < min(side.temperatures) - side.shift, b - a, 0.0)
+        return np.where(points <= max(side.temperatures) + side.shift, b - a, 0.0)
+    t = np.asarray(side.temperatures, float)
+    e = np.asarray(side.enthalpies, float)
+    if t[0] > t[-1]:
+        t, e = t[::-1], e[::-1]
+    h = np.interp(points - _shifted(side), t, e)   # heat from the inlet to that temperature, clipped
+    if side.hot:
+        return f * (np.clip(h, a, b) - a)
+    return f * (b - np.clip(h, a, b))
+
+
+def _points(state: _State, tol: float) -> np.ndarray:
+    pts = []
+    for k in range(len(state.side)):
+        if state.left(k) <= tol:
+            continue
+        s, a, b = state.of(k), state.a[k], state.b[k]
+        if s.utility:
+            pts.append(min(s.temperatures) - s.shift if s.hot else max(s.temperatures) + s.shift)
+            continue
+        sh = _shifted(s)
+        pts += [s.temperature(a) + sh, s.temperature(b) + sh]
+        pts += [t + sh for t, e in zip(s.temperatures, s.enthalpies) if a < e < b]
+    return np.unique(np.asarray(pts, float))
+
+
+def _residual(state: _State, points: np.ndarray, tol: float) -> np.ndarray:
+    r = np.zeros(points.size)
+    for k in range(len(state.side)):
+        if state.left(k) > tol:
+            s = state.of(k)
+            r += (1.0 if s.hot else -1.0) * _above(s, state.a[k], state.b[k], state.f[k], points)
+    return r
+
+
+def cascade_feasible(sides: Sequence[Side], tol: float | None = None) -> bool:
+    """True when the sides' cascade carries no negative heat past any shifted temperature.
+
+    Hot utilities count from their coldest shifted temperature down and cold utilities from their hottest
+    up (the conservative reading: any unit the cascade promises keeps ΔTmin over the utility's range).
+
+    Parameters
+    ----------
+    sides : sequence of Side
+    tol : float, optional
+        Heat allowed below zero [kW]; 1e-7 of the largest duty when None.
+
+    Examples
+    --------
+    >>> h = Side("H", True, (150.0, 50.0), (0.0, 200.0), 5.0)
+    >>> cascade_feasible([h, Side("C", False, (40.0, 120.0), (0.0, 200.0), 5.0)])
+    True
+    >>> cascade_feasible([h, Side("C", False, (140.0, 150.0), (0.0, 200.0), 5.0)])
+    False
+    """
+    state = _State(sides)
+    scale = max(max((s.duty for s in sides), default=1.0), 1.0)
+    tol = 1e-7 * scale if tol is None else tol
+    return bool((_residual(state, _points(state, 0.0), 0.0) >= -tol).all())
+
+
+def _unit_approach(hs: Side, h0: float, h1: float, fh: float, cs: Side, c0: float, c1: float, fc: float
+                   ) -> float:
+    """Smallest hot-minus-cold temperature over a counter-current unit, less the needed approach [K].
+
+    The hot side runs over its enthalpy stretch [h0, h1] at flow share fh, the cold side over [c0, c1] at
+    share fc (the same heat); the hot inlet end meets the cold outlet end.
+    """
+    q = fh * (h1 - h0)
+    need = hs.shift + cs.shift
+    if hs.utility and cs.utility or q <= 0:
+        return -np.inf if hs.utility and cs.utility else 0.0
+    xs = {0.0, q}
+    if not hs.utility:
+        xs |= {fh * (e - h0) for e in hs.enthalpies if h0 < e < h1}
+    if not cs.utility:
+        xs |= {fc * (c1 - e) for e in cs.enthalpies if c0 < e < c1}
+    worst = np.inf
+    for x in xs:   # x: heat from the unit's hot end
+        if hs.utility:   # a utility's own flow runs linearly over its whole range
+            th = max(hs.temperatures) - (max(hs.temperatures) - min(hs.temperatures)) * x / q
+        else:
+            th = hs.temperature(h0 + x / fh)
+        if cs.utility:
+            tc = max(cs.temperatures) - (max(cs.temperatures) - min(cs.temperatures)) * x / q
+        else:
+            tc = cs.temperature(c1 - x / fc)
+        worst = min(worst, th - tc - need)
+    return worst
+
+
+# A step: (hot piece, cold piece, kind, load, excess, both off); kind (hot end, cold end) with end 0 the
+# inlet and 1 the outlet, or "split hot" / "split cold" (a branch of that piece over its whole stretch
+# ticks the other piece off).
+def _candidates(state: _State, hot: list[int], cold: list[int], allowed, tol: float, points: np.ndarray,
+                residual: np.ndarray, mode: str):
+    """Every step of a mode ("ends", "split" or a partial share) that keeps ΔTmin at the unit's ends and
+    the cascade at the current points."""
+    hot = [i for i in hot if state.left(i) > tol]
+    cold = [j for j in cold if state.left(j) > tol]
+    if not hot or not cold:
+        return []
+    sh = [state.of(i) for i in hot]
+    sc = [state.of(j) for j in cold]
+    H = np.array([_above(state.of(i), state.a[i], state.b[i], state.f[i], points) for i in hot])
+    C = np.array([_above(state.of(j), state.a[j], state.b[j], state.f[j], points) for j in cold])
+    lh = np.array([state.left(i) for i in hot])
+    lc = np.array([state.left(j) for j in cold])
+    fh = np.array([state.f[i] for i in hot])
+    fc = np.array([state.f[j] for j in cold])
+    uh = np.array([s.utility for s in sh])
+    uc = np.array([s.utility for s in sc])
+    ok_pair = np.array([[(x.name, y.name) in allowed and not (x.utility and y.utility) for y in sc] for x in sh])
+    need = np.array([s.shift for s in sh])[:, None] + np.array([s.shift for s in sc])[None, :]
+    heat = max(float(lh.sum()), tol)
+    out = []
+
+    def temps(pieces, sides, start, stop):
+        t_in, t_out = np.empty(start.shape), np.empty(start.shape)
+        for r, s in enumerate(sides):
+            if s.utility:
+                t_in[r], t_out[r] = (max(s.temperatures), min(s.temperatures)) if s.hot else \
+                    (min(s.temperatures), max(s.temperatures))
+                continue
+            e, t = np.asarray(s.enthalpies), np.asarray(s.temperatures)
+            t_in[r], t_out[r] = np.interp(start[r], e, t), np.interp(stop[r], e, t)
+        return t_in, t_out
+
+    def accept(kind, mask, hot_in, hot_out, cold_in, cold_out, take_h, take_c, Q, both):
+        d1 = hot_in - cold_out - need
+        d2 = hot_out - cold_in - need
+        mask = mask & (d1 >= -1e-9) & (d2 >= -1e-9)
+        if not mask.any():
+            return
+        rows, cols = np.nonzero(mask)
+        new = residual[None, :] - take_h(rows, cols) + take_c(rows, cols)
+        good = new.min(axis=1) >= -tol
+        loss = (residual.sum() - new.sum(axis=1)) / (points.size * heat)
+        for k, r, c in zip(np.flatnonzero(good), rows[good], cols[good]):
+            out.append((hot[r], cold[c], kind, float(Q[r, c]), (float(d1[r, c] + d2[r, c]), float(max(d1[r, c], d2[r, c])), float(loss[k])), bool(both[r, c])))
+
+    a_h = np.array([state.a[i] for i in hot])
+    b_h = np.array([state.b[i] for i in hot])
+    a_c = np.array([state.a[j] for j in cold])
+    b_c = np.array([state.b[j] for j in cold])
+    if mode == "branch":
+        return _branch_candidates(state, hot, cold, allowed, tol)
+    if mode == "split":   # a branch of one piece over its whole stretch ticks off the other piece
+        base = ok_pair & ~uh[:, None] & ~uc[None, :]
+        hot_in, hot_out = temps(hot, sh, a_h, b_h)
+        cold_in, cold_out = temps(cold, sc, a_c, b_c)
+        HI, HO = hot_in[:, None] + 0 * need, hot_out[:, None] + 0 * need
+        CI, CO = cold_in[None, :] + 0 * need, cold_out[None, :] + 0 * need
+        share_c = lh[:, None] / lc[None, :]   # < 1: a branch of the cold piece takes all of the hot one
+        m = base & (share_c < 1 - 1e-6)
+        accept("split cold", m, HI, HO, CI, CO, lambda r, c: H[r], lambda r, c: share_c[r, c][:, None] * C[c],
+               np.broadcast_to(lh[:, None], need.shape), np.zeros(need.shape, bool))
+        share_h = lc[None, :] / lh[:, None]
+        m = base & (share_h < 1 - 1e-6)
+        accept("split hot", m, HI, HO, CI, CO, lambda r, c: share_h[r, c][:, None] * H[r], lambda r, c: C[c],
+               np.broadcast_to(lc[None, :], need.shape), np.zeros(need.shape, bool))
+        return out
+    share = 1.0 if mode == "ends" else float(mode)
+    Q = share * np.minimum(lh[:, None], lc[None, :])
+    both = (share == 1.0) & (np.abs(lh[:, None] - lc[None, :]) <= tol)
+    for eh in (0, 1):
+        for ec in (0, 1):
+            mask = ok_pair & ~(uh[:, None] & (eh == 1)) & ~(uc[None, :] & (ec == 1))
+            if not mask.any():
+                continue
+            dh = Q / fh[:, None]   # stretch of enthalpy at full flow the load takes
+            dc = Q / fc[None, :]
+            hs0 = a_h[:, None] + 0 * Q if eh == 0 else b_h[:, None] - dh
+            hs1 = a_h[:, None] + dh if eh == 0 else b_h[:, None] + 0 * Q
+            cs0 = a_c[None, :] + 0 * Q if ec == 0 else b_c[None, :] - dc
+            cs1 = a_c[None, :] + dc if ec == 0 else b_c[None, :] + 0 * Q
+            hot_in, hot_out = temps(hot, sh, hs0, hs1)
+            ci, co = temps(cold, sc, cs0.T, cs1.T)
+            cold_in, cold_out = ci.T, co.T
+
+            def take_h(r, c, eh=eh):
+                q = Q[r, c][:, None]
+                return np.minimum(q, H[r]) if eh == 0 else np.maximum(0.0, H[r] - (lh[r][:, None] - q))
+
+            def take_c(r, c, ec=ec):
+                q = Q[r, c][:, None]
+                return np.maximum(0.0, C[c] - (lc[c][:, None] - q)) if ec == 0 else np.minimum(q, C[c])
+
+            accept((eh, ec), mask, hot_in, hot_out, cold_in, cold_out, take_h, take_c, Q, both)
+    return out
+
+
+def _branch_candidates(state: _State, hot: list[int], cold: list[int], allowed, tol: float):
+    """Steps where a branch of one piece, over the stretch from one of its ends that keeps ΔTmin against
+    the whole other piece, ticks that other piece off (the stream splits of the pinch design method)."""
+    out = []
+    for i in hot:
+        hs = state.of(i)
+        if hs.utility:
+            continue
+        a_i, b_i, f_i, l_i = state.a[i], state.b[i], state.f[i], state.left(i)
+        hi_in, hi_out = hs.temperature(a_i), hs.temperature(b_i)
+        for j in cold:
+            cs = state.of(j)
+            if cs.utility or (hs.name, cs.name) not in allowed:
+                continue
+            a_j, b_j, f_j, l_j = state.a[j], state.b[j], state.f[j], state.left(j)
+            need = hs.shift + cs.shift
+            cj_in, cj_out = cs.temperature(a_j), cs.temperature(b_j)
+            if l_j < l_i - tol:   # a branch of the hot piece takes all of the cold one
+                if hi_in - cj_out >= need - 1e-9:   # from the hot inlet down to cold inlet + ΔTmin
+                    e = min(max(hs.enthalpy(cj_in + need), a_i), b_i)
+                    if e - a_i > tol and l_j < f_i * (e - a_i) * (1 - 1e-9):
+                        out.append((i, j, ("branch hot", a_i, e), l_j, (hi_in - cj_out,) * 3, False))
+                if hi_out - cj_in >= need - 1e-9:   # from the hot outlet up to cold outlet + ΔTmin
+                    e = min(max(hs.enthalpy(cj_out + need), a_i), b_i)
+                    if b_i - e > tol and l_j < f_i * (b_i - e) * (1 - 1e-9):
+                        out.append((i, j, ("branch hot", e, b_i), l_j, (hi_out - cj_in,) * 3, False))
+            if l_i < l_j - tol:   # a branch of the cold piece takes all of the hot one
+                if hi_out - cj_in >= need - 1e-9:   # from the cold inlet up to hot inlet − ΔTmin
+                    e = min(max(cs.enthalpy(hi_in - need), a_j), b_j)
+                    if e - a_j > tol and l_i < f_j * (e - a_j) * (1 - 1e-9):
+                        out.append((i, j, ("branch cold", a_j, e), l_i, (hi_out - cj_in,) * 3, False))
+                if hi_in - cj_out >= need - 1e-9:   # from the cold outlet down to hot outlet − ΔTmin
+                    e = min(max(cs.enthalpy(hi_out - need), a_j), b_j)
+                    if b_j - e > tol and l_i < f_j * (b_j - e) * (1 - 1e-9):
+                        out.append((i, j, ("branch cold", e, b_j), l_i, (hi_in - cj_out,) * 3, False))
+    return out
+
+
+def _split_piece(state: _State, k: int, s0: float, s1: float, x: float) -> None:
+    """Give share x of piece k's flow over its stretch [s0, s1] (one end of it) to a unit."""
+    a, b, f = state.a[k], state.b[k], state.f[k]
+    if s0 <= a and s1 >= b:
+        state.f[k] = f * (1 - x)
+        return
+    state.a[k], state.b[k] = (s1, b) if s0 <= a else (a, s0)
+    state.side.append(state.side[k])
+    state.a.append(s0)
+    state.b.append(s1)
+    state.f.append(f * (1 - x))
+
+
+def _apply(state: _State, step, tol: float):
+    """The state after a step and the unit (hot stretch, share, cold stretch, share, load)."""
+    i, j, kind, q = step[:4]
+    new = state.copy()
+    fi, fj = state.f[i], state.f[j]
+    if isinstance(kind, tuple) and kind[0] == "branch hot":
+        _, s0, s1 = kind
+        x = q / (fi * (s1 - s0))
+        unit = (s0, s1, fi * x, state.a[j], state.b[j], fj)
+        new.a[j] = new.b[j]
+        _split_piece(new, i, s0, s1, x)
+        return new, unit
+    if isinstance(kind, tuple) and kind[0] == "branch cold":
+        _, s0, s1 = kind
+        x = q / (fj * (s1 - s0))
+        unit = (state.a[i], state.b[i], fi, s0, s1, fj * x)
+        new.a[i] = new.b[i]
+        _split_piece(new, j, s0, s1, x)
+        return new, unit
+    if kind == "split cold":   # all of hot piece i against a branch of cold piece j
+        x = q / state.left(j)
+        unit = (state.a[i], state.b[i], fi, state.a[j], state.b[j], fj * x)
+        new.a[i] = new.b[i]
+        new.f[j] = fj * (1 - x)
+        return new, unit
+    if kind == "split hot":
+        x = q / state.left(i)
+        unit = (state.a[i], state.b[i], fi * x, state.a[j], state.b[j], fj)
+        new.a[j] = new.b[j]
+        new.f[i] = fi * (1 - x)
+        return new, unit
+    eh, ec = kind[-2:]
+    dh = q / fi if not state.of(i).utility else q
+    dc = q / fj if not state.of(j).utility else q
+    h0, h1 = (state.a[i], state.a[i] + dh) if eh == 0 else (state.b[i] - dh, state.b[i])
+    c0, c1 = (state.a[j], state.a[j] + dc) if ec == 0 else (state.b[j] - dc, state.b[j])
+    for k, e in ((i, eh), (j, ec)):
+        d = dh if k == i else dc
+        if e == 0:
+            new.a[k] = min(new.a[k] + d, new.b[k])
+        else:
+            new.b[k] = max(new.b[k] - d, new.a[k])
+        if new.left(k) <= tol:
+            new.a[k] = new.b[k]
+    return new, (h0, h1, fi, c0, c1, fj)
+
+
+def _has_tick_off(state: _State, allowed, tol: float) -> bool:
+    """True when nothing is left or some tick-off step at the ends is accepted at the current points."""
+    hot = [k for k in range(len(state.side)) if state.of(k).hot and state.left(k) > tol]
+    cold = [k for k in range(len(state.side)) if not state.of(k).hot and state.left(k) > tol]
+    if not hot or not cold:
+        return True
+    points = _points(state, tol)
+    return bool(_candidates(state, hot, cold, allowed, tol, points, _residual(state, points, tol), "ends"))
+
+
+def _search(sides: list[Side], allowed, required, tol: float, rng, noise: float, rule: int = 0,
+            lookahead: int = 1):
+    """One tick-off search; returns (units, state) with the state of what is left.
+
+    ``rule`` picks the measure of a step's verticality [-]: 0 the sum of the excess approaches at the
+    unit's two ends, 1 the larger of them, 2 the heat the cascade loses (the driving force the step
+    spends); 3 to 5 the same, with the units at the pinch ends of both sides first (the pinch design
+    method's order, from the pinch out); ``noise`` [-] perturbs the measure at random.  With ``lookahead`` > 1 [-], of that many accepted steps
+    (best first) the first after which a tick-off step at the ends is still accepted is taken."""
+    state = _State(sides)
+    units = []
+    placed_pairs: set[tuple[str, str]] = set()
+    # the ends at the pinch: above it (a hot utility, no cold one) the hot outlets and cold inlets, below
+    # it the hot inlets and cold outlets
+    hot_u = any(s.utility and s.hot for s in sides)
+    cold_u = any(s.utility and not s.hot for s in sides)
+    pinch_side = (1, 0) if hot_u and not cold_u else (0, 1) if cold_u and not hot_u else None
+    span = max(max(s.temperatures) for s in sides) - min(min(s.temperatures) for s in sides) + 1.0
+    while True:
+        hot = [k for k in range(len(state.side)) if state.of(k).hot and state.left(k) > tol]
+        cold = [k for k in range(len(state.side)) if not state.of(k).hot and state.left(k) > tol]
+        if not hot or not cold:
+            break
+        points = _points(state, tol)
+        residual = _residual(state, points, tol)
+        chosen = None
+        pending = required - placed_pairs
+
+        def key(c, state=state, pending=pending):
+            i, j, kind, q, excess, both = c
+            jitter = rng.random() * noise if noise else 0.0
+            measure = excess[rule % 3] / span if rule % 3 < 2 else excess[2] * 10.0
+            outward = rule >= 3 and kind != pinch_side   # from the pinch out first (pinch design method)
+            return ((state.of(i).name, state.of(j).name) not in pending, not both, outward, measure + jitter)
+
+        for mode in ("ends", "split", "branch", "0.9", "0.75", "0.5", "0.25", "0.1"):
+            cands = _candidates(state, hot, cold, allowed, tol, points, residual, mode)
+            if mode[0].isdigit():
+                cands = [(*c[:2], ("part", *c[2]), *c[3:]) for c in cands]
+            good = []
+            for c in sorted(cands, key=key):
+                trial, unit = _apply(state, c, tol)
+                h0, h1, fh, c0, c1, fc = unit
+                if _unit_approach(state.of(c[0]), h0, h1, fh, state.of(c[1]), c0, c1, fc) < -1e-9:
+                    continue
+                if (_residual(trial, _points(trial, tol), tol) >= -tol).all():
+                    good.append((c, unit, trial))
+                    if len(good) >= max(lookahead, 1):
+                        break
+            if len(good) > 1:   # the first whose next state still has a tick-off step at the ends
+                for c, unit, trial in good:
+                    if _has_tick_off(trial, allowed, tol):
+                        good = [(c, unit, trial)]
+                        break
+            if good:
+                c, unit, state = good[0]
+                chosen = (c, unit)
+                break
+        if chosen is None:
+            break
+        (i, j, kind, q, _, _), unit = chosen
+        units.append((state.side[i], state.side[j], unit, q, kind if isinstance(kind, str) else
+                      kind[0] if isinstance(kind[0], str) else "ends" if q >= 0 else ""))
+        placed_pairs.add((sides[state.side[i]].name, sides[state.side[j]].name))
+    return units, state
+
+
+def _unit(hs: Side, cs: Side, unit, q) -> PlacedUnit:
+    h0, h1, fh, c0, c1, fc = unit
+    if hs.utility:
+        h_in, h_out, fh = max(hs.temperatures), min(hs.temperatures), 1.0
+    else:
+        h_in, h_out = hs.temperature(h0), hs.temperature(h1)
+    if cs.utility:
+        c_in, c_out, fc = min(cs.temperatures), max(cs.temperatures), 1.0
+    else:
+        c_in, c_out = cs.temperature(c0), cs.temperature(c1)
+    return PlacedUnit(hs.name, cs.name, 0, float(q), h_in, h_out, c_in, c_out, min(fh, 1.0), min(fc, 1.0))
+
+
+def _remainder(state: _State, tol: float, forbidden, solver=None, solve_time: float = 0.0):
+    """What the steps left: placed by the stagewise MILP when ``solve_time`` > 0 (pieces of at most
+    :data:`REMAINDER_MILP_SIDES` sides), else or without its solution interval by interval; the pieces go
+    under names of their own.  Returns (units or None, solve reports)."""
+    pieces, names = [], {}
+    for k in range(len(state.side)):
+        if state.left(k) <= tol:
+            continue
+        s, a, b, f = state.of(k), state.a[k], state.b[k], state.f[k]
+        name = f"{s.name}\x00{k}"
+        names[name] = (s.name, f)
+        if s.utility:
+            pieces.append(Side(name, s.hot, s.temperatures, (0.0, float(b - a)), s.shift, utility=True))
+            continue
+        es = [a] + [e for e in s.enthalpies if a < e < b] + [b]
+        pieces.append(Side(name, s.hot, tuple(s.temperature(e) for e in es), tuple(f * (e - a) for e in es),
+                           s.shift))
+    if not pieces:
+        return [], []
+    rh = [s for s in pieces if s.hot]
+    rc = [s for s in pieces if not s.hot]
+    if not rh or not rc:
+        return None, []
+    banned = {(h.name, c.name) for h in rh for c in rc if (names[h.name][0], names[c.name][0]) in forbidden}
+    reports = []
+    placed = None
+    try:
+        placed = interval_placement(rh, rc, forbidden=banned).units
+    except ValueError:
+        pass
+    if solve_time > 0 and len(pieces) <= REMAINDER_MILP_SIDES:
+        pairs = {(h.name, c.name) for h in rh for c in rc if not (h.utility and c.utility)} - banned
+        prob, read = stage_model(rh, rc, pairs, max(len(rh), len(rc)), name="placement")
+        report = solve(prob, solver, time_limit=solve_time, check=False,
+                       name="placement (what the tick-off steps left)")
+        reports.append(report)
+        if report.has_solution:
+            milp = read().units
+            if placed is None or len(milp) < len(placed):
+                placed = milp
+    if placed is None:
+        return None, reports
+    out = []
+    for u in placed:
+        (hn, fh), (cn, fc) = names[u.hot], names[u.cold]
+        out.append(PlacedUnit(hn, cn, 0, u.duty, u.hot_in, u.hot_out, u.cold_in, u.cold_out,
+                              u.hot_fraction * fh, u.cold_fraction * fc))
+    return out, reports
+
+
+_PLAIN = ((0, 1), (5, 1), (2, 1), (3, 1), (1, 1), (4, 1), (0, 4), (5, 4))
+"""(measure, lookahead) of the first, unperturbed searches (see :func:`_search`)."""
+
+
+def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=frozenset(),
+                       required=frozenset(), time_limit: float = 10.0, tries: int = 50, seed: int = 0,
+                       solver=None, solve_time: float = 0.0) -> TickOffResult | None:
+    """Place the units of one pinch region by the tick-off rule, checking the leftover targets each step.
+
+    Parameters
+    ----------
+    hot, cold : sequence of Side
+        The sides of the region (process parts and utilities with their duties there); they must
+        balance.
+    forbidden : set of (hot name, cold name), optional
+        Pairs never matched.
+    required : set of (hot name, cold name), optional
+        Pairs placed first where a step with them is accepted; a search leaving one out loses to one that
+        has them all.
+    time_limit : float
+        Wall-clock time for the repeated searches [s]; the first search always runs to its end.
+    tries : int
+        Most searches [-]: the first eight unperturbed, the others with perturbed choices.  The searches
+        stop early when one places N − 1 units or fewer without a remainder, or when none of the
+        unperturbed ones ended in a placement.
+    seed : int
+        Seed of the perturbations [-].
+    solver : str, optional
+        Solver of the stagewise MILP that may place what the best search left (see
+        :func:`heatloom.network.solvers.resolve_solver`).
+    solve_time : float
+        Time limit of that MILP [s]; 0 places the remainder interval by interval only.
+
+    Returns
+    -------
+    TickOffResult or None
+        None when the sides' own cascade is not feasible in the conservative reading of
+        :func:`cascade_feasible` (the caller uses another method).
+
+    Examples
+    --------
+    Above the pinch of Sinnott's four-stream problem (Coulson & Richardson's Chemical Engineering Vol. 6,
+    ch. 3, Table 3.6; pinch 90/80 °C): streams 1 and 2 above 90 and 80 °C, stream 3 and 4 above 80 °C,
+    50 kW of hot utility.  Tick-off places 1→4 (270 kW, both off), 2→3 and the heater: 3 units.
+
+    >>> hot = [Side("1", True, (180.0, 90.0), (0.0, 270.0), 5.0), Side("2", True, (150.0, 90.0), (0.0, 60.0), 5.0),
+    ...        Side("hu", True, (250.0, 250.0), (0.0, 50.0), 5.0, utility=True)]
+    >>> cold = [Side("3", False, (80.0, 135.0), (0.0, 110.0), 5.0),
+    ...         Side("4", False, (80.0, 140.0), (0.0, 270.0), 5.0)]
+    >>> r = tick_off_placement(hot, cold)
+    >>> len(r.placement.units), r.remainder
+    (3, 0)
+    """
+    sides = [*hot, *cold]
+    scale = max(max((s.duty for s in sides), default=1.0), 1.0)
+    tol = 1e-7 * scale
+    if not cascade_feasible(sides, tol):
+        return None
+    forbidden = set(forbidden)
+    required = set(required)
+    allowed = {(i.name, j.name) for i in hot for j in cold if (i.name, j.name) not in forbidden}
+    start = time.monotonic()
+    rng = np.random.default_rng(seed)
+    best = None
+    n = 0
+    while n < max(tries, 1):
+        rule, ahead = _PLAIN[n] if n < len(_PLAIN) else (int(rng.integers(6)), int(rng.choice([1, 4])))
+        noise = 0.0 if n < len(_PLAIN) else 0.5 * rng.random()
+        steps, state = _search(sides, allowed, required, tol, rng, noise, rule, ahead)
+        n += 1
+        placed = [_unit(sides[i], sides[j], unit, q) for i, j, unit, q, _ in steps]
+        extra, _ = _remainder(state, tol, forbidden)
+        if extra is not None:
+            have = {(u.hot, u.cold) for u in (*placed, *extra)}
+            score = (len(required - have), len(placed) + len(extra))
+            if best is None or score < best[0]:
+                best = (score, placed, extra, state)
+        if time.monotonic() - start > time_limit or (best is not None and best[0][0] == 0 and not best[2]
+                                                     and best[0][1] <= len(sides) - 1):
+            break
+        if best is None and n >= len(_PLAIN):   # no unperturbed search ended in a placement: none will
+            break
+    if best is None:
+        return None
+    (missing, count), placed, extra, state = best
+    reports = []
+    if extra and solve_time > 0:
+        milp, reports = _remainder(state, tol, forbidden, solver, solve_time)
+        if milp is not None and len(milp) < len(extra) and \
+                len(required - {(u.hot, u.cold) for u in (*placed, *milp)}) <= missing:
+            extra = milp
+    units = sorted([*placed, *extra], key=lambda u: (-u.hot_in, -u.cold_out))
+    units = [PlacedUnit(u.hot, u.cold, k, u.duty, u.hot_in, u.hot_out, u.cold_in, u.cold_out, u.hot_fraction,
+                        u.cold_fraction) for k, u in enumerate(units)]
+    return TickOffResult(Placement(tuple(units), max(len(units), 1)), len(placed), len(extra), n, tuple(reports))
+
