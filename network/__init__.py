@@ -6,9 +6,10 @@ topologies and their refinement) are imported from their modules: :mod:`heatloom
 """
 
 from .design import design_mer
-from .evolution import Evolution, EvolutionStep, evolve, size_network
+from .evolution import Evolution, EvolutionStep, evolve
 from .matches import Match, MatchKind, Subnetwork, SubnetworkMatches, TieBreak, subnetworks
 from .milp import MatchPlan, min_matches, plan_matches
+from .sizing import size_network
 from .solvers import SolveReport, SolverName, SolveStatus, available_solvers, resolve_solver, solve
 from .structure import Cooler, Exchanger, Heater, Network, approach_violations, check_network
 from .tac.search import design_tac

@@ -30,19 +30,17 @@ every solve takes its share of what is left, and the notes name the solves that 
 from __future__ import annotations
 
 from collections.abc import Iterable, Sequence
+from dataclasses import replace
 
 from .. import defaults
-from ..equipment.geometry import hairpins_for_area
-from ..equipment.segments import cut_profile, size_segments, utility_segment
-from ..equipment.sizing import shell_design
 from ..errors import InfeasibleError, InputError
-from ..model import Segment, Stream, StreamTable, Utility
-from ..model.costs import CostSettings, UnitKind
+from ..model import Stream, StreamTable, Utility
+from ..model.costs import CostSettings
 from ..model.exchangers import ExchangerType
 from ..pinch import target
 from ..pinch.utilities import ideal_utilities
-from ..validation import enum_member
 from .placement import Placement, Side, interval_placement, stage_model
+from .sizing import geometry_kind, missing_film_coefficients, size_network
 from .solvers import Budget, SolveReport, solve
 from .structure import Cooler, Exchanger, Heater, Network, check_network, stream_enthalpy
 from .tickoff import tick_off_placement
@@ -313,48 +311,6 @@ def _utility_side(u: Utility, duty: float, dt_min: float) -> Side:
                 utility=True)
 
 
-def _missing_film_coefficients(streams: StreamTable, utilities: Sequence[Utility]) -> list[str]:
-    """Streams and utilities without a film coefficient, in table order."""
-    out = [f"stream '{s.name}'" for s in streams if any(g.film_coefficient is None for g in s.segments)]
-    return out + [f"utility '{u.name}'" for u in utilities if u.film_coefficient is None]
-
-
-def _with_h(segments, default: float | None, scale: float = 1.0) -> list[Segment]:
-    """Segments with their film coefficient (or the default) and the branch's share of the flow."""
-    return [Segment(g.supply_temperature, g.target_temperature, g.heat_capacity_flow * scale,
-                    g.film_coefficient if g.film_coefficient is not None else default) for g in segments]
-
-
-def _geometry_kind(exchanger_type) -> ExchangerType | None:
-    """The kind whose geometry the design reports (None: counter-current area only)."""
-    if exchanger_type is None:
-        return None
-    kind = enum_member(ExchangerType, exchanger_type, "exchanger type")
-    if kind is ExchangerType.COUNTER_CURRENT:
-        return None
-    if not kind.has_geometry:
-        allowed = ", ".join(k.value for k in ExchangerType if k.has_geometry)
-        raise InputError(f"exchanger type {kind.value} has no geometry to report: the design sizes "
-                         f"counter-current areas, or the geometry of one of {allowed}")
-    return kind
-
-
-def _geometry(area: float, unit, exchanger_type: ExchangerType | None, options: dict):
-    """Area to cost, shells, F and the geometry report of one unit of the given type."""
-    if exchanger_type is ExchangerType.SHELL_AND_TUBE_1_2:
-        d = shell_design(unit.hot_in, unit.hot_out, unit.cold_in, unit.cold_out)
-        total = area / d.f
-        return total, d.shells, d.f, {"type": exchanger_type.value, "shells": d.shells, "f_factor": d.f,
-                                      "area_per_shell": total / d.shells, "set_by": d.set_by}
-    if exchanger_type is ExchangerType.DOUBLE_PIPE:
-        length, n, per = hairpins_for_area(area, options["tube_diameter"], options["hairpin_length"])
-        return area, 1, None, {"type": exchanger_type.value, "tube_length": length, "hairpins": n,
-                               "area_per_hairpin": per, "installed_area": n * per,
-                               "tube_diameter": options["tube_diameter"],
-                               "hairpin_length": options["hairpin_length"]}
-    return area, None, None, None
-
-
 def _region_sides(streams: StreamTable, utilities: Sequence[Utility], duties: dict, region: Region,
                   r_index: int, n_regions: int, dt_min: float, scale: float):
     """The hot and cold sides of a pinch region (None when it has none)."""
@@ -513,7 +469,7 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
 
     notes: list[str] = []
     geometry_options = {"tube_diameter": tube_diameter, "hairpin_length": hairpin_length}
-    exchanger_type = _geometry_kind(exchanger_type)
+    exchanger_type = geometry_kind(exchanger_type)
     if exchanger_type is ExchangerType.DOUBLE_PIPE and (tube_diameter is None or hairpin_length is None):
         raise InputError("double-pipe units need a tube diameter [m] and a hairpin leg length [m] "
                          "(--tube-diameter, --hairpin-length)")
@@ -527,7 +483,7 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
     costs = costs or CostSettings()
     if default_film_coefficient is not None and not default_film_coefficient > 0:
         raise InputError(f"default film coefficient must be > 0 kW/(m²·K), got {default_film_coefficient!r}")
-    missing = _missing_film_coefficients(streams, utilities)
+    missing = missing_film_coefficients(streams, utilities)
     if missing and default_film_coefficient is None:
         raise InputError(f"film coefficient h missing for {', '.join(missing)}: areas and costs need one for "
                          "every stream and utility (add an h column in kW/(m²·K), or assume one with "
@@ -564,7 +520,6 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
         solves += list(plan.reports)
         placed = _chain_design(streams, utilities, plan, regions, t, dt_min, forbidden, required, solver,
                                budget, notes, solves)
-    duties = plan.utility_duties
     if budget.hits:
         notes.append(budget.hits_note())
     have = {(p.hot, p.cold) for _, p in placed if p.duty > 0}
@@ -574,49 +529,22 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
                               + ("es " if len(missing) > 1 else " ") + ", ".join(f"{h}→{c}" for h, c in missing)
                               + (f" (and without the forbidden ones {', '.join(f'{h}→{c}' for h, c in sorted(forbidden))})"
                                  if forbidden else ""))
-    by_name = {s.name: s for s in streams}
-    default_h = default_film_coefficient
     exchangers, heaters, coolers = [], [], []
-    capital = 0.0
     for label, p in placed:
-        hot_u, cold_u = by_utility.get(p.hot), by_utility.get(p.cold)
-        hot_s = None if hot_u is not None else by_name[p.hot]
-        cold_s = None if cold_u is not None else by_name[p.cold]
-        if hot_s is not None:
-            hot_segs = _with_h(cut_profile(hot_s.segments, p.hot_in, p.hot_out), default_h, p.hot_fraction)
-        else:
-            h = hot_u.film_coefficient if hot_u.film_coefficient is not None else default_h
-            hot_segs = [utility_segment(hot_u, p.hot_in, p.hot_out, p.duty, h)]
-        if cold_s is not None:
-            cold_segs = _with_h(cut_profile(cold_s.segments, p.cold_in, p.cold_out), default_h,
-                                p.cold_fraction)
-        else:
-            h = cold_u.film_coefficient if cold_u.film_coefficient is not None else default_h
-            cold_segs = [utility_segment(cold_u, p.cold_in, p.cold_out, p.duty, h)]
-        sizing = size_segments(hot_segs, cold_segs, rel_tol=1e-5)
-        # effective LMTD and mean U of the whole unit: Q = U·A·LMTD with LMTD = Q / Σ(Q_k / LMTD_k)
-        lm = p.duty / sum(i.duty / i.lmtd for i in sizing.intervals)
-        u_mean = p.duty / (sizing.area * lm)
-        area, shells, f, geometry = _geometry(sizing.area, p, exchanger_type, geometry_options)
-        kind = UnitKind.HEATER if hot_u is not None else UnitKind.COOLER if cold_u is not None \
-            else UnitKind.EXCHANGER
-        cost = float(costs.annual_capital_cost(area, kind, shells or 1))
-        capital += cost
-        common = {"duty": p.duty, "area": area, "cost": cost, "region": label, "u": u_mean, "lmtd": lm,
-                  "stage": p.stage, "shells": shells, "f_factor": f, "geometry": geometry}
-        if hot_u is not None:
+        place = {"duty": p.duty, "region": label, "stage": p.stage}
+        if p.hot in by_utility:
             heaters.append(Heater(cold=p.cold, utility=p.hot, cold_in=p.cold_in, cold_out=p.cold_out,
-                                  utility_in=p.hot_in, utility_out=p.hot_out, cold_fraction=p.cold_fraction,
-                                  **common))
-        elif cold_u is not None:
+                                  utility_in=p.hot_in, utility_out=p.hot_out, cold_fraction=p.cold_fraction, **place))
+        elif p.cold in by_utility:
             coolers.append(Cooler(hot=p.hot, utility=p.cold, hot_in=p.hot_in, hot_out=p.hot_out,
-                                  utility_in=p.cold_in, utility_out=p.cold_out, hot_fraction=p.hot_fraction,
-                                  **common))
+                                  utility_in=p.cold_in, utility_out=p.cold_out, hot_fraction=p.hot_fraction, **place))
         else:
             exchangers.append(Exchanger(hot=p.hot, cold=p.cold, hot_in=p.hot_in, hot_out=p.hot_out,
                                         cold_in=p.cold_in, cold_out=p.cold_out, hot_fraction=p.hot_fraction,
-                                        cold_fraction=p.cold_fraction, **common))
-    operating = float(sum(duties.get(u.name, 0.0) * u.cost for u in utilities))
+                                        cold_fraction=p.cold_fraction, **place))
+    sized = size_network(Network(tuple(exchangers), tuple(heaters), tuple(coolers), float(dt_min)), streams,
+                         utilities, costs=costs, default_film_coefficient=default_film_coefficient,
+                         exchanger_type=exchanger_type, geometry_options=geometry_options)
     notes.append(costs.describe())
     notes.append("Areas: counter-current LMTD, U from 1/U = 1/h_hot + 1/h_cold (clean surfaces, no fouling "
                  "allowance); streams of several segments sized interval by interval.")
@@ -628,9 +556,6 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
         notes.append(f"Units are counter-current double-pipe hairpins of tube diameter "
                      f"{geometry_options['tube_diameter']:g} m and leg length {geometry_options['hairpin_length']:g} m"
                      " (area per hairpin π·d·2L, bends not counted); costed on the area needed.")
-    net = Network(tuple(exchangers), tuple(heaters), tuple(coolers), float(dt_min),
-                  capital_cost=capital, operating_cost=operating, total_annual_cost=capital + operating,
-                  currency=costs.currency, notes=tuple(notes), solves=tuple(solves),
-                  unit_target=plan.unit_target)
+    net = replace(sized, notes=tuple(notes), solves=tuple(solves), unit_target=plan.unit_target)
     check_network(net, streams, utilities)
     return net

@@ -19,7 +19,7 @@ evolution of Linnhoff & Hindmarsh (1983) removes them one at a time:
 Of every loop or path that removes a unit (with its relaxation) the one of the smallest energy penalty
 is taken.  Every step is reported with the unit removed, the loop or path used and its penalty.  After
 every shift the temperatures are recomputed along each stream from the order of its units (kept from
-the design), the network is sized again and costed (:func:`size_network`, the segment-wise
+the design), the network is sized again and costed (:func:`heatloom.network.sizing.size_network`, the segment-wise
 counter-current sizing of :func:`heatloom.network.design_mer`) and checked
 (:func:`heatloom.network.structure.check_network`).
 
@@ -42,12 +42,12 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass, replace
 
-from ..equipment.segments import cut_profile, size_segments, utility_segment
 from ..errors import InputError
-from ..model import Segment, Stream, StreamTable, Utility
-from ..model.costs import CostSettings, UnitKind
+from ..model import Stream, StreamTable, Utility
+from ..model.costs import CostSettings
 from ..pinch.utilities import ideal_utilities
 from ..validation import check_dt_min
+from .sizing import size_network
 from .structure import (
     Cooler,
     Exchanger,
@@ -58,7 +58,7 @@ from .structure import (
     stream_temperature,
 )
 
-__all__ = ["EvolutionStep", "Evolution", "evolve", "size_network", "unit_labels"]
+__all__ = ["EvolutionStep", "Evolution", "evolve", "unit_labels"]
 
 _ROUTE_CUTOFF = 12
 """Longest loop or utility path tried, in units [-]."""
@@ -91,102 +91,6 @@ def _describe(label: str, unit, duty: float | None = None) -> str:
     hot, cold = _sides(unit)
     d = unit.duty if duty is None else duty
     return f"{label} ({hot}→{cold}, {d:.4g} kW)"
-
-
-# --------------------------------------------------------------------------------------------------
-# sizing and costing
-
-
-def _with_h(segments, default: float | None, scale: float = 1.0) -> list[Segment]:
-    return [Segment(g.supply_temperature, g.target_temperature, g.heat_capacity_flow * scale,
-                    g.film_coefficient if g.film_coefficient is not None else default) for g in segments]
-
-
-def size_network(network: Network, streams: StreamTable, utilities: Sequence[Utility], *,
-                 costs: CostSettings | None = None, default_film_coefficient: float | None = None) -> Network:
-    """The network with every unit sized (counter-current) and costed, and its capital, operating and total cost.
-
-    Each unit's area is the segment-wise counter-current LMTD area of its two sides
-    (:func:`heatloom.equipment.segments.size_segments`, U from 1/U = 1/h_hot + 1/h_cold, a split branch with
-    its share of the flow), its cost the annualised cost law of its kind
-    (:meth:`heatloom.model.costs.CostSettings.annual_capital_cost`), as :func:`heatloom.network.design_mer`
-    sizes a new design; the operating cost is each utility's duty times its price.
-
-    Parameters
-    ----------
-    network : Network
-        Temperatures and duties of every unit (sizes are replaced).
-    streams : StreamTable
-    utilities : sequence of Utility
-        Every utility a heater or cooler names, with its price [money/(kW·year)].
-    costs : CostSettings, optional
-        Cost laws; the defaults when omitted.
-    default_film_coefficient : float, optional
-        h assumed where a stream or utility has none [kW/(m²·K)].
-
-    Returns
-    -------
-    Network
-
-    Raises
-    ------
-    InputError
-        A unit names an unknown utility, or a film coefficient is missing and no default is given.
-
-    Examples
-    --------
-    >>> from heatloom.model import StreamTable, Utility, UtilityKind
-    >>> s = StreamTable.from_arrays(["H1", "C1"], [150, 30], [60, 120], [2.0, 2.0], film_coefficient=[1.0, 1.0])
-    >>> e = Exchanger(hot="H1", cold="C1", duty=180.0, hot_in=150.0, hot_out=60.0, cold_in=30.0, cold_out=120.0)
-    >>> net = size_network(Network((e,), (), (), 10.0), s, [])
-    >>> round(net.exchangers[0].area, 3)   # Q / (U·ΔT) = 180 / (0.5 · 30)
-    12.0
-    """
-    costs = costs or CostSettings()
-    by_name = {s.name: s for s in streams}
-    by_utility = {u.name: u for u in utilities}
-    missing = [f"stream '{s.name}'" for s in streams if any(g.film_coefficient is None for g in s.segments)]
-    missing += [f"utility '{u.name}'" for u in utilities if u.film_coefficient is None]
-    if missing and default_film_coefficient is None:
-        raise InputError(f"film coefficient h missing for {', '.join(missing)}: areas and costs need one for every "
-                         "stream and utility (add an h column in kW/(m²·K), or assume one with --default-h)")
-    h0 = default_film_coefficient
-    out: dict[str, list] = {"exchangers": [], "heaters": [], "coolers": []}
-    capital = 0.0
-    duties: dict[str, float] = {}
-    for group, kind in (("exchangers", UnitKind.EXCHANGER), ("heaters", UnitKind.HEATER),
-                        ("coolers", UnitKind.COOLER)):
-        for x in getattr(network, group):
-            hot, cold = _sides(x)
-            if kind is not UnitKind.EXCHANGER:
-                name = x.utility
-                if name not in by_utility:
-                    raise InputError(f"{kind.value} on '{x.cold if kind is UnitKind.HEATER else x.hot}' uses "
-                                     f"utility '{name}', which is not among the utilities given")
-                duties[name] = duties.get(name, 0.0) + x.duty
-            if kind is UnitKind.HEATER:
-                u = by_utility[hot]
-                hot_segs = [utility_segment(u, x.utility_in, x.utility_out, x.duty,
-                                            u.film_coefficient if u.film_coefficient is not None else h0)]
-            else:
-                hot_segs = _with_h(cut_profile(by_name[hot].segments, x.hot_in, x.hot_out), h0, x.hot_fraction)
-            if kind is UnitKind.COOLER:
-                u = by_utility[cold]
-                cold_segs = [utility_segment(u, x.utility_in, x.utility_out, x.duty,
-                                             u.film_coefficient if u.film_coefficient is not None else h0)]
-            else:
-                cold_segs = _with_h(cut_profile(by_name[cold].segments, x.cold_in, x.cold_out), h0,
-                                    x.cold_fraction)
-            sizing = size_segments(hot_segs, cold_segs, rel_tol=1e-5)
-            lm = x.duty / sum(i.duty / i.lmtd for i in sizing.intervals)
-            cost = float(costs.annual_capital_cost(sizing.area, kind, 1))
-            capital += cost
-            out[group].append(replace(x, area=float(sizing.area), cost=cost, u=x.duty / (sizing.area * lm), lmtd=lm,
-                                      shells=None, f_factor=None, geometry=None))
-    operating = float(sum(d * by_utility[n].cost for n, d in duties.items()))
-    return replace(network, exchangers=tuple(out["exchangers"]), heaters=tuple(out["heaters"]),
-                   coolers=tuple(out["coolers"]), capital_cost=capital, operating_cost=operating,
-                   total_annual_cost=capital + operating, currency=costs.currency)
 
 
 # --------------------------------------------------------------------------------------------------

@@ -13,7 +13,7 @@ brings the stream to its target) and then:
 * temperature crosses are named per unit (the hot side below the cold side somewhere in the unit);
 * its utilities are compared with the energy targets of the problem table at the same ΔTmin;
 * every unit is sized (segment-wise counter-current LMTD, U from the film coefficients) and costed with the
-  cost laws of a new design (:func:`heatloom.network.evolution.size_network`).
+  cost laws of a new design (:func:`heatloom.network.sizing.size_network`).
 
 Results are screening estimates: a network must be checked against the plant's data and local codes by
 qualified, licensed engineers.
@@ -27,7 +27,7 @@ from dataclasses import dataclass, replace
 from ..errors import InfeasibleError, InputError, TemperatureCrossError
 from ..model import Stream, StreamTable, Utility
 from ..model.costs import CostSettings
-from ..network.evolution import size_network
+from ..network.sizing import size_network
 from ..network.structure import Network, approach_violations, check_network
 from ..pinch import target
 from ..validation import check_dt_min

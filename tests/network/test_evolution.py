@@ -15,7 +15,8 @@ from refdata import reference_utilities
 from heatloom.errors import InputError
 from heatloom.model import StreamTable
 from heatloom.network import check_network, design_mer
-from heatloom.network.evolution import evolve, size_network
+from heatloom.network.evolution import evolve
+from heatloom.network.sizing import size_network
 from heatloom.network.structure import Exchanger, Network
 
 
