@@ -4,9 +4,15 @@ For every tests/data/references/synthesis_*.json (streams with CP and h, utiliti
 law, published TACs best first, and their source), runs `heatloom.network.tac.search.design_tac` with the file's
 cost law (annualised) at EMAT 1 K and prints: our TAC, the best published TAC and who published it, their
 ratio, units, stream splits, wall time on this machine, and the seed.  Targets: ratio <= 1.00 on problems of
-up to 10 streams, <= 1.01 on 15-40 streams, each run under 5 minutes.  Asserts nothing; run:
+up to 10 streams, <= 1.01 on 15-40 streams, each run under 5 minutes.
+
+Then generated problems of 20 and 40 streams (--generated; invented data, fixed seed, made by a copy of the
+generator of benchmarks/bench_design.py, with invented utilities and cost law, see :func:`generated_case`)
+get a row each with their TAC, units, splits and wall time (there is no published TAC to compare with).
+Asserts nothing; run:
 
     python benchmarks/bench_tac.py [--time-limit 290] [--seed 0] [--starts 2] [--rounds N] [--only NAME]
+                                   [--generated 20 40] [--no-published]
 
 Without --rounds the search runs until the time limit (results then depend on the machine's speed).
 """
@@ -19,6 +25,8 @@ import re
 import sys
 import time
 from pathlib import Path
+
+import numpy as np
 
 from heatloom.model import Stream, StreamTable, Utility, UtilityKind
 from heatloom.model.costs import CostLaw, CostSettings
@@ -55,6 +63,31 @@ def problem(path: Path):
     return data, streams, utilities, costs
 
 
+def generated(n: int, seed: int = 11) -> StreamTable:
+    """Invented streams of benchmarks/bench_design.py (a copy of its generator, same seed and sizes): supply and
+    target temperatures in 20-300 °C, CP 1-50 kW/K, film coefficients 0.3-2 kW/(m²·K), hot and cold in turn."""
+    rng = np.random.default_rng(seed + n)
+    streams = []
+    for i in range(n):
+        hot = i % 2 == 0
+        a, b = sorted(np.round(rng.uniform(20, 300, 2), 0))
+        if b - a < 10:
+            b = a + 10
+        ts, tt = (b, a) if hot else (a, b)
+        cp = float(np.round(rng.uniform(1, 50), 1))
+        h = float(np.round(rng.uniform(0.3, 2.0), 2))
+        streams.append(Stream.simple(f"{'H' if hot else 'C'}{i // 2 + 1}", float(ts), float(tt), cp,
+                                     film_coefficient=h))
+    return StreamTable(streams)
+
+
+def generated_case(n: int):
+    """Invented TAC case of n streams: the generated streams, steam at 320 °C (80 per kW·year, h 3), cooling
+    water 10 → 15 °C (10 per kW·year, h 1.5), every unit 8000 + 500·A^0.75 per year (annualised)."""
+    utilities = [Utility("HU", 320, 320, 80.0, UtilityKind.HOT, 3.0), Utility("CU", 10, 15, 10.0, UtilityKind.COLD, 1.5)]
+    return generated(n), utilities, CostSettings(annualised=True, exchanger=CostLaw(8000.0, 500.0, 0.75))
+
+
 def splits(net) -> int:
     """Stream splits: (stream, stage) pairs with more than one branch."""
     seen = set()
@@ -73,13 +106,16 @@ def main() -> None:
     ap.add_argument("--starts", type=int, default=2)
     ap.add_argument("--rounds", type=int, default=None)
     ap.add_argument("--only", default=None, help="run only the reference files whose name contains this")
+    ap.add_argument("--generated", type=int, nargs="*", default=[20, 40],
+                    help="sizes of the generated (invented) problems to run after the published ones")
+    ap.add_argument("--no-published", action="store_true", help="run only the generated problems")
     args = ap.parse_args()
     rows = []
     header = (f"{'problem':<34} {'streams':>7} {'our TAC':>12} {'best published':>14} {'ratio':>7} {'target':>6} "
               f"{'units':>5} {'splits':>6} {'wall [s]':>8} {'seed':>4}  best published by")
     print(header)
     for path in sorted(REFERENCES.glob("synthesis_*.json")):
-        if args.only and args.only not in path.stem:
+        if args.no_published or (args.only and args.only not in path.stem):
             continue
         data, streams, utilities, costs = problem(path)
         who, best = data["published_tac"][0]
@@ -96,6 +132,20 @@ def main() -> None:
         rows.append(row)
         for note in net.notes:
             if note.startswith(("TAC search", "the time limit")):
+                print(f"    {note}", file=sys.stderr)
+    for n in args.generated or ():
+        streams, utilities, costs = generated_case(n)
+        t0 = time.perf_counter()
+        net = design_tac(streams, utilities, costs=costs, emat=1.0, time_limit=args.time_limit, seed=args.seed,
+                         starts=args.starts, rounds=args.rounds if args.rounds is not None else 10 ** 6)
+        wall = time.perf_counter() - t0
+        hot = sum(s.is_hot for s in streams)
+        row = (f"{f'generated {n} ({hot}h{n - hot}c, invented)':<34} {n:>7} {net.total_annual_cost:>12,.0f} "
+               f"{'-':>14} {'-':>7} {'-':>6} {net.units:>5} {splits(net):>6} {wall:>8.1f} {args.seed:>4}  "
+               "(no published value: invented data)")
+        print(row, flush=True)
+        for note in net.notes:
+            if note.startswith(("TAC search", "the time limit", "time limit")) or "skipped" in note:
                 print(f"    {note}", file=sys.stderr)
 
 

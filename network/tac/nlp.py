@@ -36,7 +36,9 @@ References
 
 from __future__ import annotations
 
+import time
 import warnings
+import zlib
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -47,7 +49,8 @@ from ...model.costs import UnitKind
 from .problem import TacProblem, make_problem
 
 __all__ = ["TacProblem", "Topology", "TopologyModel", "TopologySolution", "make_problem", "solve_topology",
-           "polish_splits", "unit_costs"]
+           "polish_splits", "polish_cheapest", "unit_costs", "FINAL_POLISH", "FINAL_POLISH_STARTS",
+           "FINAL_POLISH_STREAMS"]
 
 APPROACH_MARGIN = 0.0
 """Extra approach kept by the optimiser above EMAT [K]; none: solutions are projected back onto the
@@ -506,8 +509,56 @@ def unit_costs(p: TacProblem, top: Topology, x: np.ndarray, fractions: dict | No
     return out
 
 
-def polish_splits(p: TacProblem, sol: TopologySolution, *, max_iter: int = 100) -> TopologySolution:
+FINAL_POLISH = 5
+"""The cheapest distinct networks with stream splits whose split fractions are polished once more at the end of
+the search, from random fractions as well (:data:`FINAL_POLISH_STARTS`) [-]."""
+
+FINAL_POLISH_STARTS = 4
+"""Extra starts of that last polish: the same loads, flow fractions moved at random [-]."""
+
+FINAL_POLISH_STREAMS = 20
+"""Largest problem (process streams) given that last polish: its finite-difference gradients grow with the
+number of units [-]."""
+
+
+def polish_cheapest(p: TacProblem, ranked: list, deadline: float) -> list:
+    """The solutions, cheapest first, after one more polish of the split fractions of the cheapest ones with
+    stream splits (at most :data:`FINAL_POLISH`, problems of at most :data:`FINAL_POLISH_STREAMS` streams),
+    from random fractions too (:func:`polish_splits` with :data:`FINAL_POLISH_STARTS` starts, seeded by the
+    topology: the same result in any process), while ``deadline`` (a ``time.monotonic`` reading [s]) is
+    not passed.
+
+    Parameters
+    ----------
+    p : TacProblem
+    ranked : list of TopologySolution
+        Solutions, cheapest first.
+    deadline : float
+        [s], ``time.monotonic`` clock.
+    """
+    out, done = list(ranked), 0
+    if len(p.hot_names) + len(p.cold_names) > FINAL_POLISH_STREAMS:
+        return out
+    for n, sol in enumerate(ranked):
+        if done >= FINAL_POLISH or time.monotonic() > deadline:
+            break
+        if len({(i, k) for (i, _, k) in sol.topology.matches}) == len(sol.topology.matches) and \
+                len({(j, k) for (_, j, k) in sol.topology.matches}) == len(sol.topology.matches):
+            continue   # no stream split
+        done += 1
+        out[n] = polish_splits(p, sol, starts=FINAL_POLISH_STARTS,
+                               seed=zlib.crc32(repr(sol.topology.key()).encode()), deadline=deadline)
+    return sorted(out, key=lambda c: c.tac)
+
+
+def polish_splits(p: TacProblem, sol: TopologySolution, *, max_iter: int = 100, starts: int = 0,
+                  seed=None, deadline: float | None = None) -> TopologySolution:
     """Free the flow fractions of the stream splits (non-isothermal mixing) and re-optimise; keep the better.
+
+    The optimisation starts from the solution's loads and fractions (those of isothermal mixing when it has
+    none) and, with ``starts`` > 0, also from that many random feasible moves of the fractions (``seed``);
+    no further start begins after ``deadline`` (a ``time.monotonic`` reading [s]), and a start running then
+    stops at its current iterate (kept only if feasible and cheaper).
 
     The branches of a split stream may then leave a stage at different temperatures; the mixed stage
     outlet is unchanged (:math:`\\sum_b f_b(t_{in} - q_b/(f_b CP)) = t_{in} - \\sum_b q_b/CP`), so only the
@@ -532,9 +583,12 @@ def polish_splits(p: TacProblem, sol: TopologySolution, *, max_iter: int = 100) 
     n, s = model.n, p.scale
     col = {key: c for c, key in enumerate(model.matches)}
     f0 = []
-    for keys in groups.values():
-        total = sum(sol.x[col[key]] for key in keys)
-        f0 += [sol.x[col[key]] / total for key in keys]
+    for g, keys in groups.items():   # the solution's own fractions, else those of isothermal mixing
+        if sol.fractions and all((g[0], key) in sol.fractions for key in keys):
+            f0 += [sol.fractions[g[0], key] for key in keys]
+        else:
+            total = sum(sol.x[col[key]] for key in keys)
+            f0 += [sol.x[col[key]] / total for key in keys]
     z0 = np.concatenate([sol.x / s, f0])
     need = model.need + APPROACH_MARGIN
     tac0 = max(abs(sol.tac), 1.0)
@@ -575,14 +629,42 @@ def polish_splits(p: TacProblem, sol: TopologySolution, *, max_iter: int = 100) 
         return np.concatenate([model.eq.m @ x + model.eq.c, sums])
 
     bounds = [(lo / s, hi / s) for lo, hi in model.bounds] + [(1e-3, 1.0)] * len(branches)
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore")
-        res = minimize(fun, z0, method="SLSQP", bounds=bounds,
-                       constraints=[{"type": "ineq", "fun": ineq}, {"type": "eq", "fun": eq}],
-                       options={"maxiter": max_iter, "ftol": 1e-12})
-    z = np.clip(res.x, [b[0] for b in bounds], [b[1] for b in bounds])
-    if np.min(ineq(z), initial=0.0) < -1e-8 or np.max(np.abs(eq(z)), initial=0.0) > 1e-8:
+    lo_b, hi_b = [b[0] for b in bounds], [b[1] for b in bounds]
+    guesses = [z0]
+    rng = np.random.default_rng(seed)
+    for _ in range(20 * starts):   # the same loads, flow fractions moved at random (each group's sum is 1)
+        if len(guesses) > starts:
+            break
+        z = z0.copy()
+        w = rng.uniform(0.1, 0.6)
+        for m in members:
+            idx = n + np.array(m)
+            z[idx] = (1 - w) * z0[idx] + w * rng.dirichlet(np.ones(len(m)))
+        z = np.clip(z, lo_b, hi_b)
+        if np.min(ineq(z), initial=0.0) >= 0.0:   # feasible starts only
+            guesses.append(z)
+
+    def stop_at_deadline(_z):
+        if deadline is not None and time.monotonic() > deadline:
+            raise StopIteration
+
+    best_z, best_f = None, np.inf
+    for n_start, z_start in enumerate(guesses):
+        if n_start and deadline is not None and time.monotonic() > deadline:
+            break
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            res = minimize(fun, z_start, method="SLSQP", bounds=bounds,
+                           constraints=[{"type": "ineq", "fun": ineq}, {"type": "eq", "fun": eq}],
+                           options={"maxiter": max_iter, "ftol": 1e-12}, callback=stop_at_deadline)
+        z = np.clip(res.x, lo_b, hi_b)
+        if np.min(ineq(z), initial=0.0) < -1e-8 or np.max(np.abs(eq(z)), initial=0.0) > 1e-8:
+            continue
+        if fun(z) < best_f:
+            best_z, best_f = z, fun(z)
+    if best_z is None:
         return sol
+    z = best_z
     x, fr = unpack(z)
     tac = fun(z) * tac0
     if not tac < sol.tac:

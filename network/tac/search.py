@@ -22,7 +22,11 @@ The sequence (DEVELOPERS.md, "Method notes"):
 4. One wall-clock budget (:mod:`heatloom.network.tac.budget`): the time limit is the whole run's; each
    solve gets a share of what is left, and one that stops without a solution leaves the run to its other
    starts (the utilities-only network is always one), with a note.
-5. The best network is built with its temperatures, sized with the exact LMTD, costed from its own
+5. A last polish (:func:`heatloom.network.tac.nlp.polish_cheapest`, in the last :data:`FINAL_RESERVE` of
+   the time limit, problems of up to 20 streams): the split fractions of the cheapest networks with stream
+   splits are freed again from their own and from random fractions: the optimum of a split network with
+   non-isothermal mixing need not be the local one next to isothermal mixing.
+6. The best network is built with its temperatures, sized with the exact LMTD, costed from its own
    temperatures and checked by :func:`heatloom.network.structure.check_network` with ΔTmin = EMAT.
 
 There is no ΔTmin: only the exchanger minimum approach temperature (EMAT) bounds the design.  The search is
@@ -57,6 +61,7 @@ from .nlp import (
     Topology,
     TopologySolution,
     make_problem,
+    polish_cheapest,
     polish_splits,
     solve_topology,
     unit_costs,
@@ -87,6 +92,9 @@ RESTART = 8
 POLISH_WITHIN = 0.003
 """Topologies with stream splits whose isothermal-mixing cost is within this of the best found [-] have their
 split fractions freed (:func:`heatloom.network.tac.nlp.polish_splits`)."""
+
+FINAL_RESERVE = 0.03
+"""Part of the time limit kept from the search for that last polish [-]."""
 
 PATIENCE = 400
 """Neighbours tried in a row without improvement before a local search stops [-]: small topologies are
@@ -169,7 +177,7 @@ class _Search:
                 if sol2 is not None and sol2.tac < sol.tac:
                     sol = sol2
         if sol is not None and self.polish and sol.tac < self.best_tac * (1 + POLISH_WITHIN):
-            sol = polish_splits(self.p, sol)
+            sol = polish_splits(self.p, sol, deadline=self.deadline)
         if sol is not None:
             self.best_tac = min(self.best_tac, sol.tac)
         self.cache[key] = sol
@@ -533,7 +541,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     if not (time_limit > 0) or not np.isfinite(time_limit):
         raise InputError(f"time limit must be a finite number of seconds > 0, got {time_limit!r}")
     budget = Budget(float(time_limit))
-    deadline = budget.deadline
+    deadline = budget.deadline - FINAL_RESERVE * float(time_limit)   # the search's; the rest for the last polish
     notes: list[str] = [f"EMAT {emat:g} K at both ends of every unit (no ΔTmin)"]
     if utilities is None:
         utilities = ideal_utilities(streams, emat)
@@ -614,9 +622,10 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         if not candidates:
             raise InfeasibleError(f"no network keeps EMAT {emat:g} K: some stream cannot be served by any utility")
         order = sorted(range(len(candidates)), key=lambda n: candidates[n].tac)
-        current = [candidates[order[s % len(order)]] for s in range(starts)]
-        if first is not None:
-            current[0] = first
+        # start 0 from ``first`` (already under way), the others from the cheapest of the rest
+        pool_order = ([first] if first is not None else []) + \
+            [candidates[n] for n in order if candidates[n] is not first]
+        current = [pool_order[s % len(pool_order)] for s in range(starts)]
         best = min(current, key=lambda s: s.tac)
         if progress is not None:
             progress(best.tac, 0, epochs)
@@ -668,6 +677,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     # the best network that passes the final check (never expected to fail; if it does, the next best is kept)
     failures: list[str] = []
     ranked = sorted({id(c): c for c in (best, *current, *candidates)}.values(), key=lambda c: c.tac)
+    ranked = polish_cheapest(p, ranked, budget.deadline)
     for sol in ranked:
         try:
             extra = [f"the {len(failures)} cheaper network(s) found failed the final check ({'; '.join(failures)}); "

@@ -204,16 +204,44 @@ def unit_estimates(p: TacProblem, sol: TopologySolution) -> dict:
 # ------------------------------------------------------------------------------------ MER topology
 
 def topology_from_network(p: TacProblem, net: Network) -> Topology | None:
-    """Lay the exchangers of a network into stages along every stream (None if they cannot be).
+    """Lay the exchangers of a network into stages along every stream (None if no part of it can be).
 
     Units of a stream are ordered from its hot end; units with the same temperatures on a stream are its
     parallel branches and share a stage.  Each unit's stage is the length of the longest chain of units
-    before it; a network whose orders conflict (a loop of precedences) has no stagewise form.  Utility
-    units are put at the stream ends, one per stream that uses any.
+    before it; a network whose orders conflict (a loop of precedences, or a split branch that carries
+    units of one stream at different temperatures) has no stagewise form: then its smallest exchangers are
+    left out one by one until the rest has one, and the streams that lost an exchanger get a utility unit
+    at their end where a utility can serve them (the search may add matches back).  Utility units are put
+    at the stream ends, one per stream that uses any.
     """
     hot_idx = {n: k for k, n in enumerate(p.hot_names)}
     cold_idx = {n: k for k, n in enumerate(p.cold_names)}
     ex = [e for e in net.exchangers if e.hot in hot_idx and e.cold in cold_idx]
+    heaters = {(cold_idx[h.cold], lv) for h in net.heaters if h.cold in cold_idx
+               for lv, u in enumerate(p.heat_levels) if u.name == h.utility}
+    coolers = {(hot_idx[c.hot], lv) for c in net.coolers if c.hot in hot_idx
+               for lv, u in enumerate(p.cool_levels) if u.name == c.utility}
+    left_out: list = []
+    while True:
+        matches = _stagewise_matches(ex, hot_idx, cold_idx)
+        if matches is not None or not ex:
+            break
+        smallest = min(range(len(ex)), key=lambda n: ex[n].duty)
+        left_out.append(ex.pop(smallest))
+    if matches is None:
+        return None
+    for e in left_out:
+        i, j = hot_idx[e.hot], cold_idx[e.cold]
+        if not any(c[0] == i for c in coolers):
+            coolers.update((i, lv) for lv in range(len(p.cool_levels))[-1:] if p.cool_level_possible(i, lv))
+        if not any(h[0] == j for h in heaters):
+            heaters.update((j, lv) for lv in range(len(p.heat_levels))[-1:] if p.heat_level_possible(j, lv))
+    stages = max((k for (_, _, k) in matches), default=0) + 1
+    return Topology(stages, frozenset(matches), frozenset(heaters), frozenset(coolers))
+
+
+def _stagewise_matches(ex: list, hot_idx: dict, cold_idx: dict) -> set | None:
+    """(hot, cold, stage) of every exchanger of ``ex`` laid into stages, or None when their orders conflict."""
     parent = list(range(len(ex)))
 
     def find(a):
@@ -266,12 +294,7 @@ def topology_from_network(p: TacProblem, net: Network) -> Topology | None:
         if key in matches:
             return None
         matches.add(key)
-    heaters = {(cold_idx[h.cold], lv) for h in net.heaters if h.cold in cold_idx
-               for lv, u in enumerate(p.heat_levels) if u.name == h.utility}
-    coolers = {(hot_idx[c.hot], lv) for c in net.coolers if c.hot in hot_idx
-               for lv, u in enumerate(p.cool_levels) if u.name == c.utility}
-    stages = max((k for (_, _, k) in matches), default=0) + 1
-    return Topology(stages, frozenset(matches), frozenset(heaters), frozenset(coolers))
+    return matches
 
 
 def mer_network(streams, dt_min: float, utilities, budget: Budget, *, costs=None, solver=None,

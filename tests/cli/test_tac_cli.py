@@ -80,7 +80,10 @@ def test_json_shape_emat_and_independent_tac(capsys, files):
     for x in data["coolers"]:
         area = x["duty"] / (0.8 * ht.LMTD(x["hot_in"], x["hot_out"], x["utility_in"], x["utility_out"]))
         tac += 1000 * area ** 0.6 + 20 * x["duty"]
-    assert data["total_annual_cost"] == pytest.approx(tac, rel=1e-9)
+    # the JSON rounds temperatures to 1e-3 K (heatloom.defaults.OUTPUT_PRECISION): with every end approach
+    # >= 1 K each log mean is then within 1e-3 of the unrounded one, each area^0.6 within 6e-4, and the TAC too
+    # (a network with non-isothermal split branches has temperatures that are not round numbers)
+    assert data["total_annual_cost"] == pytest.approx(tac, rel=1e-3)
     # every unit keeps EMAT 1 K at both ends
     for e in data["exchangers"]:
         assert min(e["hot_in"] - e["cold_out"], e["hot_out"] - e["cold_in"]) >= 1.0 - 1e-6

@@ -570,3 +570,108 @@ def test_a_network_failing_the_final_check_is_never_returned(monkeypatch):
     assert net.total_annual_cost >= calls[0] and len(calls) >= 2
     assert_sound(net, data, streams, utilities)
     assert any("failed the final check (exchanger H1→C1" in n for n in net.notes)
+
+
+# ------------------------------------------------------------- two hot utilities, non-isothermal split branches
+
+@pytest.mark.slow
+def test_two_hot_utilities_on_a_published_problem_keep_the_energy_targets():
+    # Roetzel, Luo & Chen 2020, Table 6.23 data and its published law and prices, plus one invented hot
+    # utility: medium-pressure steam condensing at 287 °C (560 K), 70 per kW·year, h 3.5 (invented).  The
+    # network's utility duties are checked against the problem table algorithm with the same three utilities
+    # (Linnhoff & Flower 1978; the cheapest placement uses as much of the cooler steam as the cascade allows,
+    # so no network can use less of the dearer 650 K utility, nor less hot utility in all), and every heater
+    # is recomputed with ht.LMTD.
+    from heatloom.pinch.targets import target
+
+    data, streams = load_reference("synthesis_colberg_morari_3h4c")
+    utilities = reference_utilities(data)
+    mp = Utility("MP", 560 - 273.15, 560 - 273.15, 70.0, UtilityKind.HOT, 3.5)
+    utilities = [*utilities, mp]
+    costs = cost_settings(data["cost_law"])
+    emat = 1.0
+    net = design_tac(streams, utilities, costs=costs, emat=emat, seed=0, starts=1, rounds=2, workers=1,
+                     milp_iterations=2, time_limit=120)
+    check_network(net, streams, utilities, dt_min=emat)
+    assert min(min(pair) for pair in end_approaches(net)) >= emat - 1e-6
+    goal = target(streams, emat, utilities)
+    duty = {u.name: sum(x.duty for x in net.heaters if x.utility == u.name) for u in utilities if u.is_hot}
+    least = {d.utility.name: d.duty for d in goal.placement.duties}
+    assert sum(duty.values()) >= goal.hot_utility - 1e-6
+    assert duty["HU"] >= least["HU"] - 1e-6
+    # the utility levels of a stream in series, cooler steam first
+    for s in {x.cold for x in net.heaters}:
+        units = sorted((x for x in net.heaters if x.cold == s), key=lambda x: x.cold_in)
+        for a, b in zip(units, units[1:]):
+            assert a.cold_out == pytest.approx(b.cold_in)
+            assert {a.utility, b.utility} == {"MP", "HU"} and a.utility == "MP"
+    h = {s.name: s.segments[0].film_coefficient for s in streams}
+    hu = {u.name: u for u in utilities}
+    a, b, c = published_laws(data["cost_law"])["heater"]
+    for x in net.heaters:
+        u = 1.0 / (1.0 / hu[x.utility].film_coefficient + 1.0 / h[x.cold])
+        # isothermal steam: ht.LMTD needs a glide; 1e-6 K changes the area by less than 1e-6
+        area = x.duty / (u * ht.LMTD(x.utility_in, x.utility_out - 1e-6, x.cold_in, x.cold_out))
+        assert x.area == pytest.approx(area, rel=1e-5)
+        assert x.cost == pytest.approx(a + b * area ** c, rel=1e-5)
+    operating = sum(x.duty * hu[x.utility].cost for x in (*net.heaters, *net.coolers))
+    assert net.operating_cost == pytest.approx(operating, rel=1e-12)
+
+
+def test_free_split_fractions_with_random_restarts_never_cost_more_and_keep_emat():
+    # Roetzel, Luo & Chen 2020, Table 6.16 data and law; a fixed two-stage topology with H1 split over C1 and
+    # C2 and C1 split over H1 and H2 in the first stage.  Freeing the flow fractions (non-isothermal mixing)
+    # from the isothermal loads, and again from random fractions, never costs more than isothermal mixing;
+    # each branch's outlet follows its own energy balance (duty = f·CP·ΔT), the branches mix to the
+    # stage outlet of the stream's energy balance, and the network's TAC is recomputed with ht.LMTD.
+    from heatloom.network.tac.nlp import polish_splits
+    from heatloom.network.tac.search import network_from_solution
+
+    data, streams = load_reference("synthesis_yee_grossmann_2h2c")
+    utilities = reference_utilities(data)
+    costs = cost_settings(data["cost_law"])
+    p = make_problem(streams, utilities, costs, 1.0)
+    top = Topology(2, frozenset({(0, 0, 0), (0, 1, 0), (1, 0, 0), (0, 0, 1)}), frozenset({(0, 0)}),
+                   frozenset({(1, 0)}))
+    iso = solve_topology(p, top, extra_vertex=True)
+    assert iso is not None and iso.fractions is None
+    once = polish_splits(p, iso)
+    more = polish_splits(p, iso, starts=3, seed=5)
+    assert once.tac <= iso.tac and more.tac <= once.tac + 1e-9 * once.tac
+    assert more.fractions is not None
+    net = network_from_solution(p, more, streams, utilities, costs)
+    assert_sound(net, data, streams, utilities)
+    cp = {s.name: s.segments[0].heat_capacity_flow for s in streams}
+    for e in net.exchangers:
+        assert e.duty == pytest.approx(e.hot_fraction * cp[e.hot] * (e.hot_in - e.hot_out), rel=1e-9)
+        assert e.duty == pytest.approx(e.cold_fraction * cp[e.cold] * (e.cold_out - e.cold_in), rel=1e-9)
+    h1 = [e for e in net.exchangers if e.hot == "H1" and e.stage == 0]
+    assert sum(e.hot_fraction for e in h1) == pytest.approx(1.0)
+    mixed = sum(e.hot_fraction * e.hot_out for e in h1)
+    assert mixed == pytest.approx(h1[0].hot_in - sum(e.duty for e in h1) / cp["H1"], rel=1e-9)
+
+
+def test_a_network_without_stagewise_form_gives_a_topology_without_its_smallest_conflicting_unit():
+    # Roetzel, Luo & Chen 2020, Table 6.16 data (streams in °C).  Hand-made layout: C1 split into two
+    # branches over the same C1 range, both heated by H1, one after the other along H1 (a branch carrying
+    # units at different H1 temperatures has no stagewise form), and H2-C2 alone.  The smaller H1-C1 unit is
+    # left out; H1 and C1 then get a utility unit at their ends, and the topology is solvable.
+    from heatloom.network.structure import Exchanger, Network
+
+    data, streams = load_reference("synthesis_yee_grossmann_2h2c")
+    p = make_problem(streams, reference_utilities(data), cost_settings(data["cost_law"]), 1.0)
+    common = {"area": 1.0, "cost": 0.0, "u": 0.8, "lmtd": 10.0, "region": "whole", "stage": 0}
+    ex = (Exchanger("H1", "C1", hot_in=169.85, hot_out=150.0, cold_in=40.0, cold_out=90.0, hot_fraction=1.0,
+                    cold_fraction=0.6, duty=595.5, **common),
+          Exchanger("H1", "C1", hot_in=150.0, hot_out=140.0, cold_in=40.0, cold_out=90.0, hot_fraction=1.0,
+                    cold_fraction=0.4, duty=300.0, **common),
+          Exchanger("H2", "C2", hot_in=149.85, hot_out=120.0, cold_in=79.85, cold_out=90.0, hot_fraction=1.0,
+                    cold_fraction=1.0, duty=447.75, **common))
+    net = Network(ex, (), (), 1.0, capital_cost=0.0, operating_cost=0.0, total_annual_cost=0.0, currency="USD")
+    top = topology_from_network(p, net)
+    assert top is not None
+    assert sorted((i, j) for (i, j, _) in top.matches) == [(0, 0), (1, 1)]
+    assert (0, 0) in top.coolers and (0, 0) in top.heaters     # H1 cooled, C1 heated at their ends
+    # the hand-made layout has no utility units of its own: with those of H2 and C2 the topology is solvable
+    full = top.replace(heaters=top.heaters | {(1, 0)}, coolers=top.coolers | {(1, 0)})
+    assert solve_topology(p, full, extra_vertex=True) is not None
