@@ -55,6 +55,7 @@ __all__ = [
     "solve",
     "new_variable",
     "Budget",
+    "MIN_SHARE",
 ]
 
 
@@ -469,12 +470,19 @@ def new_variable(problem: pulp.LpProblem, name: str, low=None, up=None, cat=pulp
     return pulp.LpVariable(name, low, up, cat)  # pragma: no cover - older PuLP
 
 
-class Budget:
-    """One wall-clock budget shared by the solves of a run.
+MIN_SHARE = 0.2
+"""Shortest share worth starting an optional solve with [s] (:meth:`Budget.share_or_none`); below it the solve
+is skipped, and the notes say so."""
 
-    Every solve asks for its share of what is left (:meth:`share`); a part of the run that holds several
-    solves takes a sub-budget (:meth:`part`) that draws on the same clock.  Solves that stop at their
-    share are collected in :attr:`hits` (shared with every part), so the run can say which ones did.
+
+class Budget:
+    """One wall-clock budget shared by the solves of a run (MER design, TAC search).
+
+    Every solve asks for its share of what is left (:meth:`share`, or :meth:`share_or_none` for a solve the
+    run can do without); a part of the run that holds several solves takes a sub-budget (:meth:`part`) that
+    draws on the same clock.  Every solve's report is kept in :attr:`reports`; those that stop at their share
+    are collected in :attr:`hits` and the skipped or failed ones in :attr:`notes` (all shared with every part),
+    so the run can say which ones did (:meth:`summary`).
 
     Parameters
     ----------
@@ -482,6 +490,8 @@ class Budget:
         Wall-clock time of the whole run [s], > 0.
     parent : Budget, optional
         The budget this one is a part of (internal; use :meth:`part`).
+    clock : callable, optional
+        Monotonic clock [s]; ``time.monotonic`` by default (a test can give a fake one).
 
     Examples
     --------
@@ -491,27 +501,47 @@ class Budget:
     >>> p = b.part(0.25)
     >>> p.total <= 15.0, p.hits is b.hits
     (True, True)
+    >>> now = [0.0]
+    >>> b = Budget(100.0, clock=lambda: now[0]); now[0] = 99.9
+    >>> b.share_or_none(1.0) is None, round(b.remaining, 6)     # 0.1 s left: not worth a solve
+    (True, 0.1)
     """
 
     clock = staticmethod(time.monotonic)
     """The clock every budget reads [s] (a class attribute, so a test can replace it)."""
 
-    def __init__(self, total: float, parent: Budget | None = None) -> None:
+    def __init__(self, total: float, parent: Budget | None = None, *, clock=None) -> None:
         try:
             total = float(total)
         except (TypeError, ValueError):
             raise InputError(f"time limit must be a number of seconds > 0, got {total!r}") from None
         if not (total > 0) or not math.isfinite(total):
             raise InputError(f"time limit must be a finite number of seconds > 0, got {total!r}")
+        if clock is not None:
+            self.clock = clock
+        elif parent is not None:
+            self.clock = parent.clock
         self.total = total
         self.start = self.clock()
         self.root = parent.root if parent is not None else self
         self.hits: list[SolveReport] = parent.hits if parent is not None else []
+        self.reports: list[SolveReport] = parent.reports if parent is not None else []
+        self.notes: list[str] = parent.notes if parent is not None else []
 
     @property
     def remaining(self) -> float:
         """Time left of this budget [s], never below 0."""
         return max(0.0, self.total - (self.clock() - self.start))
+
+    @property
+    def elapsed(self) -> float:
+        """Time used so far [s]."""
+        return self.clock() - self.start
+
+    @property
+    def deadline(self) -> float:
+        """Clock reading at which this budget is spent [s]."""
+        return self.start + self.total
 
     @property
     def floor(self) -> float:
@@ -533,22 +563,60 @@ class Budget:
         """
         return max(self.floor, min(1.0, max(fraction, 0.0)) * self.remaining)
 
+    def share_or_none(self, fraction: float, cap: float | None = None) -> float | None:
+        """``fraction`` of the time left, at most ``cap`` [s]; None when that is under :data:`MIN_SHARE`
+        (a solve the run can do without is then skipped).
+
+        Parameters
+        ----------
+        fraction : float
+            Part of the remaining time this solve may use [-], in (0, 1].
+        cap : float, optional
+            Longest share whatever remains [s].
+        """
+        limit = fraction * self.remaining
+        if cap is not None:
+            limit = min(limit, cap)
+        return limit if limit >= MIN_SHARE else None
+
     def part(self, fraction: float) -> Budget:
         """A sub-budget of ``fraction`` of what is left [-] (at least twice :attr:`floor` while that is
-        left), on the same clock and list of hits."""
+        left), on the same clock and lists of reports, hits and notes."""
         left = self.remaining
         return Budget(max(min(1.0, fraction) * left, min(2 * self.floor, left), 1e-9), parent=self)
 
     def record(self, report: SolveReport) -> SolveReport:
-        """Note a solve that stopped at its limit (time limit with or without a solution); return it."""
+        """Keep a solve's report, and note it when it stopped at its limit (with or without a solution)."""
+        self.reports.append(report)
         if report.status in (SolveStatus.TIME_LIMIT, SolveStatus.ERROR):
             self.hits.append(report)
         return report
+
+    def solve(self, problem, solver, *, fraction: float, cap: float | None, name: str) -> SolveReport | None:
+        """Solve a PuLP problem within its share (:meth:`share_or_none`); None, with a note, when skipped or
+        when the solver fails.  A report without a solution is returned for the caller to fall back on: it
+        never raises for a solve that stops without one."""
+        limit = self.share_or_none(fraction, cap)
+        if limit is None:
+            self.notes.append(f"'{name}' skipped: the time limit of {self.root.total:g} s was all but spent")
+            return None
+        try:
+            report = solve(problem, solver, time_limit=limit, name=name, check=False)
+        except SolverError as exc:
+            self.notes.append(f"'{name}' failed ({exc}); the run went on without it")
+            return None
+        return self.record(report)
 
     def hits_note(self) -> str:
         """One sentence naming the solves that stopped at their share ("" when none did)."""
         if not self.hits:
             return ""
-        parts = [f"'{r.problem}' ({r.time_limit:.3g} s, {r.status.value})" for r in self.hits]
+        parts = [f"'{r.problem}' ({r.time_limit:.3g} s, "
+                 + ("best solution kept" if r.status is SolveStatus.TIME_LIMIT else f"no solution: {r.detail}")
+                 + ")" for r in self.hits]
         return (f"time budget {self.root.total:g} s for the whole run; solves that stopped at their share: "
                 + ", ".join(parts))
+
+    def summary(self) -> list[str]:
+        """Notes for the result: skipped or failed solves, then those that stopped at their share."""
+        return list(self.notes) + ([self.hits_note()] if self.hits else [])

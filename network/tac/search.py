@@ -19,7 +19,7 @@ The sequence (DEVELOPERS.md, "Method notes"):
    local optima are kicked by a few random moves, more as the walk stalls.  Several starts run in
    parallel in local processes (``concurrent.futures``), each with its own random stream derived from
    ``seed``; start 0 begins while the MILPs are being solved.
-4. One wall-clock budget (:mod:`heatloom.network.tac.budget`): the time limit is the whole run's; each
+4. One wall-clock budget (:class:`heatloom.network.solvers.Budget`): the time limit is the whole run's; each
    solve gets a share of what is left, and one that stops without a solution leaves the run to its other
    starts (the utilities-only network is always one), with a note.
 5. A last polish (:func:`heatloom.network.tac.nlp.polish_cheapest`, in the last :data:`FINAL_RESERVE` of
@@ -54,8 +54,8 @@ from ...equipment.sizing import log_mean
 from ...errors import InfeasibleError, InputError
 from ...model import StreamTable, Utility
 from ...model.costs import CostSettings, UnitKind
+from ..solvers import Budget
 from ..structure import Cooler, Exchanger, Heater, Network, check_network
-from .budget import Budget
 from .nlp import (
     TacProblem,
     Topology,
@@ -485,7 +485,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         Stages K of the MILP [-]; max(#hot, #cold) when omitted.  The search may use up to 2K.
     time_limit : float
         Wall-clock limit of the whole design [s]: every solve inside (the MER start, the stagewise MILPs)
-        is given its share of what is left (:class:`heatloom.network.tac.budget.Budget`), and the search
+        is given its share of what is left (:class:`heatloom.network.solvers.Budget`), and the search
         stops when it is reached; the notes say which solves hit their share.  A solve that stops without
         a solution falls back to the next start, with a note; it never aborts the run.
     seed : int
@@ -653,7 +653,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     finally:
         if pool is not None:
             pool.shutdown(cancel_futures=True)
-    wall = budget.elapsed()
+    wall = budget.elapsed
     notes += budget.summary()
     notes.append(f"TAC search: {len(candidates)} starting topologies ({', '.join(sources)}); {starts} start(s) × "
                  f"{rounds} rounds of iterated local search, seed {seed}; {evals} topologies refined against the "

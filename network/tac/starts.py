@@ -28,9 +28,8 @@ import pulp
 from ...equipment.sizing import log_mean
 from ...errors import InfeasibleError, InputError, SolverError
 from ...model.costs import UnitKind
-from ..solvers import new_variable
+from ..solvers import Budget, new_variable
 from ..structure import Network
-from .budget import Budget
 from .nlp import TacProblem, Topology, TopologySolution, unit_costs
 
 __all__ = ["stagewise_milp", "unit_estimates", "topology_from_network", "mer_network", "MER_SHARE", "MER_CAP"]
@@ -320,7 +319,7 @@ def mer_network(streams, dt_min: float, utilities, budget: Budget, *, costs=None
     from ..design import design_mer
 
     label = f"MER network at ΔTmin {dt_min:g} K"
-    limit = budget.share(MER_SHARE, MER_CAP)
+    limit = budget.share_or_none(MER_SHARE, MER_CAP)
     if limit is None:
         budget.notes.append(f"no {label} as a starting topology: the time limit was all but spent")
         return None

@@ -19,9 +19,8 @@ from heatloom.errors import InputError, SolverError
 from heatloom.model import Segment, Stream, StreamTable, Utility, UtilityKind
 from heatloom.model.costs import CostLaw, CostSettings
 from heatloom.network.design import design_mer
-from heatloom.network.solvers import SolveReport, SolveStatus
+from heatloom.network.solvers import Budget, SolveReport, SolveStatus
 from heatloom.network.structure import check_network
-from heatloom.network.tac.budget import Budget
 from heatloom.network.tac.nlp import Topology, _log_mean_and_gradient, make_problem, solve_topology
 from heatloom.network.tac.search import design_tac
 from heatloom.network.tac.starts import stagewise_milp, topology_from_network
@@ -308,14 +307,15 @@ def test_solves_without_a_solution_fall_back_with_a_note(monkeypatch):
     # large problem, and every stagewise MILP stops without a solution: the run falls back to its other
     # starts, returns a sound network (TAC recomputed with ht.LMTD) and says what happened.
     monkeypatch.setattr("heatloom.network.design.design_mer", mer_times_out)
-    monkeypatch.setattr("heatloom.network.tac.budget.solve", no_solution_report)
+    monkeypatch.setattr("heatloom.network.solvers.solve", no_solution_report)
     data, streams, utilities, net = design_reference("synthesis_yee_grossmann_2h2c", seed=0, starts=1, rounds=1,
                                                      workers=1, time_limit=120)
     check_network(net, streams, utilities, dt_min=1.0, contributions=False)
     assert_sound(net, data, streams, utilities)
     assert any("no MER network at ΔTmin 10 K as a starting topology" in n and "Time limit reached" in n
                for n in net.notes)
-    assert any("'TAC stagewise MILP, iteration 1' stopped without a solution" in n for n in net.notes)
+    assert any("stopped at their share" in n and "'TAC stagewise MILP, iteration 1' (" in n and "no solution: Time limit"
+               in n for n in net.notes)
     assert any("'TAC stagewise MILP, iteration 1' gave no topology" in n for n in net.notes)
     assert any(n.startswith("TAC search: 1 starting topologies (utilities only)") for n in net.notes)
 
@@ -323,7 +323,7 @@ def test_solves_without_a_solution_fall_back_with_a_note(monkeypatch):
 def test_twenty_streams_with_every_solve_failing_still_give_a_network(monkeypatch):
     # invented data (ten hot, ten cold streams); a property check only: the network passes check_network
     monkeypatch.setattr("heatloom.network.design.design_mer", mer_times_out)
-    monkeypatch.setattr("heatloom.network.tac.budget.solve", no_solution_report)
+    monkeypatch.setattr("heatloom.network.solvers.solve", no_solution_report)
     streams, utilities = invented_twenty_streams()
     net = design_tac(streams, utilities, seed=0, starts=1, rounds=0, workers=1, time_limit=60)
     check_network(net, streams, utilities, dt_min=1.0, contributions=False)
@@ -340,7 +340,7 @@ def test_every_solve_gets_at_most_what_is_left_and_the_notes_name_those_that_hit
     import time
 
     from heatloom.network import design
-    from heatloom.network.tac import budget as budget_module
+    from heatloom.network import solvers as budget_module
 
     total = 60.0
     given = []
@@ -365,9 +365,9 @@ def test_every_solve_gets_at_most_what_is_left_and_the_notes_name_those_that_hit
     assert [g[0] for g in given][:2] == ["MER", "TAC stagewise MILP, iteration 1"]
     for name, limit, left in given:
         assert 0 < limit <= left, name
-    hit = [n for n in net.notes if n.startswith(f"time limit {total:g} s for the whole run")]
-    assert len(hit) == 1 and "'TAC stagewise MILP, iteration 1' hit its share" in hit[0]
-    assert "iteration 2' hit" not in hit[0]
+    hit = [n for n in net.notes if n.startswith(f"time budget {total:g} s for the whole run")]
+    assert len(hit) == 1 and "'TAC stagewise MILP, iteration 1' (" in hit[0]
+    assert "iteration 2'" not in hit[0]
     assert_sound(net, data, streams, utilities)
 
 
@@ -376,13 +376,13 @@ def test_budget_shares_never_exceed_what_is_left():
     now = [0.0]
     b = Budget(100.0, clock=lambda: now[0])
     now[0] = 90.0
-    assert b.remaining() == pytest.approx(10.0)
-    assert b.share(0.5, cap=30.0) == pytest.approx(5.0)
-    assert b.share(0.5, cap=2.0) == pytest.approx(2.0)
+    assert b.remaining == pytest.approx(10.0)
+    assert b.share_or_none(0.5, cap=30.0) == pytest.approx(5.0)
+    assert b.share_or_none(0.5, cap=2.0) == pytest.approx(2.0)
     now[0] = 99.9
-    assert b.share(1.0) is None              # under MIN_SHARE: skipped
+    assert b.share_or_none(1.0) is None              # under MIN_SHARE: skipped
     now[0] = 150.0
-    assert b.remaining() == 0.0
+    assert b.remaining == 0.0
 
 
 # ------------------------------------------------------------------------------ ΔTmin contributions
