@@ -26,11 +26,12 @@ import sys
 import time
 from pathlib import Path
 
-import numpy as np
-
 from heatloom.model import Stream, StreamTable, Utility, UtilityKind
 from heatloom.model.costs import CostLaw, CostSettings
 from heatloom.network.tac.search import design_tac
+
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+from bench_design import generated  # noqa: E402  (the invented problems of the MER benchmark, same seed)
 
 REFERENCES = Path(__file__).resolve().parents[1] / "tests" / "data" / "references"
 LAW = re.compile(r"\s*(?:(?P<fixed>[\d.]+)\s*\+\s*)?(?P<per_area>[\d.]+)\s*\*\s*A(?:\s*\*\*\s*(?P<exp>[\d.]+))?"
@@ -61,24 +62,6 @@ def problem(path: Path):
         costs = CostSettings(annualised=True, exchanger=cost_law(laws["exchangers_and_coolers"]),
                              heater=cost_law(laws["heaters"]), cooler=cost_law(laws["exchangers_and_coolers"]))
     return data, streams, utilities, costs
-
-
-def generated(n: int, seed: int = 11) -> StreamTable:
-    """Invented streams of benchmarks/bench_design.py (a copy of its generator, same seed and sizes): supply and
-    target temperatures in 20-300 °C, CP 1-50 kW/K, film coefficients 0.3-2 kW/(m²·K), hot and cold in turn."""
-    rng = np.random.default_rng(seed + n)
-    streams = []
-    for i in range(n):
-        hot = i % 2 == 0
-        a, b = sorted(np.round(rng.uniform(20, 300, 2), 0))
-        if b - a < 10:
-            b = a + 10
-        ts, tt = (b, a) if hot else (a, b)
-        cp = float(np.round(rng.uniform(1, 50), 1))
-        h = float(np.round(rng.uniform(0.3, 2.0), 2))
-        streams.append(Stream.simple(f"{'H' if hot else 'C'}{i // 2 + 1}", float(ts), float(tt), cp,
-                                     film_coefficient=h))
-    return StreamTable(streams)
 
 
 def generated_case(n: int):

@@ -338,7 +338,7 @@ def _network_section(study: Study, page: Page, net, section: str, what: str, key
                  ("total annual cost", net.total_annual_cost, f"{cur}/year")]
     return "".join([
         paragraph(intro), long_table(rows, f"The {what}", f"{key}-summary-table"),
-        frame_table(network_frame(net, cur), "Units: E exchangers, H heaters, C coolers", f"{key}-units-table"),
+        frame_table(network_frame(net, cur), "Units: X exchangers, HU heaters, CU coolers (names as on the grid diagram)", f"{key}-units-table"),
         page.figure(f"fig-{key}-grid", lambda: grid_diagram(net, study.streams,
                                                              approach="EMAT" if key == "tac" else "ΔTmin"),
                     f"Grid diagram of the {what}: hot streams above, cold streams below; diamonds joined by a "
