@@ -323,7 +323,7 @@ def evolve(network: Network, streams: StreamTable, utilities: Sequence[Utility] 
            dt_min: float | None = None, *, min_duty: float | None = None, min_area: float | None = None,
            break_loops: bool = False, costs: CostSettings | None = None,
            default_film_coefficient: float | None = None, contributions: bool = True,
-           max_steps: int = 100) -> Evolution:
+           max_steps: int = 100, exchanger_type=None, geometry_options=None) -> Evolution:
     """Remove the units of a network below a duty or an area, breaking loops and relaxing paths.
 
     Units are taken smallest duty first.  For each, every heat-load loop and every utility path through it
@@ -359,6 +359,9 @@ def evolve(network: Network, streams: StreamTable, utilities: Sequence[Utility] 
         a lowest-TAC design, whose every unit needs ``dt_min`` [-].
     max_steps : int, optional
         Most units removed [-].
+    exchanger_type, geometry_options : optional
+        Size the evolved units as this kind, as the design did (:func:`heatloom.network.sizing.size_network`);
+        counter-current when omitted.
 
     Returns
     -------
@@ -414,7 +417,8 @@ def evolve(network: Network, streams: StreamTable, utilities: Sequence[Utility] 
 
     def sized(duties: dict[str, float]) -> Network:
         return size_network(state.network(duties, network), streams, utilities, costs=costs,
-                            default_film_coefficient=default_film_coefficient)
+                            default_film_coefficient=default_film_coefficient, exchanger_type=exchanger_type,
+                            geometry_options=geometry_options)
 
     def area_of(current: Network) -> dict[str, float | None]:
         live = state.live()
@@ -463,7 +467,8 @@ def evolve(network: Network, streams: StreamTable, utilities: Sequence[Utility] 
                            f"(loop breaking and path relaxation, Linnhoff & Hindmarsh 1983); energy penalty "
                            f"+{current.hot_utility - network.hot_utility:.4g} kW hot, "
                            f"+{current.cold_utility - network.cold_utility:.4g} kW cold utility; units resized "
-                           "counter-current and recosted")
+                           f"({'as ' + getattr(exchanger_type, 'value', str(exchanger_type)) if exchanger_type else 'counter-current'})"
+                           " and recosted")
     final_notes += notes
     final = replace(current, notes=tuple(final_notes), dt_min=float(dt))
     check_network(final, streams, utilities, dt_min=dt, contributions=contributions)

@@ -93,6 +93,9 @@ def register(sub) -> None:
                        help="remove units of a smaller duty [kW] by loop breaking and path relaxation")
     rules.add_argument("--min-area", type=positive, default=None, metavar="M2",
                        help="remove units of a smaller area [m²] by loop breaking and path relaxation")
+    rules.add_argument("--break-loops", action="store_true",
+                       help="also remove the smallest unit of every heat-load loop while one can go (fewer units, "
+                            "each step's energy penalty printed)")
     tac = p.add_argument_group("--mode tac")
     tac.add_argument("--emat", type=positive, default=None, metavar="K",
                      help=f"exchanger minimum approach temperature at both ends of every unit [K] "
@@ -240,11 +243,14 @@ def run(args) -> int:
                          exchanger_type=kind, tube_diameter=args.tube_diameter,
                          hairpin_length=args.hairpin_length, **extra)
     evolution = None
-    if args.min_duty is not None or args.min_area is not None:
+    if args.min_duty is not None or args.min_area is not None or args.break_loops:
         from ..network.evolution import evolve
 
+        geometry = {} if tac else {"exchanger_type": kind, "geometry_options": {
+            "tube_diameter": args.tube_diameter, "hairpin_length": args.hairpin_length}}
         evolution = evolve(net, streams, utilities, dt_min, min_duty=args.min_duty, min_area=args.min_area,
-                           costs=costs, default_film_coefficient=args.default_h, contributions=not tac)
+                           break_loops=args.break_loops, costs=costs, default_film_coefficient=args.default_h,
+                           contributions=not tac, **geometry)
         net = evolution.network
     result = net.to_dict()
     if evolution is not None:

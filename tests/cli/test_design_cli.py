@@ -300,3 +300,19 @@ def test_console_table_names_every_unit_as_the_json_does_with_u_lmtd_f_and_shell
         assert str(e["shells"]) in rows[e["name"]].split()
     names = [u["name"] for kind in ("exchangers", "heaters", "coolers") for u in data[kind]]
     assert len(set(names)) == len(names) and not set(names) & {"1", "2", "3", "4"}
+
+
+def test_break_loops_removes_a_loop_unit_and_keeps_the_exchanger_type(capsys, sinnott):
+    # Sinnott Table 3.6 at ΔTmin 10 K: the MER network has one more unit than the loop-free minimum, so
+    # --break-loops removes one; the first law gives the penalty (every kW not recovered returns in both
+    # utilities), and the evolved units keep the 1-2 shell sizing asked for (F and shells on every unit).
+    code, out, _ = run(capsys, "design", sinnott, "--dtmin", "10", "--break-loops", "--exchanger-type",
+                       "shell-and-tube", "--json")
+    assert code == 0
+    data = json.loads(out)
+    evo = data["evolution"]
+    assert evo["units_after"] == evo["units_before"] - 1 == data["units"]
+    assert data["hot_utility"] == pytest.approx(50 + evo["hot_penalty"], abs=2e-3)
+    assert data["cold_utility"] == pytest.approx(30 + evo["cold_penalty"], abs=2e-3)
+    for e in data["exchangers"]:
+        assert e["shells"] >= 1 and 0.75 <= e["f_factor"] <= 1.0
