@@ -220,16 +220,18 @@ class Simulation:
     def to_network(self):
         """The simulated state as a :class:`heatloom.network.Network` (for grid diagrams and checks).
 
-        Units keep their names and their grid column as ``stage``; ``dt_min`` is the simulation's (0 when
-        none was given).
+        Units keep their names, their arrangement (the ``type`` of the units table) and their grid column as
+        ``stage``; ``dt_min`` is the simulation's (0 when none was given).
         """
         from ..network.structure import Cooler, Exchanger, Heater, Network
 
         column, _ = self.network.grid_positions()
         ex, he, co = [], [], []
         for u in self.units:
+            arrangement = self.network.unit(u.name).arrangement
             common = {"duty": u.duty, "area": u.area, "u": u.u, "stage": column[u.name], "region": "whole",
-                      "name": u.name}
+                      "name": u.name, "geometry": None if arrangement is ExchangerType.COUNTER_CURRENT
+                      else {"type": arrangement.value}}
             if u.role is UnitRole.EXCHANGER:
                 shells = self.network.unit(u.name).shells
                 ex.append(Exchanger(u.hot, u.cold, hot_in=u.hot_in, hot_out=u.hot_out, cold_in=u.cold_in,

@@ -423,3 +423,12 @@ def test_a_measured_shortfall_within_the_tolerance_is_a_note_not_a_problem():
     assert "leaves the network at 60.015 °C instead of its target 60 °C" in problem and "trim cooler" in problem
     with pytest.raises(InputError, match="balance tolerance"):
         simulate(net, balance_tolerance=0.5)
+
+
+@pytest.mark.parametrize(("arrangement", "shells", "word"), [(CC, 1, "counter-current"), (CO, 1, "co-current"),
+                                                            (ST, 2, "1-2"), (DP, 1, "double pipe")])
+def test_units_table_of_a_simulated_network_keeps_each_units_arrangement(arrangement, shells, word):
+    # the arrangement given in the network table comes back in the units table's `type` column (it was
+    # written counter-current for co-current and double-pipe units)
+    frame = simulate(one_exchanger(2.0, 3.0, 5.0, arrangement=arrangement, shells=shells)).to_network().to_frame()
+    assert frame.set_index("unit").loc["E", "type"] == word
