@@ -13,6 +13,7 @@ the fewest-matches MILP and the stagewise placement). Asserts nothing; run:
 
     python benchmarks/bench_design.py [--sizes 10 20 40 60 100] [--time-limit S] [--solver highs]
     python benchmarks/bench_design.py --quick          # 10 and 20 streams only
+    python benchmarks/bench_design.py --sizes 100 --notes   # and where the units come from, region by region
 """
 
 from __future__ import annotations
@@ -53,6 +54,8 @@ def main() -> None:
                     help="budget of each whole design [s] (default 60 s up to 40 streams, else 300 s)")
     ap.add_argument("--solver", default=None)
     ap.add_argument("--dtmin", type=float, default=10.0)
+    ap.add_argument("--notes", action="store_true",
+                    help="print each region's note: units, those for what the tick-off steps left, searches")
     args = ap.parse_args()
     sizes = [10, 20] if args.quick else args.sizes
     print(f"{'streams':>8} {'units':>6} {'target':>7} {'excess':>7} {'matches':>8} {'budget':>7} "
@@ -83,6 +86,10 @@ def main() -> None:
         print(f"{n:>8} {net.units:>6} {net.unit_target!s:>7} {excess:>7} "
               f"{matches[16:].split()[0] if matches else '-':>8} {limit:>7g} {wall:>9.2f} {checked:>6} "
               f"{fallbacks:>9} {method:>9}  {dict(statuses)}", flush=True)
+        if args.notes:
+            for note in net.notes:
+                if note.startswith("subnetwork"):
+                    print(f"{'':>8}   {note}")
 
 
 if __name__ == "__main__":

@@ -17,10 +17,16 @@ series.  A step is accepted only when
   its coldest shifted temperature down, a cold utility's demand from its hottest up, so every unit the
   cascade promises keeps ΔTmin over the utility's whole range).
 
+Most searches start at the region's pinch, as the pinch design method does: while a stream touches the
+pinch on its pinch side (above it a hot outlet, below it a cold outlet), a unit from the pinch out between
+two streams touching it, or a branch of one of them over its whole stretch taking all of the other (the
+splits the pinch design method makes when the heat capacity flow rate rule cannot be kept otherwise), and
+when neither is accepted a branch from the pinch over the stretch that takes all of the other stream.
 Among the accepted steps a required pair wins, then a step ticking off two sides at once, then the most
 vertical one, which keeps driving force for the rest: the least temperature excess over ΔTmin at the
-unit's two ends (summed, or the larger of the two), or the least heat the cascade loses, optionally
-after the steps at the pinch ends of both sides (the pinch design method's order, from the pinch out);
+unit's two ends (summed, or the larger of the two), the least heat the cascade loses, or the least largest
+share of the cascade's heat lost at one temperature (which spares the temperatures with little heat to
+spare), optionally after the steps at the pinch ends of both sides (from the pinch out);
 with a look-ahead, of the four best steps the first after which a tick-off step is still possible.  The search
 runs with these measures, then with randomly perturbed ones while time is left, and keeps the placement
 with the fewest units.  When no step is accepted, what is left is placed interval by interval
@@ -31,7 +37,9 @@ time is given and that gives fewer units.
 Besides ticking a side off at its ends, a step may split a stream: a branch of one piece over the stretch
 from one of its ends that keeps ΔTmin against the whole other piece takes all of that piece (the stream
 splits of the pinch design method), or a branch over a piece's whole stretch.  When no such step is
-accepted, a unit taking a part of the smaller side (90 % down to 10 %) keeps the search going.  A branch
+accepted and the cascade of what is left carries no heat past some inner temperature (a pinch of the
+remainder), the pieces crossing it are cut there and the search goes on; else a unit taking a part of the
+smaller side (90 % down to 10 %) keeps the search going.  A branch
 over part of a stretch and a partial unit leave as many pieces as before: each costs one unit above the
 target.  With forbidden pairs a remainder whose cascade holds may still have no placement; the method
 then returns no result and the caller uses another one.
@@ -50,14 +58,11 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .placement import PlacedUnit, Placement, Side, interval_placement, stage_model
-from .solvers import SolveReport, solve
+from .placement import PlacedUnit, Placement, Side
+from .remainder import REMAINDER_MILP_SIDES, place_remainder
+from .solvers import SolveReport
 
 __all__ = ["REMAINDER_MILP_SIDES", "TickOffResult", "cascade_feasible", "tick_off_placement"]
-
-REMAINDER_MILP_SIDES = 24
-"""Most sides (pieces) left over for which the stagewise MILP is tried on the remainder [-] (our choice:
-larger models do not solve in a share of the budget)."""
 
 
 @dataclass(frozen=True)
@@ -256,8 +261,9 @@ def _candidates(state: _State, hot: list[int], cold: list[int], allowed, tol: fl
         new = residual[None, :] - take_h(rows, cols) + take_c(rows, cols)
         good = new.min(axis=1) >= -tol
         loss = (residual.sum() - new.sum(axis=1)) / (points.size * heat)
+        ratio = ((residual[None, :] - new) / (residual[None, :] + 1e-3 * heat)).max(axis=1)
         for k, r, c in zip(np.flatnonzero(good), rows[good], cols[good]):
-            out.append((hot[r], cold[c], kind, float(Q[r, c]), (float(d1[r, c] + d2[r, c]), float(max(d1[r, c], d2[r, c])), float(loss[k])), bool(both[r, c])))
+            out.append((hot[r], cold[c], kind, float(Q[r, c]), (float(d1[r, c] + d2[r, c]), float(max(d1[r, c], d2[r, c])), float(loss[k]), float(ratio[k])), bool(both[r, c])))
 
     a_h = np.array([state.a[i] for i in hot])
     b_h = np.array([state.b[i] for i in hot])
@@ -331,20 +337,20 @@ def _branch_candidates(state: _State, hot: list[int], cold: list[int], allowed, 
                 if hi_in - cj_out >= need - 1e-9:   # from the hot inlet down to cold inlet + ΔTmin
                     e = min(max(hs.enthalpy(cj_in + need), a_i), b_i)
                     if e - a_i > tol and l_j < f_i * (e - a_i) * (1 - 1e-9):
-                        out.append((i, j, ("branch hot", a_i, e), l_j, (hi_in - cj_out,) * 3, False))
+                        out.append((i, j, ("branch hot", a_i, e), l_j, (hi_in - cj_out,) * 4, False))
                 if hi_out - cj_in >= need - 1e-9:   # from the hot outlet up to cold outlet + ΔTmin
                     e = min(max(hs.enthalpy(cj_out + need), a_i), b_i)
                     if b_i - e > tol and l_j < f_i * (b_i - e) * (1 - 1e-9):
-                        out.append((i, j, ("branch hot", e, b_i), l_j, (hi_out - cj_in,) * 3, False))
+                        out.append((i, j, ("branch hot", e, b_i), l_j, (hi_out - cj_in,) * 4, False))
             if l_i < l_j - tol:   # a branch of the cold piece takes all of the hot one
                 if hi_out - cj_in >= need - 1e-9:   # from the cold inlet up to hot inlet − ΔTmin
                     e = min(max(cs.enthalpy(hi_in - need), a_j), b_j)
                     if e - a_j > tol and l_i < f_j * (e - a_j) * (1 - 1e-9):
-                        out.append((i, j, ("branch cold", a_j, e), l_i, (hi_out - cj_in,) * 3, False))
+                        out.append((i, j, ("branch cold", a_j, e), l_i, (hi_out - cj_in,) * 4, False))
                 if hi_in - cj_out >= need - 1e-9:   # from the cold outlet down to hot outlet − ΔTmin
                     e = min(max(cs.enthalpy(hi_out - need), a_j), b_j)
                     if b_j - e > tol and l_i < f_j * (b_j - e) * (1 - 1e-9):
-                        out.append((i, j, ("branch cold", e, b_j), l_i, (hi_in - cj_out,) * 3, False))
+                        out.append((i, j, ("branch cold", e, b_j), l_i, (hi_in - cj_out,) * 4, False))
     return out
 
 
@@ -418,14 +424,93 @@ def _has_tick_off(state: _State, allowed, tol: float) -> bool:
     return bool(_candidates(state, hot, cold, allowed, tol, points, _residual(state, points, tol), "ends"))
 
 
+def _cut_at_pinches(state: _State, points: np.ndarray, residual: np.ndarray, tol: float) -> _State | None:
+    """The state with every piece that crosses an inner zero of the cascade (a pinch of what is left) cut
+    there, or None when no piece crosses one: no heat passes such a point, so the parts above and below it
+    are problems of their own, each cut part ticked off from the new pinch out."""
+    inner = points[1:-1][residual[1:-1] <= tol]
+    out = None
+    for k in range(len(state.side)):
+        s = state.of(k)
+        if s.utility or state.left(k) <= tol or not inner.size:
+            continue
+        a, b = state.a[k], state.b[k]
+        for e in sorted({e for e in (s.enthalpy(p - _shifted(s)) for p in inner)
+                         if a < e < b and state.f[k] * min(e - a, b - e) > tol}):
+            out = out or state.copy()
+            out.side.append(out.side[k])
+            out.a.append(e)
+            out.b.append(out.b[k])
+            out.f.append(out.f[k])
+            out.b[k] = e
+    return out
+
+
+def _pinch_steps(state: _State, allowed, tol: float, pinch_side, key, branches: bool = False):
+    """Yield (step, unit, state after it) for the tick-off steps at the region's pinch, best first by
+    ``key``, each checked as :func:`_search` checks its steps: a unit from the pinch out between pieces that touch the pinch, or a
+    branch of one over its whole stretch that takes all of the other (the stream splits of the pinch design
+    method when no partner has the larger heat capacity flow rate); with ``branches``, when none of those is
+    accepted, a branch from the pinch end over the stretch that takes all of the other piece (its heat capacity
+    flow rate then equals the other's: one piece more), until no step is accepted."""
+    above = pinch_side == (1, 0)
+
+    def pinch_ends(state):
+        return [(k, (1 if state.of(k).hot else 0) if above else (0 if state.of(k).hot else 1))
+                for k in range(len(state.side)) if not state.of(k).utility]
+
+    at_end = [state.of(k).temperature(state.a[k] if e == 0 else state.b[k]) + _shifted(state.of(k))
+              for k, e in pinch_ends(state)]
+    if not at_end:
+        return
+    p = min(at_end) if above else max(at_end)
+    while True:
+        at = [k for k, e in pinch_ends(state) if state.left(k) > tol and
+              abs(state.of(k).temperature(state.a[k] if e == 0 else state.b[k]) + _shifted(state.of(k)) - p)
+              <= 1e-9 * max(abs(p), 1.0)]
+        hot = [k for k in at if state.of(k).hot]
+        cold = [k for k in at if not state.of(k).hot]
+        if not (hot if above else cold):
+            return
+        points = _points(state, tol)
+        residual = _residual(state, points, tol)
+        cands = [c for c in _candidates(state, hot, cold, allowed, tol, points, residual, "ends")
+                 if c[2] == pinch_side]
+        cands += _candidates(state, hot, cold, allowed, tol, points, residual, "split")
+        found = False
+        for c in sorted(cands, key=key) + sorted([c for c in _branch_candidates(state, hot, cold, allowed, tol)
+                                                   if _from_pinch(state, c, above)], key=key) * branches:
+            trial, unit = _apply(state, c, tol)
+            if _unit_approach(state.of(c[0]), *unit[:3], state.of(c[1]), *unit[3:]) < -1e-9:
+                continue
+            if (_residual(trial, _points(trial, tol), tol) >= -tol).all():
+                state, found = trial, True
+                yield c, unit, state
+                break
+        if not found:
+            return
+
+
+def _from_pinch(state: _State, c, above: bool) -> bool:
+    """True when a branch step runs from the pinch end of its piece."""
+    kind, s0, s1 = c[2]
+    k = c[0] if kind == "branch hot" else c[1]
+    hot_end = kind == "branch hot"
+    return (s1 >= state.b[k]) if hot_end == above else (s0 <= state.a[k])
+
+
 def _search(sides: list[Side], allowed, required, tol: float, rng, noise: float, rule: int = 0,
-            lookahead: int = 1):
+            lookahead: int = 1, pinch_first: int = 2, cuts: bool = True):
     """One tick-off search; returns (units, state) with the state of what is left.
 
     ``rule`` picks the measure of a step's verticality [-]: 0 the sum of the excess approaches at the
     unit's two ends, 1 the larger of them, 2 the heat the cascade loses (the driving force the step
     spends); 3 to 5 the same, with the units at the pinch ends of both sides first (the pinch design
-    method's order, from the pinch out); ``noise`` [-] perturbs the measure at random.  With ``lookahead`` > 1 [-], of that many accepted steps
+    method's order, from the pinch out); 6 the largest share of the cascade's heat the step takes at one
+    temperature, 7 the same from the pinch ends out; ``noise`` [-] perturbs the measure at random.
+    ``pinch_first`` [-] places the steps at the region's pinch first (:func:`_pinch_steps`; 2 also with
+    branches over part of a stretch; 0 not; never with required pairs, which go first); ``cuts`` lets a stuck search cut the pieces at a pinch of what is left
+    (:func:`_cut_at_pinches`).  With ``lookahead`` > 1 [-], of that many accepted steps
     (best first) the first after which a tick-off step at the ends is still accepted is taken."""
     state = _State(sides)
     units = []
@@ -436,6 +521,16 @@ def _search(sides: list[Side], allowed, required, tol: float, rng, noise: float,
     cold_u = any(s.utility and not s.hot for s in sides)
     pinch_side = (1, 0) if hot_u and not cold_u else (0, 1) if cold_u and not hot_u else None
     span = max(max(s.temperatures) for s in sides) - min(min(s.temperatures) for s in sides) + 1.0
+    if pinch_first and pinch_side is not None and not required:   # the pinch design method: pinch first
+        def pinch_key(c):
+            measure = c[4][3] if rule >= 6 else c[4][rule % 3] / span if rule % 3 < 2 else c[4][2] * 10.0
+            return (not c[5], measure + (rng.random() * noise if noise else 0.0))
+
+        for c, unit, after in _pinch_steps(state, allowed, tol, pinch_side, pinch_key, pinch_first == 2):
+            state = after
+            i, j, kind, q = c[:4]
+            units.append((state.side[i], state.side[j], unit, q, kind if isinstance(kind, str) else "ends"))
+            placed_pairs.add((sides[state.side[i]].name, sides[state.side[j]].name))
     while True:
         hot = [k for k in range(len(state.side)) if state.of(k).hot and state.left(k) > tol]
         cold = [k for k in range(len(state.side)) if not state.of(k).hot and state.left(k) > tol]
@@ -449,11 +544,17 @@ def _search(sides: list[Side], allowed, required, tol: float, rng, noise: float,
         def key(c, state=state, pending=pending):
             i, j, kind, q, excess, both = c
             jitter = rng.random() * noise if noise else 0.0
-            measure = excess[rule % 3] / span if rule % 3 < 2 else excess[2] * 10.0
-            outward = rule >= 3 and kind != pinch_side   # from the pinch out first (pinch design method)
+            measure = excess[3] if rule >= 6 else excess[rule % 3] / span if rule % 3 < 2 else excess[2] * 10.0
+            outward = rule in (3, 4, 5, 7) and kind != pinch_side   # from the pinch out first (pinch design method)
             return ((state.of(i).name, state.of(j).name) not in pending, not both, outward, measure + jitter)
 
-        for mode in ("ends", "split", "branch", "0.9", "0.75", "0.5", "0.25", "0.1"):
+        cut = None
+        for mode in ("ends", "split", "cut", "branch", "0.9", "0.75", "0.5", "0.25", "0.1"):
+            if mode == "cut":   # stuck at a pinch of what is left: cut the pieces there, then tick off again
+                cut = _cut_at_pinches(state, points, residual, tol) if cuts else None
+                if cut is not None:
+                    break
+                continue
             cands = _candidates(state, hot, cold, allowed, tol, points, residual, mode)
             if mode[0].isdigit():
                 cands = [(*c[:2], ("part", *c[2]), *c[3:]) for c in cands]
@@ -476,6 +577,9 @@ def _search(sides: list[Side], allowed, required, tol: float, rng, noise: float,
                 c, unit, state = good[0]
                 chosen = (c, unit)
                 break
+        if cut is not None:
+            state = cut
+            continue
         if chosen is None:
             break
         (i, j, kind, q, _, _), unit = chosen
@@ -499,9 +603,8 @@ def _unit(hs: Side, cs: Side, unit, q) -> PlacedUnit:
 
 
 def _remainder(state: _State, tol: float, forbidden, solver=None, solve_time: float = 0.0):
-    """What the steps left: placed by the stagewise MILP when ``solve_time`` > 0 (pieces of at most
-    :data:`REMAINDER_MILP_SIDES` sides), else or without its solution interval by interval; the pieces go
-    under names of their own.  Returns (units or None, solve reports)."""
+    """What the steps left, placed by :func:`heatloom.network.remainder.place_remainder` (the pieces under
+    names of their own).  Returns (units or None, solve reports)."""
     pieces, names = [], {}
     for k in range(len(state.side)):
         if state.left(k) <= tol:
@@ -515,41 +618,12 @@ def _remainder(state: _State, tol: float, forbidden, solver=None, solve_time: fl
         es = [a] + [e for e in s.enthalpies if a < e < b] + [b]
         pieces.append(Side(name, s.hot, tuple(s.temperature(e) for e in es), tuple(f * (e - a) for e in es),
                            s.shift))
-    if not pieces:
-        return [], []
-    rh = [s for s in pieces if s.hot]
-    rc = [s for s in pieces if not s.hot]
-    if not rh or not rc:
-        return None, []
-    banned = {(h.name, c.name) for h in rh for c in rc if (names[h.name][0], names[c.name][0]) in forbidden}
-    reports = []
-    placed = None
-    try:
-        placed = interval_placement(rh, rc, forbidden=banned).units
-    except ValueError:
-        pass
-    if solve_time > 0 and len(pieces) <= REMAINDER_MILP_SIDES:
-        pairs = {(h.name, c.name) for h in rh for c in rc if not (h.utility and c.utility)} - banned
-        prob, read = stage_model(rh, rc, pairs, max(len(rh), len(rc)), name="placement")
-        report = solve(prob, solver, time_limit=solve_time, check=False,
-                       name="placement (what the tick-off steps left)")
-        reports.append(report)
-        if report.has_solution:
-            milp = read().units
-            if placed is None or len(milp) < len(placed):
-                placed = milp
-    if placed is None:
-        return None, reports
-    out = []
-    for u in placed:
-        (hn, fh), (cn, fc) = names[u.hot], names[u.cold]
-        out.append(PlacedUnit(hn, cn, 0, u.duty, u.hot_in, u.hot_out, u.cold_in, u.cold_out,
-                              u.hot_fraction * fh, u.cold_fraction * fc))
-    return out, reports
+    return place_remainder(pieces, names, forbidden, solver, solve_time)
 
 
-_PLAIN = ((0, 1), (5, 1), (2, 1), (3, 1), (1, 1), (4, 1), (0, 4), (5, 4))
-"""(measure, lookahead) of the first, unperturbed searches (see :func:`_search`)."""
+_PLAIN = ((0, 1, 2), (7, 1, 1), (0, 1, 0), (5, 1, 0), (2, 1, 2), (4, 1, 2), (3, 1, 0), (1, 1, 0), (7, 1, 2),
+          (6, 1, 1), (0, 4, 2), (5, 4, 0))
+"""(measure, lookahead, pinch first) of the first, unperturbed searches (see :func:`_search`)."""
 
 
 def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=frozenset(),
@@ -570,7 +644,7 @@ def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=f
     time_limit : float
         Wall-clock time for the repeated searches [s]; the first search always runs to its end.
     tries : int
-        Most searches [-]: the first eight unperturbed, the others with perturbed choices.  The searches
+        Most searches [-]: the first twelve unperturbed, the others with perturbed choices.  The searches
         stop early when one places N − 1 units or fewer without a remainder, or when none of the
         unperturbed ones ended in a placement.
     seed : int
@@ -614,9 +688,10 @@ def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=f
     best = None
     n = 0
     while n < max(tries, 1):
-        rule, ahead = _PLAIN[n] if n < len(_PLAIN) else (int(rng.integers(6)), int(rng.choice([1, 4])))
+        rule, ahead, first = _PLAIN[n] if n < len(_PLAIN) else (int(rng.integers(8)), int(rng.choice([1, 4])),
+                                                                 int(rng.integers(3)))
         noise = 0.0 if n < len(_PLAIN) else 0.5 * rng.random()
-        steps, state = _search(sides, allowed, required, tol, rng, noise, rule, ahead)
+        steps, state = _search(sides, allowed, required, tol, rng, noise, rule, ahead, first)
         n += 1
         placed = [_unit(sides[i], sides[j], unit, q) for i, j, unit, q, _ in steps]
         extra, _ = _remainder(state, tol, forbidden)

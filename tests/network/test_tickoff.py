@@ -97,6 +97,102 @@ def test_tick_off_above_the_sinnott_pinch():
     assert tick_off_placement(hot, cold, forbidden={("1", "4")}) is None
 
 
+def _pinch_steps(hot, cold, pinch_side, branches=False):
+    """The steps the tick-off search places at the region's pinch first: (hot side, cold side (indices into
+    hot + cold), kind, load, unit)."""
+    import heatloom.network.tickoff as tickoff
+
+    sides = [*hot, *cold]
+    allowed = {(h.name, c.name) for h in hot for c in cold}
+    return [(st.side[c[0]], st.side[c[1]], c[2], c[3], unit) for c, unit, st in
+            tickoff._pinch_steps(tickoff._State(sides), allowed, 1e-7, pinch_side, lambda c: (not c[5], c[4][0]),
+                                 branches)]
+
+
+def test_pinch_matches_of_the_sinnott_problem():
+    # Sinnott Table 3.6 (CP 3.0, 1.0 hot; 2.0, 4.5 cold; pinch 90/80 °C). The pinch design method
+    # (Linnhoff & Hindmarsh 1983): above the pinch each hot stream at the pinch needs a cold partner with
+    # CP_cold >= CP_hot: 1 (3.0) → 4 (4.5) and 2 (1.0) → 3 (2.0); below it each cold stream (or branch)
+    # at the pinch needs CP_hot >= CP_cold, every unit starting at the pinch (by hand).
+    hot = [Side("1", True, (180.0, 90.0), (0.0, 270.0), 5.0), Side("2", True, (150.0, 90.0), (0.0, 60.0), 5.0),
+           Side("hu", True, (250.0, 250.0), (0.0, 50.0), 5.0, utility=True)]
+    cold = [Side("3", False, (80.0, 135.0), (0.0, 110.0), 5.0), Side("4", False, (80.0, 140.0), (0.0, 270.0), 5.0)]
+    steps = _pinch_steps(hot, cold, (1, 0))
+    got = {(hot[i].name, cold[j - 3].name): q for i, j, _, q, _ in steps}
+    assert got == pytest.approx({("1", "4"): 270.0, ("2", "3"): 60.0})
+    hot = [Side("1", True, (90.0, 60.0), (0.0, 90.0), 5.0), Side("2", True, (90.0, 30.0), (0.0, 60.0), 5.0)]
+    cold = [Side("3", False, (20.0, 80.0), (0.0, 120.0), 5.0),
+            Side("cu", False, (10.0, 10.0), (0.0, 30.0), 5.0, utility=True)]
+    steps = _pinch_steps(hot, cold, (0, 1))
+    cp = {"1": 3.0, "2": 1.0}
+    assert steps and sum(q for *_, q, _ in steps) <= 120 + 1e-9
+    for i, j, _, _, (h0, h1, fh, c0, c1, fc) in steps:
+        assert cp[hot[i].name] * fh >= 2.0 * fc - 1e-9             # CP rule below the pinch (branches)
+        assert (hot[i].temperature(h0), cold[j - 2].temperature(c1)) == pytest.approx((90.0, 80.0))
+        assert hot[i].temperature(h1) - cold[j - 2].temperature(c0) >= 10 - 1e-9
+
+
+def test_pinch_split_when_no_partner_has_the_larger_cp():
+    # Invented, above a pinch at 90/80 °C (ΔTmin 10 K): H 140→90 °C, CP 4 (200 kW); C1 80→130 °C, CP 2
+    # (100 kW); C2 80→130 °C, CP 2.5 (125 kW); hot utility 25 kW. No cold stream has CP >= 4, so the pinch
+    # design method (Linnhoff & Hindmarsh 1983) splits H: a branch of CP <= the partner's ticks it off, the
+    # rest of H goes to the other cold stream, the heater closes it: 3 units = N − 1 (by hand).
+    hot = [Side("H", True, (140.0, 90.0), (0.0, 200.0), 5.0),
+           Side("hu", True, (250.0, 250.0), (0.0, 25.0), 5.0, utility=True)]
+    cold = [Side("C1", False, (80.0, 130.0), (0.0, 100.0), 5.0), Side("C2", False, (80.0, 130.0), (0.0, 125.0), 5.0)]
+    cp = {"C1": 2.0, "C2": 2.5}
+    steps = _pinch_steps(hot, cold, (1, 0))
+    assert steps and steps[0][2] == "split hot"
+    assert sum(q for *_, q, _ in steps) == pytest.approx(200)   # all of H placed from the pinch
+    for _, j, _, _, (h0, h1, fh, _, c1, fc) in steps:
+        name = cold[j - 2].name
+        assert 4.0 * fh <= cp[name] * fc + 1e-9                 # CP rule above the pinch
+        assert hot[0].temperature(h1) == pytest.approx(90.0)      # from the pinch out
+        assert hot[0].temperature(h0) - cold[j - 2].temperature(c1) >= 10 - 1e-9
+    result = tick_off_placement(hot, cold)
+    assert len(result.placement.units) == 3 and result.remainder == 0
+    got = {n: 0.0 for n in ("H", "hu", "C1", "C2")}
+    for u in result.placement.units:
+        got[u.hot] += u.duty
+        got[u.cold] += u.duty
+        assert u.hot_in - u.cold_out >= 10 - 1e-9 and u.hot_out - u.cold_in >= 10 - 1e-9
+    assert got == pytest.approx({"H": 200, "hu": 25, "C1": 100, "C2": 125})
+
+
+def test_pinch_branch_with_the_partners_cp():
+    # Invented, above a pinch at 90/80 °C (ΔTmin 10 K): H1 114→90 °C CP 1 (24 kW), H2 159→90 °C CP 5
+    # (345 kW), C1 80→106 °C CP 4 (104 kW), C2 80→168 °C CP 4 (352 kW), hot utility 87 kW. At the pinch the
+    # cold CPs exceed the hot ones by 8 − 6 = 2 kW/K (by hand), so H1 against a whole cold stream (CP 4)
+    # would take 3 kW/K of it, and a branch over a whole cold stretch would have CP < 1 and lose ΔTmin at
+    # the top: no unit from the pinch ticks H1 off but a branch of a cold stream with CP 1, exactly H1's,
+    # from 80 to 104 °C (the CP rule of Linnhoff & Hindmarsh 1983 kept with equality; by hand).
+    # Without the branches at the pinch no step is placed there.
+    hot = [Side("H1", True, (114.0, 90.0), (0.0, 24.0), 5.0), Side("H2", True, (159.0, 90.0), (0.0, 345.0), 5.0),
+           Side("hu", True, (250.0, 250.0), (0.0, 87.0), 5.0, utility=True)]
+    cold = [Side("C1", False, (80.0, 106.0), (0.0, 104.0), 5.0), Side("C2", False, (80.0, 168.0), (0.0, 352.0), 5.0)]
+    assert _pinch_steps(hot, cold, (1, 0)) == []
+    steps = _pinch_steps(hot, cold, (1, 0), branches=True)
+    i, j, kind, q, (h0, h1, fh, c0, c1, fc) = steps[0]
+    side = cold[j - 3]
+    assert (hot[i].name, kind[0], q) == ("H1", "branch cold", pytest.approx(24.0))
+    assert (side.temperature(c0), side.temperature(c1)) == pytest.approx((80.0, 104.0))
+    assert 4.0 * fc == pytest.approx(1.0)   # the branch's CP [kW/K]
+    # then H2 (CP 5) fits the cold CPs left at the pinch, 4 + 3 kW/K (by hand): all of it from the pinch
+    cp = {"H1": 1.0, "H2": 5.0}
+    assert sum(q for *_, q, _ in steps) == pytest.approx(24 + 345)
+    for i, j, _, _, (h0, h1, fh, c0, c1, fc) in steps:
+        assert cp[hot[i].name] * fh <= 4.0 * fc + 1e-9            # CP rule above the pinch
+        assert (hot[i].temperature(h1), cold[j - 3].temperature(c0)) == pytest.approx((90.0, 80.0))
+        assert hot[i].temperature(h0) - cold[j - 3].temperature(c1) >= 10 - 1e-9
+    result = tick_off_placement(hot, cold)
+    got = {n: 0.0 for n in ("H1", "H2", "hu", "C1", "C2")}
+    for u in result.placement.units:
+        got[u.hot] += u.duty
+        got[u.cold] += u.duty
+        assert u.hot_in - u.cold_out >= 10 - 1e-9 and u.hot_out - u.cold_in >= 10 - 1e-9
+    assert got == pytest.approx({"H1": 24, "H2": 345, "hu": 87, "C1": 104, "C2": 352})
+
+
 @pytest.mark.parametrize(("name", "hot", "cold"), TARGETING)
 def test_tick_off_design_of_published_problems(reference, tick_off_always, name, hot, cold):
     data, streams = reference(name)
@@ -139,6 +235,7 @@ def test_remainder_milp_without_a_solution_falls_back(monkeypatch):
     # left stops without a solution (a forced timeout); the remainder is placed interval by interval and
     # every side is still served within ΔTmin. Invented threshold case of
     # test_design.test_forced_stream_split (H1 must serve C1 up to 190 °C and C2 up to 150 °C, by hand).
+    import heatloom.network.remainder as remainder
     import heatloom.network.tickoff as tickoff
     from heatloom.network.solvers import SolveReport, SolveStatus
 
@@ -149,7 +246,7 @@ def test_remainder_milp_without_a_solution_falls_back(monkeypatch):
         return SolveReport("highs", SolveStatus.ERROR, None, None, None, 1.0, 1.0, kwargs.get("name", ""),
                            "Time limit reached")
 
-    monkeypatch.setattr(tickoff, "solve", stalled)
+    monkeypatch.setattr(remainder, "solve", stalled)
     monkeypatch.setattr(tickoff, "_search", lambda sides, *a, **k: ([], tickoff._State(sides)))
     hot = [Side("H1", True, (200.0, 60.0), (0.0, 980.0), 5.0), Side("H2", True, (150.0, 50.0), (0.0, 300.0), 5.0)]
     cold = [Side("C1", False, (90.0, 190.0), (0.0, 400.0), 5.0), Side("C2", False, (80.0, 150.0), (0.0, 350.0), 5.0),
