@@ -36,7 +36,7 @@ streams (:class:`heatloom.retrofit.ExistingNetwork`), which knows which unit is 
 
 The units table that ``heatloom design`` writes (``design_units.csv``, sheet ``units`` of ``design.xlsx``,
 from :meth:`heatloom.network.Network.to_frame`) is a network table: besides the columns above it carries
-``LMTD [K]``, ``F [-]``, ``area per shell [m²]``, ``hot in``/``hot out``/``cold in``/``cold out [°C]``,
+``LMTD [K]``, ``F [-]``, ``area per shell [m²]``, ``hairpins``, ``hot in``/``hot out``/``cold in``/``cold out [°C]``,
 ``hot fraction``/``cold fraction [-]`` and ``cost [<currency>/year]``.  These are *informative*
 (:data:`INFORMATIVE_COLUMNS`): accepted and not used, since the temperatures and costs follow from the
 streams, the areas and the costs file, except the fractions: a unit on a split branch (fraction below 1) is
@@ -67,7 +67,7 @@ __all__ = ["NETWORK_COLUMNS", "INFORMATIVE_COLUMNS", "NETWORK_ALIASES", "read_ne
 NETWORK_COLUMNS = ("unit", "role", "hot", "cold", "area", "duty", "U", "hot_order", "cold_order", "type", "shells")
 """Canonical columns of a network table that are read."""
 
-INFORMATIVE_COLUMNS = ("LMTD", "F", "area_per_shell", "hot_in", "hot_out", "cold_in", "cold_out", "hot_fraction",
+INFORMATIVE_COLUMNS = ("LMTD", "F", "area_per_shell", "hairpins", "hot_in", "hot_out", "cold_in", "cold_out", "hot_fraction",
                        "cold_fraction", "cost")
 """Columns of a designed network's units table that are accepted and not used (the fractions are checked:
 stream splits are refused)."""
@@ -87,6 +87,7 @@ NETWORK_ALIASES: dict[str, tuple[str, ...]] = {
     "LMTD": ("LMTD", "log mean temperature difference"),
     "F": ("F", "F factor", "LMTD correction factor"),
     "area_per_shell": ("area per shell", "area_per_shell", "shell area"),
+    "hairpins": ("hairpins", "number of hairpins"),
     "hot_in": ("hot in", "hot inlet", "hot_in"),
     "hot_out": ("hot out", "hot outlet", "hot_out"),
     "cold_in": ("cold in", "cold inlet", "cold_in"),

@@ -430,7 +430,7 @@ class Network:
         """The units table, one row per unit: exchangers, heaters, coolers, each in grid order.
 
         Columns (:data:`FRAME_COLUMNS`, the cost header with the network's currency): name, role, the two
-        sides, duty, area, U, LMTD, F, shells, area per shell, type, the position along the hot and the
+        sides, duty, area, U, LMTD, F, shells, area per shell, type, double-pipe hairpins, the position along the hot and the
         cold process stream from its supply end (empty on a utility side, :func:`stream_positions`), the
         terminal temperatures, the flow fractions and the cost.  It is the network table that a retrofit
         study reads back.
@@ -453,14 +453,15 @@ class Network:
                 hot_order, cold_order = positions[u.name]
                 rows.append(dict(zip(FRAME_COLUMNS[:-1] + (cost,), (
                     u.name, role, hot, cold, u.duty, u.area, u.u, u.lmtd, u.f_factor, u.shells or 1, per_shell,
-                    EXCHANGER_TYPE_LABELS.get(kind, kind), hot_order, cold_order, *temps,
+                    EXCHANGER_TYPE_LABELS.get(kind, kind), (u.geometry or {}).get("hairpins"), hot_order,
+                    cold_order, *temps,
                     getattr(u, "hot_fraction", 1.0), getattr(u, "cold_fraction", 1.0), u.cost))))
         frame = pd.DataFrame(rows, columns=list(FRAME_COLUMNS[:-1] + (cost,)))
-        return frame.astype({"hot_order": "Int64", "cold_order": "Int64", "shells": "Int64"})
+        return frame.astype({"hot_order": "Int64", "cold_order": "Int64", "shells": "Int64", "hairpins": "Int64"})
 
 
 FRAME_COLUMNS = ("unit", "role", "hot", "cold", "duty [kW]", "area [m²]", "U [kW/(m²·K)]", "LMTD [K]", "F [-]",
-                 "shells", "area per shell [m²]", "type", "hot_order", "cold_order", "hot in [°C]", "hot out [°C]",
+                 "shells", "area per shell [m²]", "type", "hairpins", "hot_order", "cold_order", "hot in [°C]", "hot out [°C]",
                  "cold in [°C]", "cold out [°C]", "hot fraction [-]", "cold fraction [-]", "cost [money/year]")
 """Columns of :meth:`Network.to_frame`, in order (the cost header carries the network's currency)."""
 

@@ -109,7 +109,8 @@ def register(sub) -> None:
 
 
 def unit_lines(net, *, sized: bool = True) -> list[str]:
-    """The units table of a network's summary: name, sides, duty, temperatures, split, U, LMTD, F, shells,
+    """The units table of a network's summary: name, sides, duty, temperatures, split, U, LMTD, the geometry
+    (F, shells and area per shell of 1-2 shells; hairpins of double pipes; left out when no unit has them),
     area and cost, each column as wide as its widest cell (areas and costs shown as "-" when not ``sized``)."""
     from ..network.structure import Cooler, Heater
 
@@ -128,14 +129,21 @@ def unit_lines(net, *, sized: bool = True) -> list[str]:
             hot, cold, fh, fc = u.hot, u.cold, u.hot_fraction, u.cold_fraction
             hot_t, cold_t = temps(u.hot_in, u.hot_out), temps(u.cold_in, u.cold_out)
         split = f"{fh:.2f}/{fc:.2f}" if (fh < 0.9995 or fc < 0.9995) else "-"
-        rows.append([u.name, hot, cold, u.duty, hot_t, cold_t, split, u.u, u.lmtd, u.f_factor, u.shells,
-                     u.area if sized else None, u.cost if sized else None])
+        shells = u.shells if u.f_factor is not None else None        # 1-2 shells (a double pipe has none)
+        per_shell = u.area / shells if (sized and u.area is not None and shells) else None
+        rows.append([u.name, hot, cold, u.duty, hot_t, cold_t, split, u.u, u.lmtd, u.f_factor, shells,
+                     per_shell, (u.geometry or {}).get("hairpins"), u.area if sized else None,
+                     u.cost if sized else None])
     cur = net.currency or "money"
-    return text_table([Column("unit"), Column("hot side"), Column("cold side"), Column("duty", "[kW]", ",.1f"),
-                       Column("hot in→out", "[°C]", align=">"), Column("cold in→out", "[°C]", align=">"),
-                       Column("split h/c", "[-]", align=">"), Column("U", "[kW/(m²·K)]", ".3f"),
-                       Column("LMTD", "[K]", ".1f"), Column("F", "[-]", ".3f"), Column("shells", "[-]", "d"),
-                       Column("area", "[m²]", ",.1f"), Column("cost", f"[{cur}/year]", ",.0f")], rows)
+    columns = [Column("unit"), Column("hot side"), Column("cold side"), Column("duty", "[kW]", ",.1f"),
+               Column("hot in→out", "[°C]", align=">"), Column("cold in→out", "[°C]", align=">"),
+               Column("split h/c", "[-]", align=">"), Column("U", "[kW/(m²·K)]", ".3f"), Column("LMTD", "[K]", ".1f"),
+               Column("F", "[-]", ".3f"), Column("shells", "[-]", "d"), Column("area/shell", "[m²]", ",.1f"),
+               Column("hairpins", "[-]", "d"), Column("area", "[m²]", ",.1f"), Column("cost", f"[{cur}/year]", ",.0f")]
+    # the geometry columns of a kind the network does not use (F, shells, hairpins of counter-current units)
+    keep = [k for k, c in enumerate(columns)
+            if c.header not in ("F", "shells", "area/shell", "hairpins") or any(r[k] is not None for r in rows)]
+    return text_table([columns[k] for k in keep], [[r[k] for k in keep] for r in rows])
 
 
 def format_network(net, source: str, dt_note: str, approach: str = "ΔTmin") -> str:

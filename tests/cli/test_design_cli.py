@@ -316,3 +316,21 @@ def test_break_loops_removes_a_loop_unit_and_keeps_the_exchanger_type(capsys, si
     assert data["cold_utility"] == pytest.approx(30 + evo["cold_penalty"], abs=2e-3)
     for e in data["exchangers"]:
         assert e["shells"] >= 1 and 0.75 <= e["f_factor"] <= 1.0
+
+
+def test_double_pipe_geometry_reaches_the_console_and_the_units_table(capsys, ray_das, tmp_path):
+    # issue 15: geometry belonged in the console and CSV/XLSX too, not only in the JSON. Hairpins are
+    # recomputed here: each holds π·d·2L of area (inner tube of diameter d, two legs of length L; bends not
+    # counted, common practice), so a unit needs ceil(area / (π·d·2L)) of them.
+    import math
+
+    argv = ("design", ray_das, "--dtmin", "10", "--default-h", "0.5", "--exchanger-type", "double-pipe",
+            "--tube-diameter", "0.05", "--hairpin-length", "6")
+    code, out, _ = run(capsys, *argv, "--out", tmp_path / "o")
+    assert code == 0
+    head = next(line for line in out.splitlines() if line.lstrip().startswith("unit "))
+    assert "hairpins" in head.split() and "F" not in head.split()          # no 1-2 shell columns for hairpins
+    units = pd.read_csv(tmp_path / "o" / "design_units.csv").set_index("unit")
+    for name, row in units.iterrows():
+        assert row["type"] == "double pipe"
+        assert int(row["hairpins"]) == math.ceil(row["area [m²]"] / (math.pi * 0.05 * 2 * 6) - 1e-9), name

@@ -26,7 +26,7 @@ from heatloom.retrofit.existing import ExistingNetwork
 from heatloom.retrofit.simulate import simulate
 
 AGREED = ["unit", "role", "hot", "cold", "duty [kW]", "area [m²]", "U [kW/(m²·K)]", "LMTD [K]", "F [-]", "shells",
-          "area per shell [m²]", "type", "hot_order", "cold_order", "hot in [°C]", "hot out [°C]", "cold in [°C]",
+          "area per shell [m²]", "type", "hairpins", "hot_order", "cold_order", "hot in [°C]", "hot out [°C]", "cold in [°C]",
           "cold out [°C]", "hot fraction [-]", "cold fraction [-]"]
 
 

@@ -19,7 +19,7 @@ from heatloom.network import check_network, design_mer
 from heatloom.network.structure import FRAME_COLUMNS, Cooler, Exchanger, Heater, Network, name_units
 
 AGREED = ["unit", "role", "hot", "cold", "duty [kW]", "area [m²]", "U [kW/(m²·K)]", "LMTD [K]", "F [-]", "shells",
-          "area per shell [m²]", "type", "hot_order", "cold_order", "hot in [°C]", "hot out [°C]", "cold in [°C]",
+          "area per shell [m²]", "type", "hairpins", "hot_order", "cold_order", "hot in [°C]", "hot out [°C]", "cold in [°C]",
           "cold out [°C]", "hot fraction [-]", "cold fraction [-]"]
 
 
