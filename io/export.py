@@ -30,7 +30,7 @@ from .cases import case_role
 from .cells import looks_like_formula
 from .formats import unit_of
 
-__all__ = ["OutputDirectory", "RESULTS_FOLDER", "to_jsonable", "targets_workbook_sheets", "FIGURE_FORMATS", "neutralise", "rounded",
+__all__ = ["OutputDirectory", "RESULTS_FOLDER", "to_jsonable", "targets_workbook_sheets", "placement_currency", "FIGURE_FORMATS", "neutralise", "rounded",
            "rounded_frame", "is_input_table", "unit_precision", "key_precision"]
 
 FIGURE_FORMATS = ("png", "svg")
@@ -461,6 +461,23 @@ def _write_xlsx(path: Path, sheets: Mapping[str, object]) -> None:
     wb.save(path)
 
 
+def placement_currency(targets) -> str:
+    """The currency the placed utilities' prices name, when they all name one; else ``"money"``.
+
+    Examples
+    --------
+    >>> from heatloom.model import StreamTable, Utility, UtilityKind
+    >>> from heatloom.pinch import target
+    >>> s = StreamTable.from_arrays(["H1", "C1"], [150, 30], [60, 120], [2.0, 2.5])
+    >>> u = [Utility("steam", 180, 179, 100.0, UtilityKind.HOT, currency="EUR"),
+    ...      Utility("water", 20, 30, 10.0, UtilityKind.COLD, currency="EUR")]
+    >>> placement_currency(target(s, 10, u)), placement_currency(target(s, 10))
+    ('EUR', 'money')
+    """
+    currencies = {d.utility.currency for d in (targets.placement.duties if targets.placement else ())}
+    return currencies.pop() if len(currencies) == 1 and None not in currencies else "money"
+
+
 def targets_workbook_sheets(targets, area=None, area_note: str | None = None) -> dict:
     """Frames of a targeting run, one per workbook sheet (units in every header).
 
@@ -491,8 +508,7 @@ def targets_workbook_sheets(targets, area=None, area_note: str | None = None) ->
     elif area_note:
         rows.append(("area, units and shells targets", f"not computed: {area_note}", ""))
     summary = pd.DataFrame(rows, columns=["quantity", "value", "unit"])
-    currencies = {d.utility.currency for d in (targets.placement.duties if targets.placement else ())}
-    cur = currencies.pop() if len(currencies) == 1 and None not in currencies else "money"
+    cur = placement_currency(targets)
     sheets = {"targets": summary, "streams": targets.streams.to_frame(),
               "problem table": targets.table.to_frame()}
     if targets.placement is not None:

@@ -78,17 +78,8 @@ def unit_labels(network: Network) -> list[tuple[str, object]]:
     return [(u.name, u) for u in (*network.exchangers, *network.heaters, *network.coolers)]
 
 
-def _sides(unit) -> tuple[str, str]:
-    """(hot side, cold side) names of a unit (a utility on the utility side)."""
-    if isinstance(unit, Heater):
-        return unit.utility, unit.cold
-    if isinstance(unit, Cooler):
-        return unit.hot, unit.utility
-    return unit.hot, unit.cold
-
-
 def _describe(label: str, unit, duty: float | None = None) -> str:
-    hot, cold = _sides(unit)
+    hot, cold = unit.sides
     d = unit.duty if duty is None else duty
     return f"{label} ({hot}→{cold}, {d:.4g} kW)"
 
@@ -211,7 +202,7 @@ class _State:
         on: dict[str, list[tuple[str, float, float]]] = {s.name: [] for s in streams}   # label, inlet, fraction
         fractions: dict[tuple[str, str], float] = {}
         for label, x in units.items():
-            hot, cold = _sides(x)
+            hot, cold = x.sides
             if hot in on:
                 fractions[(label, hot)] = float(getattr(x, "hot_fraction", 1.0))
                 on[hot].append((label, x.hot_in, fractions[(label, hot)]))
@@ -284,7 +275,7 @@ class _State:
         groups: dict[str, list] = {"exchangers": [], "heaters": [], "coolers": []}
         for k in self.live(duties):
             x = self.units[k]
-            hot, cold = _sides(x)
+            hot, cold = x.sides
             change: dict[str, float] = {"duty": duties[k], "area": None, "cost": None, "u": None, "lmtd": None}
             if (k, hot) in temps:
                 change["hot_in"], change["hot_out"] = temps[(k, hot)]
@@ -305,7 +296,7 @@ class _State:
 
         g = nx.MultiGraph()
         for k in self.live(duties):
-            g.add_edge(*_sides(self.units[k]), key=k)
+            g.add_edge(*self.units[k].sides, key=k)
         if virtual:
             hot = [u for u in self.utilities.values() if u.is_hot and u.name in g]
             cold = [u for u in self.utilities.values() if not u.is_hot and u.name in g]
@@ -481,7 +472,7 @@ def _loops(state: _State) -> list[list[str]]:
 
     g = nx.Graph()
     for k in state.live():
-        hot, cold = _sides(state.units[k])
+        hot, cold = state.units[k].sides
         g.add_edge(("side", hot), ("unit", k))
         g.add_edge(("unit", k), ("side", cold))
     return [[n[1] for n in cycle if n[0] == "unit"] for cycle in nx.cycle_basis(g)]
@@ -492,7 +483,7 @@ def _signed(route: Sequence[str], sign: Sequence[int], amount: float, state: _St
     for k, s in zip(route, sign):
         if k.startswith("~"):
             continue
-        hot, cold = _sides(state.units[k])
+        hot, cold = state.units[k].sides
         out.append(f"{k} ({hot}→{cold}) {'+' if s > 0 else '−'}{amount:.4g} kW")
     return tuple(out)
 
@@ -511,7 +502,7 @@ def _removal(state: _State, label: str, violations, violating):
     import networkx as nx
 
     x = state.units[label]
-    hot, cold = _sides(x)
+    hot, cold = x.sides
     for side in (hot, cold):
         if side in state.split:
             return None, f"stream '{side}' is not evolved: {state.split[side]}"
@@ -530,7 +521,7 @@ def _removal(state: _State, label: str, violations, violating):
         for k, s in zip(route, sign):
             if k.startswith("~"):
                 continue
-            if any(n in state.split for n in _sides(state.units[k])):
+            if any(n in state.split for n in state.units[k].sides):
                 ok = False
                 break
             duties[k] += s * q
@@ -587,13 +578,13 @@ def _relax(state: _State, duties: dict[str, float], violations, violating):
     hot_u = [u.name for u in state.utilities.values() if u.is_hot and u.name in g]
     cold_u = [u.name for u in state.utilities.values() if not u.is_hot and u.name in g]
     bad = violating(duties)
-    touched = {n for k in bad for n in _sides(state.units[k]) if n in state.streams}
+    touched = {n for k in bad for n in state.units[k].sides if n in state.streams}
     paths = []
     for h in hot_u:
         for c in cold_u:
             for path in itertools.islice(nx.all_simple_edge_paths(g, h, c, cutoff=_ROUTE_CUTOFF), _ROUTES_PER_UNIT):
                 route = [e[2] for e in path]
-                sides = {n for k in route for n in _sides(state.units[k]) if n in state.streams}
+                sides = {n for k in route for n in state.units[k].sides if n in state.streams}
                 if sides & set(state.split) or (touched and not sides & touched):
                     continue
                 paths.append(route)

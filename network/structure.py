@@ -182,6 +182,16 @@ class Exchanger(_Unit):
     cold_fraction: float = 1.0
     region: str = "whole"
 
+    @property
+    def sides(self) -> tuple[str, str]:
+        """(hot side, cold side) names."""
+        return self.hot, self.cold
+
+    @property
+    def terminals(self) -> tuple[float, float, float, float]:
+        """(hot in, hot out, cold in, cold out) [°C]."""
+        return self.hot_in, self.hot_out, self.cold_in, self.cold_out
+
 
 @dataclass(frozen=True)
 class Heater(_Unit):
@@ -197,6 +207,16 @@ class Heater(_Unit):
     cold_fraction: float = 1.0
     region: str = "above"
 
+    @property
+    def sides(self) -> tuple[str, str]:
+        """(hot side, cold side) names: the utility, then the stream."""
+        return self.utility, self.cold
+
+    @property
+    def terminals(self) -> tuple[float, float, float, float]:
+        """(hot in, hot out, cold in, cold out) [°C], the utility on the hot side."""
+        return self.utility_in, self.utility_out, self.cold_in, self.cold_out
+
 
 @dataclass(frozen=True)
 class Cooler(_Unit):
@@ -211,6 +231,16 @@ class Cooler(_Unit):
     utility_out: float
     hot_fraction: float = 1.0
     region: str = "below"
+
+    @property
+    def sides(self) -> tuple[str, str]:
+        """(hot side, cold side) names: the stream, then the utility."""
+        return self.hot, self.utility
+
+    @property
+    def terminals(self) -> tuple[float, float, float, float]:
+        """(hot in, hot out, cold in, cold out) [°C], the utility on the cold side."""
+        return self.hot_in, self.hot_out, self.utility_in, self.utility_out
 
 
 UNIT_PREFIXES: dict[str, str] = {"exchanger": "X", "heater": "HU-", "cooler": "CU-"}
@@ -287,9 +317,7 @@ def name_units(exchangers: Sequence, heaters: Sequence, coolers: Sequence) -> tu
     taken: set[str] = set()
     for group in groups:
         for u in group:
-            for side in ("hot", "cold", "utility"):
-                if isinstance(getattr(u, side, None), str):
-                    taken.add(getattr(u, side))
+            taken.update(u.sides)
     named: list[list] = [list(g) for g in groups]
     seen: set[str] = set()
     for g in named:
@@ -442,11 +470,7 @@ class Network:
         rows = []
         for role, group in (("exchanger", self.exchangers), ("heater", self.heaters), ("cooler", self.coolers)):
             for u in sorted(group, key=grid_key):
-                hot, cold = (u.utility, u.cold) if role == "heater" else (u.hot, u.utility) if role == "cooler" \
-                    else (u.hot, u.cold)
-                temps = (u.utility_in, u.utility_out, u.cold_in, u.cold_out) if role == "heater" else \
-                    (u.hot_in, u.hot_out, u.utility_in, u.utility_out) if role == "cooler" else \
-                    (u.hot_in, u.hot_out, u.cold_in, u.cold_out)
+                hot, cold = u.sides
                 kind = (u.geometry or {}).get("type") or ("shell_and_tube_1_2" if (u.shells or 1) > 1
                                                           else "counter_current")
                 per_shell = None if u.area is None else u.area / (u.shells or 1)
@@ -454,7 +478,7 @@ class Network:
                 rows.append(dict(zip(FRAME_COLUMNS[:-1] + (cost,), (
                     u.name, role, hot, cold, u.duty, u.area, u.u, u.lmtd, u.f_factor, u.shells or 1, per_shell,
                     EXCHANGER_TYPE_LABELS.get(kind, kind), (u.geometry or {}).get("hairpins"), hot_order,
-                    cold_order, *temps,
+                    cold_order, *u.terminals,
                     getattr(u, "hot_fraction", 1.0), getattr(u, "cold_fraction", 1.0), u.cost))))
         frame = pd.DataFrame(rows, columns=list(FRAME_COLUMNS[:-1] + (cost,)))
         return frame.astype({"hot_order": "Int64", "cold_order": "Int64", "shells": "Int64", "hairpins": "Int64"})

@@ -112,22 +112,12 @@ def unit_lines(net, *, sized: bool = True) -> list[str]:
     """The units table of a network's summary: name, sides, duty, temperatures, split, U, LMTD, the geometry
     (F, shells and area per shell of 1-2 shells; hairpins of double pipes; left out when no unit has them),
     area and cost, each column as wide as its widest cell (areas and costs shown as "-" when not ``sized``)."""
-    from ..network.structure import Cooler, Heater
-
-    def temps(a, b):
-        return f"{a:.1f}→{b:.1f}"
-
     rows = []
     for u in (*net.exchangers, *net.heaters, *net.coolers):
-        if isinstance(u, Heater):
-            hot, cold, hot_t, fh, fc = u.utility, u.cold, temps(u.utility_in, u.utility_out), 1.0, u.cold_fraction
-            cold_t = temps(u.cold_in, u.cold_out)
-        elif isinstance(u, Cooler):
-            hot, cold, cold_t, fh, fc = u.hot, u.utility, temps(u.utility_in, u.utility_out), u.hot_fraction, 1.0
-            hot_t = temps(u.hot_in, u.hot_out)
-        else:
-            hot, cold, fh, fc = u.hot, u.cold, u.hot_fraction, u.cold_fraction
-            hot_t, cold_t = temps(u.hot_in, u.hot_out), temps(u.cold_in, u.cold_out)
+        hot, cold = u.sides
+        hi, ho, ci, co = u.terminals
+        hot_t, cold_t = f"{hi:.1f}→{ho:.1f}", f"{ci:.1f}→{co:.1f}"
+        fh, fc = getattr(u, "hot_fraction", 1.0), getattr(u, "cold_fraction", 1.0)
         split = f"{fh:.2f}/{fc:.2f}" if (fh < 0.9995 or fc < 0.9995) else "-"
         shells = u.shells if u.f_factor is not None else None        # 1-2 shells (a double pipe has none)
         per_shell = u.area / shells if (sized and u.area is not None and shells) else None

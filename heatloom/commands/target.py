@@ -94,8 +94,9 @@ def format_targets(targets, source: str, dt_min_note: str, area=None, area_note:
                      "process temperature); give --utilities FILE to place real levels")
     else:
         lines.append("  utility levels (cheapest placement against the grand composite curve):")
-        currencies = {d.utility.currency for d in targets.placement.duties}
-        cur = currencies.pop() if len(currencies) == 1 and None not in currencies else "money"
+        from ..io.export import placement_currency
+
+        cur = placement_currency(targets)
         lines += text_table([Column("name"), Column("kind"), Column("T_supply", "[°C]", "g"),
                              Column("T_target", "[°C]", "g"), Column("duty", "[kW]", ",.1f"),
                              Column("cost", f"[{cur}/year]", ",.0f")],
