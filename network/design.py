@@ -38,9 +38,10 @@ from ..model import Stream, StreamTable, Utility
 from ..model.costs import CostSettings
 from ..model.exchangers import ExchangerType
 from ..pinch import target
+from ..pinch.area import missing_film_coefficients
 from ..pinch.utilities import ideal_utilities
 from .placement import Placement, Side, interval_placement, stage_model
-from .sizing import geometry_kind, missing_film_coefficients, size_network
+from .sizing import geometry_kind, size_network
 from .solvers import Budget, SolveReport, solve
 from .structure import Cooler, Exchanger, Heater, Network, check_network, stream_enthalpy
 from .tickoff import tick_off_placement

@@ -19,10 +19,11 @@ from ..errors import InputError
 from ..model import Segment, StreamTable, Utility
 from ..model.costs import CostSettings, UnitKind
 from ..model.exchangers import ExchangerType
+from ..pinch.area import missing_film_coefficients
 from ..validation import enum_member
 from .structure import Cooler, Heater, Network
 
-__all__ = ["with_film_coefficient", "geometry_kind", "unit_geometry", "missing_film_coefficients", "size_network"]
+__all__ = ["with_film_coefficient", "geometry_kind", "unit_geometry", "size_network"]
 
 
 def with_film_coefficient(segments, default: float | None, scale: float = 1.0) -> list[Segment]:
@@ -86,12 +87,6 @@ def unit_geometry(area: float, hot_in: float, hot_out: float, cold_in: float, co
                                "tube_diameter": options["tube_diameter"],
                                "hairpin_length": options["hairpin_length"]}
     return area, None, None, None
-
-
-def missing_film_coefficients(streams: StreamTable, utilities: Sequence[Utility]) -> list[str]:
-    """Streams and utilities without a film coefficient, in table order (``"stream 'H1'"``, ...)."""
-    out = [f"stream '{s.name}'" for s in streams if any(g.film_coefficient is None for g in s.segments)]
-    return out + [f"utility '{u.name}'" for u in utilities if u.film_coefficient is None]
 
 
 def size_network(network: Network, streams: StreamTable, utilities: Sequence[Utility], *,

@@ -176,7 +176,7 @@ def format_retrofit(result, source: str, dt_note: str) -> str:
     lines.append("  every option's saving is its simulated one (areas fixed after the change, ε-NTU); "
                  + ("the MILP's estimates agree within 0.1 %" if not off else
                     f"the MILP's estimates differ beyond 0.1 % for option(s) {', '.join(map(str, off))}"))
-    lines += note_lines([*result.notes, f"{result.costs.describe(safety=False)} {result.retrofit_costs.describe(cur)}"],
+    lines += note_lines([*result.notes, f"{result.costs.describe()} {result.retrofit_costs.describe(cur)}"],
                         caution="Retrofit changes also need the plant's hydraulics, materials and fouling checked.")
     return "\n".join(lines)
 

@@ -312,9 +312,8 @@ class CostSettings:
             out[key] = out[key].to_dict()
         return out
 
-    def describe(self, *, safety: bool = True) -> str:
-        """The cost basis in force, in plain words, marking which values are the package defaults; it ends with
-        the safety note unless ``safety`` is False (for a summary that closes with the note anyway).
+    def describe(self) -> str:
+        """The cost basis in force, in plain words, marking which values are the package defaults.
 
         Examples
         --------
@@ -349,8 +348,7 @@ class CostSettings:
         parts.append(f"Operating hours: {self.hours_per_year:g} h/year{source}.")
         if any(tag(k) for k in ("exchanger", "heater", "cooler", "annualised", "interest_rate", "years")):
             parts.append("Values marked (default) are illustrative defaults (common practice), not a quotation.")
-        if safety:
-            parts.append(defaults.SAFETY_NOTE)
+        parts.append(defaults.SAFETY_NOTE)
         return " ".join(parts)
 
 
