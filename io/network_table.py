@@ -27,7 +27,15 @@ Columns:
   means 1-2 shells), or ``double pipe`` (``hairpin``; rated as counter-current);
 * ``role`` (optional) — ``exchanger``, ``heater`` or ``cooler``; checked against the hot and cold names
   (a unit between two process streams is an exchanger, one with a hot utility a heater, one with a cold
-  utility a cooler).
+  utility a cooler);
+* ``hot_fraction``, ``cold_fraction`` (optional, ``hot fraction [-]`` in a design's table) — the share of the
+  hot and the cold process stream's flow through the unit, in (0, 1]; empty or 1 where the stream is not
+  split.  A **stream split** is written as one position held by several units, one per parallel branch:
+  they give the same ``hot_order`` (``cold_order``) on the split stream and each its fraction below 1,
+  and the fractions of one split add up to 1 (within 0.001).  The branches take the stream at its
+  temperature before the split and mix after it.  Positions may repeat only inside such a split; a branch
+  with several units in series, a bypass, or a heater or cooler on a branch cannot be written and is
+  refused (:mod:`heatloom.retrofit.branches`).
 
 A heater or cooler that is the last unit on its stream (a *trim* unit) may leave both area and duty empty:
 it takes the rest of its stream's duty (a heater brings its cold stream to target, a cooler its hot
@@ -37,10 +45,10 @@ streams (:class:`heatloom.retrofit.ExistingNetwork`), which knows which unit is 
 The units table that ``heatloom design`` writes (``design_units.csv``, sheet ``units`` of ``design.xlsx``,
 from :meth:`heatloom.network.Network.to_frame`) is a network table: besides the columns above it carries
 ``LMTD [K]``, ``F [-]``, ``area per shell [m²]``, ``hairpins``, ``hot in``/``hot out``/``cold in``/``cold out [°C]``,
-``hot fraction``/``cold fraction [-]`` and ``cost [<currency>/year]``.  These are *informative*
-(:data:`INFORMATIVE_COLUMNS`): accepted and not used, since the temperatures and costs follow from the
-streams, the areas and the costs file, except the fractions: a unit on a split branch (fraction below 1) is
-refused, because the existing-network model of retrofit passes every stream through its units in series.
+``hot fraction``/``cold fraction [-]`` (read, see above) and ``cost [<currency>/year]``.  The others are
+*informative* (:data:`INFORMATIVE_COLUMNS`): accepted and not used, since the temperatures and costs follow
+from the streams, the areas and the costs file.  The units of one split of a design share a position, so a
+design with stream splits reads back as it was designed.
 
 Units may be written in the headers (``area [ft2]``, ``duty (MW)``, ``U [W/m2K]``) or in a units row under
 the header, converted with :mod:`heatloom.io.units`; title lines are skipped and foreign headers can be
@@ -64,13 +72,12 @@ from .units import QuantityKind
 
 __all__ = ["NETWORK_COLUMNS", "INFORMATIVE_COLUMNS", "NETWORK_ALIASES", "read_network"]
 
-NETWORK_COLUMNS = ("unit", "role", "hot", "cold", "area", "duty", "U", "hot_order", "cold_order", "type", "shells")
+NETWORK_COLUMNS = ("unit", "role", "hot", "cold", "area", "duty", "U", "hot_order", "cold_order", "type", "shells",
+                   "hot_fraction", "cold_fraction")
 """Canonical columns of a network table that are read."""
 
-INFORMATIVE_COLUMNS = ("LMTD", "F", "area_per_shell", "hairpins", "hot_in", "hot_out", "cold_in", "cold_out", "hot_fraction",
-                       "cold_fraction", "cost")
-"""Columns of a designed network's units table that are accepted and not used (the fractions are checked:
-stream splits are refused)."""
+INFORMATIVE_COLUMNS = ("LMTD", "F", "area_per_shell", "hairpins", "hot_in", "hot_out", "cold_in", "cold_out", "cost")
+"""Columns of a designed network's units table that are accepted and not used."""
 
 NETWORK_ALIASES: dict[str, tuple[str, ...]] = {
     "unit": ("unit", "name", "tag", "unit name", "exchanger", "equipment", "item"),
@@ -148,8 +155,9 @@ def read_network(path: str | os.PathLike, *, sheet: str | None = None,
     InputError
         One line naming file, row and column: missing/unreadable file, missing columns, text in a number
         cell, unknown units, an empty name, an unknown type or role, shells or positions that are not whole
-        numbers, a unit on a split branch.  What needs the streams (unknown streams or utilities, a side of
-        the wrong kind, a role that the sides contradict, positions that repeat or skip, no area and no duty
+        numbers, a fraction outside (0, 1].  What needs the streams (unknown streams or utilities, a side of
+        the wrong kind, a role that the sides contradict, positions that repeat outside a split or skip,
+        fractions of a split that do not add up to 1, a heater or cooler on a split branch, no area and no duty
         on a unit other than a trim heater or cooler, no U and no film coefficients, stated duties a stream
         cannot give or take) is found by :meth:`~heatloom.retrofit.ExistingNetwork.from_table`, located the same
         way.
@@ -169,7 +177,6 @@ def read_network(path: str | os.PathLike, *, sheet: str | None = None,
                        columns=mapping, aliases=NETWORK_ALIASES, kinds={c: _KINDS.get(c) for c in _VOCABULARY},
                        notes=notes, strict=strict)
     units = _units(table)
-    _refuse_splits(table, units)
     assumed = []
     if any(u.shells > 1 for u in units) and "type" not in table:
         assumed.append("units with more than one shell and no type are taken as 1-2 shell-and-tube")
@@ -206,6 +213,7 @@ def _units(table: Table) -> list[ExistingUnit]:
     cold_order = _whole(table, table.optional_numbers("cold_order", what="cold_order"), "cold_order",
                         "cold_order (position along the cold stream from its supply end)")
     shells = _whole(table, table.optional_numbers("shells", what="shells"), "shells", "shells")
+    fractions = {side: _fractions(table, side) for side in ("hot", "cold")}
     types = table.text("type") if "type" in table else [""] * len(table)
     roles = table.text("role") if "role" in table else [""] * len(table)
     out = []
@@ -238,31 +246,27 @@ def _units(table: Table) -> list[ExistingUnit]:
                                     stated_role=role,
                                     u=_or_none(u[i]), arrangement=arrangement,
                                     shells=1 if shells[i] is None else shells[i], hot_position=hot_order[i],
-                                    cold_position=cold_order[i], row=int(table.rows[i])))
+                                    cold_position=cold_order[i], hot_fraction=fractions["hot"][i],
+                                    cold_fraction=fractions["cold"][i], row=int(table.rows[i])))
         except InputError as e:
             raise table.locate(e, i) from None
     return out
 
 
-def _refuse_splits(table: Table, units: list[ExistingUnit]) -> None:
-    """A unit on a split branch (hot or cold fraction below 1) cannot be represented: refuse it, named."""
-    for side in ("hot", "cold"):
-        column = f"{side}_fraction"
-        values = table.optional_numbers(column, what=f"{side} fraction")
-        for i, f in enumerate(values.tolist()):
-            if f != f:
-                continue
-            if not 0 < f <= 1 + 1e-9:
-                written = cell_text(table.columns[column].cells[i])
-                raise table.error(f"{side} fraction must be in (0, 1] (the share of the stream through this unit), "
-                                  f"got {written}", index=i, column=column)
-            if f < 1 - 1e-6:
-                u = units[i]
-                raise table.error(
-                    f"unit '{u.name}' sits on a split branch: it takes {f:.4g} of {side} stream "
-                    f"'{getattr(u, side)}'; an existing network for retrofit passes every stream through its units "
-                    "in series and cannot represent stream splits. Give the network without splits (one unit "
-                    "after another on each stream) or leave this network out of retrofit", index=i, column=column)
+def _fractions(table: Table, side: str) -> list[float]:
+    """The hot or cold fraction of every row, in (0, 1] [-]: 1 where empty or within 1e-6 of 1."""
+    column = f"{side}_fraction"
+    out = []
+    for i, f in enumerate(table.optional_numbers(column, what=f"{side} fraction").tolist()):
+        if f != f:
+            out.append(1.0)
+            continue
+        if not 0 < f <= 1 + 1e-6:
+            written = cell_text(table.columns[column].cells[i])
+            raise table.error(f"{side} fraction must be in (0, 1] (the share of the stream's flow through this unit "
+                              f"on a split branch), got {written}", index=i, column=column)
+        out.append(1.0 if f > 1 - 1e-6 else float(f))
+    return out
 
 
 def _or_none(x: float) -> float | None:

@@ -105,9 +105,13 @@ def savings_investment_figure(retrofit, *, title: str | None = None):
         ax.annotate(f"hot utility above the target at ΔTmin {retrofit.dt_min:g} K: {excess:,.0f} kW",
                     (0, excess), xytext=(4, -12), textcoords="offset points", fontsize=STYLE["font_size"] - 1,
                     color="#505050")
+    if not retrofit.points:
+        ax.annotate("no set of changes saved energy", (0.5, 0.5), xycoords="axes fraction", ha="center",
+                    fontsize=STYLE["font_size"], color="#505050")
     ax.set_xlim(left=0)
     ax.set_ylim(bottom=0)
-    ax.legend(frameon=False, fontsize=STYLE["font_size"] - 1, loc="lower right")
+    if ax.get_legend_handles_labels()[0]:   # nothing to label when no set of changes worked
+        ax.legend(frameon=False, fontsize=STYLE["font_size"] - 1, loc="lower right")
     fig.tight_layout()
     return fig
 

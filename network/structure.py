@@ -347,8 +347,19 @@ def stream_positions(network: Network) -> dict[str, tuple[int | None, int | None
     stream's supply end, 1, 2, ... [-]; None on a utility side.
 
     Derived from the grid order (:func:`grid_key`): a hot stream meets its units in rising key, a cold
-    stream in falling key; units of one key on one stream (parallel branches of a split) follow their
-    temperatures, then the network's order.
+    stream in falling key; units of one key on one stream follow their temperatures, then the network's
+    order.  The parallel branches of one split (units of one key with a fraction below 1 of that stream)
+    share one position: that is how the network table (:mod:`heatloom.io.network_table`) writes a split.
+
+    Examples
+    --------
+    H1 split in stage 0 between C1 and C2 (0.6 and 0.4 of its flow), then cooled:
+
+    >>> a = Exchanger("H1", "C1", 60.0, 150, 100, 40, 100, hot_fraction=0.6, stage=0, name="A")
+    >>> b = Exchanger("H1", "C2", 40.0, 150, 100, 50, 90, hot_fraction=0.4, stage=0, name="B")
+    >>> c = Cooler("H1", "CW", 50.0, 100, 75, 20, 30, stage=1, region="whole", name="C")
+    >>> stream_positions(Network((a, b), (), (c,), 10.0))
+    {'A': (1, 1), 'B': (1, 1), 'C': (2, None)}
     """
     out: dict[str, list[int | None]] = {}
     on: dict[tuple[str, str], list] = {}
@@ -359,14 +370,27 @@ def stream_positions(network: Network) -> dict[str, tuple[int | None, int | None
         if not isinstance(u, Cooler):
             on.setdefault(("cold", u.cold), []).append((i, u))
     for (side, _), units in on.items():
+        def split(p, side=side) -> bool:
+            return getattr(p[1], f"{side}_fraction", 1.0) < 1 - 1e-6
+        inlet: dict[tuple, float] = {}   # a split's inlet: its branches sort together
+        for p in units:
+            if split(p):
+                t = p[1].hot_in if side == "hot" else -p[1].cold_in
+                inlet[grid_key(p[1])] = max(t, inlet.get(grid_key(p[1]), t))
         if side == "hot":
-            units.sort(key=lambda p: (grid_key(p[1]), -p[1].hot_in, p[0]))
+            units.sort(key=lambda p: (grid_key(p[1]), -inlet[grid_key(p[1])] if split(p) else -p[1].hot_in,
+                                      0 if split(p) else 1, p[0]))
         else:
-            units.sort(key=lambda p: (tuple(-k for k in grid_key(p[1])), p[1].cold_in, p[0]))
-        for k, (_, u) in enumerate(units, start=1):
-            out[u.name][0 if side == "hot" else 1] = k
+            units.sort(key=lambda p: (tuple(-k for k in grid_key(p[1])),
+                                      -inlet[grid_key(p[1])] if split(p) else p[1].cold_in, 0 if split(p) else 1, p[0]))
+        k, previous = 0, None
+        for p in units:
+            group = ("split", grid_key(p[1])) if split(p) else None
+            if group is None or group != previous:
+                k += 1
+            previous = group
+            out[p[1].name][0 if side == "hot" else 1] = k
     return {name: (a, b) for name, (a, b) in out.items()}
-
 
 
 @dataclass(frozen=True, eq=False)

@@ -28,6 +28,7 @@ from ..model.costs import RetrofitCosts, capital_recovery_factor
 from ..model.exchangers import ExchangerType
 from ..model.existing import ExistingUnit, OperatingMode, UnitRole
 from ..network.structure import smallest_approach
+from .branches import branch_stream
 from .existing import ExistingNetwork, film_coefficient_of
 from .profiles import heat_between, mean_cp_between, temperature_after, utility_match_area
 from .selection import SetValue
@@ -130,17 +131,32 @@ class Change:
 # applying changes
 
 
-def _orders(network: ExistingNetwork) -> dict[str, list[str]]:
-    return {s.name: [u.name for u in network.on_stream(s.name)] for s in network.streams}
+def _orders(network: ExistingNetwork) -> dict[str, list[list[str]]]:
+    """Stream → its positions from the supply end, each the names of its unit or of a split's branches."""
+    return {s.name: [[u.name for u in group] for group in network.stages(s.name)] for s in network.streams}
 
 
-def _insert(order: list[str], name: str, before: str | None) -> None:
+def _insert(order: list[list[str]], name: str, before: str | None) -> None:
+    """Put ``name`` at a position of its own directly before the position of ``before`` (a split: before all
+    of its branches, never inside it)."""
     if before is None:
-        order.append(name)
+        order.append([name])
         return
-    if before not in order:
-        raise InputError(f"cannot place '{name}' before '{before}': '{before}' is no longer on that stream")
-    order.insert(order.index(before), name)
+    for k, group in enumerate(order):
+        if before in group:
+            order.insert(k, [name])
+            return
+    raise InputError(f"cannot place '{name}' before '{before}': '{before}' is no longer on that stream")
+
+
+def _remove(order: list[list[str]], name: str, stream: str) -> None:
+    for k, group in enumerate(order):
+        if name in group:
+            if len(group) > 1:
+                raise InputError(f"unit '{name}' sits on a branch of a split of stream '{stream}' and cannot be "
+                                 "moved off it (the other branches would no longer share the whole stream)")
+            del order[k]
+            return
 
 
 def _prepared(network: ExistingNetwork) -> list[ExistingUnit]:
@@ -196,19 +212,20 @@ def apply_changes(network: ExistingNetwork, changes: Sequence[Change]) -> Existi
             units[c.unit] = replace(unit, area=(unit.area or 0.0) + c.area)
         elif c.kind is ChangeKind.RESEQUENCE:
             order = orders[c.stream]
-            order.remove(c.unit)
+            _remove(order, c.unit, c.stream)
             _insert(order, c.unit, c.before)
         else:
             old = getattr(unit, c.side)
             if old in streams:
-                orders[old].remove(c.unit)
+                _remove(orders[old], c.unit, old)
             units[c.unit] = replace(unit, **{c.side: c.stream}, u=c.u if c.u is not None else unit.u,
                                     u_from_films=False)
             _insert(orders[c.stream], c.unit, c.before)
     positions: dict[tuple[str, str], int] = {}
     for s, order in orders.items():
-        for k, name in enumerate(order, start=1):
-            positions[(name, s)] = k
+        for k, group in enumerate(order, start=1):
+            for name in group:
+                positions[(name, s)] = k
     out = [replace(u, hot_position=positions.get((u.name, u.hot)), cold_position=positions.get((u.name, u.cold)),
                    role=None, mode=None) for u in units.values()]
     return ExistingNetwork(network.streams, tuple(out), network.utilities, network.source, network.notes)
@@ -316,7 +333,8 @@ def _trim_area(net: ExistingNetwork, st) -> float | None:
         return None if unit.u is None else 0.0
     heater = st.role is UnitRole.HEATER
     util = net.utility(unit.hot if heater else unit.cold)
-    stream = net.stream(unit.cold if heater else unit.hot)
+    stream = branch_stream(net.stream(unit.cold if heater else unit.hot),   # a branch: its share of the stream
+                           unit.cold_fraction if heater else unit.hot_fraction)
     t_in, t_out = (st.cold_in, st.cold_out) if heater else (st.hot_in, st.hot_out)
     if abs(t_out - t_in) < 1e-9:
         return 0.0
@@ -351,32 +369,36 @@ def _film_u(a, b, default_h: float | None) -> float | None:
 
 
 def _anchors(net: ExistingNetwork, sim: Simulation, stream: str) -> list[tuple[str | None, float]]:
-    """Places on a stream where a unit can go: (the unit it goes before, or None at the end; temperature)."""
-    seq = net.on_stream(stream)
+    """Places on a stream where a unit can go: (the unit it goes before, or None at the end; temperature).
+
+    Before a split means before all of its branches (named by its first); never inside a split."""
+    seq = net.stages(stream)
     temps = sim.temperatures[stream]
-    out = [(u.name, temps[k]) for k, u in enumerate(seq)]
-    if not seq or seq[-1].mode is not OperatingMode.TRIM:
+    out = [(group[0].name, temps[k]) for k, group in enumerate(seq)]
+    if not seq or all(u.mode is not OperatingMode.TRIM for u in seq[-1]):
         out.append((None, temps[-1]))
     return out
 
 
 def _end_duty(sim: Simulation, net: ExistingNetwork, stream: str) -> float | None:
     """Duty of the heater or cooler that ends a stream [kW] (None when it ends otherwise)."""
-    seq = net.on_stream(stream)
-    if seq and seq[-1].mode is OperatingMode.TRIM:
-        return max(0.0, sim.unit(seq[-1].name).duty)
+    seq = net.stages(stream)
+    if seq and len(seq[-1]) == 1 and seq[-1][0].mode is OperatingMode.TRIM:
+        return max(0.0, sim.unit(seq[-1][0].name).duty)
     return None
 
 
-def _largest_duty(hot, cold, th: float, tc: float, emat: float, cap: float) -> float:
-    """Largest duty of a counter-current match from these inlets keeping ``emat`` everywhere [kW]."""
-    top = min(heat_between(hot, th, tc), heat_between(cold, tc, th), cap)
+def _largest_duty(hot, cold, th: float, tc: float, emat: float, cap: float, fh: float = 1.0,
+                  fc: float = 1.0) -> float:
+    """Largest duty of a counter-current match from these inlets keeping ``emat`` everywhere [kW]; ``fh``,
+    ``fc`` the shares of the streams' flows through it (split branches) [-]."""
+    top = min(fh * heat_between(hot, th, tc), fc * heat_between(cold, tc, th), cap)
     if not top > 0:
         return 0.0
 
     def ok(q):
-        return smallest_approach(hot, cold, th, temperature_after(hot, th, q), tc,
-                             temperature_after(cold, tc, q)) >= emat
+        return smallest_approach(hot, cold, th, temperature_after(hot, th, q / fh), tc,
+                                 temperature_after(cold, tc, q / fc)) >= emat   # shares follow from the ends
 
     if ok(top):
         return float(top)
@@ -392,10 +414,13 @@ def _largest_duty(hot, cold, th: float, tc: float, emat: float, cap: float) -> f
 
 
 def _area_for(hot, cold, th: float, tc: float, q: float, u: float, arrangement=ExchangerType.COUNTER_CURRENT,
-              shells: int = 1, limit: float = 1.0) -> float | None:
-    """Area [m²] that transfers ``q`` [kW] from these inlets by ε-NTU (mean CPs over the ranges covered)."""
-    ch = mean_cp_between(hot, th, temperature_after(hot, th, q)) if not isinstance(hot, Utility) else math.inf
-    cc = mean_cp_between(cold, tc, temperature_after(cold, tc, q)) if not isinstance(cold, Utility) else math.inf
+              shells: int = 1, limit: float = 1.0, fh: float = 1.0, fc: float = 1.0) -> float | None:
+    """Area [m²] that transfers ``q`` [kW] from these inlets by ε-NTU (mean CPs over the ranges covered; a
+    branch of fraction f has f times its stream's)."""
+    ch = fh * mean_cp_between(hot, th, temperature_after(hot, th, q / fh)) if not isinstance(hot, Utility) \
+        else math.inf
+    cc = fc * mean_cp_between(cold, tc, temperature_after(cold, tc, q / fc)) if not isinstance(cold, Utility) \
+        else math.inf
     cmin, cmax = min(ch, cc), max(ch, cc)
     eps = q / (cmin * (th - tc))
     cr = cmin / cmax
@@ -422,14 +447,16 @@ def added_area_candidates(ctx: Evaluator, net: ExistingNetwork, sim: Simulation,
     caps = [d for d in (_end_duty(sim, net, unit.hot), _end_duty(sim, net, unit.cold)) if d is not None]
     cap = st.duty + (min(caps) if caps else math.inf)
     floor = ctx.emat if prefix else ctx.floors.get(name, ctx.emat)
-    q_top = _largest_duty(hot, cold, th, tc, floor, cap)
+    fh, fc = unit.hot_fraction, unit.cold_fraction
+    q_top = _largest_duty(hot, cold, th, tc, floor, cap, fh, fc)
     gain = q_top - st.duty
     if not gain > max(0.5, 1e-3 * st.duty):
         return []
     limit = MAX_1_2_EFFECTIVENESS if unit.arrangement is ExchangerType.SHELL_AND_TUBE_1_2 else 1.0
     out = []
     for f in sizes:
-        area = _area_for(hot, cold, th, tc, st.duty + f * gain, unit.u, unit.arrangement, unit.shells, limit)
+        area = _area_for(hot, cold, th, tc, st.duty + f * gain, unit.u, unit.arrangement, unit.shells, limit,
+                         fh, fc)
         if area is None or not area > unit.area * (1 + 1e-6):
             continue
         da = area - unit.area
@@ -497,6 +524,8 @@ def move_candidates(ctx: Evaluator, default_h, notes: list[str]) -> list[Candida
     Resequencing: the exchanger directly before any other unit of either of its streams.  Repiping: one
     side moved to another stream of the same kind, directly before any of its units; U scaled by the ratio
     of the film-coefficient U of the new and the old pair (kept when film coefficients are missing).
+    Places are between positions, never inside a split (:func:`_anchors`), and a unit is never moved or
+    repiped off a split branch on that side (it may move along its other stream).
     """
     net, sim = ctx.base, ctx.sim
     out = []
@@ -504,7 +533,9 @@ def move_candidates(ctx: Evaluator, default_h, notes: list[str]) -> list[Candida
     for unit in net.exchangers:
         for side in ("hot", "cold"):
             s = getattr(unit, side)
-            seq = [x.name for x in net.on_stream(s)]
+            if getattr(unit, f"{side}_fraction") < 1:
+                continue
+            seq = [group[0].name for group in net.stages(s)]
             i = seq.index(unit.name)
             here = {seq[i + 1] if i + 1 < len(seq) else None}
             for before, _ in _anchors(net, sim, s):

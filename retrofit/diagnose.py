@@ -237,17 +237,17 @@ def cross_pinch(simulation: Simulation, dt_min: float | None = None) -> CrossPin
     for p in t.pinches:
         for u in simulation.units:
             down = up = 0.0
-            if u.role is UnitRole.EXCHANGER:
+            if u.role is UnitRole.EXCHANGER:   # a split branch carries its share of the stream
                 hot, cold = net.stream(u.hot), net.stream(u.cold)
-                qh = _above(hot, u.hot_in, u.hot_out, p.shifted + shifts[hot.name])
-                qc = _above(cold, u.cold_in, u.cold_out, p.shifted - shifts[cold.name])
+                qh = u.hot_fraction * _above(hot, u.hot_in, u.hot_out, p.shifted + shifts[hot.name])
+                qc = u.cold_fraction * _above(cold, u.cold_in, u.cold_out, p.shifted - shifts[cold.name])
                 down, up = max(0.0, qh - qc), max(0.0, qc - qh)
             elif u.role is UnitRole.COOLER:
                 hot = net.stream(u.hot)
-                down = _above(hot, u.hot_in, u.hot_out, p.shifted + shifts[hot.name])
+                down = u.hot_fraction * _above(hot, u.hot_in, u.hot_out, p.shifted + shifts[hot.name])
             else:
                 cold = net.stream(u.cold)
-                down = _below(cold, u.cold_in, u.cold_out, p.shifted - shifts[cold.name])
+                down = u.cold_fraction * _below(cold, u.cold_in, u.cold_out, p.shifted - shifts[cold.name])
             if abs(down) > tol or up > tol:
                 out.append(CrossPinchUnit(u.name, u.role, p.shifted, float(down), float(up)))
     if simulation.problems:

@@ -10,8 +10,8 @@ positions 1, 2, ... from the stream's supply end.
 How each unit works in the simulation (the *operating mode*, :class:`OperatingMode`):
 
 * an exchanger is **rated** by ε-NTU at its area and U (:func:`heatloom.equipment.rating.effectiveness_from_ntu`);
-* a heater or cooler that is the **last unit on its stream** is a **trim** unit: it takes whatever duty
-  brings the stream to its target (its utility flow is controlled), so its area does not enter the
+* a heater or cooler that is the **last unit on its stream** (or on a branch of the stream's last split)
+  is a **trim** unit: it takes whatever duty brings the (mixed) stream to its target (its utility flow is controlled), so its area does not enter the
   simulation, and it may be given without duty and without area (it takes the rest of the stream's duty;
   its area then counts as unknown);
 * a heater or cooler elsewhere on its stream keeps its stated duty (**fixed duty**); without a duty it is
@@ -26,7 +26,10 @@ known without simulating: on each process side the inlet or the outlet must foll
 (through units of stated duty before it) or from the target end (through units of stated duty after it,
 when the stream ends with a heater or cooler, which brings it to its target).
 
-Stream splits are not represented: every stream passes its units in series.
+A stream may be split: the units on the parallel branches of one split share one position along the
+stream, each with its share of the stream's flow (``hot_fraction``/``cold_fraction``, adding up to 1 over
+the split), one unit per branch and no heater or cooler on a branch (:mod:`heatloom.retrofit.branches`).
+A stated duty walk passes a split only when every branch states its duty.
 
 Results are screening estimates; a real retrofit must be checked against the plant's data sheets and
 local codes by qualified, licensed engineers.
@@ -45,6 +48,14 @@ from ..model import Stream, StreamTable, Utility
 from ..model.exchangers import ExchangerType
 from ..model.existing import ExistingUnit, OperatingMode, UnitRole, UnitTable
 from ..network.structure import smallest_approach
+from .branches import (
+    branch_outlets,
+    branch_stream,
+    design_share,
+    resolve_positions,
+    stages,
+    stated_temperatures,
+)
 from .profiles import heat_between, temperature_after, utility_match_area
 
 __all__ = [
@@ -98,7 +109,8 @@ def _names(items: Iterable[str], limit: int = 12) -> str:
 
 @dataclass(frozen=True, eq=False)
 class ExistingNetwork:
-    """An existing network: process streams, utilities and units in series along every stream.
+    """An existing network: process streams, utilities and units along every stream, in series or on the
+    parallel branches of a stream split.
 
     Parameters
     ----------
@@ -122,8 +134,9 @@ class ExistingNetwork:
     ------
     InputError
         Located at the unit's row and the column concerned: empty or repeated names, unknown streams or
-        utilities, a side of the wrong kind, two utilities in one unit, positions that repeat, skip or are
-        given for only some units of a stream, no area and no duty, no U and no film coefficients, a
+        utilities, a side of the wrong kind, two utilities in one unit, positions that repeat (outside a
+        split), skip or are given for only some units of a stream, a split whose fractions do not add up to
+        1 (:mod:`heatloom.retrofit.branches`), no area and no duty, no U and no film coefficients, a
         stated duty larger than a stream's whole duty, stated duties that overrun a stream or disagree
         with its target, a stated duty the available driving force cannot deliver, a duty without an area
         where the temperatures are not known, a heater or cooler inside a stream with neither duty nor an
@@ -199,7 +212,7 @@ class ExistingNetwork:
                                  f"{_ROLE_RULE}); correct the role or the hot/cold names", row=unit.row,
                                  column="role")
             units.append(replace(unit, role=role))
-        units = self._positions(units, streams)
+        units = resolve_positions(units, streams, notes)
         units = [self._coefficient(u, streams, utilities) for u in units]
         return self._duties(units, streams, utilities, notes)
 
@@ -230,49 +243,6 @@ class ExistingNetwork:
             return UnitRole.COOLER
         return UnitRole.EXCHANGER
 
-    def _positions(self, units: list[ExistingUnit], streams: dict) -> list[ExistingUnit]:
-        by_stream: dict[str, list[tuple[int, str]]] = {s: [] for s in streams}
-        for i, u in enumerate(units):
-            for side in ("hot", "cold"):
-                attr, column = f"{side}_position", f"{side}_order"
-                name = getattr(u, side)
-                if name in streams:
-                    by_stream[name].append((i, side))
-                elif getattr(u, attr) is not None:
-                    raise InputError(f"unit '{u.name}': {column} {getattr(u, attr)} is given for utility "
-                                     f"'{name}'; positions apply to process streams only (leave it empty)",
-                                     row=u.row, column=column)
-        units = list(units)
-        for stream, members in by_stream.items():
-            if not members:
-                continue
-            given = [(i, side, getattr(units[i], f"{side}_position")) for i, side in members]
-            missing = [(i, side) for i, side, p in given if p is None]
-            if missing and len(missing) < len(given):
-                i, side = missing[0]
-                raise InputError(f"unit '{units[i].name}' has no {side}_order on stream '{stream}' while other "
-                                 f"units of that stream have one; give positions for every unit of a stream "
-                                 "or for none", row=units[i].row, column=f"{side}_order")
-            if missing:
-                for k, (i, side) in enumerate(members, start=1):
-                    units[i] = replace(units[i], **{f"{side}_position": k})
-                continue
-            n = len(given)
-            taken: dict[int, int] = {}
-            for i, side, p in given:
-                if p in taken:
-                    raise InputError(f"units '{units[taken[p]].name}' and '{units[i].name}' both take position {p} "
-                                     f"on stream '{stream}'; positions along a stream must differ (stream splits "
-                                     "are not supported)", row=units[i].row, column=f"{side}_order")
-                taken[p] = i
-            for i, side, p in given:
-                if p > n:
-                    gaps = sorted(set(range(1, n + 1)) - set(taken))
-                    raise InputError(f"unit '{units[i].name}': position {p} on stream '{stream}', which has {n} "
-                                     f"unit(s); positions must run 1 to {n} without gaps (missing: "
-                                     f"{', '.join(map(str, gaps))})", row=units[i].row, column=f"{side}_order")
-        return units
-
     def _coefficient(self, unit: ExistingUnit, streams: dict, utilities: dict) -> ExistingUnit:
         if unit.u is not None:
             return unit
@@ -297,34 +267,39 @@ class ExistingNetwork:
 
     def _duties(self, units: list[ExistingUnit], streams: dict, utilities: dict,
                 notes: list[str]) -> list[ExistingUnit]:
-        order = {name: sorted((u for u in units if name in u.process_streams),
-                              key=lambda u, n=name: u.hot_position if u.hot == n else u.cold_position)
-                 for name in streams}
-        # stream duty of every unit, one stream at a time
+        order = {name: stages(units, name) for name in streams}
+        # stream duty of every unit, one stream at a time (a branch's share of it on a split)
         for name, seq in order.items():
             s = streams[name]
-            for u in seq:
-                if u.duty is not None and u.duty > s.duty * (1 + 1e-9):
+            for u in (u for group in seq for u in group):
+                share = u.fraction(name)
+                if u.duty is not None and u.duty > share * s.duty * (1 + 1e-9):
                     raise InputError(f"unit '{u.name}': stated duty {u.duty:.6g} kW is more than stream '{name}' "
                                      f"{'gives' if s.is_hot else 'takes'} between its supply and target "
-                                     f"temperatures ({s.duty:.6g} kW)", row=u.row, column="duty")
-        # temperatures at the stated operating point: (stream, position) -> temperature after that unit
-        known: dict[tuple[str, int], float] = {}
+                                     f"temperatures ({s.duty:.6g} kW)" + (
+                                         f" on its branch, which carries {share:.4g} of the stream "
+                                         f"({share * s.duty:.6g} kW)" if share < 1 else ""), row=u.row, column="duty")
+        # temperatures at the stated operating point: (stream, position) -> temperature after that position
+        # (mixed after a split); (stream, position, unit) -> a branch's outlet
+        known: dict[tuple, float] = {}
         for name, seq in order.items():
             s = streams[name]
-            trim = bool(seq) and seq[-1].role is not UnitRole.EXCHANGER
+            trim = bool(seq) and len(seq[-1]) == 1 and seq[-1][0].role is not UnitRole.EXCHANGER
             t, walked = s.supply_temperature, 0.0
             known[(name, 0)] = t
-            for k, u in enumerate(seq, start=1):   # from the supply end through stated duties
-                if u.duty is None:
+            for k, group in enumerate(seq, start=1):   # from the supply end through stated duties
+                if any(u.duty is None for u in group):
                     break
-                walked += u.duty
+                u = group[-1]
+                walked += sum(x.duty for x in group)
                 if trim and k < len(seq) and walked > s.duty * (1 + DUTY_CONSISTENCY):
                     raise InputError(f"unit '{u.name}': the stated duties of the units of stream '{name}' up to "
                                      f"this one add up to {walked:.6g} kW, more than the {s.duty:.6g} kW the "
                                      f"stream {'gives' if s.is_hot else 'takes'} before the "
-                                     f"{seq[-1].role.value} '{seq[-1].name}' at its end", row=u.row, column="duty")
-                t = temperature_after(s, t, u.duty)
+                                     f"{seq[-1][0].role.value} '{seq[-1][0].name}' at its end", row=u.row,
+                                     column="duty")
+                branch_outlets(known, s, k, t, group)
+                t = temperature_after(s, t, sum(x.duty for x in group))
                 known[(name, k)] = t
             if not trim:
                 continue
@@ -334,21 +309,22 @@ class ExistingNetwork:
                 if prior is None:
                     known[(name, k)] = t
                 elif abs(heat_between(s, prior, t)) > DUTY_CONSISTENCY * s.duty:
-                    u = seq[-1]
+                    u = seq[-1][0]
                     raise InputError(
                         f"unit '{u.name}': the stated duties of the units of stream '{name}' add up to "
                         f"{walked:.6g} kW but the stream {'gives' if s.is_hot else 'takes'} {s.duty:.6g} kW "
                         f"between supply and target, which the {u.role.value} at its end reaches (leave the duty "
-                        f"and area of the {u.role.value} '{seq[-1].name}' empty to let it take the rest)",
+                        f"and area of the {u.role.value} '{u.name}' empty to let it take the rest)",
                         row=u.row, column="duty")
-                if k == 0 or seq[k - 1].duty is None:
+                if k == 0 or any(x.duty is None for x in seq[k - 1]):
                     break
-                t = temperature_after(s, t, -seq[k - 1].duty)
+                t = temperature_after(s, t, -sum(x.duty for x in seq[k - 1]))
+                branch_outlets(known, s, k, t, seq[k - 1])
                 k -= 1
         out = []
         for u in units:
             seq_of = {n: order[n] for n in u.process_streams}
-            last = {n: seq[-1] is u for n, seq in seq_of.items()}
+            last = {n: u.name in {x.name for x in seq[-1]} for n, seq in seq_of.items()}   # a final split too
             if u.role is UnitRole.EXCHANGER:
                 mode = OperatingMode.RATED
             elif last[u.process_streams[0]]:
@@ -369,7 +345,7 @@ class ExistingNetwork:
                                  f"{(util.hottest + util.coldest) / 2:g} °C")
                 mode = OperatingMode.RATED
             u = replace(u, mode=mode)
-            temps = self._temperatures(u, known, streams, utilities)
+            temps = stated_temperatures(u, known, streams, utilities)
             if u.duty is not None and temps is not None:
                 u = self._check_duty(u, temps, streams, utilities, notes)
             if u.area is None and mode is not OperatingMode.FIXED_DUTY and mode is not OperatingMode.TRIM:
@@ -378,7 +354,7 @@ class ExistingNetwork:
                                      row=u.row, column="area")
                 raise InputError(
                     f"unit '{u.name}' gives a duty but no area, and its temperatures are not known without "
-                    f"simulating the network (a unit without a stated duty comes before it on "
+                    f"simulating the network (a unit without a stated duty, or a split with such a branch, comes before it on "
                     f"{' and '.join(repr(n) for n in u.process_streams)} from the supply end, and after it from "
                     "the target end): give its area", row=u.row, column="area")
             if u.mode is OperatingMode.RATED:
@@ -392,28 +368,6 @@ class ExistingNetwork:
                              "from the table); it does not count in the network's area")
             out.append(u)
         return out
-
-    def _temperatures(self, u: ExistingUnit, known: dict, streams: dict, utilities: dict):
-        """(hot_in, hot_out, cold_in, cold_out) at the stated operating point, or None when unknown."""
-        if u.duty is None:
-            return None
-        out = []
-        for side in ("hot", "cold"):
-            name = getattr(u, side)
-            if name in utilities:
-                util = utilities[name]
-                out += [util.supply_temperature, util.target_temperature]
-                continue
-            s, k = streams[name], getattr(u, f"{side}_position")
-            t_in, t_out = known.get((name, k - 1)), known.get((name, k))
-            if t_in is None and t_out is None:
-                return None
-            if t_in is None:
-                t_in = temperature_after(s, t_out, -u.duty)
-            if t_out is None:
-                t_out = temperature_after(s, t_in, u.duty)
-            out += [t_in, t_out]
-        return tuple(out)
 
     def _check_duty(self, u: ExistingUnit, temps, streams: dict, utilities: dict, notes: list[str]) -> ExistingUnit:
         """Check a stated duty against the driving force; compute the area from it when needed."""
@@ -444,7 +398,7 @@ class ExistingNetwork:
             return u
         # heater or cooler: a counter-current match with the utility running between its two temperatures
         util = hot if u.role is UnitRole.HEATER else cold
-        stream = cold if u.role is UnitRole.HEATER else hot
+        stream = branch_stream(cold, u.cold_fraction) if u.role is UnitRole.HEATER else branch_stream(hot, u.hot_fraction)
         t_in, t_out = (cold_in, cold_out) if u.role is UnitRole.HEATER else (hot_in, hot_out)
         uu = u.u if u.u is not None else 1.0
         try:
@@ -490,9 +444,20 @@ class ExistingNetwork:
         raise KeyError(name)
 
     def on_stream(self, name: str) -> tuple[ExistingUnit, ...]:
-        """The units along a process stream, from its supply end."""
+        """The units along a process stream, from its supply end (the branches of a split next to each other,
+        in the network's order: see :meth:`stages` for the positions)."""
         seq = [u for u in self.units if name in u.process_streams]
         return tuple(sorted(seq, key=lambda u: u.hot_position if u.hot == name else u.cold_position))
+
+    def stages(self, name: str) -> tuple[tuple[ExistingUnit, ...], ...]:
+        """The units along a process stream by position, from its supply end: one tuple per position, a
+        single unit or the parallel branches of a split."""
+        return stages(self.units, name)
+
+    @property
+    def has_splits(self) -> bool:
+        """True when a stream is split (some unit sits on a split branch)."""
+        return any(u.on_branch for u in self.units)
 
     @property
     def exchangers(self) -> tuple[ExistingUnit, ...]:
@@ -552,34 +517,48 @@ class ExistingNetwork:
         stream the unit met first from its supply end must be further left (hot) or further right (cold).
         Those precedences form a directed graph; when it has cycles (a perfectly feasible network whose
         units meet the streams in crossing orders) no single left-to-right order exists: the cycles are
-        returned (unit names) and the precedences of cold streams that close them are dropped.
+        returned (unit names) and the precedences of cold streams that close them are dropped.  The branches
+        of a split share a column (they are one node of the graph) unless that closes a cycle.
         """
         import networkx as nx
 
-        g = nx.DiGraph()
-        g.add_nodes_from(u.name for u in self.units)
+        rep = {u.name: u.name for u in self.units}   # the branches of a split: one node (union-find)
+
+        def root(n: str) -> str:
+            while rep[n] != n:
+                n = rep[n]
+            return n
+
         hot_edges, cold_edges = [], []
-        for s in self.streams:
-            seq = [u.name for u in self.on_stream(s.name)]
-            pairs = list(zip(seq, seq[1:]))
+        for s in self.streams:   # every unit of a position precedes every unit of the next (splits: branches)
+            seq = self.stages(s.name)
+            pairs = [(a.name, b.name) for g1, g2 in zip(seq, seq[1:]) for a in g1 for b in g2]
             if s.is_hot:
                 hot_edges += pairs
             else:
                 cold_edges += [(b, a) for a, b in pairs]
-        g.add_edges_from(hot_edges)
+            for group in seq:
+                for u in group[1:]:
+                    rep[root(u.name)] = root(group[0].name)
+        merged = any(rep[n] != n for n in rep)
+        g = nx.DiGraph()
+        g.add_nodes_from({root(n) for n in rep})
         cycles: list[list[str]] = []
-        for a, b in cold_edges:
+        for k, (a, b) in enumerate(hot_edges + cold_edges):
+            a, b = root(a), root(b)
+            if a == b:
+                continue
             g.add_edge(a, b)
             if not nx.is_directed_acyclic_graph(g):
+                if k < len(hot_edges) and not merged:   # hot precedences alone cannot cycle; kept as a guard
+                    raise AssertionError("hot-stream precedences form a cycle")
                 cycle = nx.find_cycle(g, source=a)
                 cycles.append([e[0] for e in cycle])
                 g.remove_edge(a, b)
-        if not nx.is_directed_acyclic_graph(g):   # hot precedences alone cannot cycle; kept as a guard
-            raise AssertionError("hot-stream precedences form a cycle")
         column: dict[str, int] = {}
         for n in nx.topological_sort(g):
             column[n] = max((column[p] + 1 for p in g.predecessors(n)), default=0)
-        return column, cycles
+        return {n: column[root(n)] for n in rep}, cycles
 
     # -- changes (for retrofit) -----------------------------------------------------------------
 
@@ -616,7 +595,7 @@ class ExistingNetwork:
             stream = getattr(unit, side)
             if stream not in self._stream_names:
                 continue
-            n = len(self.on_stream(stream))
+            n = len(self.stages(stream))
             p = getattr(unit, f"{side}_position")
             if p is None or p > n:
                 unit = replace(unit, **{f"{side}_position": n + 1})
@@ -632,36 +611,49 @@ class ExistingNetwork:
                      source: str | None = None) -> ExistingNetwork:
         """The existing-network form of a designed :class:`heatloom.network.Network`.
 
-        Units are named ``E1``..., ``H1``..., ``C1``... in the design's order and carry its areas, U values
-        and duties; their order along every stream follows the design's temperatures.
+        Units are named ``E1``..., ``H1``..., ``C1``... in the design's order and carry its areas, U values,
+        duties and flow fractions; their order along every stream follows the design's temperatures, and the
+        branches of a split (units of one stage with a fraction below 1 of that stream) share one position.
 
         Raises
         ------
         InputError
-            If the design splits a stream (splits are not represented here) or a unit has no area.
+            If a unit has no area, or the design has a split the existing network cannot represent (a heater
+            or cooler on a branch, a branch with several units in series or with a bypass:
+            :mod:`heatloom.retrofit.branches`).
         """
+        from ..network.structure import grid_key
+
         units = []
         for prefix, group in (("E", network.exchangers), ("H", network.heaters), ("C", network.coolers)):
             for k, x in enumerate(group, start=1):
                 name = f"{prefix}{k}"
-                fractions = [getattr(x, a) for a in ("hot_fraction", "cold_fraction") if hasattr(x, a)]
-                if any(abs(f - 1.0) > 1e-9 for f in fractions):
-                    raise InputError(f"unit {name} ({_pair(x)}) sits on a split branch; stream splits are not "
-                                     "represented in an existing network")
                 if x.area is None:
                     raise InputError(f"unit {name} ({_pair(x)}) has no area")
                 hot = getattr(x, "hot", None) or x.utility
                 cold = getattr(x, "cold", None) or x.utility
-                units.append((ExistingUnit(name, hot, cold, area=x.area, duty=x.duty, u=x.u), x))
+                shares = {f"{side}_fraction": design_share(getattr(x, f"{side}_fraction", 1.0)) for side in ("hot", "cold")}
+                units.append((ExistingUnit(name, hot, cold, area=x.area, duty=x.duty, u=x.u, **shares), x))
         positions: dict[str, dict[str, int]] = {}
         for s in streams:
-            on = [(u, x) for u, x in units if s.name in (u.hot, u.cold)]
-            key = (lambda p: -p[1].hot_in) if s.is_hot else (lambda p: p[1].cold_in)
-            for k, (u, _) in enumerate(sorted(on, key=key), start=1):
-                positions.setdefault(u.name, {})["hot_position" if s.is_hot else "cold_position"] = k
+            side = "hot" if s.is_hot else "cold"
+            blocks: dict[tuple, list] = {}   # a split's branches: one block per stage of the design
+            for u, x in units:
+                if s.name in (u.hot, u.cold):
+                    key = ("split", grid_key(x)) if getattr(u, f"{side}_fraction") < 1 else ("unit", u.name)
+                    blocks.setdefault(key, []).append((u, x))
+            inlet = (lambda b: min(-x.hot_in for _, x in b)) if s.is_hot else (lambda b: min(x.cold_in for _, x in b))
+            for k, block in enumerate(sorted(blocks.values(), key=inlet), start=1):
+                for u, _ in block:
+                    positions.setdefault(u.name, {})[f"{side}_position"] = k
         done = [replace(u, **positions.get(u.name, {})) for u, _ in units]
-        return cls(streams, tuple(done), tuple(utilities), source,
-                   ("built from a heatloom design: areas, U and duties of the design",))
+        try:
+            return cls(streams, tuple(done), tuple(utilities), source,
+                       ("built from a heatloom design: areas, U and duties of the design",))
+        except InputError as e:   # name the design's unit beside the name given here
+            by_row = {u.name: x for u, x in units}
+            named = [f"{n} is the design's {x.name or _pair(x)}" for n, x in by_row.items() if f"'{n}'" in e.message]
+            raise InputError(e.message + (f" ({'; '.join(named)})" if named else "")) from None
 
     # -- output ---------------------------------------------------------------------------------
 
@@ -670,11 +662,13 @@ class ExistingNetwork:
                 "notes": list(self.notes)}
 
     def to_frame(self):
-        """One row per unit, canonical units in the headers."""
+        """One row per unit, canonical units in the headers (with the flow fractions when a stream is split)."""
         import pandas as pd
 
+        split = {"hot fraction [-]": "hot_fraction", "cold fraction [-]": "cold_fraction"} if self.has_splits else {}
         return pd.DataFrame([{"unit": u.name, "role": u.role.value, "mode": u.mode.value, "hot": u.hot,
                               "cold": u.cold, "hot_order": u.hot_position, "cold_order": u.cold_position,
+                              **{k: getattr(u, a) for k, a in split.items()},
                               "area [m²]": u.area, "duty [kW]": u.duty, "U [kW/(m²·K)]": u.u,
                               "type": u.arrangement.value, "shells": u.shells} for u in self.units])
 

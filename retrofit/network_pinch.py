@@ -118,10 +118,11 @@ def _walk(net: ExistingNetwork, duties: dict[str, float]) -> dict[str, tuple[flo
     ends: dict[tuple[str, str], tuple[float, float]] = {}
     for s in net.streams:
         t = s.supply_temperature
-        for u in net.on_stream(s.name):
-            t2 = temperature_after(s, t, duties[u.name])
-            ends[(u.name, "hot" if u.hot == s.name else "cold")] = (t, t2)
-            t = t2
+        for group in net.stages(s.name):   # a split's branches from one inlet, each with its share
+            for u in group:
+                share = u.fraction(s.name)
+                ends[(u.name, "hot" if u.hot == s.name else "cold")] = (t, temperature_after(s, t, duties[u.name] / share))
+            t = temperature_after(s, t, sum(duties[u.name] for u in group))
     out = {}
     for u in net.units:
         h = ends.get((u.name, "hot"))

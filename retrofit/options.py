@@ -21,8 +21,9 @@ save utilities, prices them, and ranks the sets of changes worth making.  How:
    * *pairs*: every resequencing or repiping followed by added area on the same unit, sized at the state
      the move leaves (re-linearised there).
 
-   Stream splits are left out: an existing network here has no splits (see
-   :mod:`heatloom.retrofit.existing`), so neither do its retrofits.
+   Stream splits of the existing network stay as they are (:mod:`heatloom.retrofit.branches`): added area
+   is tried on branch units too, but new units, moves and repiping go between positions, never inside a
+   split (between its branches), and no unit is moved off a branch; no new split is proposed.
 
 2. **Exact value of every candidate alone.**  Each is applied (areas fixed afterwards), the network is
    simulated again by ε-NTU, and the candidate is kept only if the network still works (every stream at
@@ -292,8 +293,13 @@ def _per_unit(xp) -> dict[str, float]:
 
 
 def _word_place(net: ExistingNetwork, name: str, stream: str) -> str:
-    seq = [u.name for u in net.on_stream(stream)]
-    i = seq.index(name)
+    groups = net.stages(stream)
+    seq = [" / ".join(u.name for u in g) if len(g) == 1 else f"the split {' / '.join(u.name for u in g)}"
+           for g in groups]
+    i = next(k for k, g in enumerate(groups) if name in {u.name for u in g})
+    if len(groups[i]) > 1:
+        others = ", ".join(u.name for u in groups[i] if u.name != name)
+        return f"on a branch of {stream} in parallel with {others}"
     prev = seq[i - 1] if i > 0 else None
     nxt = seq[i + 1] if i + 1 < len(seq) else None
     if prev and nxt:
@@ -638,7 +644,12 @@ def retrofit_options(network: ExistingNetwork, dt_min: float, *, costs: CostSett
         if sav > top + 1e-9:
             frontier.append((inv, sav))
             top = sav
-    notes.append("stream splits are not considered (existing networks are represented without splits)")
+    if network.has_splits:
+        notes.append("the existing stream splits are kept: added area is tried on their branch units, but new "
+                     "exchangers, moves and repiping go only before or after a split, never inside it (between its "
+                     "branches), and no unit is moved off a branch; no new split is proposed")
+    else:
+        notes.append("no new stream splits are proposed")
     if not options:
         notes.append("no option saves energy within the limits given")
     return Retrofit(sim0, dt, emat, tuple(options), xp, eff,

@@ -14,12 +14,21 @@ streams both ways (loops included), so the whole network is one linear system A�
 temperatures between units; it is built and solved exactly with numpy.  Heaters and coolers at the end of
 their streams then take what is left (their duty may come out negative: reported, not hidden).
 
+Stream splits (:mod:`heatloom.retrofit.branches`): the branches of a split take the stream at its
+temperature before the split; branch k carries f_k of the flow, so its unit is rated with C = f_k·CP, and
+reports its own branch's inlet and outlet.  The branches mix adiabatically after the split: with constant
+CP, T_mix = Σ f_k·T_k; in general C_mix·(T_in − T_mix) = Σ f_k·C_k·(T_in − T_k) with the secant CPs below.
+For fixed CPs the mixer is linear in the branch outlets, so the network stays one linear system (one more
+unknown per branch, one more equation per mixer).  A heater or cooler on a branch of a stream's last split
+brings the mixed stream to its target.
+
 Streams of several segments (phase change, varying CP): each unit is rated with the stream's mean CP over
 the temperature range the stream actually covers in that unit (the secant of its enthalpy curve).  These
 CPs come from a fixed-point iteration with one linear solve per pass: the first pass takes each stream's
 mean CP over its whole range; each later pass gives every unit the secant CPs that agree with its own
-rating at its present inlet temperatures (a one-dimensional root, brentq), then solves the network again,
-until no temperature moves.  The energy balances are then exact; the ε-NTU relation itself is approximate
+rating at its present inlet temperatures (a one-dimensional root, brentq), and every mixer the secant of
+the stream between the split and the mixed temperature, then solves the network again, until no
+temperature moves.  The energy balances are then exact; the ε-NTU relation itself is approximate
 where a segment break falls inside a unit (the result's notes say so).
 
 References
@@ -46,6 +55,7 @@ from ..model.existing import ExistingUnit, OperatingMode, UnitRole
 from ..network.structure import smallest_approach
 from ..pinch import target
 from ..validation import check_dt_min
+from .branches import branch_stream
 from .existing import ExistingNetwork
 from .profiles import heat_between, mean_cp_between, temperature_after
 
@@ -80,6 +90,9 @@ class UnitState:
         breaks [K].
     stated_duty : float or None
         The duty the network table states [kW], for comparison.
+    hot_fraction, cold_fraction : float
+        Share of the hot and the cold stream's flow through the unit [-]; below 1 on a split branch, whose
+        temperatures are then the branch's own (before it mixes with the other branches).
     """
 
     name: str
@@ -98,6 +111,8 @@ class UnitState:
     ntu: float | None
     min_approach: float
     stated_duty: float | None
+    hot_fraction: float = 1.0
+    cold_fraction: float = 1.0
 
     def to_dict(self) -> dict:
         d = asdict(self)
@@ -115,7 +130,8 @@ class Simulation:
     units : tuple of UnitState
         In the network's unit order.
     temperatures : dict
-        Process stream name → temperatures from its supply end, after each of its units in order [°C].
+        Process stream name → temperatures from its supply end, after each of its positions in order [°C]
+        (after a split: the temperature of the mixed stream).
     shortfalls : dict
         Process stream name → heat still to remove (hot) or add (cold) to reach its target after its last
         unit [kW]; zero for a stream ending with a heater or cooler, negative when it overshoots.
@@ -207,11 +223,14 @@ class Simulation:
         }
 
     def to_frame(self):
-        """One row per unit, canonical units in the headers."""
+        """One row per unit, canonical units in the headers (with the flow fractions when a stream is split)."""
         import pandas as pd
 
+        split = {"hot fraction [-]": "hot_fraction", "cold fraction [-]": "cold_fraction"} \
+            if self.network.has_splits else {}
         return pd.DataFrame([{"unit": u.name, "role": u.role.value, "mode": u.mode.value, "hot": u.hot,
-                              "cold": u.cold, "duty [kW]": u.duty, "stated duty [kW]": u.stated_duty,
+                              "cold": u.cold, **{k: getattr(u, a) for k, a in split.items()},
+                              "duty [kW]": u.duty, "stated duty [kW]": u.stated_duty,
                               "hot in [°C]": u.hot_in, "hot out [°C]": u.hot_out, "cold in [°C]": u.cold_in,
                               "cold out [°C]": u.cold_out, "area [m²]": u.area, "U [kW/(m²·K)]": u.u,
                               "effectiveness [-]": u.effectiveness, "NTU [-]": u.ntu,
@@ -235,13 +254,14 @@ class Simulation:
             if u.role is UnitRole.EXCHANGER:
                 shells = self.network.unit(u.name).shells
                 ex.append(Exchanger(u.hot, u.cold, hot_in=u.hot_in, hot_out=u.hot_out, cold_in=u.cold_in,
-                                    cold_out=u.cold_out, shells=shells, **common))
+                                    cold_out=u.cold_out, hot_fraction=u.hot_fraction, cold_fraction=u.cold_fraction,
+                                    shells=shells, **common))
             elif u.role is UnitRole.HEATER:
                 he.append(Heater(u.cold, u.hot, cold_in=u.cold_in, cold_out=u.cold_out, utility_in=u.hot_in,
-                                 utility_out=u.hot_out, **common))
+                                 utility_out=u.hot_out, cold_fraction=u.cold_fraction, **common))
             else:
                 co.append(Cooler(u.hot, u.cold, hot_in=u.hot_in, hot_out=u.hot_out, utility_in=u.cold_in,
-                                 utility_out=u.cold_out, **common))
+                                 utility_out=u.cold_out, hot_fraction=u.hot_fraction, **common))
         return Network(tuple(ex), tuple(he), tuple(co), 0.0 if self.dt_min is None else self.dt_min,
                        notes=self.notes + self.problems)
 
@@ -270,20 +290,23 @@ def _root(residual, edge: float) -> float:
 def _unit_cps(network: ExistingNetwork, u: ExistingUnit, streams: dict, inlets: dict) -> dict[str, float]:
     """Mean CPs of the process sides of a unit over the ranges they cover when the unit works at these
     inlet temperatures: the duty Q solves Q = ε(C_h(Q), C_c(Q))·C_min·ΔT_in (brentq), each C the secant of
-    its stream's enthalpy curve between inlet and outlet."""
+    its stream's enthalpy curve between inlet and outlet (a branch of fraction f: C = f times the secant
+    over the range its Q/f covers).  The secants are returned per whole stream flow."""
     if u.role is UnitRole.EXCHANGER:
         hot, cold = streams[u.hot], streams[u.cold]
+        fh, fc = u.hot_fraction, u.cold_fraction
         th, tc = inlets["hot"], inlets["cold"]
         if len(hot.segments) == 1 and len(cold.segments) == 1:
             return {}
         dt = th - tc
 
         def cps(q):
-            return (mean_cp_between(hot, th, temperature_after(hot, th, q)),
-                    mean_cp_between(cold, tc, temperature_after(cold, tc, q)))
+            return (mean_cp_between(hot, th, temperature_after(hot, th, q / fh)),
+                    mean_cp_between(cold, tc, temperature_after(cold, tc, q / fc)))
 
         def residual(q):
             ch, cc = cps(q)
+            ch, cc = fh * ch, fc * cc
             cmin, cmax = min(ch, cc), max(ch, cc)
             eps = float(effectiveness_from_ntu(u.u * u.area / cmin, cmin / cmax, u.arrangement, shells=u.shells))
             return q - eps * cmin * dt
@@ -291,7 +314,7 @@ def _unit_cps(network: ExistingNetwork, u: ExistingUnit, streams: dict, inlets: 
         if dt == 0:
             ch, cc = cps(0.0)
         else:
-            bounds = (heat_between(hot, th, tc), heat_between(cold, tc, th))
+            bounds = (fh * heat_between(hot, th, tc), fc * heat_between(cold, tc, th))
             edge = min(bounds) if dt > 0 else max(bounds)
             ch, cc = cps(_root(residual, edge))
         return {"hot": ch, "cold": cc}
@@ -301,7 +324,9 @@ def _unit_cps(network: ExistingNetwork, u: ExistingUnit, streams: dict, inlets: 
         return {}
     t_in = inlets[side]
     if u.mode is OperatingMode.FIXED_DUTY:
-        return {side: mean_cp_between(stream, t_in, temperature_after(stream, t_in, u.duty))}
+        share = u.fraction(stream.name)
+        return {side: mean_cp_between(stream, t_in, temperature_after(stream, t_in, u.duty / share))}
+    stream = branch_stream(stream, u.fraction(stream.name))   # rated: the secant of the branch's own flow
     t_u = _utility_temperature(u, network)
     drive = (t_u - t_in) if side == "cold" else (t_in - t_u)   # heat flows into the stream's direction
 
@@ -309,65 +334,119 @@ def _unit_cps(network: ExistingNetwork, u: ExistingUnit, streams: dict, inlets: 
         c = mean_cp_between(stream, t_in, temperature_after(stream, t_in, q))
         return q - float(effectiveness_from_ntu(u.u * u.area / c, 0.0)) * c * drive
 
+    share = u.fraction(getattr(u, side))
     if drive == 0:
-        return {side: mean_cp_between(stream, t_in, t_in)}
+        return {side: mean_cp_between(stream, t_in, t_in) / share}
     q = _root(residual_u, heat_between(stream, t_in, t_u))
-    return {side: mean_cp_between(stream, t_in, temperature_after(stream, t_in, q))}
+    return {side: mean_cp_between(stream, t_in, temperature_after(stream, t_in, q)) / share}
 
 
-def _system(network: ExistingNetwork, streams: dict, index: dict, pos: dict, cp: dict,
+@dataclass(frozen=True)
+class _Layout:
+    """The unknown temperatures and where every unit side takes and leaves its stream.
+
+    Keys: ``(stream, k)`` the stream after position k (k = 0: its supply, known; after a split: mixed);
+    ``(stream, k, unit)`` the outlet of a split branch.  ``inlet``/``outlet``: (unit, side) → key;
+    ``splits``: (stream, k) → the branches of the split at that position."""
+
+    index: dict
+    inlet: dict
+    outlet: dict
+    splits: dict
+    stages: dict
+
+
+def _layout(network: ExistingNetwork, streams: dict) -> _Layout:
+    index: dict[tuple, int] = {}
+    inlet, outlet, splits, stages = {}, {}, {}, {}
+    for name in streams:
+        stages[name] = network.stages(name)
+        for k, group in enumerate(stages[name], start=1):
+            index[(name, k)] = len(index)
+            if len(group) > 1:
+                splits[(name, k)] = group
+            for u in group:
+                side = "hot" if u.hot == name else "cold"
+                inlet[(u.name, side)] = (name, k - 1)
+                if len(group) > 1:
+                    outlet[(u.name, side)] = (name, k, u.name)
+                    index[outlet[(u.name, side)]] = len(index)
+                else:
+                    outlet[(u.name, side)] = (name, k)
+    return _Layout(index, inlet, outlet, splits, stages)
+
+
+def _system(network: ExistingNetwork, streams: dict, lay: _Layout, cp: dict,
             coefficient: dict) -> tuple[np.ndarray, np.ndarray]:
-    """The linear equations A·T = b of the temperatures between units, one per unit outlet on a stream.
+    """The linear equations A·T = b of the temperatures between units: one per unit outlet on a stream and
+    one per mixer after a split.
 
+    ``cp`` holds the (secant) heat capacity flow of each unit side per whole stream flow, key (unit, side),
+    and of each mixed stream after a split, key (stream, k); a branch of fraction f has f times it.
     ``coefficient`` receives (ε, NTU, ε·C_min) of every rated unit.
     """
-    n = len(index)
+    n = len(lay.index)
     a_mat = np.zeros((n, n))
     b = np.zeros(n)
 
-    def term(row: int, stream: str, k: int, c: float) -> None:
-        """Add c·T(stream, k) to the left side of equation `row` (T(stream, 0) is the supply, known)."""
-        if k == 0:
-            b[row] -= c * streams[stream].supply_temperature
+    def term(row: int, key: tuple, c: float) -> None:
+        """Add c·T(key) to the left side of equation `row` (a stream's supply, position 0, is known)."""
+        if len(key) == 2 and key[1] == 0:
+            b[row] -= c * streams[key[0]].supply_temperature
         else:
-            a_mat[row, index[(stream, k)]] += c
+            a_mat[row, lay.index[key]] += c
 
     for u in network.units:
         if u.role is UnitRole.EXCHANGER:
-            i, j = pos[(u.name, "hot")], pos[(u.name, "cold")]
-            ch, cc = cp[(u.name, "hot")], cp[(u.name, "cold")]
+            hi, ho = lay.inlet[(u.name, "hot")], lay.outlet[(u.name, "hot")]
+            ci, co = lay.inlet[(u.name, "cold")], lay.outlet[(u.name, "cold")]
+            ch, cc = u.hot_fraction * cp[(u.name, "hot")], u.cold_fraction * cp[(u.name, "cold")]
             cmin, cmax = min(ch, cc), max(ch, cc)
             ntu = u.u * u.area / cmin
             eps = float(effectiveness_from_ntu(ntu, cmin / cmax, u.arrangement, shells=u.shells))
             a = eps * cmin
             coefficient[u.name] = (eps, ntu, a)
-            rh, rc = index[(u.hot, i)], index[(u.cold, j)]
+            rh, rc = lay.index[ho], lay.index[co]
             # T_h,out = T_h,in − (a/C_h)(T_h,in − T_c,in);  T_c,out = T_c,in + (a/C_c)(T_h,in − T_c,in)
-            term(rh, u.hot, i, 1.0)
-            term(rh, u.hot, i - 1, -(1.0 - a / ch))
-            term(rh, u.cold, j - 1, -a / ch)
-            term(rc, u.cold, j, 1.0)
-            term(rc, u.cold, j - 1, -(1.0 - a / cc))
-            term(rc, u.hot, i - 1, -a / cc)
+            term(rh, ho, 1.0)
+            term(rh, hi, -(1.0 - a / ch))
+            term(rh, ci, -a / ch)
+            term(rc, co, 1.0)
+            term(rc, ci, -(1.0 - a / cc))
+            term(rc, hi, -a / cc)
             continue
         side = "cold" if u.role is UnitRole.HEATER else "hot"
         stream = getattr(u, side)
-        k = pos[(u.name, side)]
-        row = index[(stream, k)]
-        term(row, stream, k, 1.0)
-        if u.mode is OperatingMode.TRIM:
+        t_in, t_out = lay.inlet[(u.name, side)], lay.outlet[(u.name, side)]
+        row = lay.index[t_out]
+        if u.mode is OperatingMode.TRIM:   # the stream leaves at its target (mixed, on a branch of a last split)
+            term(row, (stream, lay.inlet[(u.name, side)][1] + 1), 1.0)
             b[row] += streams[stream].target_temperature
-        elif u.mode is OperatingMode.FIXED_DUTY:
-            c = cp[(u.name, side)]
-            term(row, stream, k - 1, -1.0)
+            continue
+        term(row, t_out, 1.0)
+        if u.mode is OperatingMode.FIXED_DUTY:
+            c = u.fraction(stream) * cp[(u.name, side)]
+            term(row, t_in, -1.0)
             b[row] += u.duty / c if side == "cold" else -u.duty / c
         else:   # rated against an isothermal utility: C_r = 0, ε = 1 − exp(−NTU)
-            c = cp[(u.name, side)]
+            c = u.fraction(stream) * cp[(u.name, side)]
             ntu = u.u * u.area / c
             eps = float(effectiveness_from_ntu(ntu, 0.0, ExchangerType.COUNTER_CURRENT))
             coefficient[u.name] = (eps, ntu, eps * c)
-            term(row, stream, k - 1, -(1.0 - eps))
+            term(row, t_in, -(1.0 - eps))
             b[row] += eps * _utility_temperature(u, network)
+    # mixers: C_mix (T_in − T_mix) = Σ f_k C_k (T_in − T_k), so T_mix = (1 − Σ w_k) T_in + Σ w_k T_k with
+    # w_k = f_k C_k / C_mix (= f_k for a constant CP)
+    for (name, k), group in lay.splits.items():
+        row = lay.index[(name, k)]
+        term(row, (name, k), 1.0)
+        total = 0.0
+        for u in group:
+            side = "hot" if u.hot == name else "cold"
+            w = u.fraction(name) * cp[(u.name, side)] / cp[(name, k)]
+            term(row, lay.outlet[(u.name, side)], -w)
+            total += w
+        term(row, (name, k - 1), -(1.0 - total))
     return a_mat, b
 
 
@@ -435,31 +514,29 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
     """
     dt_min = None if dt_min is None else check_dt_min(dt_min)
     streams = {s.name: s for s in network.streams}
-    seqs = {name: network.on_stream(name) for name in streams}
-    index: dict[tuple[str, int], int] = {}
-    for name, seq in seqs.items():
-        for k in range(1, len(seq) + 1):
-            index[(name, k)] = len(index)
-    n = len(index)
+    lay = _layout(network, streams)
+    n = len(lay.index)
     units = network.units
-    pos = {}   # (unit, side) -> position on its process stream
-    for u in units:
-        for side in ("hot", "cold"):
-            if getattr(u, side) in streams:
-                pos[(u.name, side)] = getattr(u, f"{side}_position")
     segmented = any(len(s.segments) > 1 for s in network.streams)
-    cp = {key: streams[getattr(network.unit(key[0]), key[1])].duty
-          / abs(streams[getattr(network.unit(key[0]), key[1])].supply_temperature
-                - streams[getattr(network.unit(key[0]), key[1])].target_temperature) for key in pos}
 
-    def temperature_of(temps: np.ndarray, stream: str, k: int) -> float:
-        return streams[stream].supply_temperature if k == 0 else float(temps[index[(stream, k)]])
+    def mean_cp(name: str) -> float:
+        s = streams[name]
+        return s.duty / abs(s.supply_temperature - s.target_temperature)
+
+    cp = {key: mean_cp(network.unit(key[0]).hot if key[1] == "hot" else network.unit(key[0]).cold)
+          for key in lay.inlet}
+    cp.update({key: mean_cp(key[0]) for key in lay.splits})
+
+    def temperature_of(temps: np.ndarray, key: tuple) -> float:
+        if len(key) == 2 and key[1] == 0:
+            return streams[key[0]].supply_temperature
+        return float(temps[lay.index[key]])
 
     temps = np.zeros(n)
     iterations = 0
     coefficient: dict[str, tuple[float, float, float]] = {}   # unit -> (eps, ntu, eps·C_min)
     for iterations in range(1, max_iterations + 1):
-        a_mat, b = _system(network, streams, index, pos, cp, coefficient)
+        a_mat, b = _system(network, streams, lay, cp, coefficient)
         try:
             new = np.linalg.solve(a_mat, b) if n else np.zeros(0)
         except np.linalg.LinAlgError:
@@ -472,13 +549,23 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
         if not segmented:
             break
         # mean CP of each stream over the range it covers in each unit (secant of its enthalpy curve), made
-        # consistent with the unit's own rating at its present inlet temperatures
+        # consistent with the unit's own rating at its present inlet temperatures; after a split, the mixed
+        # stream's over the range from the split to the mixer
         relax = 1.0 if iterations < 50 else 0.5
         for u in units:
-            inlets = {side: temperature_of(temps, getattr(u, side), pos[(u.name, side)] - 1)
-                      for side in ("hot", "cold") if (u.name, side) in pos}
-            for side, value in _unit_cps(network, u, streams, inlets).items():
+            inlets = {side: temperature_of(temps, lay.inlet[(u.name, side)])
+                      for side in ("hot", "cold") if (u.name, side) in lay.inlet}
+            values = _unit_cps(network, u, streams, inlets)
+            if u.mode is OperatingMode.TRIM and u.on_branch:   # its branch's range, as the mixer sees it
+                side = "cold" if u.role is UnitRole.HEATER else "hot"
+                values = {side: mean_cp_between(streams[getattr(u, side)], inlets[side],
+                                                temperature_of(temps, lay.outlet[(u.name, side)]))}
+            for side, value in values.items():
                 cp[(u.name, side)] = (1 - relax) * cp[(u.name, side)] + relax * value
+        for (name, k) in lay.splits:
+            value = mean_cp_between(streams[name], temperature_of(temps, (name, k - 1)),
+                                    temperature_of(temps, (name, k)))
+            cp[(name, k)] = (1 - relax) * cp[(name, k)] + relax * value
         if iterations > 1 and change <= tolerance:
             break
     else:
@@ -498,8 +585,8 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
         for side in ("hot", "cold"):
             name = getattr(u, side)
             if name in streams:
-                k = pos[(u.name, side)]
-                side_temps[side] = (temperature_of(temps, name, k - 1), temperature_of(temps, name, k))
+                side_temps[side] = (temperature_of(temps, lay.inlet[(u.name, side)]),
+                                    temperature_of(temps, lay.outlet[(u.name, side)]))
             else:
                 util = network.utility(name)
                 side_temps[side] = (util.supply_temperature, util.target_temperature)
@@ -518,7 +605,7 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
             if u.mode is OperatingMode.FIXED_DUTY:
                 q = u.duty
             else:
-                q = heat_between(stream, t_in, t_out)
+                q = u.fraction(stream.name) * heat_between(stream, t_in, t_out)
                 if u.mode is OperatingMode.RATED:
                     eps, ntu, _ = coefficient[u.name]
             if u.mode is OperatingMode.TRIM and q < -check:
@@ -536,35 +623,44 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
                             f"'{proc}' (smallest difference {approach:.4g} K); it cannot do its "
                             f"{q:.4g} kW")
         states.append(UnitState(u.name, u.role, u.mode, u.hot, u.cold, float(q), hi, ho, ci, co, u.area, u.u,
-                                eps, ntu, float(approach), u.duty))
+                                eps, ntu, float(approach), u.duty, u.hot_fraction, u.cold_fraction))
 
     temperatures: dict[str, tuple[float, ...]] = {}
     shortfalls: dict[str, float] = {}
-    for name, seq in seqs.items():
+    for name, seq in lay.stages.items():
         s = streams[name]
-        path = tuple(temperature_of(temps, name, k) for k in range(len(seq) + 1))
+        path = tuple(temperature_of(temps, (name, k)) for k in range(len(seq) + 1))
         temperatures[name] = path
-        for k, u in enumerate(seq, start=1):
-            if u.mode is OperatingMode.TRIM:
+        trim = bool(seq) and any(x.mode is OperatingMode.TRIM for x in seq[-1])
+        for k, group in enumerate(seq, start=1):
+            u = group[0]
+            if any(x.mode is OperatingMode.TRIM for x in group):
                 continue
+            what = f"unit '{u.name}'" if len(group) == 1 else \
+                f"the split of {', '.join(repr(x.name) for x in group)} (mixed)"
             past = heat_between(s, s.target_temperature, path[k])
             if past > max(check, balance_tolerance * s.duty):
                 duty = next((x.duty for x in states if x.name == u.name), 0.0)
                 fix = (f"; a bypass of about {100 * past / duty:.3g} % of the {'hot' if s.is_hot else 'cold'} "
                        "duty around it (or less area) would reconcile it"
-                       if u.role is UnitRole.EXCHANGER and duty > past else "")
-                problems.append(f"unit '{u.name}' takes stream '{name}' past its target: it leaves at "
+                       if len(group) == 1 and u.role is UnitRole.EXCHANGER and duty > past else "")
+                problems.append(f"{what} takes stream '{name}' past its target: it leaves at "
                                 f"{path[k]:.6g} °C, target {s.target_temperature:.6g} °C ({past:.4g} kW too much"
                                 f"{fix})")
             elif past > check:
-                within.append(f"unit '{u.name}' takes stream '{name}' {past:.3g} kW past its target, within the "
+                within.append(f"{what} takes stream '{name}' {past:.3g} kW past its target, within the "
                               f"{100 * balance_tolerance:g} % tolerance of measured data")
         short = heat_between(s, path[-1], s.target_temperature)
-        shortfalls[name] = 0.0 if seq and seq[-1].mode is OperatingMode.TRIM else short
+        shortfalls[name] = 0.0 if trim else short
         if abs(shortfalls[name]) > check:
             more = "more cooling" if s.is_hot else "more heating"
-            why = "it has no units" if not seq else f"it ends with exchanger '{seq[-1].name}', not a " \
-                f"{'cooler' if s.is_hot else 'heater'}"
+            if not seq:
+                why = "it has no units"
+            elif len(seq[-1]) == 1:
+                why = f"it ends with exchanger '{seq[-1][0].name}', not a {'cooler' if s.is_hot else 'heater'}"
+            else:
+                why = (f"it ends with a split ({', '.join(repr(x.name) for x in seq[-1])}), not a "
+                       f"{'cooler' if s.is_hot else 'heater'}")
             if short > balance_tolerance * s.duty:
                 problems.append(f"stream '{name}' leaves the network at {path[-1]:.6g} °C instead of its "
                                 f"target {s.target_temperature:.6g} °C: {short:.4g} kW {more} needed ({why}; a "
@@ -582,6 +678,9 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
                      "covers in that unit (fixed-point iteration, "
                      f"{iterations} linear solves); energy balances exact, ε-NTU approximate where a segment "
                      "break falls inside a unit")
+    if lay.splits:
+        notes.append(f"{len(lay.splits)} stream split(s): the branches take the stream at its temperature before "
+                     "the split, each with its share of the flow, and mix adiabatically after it")
     if any(u.arrangement.flow_pattern is not ExchangerType.COUNTER_CURRENT for u in units):
         notes.append("min approach of co-current and 1-2 shell units is the counter-current pairing of their "
                      "end temperatures")

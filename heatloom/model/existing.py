@@ -81,6 +81,11 @@ class ExistingUnit:
     stated_role : UnitRole, optional
         The role the table states (its ``role`` column), checked against the one the hot and cold sides
         give when the network is resolved.
+    hot_fraction, cold_fraction : float, optional
+        Share of the hot and the cold process stream's flow through the unit, in (0, 1] [-]; 1 (default)
+        when the stream is not split there.  A unit below 1 sits on one branch of a stream split: the
+        units of one split share one position along the stream, one unit per branch, and their fractions
+        add up to 1 (checked by :class:`ExistingNetwork`).
 
     A heater or cooler that is the last unit on its stream (a *trim* unit) may have neither area nor duty:
     it takes the rest of its stream's duty, bringing the stream to its target.  Every other unit needs an
@@ -106,6 +111,8 @@ class ExistingUnit:
     mode: OperatingMode | None = None
     area_from_duty: bool = False
     u_from_films: bool = False
+    hot_fraction: float = 1.0
+    cold_fraction: float = 1.0
 
     def __post_init__(self) -> None:
         where = {"row": self.row}
@@ -162,6 +169,30 @@ class ExistingUnit:
                 raise InputError(f"unit '{name}': {column} must be a whole number >= 1 (position from the "
                                  f"stream's supply end), got {getattr(self, attr)!r}", column=column, **where)
             object.__setattr__(self, attr, int(v))
+        for attr, column in (("hot_fraction", "hot_fraction"), ("cold_fraction", "cold_fraction")):
+            v = getattr(self, attr)
+            try:
+                x = float(v)
+            except (TypeError, ValueError):
+                x = float("nan")
+            if not 0 < x <= 1 + 1e-9:
+                raise InputError(f"unit '{name}': {column.replace('_', ' ')} must be in (0, 1] (the share of the "
+                                 f"stream's flow through this unit on a split branch), got {v!r}", column=column,
+                                 **where)
+            object.__setattr__(self, attr, min(1.0, x))
+
+    def fraction(self, stream: str) -> float:
+        """Share of process stream ``stream``'s flow through this unit [-] (1 when not split there)."""
+        if stream == self.hot:
+            return self.hot_fraction
+        if stream == self.cold:
+            return self.cold_fraction
+        raise KeyError(stream)
+
+    @property
+    def on_branch(self) -> bool:
+        """True when the unit sits on a split branch of either of its streams."""
+        return self.hot_fraction < 1.0 or self.cold_fraction < 1.0
 
     @property
     def is_utility_unit(self) -> bool:
@@ -181,7 +212,8 @@ class ExistingUnit:
         return {"unit": self.name, "hot": self.hot, "cold": self.cold, "role": _value(self.role),
                 "mode": _value(self.mode), "area": self.area, "duty": self.duty, "U": self.u,
                 "type": self.arrangement.value, "shells": self.shells, "hot_order": self.hot_position,
-                "cold_order": self.cold_position, "area_from_duty": self.area_from_duty,
+                "cold_order": self.cold_position, "hot_fraction": self.hot_fraction,
+                "cold_fraction": self.cold_fraction, "area_from_duty": self.area_from_duty,
                 "U_from_films": self.u_from_films}
 
 

@@ -288,16 +288,71 @@ def test_15_trim_units_without_duty_or_area(capsys, tmp_path, case):
                   r"them \(only a heater or cooler that is the last unit on its stream may leave both empty")
 
 
-def test_16_a_design_with_stream_splits_is_refused_by_retrofit_naming_the_unit(capsys, tmp_path):
+def test_16_a_design_with_stream_splits_reads_back_into_retrofit(capsys, tmp_path):
+    # the solvent-recovery case (invented data, case_studies/solvent_recovery) designed at ΔTmin 10 K splits the
+    # reboiler between two exchangers; retrofit reads the design's own units table back, splits included, and
+    # the network at its designed areas does what the design says (its hot utility: the design's console)
+    designed = tmp_path / "designed"
+    code, out, err = run(capsys, "design", SOLVENT / "streams.csv", "--utilities", SOLVENT / "utilities.csv",
+                         "--out", designed, "--json")
+    assert code == 0, err
+    hot_utility = json.loads(out)["hot_utility"]
+    units = (designed / "design_units.csv").read_text(encoding="utf-8")
+    header = units.splitlines()[0].split(",")
+    rows = [line.split(",") for line in units.splitlines()[1:]]
+    cold_fraction = header.index("cold fraction [-]")
+    assert sum(float(r[cold_fraction]) < 1 for r in rows) >= 2              # a split
+    inputs = ("--streams", SOLVENT / "streams.csv", "--utilities", SOLVENT / "utilities.csv")
+    with untouched(tmp_path, new_only_in=tmp_path / "retrofit"):
+        code, out, err = run(capsys, "retrofit", designed / "design_units.csv", *inputs, "--json", *FAST,
+                             "--out", tmp_path / "retrofit")
+    assert code == 0, err
+    result = json.loads(out)
+    assert result["current"]["hot_utility"] == pytest.approx(hot_utility, rel=1e-4)
+    assert any("never inside it (between its branches)" in n for n in result["notes"])
+
+
+def _design_table(capsys, tmp_path) -> tuple[Path, list[str], list[list[str]]]:
     designed = tmp_path / "designed"
     code, _, err = run(capsys, "design", SOLVENT / "streams.csv", "--utilities", SOLVENT / "utilities.csv",
                        "--out", designed, "--quiet")
     assert code == 0, err
-    units = (designed / "design_units.csv").read_text(encoding="utf-8")
-    assert "role" in units.splitlines()[0]
-    refused(capsys, tmp_path, "retrofit", designed / "design_units.csv", "--streams", SOLVENT / "streams.csv",
-            "--utilities", SOLVENT / "utilities.csv",
-            match=r"design_units\.csv, row \d+, column '(hot|cold) fraction \[-\]': unit '\w+' sits on a split branch")
+    lines = (designed / "design_units.csv").read_text(encoding="utf-8").splitlines()
+    return designed / "design_units.csv", lines[0].split(","), [line.split(",") for line in lines[1:]]
+
+
+@pytest.mark.parametrize("fault", ["sum", "no fractions", "two trims"])
+def test_16_bad_splits_in_a_units_table_are_refused_located(capsys, tmp_path, fault):
+    path, header, rows = _design_table(capsys, tmp_path)
+    unit, hot_order, cold_order = header.index("unit"), header.index("hot_order"), header.index("cold_order")
+    hot_f, cold_f = header.index("hot fraction [-]"), header.index("cold fraction [-]")
+    branches = [k for k, r in enumerate(rows) if float(r[cold_f]) < 1]
+    first, second = branches[0], branches[1]
+    if fault == "sum":             # fractions of one split adding up to 0.9
+        rows[first][cold_f] = f"{float(rows[first][cold_f]) - 0.1:.6f}"
+        match = (rf"design_units\.csv, row {second + 2}, column 'cold fraction \[-\]': the split of stream "
+                 rf"'{rows[first][header.index('cold')]}' at position \d+ \(.*\) has fractions adding up to 0\.9, not 1")
+    elif fault == "no fractions":  # the split's position repeated without fractions
+        rows[first][cold_f] = rows[second][cold_f] = "1"
+        match = (rf"design_units\.csv, row {second + 2}, column 'cold_order': units '{rows[first][unit]}' and "
+                 rf"'{rows[second][unit]}' both take position \d+ on stream")
+    else:                          # two coolers sharing the end of a stream as a split
+        coolers = [k for k, r in enumerate(rows) if r[header.index("role")] == "cooler"]
+        a = coolers[0]
+        stream = rows[a][header.index("hot")]
+        on = [k for k, r in enumerate(rows) if stream in (r[header.index("hot")], r[header.index("cold")])]
+        last = str(max(int(float(rows[k][hot_order])) for k in on if rows[k][header.index("hot")] == stream))
+        extra = list(rows[a])
+        extra[unit] = "CU-9"
+        rows[a][hot_f] = extra[hot_f] = "0.5"
+        rows[a][hot_order] = extra[hot_order] = last
+        rows.append(extra)
+        match = (rf"design_units\.csv, row {len(rows) + 1}, column 'hot_order': the last split of stream '{stream}' "
+                 r"has 2 heaters/coolers")
+    del cold_order
+    path.write_text("\n".join([",".join(header)] + [",".join(r) for r in rows]) + "\n", encoding="utf-8")
+    refused(capsys, tmp_path, "retrofit", path, "--streams", SOLVENT / "streams.csv", "--utilities",
+            SOLVENT / "utilities.csv", *FAST, match=match)
 
 
 def test_17_two_files_for_one_role_are_refused(capsys, tmp_path, case):

@@ -87,19 +87,3 @@ def test_a_role_the_sides_contradict_is_refused(tmp_path, problem):
     with pytest.raises(InputError, match=r"row 2, column 'role': unknown role 'boiler'; allowed: exchanger, heater, "
                                          r"cooler"):
         read_network(csv_path)
-
-
-def test_split_branches_are_refused_naming_the_unit(tmp_path):
-    # the same problem at ΔTmin 5 K needs stream splits (no utility-free network without them)
-    data, streams = load_reference("synthesis_yee_grossmann_2h2c")
-    design = design_mer(streams, 5.0, reference_utilities(data))
-    frame = design.to_frame()
-    split = frame[(frame["hot fraction [-]"] < 1) | (frame["cold fraction [-]"] < 1)]
-    assert len(split)
-    first = split.index[0]
-    name = frame.loc[first, "unit"]
-    csv_path, xlsx_path = written(tmp_path, frame)
-    for path, sheet in ((csv_path, None), (xlsx_path, "units")):
-        with pytest.raises(InputError, match=rf"row {first + 2}, column '(hot|cold) fraction \[-\]': unit '{name}' "
-                                             r"sits on a split branch: .*cannot represent stream splits"):
-            read_network(path, sheet=sheet)
