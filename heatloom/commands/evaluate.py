@@ -33,7 +33,8 @@ examples:
   heatloom evaluate streams.csv network.csv --utilities utilities.csv --default-h 0.5 --out results
 
 NETWORK is a network table, one row per unit: unit, hot, cold, area and/or duty, U, hot_order, cold_order,
-type, shells (the table retrofit reads). A unit given by its duty does that duty; one given by its area
+type, shells, hot_fraction, cold_fraction (the table retrofit reads; a split's branches share one
+position and give their fractions). A unit given by its duty does that duty; one given by its area
 is rated at it; the heater or cooler at the end of a stream takes what brings it to its target.
 
 The network is checked as every design is (energy balance of every unit and stream, ΔTmin at both ends

@@ -35,11 +35,12 @@ examples:
   heatloom retrofit plant/ --costs plant/costs.json --out plant/retrofit --force
 
 NETWORK is the existing network table (one row per unit: unit, hot, cold, area and/or duty, U,
-hot_order, cold_order, type, shells, role), or a case folder whose files are found by name: 'streams',
-'network', 'utilities' and 'costs' (CSV or .xlsx; costs JSON, YAML or .xlsx); options given on the
-command line take precedence. A heater or cooler last on its stream may leave area and duty empty: it
+hot_order, cold_order, type, shells, role, hot_fraction, cold_fraction), or a case folder whose files
+are found by name: 'streams', 'network', 'utilities' and 'costs' (CSV or .xlsx; costs JSON, YAML or
+.xlsx); options given on the command line take precedence. A heater or cooler last on its stream may leave area and duty empty: it
 takes the rest of the stream's duty. The units table 'heatloom design' writes (design_units.csv, or
-the sheet 'units' of design.xlsx) is a network table too, read as it is when it has no stream splits.
+the sheet 'units' of design.xlsx) is a network table too. A stream split is one position shared by the
+units on its branches, each giving its fraction of the stream's flow (the fractions add up to 1).
 The costs file may carry a 'retrofit' section pricing new exchangers, added area, repiping and
 resequencing (illustrative defaults otherwise).
 
