@@ -3,8 +3,12 @@
 Each unit's area is the segment-wise counter-current LMTD area of its two sides
 (:func:`heatloom.equipment.segments.size_segments`; U from 1/U = 1/h_hot + 1/h_cold, clean surfaces; a split
 branch with its share of the flow); with an exchanger type that has a geometry, the area and cost are those
-of 1-2 shells in series (X_P criterion, area / F, cost per shell) or of double-pipe hairpins. The cost is the
-annualised cost law of the unit's kind, and the operating cost each utility's duty times its price.
+of 1-2 shells in series (X_P criterion, area / F, cost per shell) or of double-pipe hairpins.  A drawn network
+(``own_arrangements``, used by evaluation) sizes each unit as the arrangement its units table states instead:
+1-2 shells at the table's shell count (area / F), co-current with the co-current LMTD (exact for sides of
+one segment; for segmented sides the counter-current area scaled by the ratio of the end-point LMTDs, an
+approximation), double pipe as counter-current.  The cost is the annualised cost law of the unit's kind, and
+the operating cost each utility's duty times its price.
 """
 
 from __future__ import annotations
@@ -14,7 +18,7 @@ from dataclasses import replace
 
 from ..equipment.geometry import hairpins_for_area
 from ..equipment.segments import cut_profile, size_segments, utility_segment
-from ..equipment.sizing import shell_design
+from ..equipment.sizing import f_factor_from_temperatures, lmtd, shell_design
 from ..errors import InputError
 from ..model import Segment, StreamTable, Utility
 from ..model.costs import CostSettings, UnitKind
@@ -23,7 +27,7 @@ from ..pinch.area import missing_film_coefficients
 from ..validation import enum_member
 from .structure import Cooler, Heater, Network
 
-__all__ = ["with_film_coefficient", "geometry_kind", "unit_geometry", "size_network"]
+__all__ = ["with_film_coefficient", "geometry_kind", "unit_geometry", "stated_geometry", "size_network"]
 
 
 def with_film_coefficient(segments, default: float | None, scale: float = 1.0) -> list[Segment]:
@@ -89,9 +93,53 @@ def unit_geometry(area: float, hot_in: float, hot_out: float, cold_in: float, co
     return area, None, None, None
 
 
+def stated_geometry(area: float, hot_in: float, hot_out: float, cold_in: float, cold_out: float,
+                    arrangement: ExchangerType, shells: int | None):
+    """Area to cost [m²], shells [-], F [-] and the geometry report of a unit of a stated arrangement.
+
+    Parameters
+    ----------
+    area : float
+        Counter-current area of the unit's duty [m²].
+    hot_in, hot_out, cold_in, cold_out : float
+        Terminal temperatures [°C].
+    arrangement : ExchangerType
+        The arrangement the units table states.
+    shells : int or None
+        1-2 shells in series the table states [-] (1 when None).
+
+    Raises
+    ------
+    TemperatureCrossError
+        The stated shells or a co-current unit cannot reach these temperatures.
+
+    Examples
+    --------
+    A co-current unit needs more area than a counter-current one for the same temperatures (here by the
+    ratio of the log means, 64.87 K counter-current against 44.27 K co-current):
+
+    >>> round(stated_geometry(10.0, 150, 90, 30, 80, ExchangerType.CO_CURRENT, None)[0], 4)
+    14.6545
+    """
+    if arrangement is ExchangerType.SHELL_AND_TUBE_1_2:
+        n = int(shells or 1)
+        f = float(f_factor_from_temperatures(hot_in, hot_out, cold_in, cold_out, shells=n))
+        total = area / f
+        return total, n, f, {"type": arrangement.value, "shells": n, "f_factor": f, "area_per_shell": total / n,
+                             "set_by": "units table"}
+    if arrangement is ExchangerType.CO_CURRENT:
+        ratio = float(lmtd(hot_in, hot_out, cold_in, cold_out) / lmtd(hot_in, hot_out, cold_in, cold_out,
+                                                                       ExchangerType.CO_CURRENT))
+        return area * ratio, None, None, {"type": arrangement.value}
+    if arrangement is ExchangerType.DOUBLE_PIPE:
+        return area, None, None, {"type": arrangement.value}
+    return area, None, None, None
+
+
 def size_network(network: Network, streams: StreamTable, utilities: Sequence[Utility], *,
                  costs: CostSettings | None = None, default_film_coefficient: float | None = None,
-                 exchanger_type: ExchangerType | None = None, geometry_options: Mapping | None = None) -> Network:
+                 exchanger_type: ExchangerType | None = None, geometry_options: Mapping | None = None,
+                 own_arrangements: bool = False) -> Network:
     """The network with every unit sized and costed, and its capital, operating and total cost.
 
     Parameters
@@ -109,6 +157,10 @@ def size_network(network: Network, streams: StreamTable, utilities: Sequence[Uti
         Size every unit as this kind (see :func:`geometry_kind`); counter-current when omitted.
     geometry_options : mapping, optional
         Double-pipe ``tube_diameter`` [m] and ``hairpin_length`` [m].
+    own_arrangements : bool
+        Size every unit as the arrangement its ``geometry['type']`` states, with its own ``shells``
+        (:func:`stated_geometry`; a simulated drawn network, see :func:`heatloom.retrofit.evaluate.evaluate_network`);
+        ``exchanger_type`` must then be None.
 
     Returns
     -------
@@ -129,6 +181,8 @@ def size_network(network: Network, streams: StreamTable, utilities: Sequence[Uti
     >>> round(net.exchangers[0].area, 3)   # Q / (U·ΔT) = 180 / (0.5 · 30)
     12.0
     """
+    if own_arrangements and exchanger_type is not None:
+        raise ValueError("size_network: give exchanger_type or own_arrangements, not both")
     costs = costs or CostSettings()
     by_name = {s.name: s for s in streams}
     by_utility = {u.name: u for u in utilities}
@@ -172,8 +226,13 @@ def size_network(network: Network, streams: StreamTable, utilities: Sequence[Uti
             # effective LMTD and mean U of the whole unit: Q = U·A·LMTD with LMTD = Q / Σ(Q_k / LMTD_k)
             lm = x.duty / sum(i.duty / i.lmtd for i in sizing.intervals)
             u_mean = x.duty / (sizing.area * lm)
-            area, shells, f, geometry = unit_geometry(sizing.area, hot_in, hot_out, cold_in, cold_out, exchanger_type,
-                                                      geometry_options)
+            if own_arrangements:
+                stated = ExchangerType((x.geometry or {}).get("type", ExchangerType.COUNTER_CURRENT.value))
+                area, shells, f, geometry = stated_geometry(sizing.area, hot_in, hot_out, cold_in, cold_out, stated,
+                                                            x.shells)
+            else:
+                area, shells, f, geometry = unit_geometry(sizing.area, hot_in, hot_out, cold_in, cold_out,
+                                                          exchanger_type, geometry_options)
             cost = float(costs.annual_capital_cost(area, kind, shells or 1))
             capital += cost
             out[group].append(replace(x, area=float(area), cost=cost, u=u_mean, lmtd=lm, shells=shells, f_factor=f,

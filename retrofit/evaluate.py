@@ -12,8 +12,10 @@ brings the stream to its target) and then:
   their targets, units working backwards) count too;
 * temperature crosses are named per unit (the hot side below the cold side somewhere in the unit);
 * its utilities are compared with the energy targets of the problem table at the same ΔTmin;
-* every unit is sized (segment-wise counter-current LMTD, U from the film coefficients) and costed with the
-  cost laws of a new design (:func:`heatloom.network.sizing.size_network`).
+* every unit is sized (segment-wise counter-current LMTD, U from the film coefficients; a unit the table
+  states as 1-2 shells at its own shell count, area / F, and a co-current one with the co-current LMTD,
+  :func:`heatloom.network.sizing.stated_geometry`) and costed with the cost laws of a new design
+  (:func:`heatloom.network.sizing.size_network`).
 
 Results are screening estimates: a network must be checked against the plant's data and local codes by
 qualified, licensed engineers.
@@ -189,7 +191,8 @@ def evaluate_network(network: ExistingNetwork, dt_min: float, *, costs: CostSett
         notes.append(f"targets with ideal utilities: the utilities given cannot meet them at ΔTmin {dt:g} K ({e})")
     sized = True
     try:
-        net = size_network(net, streams, utilities, costs=costs, default_film_coefficient=default_film_coefficient)
+        net = size_network(net, streams, utilities, costs=costs, default_film_coefficient=default_film_coefficient,
+                           own_arrangements=True)
     except (TemperatureCrossError, InputError, ValueError) as e:
         sized = False   # the checks still stand; the notes say why there are no areas and costs
         notes.append(f"not sized and not costed as a new design: {e}")

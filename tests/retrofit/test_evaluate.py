@@ -95,3 +95,45 @@ def test_without_film_coefficients_the_checks_stand_and_the_notes_say_why_no_are
     ev = evaluate_network(ExistingNetwork(plain, units, utilities), 10.0)
     assert ev.ok and not ev.sized
     assert any("film coefficient" in n for n in ev.notes)
+
+
+# ---------------------------------------------------------------------------------------------------------
+# units the table states as 1-2 shells or co-current are sized as such, not as counter-current
+
+
+def test_a_1_2_shell_unit_of_given_area_is_sized_back_to_that_area_with_ht_F():
+    # E4 of the network above (30 kW, 60 → 30 °C against 20 → 35 °C) drawn as two 1-2 shells in series of the
+    # area that duty needs: A = Q / (U·F·LMTD), F by Fakheri's closed form in ht (Fakheri 2003, "An explicit
+    # expression for the F-factor", ASME J. Heat Transfer 125), LMTD by ht.LMTD
+    f = ht.F_LMTD_Fakheri(60.0, 30.0, 20.0, 35.0, shells=2)
+    area = 30.0 / (0.25 * f * ht.LMTD(60.0, 30.0, 20.0, 35.0))
+    units = [ExistingUnit(n, h, c, duty=q, hot_position=hp, cold_position=cp) for n, h, c, q, hp, cp, *_ in UNITS[:3]]
+    units += [ExistingUnit("E4", "2", "3", area=area, duty=30.0, arrangement="shell_and_tube_1_2", shells=2, hot_position=3,
+                           cold_position=1),
+              ExistingUnit("H1", "steam", "3", cold_position=4),
+              ExistingUnit("C1", "2", "water", duty=30.0, hot_position=2)]
+    ev = evaluate_network(ExistingNetwork(STREAMS, units, UTILITIES), 10.0)
+    assert ev.ok, ev.failures
+    e4 = next(e for e in ev.network.exchangers if e.name == "E4")
+    # rated (not fixed) by the ε-NTU relation of two 1-2 shells in series at that area: the duty it was drawn for
+    assert e4.duty == pytest.approx(30.0, rel=1e-6)
+    assert e4.shells == 2 and e4.f_factor == pytest.approx(f, rel=1e-6)
+    assert e4.area == pytest.approx(area, rel=1e-6)   # counter-current it would be F times smaller
+    assert e4.geometry["type"] == "shell_and_tube_1_2"
+
+
+def test_a_co_current_unit_of_given_area_is_sized_back_to_that_area():
+    # invented two-stream case: H (200 → 80 °C, 1 kW/K), C (20 → 90 °C, 2 kW/K); one co-current unit drawn for
+    # 100 kW (H 200 → 100, C 20 → 70 °C), a cooler and a heater at the stream ends.  Its area by ht's
+    # co-current LMTD: A = Q / (U·LMTD_co)
+    streams = StreamTable.from_arrays(["H", "C"], [200, 20], [80, 90], [1.0, 2.0], film_coefficient=[H, H])
+    area = 100.0 / (0.25 * ht.LMTD(200.0, 100.0, 20.0, 70.0, counterflow=False))
+    units = [ExistingUnit("X", "H", "C", area=area, arrangement="co_current"),
+             ExistingUnit("CU", "H", "water"), ExistingUnit("HU", "steam", "C")]
+    ev = evaluate_network(ExistingNetwork(streams, units, UTILITIES), 10.0)
+    x = ev.network.exchangers[0]
+    assert x.duty == pytest.approx(100.0, rel=1e-6)
+    assert x.area == pytest.approx(area, rel=1e-6)
+    assert x.area > 100.0 / (0.25 * ht.LMTD(200.0, 100.0, 20.0, 70.0))   # more than counter-current
+    assert ev.network.coolers[0].duty == pytest.approx(20.0, rel=1e-6)
+    assert ev.network.heaters[0].duty == pytest.approx(40.0, rel=1e-6)
