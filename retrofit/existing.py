@@ -56,7 +56,7 @@ from .branches import (
     stages,
     stated_temperatures,
 )
-from .profiles import heat_between, temperature_after, utility_match_area
+from .profiles import exchanger_area, heat_between, temperature_after, utility_match_area
 
 __all__ = [
     "ExistingNetwork",
@@ -390,11 +390,19 @@ class ExistingNetwork:
                                  f"limit is {top:.4g})", **where)
             if u.area is None:
                 uu = self._need_u(u, "needs an area from its stated duty")
-                ntu = float(ntu_from_effectiveness(eps, cmin / cmax, u.arrangement, shells=u.shells))
-                u = replace(u, area=ntu * cmin / uu, area_from_duty=True)
-                if any(len(x.segments) > 1 for x in (hot, cold)):
-                    notes.append(f"exchanger '{u.name}': area from its stated duty by ε-NTU with each stream's "
-                                 "mean CP over the unit (streams of several segments)")
+                segmented = any(len(x.segments) > 1 for x in (hot, cold))
+                if segmented and u.arrangement.flow_pattern is ExchangerType.COUNTER_CURRENT:
+                    # the area the simulation rates exactly (heatloom.retrofit.rating): segment by segment
+                    area = exchanger_area(hot, cold, hot_in, cold_in, u.duty, uu, hot_fraction=u.hot_fraction,
+                                          cold_fraction=u.cold_fraction)
+                    how = "segment by segment (exact log mean between the segment breaks)"
+                else:
+                    area = float(ntu_from_effectiveness(eps, cmin / cmax, u.arrangement, shells=u.shells)) * cmin / uu
+                    how = "by ε-NTU with each stream's mean CP over the unit"
+                u = replace(u, area=area, area_from_duty=True)
+                if segmented:
+                    notes.append(f"exchanger '{u.name}': area from its stated duty {how} (streams of several "
+                                 "segments)")
             return u
         # heater or cooler: a counter-current match with the utility running between its two temperatures
         util = hot if u.role is UnitRole.HEATER else cold

@@ -22,19 +22,29 @@ For fixed CPs the mixer is linear in the branch outlets, so the network stays on
 unknown per branch, one more equation per mixer).  A heater or cooler on a branch of a stream's last split
 brings the mixed stream to its target.
 
-Streams of several segments (phase change, varying CP): each unit is rated with the stream's mean CP over
-the temperature range the stream actually covers in that unit (the secant of its enthalpy curve).  These
-CPs come from a fixed-point iteration with one linear solve per pass: the first pass takes each stream's
-mean CP over its whole range; each later pass gives every unit the secant CPs that agree with its own
-rating at its present inlet temperatures (a one-dimensional root, brentq), and every mixer the secant of
-the stream between the split and the mixed temperature, then solves the network again, until no
-temperature moves.  The energy balances are then exact; the ε-NTU relation itself is approximate
-where a segment break falls inside a unit (the result's notes say so).
+Streams of several segments (phase change, varying CP): each unit enters the linear system with the
+stream's mean CP over the temperature range the stream actually covers in that unit (the secant of its
+enthalpy curve).  These CPs come from a fixed-point iteration with one linear solve per pass: the first pass
+takes each stream's mean CP over its whole range; each later pass rates every unit at its present inlet
+temperatures (:func:`heatloom.retrofit.rating.rate_unit`, a one-dimensional root, brentq), gives it the
+secant CPs that agree with that rating, and every mixer the secant of the stream between the split and the
+temperature its branches' outlets give by the enthalpy balance, then solves the network again, until no
+temperature moves (under-relaxed after 50 passes).  The energy balances are then exact.
+
+The rating itself is exact for counter-current units (counter-current and double pipe) and for heaters and
+coolers rated against a utility at one temperature: their duty is the one whose segment-wise area (interval
+by interval between the segment breaks, exact log mean, the unit's U) equals their area, the area a new
+design is sized with (:func:`heatloom.equipment.segments.size_segments`), and such a unit enters the linear
+system with the coefficient a = Q/(T_h,in − T_c,in) (Q over the driving force against the utility) in place
+of ε·C_min, so that the system reproduces that duty at the fixed point.  Co-current and 1-2 shell units keep
+their ε-NTU relations on the secant CPs, approximate where a segment break falls inside them (the result's
+notes say so).
 
 References
 ----------
 Incropera, F.P., DeWitt, D.P., Bergman, T.L., Lavine, A.S. (2007) Fundamentals of Heat and Mass Transfer,
-6th ed., Wiley, Table 11.3 (ε-NTU relations, via :mod:`heatloom.equipment.rating`).
+6th ed., Wiley, Table 11.3 (ε-NTU relations, via :mod:`heatloom.equipment.rating`); Section 11.3 (log mean
+temperature difference of a counter-current interval).
 
 Results are screening estimates: check them against plant measurements, and any change against local codes
 with qualified, licensed engineers.
@@ -45,19 +55,18 @@ from __future__ import annotations
 from dataclasses import asdict, dataclass
 
 import numpy as np
-from scipy.optimize import brentq
 
 from .. import defaults
 from ..equipment.rating import effectiveness_from_ntu
 from ..errors import InputError, SolverError
 from ..model.exchangers import ExchangerType
-from ..model.existing import ExistingUnit, OperatingMode, UnitRole
+from ..model.existing import OperatingMode, UnitRole
 from ..network.structure import smallest_approach
 from ..pinch import target
 from ..validation import check_dt_min
-from .branches import branch_stream
 from .existing import ExistingNetwork
 from .profiles import heat_between, mean_cp_between, temperature_after
+from .rating import UnitRating, rate_unit, utility_temperature
 
 __all__ = ["UnitState", "Simulation", "simulate"]
 
@@ -269,78 +278,6 @@ class Simulation:
 # --------------------------------------------------------------------------------------------------
 
 
-def _utility_temperature(unit: ExistingUnit, network: ExistingNetwork) -> float:
-    util = network.utility(unit.hot if unit.role is UnitRole.HEATER else unit.cold)
-    return 0.5 * (util.supply_temperature + util.target_temperature)
-
-
-def _root(residual, edge: float) -> float:
-    """Root of a unit's duty residual between 0 and the duty that closes its driving force (``edge``).
-
-    The residual changes sign there whenever ε < 1; when rounding makes ε = 1 (huge NTU) the edge itself is
-    the answer."""
-    r0, r1 = residual(0.0), residual(edge)
-    if r0 == 0 or edge == 0:
-        return 0.0
-    if r0 * r1 > 0:
-        return edge if abs(r1) <= abs(r0) else 0.0
-    return brentq(residual, 0.0, edge, xtol=1e-12 * max(1.0, abs(edge)), rtol=1e-13)
-
-
-def _unit_cps(network: ExistingNetwork, u: ExistingUnit, streams: dict, inlets: dict) -> dict[str, float]:
-    """Mean CPs of the process sides of a unit over the ranges they cover when the unit works at these
-    inlet temperatures: the duty Q solves Q = ε(C_h(Q), C_c(Q))·C_min·ΔT_in (brentq), each C the secant of
-    its stream's enthalpy curve between inlet and outlet (a branch of fraction f: C = f times the secant
-    over the range its Q/f covers).  The secants are returned per whole stream flow."""
-    if u.role is UnitRole.EXCHANGER:
-        hot, cold = streams[u.hot], streams[u.cold]
-        fh, fc = u.hot_fraction, u.cold_fraction
-        th, tc = inlets["hot"], inlets["cold"]
-        if len(hot.segments) == 1 and len(cold.segments) == 1:
-            return {}
-        dt = th - tc
-
-        def cps(q):
-            return (mean_cp_between(hot, th, temperature_after(hot, th, q / fh)),
-                    mean_cp_between(cold, tc, temperature_after(cold, tc, q / fc)))
-
-        def residual(q):
-            ch, cc = cps(q)
-            ch, cc = fh * ch, fc * cc
-            cmin, cmax = min(ch, cc), max(ch, cc)
-            eps = float(effectiveness_from_ntu(u.u * u.area / cmin, cmin / cmax, u.arrangement, shells=u.shells))
-            return q - eps * cmin * dt
-
-        if dt == 0:
-            ch, cc = cps(0.0)
-        else:
-            bounds = (fh * heat_between(hot, th, tc), fc * heat_between(cold, tc, th))
-            edge = min(bounds) if dt > 0 else max(bounds)
-            ch, cc = cps(_root(residual, edge))
-        return {"hot": ch, "cold": cc}
-    side = "cold" if u.role is UnitRole.HEATER else "hot"
-    stream = streams[getattr(u, side)]
-    if len(stream.segments) == 1 or u.mode is OperatingMode.TRIM:
-        return {}
-    t_in = inlets[side]
-    if u.mode is OperatingMode.FIXED_DUTY:
-        share = u.fraction(stream.name)
-        return {side: mean_cp_between(stream, t_in, temperature_after(stream, t_in, u.duty / share))}
-    stream = branch_stream(stream, u.fraction(stream.name))   # rated: the secant of the branch's own flow
-    t_u = _utility_temperature(u, network)
-    drive = (t_u - t_in) if side == "cold" else (t_in - t_u)   # heat flows into the stream's direction
-
-    def residual_u(q):
-        c = mean_cp_between(stream, t_in, temperature_after(stream, t_in, q))
-        return q - float(effectiveness_from_ntu(u.u * u.area / c, 0.0)) * c * drive
-
-    share = u.fraction(getattr(u, side))
-    if drive == 0:
-        return {side: mean_cp_between(stream, t_in, t_in) / share}
-    q = _root(residual_u, heat_between(stream, t_in, t_u))
-    return {side: mean_cp_between(stream, t_in, temperature_after(stream, t_in, q)) / share}
-
-
 @dataclass(frozen=True)
 class _Layout:
     """The unknown temperatures and where every unit side takes and leaves its stream.
@@ -376,14 +313,16 @@ def _layout(network: ExistingNetwork, streams: dict) -> _Layout:
     return _Layout(index, inlet, outlet, splits, stages)
 
 
-def _system(network: ExistingNetwork, streams: dict, lay: _Layout, cp: dict,
-            coefficient: dict) -> tuple[np.ndarray, np.ndarray]:
+def _system(network: ExistingNetwork, streams: dict, lay: _Layout, cp: dict, coefficient: dict,
+            exact: dict) -> tuple[np.ndarray, np.ndarray]:
     """The linear equations A·T = b of the temperatures between units: one per unit outlet on a stream and
     one per mixer after a split.
 
     ``cp`` holds the (secant) heat capacity flow of each unit side per whole stream flow, key (unit, side),
     and of each mixed stream after a split, key (stream, k); a branch of fraction f has f times it.
-    ``coefficient`` receives (ε, NTU, ε·C_min) of every rated unit.
+    ``coefficient`` receives (ε, NTU, ε·C_min) of every rated unit.  ``exact`` holds the linear coefficient
+    a = Q/ΔT of the units rated exactly (:mod:`heatloom.retrofit.rating`), which replaces ε·C_min for them
+    (their ε is then a/C_min).
     """
     n = len(lay.index)
     a_mat = np.zeros((n, n))
@@ -403,8 +342,12 @@ def _system(network: ExistingNetwork, streams: dict, lay: _Layout, cp: dict,
             ch, cc = u.hot_fraction * cp[(u.name, "hot")], u.cold_fraction * cp[(u.name, "cold")]
             cmin, cmax = min(ch, cc), max(ch, cc)
             ntu = u.u * u.area / cmin
-            eps = float(effectiveness_from_ntu(ntu, cmin / cmax, u.arrangement, shells=u.shells))
-            a = eps * cmin
+            if u.name in exact:
+                a = exact[u.name]
+                eps = a / cmin
+            else:
+                eps = float(effectiveness_from_ntu(ntu, cmin / cmax, u.arrangement, shells=u.shells))
+                a = eps * cmin
             coefficient[u.name] = (eps, ntu, a)
             rh, rc = lay.index[ho], lay.index[co]
             # T_h,out = T_h,in − (a/C_h)(T_h,in − T_c,in);  T_c,out = T_c,in + (a/C_c)(T_h,in − T_c,in)
@@ -431,10 +374,11 @@ def _system(network: ExistingNetwork, streams: dict, lay: _Layout, cp: dict,
         else:   # rated against an isothermal utility: C_r = 0, ε = 1 − exp(−NTU)
             c = u.fraction(stream) * cp[(u.name, side)]
             ntu = u.u * u.area / c
-            eps = float(effectiveness_from_ntu(ntu, 0.0, ExchangerType.COUNTER_CURRENT))
+            eps = exact[u.name] / c if u.name in exact else \
+                float(effectiveness_from_ntu(ntu, 0.0, ExchangerType.COUNTER_CURRENT))
             coefficient[u.name] = (eps, ntu, eps * c)
             term(row, t_in, -(1.0 - eps))
-            b[row] += eps * _utility_temperature(u, network)
+            b[row] += eps * utility_temperature(u, network)
     # mixers: C_mix (T_in − T_mix) = Σ f_k C_k (T_in − T_k), so T_mix = (1 − Σ w_k) T_in + Σ w_k T_k with
     # w_k = f_k C_k / C_mix (= f_k for a constant CP)
     for (name, k), group in lay.splits.items():
@@ -491,7 +435,10 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
     utility.  A stream that ends with a process exchanger leaves wherever that exchanger puts it (its
     shortfall is reported).  Co-current and 1-2 shell units are rated by their own ε-NTU relations; their
     ``min_approach`` is still the counter-current pairing of their end temperatures (for 1-2 shells a
-    negative value is a temperature cross, which those shells can hold within the F-factor limits).
+    negative value is a temperature cross, which those shells can hold within the F-factor limits).  On
+    streams of several segments, counter-current units and rated heaters and coolers are rated exactly
+    (segment-wise area equal to their area, :mod:`heatloom.retrofit.rating`); co-current and 1-2 shell units
+    by ε-NTU on the secant CPs, approximate where a segment break falls inside them.
 
     Examples
     --------
@@ -535,8 +482,10 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
     temps = np.zeros(n)
     iterations = 0
     coefficient: dict[str, tuple[float, float, float]] = {}   # unit -> (eps, ntu, eps·C_min)
+    exact: dict[str, float] = {}   # unit -> a = Q/ΔT of the units rated exactly
+    ratings: dict[tuple, UnitRating] = {}   # (unit, inlet temperatures) -> its rating (inlets often repeat: supplies)
     for iterations in range(1, max_iterations + 1):
-        a_mat, b = _system(network, streams, lay, cp, coefficient)
+        a_mat, b = _system(network, streams, lay, cp, coefficient, exact)
         try:
             new = np.linalg.solve(a_mat, b) if n else np.zeros(0)
         except np.linalg.LinAlgError:
@@ -555,16 +504,26 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
         for u in units:
             inlets = {side: temperature_of(temps, lay.inlet[(u.name, side)])
                       for side in ("hot", "cold") if (u.name, side) in lay.inlet}
-            values = _unit_cps(network, u, streams, inlets)
+            key = (u.name, tuple(sorted(inlets.items())))
+            rating = ratings[key] if key in ratings else ratings.setdefault(key, rate_unit(network, u, streams, inlets))
+            values = rating.cps
+            if rating.coefficient is None:
+                exact.pop(u.name, None)
+            else:   # relaxed from the coefficient of the last solve
+                exact[u.name] = (1 - relax) * coefficient[u.name][2] + relax * rating.coefficient
             if u.mode is OperatingMode.TRIM and u.on_branch:   # its branch's range, as the mixer sees it
                 side = "cold" if u.role is UnitRole.HEATER else "hot"
                 values = {side: mean_cp_between(streams[getattr(u, side)], inlets[side],
                                                 temperature_of(temps, lay.outlet[(u.name, side)]))}
             for side, value in values.items():
                 cp[(u.name, side)] = (1 - relax) * cp[(u.name, side)] + relax * value
-        for (name, k) in lay.splits:
-            value = mean_cp_between(streams[name], temperature_of(temps, (name, k - 1)),
-                                    temperature_of(temps, (name, k)))
+        for (name, k), group in lay.splits.items():
+            # the mixed temperature the branch outlets of this pass give by the enthalpy balance (not the one
+            # the last secant gave: a secant across a phase change would oscillate from pass to pass)
+            s, t_split = streams[name], temperature_of(temps, (name, k - 1))
+            heat = sum(x.fraction(name) * heat_between(s, t_split, temperature_of(
+                temps, lay.outlet[(x.name, "hot" if x.hot == name else "cold")])) for x in group)
+            value = mean_cp_between(s, t_split, temperature_after(s, t_split, heat))
             cp[(name, k)] = (1 - relax) * cp[(name, k)] + relax * value
         if iterations > 1 and change <= tolerance:
             break
@@ -674,10 +633,16 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
              f"the duty that brings them to target; {sum(u.mode is OperatingMode.FIXED_DUTY for u in units)} keep their "
              "stated duty"]
     if segmented:
-        notes.append("streams of several segments: each unit rated with the stream's mean CP over the range it "
-                     "covers in that unit (fixed-point iteration, "
-                     f"{iterations} linear solves); energy balances exact, ε-NTU approximate where a segment "
-                     "break falls inside a unit")
+        approximate = [u.name for u in units if u.role is UnitRole.EXCHANGER
+                       and u.arrangement.flow_pattern is not ExchangerType.COUNTER_CURRENT
+                       and max(len(streams[u.hot].segments), len(streams[u.cold].segments)) > 1]
+        notes.append("streams of several segments: each unit enters the network's equations with the stream's "
+                     f"mean CP over the range it covers in that unit (fixed-point iteration, {iterations} linear "
+                     "solves); energy balances exact; counter-current units, and heaters and coolers rated against "
+                     "their utility, rated exactly segment by segment (the duty whose area summed interval by "
+                     "interval between the segment breaks is the unit's area)"
+                     + (f"; {', '.join(repr(x) for x in approximate)} (co-current or 1-2 shell) by ε-NTU on the "
+                        "mean CPs, approximate where a segment break falls inside the unit" if approximate else ""))
     if lay.splits:
         notes.append(f"{len(lay.splits)} stream split(s): the branches take the stream at its temperature before "
                      "the split, each with its share of the flow, and mix adiabatically after it")

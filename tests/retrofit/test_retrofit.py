@@ -96,8 +96,10 @@ def case(case_inputs):
 # -------------------------------------------------------------------------------------------------
 # an independent solution of the case: its CSV files read with the csv module, every exchanger rated with
 # ht 1.2 (ht.hx.effectiveness_from_NTU: the ε-NTU relations of Incropera & DeWitt, Fundamentals of Heat and
-# Mass Transfer, Table 11.3 — counterflow, and 1-2 shells in series for 'S&T' with n_shell_tube), the units
-# solved by plain successive substitution along the streams; no heatloom code is used
+# Mass Transfer, Table 11.3 — counterflow, and 1-2 shells in series for 'S&T' with n_shell_tube); a
+# counter-current unit on a stream of several segments by its segment-wise area instead (ht.LMTD per interval
+# between the segment breaks, summed); the units solved by plain successive substitution along the streams;
+# no heatloom code is used
 
 
 def _table(name):
@@ -209,8 +211,11 @@ def _with_changes(units, orders, changes):
 
 
 def _rated_duty(unit, hot, cold, th, tc):
-    """Duty of an exchanger from its inlets [kW]: Q = ε(NTU, C_r)·C_min·(T_h,in − T_c,in) by ht, with each
-    stream's mean CP over the range it covers in the unit (a root in Q when a stream has several segments)."""
+    """Duty of an exchanger from its inlets [kW].  Streams of one piece each, or a shell-and-tube unit:
+    Q = ε(NTU, C_r)·C_min·(T_h,in − T_c,in) by ht, with each stream's mean CP over the range it covers in the
+    unit (a root in Q when a stream has several segments).  A counter-current unit on a stream of several
+    pieces: the duty whose area, summed interval by interval between the pieces' breaks with ht.LMTD
+    (Incropera & DeWitt, Section 11.3), equals the unit's area (a root in Q)."""
     if th <= tc:
         return 0.0
 
@@ -225,7 +230,30 @@ def _rated_duty(unit, hot, cold, th, tc):
     if len(hot.pieces) == 1 and len(cold.pieces) == 1:
         return by_ht(0.0)
     top = min(hot.heat(th, tc), cold.heat(tc, th))
-    return brentq(lambda q: q - by_ht(q), 0.0, top, xtol=1e-12, rtol=1e-14)
+    if unit["subtype"] != "counterflow":
+        return brentq(lambda q: q - by_ht(q), 0.0, top, xtol=1e-12, rtol=1e-14)
+    hot_breaks, cold_breaks = [hi for _, hi, _ in hot.pieces[:-1]], [hi for _, hi, _ in cold.pieces[:-1]]
+    # the driving force closes at an end or at a break inside the unit
+    top = min([top] + [hot.heat(th, b) + cold.heat(tc, b) for b in hot_breaks + cold_breaks if tc < b < th])
+
+    def area(q):   # heat measured from the hot end; cut at every break of either side inside the unit
+        if q <= 0:
+            return 0.0
+        cuts = {0.0, q} | {hot.heat(th, b) for b in hot_breaks if hot.after(th, q) < b < th} | \
+            {q - cold.heat(tc, b) for b in cold_breaks if tc < b < cold.after(tc, q)}
+        ys = sorted(cuts)
+        total = 0.0
+        for y0, y1 in zip(ys, ys[1:]):
+            h0, h1, c0, c1 = hot.after(th, y0), hot.after(th, y1), cold.after(tc, q - y0), cold.after(tc, q - y1)
+            d0, d1 = h0 - c0, h1 - c1   # ends of nearly equal ΔT: the arithmetic mean (ht.LMTD cancels there)
+            lm = 0.5 * (d0 + d1) if abs(d0 - d1) <= 1e-6 * max(d0, d1) else ht.LMTD(h0, h1, c1, c0)
+            total += (y1 - y0) / (unit["u"] * lm)
+        return total
+
+    edge = top * (1 - 1e-9)
+    if area(edge) <= unit["area"]:
+        return edge
+    return brentq(lambda q: area(q) - unit["area"], 0.0, edge, xtol=1e-12, rtol=1e-14)
 
 
 def _utilities_by_ht(streams, utilities, units, orders):
