@@ -29,6 +29,7 @@ examples:
   heatloom design table.csv --dtmin 20 --default-h 0.5 --json
   heatloom design streams.csv --mode tac --utilities utilities.csv --costs costs.json --time-limit 300
   heatloom design streams.csv --mode tac --emat 2 --seed 7 --starts 2 --rounds 40 --json
+  heatloom design streams.csv --mode tac --utilities utilities.csv --time-limit 300 --restructure
   heatloom design streams.csv --dtmin 10 --min-duty 50 --min-area 5
   heatloom design streams.csv --dtmin 10 --forbid H1:C2 --forbid H2:steam --require H3:C1
 
@@ -105,6 +106,10 @@ def register(sub) -> None:
                      help="independent searches run side by side on local processes (default 2)")
     tac.add_argument("--rounds", type=whole_number(0), default=40, metavar="N",
                      help="kicks of the iterated local search per start (default 40)")
+    tac.add_argument("--restructure", action="store_true",
+                     help="give the last 20%% of the time limit to a search beyond the stagewise form: units "
+                          "moved along their streams, a heater or cooler onto a split branch beside an "
+                          "exchanger (up to 12 streams of one segment each; kept only when cheaper)")
     p.set_defaults(handler=run)
 
 
@@ -226,7 +231,7 @@ def run(args) -> int:
             net = design_tac(streams, utilities, costs=costs, emat=dt_min,
                              time_limit=args.time_limit or defaults.TAC_TIME_LIMIT, seed=args.seed, starts=args.starts,
                              rounds=args.rounds, solver=args.solver, default_film_coefficient=args.default_h,
-                             progress=bar.best)
+                             progress=bar.best, restructure=args.restructure)
         finally:
             bar.close()
     else:

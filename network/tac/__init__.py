@@ -1,5 +1,13 @@
 """Lowest total-annual-cost design: stagewise superstructure MILP, NLP refinement, search (heatloom.network.tac)."""
 
+from .branches import (
+    Layout,
+    LayoutSolution,
+    layout_from_solution,
+    network_from_layout,
+    restructure,
+    solve_layout,
+)
 from .nlp import Topology, TopologySolution, polish_cheapest, polish_splits, solve_topology
 from .problem import TacProblem, make_problem
 from .profiles import solve_segmented
@@ -7,7 +15,8 @@ from .search import design_tac, network_from_solution
 from .starts import mer_network, stagewise_milp, topology_from_network
 
 __all__ = [
-    "design_tac", "mer_network", "network_from_solution", "stagewise_milp", "topology_from_network",
+    "design_tac", "Layout", "LayoutSolution", "layout_from_solution", "network_from_layout", "restructure",
+    "solve_layout", "mer_network", "network_from_solution", "stagewise_milp", "topology_from_network",
     "TacProblem", "Topology", "TopologySolution", "make_problem", "polish_cheapest", "polish_splits",
     "solve_segmented",
     "solve_topology",

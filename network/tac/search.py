@@ -26,7 +26,13 @@ The sequence (DEVELOPERS.md, "Method notes"):
    the time limit, problems of up to 20 streams): the split fractions of the cheapest networks with stream
    splits are freed again from their own and from random fractions: the optimum of a split network with
    non-isothermal mixing need not be the local one next to isothermal mixing.
-6. The best network is built with its temperatures, sized with the exact LMTD, costed from its own
+6. Only with ``restructure=True`` (problems of up to :data:`RESTRUCTURE_STREAMS` streams of one segment
+   each): the last :data:`RESTRUCTURE_SHARE` of the time limit goes to a search beyond the stagewise form
+   (:func:`heatloom.network.tac.branches.restructure`): the best network becomes a layout of blocks along
+   every stream, and units are moved anywhere along their streams (a utility unit beside an exchanger on
+   a split stream, one unit per branch) or removed, each layout refined against the exact cost; its
+   network is kept when it is cheaper.
+7. The best network is built with its temperatures, sized with the exact LMTD, costed from its own
    temperatures and checked by :func:`heatloom.network.structure.check_network` with ΔTmin = EMAT.
 
 There is no ΔTmin: only the exchanger minimum approach temperature (EMAT) bounds the design.  The search is
@@ -56,6 +62,7 @@ from ...model import StreamTable, Utility
 from ...model.costs import CostSettings, UnitKind
 from ..solvers import Budget
 from ..structure import Cooler, Exchanger, Heater, Network, check_network
+from .branches import RESTRUCTURE_SHARE, RESTRUCTURE_STREAMS, beyond_stagewise
 from .nlp import (
     TacProblem,
     Topology,
@@ -463,7 +470,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
                time_limit: float = 120.0, seed: int = 0, starts: int = 2, rounds: int = 40,
                workers: int | None = None, milp_iterations: int = 3, solver: str | None = None,
                default_film_coefficient: float | None = None,
-               progress: Callable[[float, int, int], None] | None = None) -> Network:
+               progress: Callable[[float, int, int], None] | None = None, restructure: bool = False) -> Network:
     """A network of low total annual cost: stagewise MILP topologies refined against the exact cost.
 
     Parameters
@@ -506,6 +513,11 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     progress : callable, optional
         Called as ``progress(best_tac, done, total)`` after the starting topologies and after each epoch of
         the search (``done`` of ``total`` epochs).
+    restructure : bool
+        Give the last :data:`RESTRUCTURE_SHARE` of the time limit to a search beyond the stagewise form
+        (:func:`heatloom.network.tac.branches.restructure`: units moved anywhere along their streams, a
+        utility unit onto a split branch beside an exchanger; problems of up to :data:`RESTRUCTURE_STREAMS`
+        streams of one segment each).  Its network is returned when it is cheaper.
 
     Returns
     -------
@@ -541,7 +553,11 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     if not (time_limit > 0) or not np.isfinite(time_limit):
         raise InputError(f"time limit must be a finite number of seconds > 0, got {time_limit!r}")
     budget = Budget(float(time_limit))
-    deadline = budget.deadline - FINAL_RESERVE * float(time_limit)   # the search's; the rest for the last polish
+    beyond = bool(restructure) and len(streams) <= RESTRUCTURE_STREAMS and \
+        all(len(s.segments) == 1 for s in streams)
+    reserve = RESTRUCTURE_SHARE * float(time_limit) if beyond else 0.0
+    # the search's deadline; then the last polish, then (when asked for) the search beyond the stagewise form
+    deadline = budget.deadline - FINAL_RESERVE * float(time_limit) - reserve
     notes: list[str] = [f"EMAT {emat:g} K at both ends of every unit (no ΔTmin)"]
     if utilities is None:
         utilities = ideal_utilities(streams, emat)
@@ -677,7 +693,11 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     # the best network that passes the final check (never expected to fail; if it does, the next best is kept)
     failures: list[str] = []
     ranked = sorted({id(c): c for c in (best, *current, *candidates)}.values(), key=lambda c: c.tac)
-    ranked = polish_cheapest(p, ranked, budget.deadline)
+    ranked = polish_cheapest(p, ranked, budget.deadline - reserve)
+    if beyond:
+        net = beyond_stagewise(p, ranked[0], streams, utilities, costs, notes, budget, seed)
+        if net is not None:
+            return net
     for sol in ranked:
         try:
             extra = [f"the {len(failures)} cheaper network(s) found failed the final check ({'; '.join(failures)}); "

@@ -1,0 +1,622 @@
+"""Networks beyond the stagewise form: splits that keep utility units on their branches, utilities anywhere.
+
+A :class:`Layout` gives every stream as a sequence of *blocks* from its supply end: a block is a single
+unit, or a split whose branches each carry a sequence of units (possibly none: a bypass) before they mix
+again.  A utility unit may sit in any block, on a branch too (e.g. a cooler in parallel with an exchanger on
+a split hot stream).  This contains every stagewise topology (:class:`heatloom.network.tac.nlp.Topology`)
+with isothermal or non-isothermal mixing, and networks that form cannot express: a utility unit that is
+not at a stream end, a branch that keeps several units in series, a bypass.  The fixed-structure NLP
+(:func:`solve_layout`) handles all of them; the search (:func:`restructure`) keeps to the layouts a
+:class:`~heatloom.network.structure.Network` and its units table can carry (:func:`representable`: one
+unit on every branch of a split, the branches sharing a stage and a position along the stream).
+
+With the unit duties and the flow fractions of the branches as variables every temperature follows along
+its stream: a unit on a branch of fraction f changes it by q/(f·CP), and the mixed outlet of a block is the
+block's inlet changed by the block's total duty over CP.  :func:`solve_layout` minimises the exact total
+annual cost (exact LMTD, counter-current, 1/U = 1/h_hot + 1/h_cold, the problem's cost laws) by SLSQP with
+finite-difference gradients, subject to the least approach (:meth:`TacProblem.need`) at both ends of every
+unit, every branch temperature inside its stream's range, each stream's duty and each split's fractions
+adding up to one; a start that breaks the constraints is first moved to a feasible point (least squares of
+the violations).  :func:`restructure` is a local search over layouts (move a unit to any other place on one
+of its streams, or remove it), each refined by :func:`solve_layout`.
+
+Streams of several segments are not handled (their stage "temperatures" are enthalpy coordinates).
+"""
+
+from __future__ import annotations
+
+import time
+import warnings
+from dataclasses import dataclass
+
+import numpy as np
+from scipy.optimize import minimize
+
+from ...equipment.sizing import log_mean
+from ...errors import InfeasibleError, InputError
+from ...model.costs import CostSettings, UnitKind
+from ..structure import Cooler, Exchanger, Heater, Network, check_network
+from .nlp import TopologySolution, unit_costs
+from .problem import TacProblem
+
+__all__ = ["Layout", "LayoutSolution", "layout_from_solution", "solve_layout", "restructure", "layout_units",
+           "representable", "layout_stages", "layout_moves", "network_from_layout", "beyond_stagewise", "RESTRUCTURE_SHARE",
+           "RESTRUCTURE_STREAMS", "RESTRUCTURE_PATIENCE"]
+
+RESTRUCTURE_SHARE = 0.2
+"""Part of the time limit :func:`heatloom.network.tac.search.design_tac` keeps for the search beyond the
+stagewise form when ``restructure`` is asked for [-]."""
+
+RESTRUCTURE_STREAMS = 12
+"""Largest problem (process streams) given that search: each layout is refined with finite-difference
+gradients [-]."""
+
+RESTRUCTURE_PATIENCE = 400
+"""Layouts tried in a row without improvement before :func:`restructure` stops [-]."""
+
+_KIND = {"x": UnitKind.EXCHANGER, "cool": UnitKind.COOLER, "heat": UnitKind.HEATER}
+
+
+@dataclass(frozen=True)
+class Layout:
+    """Units and their places along the streams.
+
+    ``units`` are ("x", i, j) for an exchanger between hot stream i and cold stream j, ("cool", i, level)
+    and ("heat", j, level) for utility units (levels as in :class:`TacProblem`); a unit is named by its
+    index in ``units``.  ``hot[i]`` / ``cold[j]`` is the stream's path from its supply end: a tuple of
+    blocks, a block a tuple of branches, a branch a tuple of unit indices (a block of one branch holds one
+    unit; a split has two or more branches, at most one of them empty: a bypass).
+    """
+
+    units: tuple
+    hot: tuple
+    cold: tuple
+
+    def key(self) -> tuple:
+        """A hashable form in which the order of the branches of a split does not count."""
+        def canon(paths):
+            return tuple(tuple(tuple(sorted(tuple(self.units[u] + (u,) for u in br) for br in block))
+                               for block in path) for path in paths)
+        return canon(self.hot), canon(self.cold)
+
+    def splits(self) -> list[tuple[str, int, int]]:
+        """(side, stream, block) of every split, in the order of the fraction variables."""
+        return [(side, s, b) for side, paths in (("hot", self.hot), ("cold", self.cold))
+                for s, path in enumerate(paths) for b, block in enumerate(path) if len(block) > 1]
+
+
+@dataclass(frozen=True)
+class LayoutSolution:
+    """Optimised duties [kW] and branch fractions [-] of a layout and its exact TAC [money/year]."""
+
+    layout: Layout
+    duties: np.ndarray
+    fractions: np.ndarray
+    tac: float
+
+
+def _normal(path) -> tuple:
+    """Drop empty blocks and branches (keeping one bypass in a split that still has two units' branches or
+    one unit's branch and the bypass), and turn a one-branch block of several units into units in series."""
+    out = []
+    for block in path:
+        full = [tuple(br) for br in block if br]
+        bypass = len(full) < len(block)
+        if not full:
+            continue
+        if len(full) == 1 and not bypass:
+            out += [((u,),) for u in full[0]]
+        else:
+            out.append(tuple(full) + (((),) if bypass else ()))
+    return tuple(out)
+
+
+class _Model:
+    """Temperatures, cost and constraints of a layout as functions of z = (duties / scale, fractions)."""
+
+    def __init__(self, p: TacProblem, lay: Layout):
+        self.p, self.lay = p, lay
+        self.n = len(lay.units)
+        self.splits = lay.splits()
+        self.nf = sum(len((lay.hot if sd == "hot" else lay.cold)[s][b]) for sd, s, b in self.splits)
+        u, fixed, per_area, expo, price, need = [], [], [], [], [], []
+        for key in lay.units:
+            kind = _KIND[key[0]]
+            if key[0] == "x":
+                u.append(1.0 / (1.0 / p.hot_h[key[1]] + 1.0 / p.cold_h[key[2]]))
+                price.append(0.0)
+                need.append(p.need(key[1], key[2]))
+            else:
+                util = (p.cool_levels if key[0] == "cool" else p.heat_levels)[key[2]]
+                h = p.hot_h[key[1]] if key[0] == "cool" else p.cold_h[key[1]]
+                u.append(1.0 / (1.0 / h + 1.0 / util.film_coefficient))
+                price.append(util.cost)
+                need.append(p.need(key[1], None) if key[0] == "cool" else p.need(None, key[1]))
+            law = p.laws[kind]
+            fixed.append(law[0])
+            per_area.append(law[1])
+            expo.append(law[2])
+        self.u, self.fixed, self.per_area, self.expo = (np.array(v, dtype=float) for v in (u, fixed, per_area, expo))
+        self.price, self.need = np.array(price, dtype=float), np.array(need, dtype=float)
+        self.scale = p.scale
+        # utility sides are constant
+        self.const = np.full((self.n, 4), np.nan)
+        for k, key in enumerate(lay.units):
+            if key[0] == "cool":
+                util = p.cool_levels[key[2]]
+                self.const[k, 2:] = util.supply_temperature, util.target_temperature
+            elif key[0] == "heat":
+                util = p.heat_levels[key[2]]
+                self.const[k, :2] = util.supply_temperature, util.target_temperature
+        self.members = []   # per stream: unit indices (for the duty balances)
+        for paths in (lay.hot, lay.cold):
+            for path in paths:
+                self.members.append([x for block in path for br in block for x in br])
+
+    def temperatures(self, z):
+        """(n, 4) terminal temperatures (hot in, hot out, cold in, cold out) and the branch temperatures
+        with their stream's (side, index), for the range constraints."""
+        p = self.p
+        q = z[:self.n] * self.scale
+        f = z[self.n:]
+        t = self.const.copy()
+        branch_t = []
+        fi = 0
+        for side, paths in (("hot", self.lay.hot), ("cold", self.lay.cold)):
+            sign, col = (-1.0, 0) if side == "hot" else (1.0, 2)
+            for s, path in enumerate(paths):
+                temp = (p.hot_in if side == "hot" else p.cold_in)[s]
+                cp = (p.hot_cp if side == "hot" else p.cold_cp)[s]
+                for block in path:
+                    if len(block) > 1:
+                        fs = f[fi:fi + len(block)]
+                        fi += len(block)
+                    else:
+                        fs = (1.0,)
+                    total = 0.0
+                    for br, fr in zip(block, fs):
+                        tt = temp
+                        for x in br:
+                            t2 = tt + sign * q[x] / (max(fr, 1e-9) * cp)
+                            t[x, col], t[x, col + 1] = tt, t2
+                            if len(block) > 1:   # a single unit's outlet is a mixed stream temperature
+                                branch_t.append((side, s, t2))
+                            tt = t2
+                            total += q[x]
+                    temp = temp + sign * total / cp
+        return t, branch_t
+
+    def cost(self, z) -> float:
+        q = np.maximum(z[:self.n] * self.scale, 1e-12)
+        t, _ = self.temperatures(z)
+        a = np.maximum(t[:, 0] - t[:, 3], 1e-9)
+        b = np.maximum(t[:, 1] - t[:, 2], 1e-9)
+        r = a / b
+        close = np.abs(r - 1.0) < 1e-6
+        lm = np.where(close, 0.5 * (a + b), (a - b) / np.log(np.where(close, 2.0, r)))
+        area = q / (self.u * lm)
+        return float((self.fixed + self.per_area * area ** self.expo).sum() + (self.price * q).sum())
+
+    def ineq(self, z) -> np.ndarray:
+        p = self.p
+        t, branch_t = self.temperatures(z)
+        rng = [(t2 - p.hot_out[s]) if side == "hot" else (p.cold_out[s] - t2) for side, s, t2 in branch_t]
+        return np.concatenate([t[:, 0] - t[:, 3] - self.need, t[:, 1] - t[:, 2] - self.need, rng])
+
+    def eq(self, z) -> np.ndarray:
+        p = self.p
+        q = z[:self.n] * self.scale
+        duty = np.concatenate([p.hot_duty, p.cold_duty])
+        out = [(q[m].sum() - d) / self.scale for m, d in zip(self.members, duty)]
+        fi = 0
+        for sd, s, b in self.splits:
+            k = len((self.lay.hot if sd == "hot" else self.lay.cold)[s][b])
+            out.append(z[self.n + fi:self.n + fi + k].sum() - 1.0)
+            fi += k
+        return np.array(out)
+
+
+def solve_layout(p: TacProblem, lay: Layout, starts, *, max_iter: int = 200) -> LayoutSolution | None:
+    """The duties and fractions of lowest exact TAC of a layout from the given starts; None if none is feasible.
+
+    Parameters
+    ----------
+    p : TacProblem
+    lay : Layout
+    starts : sequence of (duties, fractions)
+        Starting guesses: a duty per unit [kW] and a fraction per branch of every split, in
+        :meth:`Layout.splits` order [-].
+    max_iter : int
+        SLSQP iterations per start [-].
+
+    Examples
+    --------
+    Invented data: one hot stream split between an exchanger and a cooler in parallel.
+
+    >>> from heatloom.model import StreamTable, Utility, UtilityKind
+    >>> from heatloom.model.costs import CostSettings
+    >>> from heatloom.network.tac.problem import make_problem
+    >>> s = StreamTable.from_arrays(["H", "C"], [150, 30], [40, 100], [2.0, 2.0], film_coefficient=[1.0, 1.0])
+    >>> u = [Utility("steam", 180, 179, 120.0, UtilityKind.HOT, 3.0), Utility("water", 15, 25, 10.0, None, 2.0)]
+    >>> p = make_problem(s, u, CostSettings(), 5.0)
+    >>> lay = Layout((("x", 0, 0), ("cool", 0, 0)), ((((0,), (1,)),),), ((((0,),),),))
+    >>> sol = solve_layout(p, lay, [((140.0, 80.0), (0.6, 0.4))])
+    >>> [round(float(q), 6) for q in sol.duties], bool(abs(sum(sol.fractions) - 1) < 1e-8)
+    ([140.0, 80.0], True)
+    """
+    if p.segmented:
+        return None
+    m = _Model(p, lay)
+    n, s = m.n, m.scale
+    bounds = [(1e-5, 4.0)] * n + [(1e-3, 1.0)] * m.nf
+    lo, hi = np.array([b[0] for b in bounds]), np.array([b[1] for b in bounds])
+    cons = [{"type": "ineq", "fun": m.ineq}, {"type": "eq", "fun": m.eq}]
+
+    def violation(z):
+        g = np.minimum(m.ineq(z), 0.0)
+        e = m.eq(z)
+        return float(g @ g / 100.0 + 100.0 * e @ e)
+
+    def feasible(z):
+        return np.min(m.ineq(z), initial=0.0) >= -1e-7 and np.max(np.abs(m.eq(z)), initial=0.0) <= 1e-8
+
+    best = None
+    for duties, fractions in starts:
+        z = np.clip(np.concatenate([np.asarray(duties, dtype=float) / s, np.asarray(fractions, dtype=float)]), lo, hi)
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            if violation(z) > 1e-12:
+                z = minimize(violation, z, method="L-BFGS-B", bounds=bounds, options={"maxiter": 500}).x
+            f0 = max(m.cost(z), 1.0)
+            res = minimize(lambda v, f0=f0: m.cost(v) / f0, z, method="SLSQP", bounds=bounds, constraints=cons,
+                           options={"maxiter": max_iter, "ftol": 1e-12})
+        y = np.clip(res.x, lo, hi)
+        for v in (y, z):   # the optimum, else the (feasible) start
+            if v is None or not feasible(v):
+                continue
+            tac = m.cost(v)
+            if best is None or tac < best.tac:
+                best = LayoutSolution(lay, v[:n] * s, v[n:].copy(), tac)
+    return best
+
+
+def layout_from_solution(p: TacProblem, sol: TopologySolution) -> tuple[Layout, np.ndarray, np.ndarray]:
+    """The layout of a stagewise solution, with its duties [kW] and branch fractions [-] (those of
+    isothermal mixing where the solution has none): stages in order along each stream, utility units at the
+    stream ends in the order of their levels."""
+    rows = unit_costs(p, sol.topology, sol.x, sol.fractions)
+    units = []
+    index = {}
+    for r in rows:
+        key = r["key"]
+        index[key] = len(units)
+        units.append(("x", key[0], key[1]) if len(key) == 3 and not isinstance(key[0], str) else
+                     ("cool" if key[0] == "cool" else "heat", key[1], key[2]))
+    duties = np.array([r["duty"] for r in rows])
+    frac_of = {("hot", index[r["key"]]): r["hot_fraction"] for r in rows}
+    frac_of.update({("cold", index[r["key"]]): r["cold_fraction"] for r in rows})
+    K = sol.topology.stages
+    hot, cold = [], []
+    for i in range(len(p.hot_names)):
+        path = [tuple((index[m],) for m in sorted(sol.topology.matches) if m[0] == i and m[2] == k) for k in range(K)]
+        path += [((index["cool", i, lv],),) for (ii, lv) in sorted(sol.topology.coolers) if ii == i]
+        hot.append(tuple(b for b in path if b))
+    for j in range(len(p.cold_names)):
+        path = [tuple((index[m],) for m in sorted(sol.topology.matches) if m[1] == j and m[2] == k)
+                for k in range(K - 1, -1, -1)]
+        path += [((index["heat", j, lv],),) for (jj, lv) in sorted(sol.topology.heaters) if jj == j]
+        cold.append(tuple(b for b in path if b))
+    lay = Layout(tuple(units), tuple(hot), tuple(cold))
+    fr = []
+    for sd, s, b in lay.splits():
+        block = (lay.hot if sd == "hot" else lay.cold)[s][b]
+        share = np.array([frac_of[sd, br[0]] for br in block])
+        fr += list(share / share.sum())
+    return lay, duties, np.array(fr)
+
+
+def layout_units(p: TacProblem, sol: LayoutSolution) -> list[dict]:
+    """Every unit of a solved layout: kind, key, duty [kW], terminal temperatures [°C], U [kW/(m²·K)],
+    branch fractions [-], utility price [money/(kW·year)] and stage (:func:`layout_stages`)."""
+    m = _Model(p, sol.layout)
+    z = np.concatenate([sol.duties / m.scale, sol.fractions])
+    t, _ = m.temperatures(z)
+    frac = {}
+    fi = 0
+    for sd, s, b in m.splits:
+        block = (sol.layout.hot if sd == "hot" else sol.layout.cold)[s][b]
+        for br in block:
+            for x in br:
+                frac[sd, x] = float(sol.fractions[fi])
+            fi += 1
+    stages = layout_stages(sol.layout)
+    return [{"kind": _KIND[key[0]], "key": key, "duty": float(sol.duties[k]), "hot_in": float(t[k, 0]),
+             "hot_out": float(t[k, 1]), "cold_in": float(t[k, 2]), "cold_out": float(t[k, 3]), "u": float(m.u[k]),
+             "hot_fraction": frac.get(("hot", k), 1.0), "cold_fraction": frac.get(("cold", k), 1.0),
+             "price": float(m.price[k]), "stage": None if stages is None else stages[k]}
+            for k, key in enumerate(sol.layout.units)]
+
+
+def representable(lay: Layout) -> bool:
+    """Whether a :class:`heatloom.network.structure.Network` and its units table can carry the layout: every
+    split has one unit on each branch (no bypass, no units in series on a branch), as the stagewise
+    designs, the grid diagram and the network table write a split (its branches share one stage and one
+    position along the stream)."""
+    return all(len(br) == 1 for paths in (lay.hot, lay.cold) for path in paths for block in path
+               if len(block) > 1 for br in block)
+
+
+def layout_stages(lay: Layout) -> list[int] | None:
+    """A stage per unit such that along every stream a unit met earlier from the hot end has a lower
+    stage, and the units on the branches of one split share a stage [-]; None when the streams' orders
+    conflict (or a split's branches cannot share one stage)."""
+    n = len(lay.units)
+    parent = list(range(n))   # units on the branches of one split are one node (union-find)
+
+    def root(k: int) -> int:
+        while parent[k] != k:
+            parent[k] = parent[parent[k]]
+            k = parent[k]
+        return k
+
+    for paths in (lay.hot, lay.cold):
+        for path in paths:
+            for block in path:
+                members = [x for br in block for x in br] if len(block) > 1 else []
+                for a, b in zip(members, members[1:]):
+                    parent[root(a)] = root(b)
+    stage_of_node = _node_stages(lay, n, root)
+    return None if stage_of_node is None else [stage_of_node[root(k)] for k in range(n)]
+
+
+def _node_stages(lay: Layout, n: int, root) -> dict | None:
+    """Longest-path stages of the contracted units (``root`` maps a unit to its node); None on a cycle."""
+    after: dict = {k: set() for k in range(n)}
+
+    def chain(path, reverse):
+        blocks = [[x for br in block for x in br] for block in path]
+        seq = list(reversed(path)) if reverse else list(path)
+        for b in range(len(seq) - 1):
+            for x in (y for br in seq[b] for y in br):
+                after[root(x)].update(root(y) for br in seq[b + 1] for y in br)
+        for block in path:
+            for br in block:
+                br = list(reversed(br)) if reverse else list(br)
+                for a, c in zip(br, br[1:]):
+                    after[root(a)].add(root(c))
+        return blocks
+
+    for path in lay.hot:
+        chain(path, False)
+    for path in lay.cold:
+        chain(path, True)
+    nodes = {root(k) for k in range(n)}
+    if any(k in after[k] for k in nodes):
+        return None   # two units of one split in series along another stream
+    indeg = {k: 0 for k in nodes}
+    for k in nodes:
+        for c in after[k]:
+            indeg[c] += 1
+    stage = {k: 0 for k in nodes}
+    ready = [k for k in nodes if indeg[k] == 0]
+    done = 0
+    while ready:
+        k = ready.pop()
+        done += 1
+        for c in after[k]:
+            stage[c] = max(stage[c], stage[k] + 1)
+            indeg[c] -= 1
+            if indeg[c] == 0:
+                ready.append(c)
+    return stage if done == len(nodes) else None
+
+
+def _places(path) -> list:
+    """Every place a unit can be put on a path: a new block before each block and at the end, the end or
+    any place inside each branch of a split, or a new branch of any block (a single unit becomes a split)."""
+    out = [("block", b) for b in range(len(path) + 1)]
+    for b, block in enumerate(path):
+        if len(block) > 1:
+            out += [("in", b, r, k) for r, br in enumerate(block) for k in range(len(br) + 1)]
+        out.append(("branch", b))
+    return out
+
+
+def _put(path, x, place) -> tuple:
+    path = [list(list(br) for br in block) for block in path]
+    if place[0] == "block":
+        path.insert(place[1], [[x]])
+    elif place[0] == "in":
+        path[place[1]][place[2]].insert(place[3], x)
+    else:
+        path[place[1]].append([x])
+    return _normal(path)
+
+
+def _take(path, x) -> tuple:
+    return _normal([[[y for y in br if y != x] for br in block] for block in path])
+
+
+def _sides(key) -> list[tuple[str, int]]:
+    if key[0] == "x":
+        return [("hot", key[1]), ("cold", key[2])]
+    return [("hot", key[1])] if key[0] == "cool" else [("cold", key[1])]
+
+
+def layout_moves(lay: Layout) -> list[Layout]:
+    """Every layout one move away: a unit moved to another place on one of its streams, or removed."""
+    out = []
+    for x, key in enumerate(lay.units):
+        for side, s in _sides(key):
+            paths = list(lay.hot if side == "hot" else lay.cold)
+            rest = _take(paths[s], x)
+            for place in _places(rest):
+                new = list(paths)
+                new[s] = _put(rest, x, place)
+                out.append(Layout(lay.units, tuple(new), lay.cold) if side == "hot" else
+                           Layout(lay.units, lay.hot, tuple(new)))
+        keep = [k for k in range(len(lay.units)) if k != x]
+        ren = {k: n for n, k in enumerate(keep)}
+
+        def drop(paths, x=x, ren=ren):
+            return tuple(_normal([[[ren[y] for y in br if y != x] for br in block] for block in path])
+                         for path in paths)
+        out.append(Layout(tuple(lay.units[k] for k in keep), drop(lay.hot), drop(lay.cold)))
+    return out
+
+
+def _start(lay: Layout, parent: LayoutSolution) -> tuple[np.ndarray, np.ndarray]:
+    """A starting point for a neighbour: the parent's duties (re-indexed by unit), and each branch's share
+    of its split's duty as its fraction (a bypass one tenth), as with isothermal mixing."""
+    old = {}
+    for k, key in enumerate(parent.layout.units):
+        old.setdefault(key, []).append(parent.duties[k])
+    duties = np.array([old[key].pop(0) if old.get(key) else 0.1 for key in lay.units])
+    fr = []
+    for sd, s, b in lay.splits():
+        share = np.array([sum(duties[x] for x in br) for br in (lay.hot if sd == "hot" else lay.cold)[s][b]])
+        share = np.where(share > 0, share, 0.1 * max(share.sum(), 1e-9))
+        fr += list(share / share.sum())
+    return duties, np.array(fr)
+
+
+def restructure(p: TacProblem, sol: LayoutSolution, deadline: float, *, seed=None,
+                patience: int = RESTRUCTURE_PATIENCE, stats: dict | None = None) -> LayoutSolution:
+    """Local search over layouts from ``sol``: first improvement over the moves of :func:`layout_moves` in random
+    order (``seed``), each layout solved from the parent's duties with duty-share, equal and random
+    fractions, until no move improves, ``patience`` moves in a row fail, or
+    ``deadline`` (a ``time.monotonic`` reading [s]) passes.  Returns the cheapest solution found; ``stats``,
+    when given, receives the number of layouts refined ("layouts") and whether the deadline stopped the
+    search ("timed_out").  Layouts a :class:`heatloom.network.structure.Network` cannot carry are skipped:
+    a split with a bypass or with units in series on a branch (:func:`representable`), or units that cannot
+    be put in one order along every stream with each split's branches sharing a stage (:func:`layout_stages`
+    gives None).
+    """
+    stats = {} if stats is None else stats
+    stats.update(layouts=0, timed_out=False)
+    rng = np.random.default_rng(seed)
+    seen = {sol.layout.key()}
+    best = sol
+    improved = True
+    while improved and time.monotonic() < deadline:
+        improved = False
+        moves = layout_moves(best.layout)
+        fails = 0
+        for idx in rng.permutation(len(moves)):
+            if time.monotonic() > deadline:
+                stats["timed_out"] = True
+                break
+            if fails >= patience:
+                break
+            lay = moves[idx]
+            if lay.key() in seen or not lay.units or not representable(lay) or layout_stages(lay) is None:
+                continue
+            seen.add(lay.key())
+            d0, f0 = _start(lay, best)
+            f1 = np.array([rng.uniform(0.2, 0.8) for _ in f0])
+            stats["layouts"] += 1
+            cand = solve_layout(p, lay, [(d0, f0), (d0, np.full(len(f0), 0.5)),
+                                         (d0 * rng.uniform(0.7, 1.3, len(d0)), f1)])
+            if cand is not None and cand.tac < best.tac * (1 - 1e-7):
+                best = cand
+                improved = True
+                break
+            fails += 1
+    return best
+
+
+def network_from_layout(p: TacProblem, sol: LayoutSolution, streams, utilities, costs: CostSettings, *,
+                        notes=(), solves=()) -> Network:
+    """The network of a solved layout, sized with the exact LMTD and costed from its own temperatures.
+
+    Units get the stages of :func:`layout_stages` (the units on the branches of one split share a stage)
+    and their branch's flow fraction.
+
+    Raises
+    ------
+    InfeasibleError
+        If the streams' orders conflict (no stages), or the network fails :func:`check_network` with
+        ΔTmin = EMAT (and with the streams' ΔTmin contributions where some are given).
+    """
+    if not representable(sol.layout):
+        raise InfeasibleError("the layout has a split with a bypass or with units in series on a branch, which a "
+                              "network's units table cannot carry")
+    rows = layout_units(p, sol)
+    if any(r["stage"] is None for r in rows):
+        raise InfeasibleError("the layout's units cannot be put in one order along every stream")
+    exchangers, heaters, coolers = [], [], []
+    capital = operating = 0.0
+    for d in rows:
+        kind, key = d["kind"], d["key"]
+        lm = float(log_mean(d["hot_in"] - d["cold_out"], d["hot_out"] - d["cold_in"]))
+        area = d["duty"] / (d["u"] * lm)
+        cost = float(costs.annual_capital_cost(area, kind))
+        capital += cost
+        common = {"duty": d["duty"], "area": area, "cost": cost, "u": d["u"], "lmtd": lm, "region": "whole",
+                  "stage": d["stage"]}
+        if kind is UnitKind.EXCHANGER:
+            exchangers.append(Exchanger(p.hot_names[key[1]], p.cold_names[key[2]], hot_in=d["hot_in"],
+                                        hot_out=d["hot_out"], cold_in=d["cold_in"], cold_out=d["cold_out"],
+                                        hot_fraction=d["hot_fraction"], cold_fraction=d["cold_fraction"], **common))
+        elif kind is UnitKind.HEATER:
+            util = p.heat_levels[key[2]]
+            operating += d["duty"] * util.cost
+            heaters.append(Heater(p.cold_names[key[1]], util.name, cold_in=d["cold_in"], cold_out=d["cold_out"],
+                                  utility_in=util.supply_temperature, utility_out=util.target_temperature,
+                                  cold_fraction=d["cold_fraction"], **common))
+        else:
+            util = p.cool_levels[key[2]]
+            operating += d["duty"] * util.cost
+            coolers.append(Cooler(p.hot_names[key[1]], util.name, hot_in=d["hot_in"], hot_out=d["hot_out"],
+                                  utility_in=util.supply_temperature, utility_out=util.target_temperature,
+                                  hot_fraction=d["hot_fraction"], **common))
+    exchangers.sort(key=lambda e: (e.stage, e.hot, e.cold))
+    net = Network(tuple(exchangers), tuple(heaters), tuple(coolers), p.emat, capital_cost=capital,
+                  operating_cost=operating, total_annual_cost=capital + operating, currency=costs.currency,
+                  notes=tuple(notes), solves=tuple(solves))
+    check_network(net, streams, utilities, dt_min=p.emat, contributions=False)
+    if p.has_contributions:
+        check_network(net, streams, utilities, dt_min=p.emat, contributions=True)
+    return net
+
+
+def beyond_stagewise(p: TacProblem, sol: TopologySolution, streams, utilities, costs: CostSettings, notes: list,
+                     budget, seed: int) -> Network | None:
+    """The network of :func:`restructure` from a stagewise solution until ``budget.deadline``, when it is
+    cheaper and passes the final check (with ``notes`` and a note of its own); else None, with a note
+    appended to ``notes``.
+
+    Parameters
+    ----------
+    p : TacProblem
+    sol : TopologySolution
+        The best stagewise solution.
+    streams, utilities, costs
+        As given to :func:`heatloom.network.tac.search.design_tac`.
+    notes : list of str
+    budget : heatloom.network.solvers.Budget
+        Its deadline ends the search [s, ``time.monotonic`` clock]; its reports go to the network.
+    seed : int
+        Seed of the order of the moves [-].
+    """
+    lay, duties, fractions = layout_from_solution(p, sol)
+    start = solve_layout(p, lay, [(duties, fractions)])
+    if start is None:
+        return None
+    stats: dict = {}
+    best = restructure(p, start, budget.deadline, seed=int(seed), stats=stats)
+    done = f"{stats['layouts']} layouts refined" + (", stopped by the time limit" if stats["timed_out"] else "")
+    if not best.tac < sol.tac * (1 - 1e-6):
+        notes.append("search beyond the stagewise form (units moved anywhere along their streams, utility units "
+                     f"on split branches): nothing cheaper found ({done})")
+        return None
+    extra = [f"search beyond the stagewise form: units moved along their streams (utility units on split "
+             f"branches, beside exchangers) lowered the TAC from {sol.tac:.6g} to {best.tac:.6g} ({done}); "
+             "each unit's stage orders it along its streams, and the branches of a split share a stage"]
+    try:
+        return network_from_layout(p, best, streams, utilities, costs, notes=[*notes, *extra],
+                                   solves=budget.reports)
+    except (InfeasibleError, InputError) as exc:
+        notes.append(f"search beyond the stagewise form: its network failed the final check ({exc}); the "
+                     "stagewise network is given")
+        return None
