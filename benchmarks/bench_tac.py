@@ -95,8 +95,8 @@ def main() -> None:
     ap.add_argument("--no-published", action="store_true", help="run only the generated problems")
     ap.add_argument("--restructure", action="store_true",
                     help="give the last part of the time limit to the search beyond the stagewise form "
-                         "(design_tac(restructure=True): units in series on split branches, utility units "
-                         "beside exchangers)")
+                         "(design_tac(restructure=True): units moved along their streams, utility units on "
+                         "split branches beside exchangers)")
     args = ap.parse_args()
     rows = []
     header = (f"{'problem':<34} {'streams':>7} {'our TAC':>12} {'best published':>14} {'ratio':>7} {'target':>6} "
