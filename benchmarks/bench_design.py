@@ -14,6 +14,11 @@ the fewest-matches MILP and the stagewise placement). Asserts nothing; run:
     python benchmarks/bench_design.py [--sizes 10 20 40 60 100] [--time-limit S] [--solver highs]
     python benchmarks/bench_design.py --quick          # 10 and 20 streams only
     python benchmarks/bench_design.py --sizes 100 --notes   # and where the units come from, region by region
+    python benchmarks/bench_design.py --seed 12             # another set of generated problems
+
+The tick-off units are merged (a stream's staircase of partial units becomes one branch per partner,
+heatloom.network.merge) and improved by neighbourhood moves (heatloom.network.neighbourhood); --notes
+gives the number of searches and moves of each region.
 """
 
 from __future__ import annotations
@@ -54,6 +59,7 @@ def main() -> None:
                     help="budget of each whole design [s] (default 60 s up to 40 streams, else 300 s)")
     ap.add_argument("--solver", default=None)
     ap.add_argument("--dtmin", type=float, default=10.0)
+    ap.add_argument("--seed", type=int, default=11, help="seed of the generated problems (default 11)")
     ap.add_argument("--notes", action="store_true",
                     help="print each region's note: units, those for what the tick-off steps left, searches")
     args = ap.parse_args()
@@ -61,7 +67,7 @@ def main() -> None:
     print(f"{'streams':>8} {'units':>6} {'target':>7} {'excess':>7} {'matches':>8} {'budget':>7} "
           f"{'time [s]':>9} {'check':>6} {'fallbacks':>9} {'method':>9}  statuses")
     for n in sizes:
-        table = generated(n)
+        table = generated(n, args.seed)
         limit = args.time_limit if args.time_limit is not None else (60.0 if n <= 40 else 300.0)
         t0 = time.perf_counter()
         try:

@@ -17,8 +17,10 @@ The sequence (DEVELOPERS.md, "Method notes"):
    with fewer units.  The notes say which.  Forbidden and required matches hold at every step;
    Above :data:`TICK_OFF_ABOVE` process streams, steps 2 and 3 are one: the tick-off method
    (:mod:`heatloom.network.tickoff`) distributes the heat and places the units region by region, every
-   unit ticking off a stream part while the remainder still meets the targets; the MILP chain is the
-   fallback there;
+   unit ticking off a stream part while the remainder still meets the targets, its units merged where a
+   stream can serve its partners in one branch each (:mod:`heatloom.network.merge`) and, with 60 % of
+   its time, improved by moves that place the units of a few streams again
+   (:mod:`heatloom.network.neighbourhood`); the MILP chain is the fallback there;
 4. sizing of every unit (segment-wise LMTD area, U from the film coefficients), costing, and the checks of
    :func:`heatloom.network.structure.check_network`: a network that breaks a balance or ΔTmin is never
    returned.
@@ -226,8 +228,9 @@ def _place(hot: list[Side], cold: list[Side], allowed: set[tuple[str, str]], lab
 def _tick_off_words(result) -> str:
     rest = (f", {result.remainder} of them for what was left placed interval by interval"
             if result.remainder else "")
+    moves = f", {result.moves} neighbourhood moves" if result.moves else ""
     return (f"units placed by the tick-off method ({len(result.placement.units)} units{rest}; best of "
-            f"{result.tries} searches)")
+            f"{result.tries} searches{moves})")
 
 
 def match_rules(streams: StreamTable, utilities: Sequence[Utility], forbidden, required
@@ -352,8 +355,8 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
         names = {x.name for x in (*hot, *cold)}
         mine = {p for p in required if p[0] in names and p[1] in names}
         result = tick_off_placement(hot, cold, forbidden=forbidden, required=mine,
-                                    time_limit=0.5 * part.remaining, tries=500, solver=solver,
-                                    solve_time=0.6 * part.remaining)
+                                    time_limit=0.6 * part.remaining, tries=500, solver=solver,
+                                    solve_time=0.6 * part.remaining, neighbourhood=0.6)
         if result is not None:
             solves += [part.record(r) for r in result.reports]
         if result is None:

@@ -44,6 +44,12 @@ over part of a stretch and a partial unit leave as many pieces as before: each c
 target.  With forbidden pairs a remainder whose cascade holds may still have no placement; the method
 then returns no result and the caller uses another one.
 
+The units of every search are merged before searches are compared (:func:`heatloom.network.merge.merge_units`:
+a stream matched alternately with a few partners in small partial units becomes one branch per partner),
+and with ``neighbourhood`` a share of the time goes to moves that take out the units of a few sides of
+the best search and tick the holes off again (:func:`heatloom.network.neighbourhood.improve_units`).
+What is left to place, and its cascade, is :class:`heatloom.network.pieces.Pieces`.
+
 References
 ----------
 .. [1] Linnhoff, B., Hindmarsh, E. (1983). The pinch design method for heat exchanger networks. Chemical
@@ -58,11 +64,13 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .merge import merge_units, unit_approach
+from .pieces import Pieces, cascade_feasible, cascade_points, cascade_residual, heat_above, shifted_offset
 from .placement import PlacedUnit, Placement, Side
 from .remainder import REMAINDER_MILP_SIDES, place_remainder
 from .solvers import SolveReport
 
-__all__ = ["REMAINDER_MILP_SIDES", "TickOffResult", "cascade_feasible", "tick_off_placement"]
+__all__ = ["REMAINDER_MILP_SIDES", "TickOffResult", "cascade_feasible", "tick_off_placement", "tick_off_search"]
 
 
 @dataclass(frozen=True)
@@ -80,6 +88,8 @@ class TickOffResult:
         Searches run [-].
     reports : tuple of SolveReport
         The stagewise MILP of the remainder, when one ran.
+    moves : int
+        Neighbourhood moves tried on the best search (:func:`heatloom.network.neighbourhood.improve_units`) [-].
     """
 
     placement: Placement
@@ -87,137 +97,13 @@ class TickOffResult:
     remainder: int
     tries: int
     reports: tuple[SolveReport, ...] = ()
-
-
-class _State:
-    """What is left: pieces of the sides, each a stretch [a, b] of a side's enthalpy (from its inlet, at
-    full flow) carried by a share f of its flow; a utility is one piece of its duty."""
-
-    def __init__(self, sides: Sequence[Side]):
-        self.sides = list(sides)
-        self.side = list(range(len(sides)))
-        self.a = [0.0] * len(sides)
-        self.b = [float(s.duty) for s in sides]
-        self.f = [1.0] * len(sides)
-
-    def copy(self) -> _State:
-        out = _State.__new__(_State)
-        out.sides = self.sides
-        out.side, out.a, out.b, out.f = list(self.side), list(self.a), list(self.b), list(self.f)
-        return out
-
-    def left(self, k: int) -> float:
-        return self.f[k] * (self.b[k] - self.a[k])
-
-    def of(self, k: int) -> Side:
-        return self.sides[self.side[k]]
-
-
-def _shifted(side: Side) -> float:
-    return -side.shift if side.hot else side.shift
-
-
-def _above(side: Side, a: float, b: float, f: float, points: np.ndarray) -> np.ndarray:
-    """Heat of a piece (stretch [a, b], flow share f) released (hot) or taken (cold) above each shifted
-    point [kW]."""
-    if side.utility:
-        if side.hot:   # counted from its coldest shifted temperature down
-            return np.where(points < min(side.temperatures) - side.shift, b - a, 0.0)
-        return np.where(points <= max(side.temperatures) + side.shift, b - a, 0.0)
-    t = np.asarray(side.temperatures, float)
-    e = np.asarray(side.enthalpies, float)
-    if t[0] > t[-1]:
-        t, e = t[::-1], e[::-1]
-    h = np.interp(points - _shifted(side), t, e)   # heat from the inlet to that temperature, clipped
-    if side.hot:
-        return f * (np.clip(h, a, b) - a)
-    return f * (b - np.clip(h, a, b))
-
-
-def _points(state: _State, tol: float) -> np.ndarray:
-    pts = []
-    for k in range(len(state.side)):
-        if state.left(k) <= tol:
-            continue
-        s, a, b = state.of(k), state.a[k], state.b[k]
-        if s.utility:
-            pts.append(min(s.temperatures) - s.shift if s.hot else max(s.temperatures) + s.shift)
-            continue
-        sh = _shifted(s)
-        pts += [s.temperature(a) + sh, s.temperature(b) + sh]
-        pts += [t + sh for t, e in zip(s.temperatures, s.enthalpies) if a < e < b]
-    return np.unique(np.asarray(pts, float))
-
-
-def _residual(state: _State, points: np.ndarray, tol: float) -> np.ndarray:
-    r = np.zeros(points.size)
-    for k in range(len(state.side)):
-        if state.left(k) > tol:
-            s = state.of(k)
-            r += (1.0 if s.hot else -1.0) * _above(s, state.a[k], state.b[k], state.f[k], points)
-    return r
-
-
-def cascade_feasible(sides: Sequence[Side], tol: float | None = None) -> bool:
-    """True when the sides' cascade carries no negative heat past any shifted temperature.
-
-    Hot utilities count from their coldest shifted temperature down and cold utilities from their hottest
-    up (the conservative reading: any unit the cascade promises keeps ΔTmin over the utility's range).
-
-    Parameters
-    ----------
-    sides : sequence of Side
-    tol : float, optional
-        Heat allowed below zero [kW]; 1e-7 of the largest duty when None.
-
-    Examples
-    --------
-    >>> h = Side("H", True, (150.0, 50.0), (0.0, 200.0), 5.0)
-    >>> cascade_feasible([h, Side("C", False, (40.0, 120.0), (0.0, 200.0), 5.0)])
-    True
-    >>> cascade_feasible([h, Side("C", False, (140.0, 150.0), (0.0, 200.0), 5.0)])
-    False
-    """
-    state = _State(sides)
-    scale = max(max((s.duty for s in sides), default=1.0), 1.0)
-    tol = 1e-7 * scale if tol is None else tol
-    return bool((_residual(state, _points(state, 0.0), 0.0) >= -tol).all())
-
-
-def _unit_approach(hs: Side, h0: float, h1: float, fh: float, cs: Side, c0: float, c1: float, fc: float
-                   ) -> float:
-    """Smallest hot-minus-cold temperature over a counter-current unit, less the needed approach [K].
-
-    The hot side runs over its enthalpy stretch [h0, h1] at flow share fh, the cold side over [c0, c1] at
-    share fc (the same heat); the hot inlet end meets the cold outlet end.
-    """
-    q = fh * (h1 - h0)
-    need = hs.shift + cs.shift
-    if hs.utility and cs.utility or q <= 0:
-        return -np.inf if hs.utility and cs.utility else 0.0
-    xs = {0.0, q}
-    if not hs.utility:
-        xs |= {fh * (e - h0) for e in hs.enthalpies if h0 < e < h1}
-    if not cs.utility:
-        xs |= {fc * (c1 - e) for e in cs.enthalpies if c0 < e < c1}
-    worst = np.inf
-    for x in xs:   # x: heat from the unit's hot end
-        if hs.utility:   # a utility's own flow runs linearly over its whole range
-            th = max(hs.temperatures) - (max(hs.temperatures) - min(hs.temperatures)) * x / q
-        else:
-            th = hs.temperature(h0 + x / fh)
-        if cs.utility:
-            tc = max(cs.temperatures) - (max(cs.temperatures) - min(cs.temperatures)) * x / q
-        else:
-            tc = cs.temperature(c1 - x / fc)
-        worst = min(worst, th - tc - need)
-    return worst
+    moves: int = 0
 
 
 # A step: (hot piece, cold piece, kind, load, excess, both off); kind (hot end, cold end) with end 0 the
 # inlet and 1 the outlet, or "split hot" / "split cold" (a branch of that piece over its whole stretch
 # ticks the other piece off).
-def _candidates(state: _State, hot: list[int], cold: list[int], allowed, tol: float, points: np.ndarray,
+def _candidates(state: Pieces, hot: list[int], cold: list[int], allowed, tol: float, points: np.ndarray,
                 residual: np.ndarray, mode: str):
     """Every step of a mode ("ends", "split" or a partial share) that keeps ΔTmin at the unit's ends and
     the cascade at the current points."""
@@ -227,8 +113,8 @@ def _candidates(state: _State, hot: list[int], cold: list[int], allowed, tol: fl
         return []
     sh = [state.of(i) for i in hot]
     sc = [state.of(j) for j in cold]
-    H = np.array([_above(state.of(i), state.a[i], state.b[i], state.f[i], points) for i in hot])
-    C = np.array([_above(state.of(j), state.a[j], state.b[j], state.f[j], points) for j in cold])
+    H = np.array([heat_above(state.of(i), state.a[i], state.b[i], state.f[i], points) for i in hot])
+    C = np.array([heat_above(state.of(j), state.a[j], state.b[j], state.f[j], points) for j in cold])
     lh = np.array([state.left(i) for i in hot])
     lc = np.array([state.left(j) for j in cold])
     fh = np.array([state.f[i] for i in hot])
@@ -316,7 +202,7 @@ def _candidates(state: _State, hot: list[int], cold: list[int], allowed, tol: fl
     return out
 
 
-def _branch_candidates(state: _State, hot: list[int], cold: list[int], allowed, tol: float):
+def _branch_candidates(state: Pieces, hot: list[int], cold: list[int], allowed, tol: float):
     """Steps where a branch of one piece, over the stretch from one of its ends that keeps ΔTmin against
     the whole other piece, ticks that other piece off (the stream splits of the pinch design method)."""
     out = []
@@ -354,7 +240,7 @@ def _branch_candidates(state: _State, hot: list[int], cold: list[int], allowed, 
     return out
 
 
-def _split_piece(state: _State, k: int, s0: float, s1: float, x: float) -> None:
+def _split_piece(state: Pieces, k: int, s0: float, s1: float, x: float) -> None:
     """Give share x of piece k's flow over its stretch [s0, s1] (one end of it) to a unit."""
     a, b, f = state.a[k], state.b[k], state.f[k]
     if s0 <= a and s1 >= b:
@@ -367,7 +253,7 @@ def _split_piece(state: _State, k: int, s0: float, s1: float, x: float) -> None:
     state.f.append(f * (1 - x))
 
 
-def _apply(state: _State, step, tol: float):
+def _apply(state: Pieces, step, tol: float):
     """The state after a step and the unit (hot stretch, share, cold stretch, share, load)."""
     i, j, kind, q = step[:4]
     new = state.copy()
@@ -414,17 +300,17 @@ def _apply(state: _State, step, tol: float):
     return new, (h0, h1, fi, c0, c1, fj)
 
 
-def _has_tick_off(state: _State, allowed, tol: float) -> bool:
+def _has_tick_off(state: Pieces, allowed, tol: float) -> bool:
     """True when nothing is left or some tick-off step at the ends is accepted at the current points."""
     hot = [k for k in range(len(state.side)) if state.of(k).hot and state.left(k) > tol]
     cold = [k for k in range(len(state.side)) if not state.of(k).hot and state.left(k) > tol]
     if not hot or not cold:
         return True
-    points = _points(state, tol)
-    return bool(_candidates(state, hot, cold, allowed, tol, points, _residual(state, points, tol), "ends"))
+    points = cascade_points(state, tol)
+    return bool(_candidates(state, hot, cold, allowed, tol, points, cascade_residual(state, points, tol), "ends"))
 
 
-def _cut_at_pinches(state: _State, points: np.ndarray, residual: np.ndarray, tol: float) -> _State | None:
+def _cut_at_pinches(state: Pieces, points: np.ndarray, residual: np.ndarray, tol: float) -> Pieces | None:
     """The state with every piece that crosses an inner zero of the cascade (a pinch of what is left) cut
     there, or None when no piece crosses one: no heat passes such a point, so the parts above and below it
     are problems of their own, each cut part ticked off from the new pinch out."""
@@ -435,7 +321,7 @@ def _cut_at_pinches(state: _State, points: np.ndarray, residual: np.ndarray, tol
         if s.utility or state.left(k) <= tol or not inner.size:
             continue
         a, b = state.a[k], state.b[k]
-        for e in sorted({e for e in (s.enthalpy(p - _shifted(s)) for p in inner)
+        for e in sorted({e for e in (s.enthalpy(p - shifted_offset(s)) for p in inner)
                          if a < e < b and state.f[k] * min(e - a, b - e) > tol}):
             out = out or state.copy()
             out.side.append(out.side[k])
@@ -446,9 +332,9 @@ def _cut_at_pinches(state: _State, points: np.ndarray, residual: np.ndarray, tol
     return out
 
 
-def _pinch_steps(state: _State, allowed, tol: float, pinch_side, key, branches: bool = False):
+def _pinch_steps(state: Pieces, allowed, tol: float, pinch_side, key, branches: bool = False):
     """Yield (step, unit, state after it) for the tick-off steps at the region's pinch, best first by
-    ``key``, each checked as :func:`_search` checks its steps: a unit from the pinch out between pieces that touch the pinch, or a
+    ``key``, each checked as :func:`tick_off_search` checks its steps: a unit from the pinch out between pieces that touch the pinch, or a
     branch of one over its whole stretch that takes all of the other (the stream splits of the pinch design
     method when no partner has the larger heat capacity flow rate); with ``branches``, when none of those is
     accepted, a branch from the pinch end over the stretch that takes all of the other piece (its heat capacity
@@ -459,21 +345,21 @@ def _pinch_steps(state: _State, allowed, tol: float, pinch_side, key, branches: 
         return [(k, (1 if state.of(k).hot else 0) if above else (0 if state.of(k).hot else 1))
                 for k in range(len(state.side)) if not state.of(k).utility]
 
-    at_end = [state.of(k).temperature(state.a[k] if e == 0 else state.b[k]) + _shifted(state.of(k))
+    at_end = [state.of(k).temperature(state.a[k] if e == 0 else state.b[k]) + shifted_offset(state.of(k))
               for k, e in pinch_ends(state)]
     if not at_end:
         return
     p = min(at_end) if above else max(at_end)
     while True:
         at = [k for k, e in pinch_ends(state) if state.left(k) > tol and
-              abs(state.of(k).temperature(state.a[k] if e == 0 else state.b[k]) + _shifted(state.of(k)) - p)
+              abs(state.of(k).temperature(state.a[k] if e == 0 else state.b[k]) + shifted_offset(state.of(k)) - p)
               <= 1e-9 * max(abs(p), 1.0)]
         hot = [k for k in at if state.of(k).hot]
         cold = [k for k in at if not state.of(k).hot]
         if not (hot if above else cold):
             return
-        points = _points(state, tol)
-        residual = _residual(state, points, tol)
+        points = cascade_points(state, tol)
+        residual = cascade_residual(state, points, tol)
         cands = [c for c in _candidates(state, hot, cold, allowed, tol, points, residual, "ends")
                  if c[2] == pinch_side]
         cands += _candidates(state, hot, cold, allowed, tol, points, residual, "split")
@@ -481,9 +367,9 @@ def _pinch_steps(state: _State, allowed, tol: float, pinch_side, key, branches: 
         for c in sorted(cands, key=key) + sorted([c for c in _branch_candidates(state, hot, cold, allowed, tol)
                                                    if _from_pinch(state, c, above)], key=key) * branches:
             trial, unit = _apply(state, c, tol)
-            if _unit_approach(state.of(c[0]), *unit[:3], state.of(c[1]), *unit[3:]) < -1e-9:
+            if unit_approach(state.of(c[0]), *unit[:3], state.of(c[1]), *unit[3:]) < -1e-9:
                 continue
-            if (_residual(trial, _points(trial, tol), tol) >= -tol).all():
+            if (cascade_residual(trial, cascade_points(trial, tol), tol) >= -tol).all():
                 state, found = trial, True
                 yield c, unit, state
                 break
@@ -491,7 +377,7 @@ def _pinch_steps(state: _State, allowed, tol: float, pinch_side, key, branches: 
             return
 
 
-def _from_pinch(state: _State, c, above: bool) -> bool:
+def _from_pinch(state: Pieces, c, above: bool) -> bool:
     """True when a branch step runs from the pinch end of its piece."""
     kind, s0, s1 = c[2]
     k = c[0] if kind == "branch hot" else c[1]
@@ -499,8 +385,9 @@ def _from_pinch(state: _State, c, above: bool) -> bool:
     return (s1 >= state.b[k]) if hot_end == above else (s0 <= state.a[k])
 
 
-def _search(sides: list[Side], allowed, required, tol: float, rng, noise: float, rule: int = 0,
-            lookahead: int = 1, pinch_first: int = 2, cuts: bool = True):
+def tick_off_search(sides: list[Side], allowed, required, tol: float, rng, noise: float, rule: int = 0,
+                    lookahead: int = 1, pinch_first: int = 2, cuts: bool = True, start: Pieces | None = None,
+                    deadline: float | None = None):
     """One tick-off search; returns (units, state) with the state of what is left.
 
     ``rule`` picks the measure of a step's verticality [-]: 0 the sum of the excess approaches at the
@@ -509,10 +396,13 @@ def _search(sides: list[Side], allowed, required, tol: float, rng, noise: float,
     method's order, from the pinch out); 6 the largest share of the cascade's heat the step takes at one
     temperature, 7 the same from the pinch ends out; ``noise`` [-] perturbs the measure at random.
     ``pinch_first`` [-] places the steps at the region's pinch first (:func:`_pinch_steps`; 2 also with
-    branches over part of a stretch; 0 not; never with required pairs, which go first); ``cuts`` lets a stuck search cut the pieces at a pinch of what is left
+    branches over part of a stretch, 3 the same taking the step of the largest load first; 0 not; never
+    with required pairs, which go first); ``cuts`` lets a stuck search cut the pieces at a pinch of what is left
     (:func:`_cut_at_pinches`).  With ``lookahead`` > 1 [-], of that many accepted steps
-    (best first) the first after which a tick-off step at the ends is still accepted is taken."""
-    state = _State(sides)
+    (best first) the first after which a tick-off step at the ends is still accepted is taken.  ``start``:
+    the pieces to place, when not the whole sides; ``deadline`` (of :func:`time.monotonic`, [s]): stop
+    there, leaving what is not placed yet."""
+    state = Pieces(sides) if start is None else start.copy()
     units = []
     placed_pairs: set[tuple[str, str]] = set()
     # the ends at the pinch: above it (a hot utility, no cold one) the hot outlets and cold inlets, below
@@ -523,21 +413,25 @@ def _search(sides: list[Side], allowed, required, tol: float, rng, noise: float,
     span = max(max(s.temperatures) for s in sides) - min(min(s.temperatures) for s in sides) + 1.0
     if pinch_first and pinch_side is not None and not required:   # the pinch design method: pinch first
         def pinch_key(c):
+            if pinch_first == 3:   # the largest load first
+                return (not c[5], -c[3] * (1.0 + (rng.random() * noise if noise else 0.0)))
             measure = c[4][3] if rule >= 6 else c[4][rule % 3] / span if rule % 3 < 2 else c[4][2] * 10.0
             return (not c[5], measure + (rng.random() * noise if noise else 0.0))
 
-        for c, unit, after in _pinch_steps(state, allowed, tol, pinch_side, pinch_key, pinch_first == 2):
+        for c, unit, after in _pinch_steps(state, allowed, tol, pinch_side, pinch_key, pinch_first >= 2):
             state = after
             i, j, kind, q = c[:4]
             units.append((state.side[i], state.side[j], unit, q, kind if isinstance(kind, str) else "ends"))
             placed_pairs.add((sides[state.side[i]].name, sides[state.side[j]].name))
-    while True:
+            if deadline is not None and time.monotonic() >= deadline:
+                break
+    while deadline is None or time.monotonic() < deadline:
         hot = [k for k in range(len(state.side)) if state.of(k).hot and state.left(k) > tol]
         cold = [k for k in range(len(state.side)) if not state.of(k).hot and state.left(k) > tol]
         if not hot or not cold:
             break
-        points = _points(state, tol)
-        residual = _residual(state, points, tol)
+        points = cascade_points(state, tol)
+        residual = cascade_residual(state, points, tol)
         chosen = None
         pending = required - placed_pairs
 
@@ -560,11 +454,13 @@ def _search(sides: list[Side], allowed, required, tol: float, rng, noise: float,
                 cands = [(*c[:2], ("part", *c[2]), *c[3:]) for c in cands]
             good = []
             for c in sorted(cands, key=key):
+                if deadline is not None and time.monotonic() >= deadline:
+                    break
                 trial, unit = _apply(state, c, tol)
                 h0, h1, fh, c0, c1, fc = unit
-                if _unit_approach(state.of(c[0]), h0, h1, fh, state.of(c[1]), c0, c1, fc) < -1e-9:
+                if unit_approach(state.of(c[0]), h0, h1, fh, state.of(c[1]), c0, c1, fc) < -1e-9:
                     continue
-                if (_residual(trial, _points(trial, tol), tol) >= -tol).all():
+                if (cascade_residual(trial, cascade_points(trial, tol), tol) >= -tol).all():
                     good.append((c, unit, trial))
                     if len(good) >= max(lookahead, 1):
                         break
@@ -602,7 +498,7 @@ def _unit(hs: Side, cs: Side, unit, q) -> PlacedUnit:
     return PlacedUnit(hs.name, cs.name, 0, float(q), h_in, h_out, c_in, c_out, min(fh, 1.0), min(fc, 1.0))
 
 
-def _remainder(state: _State, tol: float, forbidden, solver=None, solve_time: float = 0.0):
+def _remainder(state: Pieces, tol: float, forbidden, solver=None, solve_time: float = 0.0):
     """What the steps left, placed by :func:`heatloom.network.remainder.place_remainder` (the pieces under
     names of their own).  Returns (units or None, solve reports)."""
     pieces, names = [], {}
@@ -622,13 +518,13 @@ def _remainder(state: _State, tol: float, forbidden, solver=None, solve_time: fl
 
 
 _PLAIN = ((0, 1, 2), (7, 1, 1), (0, 1, 0), (5, 1, 0), (2, 1, 2), (4, 1, 2), (3, 1, 0), (1, 1, 0), (7, 1, 2),
-          (6, 1, 1), (0, 4, 2), (5, 4, 0))
-"""(measure, lookahead, pinch first) of the first, unperturbed searches (see :func:`_search`)."""
+          (6, 1, 1), (0, 4, 2), (5, 4, 0), (6, 1, 3), (0, 1, 3), (3, 1, 3))
+"""(measure, lookahead, pinch first) of the first, unperturbed searches (see :func:`tick_off_search`)."""
 
 
 def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=frozenset(),
                        required=frozenset(), time_limit: float = 10.0, tries: int = 50, seed: int = 0,
-                       solver=None, solve_time: float = 0.0) -> TickOffResult | None:
+                       solver=None, solve_time: float = 0.0, neighbourhood: float = 0.0) -> TickOffResult | None:
     """Place the units of one pinch region by the tick-off rule, checking the leftover targets each step.
 
     Parameters
@@ -642,9 +538,10 @@ def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=f
         Pairs placed first where a step with them is accepted; a search leaving one out loses to one that
         has them all.
     time_limit : float
-        Wall-clock time for the repeated searches [s]; the first search always runs to its end.
+        Wall-clock time for the repeated searches and the neighbourhood moves [s]; the first search always
+        runs to its end.
     tries : int
-        Most searches [-]: the first twelve unperturbed, the others with perturbed choices.  The searches
+        Most searches [-]: the first fifteen unperturbed, the others with perturbed choices.  The searches
         stop early when one places N − 1 units or fewer without a remainder, or when none of the
         unperturbed ones ended in a placement.
     seed : int
@@ -654,6 +551,10 @@ def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=f
         :func:`heatloom.network.solvers.resolve_solver`).
     solve_time : float
         Time limit of that MILP [s]; 0 places the remainder interval by interval only.
+    neighbourhood : float
+        Share of ``time_limit`` kept for moves that take out the units of a few sides of the best search
+        and place them again (:func:`heatloom.network.neighbourhood.improve_units`) [-]; 0 none.  They run
+        when the best search left no remainder and has more than N − 1 units.
 
     Returns
     -------
@@ -687,27 +588,37 @@ def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=f
     rng = np.random.default_rng(seed)
     best = None
     n = 0
+    searching = (1.0 - neighbourhood) * time_limit
     while n < max(tries, 1):
         rule, ahead, first = _PLAIN[n] if n < len(_PLAIN) else (int(rng.integers(8)), int(rng.choice([1, 4])),
-                                                                 int(rng.integers(3)))
+                                                                 int(rng.integers(4)))
         noise = 0.0 if n < len(_PLAIN) else 0.5 * rng.random()
-        steps, state = _search(sides, allowed, required, tol, rng, noise, rule, ahead, first)
+        steps, state = tick_off_search(sides, allowed, required, tol, rng, noise, rule, ahead, first)
         n += 1
-        placed = [_unit(sides[i], sides[j], unit, q) for i, j, unit, q, _ in steps]
+        merged = merge_units(sides, [(i, j, unit, q) for i, j, unit, q, _ in steps])
+        placed = [_unit(sides[i], sides[j], unit, q) for i, j, unit, q in merged]
         extra, _ = _remainder(state, tol, forbidden)
         if extra is not None:
             have = {(u.hot, u.cold) for u in (*placed, *extra)}
             score = (len(required - have), len(placed) + len(extra))
             if best is None or score < best[0]:
-                best = (score, placed, extra, state)
-        if time.monotonic() - start > time_limit or (best is not None and best[0][0] == 0 and not best[2]
+                best = (score, placed, extra, state, merged)
+        if time.monotonic() - start > searching or (best is not None and best[0][0] == 0 and not best[2]
                                                      and best[0][1] <= len(sides) - 1):
             break
         if best is None and n >= len(_PLAIN):   # no unperturbed search ended in a placement: none will
             break
     if best is None:
         return None
-    (missing, count), placed, extra, state = best
+    (missing, count), placed, extra, state, merged = best
+    moves = 0
+    left = time_limit - (time.monotonic() - start)
+    if neighbourhood > 0 and not extra and count > len(sides) - 1 and left > 0:
+        from .neighbourhood import improve_units
+
+        have = {(sides[i].name, sides[j].name) for i, j, _, _ in merged}
+        merged, moves = improve_units(sides, merged, allowed, required & have, tol, rng, left)
+        placed = [_unit(sides[i], sides[j], unit, q) for i, j, unit, q in merged]
     reports = []
     if extra and solve_time > 0:
         milp, reports = _remainder(state, tol, forbidden, solver, solve_time)
@@ -717,5 +628,6 @@ def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=f
     units = sorted([*placed, *extra], key=lambda u: (-u.hot_in, -u.cold_out))
     units = [PlacedUnit(u.hot, u.cold, k, u.duty, u.hot_in, u.hot_out, u.cold_in, u.cold_out, u.hot_fraction,
                         u.cold_fraction) for k, u in enumerate(units)]
-    return TickOffResult(Placement(tuple(units), max(len(units), 1)), len(placed), len(extra), n, tuple(reports))
+    return TickOffResult(Placement(tuple(units), max(len(units), 1)), len(placed), len(extra), n, tuple(reports),
+                         moves)
 

@@ -16,6 +16,7 @@ import heatloom.network.design as design_module
 from heatloom.errors import InfeasibleError, InputError
 from heatloom.model import StreamTable
 from heatloom.network import check_network, design_mer
+from heatloom.network.pieces import Pieces
 from heatloom.network.placement import Side
 from heatloom.network.tickoff import cascade_feasible, tick_off_placement
 
@@ -105,7 +106,7 @@ def _pinch_steps(hot, cold, pinch_side, branches=False):
     sides = [*hot, *cold]
     allowed = {(h.name, c.name) for h in hot for c in cold}
     return [(st.side[c[0]], st.side[c[1]], c[2], c[3], unit) for c, unit, st in
-            tickoff._pinch_steps(tickoff._State(sides), allowed, 1e-7, pinch_side, lambda c: (not c[5], c[4][0]),
+            tickoff._pinch_steps(Pieces(sides), allowed, 1e-7, pinch_side, lambda c: (not c[5], c[4][0]),
                                  branches)]
 
 
@@ -247,7 +248,7 @@ def test_remainder_milp_without_a_solution_falls_back(monkeypatch):
                            "Time limit reached")
 
     monkeypatch.setattr(remainder, "solve", stalled)
-    monkeypatch.setattr(tickoff, "_search", lambda sides, *a, **k: ([], tickoff._State(sides)))
+    monkeypatch.setattr(tickoff, "tick_off_search", lambda sides, *a, **k: ([], Pieces(sides)))
     hot = [Side("H1", True, (200.0, 60.0), (0.0, 980.0), 5.0), Side("H2", True, (150.0, 50.0), (0.0, 300.0), 5.0)]
     cold = [Side("C1", False, (90.0, 190.0), (0.0, 400.0), 5.0), Side("C2", False, (80.0, 150.0), (0.0, 350.0), 5.0),
             Side("cu", False, (10.0, 10.0), (0.0, 530.0), 5.0, utility=True)]
@@ -263,7 +264,7 @@ def test_remainder_milp_without_a_solution_falls_back(monkeypatch):
     assert got == pytest.approx({"H1": 980, "H2": 300, "C1": 400, "C2": 350, "cu": 530})
     # without the forced stop the MILP places the same sides in fewer units than interval by interval
     monkeypatch.undo()
-    monkeypatch.setattr(tickoff, "_search", lambda sides, *a, **k: ([], tickoff._State(sides)))
+    monkeypatch.setattr(tickoff, "tick_off_search", lambda sides, *a, **k: ([], Pieces(sides)))
     solved = tick_off_placement(hot, cold, solve_time=20.0, tries=1)
     assert solved.reports[0].has_solution
     assert len(solved.placement.units) <= len(result.placement.units)
