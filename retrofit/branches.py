@@ -27,6 +27,7 @@ from dataclasses import replace
 from ..errors import InputError
 from ..model import Stream
 from ..model.existing import ExistingUnit, UnitRole
+from ..network.design import TICK_OFF_ABOVE
 from .profiles import temperature_after
 
 __all__ = ["FRACTION_SUM_TOLERANCE", "resolve_positions", "stages", "branch_outlets", "branch_stream", "design_share",
@@ -172,8 +173,10 @@ def _check_group(units: list[ExistingUnit], stream: str, p: int, group: list[tup
             raise InputError(f"unit '{units[i].name}' takes {fractions[0]:.4g} of stream '{stream}' (a split branch) "
                              f"but is the only unit at position {p}: the fractions of one split must add up to 1. "
                              "The other branches need their units at the same position; a branch with several "
-                             "units in series, or a bypass, cannot be represented (give the network with one "
-                             "unit per branch)", row=units[i].row, column=f"{side}_fraction")
+                             "units in series, or a bypass, cannot be represented yet (the network table holds "
+                             "one unit per branch; MER designs of more than "
+                             f"{TICK_OFF_ABOVE} process streams can carry such branches)",
+                             row=units[i].row, column=f"{side}_fraction")
         raise InputError(f"the split of stream '{stream}' at position {p} ({shares}) has fractions adding up to "
                          f"{total:.6g}, not 1: the branches of one split share the whole stream, one unit per "
                          "branch (a branch with several units in series, or a bypass, cannot be represented)",
