@@ -388,20 +388,50 @@ def _from_pinch(state: Pieces, c, above: bool) -> bool:
 def tick_off_search(sides: list[Side], allowed, required, tol: float, rng, noise: float, rule: int = 0,
                     lookahead: int = 1, pinch_first: int = 2, cuts: bool = True, start: Pieces | None = None,
                     deadline: float | None = None):
-    """One tick-off search; returns (units, state) with the state of what is left.
+    """One tick-off search: steps placed until nothing is left or no step is accepted.
 
-    ``rule`` picks the measure of a step's verticality [-]: 0 the sum of the excess approaches at the
-    unit's two ends, 1 the larger of them, 2 the heat the cascade loses (the driving force the step
-    spends); 3 to 5 the same, with the units at the pinch ends of both sides first (the pinch design
-    method's order, from the pinch out); 6 the largest share of the cascade's heat the step takes at one
-    temperature, 7 the same from the pinch ends out; ``noise`` [-] perturbs the measure at random.
-    ``pinch_first`` [-] places the steps at the region's pinch first (:func:`_pinch_steps`; 2 also with
-    branches over part of a stretch, 3 the same taking the step of the largest load first; 0 not; never
-    with required pairs, which go first); ``cuts`` lets a stuck search cut the pieces at a pinch of what is left
-    (:func:`_cut_at_pinches`).  With ``lookahead`` > 1 [-], of that many accepted steps
-    (best first) the first after which a tick-off step at the ends is still accepted is taken.  ``start``:
-    the pieces to place, when not the whole sides; ``deadline`` (of :func:`time.monotonic`, [s]): stop
-    there, leaving what is not placed yet."""
+    Parameters
+    ----------
+    sides : list of Side
+        The process and utility sides of one pinch region (their duties [kW] and shifted temperature
+        profiles [°C]).
+    allowed : set of (str, str)
+        The (hot, cold) name pairs that may be matched (forbidden pairs left out).
+    required : collection of (str, str)
+        Pairs that must be placed; they go first, and the pinch-first phase is then skipped.
+    tol : float
+        Heat tolerance of the cascade and of "nothing left" [kW].
+    rng : numpy.random.Generator
+        Random stream of the noise and of the pinch-step order.
+    noise : float
+        Relative perturbation of the step measure [-] (0: deterministic).
+    rule : int
+        The measure of a step's verticality [-]: 0 the sum of the excess approaches at the unit's two ends,
+        1 the larger of them, 2 the heat the cascade loses (the driving force the step spends); 3 to 5 the
+        same, with the units at the pinch ends of both sides first (the pinch design method's order, from
+        the pinch out); 6 the largest share of the cascade's heat the step takes at one temperature, 7 the
+        same from the pinch ends out.
+    lookahead : int
+        Of that many accepted steps (best first) the first after which a tick-off step at the ends is
+        still accepted is taken [-] (1: the best).
+    pinch_first : int
+        Steps at the region's pinch first (:func:`_pinch_steps`) [-]: 0 not; 1 whole stretches; 2 also with
+        branches over part of a stretch; 3 as 2, taking the step of the largest load first.
+    cuts : bool
+        Let a stuck search cut the pieces at a pinch of what is left (:func:`_cut_at_pinches`).
+    start : Pieces, optional
+        The pieces to place, when not the whole sides.
+    deadline : float, optional
+        A :func:`time.monotonic` reading [s]: stop there, leaving what is not placed yet.
+
+    Returns
+    -------
+    tuple
+        (units, state): the placed units as (hot side index, cold side index, unit, duty [kW], kind) with
+        the unit as (hot stretch start, end [kW], hot share [-], cold stretch start, end [kW], cold share
+        [-]) (:data:`heatloom.network.merge.Rect`), and the :class:`~heatloom.network.pieces.Pieces` left
+        to place.
+    """
     state = Pieces(sides) if start is None else start.copy()
     units = []
     placed_pairs: set[tuple[str, str]] = set()
