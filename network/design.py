@@ -36,7 +36,7 @@ from dataclasses import replace
 
 from .. import defaults
 from ..errors import InfeasibleError, InputError
-from ..model import Stream, StreamTable, Utility
+from ..model import MatchRules, Stream, StreamTable, Utility
 from ..model.costs import CostSettings
 from ..model.exchangers import ExchangerType
 from ..pinch import target
@@ -249,7 +249,7 @@ def match_rules(streams: StreamTable, utilities: Sequence[Utility], forbidden, r
     ------
     InputError
         For a name that is not a hot (first) or cold (second) stream or utility, a pair of two utilities,
-        or a pair both forbidden and required; the message names the pairs and the valid names.
+        or a pair both forbidden and required (the checks and wording of :class:`heatloom.model.MatchRules`).
 
     Examples
     --------
@@ -260,30 +260,12 @@ def match_rules(streams: StreamTable, utilities: Sequence[Utility], forbidden, r
     >>> match_rules(s, ideal_utilities(s, 10), [("H2", "C1")], [])
     Traceback (most recent call last):
     ...
-    heatloom.errors.InputError: forbidden match H2→C1: 'H2' is not a hot stream or hot utility (hot: 'H1', 'hot utility (assumed)')
+    heatloom.errors.InputError: forbidden match H2:C1: unknown hot side 'H2'; the hot streams and utilities are 'H1', 'hot utility (assumed)'
     """
     from .matches import pair_set
 
-    hot = [s.name for s in streams if s.is_hot] + [u.name for u in utilities if u.is_hot]
-    cold = [s.name for s in streams if not s.is_hot] + [u.name for u in utilities if not u.is_hot]
-    util = {u.name for u in utilities}
-    out = []
-    for what, pairs in (("forbidden", forbidden), ("required", required)):
-        pairs = pair_set(pairs, what)
-        for h, c in sorted(pairs):
-            if h not in hot:
-                raise InputError(f"{what} match {h}→{c}: '{h}' is not a hot stream or hot utility (hot: "
-                                 + ", ".join(f"'{n}'" for n in hot) + ")")
-            if c not in cold:
-                raise InputError(f"{what} match {h}→{c}: '{c}' is not a cold stream or cold utility (cold: "
-                                 + ", ".join(f"'{n}'" for n in cold) + ")")
-            if h in util and c in util:
-                raise InputError(f"{what} match {h}→{c}: two utilities never exchange heat in a network")
-        out.append(pairs)
-    both = sorted(out[0] & out[1])
-    if both:
-        raise InputError("match" + ("es " if len(both) > 1 else " ") + ", ".join(f"{h}→{c}" for h, c in both)
-                         + " both forbidden and required")
+    out = [pair_set(forbidden, "forbidden"), pair_set(required, "required")]
+    MatchRules(forbidden=tuple(sorted(out[0])), required=tuple(sorted(out[1]))).check(streams, utilities)
     return out[0], out[1]
 
 

@@ -300,11 +300,11 @@ def test_forbidden_and_required_matches(reference, monkeypatch, method):
 
 def test_unknown_names_and_conflicting_rules(reference):
     data, streams = reference("targeting_sinnott_four_stream")
-    with pytest.raises(InputError, match=r"forbidden match 9→3: '9' is not a hot stream"):
+    with pytest.raises(InputError, match=r"forbidden match 9:3: unknown hot side '9'; the hot streams and utilities are '1', '2'"):
         design_mer(streams, 10, default_film_coefficient=1.0, forbidden=[("9", "3")])
-    with pytest.raises(InputError, match=r"required match 1→2: '2' is not a cold stream"):
+    with pytest.raises(InputError, match=r"required match 1:2: '2' is a hot stream, not a cold side \(write HOT:COLD\)"):
         design_mer(streams, 10, default_film_coefficient=1.0, required=[("1", "2")])
-    with pytest.raises(InputError, match=r"1→4 both forbidden and required"):
+    with pytest.raises(InputError, match=r"match 1:4 is both forbidden and required"):
         design_mer(streams, 10, default_film_coefficient=1.0, forbidden=[("1", "4")], required=[("1", "4")])
     with pytest.raises(InputError, match=r"pair of names"):
         design_mer(streams, 10, default_film_coefficient=1.0, forbidden=["145"])
