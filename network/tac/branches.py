@@ -485,7 +485,8 @@ def restructure(p: TacProblem, sol: LayoutSolution, deadline: float, *, seed=Non
     """Local search over layouts from ``sol``: first improvement over the moves of :func:`layout_moves` in random
     order (``seed``), each layout solved from the parent's duties with duty-share, equal and random
     fractions, until no move improves, ``patience`` moves in a row fail, or
-    ``deadline`` (a ``time.monotonic`` reading [s]) passes.  Returns the cheapest solution found; ``stats``,
+    ``deadline`` (a ``time.monotonic`` reading [s]) would pass before another refinement as long as the
+    longest so far ends.  Returns the cheapest solution found; ``stats``,
     when given, receives the number of layouts refined ("layouts") and whether the deadline stopped the
     search ("timed_out").  Layouts a :class:`heatloom.network.structure.Network` cannot carry are skipped:
     a split with a bypass or with units in series on a branch (:func:`representable`), or units that cannot
@@ -497,13 +498,14 @@ def restructure(p: TacProblem, sol: LayoutSolution, deadline: float, *, seed=Non
     rng = np.random.default_rng(seed)
     seen = {sol.layout.key()}
     best = sol
+    longest = 0.0   # the longest refinement so far [s]: none is started that would end past the deadline
     improved = True
     while improved and time.monotonic() < deadline:
         improved = False
         moves = layout_moves(best.layout)
         fails = 0
         for idx in rng.permutation(len(moves)):
-            if time.monotonic() > deadline:
+            if time.monotonic() + longest > deadline:   # no room for another refinement as long as the longest
                 stats["timed_out"] = True
                 break
             if fails >= patience:
@@ -515,8 +517,10 @@ def restructure(p: TacProblem, sol: LayoutSolution, deadline: float, *, seed=Non
             d0, f0 = _start(lay, best)
             f1 = np.array([rng.uniform(0.2, 0.8) for _ in f0])
             stats["layouts"] += 1
+            began = time.monotonic()
             cand = solve_layout(p, lay, [(d0, f0), (d0, np.full(len(f0), 0.5)),
                                          (d0 * rng.uniform(0.7, 1.3, len(d0)), f1)])
+            longest = max(longest, time.monotonic() - began)
             if cand is not None and cand.tac < best.tac * (1 - 1e-7):
                 best = cand
                 improved = True
