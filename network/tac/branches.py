@@ -38,6 +38,7 @@ from ...model.costs import CostSettings, UnitKind
 from ..structure import Cooler, Exchanger, Heater, Network, check_network
 from .nlp import TopologySolution, unit_costs
 from .problem import TacProblem
+from .starts import contracted_levels
 
 __all__ = ["Layout", "LayoutSolution", "layout_from_solution", "solve_layout", "restructure", "layout_units",
            "representable", "layout_stages", "layout_moves", "network_from_layout", "beyond_stagewise", "RESTRUCTURE_SHARE",
@@ -350,65 +351,19 @@ def layout_stages(lay: Layout) -> list[int] | None:
     """A stage per unit such that along every stream a unit met earlier from the hot end has a lower
     stage, and the units on the branches of one split share a stage [-]; None when the streams' orders
     conflict (or a split's branches cannot share one stage)."""
-    n = len(lay.units)
-    parent = list(range(n))   # units on the branches of one split are one node (union-find)
-
-    def root(k: int) -> int:
-        while parent[k] != k:
-            parent[k] = parent[parent[k]]
-            k = parent[k]
-        return k
-
-    for paths in (lay.hot, lay.cold):
+    together, before = [], []
+    for paths, reverse in ((lay.hot, False), (lay.cold, True)):
         for path in paths:
+            seq = list(reversed(path)) if reverse else list(path)
             for block in path:
-                members = [x for br in block for x in br] if len(block) > 1 else []
-                for a, b in zip(members, members[1:]):
-                    parent[root(a)] = root(b)
-    stage_of_node = _node_stages(lay, n, root)
-    return None if stage_of_node is None else [stage_of_node[root(k)] for k in range(n)]
-
-
-def _node_stages(lay: Layout, n: int, root) -> dict | None:
-    """Longest-path stages of the contracted units (``root`` maps a unit to its node); None on a cycle."""
-    after: dict = {k: set() for k in range(n)}
-
-    def chain(path, reverse):
-        blocks = [[x for br in block for x in br] for block in path]
-        seq = list(reversed(path)) if reverse else list(path)
-        for b in range(len(seq) - 1):
-            for x in (y for br in seq[b] for y in br):
-                after[root(x)].update(root(y) for br in seq[b + 1] for y in br)
-        for block in path:
-            for br in block:
-                br = list(reversed(br)) if reverse else list(br)
-                for a, c in zip(br, br[1:]):
-                    after[root(a)].add(root(c))
-        return blocks
-
-    for path in lay.hot:
-        chain(path, False)
-    for path in lay.cold:
-        chain(path, True)
-    nodes = {root(k) for k in range(n)}
-    if any(k in after[k] for k in nodes):
-        return None   # two units of one split in series along another stream
-    indeg = {k: 0 for k in nodes}
-    for k in nodes:
-        for c in after[k]:
-            indeg[c] += 1
-    stage = {k: 0 for k in nodes}
-    ready = [k for k in nodes if indeg[k] == 0]
-    done = 0
-    while ready:
-        k = ready.pop()
-        done += 1
-        for c in after[k]:
-            stage[c] = max(stage[c], stage[k] + 1)
-            indeg[c] -= 1
-            if indeg[c] == 0:
-                ready.append(c)
-    return stage if done == len(nodes) else None
+                if len(block) > 1:   # the units on the branches of one split
+                    together.append([x for br in block for x in br])
+                for br in block:
+                    br = list(reversed(br)) if reverse else list(br)
+                    before += zip(br, br[1:])
+            for b1, b2 in zip(seq, seq[1:]):
+                before += [(x, y) for br in b1 for x in br for br2 in b2 for y in br2]
+    return contracted_levels(len(lay.units), together, before)
 
 
 def _places(path) -> list:

@@ -32,7 +32,8 @@ from ..solvers import Budget, new_variable
 from ..structure import Network
 from .nlp import TacProblem, Topology, TopologySolution, unit_costs
 
-__all__ = ["stagewise_milp", "unit_estimates", "topology_from_network", "mer_network", "MER_SHARE", "MER_CAP"]
+__all__ = ["stagewise_milp", "unit_estimates", "topology_from_network", "mer_network", "contracted_levels",
+           "MER_SHARE", "MER_CAP"]
 
 MER_SHARE = 0.1
 """Part of the remaining time given to the starting MER design [-], as its ``time_limit`` (which
@@ -239,33 +240,45 @@ def topology_from_network(p: TacProblem, net: Network) -> Topology | None:
     return Topology(stages, frozenset(matches), frozenset(heaters), frozenset(coolers))
 
 
-def _stagewise_matches(ex: list, hot_idx: dict, cold_idx: dict) -> set | None:
-    """(hot, cold, stage) of every exchanger of ``ex`` laid into stages, or None when their orders conflict."""
-    parent = list(range(len(ex)))
+def contracted_levels(count: int, together, before) -> list[int] | None:
+    """A level per item (0, 1, ...) such that an item before another has a lower level and the items of one
+    group share a level; each item as low as the order allows (longest path) [-].
 
-    def find(a):
+    Parameters
+    ----------
+    count : int
+        Items 0 .. count − 1 [-].
+    together : iterable of sequences of int
+        Groups of items that must share a level.
+    before : iterable of (int, int)
+        (a, b): item a comes before item b.
+
+    Returns
+    -------
+    list of int or None
+        None when the order has a cycle (also when two items of one group must follow each other).
+
+    Examples
+    --------
+    >>> contracted_levels(4, [(1, 2)], [(0, 1), (2, 3)])
+    [0, 1, 1, 2]
+    >>> contracted_levels(3, [(0, 1)], [(0, 1)]) is None
+    True
+    """
+    parent = list(range(count))
+
+    def find(a: int) -> int:
         while parent[a] != a:
             parent[a] = parent[parent[a]]
             a = parent[a]
         return a
 
-    edges = set()
-    for side in ("hot", "cold"):
-        by_stream: dict = {}
-        for n, e in enumerate(ex):
-            t = (round(e.hot_in, 6), round(e.hot_out, 6)) if side == "hot" else (round(e.cold_out, 6),
-                                                                                    round(e.cold_in, 6))
-            by_stream.setdefault(getattr(e, side), {}).setdefault(t, []).append(n)
-        for groups in by_stream.values():
-            ordered = [groups[t] for t in sorted(groups, reverse=True)]
-            for g in ordered:
-                for n in g[1:]:
-                    parent[find(n)] = find(g[0])
-            for g1, g2 in zip(ordered, ordered[1:]):
-                edges.add((g1[0], g2[0]))
-    nodes = sorted({find(n) for n in range(len(ex))})
-    succ = {n: set() for n in nodes}
-    for a, b in edges:
+    for group in together:
+        for a, b in zip(group, group[1:]):
+            parent[find(b)] = find(a)
+    nodes = sorted({find(n) for n in range(count)})
+    succ: dict[int, set] = {n: set() for n in nodes}
+    for a, b in before:
         ra, rb = find(a), find(b)
         if ra == rb:
             return None
@@ -287,9 +300,29 @@ def _stagewise_matches(ex: list, hot_idx: dict, cold_idx: dict) -> set | None:
                 ready.append(b)
     if seen != len(nodes):
         return None
+    return [level[find(n)] for n in range(count)]
+
+
+def _stagewise_matches(ex: list, hot_idx: dict, cold_idx: dict) -> set | None:
+    """(hot, cold, stage) of every exchanger of ``ex`` laid into stages, or None when their orders conflict."""
+    together, before = [], set()
+    for side in ("hot", "cold"):
+        by_stream: dict = {}
+        for n, e in enumerate(ex):
+            t = (round(e.hot_in, 6), round(e.hot_out, 6)) if side == "hot" else (round(e.cold_out, 6),
+                                                                                    round(e.cold_in, 6))
+            by_stream.setdefault(getattr(e, side), {}).setdefault(t, []).append(n)
+        for groups in by_stream.values():
+            ordered = [groups[t] for t in sorted(groups, reverse=True)]
+            together += ordered
+            for g1, g2 in zip(ordered, ordered[1:]):
+                before.add((g1[0], g2[0]))
+    levels = contracted_levels(len(ex), together, before)
+    if levels is None:
+        return None
     matches = set()
     for n, e in enumerate(ex):
-        key = (hot_idx[e.hot], cold_idx[e.cold], level[find(n)])
+        key = (hot_idx[e.hot], cold_idx[e.cold], levels[n])
         if key in matches:
             return None
         matches.add(key)
