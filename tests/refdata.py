@@ -1,9 +1,12 @@
-"""Loading the published reference problems of tests/data/references/ (importable by tests: the
-`pythonpath` setting of pytest puts tests/ on the path)."""
+"""Loading the published reference problems of tests/data/references/, and the independent recomputation of
+a network's total annual cost with ht (importable by tests: the `pythonpath` setting of pytest puts tests/ on
+the path)."""
 
 import json
 import re
 from pathlib import Path
+
+import ht
 
 from heatloom.model import Stream, StreamTable, Utility, UtilityKind
 from heatloom.model.costs import CostLaw, CostSettings
@@ -59,3 +62,27 @@ def published_laws(cost_law: dict) -> dict:
 def cost_settings(cost_law: dict) -> CostSettings:
     laws = {k: CostLaw(*v) for k, v in published_laws(cost_law).items()}
     return CostSettings(annualised=True, **laws)
+
+
+def recomputed_tac(net, h: dict, price: dict, laws: dict) -> float:
+    """TAC of a network from its own temperatures, independently of heatloom's sizing: each area Q/(U·LMTD)
+    with ht.LMTD (Caleb Bell's ht library, counter-current), U = 1/(1/h_hot + 1/h_cold) from ``h`` (name →
+    film coefficient [kW/(m²·K)]), capital a + b·A^c from ``laws`` (kind → (a, b, c)), and each utility's
+    duty times ``price`` (name → [money/(kW·year)])."""
+    total = 0.0
+
+    def capital(kind, duty, hot, cold, thi, tho, tci, tco):
+        u = 1.0 / (1.0 / h[hot] + 1.0 / h[cold])
+        area = duty / (u * ht.LMTD(thi, tho, tci, tco))
+        a, b, c = laws[kind]
+        return a + b * area ** c
+
+    for e in net.exchangers:
+        total += capital("exchanger", e.duty, e.hot, e.cold, e.hot_in, e.hot_out, e.cold_in, e.cold_out)
+    for x in net.heaters:
+        total += capital("heater", x.duty, x.utility, x.cold, x.utility_in, x.utility_out, x.cold_in, x.cold_out)
+        total += price[x.utility] * x.duty
+    for x in net.coolers:
+        total += capital("cooler", x.duty, x.hot, x.utility, x.hot_in, x.hot_out, x.utility_in, x.utility_out)
+        total += price[x.utility] * x.duty
+    return total

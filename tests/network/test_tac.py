@@ -13,7 +13,7 @@ the code under test.  Invented data (marked) serve only the property checks.
 import ht
 import numpy as np
 import pytest
-from refdata import cost_settings, load_reference, published_laws, reference_utilities
+from refdata import cost_settings, load_reference, published_laws, recomputed_tac, reference_utilities
 
 from heatloom.errors import InputError, SolverError
 from heatloom.model import Segment, Stream, StreamTable, Utility, UtilityKind
@@ -26,29 +26,13 @@ from heatloom.network.tac.search import design_tac
 from heatloom.network.tac.starts import stagewise_milp, topology_from_network
 
 
-def recomputed_tac(net, data, streams) -> float:
-    """TAC from the network's own temperatures: ht.LMTD, U from the film coefficients, published law."""
-    laws = published_laws(data["cost_law"])
+def tac_by_published_law(net, data, streams) -> float:
+    """TAC from the network's own temperatures (refdata.recomputed_tac: ht.LMTD, U from the film
+    coefficients) with the published law and prices of a reference file."""
     h = {s.name: s.segments[0].film_coefficient for s in streams}
     h.update({u["name"]: u["h"] for u in data["utilities"]})
     price = {u["name"]: u["cost_per_kW_year"] for u in data["utilities"]}
-    total = 0.0
-
-    def capital(kind, duty, hot, cold, thi, tho, tci, tco):
-        u = 1.0 / (1.0 / h[hot] + 1.0 / h[cold])
-        area = duty / (u * ht.LMTD(thi, tho, tci, tco))         # counter-current by default
-        a, b, c = laws[kind]
-        return a + b * area ** c
-
-    for e in net.exchangers:
-        total += capital("exchanger", e.duty, e.hot, e.cold, e.hot_in, e.hot_out, e.cold_in, e.cold_out)
-    for x in net.heaters:
-        total += capital("heater", x.duty, x.utility, x.cold, x.utility_in, x.utility_out, x.cold_in, x.cold_out)
-        total += price[x.utility] * x.duty
-    for x in net.coolers:
-        total += capital("cooler", x.duty, x.hot, x.utility, x.hot_in, x.hot_out, x.utility_in, x.utility_out)
-        total += price[x.utility] * x.duty
-    return total
+    return recomputed_tac(net, h, price, published_laws(data["cost_law"]))
 
 
 def end_approaches(net):
@@ -70,7 +54,7 @@ def design_reference(name, **options):
 def assert_sound(net, data, streams, utilities, emat=1.0):
     check_network(net, streams, utilities, dt_min=emat)
     assert min(min(pair) for pair in end_approaches(net)) >= emat - 1e-6
-    assert net.total_annual_cost == pytest.approx(recomputed_tac(net, data, streams), rel=1e-9)
+    assert net.total_annual_cost == pytest.approx(tac_by_published_law(net, data, streams), rel=1e-9)
     assert net.total_annual_cost == pytest.approx(net.capital_cost + net.operating_cost, rel=1e-12)
 
 
@@ -428,7 +412,7 @@ def test_contributions_are_lower_bounds_on_every_approach():
     for n, d in pairs(net):
         assert d >= n - 1e-6
     check_network(net, table, utilities, dt_min=emat, contributions=True)
-    assert net.total_annual_cost == pytest.approx(recomputed_tac(net, data, table), rel=1e-9)
+    assert net.total_annual_cost == pytest.approx(tac_by_published_law(net, data, table), rel=1e-9)
     assert any("ΔTmin contributions of the stream table kept as lower bounds" in n for n in net.notes)
 
 

@@ -12,7 +12,7 @@ checks, each recomputed by hand.
 
 import ht
 import pytest
-from refdata import cost_settings, load_reference, published_laws, reference_utilities
+from refdata import cost_settings, load_reference, published_laws, recomputed_tac, reference_utilities
 
 from heatloom.errors import InfeasibleError
 from heatloom.model import StreamTable, Utility, UtilityKind
@@ -30,26 +30,6 @@ from heatloom.network.tac.branches import (
 )
 from heatloom.network.tac.nlp import Topology, make_problem, solve_topology
 from heatloom.network.tac.search import design_tac
-
-
-def recomputed_tac(net, h, price, laws) -> float:
-    """TAC from the network's own temperatures: ht.LMTD, U from the film coefficients, the given laws."""
-    total = 0.0
-
-    def capital(kind, duty, hot, cold, thi, tho, tci, tco):
-        area = duty / (1.0 / (1.0 / h[hot] + 1.0 / h[cold]) * ht.LMTD(thi, tho, tci, tco))
-        a, b, c = laws[kind]
-        return a + b * area ** c
-
-    for e in net.exchangers:
-        total += capital("exchanger", e.duty, e.hot, e.cold, e.hot_in, e.hot_out, e.cold_in, e.cold_out)
-    for x in net.heaters:
-        total += capital("heater", x.duty, x.utility, x.cold, x.utility_in, x.utility_out, x.cold_in, x.cold_out)
-        total += price[x.utility] * x.duty
-    for x in net.coolers:
-        total += capital("cooler", x.duty, x.hot, x.utility, x.hot_in, x.hot_out, x.utility_in, x.utility_out)
-        total += price[x.utility] * x.duty
-    return total
 
 
 def assert_balances_and_approaches(net, streams, emat):
