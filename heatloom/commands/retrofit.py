@@ -147,7 +147,7 @@ def format_retrofit(result, source: str, dt_note: str) -> str:
         lines.append(f"  area efficiency α {e.alpha:.2f}: {e.area_existing:,.1f} m² installed, {e.area_target:,.1f} m² "
                      f"would do at the same energy use")
     if result.cross_pinch is not None and result.cross_pinch.units:
-        parts = [f"{u.unit} {u.net:,.0f} kW" for u in sorted(result.cross_pinch.units, key=lambda u: -u.net)]
+        parts = [f"{u.unit} {round(u.net):,} kW" for u in sorted(result.cross_pinch.units, key=lambda u: -u.net)]  # no "-0"
         lines.append("  heat across the pinch: " + ", ".join(parts))
     lines.append("")
     if not result.options:
