@@ -33,9 +33,13 @@ Columns:
   split.  A **stream split** is written as one position held by several units, one per parallel branch:
   they give the same ``hot_order`` (``cold_order``) on the split stream and each its fraction below 1,
   and the fractions of one split add up to 1 (within 0.001).  The branches take the stream at its
-  temperature before the split and mix after it.  Positions may repeat only inside such a split; a branch
-  with several units in series, a bypass, or a heater or cooler on a branch cannot be written and is
-  refused (:mod:`heatloom.retrofit.branches`).
+  temperature before the split and mix after it.  Positions may repeat only inside such a split;
+* ``hot_branch``, ``cold_branch`` (optional, text) — a label naming the branch of a split a unit sits on, for
+  a branch with **several units in series**: the units of one split with the same label form one branch,
+  and each gives the branch's fraction; ``hot_branch_order``, ``cold_branch_order`` (optional, 1, 2, ...)
+  give their places on the branch from the split (default the row order).  Without a label, each unit of
+  a split is a branch of its own.  A bypass (a branch without a unit) cannot be written and is refused
+  (:mod:`heatloom.retrofit.branches`).
 
 A heater or cooler that is the last unit on its stream (a *trim* unit) may leave both area and duty empty:
 it takes the rest of its stream's duty (a heater brings its cold stream to target, a cooler its hot
@@ -47,8 +51,9 @@ from :meth:`heatloom.network.Network.to_frame`) is a network table: besides the 
 ``LMTD [K]``, ``F [-]``, ``area per shell [m²]``, ``hairpins``, ``hot in``/``hot out``/``cold in``/``cold out [°C]``,
 ``hot fraction``/``cold fraction [-]`` (read, see above) and ``cost [<currency>/year]``.  The others are
 *informative* (:data:`INFORMATIVE_COLUMNS`): accepted and not used, since the temperatures and costs follow
-from the streams, the areas and the costs file.  The units of one split of a design share a position, so a
-design with stream splits reads back as it was designed.
+from the streams, the areas and the costs file.  The units of one split of a design share a position, and a
+design's branch with units in series carries a branch label, so a design with stream splits reads back as it
+was designed.
 
 Units may be written in the headers (``area [ft2]``, ``duty (MW)``, ``U [W/m2K]``) or in a units row under
 the header, converted with :mod:`heatloom.io.units`; title lines are skipped and foreign headers can be
@@ -73,7 +78,8 @@ from .units import QuantityKind
 __all__ = ["NETWORK_COLUMNS", "INFORMATIVE_COLUMNS", "NETWORK_ALIASES", "read_network"]
 
 NETWORK_COLUMNS = ("unit", "role", "hot", "cold", "area", "duty", "U", "hot_order", "cold_order", "type", "shells",
-                   "hot_fraction", "cold_fraction")
+                   "hot_fraction", "cold_fraction", "hot_branch", "hot_branch_order", "cold_branch",
+                   "cold_branch_order")
 """Canonical columns of a network table that are read."""
 
 INFORMATIVE_COLUMNS = ("LMTD", "F", "area_per_shell", "hairpins", "hot_in", "hot_out", "cold_in", "cold_out", "cost")
@@ -101,6 +107,10 @@ NETWORK_ALIASES: dict[str, tuple[str, ...]] = {
     "cold_out": ("cold out", "cold outlet", "cold_out"),
     "hot_fraction": ("hot fraction", "hot_fraction", "hot split fraction"),
     "cold_fraction": ("cold fraction", "cold_fraction", "cold split fraction"),
+    "hot_branch": ("hot branch", "hot_branch", "hot split branch"),
+    "cold_branch": ("cold branch", "cold_branch", "cold split branch"),
+    "hot_branch_order": ("hot branch order", "hot_branch_order", "position on hot branch"),
+    "cold_branch_order": ("cold branch order", "cold_branch_order", "position on cold branch"),
     "cost": ("cost", "annual cost", "cost per year"),
 }
 """Accepted names of each column (compared ignoring case, spaces, underscores, hyphens and dots)."""
@@ -157,7 +167,7 @@ def read_network(path: str | os.PathLike, *, sheet: str | None = None,
         cell, unknown units, an empty name, an unknown type or role, shells or positions that are not whole
         numbers, a fraction outside (0, 1].  What needs the streams (unknown streams or utilities, a side of
         the wrong kind, a role that the sides contradict, positions that repeat outside a split or skip,
-        fractions of a split that do not add up to 1, a heater or cooler on a split branch, no area and no duty
+        fractions of a split that do not add up to 1, branch labels or places that do not fit, no area and no duty
         on a unit other than a trim heater or cooler, no U and no film coefficients, stated duties a stream
         cannot give or take) is found by :meth:`~heatloom.retrofit.ExistingNetwork.from_table`, located the same
         way.
@@ -213,9 +223,14 @@ def _units(table: Table) -> list[ExistingUnit]:
     cold_order = _whole(table, table.optional_numbers("cold_order", what="cold_order"), "cold_order",
                         "cold_order (position along the cold stream from its supply end)")
     shells = _whole(table, table.optional_numbers("shells", what="shells"), "shells", "shells")
+    steps = {side: _whole(table, table.optional_numbers(f"{side}_branch_order", what=f"{side}_branch_order"),
+                          f"{side}_branch_order", f"{side}_branch_order (place on the {side} stream's split "
+                          "branch from the split)") for side in ("hot", "cold")}
     fractions = {side: _fractions(table, side) for side in ("hot", "cold")}
     types = table.text("type") if "type" in table else [""] * len(table)
     roles = table.text("role") if "role" in table else [""] * len(table)
+    branches = {side: table.text(f"{side}_branch") if f"{side}_branch" in table else [""] * len(table)
+                for side in ("hot", "cold")}
     out = []
     for i in range(len(table)):
         for column, values, what in (("unit", names, "unit name"), ("hot", hot, "hot side (a hot stream or "
@@ -247,7 +262,9 @@ def _units(table: Table) -> list[ExistingUnit]:
                                     u=_or_none(u[i]), arrangement=arrangement,
                                     shells=1 if shells[i] is None else shells[i], hot_position=hot_order[i],
                                     cold_position=cold_order[i], hot_fraction=fractions["hot"][i],
-                                    cold_fraction=fractions["cold"][i], row=int(table.rows[i])))
+                                    cold_fraction=fractions["cold"][i], hot_branch=branches["hot"][i] or None,
+                                    cold_branch=branches["cold"][i] or None, hot_branch_order=steps["hot"][i],
+                                    cold_branch_order=steps["cold"][i], row=int(table.rows[i])))
         except InputError as e:
             raise table.locate(e, i) from None
     return out

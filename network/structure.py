@@ -22,6 +22,7 @@ import numpy as np
 
 from ..errors import InfeasibleError
 from ..model import Stream, StreamTable, Utility
+from .streamorder import grid_key, stream_branches, stream_positions
 
 __all__ = [
     "Exchanger",
@@ -35,6 +36,7 @@ __all__ = [
     "name_units",
     "unit_names",
     "stream_positions",
+    "stream_branches",
     "stream_enthalpy",
     "stream_temperature",
     "smallest_approach",
@@ -253,23 +255,6 @@ EXCHANGER_TYPE_LABELS: dict[str, str] = {"counter_current": "counter-current", "
                                          "shell_and_tube_1_2": "1-2", "double_pipe": "double pipe"}
 """Exchanger type (:class:`heatloom.model.ExchangerType` value) → its word in the units table."""
 
-_REGION_RANK = {"above": 0, "whole": 0, "below": 2}
-
-
-def grid_key(unit) -> tuple[int, int]:
-    """Left-to-right place of a unit on the grid diagram [-]: pinch region (above or whole, then below)
-    and stage of the placement, hot end first; a lower key comes first from every hot stream's supply end
-    and last from every cold stream's supply end.
-
-    Examples
-    --------
-    >>> grid_key(Heater("C", "steam", 100.0, 50, 90, 180, 179, stage=1)) < grid_key(
-    ...     Cooler("H", "water", 80.0, 60, 40, 20, 30, stage=0, region="below"))
-    True
-    """
-    return (_REGION_RANK.get(unit.region, 1), unit.stage)
-
-
 def _free(name: str, taken: set[str]) -> str:
     """``name``, or the first of ``name`` + a, b, ..., z, aa, ... that is not taken."""
     if name not in taken:
@@ -340,57 +325,6 @@ def name_units(exchangers: Sequence, heaters: Sequence, coolers: Sequence) -> tu
 def unit_names(network: Network) -> dict[str, object]:
     """Name → unit of every unit of a network, exchangers, heaters, coolers in the network's order."""
     return {u.name: u for u in (*network.exchangers, *network.heaters, *network.coolers)}
-
-
-def stream_positions(network: Network) -> dict[str, tuple[int | None, int | None]]:
-    """Unit name → (position along its hot process stream, along its cold process stream) from the
-    stream's supply end, 1, 2, ... [-]; None on a utility side.
-
-    Derived from the grid order (:func:`grid_key`): a hot stream meets its units in rising key, a cold
-    stream in falling key; units of one key on one stream follow their temperatures, then the network's
-    order.  The parallel branches of one split (units of one key with a fraction below 1 of that stream)
-    share one position: that is how the network table (:mod:`heatloom.io.network_table`) writes a split.
-
-    Examples
-    --------
-    H1 split in stage 0 between C1 and C2 (0.6 and 0.4 of its flow), then cooled:
-
-    >>> a = Exchanger("H1", "C1", 60.0, 150, 100, 40, 100, hot_fraction=0.6, stage=0, name="A")
-    >>> b = Exchanger("H1", "C2", 40.0, 150, 100, 50, 90, hot_fraction=0.4, stage=0, name="B")
-    >>> c = Cooler("H1", "CW", 50.0, 100, 75, 20, 30, stage=1, region="whole", name="C")
-    >>> stream_positions(Network((a, b), (), (c,), 10.0))
-    {'A': (1, 1), 'B': (1, 1), 'C': (2, None)}
-    """
-    out: dict[str, list[int | None]] = {}
-    on: dict[tuple[str, str], list] = {}
-    for i, u in enumerate((*network.exchangers, *network.heaters, *network.coolers)):
-        out[u.name] = [None, None]
-        if not isinstance(u, Heater):
-            on.setdefault(("hot", u.hot), []).append((i, u))
-        if not isinstance(u, Cooler):
-            on.setdefault(("cold", u.cold), []).append((i, u))
-    for (side, _), units in on.items():
-        def split(p, side=side) -> bool:
-            return getattr(p[1], f"{side}_fraction", 1.0) < 1 - 1e-6
-        inlet: dict[tuple, float] = {}   # a split's inlet: its branches sort together
-        for p in units:
-            if split(p):
-                t = p[1].hot_in if side == "hot" else -p[1].cold_in
-                inlet[grid_key(p[1])] = max(t, inlet.get(grid_key(p[1]), t))
-        if side == "hot":
-            units.sort(key=lambda p: (grid_key(p[1]), -inlet[grid_key(p[1])] if split(p) else -p[1].hot_in,
-                                      0 if split(p) else 1, p[0]))
-        else:
-            units.sort(key=lambda p: (tuple(-k for k in grid_key(p[1])),
-                                      -inlet[grid_key(p[1])] if split(p) else p[1].cold_in, 0 if split(p) else 1, p[0]))
-        k, previous = 0, None
-        for p in units:
-            group = ("split", grid_key(p[1])) if split(p) else None
-            if group is None or group != previous:
-                k += 1
-            previous = group
-            out[p[1].name][0 if side == "hot" else 1] = k
-    return {name: (a, b) for name, (a, b) in out.items()}
 
 
 @dataclass(frozen=True, eq=False)
@@ -484,12 +418,13 @@ class Network:
         Columns (:data:`FRAME_COLUMNS`, the cost header with the network's currency): name, role, the two
         sides, duty, area, U, LMTD, F, shells, area per shell, type, double-pipe hairpins, the position along the hot and the
         cold process stream from its supply end (empty on a utility side, :func:`stream_positions`), the
-        terminal temperatures, the flow fractions and the cost.  It is the network table that a retrofit
-        study reads back.
+        terminal temperatures, the flow fractions, the branch of a split and the place on it of a unit on a
+        split branch (empty elsewhere, :func:`stream_branches`) and the cost.  It is the network table that a
+        retrofit study reads back.
         """
         import pandas as pd
 
-        positions = stream_positions(self)
+        positions, branches = stream_positions(self), stream_branches(self)
         cost = f"cost [{self.currency or 'money'}/year]"
         rows = []
         for role, group in (("exchanger", self.exchangers), ("heater", self.heaters), ("cooler", self.coolers)):
@@ -499,18 +434,21 @@ class Network:
                                                           else "counter_current")
                 per_shell = None if u.area is None else u.area / (u.shells or 1)
                 hot_order, cold_order = positions[u.name]
+                on = [(str(b[0]), b[1]) if b else (None, None) for b in branches[u.name]]
                 rows.append(dict(zip(FRAME_COLUMNS[:-1] + (cost,), (
                     u.name, role, hot, cold, u.duty, u.area, u.u, u.lmtd, u.f_factor, u.shells or 1, per_shell,
                     EXCHANGER_TYPE_LABELS.get(kind, kind), (u.geometry or {}).get("hairpins"), hot_order,
                     cold_order, *u.terminals,
-                    getattr(u, "hot_fraction", 1.0), getattr(u, "cold_fraction", 1.0), u.cost))))
+                    getattr(u, "hot_fraction", 1.0), getattr(u, "cold_fraction", 1.0), *on[0], *on[1], u.cost))))
         frame = pd.DataFrame(rows, columns=list(FRAME_COLUMNS[:-1] + (cost,)))
-        return frame.astype({"hot_order": "Int64", "cold_order": "Int64", "shells": "Int64", "hairpins": "Int64"})
+        return frame.astype({"hot_order": "Int64", "cold_order": "Int64", "shells": "Int64", "hairpins": "Int64",
+                             "hot_branch_order": "Int64", "cold_branch_order": "Int64"})
 
 
 FRAME_COLUMNS = ("unit", "role", "hot", "cold", "duty [kW]", "area [m²]", "U [kW/(m²·K)]", "LMTD [K]", "F [-]",
                  "shells", "area per shell [m²]", "type", "hairpins", "hot_order", "cold_order", "hot in [°C]", "hot out [°C]",
-                 "cold in [°C]", "cold out [°C]", "hot fraction [-]", "cold fraction [-]", "cost [money/year]")
+                 "cold in [°C]", "cold out [°C]", "hot fraction [-]", "cold fraction [-]", "hot_branch",
+                 "hot_branch_order", "cold_branch", "cold_branch_order", "cost [money/year]")
 """Columns of :meth:`Network.to_frame`, in order (the cost header carries the network's currency)."""
 
 

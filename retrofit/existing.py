@@ -51,7 +51,10 @@ from ..network.structure import smallest_approach
 from .branches import (
     branch_outlets,
     branch_stream,
+    chains,
     design_share,
+    is_trim,
+    predecessors,
     resolve_positions,
     stages,
     stated_temperatures,
@@ -322,9 +325,10 @@ class ExistingNetwork:
                 branch_outlets(known, s, k, t, seq[k - 1])
                 k -= 1
         out = []
+        before = predecessors(units, list(streams))
         for u in units:
             seq_of = {n: order[n] for n in u.process_streams}
-            last = {n: u.name in {x.name for x in seq[-1]} for n, seq in seq_of.items()}   # a final split too
+            last = {n: is_trim(u, n, seq) for n, seq in seq_of.items()}   # the end of a branch of a final split too
             if u.role is UnitRole.EXCHANGER:
                 mode = OperatingMode.RATED
             elif last[u.process_streams[0]]:
@@ -345,7 +349,7 @@ class ExistingNetwork:
                                  f"{(util.hottest + util.coldest) / 2:g} °C")
                 mode = OperatingMode.RATED
             u = replace(u, mode=mode)
-            temps = stated_temperatures(u, known, streams, utilities)
+            temps = stated_temperatures(u, known, streams, utilities, before)
             if u.duty is not None and temps is not None:
                 u = self._check_duty(u, temps, streams, utilities, notes)
             if u.area is None and mode is not OperatingMode.FIXED_DUTY and mode is not OperatingMode.TRIM:
@@ -525,8 +529,9 @@ class ExistingNetwork:
         stream the unit met first from its supply end must be further left (hot) or further right (cold).
         Those precedences form a directed graph; when it has cycles (a perfectly feasible network whose
         units meet the streams in crossing orders) no single left-to-right order exists: the cycles are
-        returned (unit names) and the precedences of cold streams that close them are dropped.  The branches
-        of a split share a column (they are one node of the graph) unless that closes a cycle.
+        returned (unit names) and the precedences of cold streams that close them are dropped.  The first
+        units of the branches of a split share a column (they are one node of the graph); units in series on
+        a branch follow each other.
         """
         import networkx as nx
 
@@ -541,13 +546,15 @@ class ExistingNetwork:
         for s in self.streams:   # every unit of a position precedes every unit of the next (splits: branches)
             seq = self.stages(s.name)
             pairs = [(a.name, b.name) for g1, g2 in zip(seq, seq[1:]) for a in g1 for b in g2]
+            for group in seq:   # units in series on a branch follow each other; a split's first units meet
+                branches = chains(group, s.name)
+                pairs += [(a.name, b.name) for chain in branches for a, b in zip(chain, chain[1:])]
+                for chain in branches[1:]:
+                    rep[root(chain[0].name)] = root(branches[0][0].name)
             if s.is_hot:
                 hot_edges += pairs
             else:
                 cold_edges += [(b, a) for a, b in pairs]
-            for group in seq:
-                for u in group[1:]:
-                    rep[root(u.name)] = root(group[0].name)
         merged = any(rep[n] != n for n in rep)
         g = nx.DiGraph()
         g.add_nodes_from({root(n) for n in rep})
@@ -620,17 +627,16 @@ class ExistingNetwork:
         """The existing-network form of a designed :class:`heatloom.network.Network`.
 
         Units are named ``E1``..., ``H1``..., ``C1``... in the design's order and carry its areas, U values,
-        duties and flow fractions; their order along every stream follows the design's temperatures, and the
-        branches of a split (units of one stage with a fraction below 1 of that stream) share one position.
+        duties and flow fractions; their order along every stream, the splits and the branches of units in
+        series follow the design's temperatures (:func:`heatloom.network.streamorder.stream_order`).
 
         Raises
         ------
         InputError
-            If a unit has no area, or the design has a split the existing network cannot represent (a heater
-            or cooler on a branch, a branch with several units in series or with a bypass:
-            :mod:`heatloom.retrofit.branches`).
+            If a unit has no area, or the design has a split the existing network cannot represent (a branch
+            with a bypass: :mod:`heatloom.retrofit.branches`).
         """
-        from ..network.structure import grid_key
+        from ..network.streamorder import stream_order
 
         units = []
         for prefix, group in (("E", network.exchangers), ("H", network.heaters), ("C", network.coolers)):
@@ -642,18 +648,16 @@ class ExistingNetwork:
                 cold = getattr(x, "cold", None) or x.utility
                 shares = {f"{side}_fraction": design_share(getattr(x, f"{side}_fraction", 1.0)) for side in ("hot", "cold")}
                 units.append((ExistingUnit(name, hot, cold, area=x.area, duty=x.duty, u=x.u, **shares), x))
-        positions: dict[str, dict[str, int]] = {}
-        for s in streams:
-            side = "hot" if s.is_hot else "cold"
-            blocks: dict[tuple, list] = {}   # a split's branches: one block per stage of the design
-            for u, x in units:
-                if s.name in (u.hot, u.cold):
-                    key = ("split", grid_key(x)) if getattr(u, f"{side}_fraction") < 1 else ("unit", u.name)
-                    blocks.setdefault(key, []).append((u, x))
-            inlet = (lambda b: min(-x.hot_in for _, x in b)) if s.is_hot else (lambda b: min(x.cold_in for _, x in b))
-            for k, block in enumerate(sorted(blocks.values(), key=inlet), start=1):
-                for u, _ in block:
-                    positions.setdefault(u.name, {})[f"{side}_position"] = k
+        ours = {x.name: u.name for u, x in units}
+        positions: dict[str, dict] = {}
+        for (side, _), order in stream_order(network).items():
+            for k, branches in enumerate(order, start=1):
+                for b, chain in enumerate(branches, start=1):
+                    for step, design_name in enumerate(chain, start=1):
+                        at = positions.setdefault(ours[design_name], {})
+                        at[f"{side}_position"] = k
+                        if len(branches) > 1:
+                            at.update({f"{side}_branch": str(b), f"{side}_branch_order": step})
         done = [replace(u, **positions.get(u.name, {})) for u, _ in units]
         try:
             return cls(streams, tuple(done), tuple(utilities), source,
@@ -674,6 +678,9 @@ class ExistingNetwork:
         import pandas as pd
 
         split = {"hot fraction [-]": "hot_fraction", "cold fraction [-]": "cold_fraction"} if self.has_splits else {}
+        if any(u.hot_branch or u.cold_branch for u in self.units):
+            split.update({"hot_branch": "hot_branch", "hot_branch_order": "hot_branch_order",
+                          "cold_branch": "cold_branch", "cold_branch_order": "cold_branch_order"})
         return pd.DataFrame([{"unit": u.name, "role": u.role.value, "mode": u.mode.value, "hot": u.hot,
                               "cold": u.cold, "hot_order": u.hot_position, "cold_order": u.cold_position,
                               **{k: getattr(u, a) for k, a in split.items()},

@@ -32,6 +32,7 @@ from ..errors import InputError
 from ..model.existing import UnitRole
 from ..network.structure import smallest_approach
 from ..validation import non_negative
+from .branches import chains
 from .existing import ExistingNetwork
 from .profiles import temperature_after
 from .simulate import Simulation
@@ -119,9 +120,13 @@ def _walk(net: ExistingNetwork, duties: dict[str, float]) -> dict[str, tuple[flo
     for s in net.streams:
         t = s.supply_temperature
         for group in net.stages(s.name):   # a split's branches from one inlet, each with its share
-            for u in group:
-                share = u.fraction(s.name)
-                ends[(u.name, "hot" if u.hot == s.name else "cold")] = (t, temperature_after(s, t, duties[u.name] / share))
+            for chain in chains(group, s.name):
+                t_branch = t
+                for u in chain:
+                    share = u.fraction(s.name)
+                    out_t = temperature_after(s, t_branch, duties[u.name] / share)
+                    ends[(u.name, "hot" if u.hot == s.name else "cold")] = (t_branch, out_t)
+                    t_branch = out_t
             t = temperature_after(s, t, sum(duties[u.name] for u in group))
     out = {}
     for u in net.units:

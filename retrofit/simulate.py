@@ -64,6 +64,7 @@ from ..model.existing import OperatingMode, UnitRole
 from ..network.structure import smallest_approach
 from ..pinch import target
 from ..validation import check_dt_min
+from .branches import chains
 from .existing import ExistingNetwork
 from .profiles import heat_between, mean_cp_between, temperature_after
 from .rating import UnitRating, rate_unit, utility_temperature
@@ -283,34 +284,40 @@ class _Layout:
     """The unknown temperatures and where every unit side takes and leaves its stream.
 
     Keys: ``(stream, k)`` the stream after position k (k = 0: its supply, known; after a split: mixed);
-    ``(stream, k, unit)`` the outlet of a split branch.  ``inlet``/``outlet``: (unit, side) → key;
-    ``splits``: (stream, k) → the branches of the split at that position."""
+    ``(stream, k, unit)`` the outlet of a unit on a split branch (the inlet of the next unit on that
+    branch).  ``inlet``/``outlet``/``position``: (unit, side) → key, position k; ``splits``: (stream, k) →
+    the branches of the split at that position, each a tuple of units in series
+    (:func:`heatloom.retrofit.branches.chains`)."""
 
     index: dict
     inlet: dict
     outlet: dict
+    position: dict
     splits: dict
     stages: dict
 
 
 def _layout(network: ExistingNetwork, streams: dict) -> _Layout:
     index: dict[tuple, int] = {}
-    inlet, outlet, splits, stages = {}, {}, {}, {}
+    inlet, outlet, position, splits, stages = {}, {}, {}, {}, {}
     for name in streams:
         stages[name] = network.stages(name)
         for k, group in enumerate(stages[name], start=1):
             index[(name, k)] = len(index)
             if len(group) > 1:
-                splits[(name, k)] = group
-            for u in group:
-                side = "hot" if u.hot == name else "cold"
-                inlet[(u.name, side)] = (name, k - 1)
-                if len(group) > 1:
-                    outlet[(u.name, side)] = (name, k, u.name)
-                    index[outlet[(u.name, side)]] = len(index)
-                else:
-                    outlet[(u.name, side)] = (name, k)
-    return _Layout(index, inlet, outlet, splits, stages)
+                splits[(name, k)] = chains(group, name)
+            for chain in chains(group, name):
+                previous = (name, k - 1)
+                for u in chain:
+                    side = "hot" if u.hot == name else "cold"
+                    inlet[(u.name, side)], position[(u.name, side)] = previous, k
+                    if len(group) > 1:
+                        outlet[(u.name, side)] = (name, k, u.name)
+                        index[outlet[(u.name, side)]] = len(index)
+                    else:
+                        outlet[(u.name, side)] = (name, k)
+                    previous = outlet[(u.name, side)]
+    return _Layout(index, inlet, outlet, position, splits, stages)
 
 
 def _system(network: ExistingNetwork, streams: dict, lay: _Layout, cp: dict, coefficient: dict,
@@ -363,7 +370,7 @@ def _system(network: ExistingNetwork, streams: dict, lay: _Layout, cp: dict, coe
         t_in, t_out = lay.inlet[(u.name, side)], lay.outlet[(u.name, side)]
         row = lay.index[t_out]
         if u.mode is OperatingMode.TRIM:   # the stream leaves at its target (mixed, on a branch of a last split)
-            term(row, (stream, lay.inlet[(u.name, side)][1] + 1), 1.0)
+            term(row, (stream, lay.position[(u.name, side)]), 1.0)
             b[row] += streams[stream].target_temperature
             continue
         term(row, t_out, 1.0)
@@ -381,11 +388,11 @@ def _system(network: ExistingNetwork, streams: dict, lay: _Layout, cp: dict, coe
             b[row] += eps * utility_temperature(u, network)
     # mixers: C_mix (T_in − T_mix) = Σ f_k C_k (T_in − T_k), so T_mix = (1 − Σ w_k) T_in + Σ w_k T_k with
     # w_k = f_k C_k / C_mix (= f_k for a constant CP)
-    for (name, k), group in lay.splits.items():
+    for (name, k), branches in lay.splits.items():
         row = lay.index[(name, k)]
         term(row, (name, k), 1.0)
         total = 0.0
-        for u in group:
+        for u in (chain[-1] for chain in branches):   # each branch's last unit leaves to the mixer
             side = "hot" if u.hot == name else "cold"
             w = u.fraction(name) * cp[(u.name, side)] / cp[(name, k)]
             term(row, lay.outlet[(u.name, side)], -w)
@@ -517,12 +524,12 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
                                                 temperature_of(temps, lay.outlet[(u.name, side)]))}
             for side, value in values.items():
                 cp[(u.name, side)] = (1 - relax) * cp[(u.name, side)] + relax * value
-        for (name, k), group in lay.splits.items():
+        for (name, k), branches in lay.splits.items():
             # the mixed temperature the branch outlets of this pass give by the enthalpy balance (not the one
             # the last secant gave: a secant across a phase change would oscillate from pass to pass)
             s, t_split = streams[name], temperature_of(temps, (name, k - 1))
             heat = sum(x.fraction(name) * heat_between(s, t_split, temperature_of(
-                temps, lay.outlet[(x.name, "hot" if x.hot == name else "cold")])) for x in group)
+                temps, lay.outlet[(x.name, "hot" if x.hot == name else "cold")])) for x in (c[-1] for c in branches))
             value = mean_cp_between(s, t_split, temperature_after(s, t_split, heat))
             cp[(name, k)] = (1 - relax) * cp[(name, k)] + relax * value
         if iterations > 1 and change <= tolerance:

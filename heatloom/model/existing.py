@@ -84,8 +84,16 @@ class ExistingUnit:
     hot_fraction, cold_fraction : float, optional
         Share of the hot and the cold process stream's flow through the unit, in (0, 1] [-]; 1 (default)
         when the stream is not split there.  A unit below 1 sits on one branch of a stream split: the
-        units of one split share one position along the stream, one unit per branch, and their fractions
-        add up to 1 (checked by :class:`ExistingNetwork`).
+        units of one split share one position along the stream, and the fractions of its branches add up to 1
+        (checked by :class:`ExistingNetwork`).
+    hot_branch, cold_branch : str, optional
+        Label of the split branch the unit sits on, along its hot and its cold process stream; needed only
+        when a branch carries several units in series: the units of one split (one position) with the same
+        label form one branch, all with the branch's fraction.  Without a label every unit of a split is a
+        branch of its own.
+    hot_branch_order, cold_branch_order : int, optional
+        Place of the unit on its labelled branch from the split, 1-based [-]; default the order of the
+        units.
 
     A heater or cooler that is the last unit on its stream (a *trim* unit) may have neither area nor duty:
     it takes the rest of its stream's duty, bringing the stream to its target.  Every other unit needs an
@@ -113,6 +121,10 @@ class ExistingUnit:
     u_from_films: bool = False
     hot_fraction: float = 1.0
     cold_fraction: float = 1.0
+    hot_branch: str | None = None
+    cold_branch: str | None = None
+    hot_branch_order: int | None = None
+    cold_branch_order: int | None = None
 
     def __post_init__(self) -> None:
         where = {"row": self.row}
@@ -159,15 +171,17 @@ class ExistingUnit:
             raise InputError(f"unit '{name}': {shells} shells given for a {self.arrangement.value} unit; shells "
                              "in series apply to type shell_and_tube_1_2 only", column="shells", **where)
         object.__setattr__(self, "shells", int(shells))
-        for attr, column in (("hot_position", "hot_order"), ("cold_position", "cold_order")):
+        for attr, column in (("hot_position", "hot_order"), ("cold_position", "cold_order"),
+                             ("hot_branch_order", "hot_branch_order"), ("cold_branch_order", "cold_branch_order")):
             v = getattr(self, attr)
             if v is None:
                 continue
             if isinstance(v, float) and v.is_integer():
                 v = int(v)
             if isinstance(v, bool) or not isinstance(v, (int, np.integer)) or v < 1:
-                raise InputError(f"unit '{name}': {column} must be a whole number >= 1 (position from the "
-                                 f"stream's supply end), got {getattr(self, attr)!r}", column=column, **where)
+                where_from = "the split" if "branch" in attr else "the stream's supply end"
+                raise InputError(f"unit '{name}': {column} must be a whole number >= 1 (position from "
+                                 f"{where_from}), got {getattr(self, attr)!r}", column=column, **where)
             object.__setattr__(self, attr, int(v))
         for attr, column in (("hot_fraction", "hot_fraction"), ("cold_fraction", "cold_fraction")):
             v = getattr(self, attr)
@@ -180,6 +194,11 @@ class ExistingUnit:
                                  f"stream's flow through this unit on a split branch), got {v!r}", column=column,
                                  **where)
             object.__setattr__(self, attr, min(1.0, x))
+        for attr in ("hot_branch", "cold_branch"):
+            v = getattr(self, attr)
+            if v is not None:
+                v = str(v).strip()
+                object.__setattr__(self, attr, v or None)
 
     def fraction(self, stream: str) -> float:
         """Share of process stream ``stream``'s flow through this unit [-] (1 when not split there)."""
@@ -187,6 +206,14 @@ class ExistingUnit:
             return self.hot_fraction
         if stream == self.cold:
             return self.cold_fraction
+        raise KeyError(stream)
+
+    def branch(self, stream: str) -> str | None:
+        """Label of the split branch of process stream ``stream`` the unit sits on, if one is given."""
+        if stream == self.hot:
+            return self.hot_branch
+        if stream == self.cold:
+            return self.cold_branch
         raise KeyError(stream)
 
     @property
@@ -213,7 +240,9 @@ class ExistingUnit:
                 "mode": _value(self.mode), "area": self.area, "duty": self.duty, "U": self.u,
                 "type": self.arrangement.value, "shells": self.shells, "hot_order": self.hot_position,
                 "cold_order": self.cold_position, "hot_fraction": self.hot_fraction,
-                "cold_fraction": self.cold_fraction, "area_from_duty": self.area_from_duty,
+                "cold_fraction": self.cold_fraction, "hot_branch": self.hot_branch,
+                "hot_branch_order": self.hot_branch_order, "cold_branch": self.cold_branch,
+                "cold_branch_order": self.cold_branch_order, "area_from_duty": self.area_from_duty,
                 "U_from_films": self.u_from_films}
 
 

@@ -27,7 +27,8 @@ from heatloom.retrofit.simulate import simulate
 
 AGREED = ["unit", "role", "hot", "cold", "duty [kW]", "area [m²]", "U [kW/(m²·K)]", "LMTD [K]", "F [-]", "shells",
           "area per shell [m²]", "type", "hairpins", "hot_order", "cold_order", "hot in [°C]", "hot out [°C]", "cold in [°C]",
-          "cold out [°C]", "hot fraction [-]", "cold fraction [-]"]
+          "cold out [°C]", "hot fraction [-]", "cold fraction [-]", "hot_branch", "hot_branch_order", "cold_branch",
+          "cold_branch_order"]
 
 
 @pytest.fixture(scope="module")

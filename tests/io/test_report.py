@@ -304,7 +304,8 @@ def test_workbook_opens_with_every_sheet_units_and_formats(tmp_path, solvent_stu
         long_form = {"value", "unit"} <= set(frame.columns)
         for c in frame.columns:
             numeric = pd.api.types.is_numeric_dtype(frame[c]) and not pd.api.types.is_bool_dtype(frame[c])
-            counts = c in ("shells", "hairpins", "hot_order", "cold_order")   # whole numbers of the network-table format
+            counts = c in ("shells", "hairpins", "hot_order", "cold_order", "hot_branch", "hot_branch_order",
+                           "cold_branch", "cold_branch_order")   # whole numbers and labels of the network-table format
             if numeric and not frame[c].isna().all() and not long_form and not counts:
                 assert unit_of(c) is not None, f"sheet {name!r}, column {c!r} has no unit"
     wb = openpyxl.load_workbook(path)

@@ -20,7 +20,8 @@ from heatloom.network.structure import FRAME_COLUMNS, Cooler, Exchanger, Heater,
 
 AGREED = ["unit", "role", "hot", "cold", "duty [kW]", "area [m²]", "U [kW/(m²·K)]", "LMTD [K]", "F [-]", "shells",
           "area per shell [m²]", "type", "hairpins", "hot_order", "cold_order", "hot in [°C]", "hot out [°C]", "cold in [°C]",
-          "cold out [°C]", "hot fraction [-]", "cold fraction [-]"]
+          "cold out [°C]", "hot fraction [-]", "cold fraction [-]", "hot_branch", "hot_branch_order", "cold_branch",
+          "cold_branch_order"]
 
 
 def units_of(net):

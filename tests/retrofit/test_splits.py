@@ -248,23 +248,6 @@ def test_option_search_on_the_split_design_runs(split_design):
         assert simulate(apply_changes(net, o.changes), 5.0).ok
 
 
-def test_a_design_branch_with_units_in_series_is_refused_naming_the_design_unit():
-    from heatloom.network.structure import Cooler, Exchanger, Heater, Network
-
-    # invented design: H1 split in stage 0 (X1 to C1, X2 to C2, half each), then X3 on X1's branch in stage 1
-    s = StreamTable([Stream.simple("H1", 150, 60, 4.0), Stream.simple("C1", 30, 140, 2.0),
-                     Stream.simple("C2", 50, 120, 1.5), Stream.simple("C3", 20, 60, 1.0)])
-    x1 = Exchanger("H1", "C1", 100.0, 150, 100, 60, 110, hot_fraction=0.5, stage=0, area=5.0, u=0.5, name="X1")
-    x2 = Exchanger("H1", "C2", 60.0, 150, 120, 50, 90, hot_fraction=0.5, stage=0, area=3.0, u=0.5, name="X2")
-    x3 = Exchanger("H1", "C3", 40.0, 100, 60, 20, 60, hot_fraction=0.5, stage=1, area=3.0, u=0.5, name="X3")
-    design = Network((x1, x2, x3), (Heater("C1", "steam", 60.0, 110, 140, 200, 199, area=1.0, u=1.0),
-                                    Heater("C2", "steam", 45.0, 90, 120, 200, 199, area=1.0, u=1.0)),
-                     (Cooler("H1", "water", 160.0, 100, 60, 20, 30, area=1.0, u=1.0),), 10.0)
-    with pytest.raises(InputError, match=r"unit 'E3' takes 0\.5 of stream 'H1' \(a split branch\) but is the only "
-                                         r"unit at position \d.*several units in series.*\(E3 is the design's X3"):
-        ExistingNetwork.from_network(design, s, [STEAM, WATER])
-
-
 def test_moves_inside_a_split_are_refused_by_apply_changes():
     from heatloom.retrofit.options import Change
 
