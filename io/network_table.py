@@ -38,8 +38,10 @@ Columns:
   a branch with **several units in series**: the units of one split with the same label form one branch,
   and each gives the branch's fraction; ``hot_branch_order``, ``cold_branch_order`` (optional, 1, 2, ...)
   give their places on the branch from the split (default the row order).  Without a label, each unit of
-  a split is a branch of its own.  A bypass (a branch without a unit) cannot be written and is refused
-  (:mod:`heatloom.retrofit.branches`).
+  a split is a branch of its own.  A **split inside a branch** is a path of labels, outer first, with one
+  place per label: ``hot_branch`` ``b/a`` and ``hot_branch_order`` ``1/2`` is the second unit on branch a
+  of the split that is the first item of branch b.  A bypass (a branch without a unit) cannot be written
+  and is refused (:mod:`heatloom.retrofit.branches`).
 
 A heater or cooler that is the last unit on its stream (a *trim* unit) may leave both area and duty empty:
 it takes the rest of its stream's duty (a heater brings its cold stream to target, a cooler its hot
@@ -223,9 +225,8 @@ def _units(table: Table) -> list[ExistingUnit]:
     cold_order = _whole(table, table.optional_numbers("cold_order", what="cold_order"), "cold_order",
                         "cold_order (position along the cold stream from its supply end)")
     shells = _whole(table, table.optional_numbers("shells", what="shells"), "shells", "shells")
-    steps = {side: _whole(table, table.optional_numbers(f"{side}_branch_order", what=f"{side}_branch_order"),
-                          f"{side}_branch_order", f"{side}_branch_order (place on the {side} stream's split "
-                          "branch from the split)") for side in ("hot", "cold")}
+    steps = {side: table.text(f"{side}_branch_order") if f"{side}_branch_order" in table else [""] * len(table)
+             for side in ("hot", "cold")}
     fractions = {side: _fractions(table, side) for side in ("hot", "cold")}
     types = table.text("type") if "type" in table else [""] * len(table)
     roles = table.text("role") if "role" in table else [""] * len(table)
@@ -263,8 +264,9 @@ def _units(table: Table) -> list[ExistingUnit]:
                                     shells=1 if shells[i] is None else shells[i], hot_position=hot_order[i],
                                     cold_position=cold_order[i], hot_fraction=fractions["hot"][i],
                                     cold_fraction=fractions["cold"][i], hot_branch=branches["hot"][i] or None,
-                                    cold_branch=branches["cold"][i] or None, hot_branch_order=steps["hot"][i],
-                                    cold_branch_order=steps["cold"][i], row=int(table.rows[i])))
+                                    cold_branch=branches["cold"][i] or None,
+                                    hot_branch_order=steps["hot"][i] or None,
+                                    cold_branch_order=steps["cold"][i] or None, row=int(table.rows[i])))
         except InputError as e:
             raise table.locate(e, i) from None
     return out

@@ -10,6 +10,10 @@ stream at a time, from the supply end:
   fractions add up to 1, and the units that continue each head in series: a unit of the same fraction whose
   inlet is the outlet of the branch so far (a tick-off design's branch may carry several units in series);
   units entering together with fractions adding up to 1 start a new split, never continue a branch;
+* branches that go on together through a unit carrying the sum of their fractions, entering at their
+  mixed temperature (the flow-weighted mean of their outlets, exact where the heat capacity flow rate is
+  constant, as at the equal outlets of a tick-off design), form a split inside a branch, as do units
+  entering together at the end of a branch with fractions adding up to the branch's;
 * the next position starts at the lowest inlet left (after the branches mix).
 
 When the temperatures leave a stream ambiguous (the walk cannot place every unit), the order falls back to
@@ -17,10 +21,14 @@ the grid order of the placement (:func:`grid_key`: stage, then temperature), whe
 with a fraction below 1 are the branches of one split, one unit each.
 
 :func:`stream_positions` gives each unit its position along its hot and cold stream, :func:`stream_branches`
-its branch label and place on the branch (the ``hot_branch``/``cold_branch`` columns of the units table).
+its branch labels and places on the branches (the ``hot_branch``/``hot_branch_order`` and
+``cold_branch``/``cold_branch_order`` columns of the units table).
 """
 
 from __future__ import annotations
+
+import itertools
+from dataclasses import dataclass
 
 __all__ = ["grid_key", "stream_order", "stream_positions", "stream_branches"]
 
@@ -69,14 +77,106 @@ def _progress(unit, side: str) -> tuple[float, float]:
     return unit.cold_in, unit.cold_out
 
 
-def _walk(units: list[tuple[int, object]], side: str) -> list[list[list[str]]] | None:
-    """Positions → branches → unit names along one stream by its temperatures; None when ambiguous."""
+@dataclass
+class _Flow:
+    """A part of a split stream being followed: its fraction [-], where it ends (progress coordinate [K]),
+    its items so far (unit names and inner splits) and, when it splits again, its open inner flows."""
+
+    fraction: float
+    end: float
+    items: list
+    inner: list | None = None
+
+
+def _as_branches(flows: list[_Flow]) -> list[list]:
+    """Flows → branches, each a list of unit names and inner splits (lists of branches)."""
+    out = []
+    for f in flows:
+        out.append(f.items + ([_as_branches(f.inner)] if f.inner else []))
+    return out
+
+
+def _frames(flows: list[_Flow]):
+    """Every list of sibling flows: the split's, and each open inner split's, outer first."""
+    yield flows
+    for f in flows:
+        if f.inner:
+            yield from _frames(f.inner)
+
+
+def _near(a: float, b: float) -> bool:
+    return abs(a - b) <= TEMPERATURE_MATCH
+
+
+def _same(a: float, b: float) -> bool:
+    return abs(a - b) <= FRACTION_MATCH
+
+
+def _grow(top: list[_Flow], rest: list, side: str) -> list | None:
+    """Follow a split from its first units: take the units that continue, split or merge its flows, and
+    return the units left after its mixer (None when a unit fits nowhere)."""
+    while rest and _split(rest[0][1], side):
+        x = rest[0][1]
+        t, f = _progress(x, side)[0], _fraction(x, side)
+        together = [p for p in rest if _split(p[1], side) and _near(_progress(p[1], side)[0], t)]
+        if len(together) > 1 and _same(sum(_fraction(p[1], side) for p in together), 1.0):
+            break   # a new split of the whole stream: this one has mixed
+        leaves = [g for frame in _frames(top) for g in frame if g.inner is None and _near(g.end, t)]
+        share = sum(_fraction(p[1], side) for p in together)
+        parent = next((g for g in leaves if _same(g.fraction, share)), None) if len(together) > 1 else None
+        if parent is not None and not any(_same(g.fraction, f) for g in leaves):   # a split inside a branch
+            parent.inner = [_Flow(_fraction(p[1], side), _progress(p[1], side)[1], [p[1].name]) for p in together]
+            rest = [p for p in rest if all(p is not q for q in together)]
+            continue
+        going = next((g for g in leaves if _same(g.fraction, f)), None)
+        if going is not None:   # the unit continues a flow
+            going.items.append(x.name)
+            going.end = _progress(x, side)[1]
+            rest = rest[1:]
+            continue
+        merged = False
+        for frame in _frames(top):
+            ending = [g for g in frame if g.inner is None]
+            for size in range(len(ending), 1, -1):
+                for group in itertools.combinations(ending, size):
+                    if not _same(sum(g.fraction for g in group), f) or \
+                            not _near(sum(g.fraction * g.end for g in group) / f, t):
+                        continue
+                    owner = next((g for g in _all_flows(top) if g.inner is frame), None)
+                    if owner is not None and size == len(frame):   # the inner split mixes, its branch goes on
+                        owner.items.append(_as_branches(frame))
+                        owner.inner = None
+                        owner.items.append(x.name)
+                        owner.end = _progress(x, side)[1]
+                    else:   # branches of one split mix and go on together: a split inside a branch
+                        at = frame.index(group[0])
+                        joined = _Flow(f, _progress(x, side)[1], [_as_branches(list(group)), x.name])
+                        frame[:] = [g for g in frame if all(g is not h for h in group)]
+                        frame.insert(at, joined)
+                    merged = True
+                    break
+                if merged:
+                    break
+            if merged:
+                break
+        if not merged:
+            return None
+        rest = rest[1:]
+    return rest
+
+
+def _all_flows(flows: list[_Flow]):
+    for f in flows:
+        yield f
+        if f.inner:
+            yield from _all_flows(f.inner)
+
+
+def _walk(units: list[tuple[int, object]], side: str) -> list[list[list]] | None:
+    """Positions → branches → items (unit names, inner splits) along one stream by its temperatures; None
+    when ambiguous."""
     left = sorted(units, key=lambda p: (_progress(p[1], side)[0], grid_key(p[1]), p[0]))
-    out: list[list[list[str]]] = []
-
-    def heads_at(t: float, pool) -> list:
-        return [p for p in pool if _split(p[1], side) and abs(_progress(p[1], side)[0] - t) <= TEMPERATURE_MATCH]
-
+    out: list[list[list]] = []
     while left:
         first = left[0]
         if not _split(first[1], side):
@@ -84,28 +184,14 @@ def _walk(units: list[tuple[int, object]], side: str) -> list[list[list[str]]] |
             left.pop(0)
             continue
         t = _progress(first[1], side)[0]
-        heads = heads_at(t, left)
-        if abs(sum(_fraction(p[1], side) for p in heads) - 1.0) > FRACTION_MATCH or len(heads) < 2:
+        heads = [p for p in left if _split(p[1], side) and _near(_progress(p[1], side)[0], t)]
+        if len(heads) < 2 or not _same(sum(_fraction(p[1], side) for p in heads), 1.0):
             return None
-        taken = {id(p) for p in heads}
-        rest = [p for p in left if id(p) not in taken]
-        branches = []
-        for head in heads:
-            chain, f = [head], _fraction(head[1], side)
-            while True:
-                end = _progress(chain[-1][1], side)[1]
-                if len(heads_at(end, rest)) > 1 and abs(sum(_fraction(p[1], side) for p in heads_at(end, rest))
-                                                        - 1.0) <= FRACTION_MATCH:
-                    break   # a new split starts where this branch ends
-                nxt = [p for p in rest if _split(p[1], side) and abs(_fraction(p[1], side) - f) <= FRACTION_MATCH
-                       and abs(_progress(p[1], side)[0] - end) <= TEMPERATURE_MATCH]
-                if not nxt:
-                    break
-                step = min(nxt, key=lambda p: (abs(_progress(p[1], side)[0] - end), grid_key(p[1]), p[0]))
-                chain.append(step)
-                rest = [p for p in rest if p is not step]
-            branches.append([p[1].name for p in chain])
-        out.append(branches)
+        top = [_Flow(_fraction(p[1], side), _progress(p[1], side)[1], [p[1].name]) for p in heads]
+        rest = _grow(top, [p for p in left if all(p is not q for q in heads)], side)
+        if rest is None:
+            return None
+        out.append(_as_branches(top))
         left = rest
     return out
 
@@ -136,9 +222,10 @@ def _by_grid(units: list[tuple[int, object]], side: str) -> list[list[list[str]]
     return out
 
 
-def stream_order(network) -> dict[tuple[str, str], list[list[list[str]]]]:
+def stream_order(network) -> dict[tuple[str, str], list[list[list]]]:
     """(side, stream) → the stream's units from its supply end: a list of positions, each a list of
-    branches, each a list of unit names in series (one branch of one unit where the stream is not split).
+    branches, each a list of items in series — a unit name, or a split inside the branch (a list of
+    branches again).  A position where the stream is not split is one branch of one unit.
 
     Parameters
     ----------
@@ -156,6 +243,15 @@ def stream_order(network) -> dict[tuple[str, str], list[list[list[str]]]]:
     >>> d = Cooler("H1", "CW", 50.0, 100, 75, 20, 30, stage=3, region="whole", name="D")
     >>> stream_order(Network((a, b, c), (), (d,), 10.0))[("hot", "H1")]
     [[['A'], ['B', 'C']], [['D']]]
+
+    A split inside a branch: A and B (0.3 each) mix at 100 °C and go on through E, beside C (0.4):
+
+    >>> a = Exchanger("H1", "C1", 60.0, 150, 100, 30, 90, hot_fraction=0.3, name="A")
+    >>> b = Exchanger("H1", "C2", 60.0, 150, 100, 40, 100, hot_fraction=0.3, name="B")
+    >>> c = Exchanger("H1", "C3", 112.0, 150, 80, 20, 76, hot_fraction=0.4, name="C")
+    >>> e = Exchanger("H1", "C3", 48.0, 100, 80, 76, 100, hot_fraction=0.6, name="E")
+    >>> stream_order(Network((a, b, c, e), (), (), 10.0))[("hot", "H1")]
+    [[[[['A'], ['B']], 'E'], ['C']]]
     """
     on: dict[tuple[str, str], list[tuple[int, object]]] = {}
     for i, u in enumerate((*network.exchangers, *network.heaters, *network.coolers)):
@@ -164,11 +260,19 @@ def stream_order(network) -> dict[tuple[str, str], list[list[list[str]]]]:
     return {key: _walk(units, key[0]) or _by_grid(units, key[0]) for key, units in on.items()}
 
 
+def _names_in(branches: list) -> list[str]:
+    out = []
+    for branch in branches:
+        for item in branch:
+            out += _names_in(item) if isinstance(item, list) else [item]
+    return out
+
+
 def stream_positions(network) -> dict[str, tuple[int | None, int | None]]:
     """Unit name → (position along its hot process stream, along its cold process stream) from the
     stream's supply end, 1, 2, ... [-]; None on a utility side (:func:`stream_order`).
 
-    The parallel branches of one split share one position: that is how the network table
+    The units of one split share one position: that is how the network table
     (:mod:`heatloom.io.network_table`) writes a split.
 
     Examples
@@ -185,15 +289,16 @@ def stream_positions(network) -> dict[str, tuple[int | None, int | None]]:
     out = {u.name: [None, None] for u in (*network.exchangers, *network.heaters, *network.coolers)}
     for (side, _), positions in stream_order(network).items():
         for k, branches in enumerate(positions, start=1):
-            for chain in branches:
-                for name in chain:
-                    out[name][0 if side == "hot" else 1] = k
+            for name in _names_in(branches):
+                out[name][0 if side == "hot" else 1] = k
     return {name: (a, b) for name, (a, b) in out.items()}
 
 
-def stream_branches(network) -> dict[str, tuple[tuple[int, int] | None, tuple[int, int] | None]]:
-    """Unit name → (branch on its hot stream, branch on its cold stream), each (branch number in its split,
-    place on the branch from the split) [-], 1-based; None where the unit is not on a split branch.
+def stream_branches(network) -> dict[str, tuple[tuple | None, tuple | None]]:
+    """Unit name → (its branch on its hot stream, on its cold stream): (branch numbers, places on them),
+    outer split first, 1-based [-] — ``((2,), (1,))`` is the first unit on branch 2, ``((2, 1), (1, 3))`` the
+    third unit on branch 1 of the split that is the first item of branch 2; None where the unit is not
+    inside a split.
 
     Examples
     --------
@@ -202,14 +307,20 @@ def stream_branches(network) -> dict[str, tuple[tuple[int, int] | None, tuple[in
     >>> b = Exchanger("H1", "C2", 45.0, 150, 130, 50, 95, hot_fraction=0.75, stage=1, name="B")
     >>> c = Exchanger("H1", "C3", 67.5, 130, 100, 30, 97.5, hot_fraction=0.75, stage=2, name="C")
     >>> stream_branches(Network((a, b, c), (), (), 10.0))
-    {'A': ((1, 1), None), 'B': ((2, 1), None), 'C': ((2, 2), None)}
+    {'A': (((1,), (1,)), None), 'B': (((2,), (1,)), None), 'C': (((2,), (2,)), None)}
     """
     out = {u.name: [None, None] for u in (*network.exchangers, *network.heaters, *network.coolers)}
+
+    def mark(branches: list, side: int, labels: tuple, places: tuple) -> None:
+        for b, branch in enumerate(branches, start=1):
+            for k, item in enumerate(branch, start=1):
+                if isinstance(item, list):
+                    mark(item, side, labels + (b,), places + (k,))
+                else:
+                    out[item][side] = (labels + (b,), places + (k,))
+
     for (side, _), positions in stream_order(network).items():
         for branches in positions:
-            if len(branches) < 2:
-                continue
-            for b, chain in enumerate(branches, start=1):
-                for k, name in enumerate(chain, start=1):
-                    out[name][0 if side == "hot" else 1] = (b, k)
+            if len(branches) > 1:
+                mark(branches, 0 if side == "hot" else 1, (), ())
     return {name: (a, b) for name, (a, b) in out.items()}

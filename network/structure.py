@@ -434,15 +434,15 @@ class Network:
                                                           else "counter_current")
                 per_shell = None if u.area is None else u.area / (u.shells or 1)
                 hot_order, cold_order = positions[u.name]
-                on = [(str(b[0]), b[1]) if b else (None, None) for b in branches[u.name]]
+                on = [("/".join(map(str, b[0])), "/".join(map(str, b[1]))) if b else (None, None)
+                      for b in branches[u.name]]
                 rows.append(dict(zip(FRAME_COLUMNS[:-1] + (cost,), (
                     u.name, role, hot, cold, u.duty, u.area, u.u, u.lmtd, u.f_factor, u.shells or 1, per_shell,
                     EXCHANGER_TYPE_LABELS.get(kind, kind), (u.geometry or {}).get("hairpins"), hot_order,
                     cold_order, *u.terminals,
                     getattr(u, "hot_fraction", 1.0), getattr(u, "cold_fraction", 1.0), *on[0], *on[1], u.cost))))
         frame = pd.DataFrame(rows, columns=list(FRAME_COLUMNS[:-1] + (cost,)))
-        return frame.astype({"hot_order": "Int64", "cold_order": "Int64", "shells": "Int64", "hairpins": "Int64",
-                             "hot_branch_order": "Int64", "cold_branch_order": "Int64"})
+        return frame.astype({"hot_order": "Int64", "cold_order": "Int64", "shells": "Int64", "hairpins": "Int64"})
 
 
 FRAME_COLUMNS = ("unit", "role", "hot", "cold", "duty [kW]", "area [m²]", "U [kW/(m²·K)]", "LMTD [K]", "F [-]",

@@ -51,14 +51,13 @@ from ..network.structure import smallest_approach
 from .branches import (
     branch_outlets,
     branch_stream,
-    chains,
     design_share,
-    is_trim,
-    predecessors,
     resolve_positions,
+    split_inlets,
     stages,
     stated_temperatures,
 )
+from .flowtree import ends_stream, flow_steps
 from .profiles import exchanger_area, heat_between, temperature_after, utility_match_area
 
 __all__ = [
@@ -325,10 +324,11 @@ class ExistingNetwork:
                 branch_outlets(known, s, k, t, seq[k - 1])
                 k -= 1
         out = []
-        before = predecessors(units, list(streams))
+        inlets = split_inlets(units, list(streams))
         for u in units:
             seq_of = {n: order[n] for n in u.process_streams}
-            last = {n: is_trim(u, n, seq) for n, seq in seq_of.items()}   # the end of a branch of a final split too
+            last = {n: u.name in {x.name for x in seq[-1]} and ends_stream(u, flow_steps(seq[-1], n, len(seq)))
+                    for n, seq in seq_of.items()}   # no unit after it in a final split too
             if u.role is UnitRole.EXCHANGER:
                 mode = OperatingMode.RATED
             elif last[u.process_streams[0]]:
@@ -349,7 +349,7 @@ class ExistingNetwork:
                                  f"{(util.hottest + util.coldest) / 2:g} °C")
                 mode = OperatingMode.RATED
             u = replace(u, mode=mode)
-            temps = stated_temperatures(u, known, streams, utilities, before)
+            temps = stated_temperatures(u, known, streams, utilities, inlets)
             if u.duty is not None and temps is not None:
                 u = self._check_duty(u, temps, streams, utilities, notes)
             if u.area is None and mode is not OperatingMode.FIXED_DUTY and mode is not OperatingMode.TRIM:
@@ -546,11 +546,22 @@ class ExistingNetwork:
         for s in self.streams:   # every unit of a position precedes every unit of the next (splits: branches)
             seq = self.stages(s.name)
             pairs = [(a.name, b.name) for g1, g2 in zip(seq, seq[1:]) for a in g1 for b in g2]
-            for group in seq:   # units in series on a branch follow each other; a split's first units meet
-                branches = chains(group, s.name)
-                pairs += [(a.name, b.name) for chain in branches for a, b in zip(chain, chain[1:])]
-                for chain in branches[1:]:
-                    rep[root(chain[0].name)] = root(branches[0][0].name)
+            for k, group in enumerate(seq, start=1):   # inside a split: units in series follow each other
+                if len(group) < 2:
+                    continue
+                steps = flow_steps(group, s.name, k)
+                ends: dict[tuple, list[str]] = {}   # key → the units whose outlets make it
+                entering: dict[tuple, list[str]] = {}   # units that enter together (a split's first units) meet
+                for step in steps:
+                    if step.unit is None:
+                        ends[step.key] = [n for _, out, _ in step.parts for n in ends.get(out, [])]
+                        continue
+                    pairs += [(a, step.unit.name) for a in ends.get(step.inlet, [])]
+                    ends[step.key] = [step.unit.name]
+                    entering.setdefault(step.inlet, []).append(step.unit.name)
+                for names in entering.values():
+                    for n in names[1:]:
+                        rep[root(n)] = root(names[0])
             if s.is_hot:
                 hot_edges += pairs
             else:
@@ -636,7 +647,7 @@ class ExistingNetwork:
             If a unit has no area, or the design has a split the existing network cannot represent (a branch
             with a bypass: :mod:`heatloom.retrofit.branches`).
         """
-        from ..network.streamorder import stream_order
+        from ..network.streamorder import stream_branches, stream_positions
 
         units = []
         for prefix, group in (("E", network.exchangers), ("H", network.heaters), ("C", network.coolers)):
@@ -650,14 +661,14 @@ class ExistingNetwork:
                 units.append((ExistingUnit(name, hot, cold, area=x.area, duty=x.duty, u=x.u, **shares), x))
         ours = {x.name: u.name for u, x in units}
         positions: dict[str, dict] = {}
-        for (side, _), order in stream_order(network).items():
-            for k, branches in enumerate(order, start=1):
-                for b, chain in enumerate(branches, start=1):
-                    for step, design_name in enumerate(chain, start=1):
-                        at = positions.setdefault(ours[design_name], {})
-                        at[f"{side}_position"] = k
-                        if len(branches) > 1:
-                            at.update({f"{side}_branch": str(b), f"{side}_branch_order": step})
+        for design_name, where in stream_positions(network).items():
+            at = positions.setdefault(ours[design_name], {})
+            at.update({f"{side}_position": k for side, k in zip(("hot", "cold"), where) if k is not None})
+        for design_name, where in stream_branches(network).items():
+            for side, on in zip(("hot", "cold"), where):
+                if on is not None:
+                    positions[ours[design_name]].update({f"{side}_branch": "/".join(map(str, on[0])),
+                                                         f"{side}_branch_order": on[1]})
         done = [replace(u, **positions.get(u.name, {})) for u, _ in units]
         try:
             return cls(streams, tuple(done), tuple(utilities), source,
@@ -683,7 +694,7 @@ class ExistingNetwork:
                           "cold_branch": "cold_branch", "cold_branch_order": "cold_branch_order"})
         return pd.DataFrame([{"unit": u.name, "role": u.role.value, "mode": u.mode.value, "hot": u.hot,
                               "cold": u.cold, "hot_order": u.hot_position, "cold_order": u.cold_position,
-                              **{k: getattr(u, a) for k, a in split.items()},
+                              **{k: _written(getattr(u, a)) for k, a in split.items()},
                               "area [m²]": u.area, "duty [kW]": u.duty, "U [kW/(m²·K)]": u.u,
                               "type": u.arrangement.value, "shells": u.shells} for u in self.units])
 
@@ -692,6 +703,11 @@ _ROLE_RULE = ("unit between two process streams is an exchanger, one with a hot 
               "utility a cooler")
 _NEITHER = ("give one of them (only a heater or cooler that is the last unit on its stream may leave both empty: "
             "it takes the rest of the stream's duty)")
+
+
+def _written(value):
+    """A value as the units table writes it: places on a branch path as ``"1/2"``."""
+    return "/".join(map(str, value)) if isinstance(value, tuple) else value
 
 
 def _article(word: str) -> str:

@@ -32,8 +32,8 @@ from ..errors import InputError
 from ..model.existing import UnitRole
 from ..network.structure import smallest_approach
 from ..validation import non_negative
-from .branches import chains
 from .existing import ExistingNetwork
+from .flowtree import flow_steps, walk_steps
 from .profiles import temperature_after
 from .simulate import Simulation
 
@@ -119,14 +119,13 @@ def _walk(net: ExistingNetwork, duties: dict[str, float]) -> dict[str, tuple[flo
     ends: dict[tuple[str, str], tuple[float, float]] = {}
     for s in net.streams:
         t = s.supply_temperature
-        for group in net.stages(s.name):   # a split's branches from one inlet, each with its share
-            for chain in chains(group, s.name):
-                t_branch = t
-                for u in chain:
-                    share = u.fraction(s.name)
-                    out_t = temperature_after(s, t_branch, duties[u.name] / share)
-                    ends[(u.name, "hot" if u.hot == s.name else "cold")] = (t_branch, out_t)
-                    t_branch = out_t
+        for k, group in enumerate(net.stages(s.name), start=1):   # a split's branches, each with its share
+            steps = flow_steps(group, s.name, k)
+            temps = walk_steps(s, steps, t, lambda u: duties[u.name])
+            for step in steps:
+                if step.unit is not None:
+                    side = "hot" if step.unit.hot == s.name else "cold"
+                    ends[(step.unit.name, side)] = (temps[step.inlet], temps[step.key])
             t = temperature_after(s, t, sum(duties[u.name] for u in group))
     out = {}
     for u in net.units:

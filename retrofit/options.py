@@ -69,7 +69,6 @@ from ..errors import InfeasibleError, InputError
 from ..model.costs import CostSettings, RetrofitCosts
 from ..model.existing import OperatingMode
 from ..validation import check_dt_min, non_negative
-from .branches import chains
 from .changes import (
     APPROACH_TOLERANCE,
     Candidate,
@@ -299,10 +298,8 @@ def _word_place(net: ExistingNetwork, name: str, stream: str) -> str:
            for g in groups]
     i = next(k for k, g in enumerate(groups) if name in {u.name for u in g})
     if len(groups[i]) > 1:
-        mine = next(c for c in chains(groups[i], stream) if name in {u.name for u in c})
-        others = ", ".join(u.name for u in groups[i] if u not in mine)
-        mates = ", ".join(u.name for u in mine if u.name != name)
-        return f"on a branch of {stream} in parallel with {others}" + (f", in series with {mates}" if mates else "")
+        others = ", ".join(u.name for u in groups[i] if u.name != name)
+        return f"on a branch of the split of {stream} with {others}"
     prev = seq[i - 1] if i > 0 else None
     nxt = seq[i + 1] if i + 1 < len(seq) else None
     if prev and nxt:

@@ -64,8 +64,8 @@ from ..model.existing import OperatingMode, UnitRole
 from ..network.structure import smallest_approach
 from ..pinch import target
 from ..validation import check_dt_min
-from .branches import chains
 from .existing import ExistingNetwork
+from .flowtree import flow_steps
 from .profiles import heat_between, mean_cp_between, temperature_after
 from .rating import UnitRating, rate_unit, utility_temperature
 
@@ -283,11 +283,11 @@ class Simulation:
 class _Layout:
     """The unknown temperatures and where every unit side takes and leaves its stream.
 
-    Keys: ``(stream, k)`` the stream after position k (k = 0: its supply, known; after a split: mixed);
-    ``(stream, k, unit)`` the outlet of a unit on a split branch (the inlet of the next unit on that
-    branch).  ``inlet``/``outlet``/``position``: (unit, side) → key, position k; ``splits``: (stream, k) →
-    the branches of the split at that position, each a tuple of units in series
-    (:func:`heatloom.retrofit.branches.chains`)."""
+    Keys (:mod:`heatloom.retrofit.flowtree`): ``(stream, k)`` the stream after position k (k = 0: its supply,
+    known; after a split: mixed); ``(stream, k, unit)`` the outlet of a unit inside a split (the inlet of the
+    next unit on its branch); ``(stream, k, "mix", path)`` the outlet of a split inside a branch.
+    ``inlet``/``outlet``/``position``: (unit, side) → key, position k; ``splits``: mixer key → its
+    :class:`~heatloom.retrofit.flowtree.Step` (the split's inlet, its branches' outlets and fractions)."""
 
     index: dict
     inlet: dict
@@ -304,19 +304,15 @@ def _layout(network: ExistingNetwork, streams: dict) -> _Layout:
         stages[name] = network.stages(name)
         for k, group in enumerate(stages[name], start=1):
             index[(name, k)] = len(index)
-            if len(group) > 1:
-                splits[(name, k)] = chains(group, name)
-            for chain in chains(group, name):
-                previous = (name, k - 1)
-                for u in chain:
+            for step in flow_steps(group, name, k):
+                if step.unit is None:
+                    splits[step.key] = step
+                else:
+                    u = step.unit
                     side = "hot" if u.hot == name else "cold"
-                    inlet[(u.name, side)], position[(u.name, side)] = previous, k
-                    if len(group) > 1:
-                        outlet[(u.name, side)] = (name, k, u.name)
-                        index[outlet[(u.name, side)]] = len(index)
-                    else:
-                        outlet[(u.name, side)] = (name, k)
-                    previous = outlet[(u.name, side)]
+                    inlet[(u.name, side)], outlet[(u.name, side)], position[(u.name, side)] = step.inlet, step.key, k
+                if step.key not in index:
+                    index[step.key] = len(index)
     return _Layout(index, inlet, outlet, position, splits, stages)
 
 
@@ -386,18 +382,18 @@ def _system(network: ExistingNetwork, streams: dict, lay: _Layout, cp: dict, coe
             coefficient[u.name] = (eps, ntu, eps * c)
             term(row, t_in, -(1.0 - eps))
             b[row] += eps * utility_temperature(u, network)
-    # mixers: C_mix (T_in − T_mix) = Σ f_k C_k (T_in − T_k), so T_mix = (1 − Σ w_k) T_in + Σ w_k T_k with
-    # w_k = f_k C_k / C_mix (= f_k for a constant CP)
-    for (name, k), branches in lay.splits.items():
-        row = lay.index[(name, k)]
-        term(row, (name, k), 1.0)
+    # mixers: s C_mix (T_in − T_mix) = Σ f_k C_k (T_in − T_k) for a split carrying s of the stream, so
+    # T_mix = (1 − Σ w_k) T_in + Σ w_k T_k with w_k = f_k C_k / (s C_mix) (= f_k / s for a constant CP); C_k
+    # is the CP of the branch's last item (a unit, or the mixer of a split inside the branch)
+    for key, step in lay.splits.items():
+        row = lay.index[key]
+        term(row, key, 1.0)
         total = 0.0
-        for u in (chain[-1] for chain in branches):   # each branch's last unit leaves to the mixer
-            side = "hot" if u.hot == name else "cold"
-            w = u.fraction(name) * cp[(u.name, side)] / cp[(name, k)]
-            term(row, lay.outlet[(u.name, side)], -w)
+        for f, out, cp_key in step.parts:
+            w = f * cp[cp_key] / (step.share * cp[key])
+            term(row, out, -w)
             total += w
-        term(row, (name, k - 1), -(1.0 - total))
+        term(row, step.inlet, -(1.0 - total))
     return a_mat, b
 
 
@@ -524,14 +520,13 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
                                                 temperature_of(temps, lay.outlet[(u.name, side)]))}
             for side, value in values.items():
                 cp[(u.name, side)] = (1 - relax) * cp[(u.name, side)] + relax * value
-        for (name, k), branches in lay.splits.items():
+        for key, step in lay.splits.items():
             # the mixed temperature the branch outlets of this pass give by the enthalpy balance (not the one
             # the last secant gave: a secant across a phase change would oscillate from pass to pass)
-            s, t_split = streams[name], temperature_of(temps, (name, k - 1))
-            heat = sum(x.fraction(name) * heat_between(s, t_split, temperature_of(
-                temps, lay.outlet[(x.name, "hot" if x.hot == name else "cold")])) for x in (c[-1] for c in branches))
-            value = mean_cp_between(s, t_split, temperature_after(s, t_split, heat))
-            cp[(name, k)] = (1 - relax) * cp[(name, k)] + relax * value
+            s, t_split = streams[key[0]], temperature_of(temps, step.inlet)
+            heat = sum(f * heat_between(s, t_split, temperature_of(temps, out)) for f, out, _ in step.parts)
+            value = mean_cp_between(s, t_split, temperature_after(s, t_split, heat / step.share))
+            cp[key] = (1 - relax) * cp[key] + relax * value
         if iterations > 1 and change <= tolerance:
             break
     else:

@@ -90,10 +90,12 @@ class ExistingUnit:
         Label of the split branch the unit sits on, along its hot and its cold process stream; needed only
         when a branch carries several units in series: the units of one split (one position) with the same
         label form one branch, all with the branch's fraction.  Without a label every unit of a split is a
-        branch of its own.
-    hot_branch_order, cold_branch_order : int, optional
-        Place of the unit on its labelled branch from the split, 1-based [-]; default the order of the
-        units.
+        branch of its own.  A split inside a branch is written as a path of labels, outer first, separated
+        by "/" (``"b/a"``: branch a of the split on branch b).
+    hot_branch_order, cold_branch_order : int, str or tuple of int, optional
+        Place of the unit on its labelled branch from the split, 1-based [-]; for a path of labels one place
+        per label (``"2/1"``: the split on branch b is its second item, the unit is the first on branch a);
+        default the order of the units (one level only).  Kept as a tuple of int.
 
     A heater or cooler that is the last unit on its stream (a *trim* unit) may have neither area nor duty:
     it takes the rest of its stream's duty, bringing the stream to its target.  Every other unit needs an
@@ -123,8 +125,8 @@ class ExistingUnit:
     cold_fraction: float = 1.0
     hot_branch: str | None = None
     cold_branch: str | None = None
-    hot_branch_order: int | None = None
-    cold_branch_order: int | None = None
+    hot_branch_order: tuple[int, ...] | None = None
+    cold_branch_order: tuple[int, ...] | None = None
 
     def __post_init__(self) -> None:
         where = {"row": self.row}
@@ -171,17 +173,15 @@ class ExistingUnit:
             raise InputError(f"unit '{name}': {shells} shells given for a {self.arrangement.value} unit; shells "
                              "in series apply to type shell_and_tube_1_2 only", column="shells", **where)
         object.__setattr__(self, "shells", int(shells))
-        for attr, column in (("hot_position", "hot_order"), ("cold_position", "cold_order"),
-                             ("hot_branch_order", "hot_branch_order"), ("cold_branch_order", "cold_branch_order")):
+        for attr, column in (("hot_position", "hot_order"), ("cold_position", "cold_order")):
             v = getattr(self, attr)
             if v is None:
                 continue
             if isinstance(v, float) and v.is_integer():
                 v = int(v)
             if isinstance(v, bool) or not isinstance(v, (int, np.integer)) or v < 1:
-                where_from = "the split" if "branch" in attr else "the stream's supply end"
-                raise InputError(f"unit '{name}': {column} must be a whole number >= 1 (position from "
-                                 f"{where_from}), got {getattr(self, attr)!r}", column=column, **where)
+                raise InputError(f"unit '{name}': {column} must be a whole number >= 1 (position from the "
+                                 f"stream's supply end), got {getattr(self, attr)!r}", column=column, **where)
             object.__setattr__(self, attr, int(v))
         for attr, column in (("hot_fraction", "hot_fraction"), ("cold_fraction", "cold_fraction")):
             v = getattr(self, attr)
@@ -194,11 +194,26 @@ class ExistingUnit:
                                  f"stream's flow through this unit on a split branch), got {v!r}", column=column,
                                  **where)
             object.__setattr__(self, attr, min(1.0, x))
-        for attr in ("hot_branch", "cold_branch"):
-            v = getattr(self, attr)
-            if v is not None:
-                v = str(v).strip()
-                object.__setattr__(self, attr, v or None)
+        for side in ("hot", "cold"):
+            label, order = getattr(self, f"{side}_branch"), getattr(self, f"{side}_branch_order")
+            if label is not None:
+                parts = [x.strip() for x in _label_text(label).split("/")]
+                if any(not x for x in parts) and any(parts):
+                    raise InputError(f"unit '{name}': {side}_branch {label!r} has an empty label in its path (labels "
+                                     "separated by '/', outer branch first)", column=f"{side}_branch", **where)
+                label = "/".join(parts) if any(parts) else None
+                object.__setattr__(self, f"{side}_branch", label)
+            if order is not None:
+                places = _places(order)
+                if places is None:
+                    raise InputError(f"unit '{name}': {side}_branch_order must be whole numbers >= 1 (places on the "
+                                     f"branch from the split; '2/1' for a path of labels), got {order!r}",
+                                     column=f"{side}_branch_order", **where)
+                if label is not None and len(places) != label.count("/") + 1:
+                    raise InputError(f"unit '{name}': {side}_branch_order {'/'.join(map(str, places))} gives "
+                                     f"{len(places)} place(s) for the {label.count('/') + 1} label(s) of {side}_branch "
+                                     f"{label!r}: one place per label", column=f"{side}_branch_order", **where)
+                object.__setattr__(self, f"{side}_branch_order", places)
 
     def fraction(self, stream: str) -> float:
         """Share of process stream ``stream``'s flow through this unit [-] (1 when not split there)."""
@@ -241,13 +256,49 @@ class ExistingUnit:
                 "type": self.arrangement.value, "shells": self.shells, "hot_order": self.hot_position,
                 "cold_order": self.cold_position, "hot_fraction": self.hot_fraction,
                 "cold_fraction": self.cold_fraction, "hot_branch": self.hot_branch,
-                "hot_branch_order": self.hot_branch_order, "cold_branch": self.cold_branch,
-                "cold_branch_order": self.cold_branch_order, "area_from_duty": self.area_from_duty,
+                "hot_branch_order": _listed(self.hot_branch_order), "cold_branch": self.cold_branch,
+                "cold_branch_order": _listed(self.cold_branch_order), "area_from_duty": self.area_from_duty,
                 "U_from_films": self.u_from_films}
 
 
 def _value(e):
     return None if e is None else e.value
+
+
+def _listed(places):
+    return None if places is None else list(places)
+
+
+def _label_text(value) -> str:
+    """A label as written: text stripped, a whole number without a decimal point (``2.0`` → ``"2"``)."""
+    if isinstance(value, float) and value.is_integer():
+        return str(int(value))
+    return str(value).strip()
+
+
+def _places(value) -> tuple[int, ...] | None:
+    """Places on a branch path from an int, a float that is whole, a text like ``"2/1"`` or a sequence of
+    them; None when any is not a whole number >= 1."""
+    if isinstance(value, (tuple, list)):
+        parts = list(value)
+    elif isinstance(value, str):
+        parts = value.split("/")
+    else:
+        parts = [value]
+    out = []
+    for x in parts:
+        if isinstance(x, str):
+            x = x.strip()
+            try:
+                x = float(x)
+            except ValueError:
+                return None
+        if isinstance(x, bool) or not isinstance(x, (int, float, np.integer, np.floating)):
+            return None
+        if not (float(x).is_integer() and x >= 1):
+            return None
+        out.append(int(x))
+    return tuple(out) or None
 
 
 @dataclass(frozen=True)
