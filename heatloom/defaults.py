@@ -49,6 +49,7 @@ __all__ = [
     "max_input_bytes",
     "input_size_limit",
     "MEASURED_BALANCE_TOLERANCE",
+    "TABLE_APPROACH_TOLERANCE",
     "OUTPUT_PRECISION",
     "MAX_TEMPERATURE",
     "MAX_HEAT_CAPACITY_FLOW",
@@ -217,6 +218,12 @@ MEASURED_BALANCE_TOLERANCE = 1e-3
 """Share of a stream's duty by which an existing network, simulated from measured or design data, may miss
 the stream's target (or pass it) before that is reported as a problem [-] (0.1 %, *common practice* for the
 closure of plant heat balances, which are seldom better than 1-2 %); smaller misses are stated in the notes."""
+
+TABLE_APPROACH_TOLERANCE = 0.01
+"""Shortfall from ΔTmin [K] by which a unit of a network read from a table (``evaluate``, ``retrofit``) may
+come below it without being reported as a violation: a design's units at exactly ΔTmin come back a few mK
+under it from the areas its units table rounds to 0.001 m² (:data:`OUTPUT_PRECISION`); such units are
+named in the notes instead."""
 
 OUTPUT_PRECISION = MappingProxyType({"duty": 3, "temperature": 3, "area": 3, "money": 2})
 """Decimal places of the numbers written to JSON, CSV and XLSX, by kind of quantity [-]: duties to 0.001 kW,

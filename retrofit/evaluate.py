@@ -26,6 +26,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass, replace
 
+from .. import defaults
 from ..errors import InfeasibleError, InputError, TemperatureCrossError
 from ..model import Stream, StreamTable, Utility
 from ..model.costs import CostSettings
@@ -176,7 +177,10 @@ def evaluate_network(network: ExistingNetwork, dt_min: float, *, costs: CostSett
             crosses.append(f"{u.role.value} '{u.name}' ({u.hot} → {u.cold}): temperature cross, the hot side is "
                            f"{-u.min_approach:.4g} K below the cold side (hot {u.hot_in:.4g} → {u.hot_out:.4g} °C, "
                            f"cold {u.cold_in:.4g} → {u.cold_out:.4g} °C)")
-    failures += [f"unit {v}" for v in approach_violations(net, streams, utilities, dt_min=dt)]
+    failures += [f"unit {v}" for v in approach_violations(net, streams, utilities, dt_min=dt,
+                                                         tol=defaults.TABLE_APPROACH_TOLERANCE)]
+    hair = [v.split(":")[0] for v in approach_violations(net, streams, utilities, dt_min=dt)
+            if f"unit {v}" not in failures]
     try:
         check_network(net, streams, utilities, dt_min=dt)
     except InfeasibleError as e:
@@ -184,6 +188,9 @@ def evaluate_network(network: ExistingNetwork, dt_min: float, *, costs: CostSett
                     if "smallest approach" not in p]
         failures += balances
     notes = list(sim.notes)
+    if hair:
+        notes.append(f"within {defaults.TABLE_APPROACH_TOLERANCE:g} K below ΔTmin {dt:g} K, taken as at it (the "
+                     f"rounding of areas in a table): {', '.join(hair)}")
     try:
         t = target(streams, dt, utilities) if utilities else target(streams, dt)
     except InfeasibleError as e:

@@ -65,12 +65,12 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
+from .. import defaults
 from ..errors import InfeasibleError, InputError
 from ..model.costs import CostSettings, RetrofitCosts
 from ..model.existing import OperatingMode
 from ..validation import check_dt_min, non_negative
 from .changes import (
-    APPROACH_TOLERANCE,
     Candidate,
     Change,
     ChangeKind,
@@ -462,7 +462,10 @@ def retrofit_options(network: ExistingNetwork, dt_min: float, *, costs: CostSett
         notes.append("dropping the stated duties of units with known areas changed the simulated hot utility "
                      f"from {original.hot_utility:.6g} to {sim0.hot_utility:.6g} kW")
     floor_min = min_saving if min_saving is not None else max(0.5, 1e-3 * sim0.hot_utility)
-    below = [u.name for u in sim0.units if u.min_approach < emat - APPROACH_TOLERANCE and abs(u.duty) > 1e-9]
+    # a design's units at exactly ΔTmin come back a hair under it from the rounded areas of its table; the search
+    # keeps every unit at or above the smaller of ΔTmin and its present approach either way
+    below = [u.name for u in sim0.units
+             if u.min_approach < emat - defaults.TABLE_APPROACH_TOLERANCE and abs(u.duty) > 1e-9]
     if below:
         notes.append(f"units already below the minimum approach {emat:g} K may not get closer than they are: "
                      + ", ".join(below))

@@ -235,6 +235,26 @@ def read_inputs(args):
     return streams, utilities, settle_currency(costs, utilities)
 
 
+def assumed_utilities(table, streams, dt_min: float) -> tuple[tuple, str | None]:
+    """The utilities a heatloom design assumed (:func:`heatloom.pinch.utilities.ideal_utilities`) when a
+    network table names them and no utilities table is given, and a note saying so; else ``((), None)``.
+
+    A design run without utilities writes units against "hot utility (assumed)" and "cold utility
+    (assumed)"; reading that table back at the design's ΔTmin gives the same utilities.
+    """
+    from ..pinch.utilities import ideal_utilities
+
+    ideal = ideal_utilities(streams, dt_min)
+    names = {u.name for u in ideal}
+    if not any(side in names for unit in table.units for side in (unit.hot, unit.cold)):
+        return (), None
+    hot, cold = ideal
+    return ideal, (f"no utilities given and the network names the utilities a heatloom design assumes: used "
+                   f"them at ΔTmin {dt_min:g} K, an isothermal hot utility at {hot.supply_temperature:g} °C and "
+                   f"an isothermal cold utility at {cold.supply_temperature:g} °C (defaults; they match the "
+                   "design's when it was run at the same ΔTmin; give --utilities FILE for real ones)")
+
+
 def read_cost_settings(path, hours_per_year=None):
     """The cost settings of a run: the costs file's (when given), with ``--hours-per-year`` overriding its
     operating hours; None when neither is given (the defaults apply).  The result says where its hours come

@@ -10,6 +10,7 @@ from .common import (
     EXIT_INFEASIBLE,
     add_shared,
     add_table_options,
+    assumed_utilities,
     dt_min_of,
     finish,
     fmt,
@@ -113,8 +114,14 @@ def run(args) -> int:
     if not args.quiet:
         for n in read_notes:
             print(f"note: {n} (ignored; --strict refuses unknown columns)", file=sys.stderr)
+    table = read_network(args.network)
+    assumed = None
+    if not args.utilities:
+        utilities, assumed = assumed_utilities(table, streams, dt_min)
+        if assumed and not args.quiet:
+            print(f"note: {assumed}", file=sys.stderr)
     streams, utilities, given = with_default_film_coefficient(streams, utilities, args.default_h)
-    network = ExistingNetwork.from_table(streams, read_network(args.network), utilities)
+    network = ExistingNetwork.from_table(streams, table, utilities)
     ev = evaluate_network(network, dt_min, costs=costs)
     if given:
         from dataclasses import replace

@@ -10,6 +10,7 @@ from ..errors import InputError
 from .common import (
     add_shared,
     add_table_options,
+    assumed_utilities,
     dt_min_of,
     find_case_files,
     finish,
@@ -231,6 +232,10 @@ def _run(args) -> int:
     table = read_network(files["network"], sheet=args.network_sheet, notes=column_notes, strict=args.strict)
     for n in column_notes:
         note(args, f"note: {n} (ignored; --strict refuses unknown columns)")
+    if "utilities" not in files:
+        utilities, assumed = assumed_utilities(table, streams, dt_min)
+        if assumed:
+            note(args, f"note: {assumed}")
     network = ExistingNetwork.from_table(streams, table, utilities)
     rcosts = read_retrofit_costs(files["costs"]) if "costs" in files else None
     from ..retrofit.options import retrofit_options

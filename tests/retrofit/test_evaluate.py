@@ -137,3 +137,20 @@ def test_a_co_current_unit_of_given_area_is_sized_back_to_that_area():
     assert x.area > 100.0 / (0.25 * ht.LMTD(200.0, 100.0, 20.0, 70.0))   # more than counter-current
     assert ev.network.coolers[0].duty == pytest.approx(20.0, rel=1e-6)
     assert ev.network.heaters[0].duty == pytest.approx(40.0, rel=1e-6)
+
+
+@pytest.mark.parametrize("duty, fails", [(180.01, False), (180.2, True)])
+def test_an_approach_a_hair_below_dtmin_is_a_note_not_a_failure(duty, fails):
+    # invented: H1 150 → 40 °C (2 kW/K) against C1 50 → 140 °C (2.5 kW/K) entering at 50 °C; the exchanger's
+    # cold-end approach is (150 − Q/2) − 50 = 100 − Q/2 [K] by hand: 9.995 K at 180.01 kW (within the 0.01 K
+    # a table's rounded areas give), 9.9 K at 180.2 kW (a real shortfall)
+    s = StreamTable.from_arrays(["H1", "C1"], [150, 50], [40, 140], [2.0, 2.5], film_coefficient=[1.0, 1.0])
+    u = [Utility("steam", 180, 179, 100.0, UtilityKind.HOT, 5.0), Utility("water", 20, 30, 10.0, UtilityKind.COLD, 2.0)]
+    net = ExistingNetwork(s, [ExistingUnit("E1", "H1", "C1", duty=duty), ExistingUnit("S1", "steam", "C1"),
+                              ExistingUnit("W1", "H1", "water")], u)
+    ev = evaluate_network(net, 10.0)
+    approach = 100 - duty / 2
+    assert ev.simulation.unit("E1").min_approach == pytest.approx(approach, abs=1e-9)
+    assert (not ev.ok) is fails
+    assert any("smallest approach" in f for f in ev.failures) is fails
+    assert any("within 0.01 K below ΔTmin 10 K" in n and "H1→C1" in n for n in ev.notes) is not fails
