@@ -242,3 +242,18 @@ def test_a_tick_off_design_with_branches_in_series_reads_back(tmp_path):
     assert sim.ok
     for u in (*design.exchangers, *design.heaters, *design.coolers):   # areas are written to 0.001 m²
         assert sim.unit(u.name).duty == pytest.approx(u.duty, rel=1e-4, abs=1e-2)
+
+
+def test_retrofit_options_on_a_split_inside_a_branch_simulate_as_confirmed():
+    # the option search on the nested split above: added area on branch units is sized on their own flow,
+    # and every option, applied, simulates without problems to the saving it states
+    from heatloom.retrofit import retrofit_options
+    from heatloom.retrofit.options import apply_changes
+
+    net = ExistingNetwork(NESTED, nested_units(), [STEAM, WATER])
+    r = retrofit_options(net, 10.0, sizes=(0.5, 1.0), max_groups=4)
+    assert r.options
+    for o in r.options:
+        after = simulate(apply_changes(net, o.changes), 10.0)
+        assert after.ok
+        assert r.simulation.hot_utility - after.hot_utility == pytest.approx(o.saving, rel=1e-6, abs=1e-6)
