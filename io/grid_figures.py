@@ -1,11 +1,13 @@
 """Grid diagrams of heat-exchanger networks (design, TAC and retrofit), in heatloom's figure style.
 
 Hot streams run left to right in the upper half, cold streams right to left in the lower half; units sit in
-columns from the hot end, subnetwork by subnetwork and stage by stage of the placement, so their order
-along every stream is the real one.  A stream split into parallel branches is drawn as branches (lanes
-below a hot stream, above a cold one) from the split to the mixing point, each branch with its share of
-the flow.  Every unit carries its name (:func:`heatloom.network.structure.name_units`) and duty, every
-stream the temperature between each pair of its units.
+columns from the hot end, subnetwork by subnetwork, in an order that keeps the order of the units along
+every stream as their temperatures give it (:mod:`heatloom.io.grid_layout`).  A stream split into parallel
+branches is drawn as branches (lanes below a hot stream, above a cold one) from the split to the mixing
+point, each branch with its share of the flow, the units in series on a branch on its lane and a split
+inside a branch on sub-lanes of its own.  Every unit carries its name
+(:func:`heatloom.network.structure.name_units`) and duty, every stream the temperature between each pair of
+its units.
 
 Labels never overlap each other, lines or marks: the figure is laid out in inches, every label's extent
 is measured with the Agg renderer of the figure, and each label takes the first free slot of a list of
@@ -25,6 +27,7 @@ from matplotlib.patches import Rectangle
 
 from ..network.structure import Cooler, Heater, grid_key
 from .figures import STYLE, new_figure
+from .grid_layout import entering, grid_layout, lane_span, units_in
 
 __all__ = ["GRID_FONT_FLOOR", "FRAME", "grid_diagram"]
 
@@ -143,11 +146,13 @@ def grid_diagram(network, streams, *, title: str | None = None, approach: str = 
 
     Process-to-process exchangers are pairs of diamonds joined by a thin line, heaters are triangles
     pointing up on a cold stream, coolers triangles pointing down on a hot stream; each unit carries its
-    name and duty.  Units are laid out left to right from the hot end, subnetwork by subnetwork and stage
-    by stage of the placement (so their order along every stream is the real one); the pinch is a dotted
-    vertical line between the subnetworks above and below it.  A split stream is drawn as branches, each
-    with its share of the flow; every stream shows its temperature between each pair of its units and at
-    the outlet of each branch.  Labels are placed where they meet no other label, line or mark.
+    name and duty.  Units are laid out left to right from the hot end, subnetwork by subnetwork, in the
+    order their temperatures give along every stream (:func:`heatloom.io.grid_layout.grid_layout`; where
+    streams meet in crossing orders a cold stream's order gives way); the pinch is a dotted vertical line
+    between the subnetworks above and below it.  A split stream is drawn as branches, each with its share
+    of the flow (labelled at its first unit), its units in series on its lane and a split inside it on
+    sub-lanes; every stream shows its temperature between each pair of its units and at the outlet of each
+    branch.  Labels are placed where they meet no other label, line or mark.
 
     Parameters
     ----------
@@ -170,7 +175,9 @@ def grid_diagram(network, streams, *, title: str | None = None, approach: str = 
     matplotlib.figure.Figure
         One axes whose data coordinates are inches.  Artists carry gids: ``stream:<name>``,
         ``branch:<stream>``, ``unit:<name>``, and the labels ``name:<unit>``, ``duty:<unit>``,
-        ``fraction:<unit>``, ``temperature:<stream>``, ``end:<stream>``.
+        ``fraction:<unit>``, ``temperature:<stream>``, ``end:<stream>``.  A branch's fraction carries the
+        name of its first unit (of the first unit after a split inside it, or ``<unit>+<unit>`` of that
+        split's first units when the branch holds nothing else).
 
     Examples
     --------
@@ -188,18 +195,10 @@ def grid_diagram(network, streams, *, title: str | None = None, approach: str = 
     hot = [s for s in streams if s.is_hot]
     cold = [s for s in streams if not s.is_hot]
     by_name = {s.name: s for s in streams}
-    units = ([u for u in network.exchangers] + [u for u in network.heaters] + [u for u in network.coolers])
-    units.sort(key=grid_key)
-    column: dict[int, int] = {}   # one column per exchanger; heaters and coolers of one key share one
-    n, shared = 0, None
-    for u in units:
-        kind, h, c = _sides(u)
-        if kind != "x" and shared is not None and shared[0] == grid_key(u) and (h or c) not in shared[1]:
-            shared[1].add(h or c)
-        else:
-            n += 1
-            shared = (grid_key(u), {h or c}) if kind != "x" else None
-        column[id(u)] = n
+    grid = grid_layout(network)
+    units = list(grid.order)
+    column = {id(u): grid.column[u.name] for u in units}
+    n = grid.columns
     removed = dict(removed) if isinstance(removed, Mapping) else dict.fromkeys(removed, removed_label)
     changed = set(changed)
 
@@ -207,23 +206,9 @@ def grid_diagram(network, streams, *, title: str | None = None, approach: str = 
     lay = _Layout(fig)
     _, th = lay.size("0123456789 °CkW", fs)
 
-    # -- branches: units of one grid key on one stream with a share of its flow under 1 ------------------
-    keyed: dict[str, dict[tuple, list]] = {}   # stream → grid key → its units there
-    for u in units:
-        for name in _sides(u)[1:]:
-            if name is not None:
-                keyed.setdefault(name, {}).setdefault(grid_key(u), []).append(u)
-    groups: dict[str, list[list]] = {}   # stream → unit groups in flow order (a group of >1 is a split)
-    lane_of: dict[tuple[str, int], int] = {}   # (stream, unit) → branch lane, for the units of a split
-    for name, by_key in keyed.items():
-        side = "hot" if by_name[name].is_hot else "cold"
-        groups[name] = [sorted(by_key[k], key=lambda u: column[id(u)])
-                        for k in sorted(by_key, reverse=side == "cold")]
-        for g in groups[name]:
-            if len(g) > 1 or any(getattr(u, f"{side}_fraction", 1.0) < 0.999 for u in g):
-                lane_of.update({(name, id(u)): j for j, u in enumerate(g)})
-    lanes = {s.name: 1 + max([lane_of[(s.name, id(u))] for g in groups.get(s.name, []) for u in g
-                              if (s.name, id(u)) in lane_of] or [0]) for s in streams}
+    # -- lanes: a split's branches side by side, units in series on their branch's lane ------------------
+    lanes = {s.name: grid.lanes.get(s.name, 1) for s in streams}
+    named = {u.name: u for u in units}
 
     # -- geometry [in] ----------------------------------------------------------------------------------
     widest = max([lay.size(f"{u.duty:,.0f} kW", fs)[0] for u in units]
@@ -269,10 +254,94 @@ def grid_diagram(network, streams, *, title: str | None = None, approach: str = 
         return x_left + column[id(u)] * col_w
 
     def lane_y(stream: str, u) -> float:
-        j = lane_of.get((stream, id(u)), 0)
+        j = grid.lane.get((stream, u.name), 0)
         return y_of[stream] + (-j if by_name[stream].is_hot else j) * lane_gap
 
     labels: list[tuple] = []   # (priority, text, candidates, style)
+
+    def branches_and_temperatures(s, y: float, line_style: dict) -> None:
+        """A stream's splits (branches on their lanes, fractions, outlets) and its temperatures between
+        consecutive units (see :mod:`heatloom.io.grid_layout`)."""
+        st = STYLE["hot"] if s.is_hot else STYLE["cold"]
+        sign = -1.0 if s.is_hot else 1.0
+        side = "hot" if s.is_hot else "cold"
+        step = 0.06 if s.is_hot else -0.06
+
+        def xs_of(names: list[str]) -> list[float]:
+            return [x_of(named[m]) for m in names]
+
+        def boundary(item_a, item_b, yl: float) -> None:
+            """The temperature between two items in series on a line (the inlet of the second)."""
+            end_a = max(xs_of(units_in(item_a))) if s.is_hot else min(xs_of(units_in(item_a)))
+            start_b = min(xs_of(entering(item_b))) if s.is_hot else max(xs_of(entering(item_b)))
+            first = named[entering(item_b)[0]]
+            mid = 0.5 * (end_a + start_b)
+            quarter = 0.25 * (start_b - end_a)
+            cands = [(mid, yl + _GAP, "center", "bottom"), (mid, yl - _GAP, "center", "top"),
+                     (mid - quarter, yl + _GAP, "center", "bottom"), (mid + quarter, yl + _GAP, "center", "bottom"),
+                     (mid - quarter, yl - _GAP, "center", "top"), (mid + quarter, yl - _GAP, "center", "top")]
+            labels.append((3, _temperature(first.hot_in if s.is_hot else first.cold_in), cands,
+                           {"gid": f"temperature:{s.name}"}))
+
+        def fraction_of(branch: list) -> tuple[float, str]:
+            """A branch's share of the stream's flow [-] and the unit whose name its label's gid carries."""
+            unit = next((i for i in branch if isinstance(i, str)), None)
+            if unit is not None:
+                return getattr(named[unit], f"{side}_fraction", 1.0), unit
+            inner = [fraction_of(b) for b in branch[0]]
+            return sum(f for f, _ in inner), "+".join(m for _, m in inner)
+
+        def draw_split(split: list, base: int, depth: int) -> None:
+            """A split's branches on their lanes from the split to the mixing point, each with its fraction,
+            its units' temperatures in series and its outlet; splits inside a branch likewise, nested."""
+            xs = xs_of(units_in(split))
+            margin = max(0.18, 0.42 - 0.12 * depth) * col_w   # an inner split's ends inside its branch's
+            lo, hi = min(xs) - margin, max(xs) + margin
+            split_x, mix_x = (lo, hi) if s.is_hot else (hi, lo)
+            y0 = y + sign * base * lane_gap
+            at = base
+            for j, branch in enumerate(split):
+                yj = y + sign * at * lane_gap
+                if at != base:
+                    px, py = [lo, lo, hi, hi], [y0, yj, yj, y0]
+                    ax.plot(px, py, gid=f"branch:{s.name}", **line_style)
+                    lay.line(px, py)
+                frac, gid = fraction_of(branch)
+                x_head = min(xs_of(entering(branch[0]))) if s.is_hot else max(xs_of(entering(branch[0])))
+                # on the branch's outer side first (away from the other branches), so each share reads
+                # as its own branch's
+                outer = (1.0 if s.is_hot else -1.0) * (1.0 if j == 0 else -1.0)
+                ends = [(split_x + step, "left" if s.is_hot else "right"),
+                        (x_head - step * 3, "right" if s.is_hot else "left")]
+                if not isinstance(branch[0], str) and gid in named:   # begins with an inner split: the
+                    ends.insert(0, (x_of(named[gid]) - step * 3, "right" if s.is_hot else "left"))   # unit after
+                cands = [(x0, yj + side_sign * _GAP, ha, "bottom" if side_sign > 0 else "top")
+                         for side_sign in (outer, -outer) for x0, ha in ends]
+                cands += [(x_head + step * 3, yj + side_sign * _GAP, "left" if s.is_hot else "right",   # past
+                           "bottom" if side_sign > 0 else "top") for side_sign in (-outer, outer)]   # its head
+                labels.append((1, f"{frac:.2f}", cands, {"gid": f"fraction:{gid}", "color": st["color"],
+                                                          "fontstyle": "italic"}))
+                for item_a, item_b in zip(branch, branch[1:]):
+                    boundary(item_a, item_b, yj)
+                for item in branch:
+                    if not isinstance(item, str):
+                        draw_split(item, grid.lane[(s.name, units_in(item)[0])], depth + 1)
+                if isinstance(branch[-1], str):   # the branch's outlet (an inner split writes its own)
+                    u = named[branch[-1]]
+                    mid = 0.5 * (x_of(u) + mix_x)
+                    cands = [(mid, yj + _GAP, "center", "bottom"), (mid, yj - _GAP, "center", "top"),
+                             (mix_x, yj + _GAP, "center", "bottom"), (mix_x, yj - _GAP, "center", "top")]
+                    labels.append((3, _temperature(u.hot_out if s.is_hot else u.cold_out), cands,
+                                   {"gid": f"temperature:{s.name}"}))
+                at += lane_span(branch, branch=True)
+
+        seq = grid.along.get(s.name, [])
+        for split in seq:
+            if len(split) > 1 or any(getattr(named[m], f"{side}_fraction", 1.0) < 0.999 for m in units_in(split)):
+                draw_split(split, 0, 0)
+        # temperatures between consecutive positions along the stream (flow order)
+        for item_a, item_b in zip(seq, seq[1:]):
+            boundary(item_a, item_b, y)
 
     # -- streams, branches ----------------------------------------------------------------------------
     for s in hot + cold:
@@ -291,50 +360,7 @@ def grid_diagram(network, streams, *, title: str | None = None, approach: str = 
             ax.text(x, y, text, ha=ha, va="center", fontsize=fs_stream, gid=f"end:{s.name}")
             w, h = lay.size(text, fs_stream)
             lay.block(*lay.box(x, y, w, h, ha, "center"))
-        sign = -1.0 if s.is_hot else 1.0
-        side = "hot" if s.is_hot else "cold"
-        for g in groups.get(s.name, []):
-            if len(g) == 1 and (s.name, id(g[0])) not in lane_of:
-                continue
-            xs = [x_of(u) for u in g]
-            lo, hi = min(xs) - 0.42 * col_w, max(xs) + 0.42 * col_w
-            split_x, mix_x = (lo, hi) if s.is_hot else (hi, lo)
-            for j, u in enumerate(g):
-                yj = y + sign * j * lane_gap
-                if j:
-                    px, py = [lo, lo, hi, hi], [y, yj, yj, y]
-                    ax.plot(px, py, gid=f"branch:{s.name}", **line_style)
-                    lay.line(px, py)
-                frac = getattr(u, f"{side}_fraction", 1.0)
-                step = 0.06 if s.is_hot else -0.06
-                # on the branch's outer side first (away from the other branches), so each share reads
-                # as its own branch's
-                outer = (1.0 if s.is_hot else -1.0) * (1.0 if j == 0 else -1.0)
-                ends = [(split_x + step, "left" if s.is_hot else "right"),
-                        (x_of(u) - step * 3, "right" if s.is_hot else "left")]
-                cands = [(x0, yj + side_sign * _GAP, ha, "bottom" if side_sign > 0 else "top")
-                         for side_sign in (outer, -outer) for x0, ha in ends]
-                labels.append((1, f"{frac:.2f}", cands, {"gid": f"fraction:{u.name}", "color": st["color"],
-                                                          "fontstyle": "italic"}))
-                t_out = u.hot_out if s.is_hot else u.cold_out
-                mid = 0.5 * (x_of(u) + mix_x)
-                cands = [(mid, yj + _GAP, "center", "bottom"), (mid, yj - _GAP, "center", "top"),
-                         (mix_x, yj + _GAP, "center", "bottom"), (mix_x, yj - _GAP, "center", "top")]
-                labels.append((3, _temperature(t_out), cands, {"gid": f"temperature:{s.name}"}))
-        # temperatures between consecutive groups along the stream (flow order)
-        seq = groups.get(s.name, [])
-        for a, b in zip(seq, seq[1:]):
-            xa = [x_of(u) for u in a]
-            xb = [x_of(u) for u in b]
-            end_a = max(xa) if s.is_hot else min(xa)
-            start_b = min(xb) if s.is_hot else max(xb)
-            t = b[0].hot_in if s.is_hot else b[0].cold_in
-            mid = 0.5 * (end_a + start_b)
-            cands = [(mid, y + _GAP, "center", "bottom"), (mid, y - _GAP, "center", "top")]
-            quarter = 0.25 * (start_b - end_a)
-            cands += [(mid - quarter, y + _GAP, "center", "bottom"), (mid + quarter, y + _GAP, "center", "bottom"),
-                      (mid - quarter, y - _GAP, "center", "top"), (mid + quarter, y - _GAP, "center", "top")]
-            labels.append((3, _temperature(t), cands, {"gid": f"temperature:{s.name}"}))
+        branches_and_temperatures(s, y, line_style)
 
     # -- pinch ------------------------------------------------------------------------------------------
     prev = None
