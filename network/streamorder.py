@@ -30,7 +30,7 @@ from __future__ import annotations
 import itertools
 from dataclasses import dataclass
 
-__all__ = ["grid_key", "stream_order", "stream_positions", "stream_branches"]
+__all__ = ["grid_key", "stream_order", "stream_positions", "stream_branches", "unordered_streams"]
 
 TEMPERATURE_MATCH = 1e-5
 """Largest difference between one unit's outlet and the next unit's inlet that still links them [K]."""
@@ -222,6 +222,15 @@ def _by_grid(units: list[tuple[int, object]], side: str) -> list[list[list[str]]
     return out
 
 
+def _on_streams(network) -> dict[tuple[str, str], list[tuple[int, object]]]:
+    """(side, stream) → (index in the network, unit) of the units on it."""
+    on: dict[tuple[str, str], list[tuple[int, object]]] = {}
+    for i, u in enumerate((*network.exchangers, *network.heaters, *network.coolers)):
+        for side in _sides(u):
+            on.setdefault((side, getattr(u, side)), []).append((i, u))
+    return on
+
+
 def stream_order(network) -> dict[tuple[str, str], list[list[list]]]:
     """(side, stream) → the stream's units from its supply end: a list of positions, each a list of
     branches, each a list of items in series — a unit name, or a split inside the branch (a list of
@@ -253,11 +262,25 @@ def stream_order(network) -> dict[tuple[str, str], list[list[list]]]:
     >>> stream_order(Network((a, b, c, e), (), (), 10.0))[("hot", "H1")]
     [[[[['A'], ['B']], 'E'], ['C']]]
     """
-    on: dict[tuple[str, str], list[tuple[int, object]]] = {}
-    for i, u in enumerate((*network.exchangers, *network.heaters, *network.coolers)):
-        for side in _sides(u):
-            on.setdefault((side, getattr(u, side)), []).append((i, u))
-    return {key: _walk(units, key[0]) or _by_grid(units, key[0]) for key, units in on.items()}
+    return {key: _walk(units, key[0]) or _by_grid(units, key[0]) for key, units in _on_streams(network).items()}
+
+
+def unordered_streams(network) -> list[str]:
+    """The streams with split units whose order the temperatures do not give (:func:`stream_order` fell back
+    to the grid order for them): their units table may not read back into a retrofit study.
+
+    Examples
+    --------
+    A split whose fractions add up to 0.9 (a bypass of 0.1):
+
+    >>> from heatloom.network.structure import Exchanger, Network
+    >>> a = Exchanger("H1", "C1", 25.0, 150, 100, 40, 60, hot_fraction=0.25, name="A")
+    >>> b = Exchanger("H1", "C2", 45.0, 150, 130, 50, 95, hot_fraction=0.65, name="B")
+    >>> unordered_streams(Network((a, b), (), (), 10.0))
+    ['H1']
+    """
+    return [name for (side, name), units in _on_streams(network).items()
+            if any(_split(u, side) for _, u in units) and _walk(units, side) is None]
 
 
 def _names_in(branches: list) -> list[str]:

@@ -255,6 +255,14 @@ def run(args) -> int:
                            break_loops=args.break_loops, costs=costs, default_film_coefficient=args.default_h,
                            contributions=not tac, **geometry)
         net = evolution.network
+    from ..network.streamorder import unordered_streams
+
+    unordered = unordered_streams(net)
+    if unordered:
+        net = net.with_costs(notes=net.notes + (
+            f"the order of the split units on {', '.join(unordered)} does not follow from their temperatures (a "
+            "bypass, or branches that meet at no common temperature): the units table writes them by stage, "
+            "and a retrofit study may refuse it",))
     result = net.to_dict()
     if evolution is not None:
         result["evolution"] = evolution.to_dict()
