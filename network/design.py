@@ -226,8 +226,8 @@ def _place(hot: list[Side], cold: list[Side], allowed: set[tuple[str, str]], lab
 
 
 def _tick_off_words(result) -> str:
-    rest = (f", {result.remainder} of them for what was left placed interval by interval"
-            if result.remainder else "")
+    rest = (f", {result.remainder} of them for what was left placed interval by interval or by the stagewise "
+            "MILP and not replaced by a move" if result.remainder else "")
     moves = f", {result.moves} neighbourhood moves" if result.moves else ""
     return (f"units placed by the tick-off method ({len(result.placement.units)} units{rest}; best of "
             f"{result.tries} searches{moves})")

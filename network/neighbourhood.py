@@ -9,8 +9,11 @@ off again by one search of :func:`heatloom.network.tickoff.tick_off_search` with
 and noise drawn at random.  The pieces' own cascade holds (the units taken out placed them), and every
 step of the search keeps ΔTmin and the leftover cascade, so a move that places all of the pieces keeps
 the energy targets.  The units are merged again (:func:`heatloom.network.merge.merge_units`) and the move is
-kept when it leaves no more units than before (moves between placements of as many units let the search
-walk along them), when no required pair is lost, until the time is up.
+kept when it leaves no more units than before, counted as they will be built, after the utility units at
+the end of each split stream are joined (:func:`heatloom.network.utility_tails.join_utility_tails`; moves
+between placements of as many units let the search walk along them), when no required pair is lost,
+until the time is up.  The units returned are not joined: they still cover their sides, as the moves
+need.
 """
 
 from __future__ import annotations
@@ -22,6 +25,7 @@ import numpy as np
 
 from .merge import Rect, merge_units
 from .placement import Side
+from .utility_tails import join_utility_tails
 
 __all__ = ["MOST_SIDES", "MOVE_SHARE", "holes", "improve_units"]
 
@@ -99,7 +103,8 @@ def holes(sides: Sequence[Side], removed: Sequence[tuple[int, int, Rect, float]]
 def improve_units(sides: Sequence[Side], units: Sequence[tuple[int, int, Rect, float]], allowed,
                   required, tol: float, rng: np.random.Generator, seconds: float
                   ) -> tuple[list[tuple[int, int, Rect, float]], int]:
-    """The units after moves that re-place a neighbourhood while time is left (no more units than given).
+    """The units after moves that re-place a neighbourhood while time is left (no more units than given,
+    counted after :func:`heatloom.network.utility_tails.join_utility_tails`).
 
     Parameters
     ----------
@@ -126,6 +131,7 @@ def improve_units(sides: Sequence[Side], units: Sequence[tuple[int, int, Rect, f
     from .tickoff import tick_off_search
 
     best = list(units)
+    best_count = len(join_utility_tails(sides, best, tol))
     start = time.monotonic()
     moves = 0
     while time.monotonic() - start < seconds and len(best) > 1:
@@ -149,6 +155,7 @@ def improve_units(sides: Sequence[Side], units: Sequence[tuple[int, int, Rect, f
             continue
         new = merge_units(sides, kept + [(i, j, unit, q) for i, j, unit, q, _ in steps])
         names = {(sides[i].name, sides[j].name) for i, j, _, _ in new}
-        if len(new) <= len(best) and required <= names:
-            best = new
+        count = len(join_utility_tails(sides, new, tol))
+        if count <= best_count and required <= names:
+            best, best_count = new, count
     return best, moves

@@ -11,9 +11,9 @@ stream at a time, from the supply end:
   inlet is the outlet of the branch so far (a tick-off design's branch may carry several units in series);
   units entering together with fractions adding up to 1 start a new split, never continue a branch;
 * branches that go on together through a unit carrying the sum of their fractions, entering at their
-  mixed temperature (the flow-weighted mean of their outlets, exact where the heat capacity flow rate is
-  constant, as at the equal outlets of a tick-off design), form a split inside a branch, as do units
-  entering together at the end of a branch with fractions adding up to the branch's;
+  mixed temperature (the flow-weighted mean of their outlets where the heat capacity flow rate is
+  constant; between their outlets on a stream of several segments), form a split inside a branch, as do
+  units entering together at the end of a branch with fractions adding up to the branch's;
 * the next position starts at the lowest inlet left (after the branches mix).
 
 When the temperatures leave a stream ambiguous (the walk cannot place every unit), the order falls back to
@@ -139,8 +139,7 @@ def _grow(top: list[_Flow], rest: list, side: str) -> list | None:
             ending = [g for g in frame if g.inner is None]
             for size in range(len(ending), 1, -1):
                 for group in itertools.combinations(ending, size):
-                    if not _same(sum(g.fraction for g in group), f) or \
-                            not _near(sum(g.fraction * g.end for g in group) / f, t):
+                    if not _same(sum(g.fraction for g in group), f) or not _mixes_to(group, f, t):
                         continue
                     owner = next((g for g in _all_flows(top) if g.inner is frame), None)
                     if owner is not None and size == len(frame):   # the inner split mixes, its branch goes on
@@ -163,6 +162,16 @@ def _grow(top: list[_Flow], rest: list, side: str) -> list | None:
             return None
         rest = rest[1:]
     return rest
+
+
+def _mixes_to(group, f: float, t: float) -> bool:
+    """Whether flows mixing can give the inlet ``t`` [K, progress]: the flow-weighted mean of their ends
+    (exact for a constant heat capacity flow rate), or, on streams of several segments, any temperature
+    between their ends (the enthalpy balance's mixed temperature lies there)."""
+    ends = [g.end for g in group]
+    if _near(sum(g.fraction * g.end for g in group) / f, t):
+        return True
+    return min(ends) + TEMPERATURE_MATCH < t < max(ends) - TEMPERATURE_MATCH
 
 
 def _all_flows(flows: list[_Flow]):

@@ -47,8 +47,15 @@ then returns no result and the caller uses another one.
 The units of every search are merged before searches are compared (:func:`heatloom.network.merge.merge_units`:
 a stream matched alternately with a few partners in small partial units becomes one branch per partner),
 and with ``neighbourhood`` a share of the time goes to moves that take out the units of a few sides of
-the best search and tick the holes off again (:func:`heatloom.network.neighbourhood.improve_units`).
-What is left to place, and its cascade, is :class:`heatloom.network.pieces.Pieces`.
+the best search and tick the holes off again (:func:`heatloom.network.neighbourhood.improve_units`); the
+units placed for what the best search left join the moves when they can be written as rectangles on
+their sides (:func:`heatloom.network.remainder.as_rectangles`), so that a search stuck early is repaired
+move by move.
+Searches and moves are compared by their units after the last step, which mixes the branches of a stream
+that each end in the same utility (non-isothermally) into one utility unit where ΔTmin allows
+(:func:`heatloom.network.utility_tails.join_utility_tails`): a hot stream split at a tight pinch below it
+needs one cooler, not one per branch.  What is left to place, and its cascade, is
+:class:`heatloom.network.pieces.Pieces`.
 
 References
 ----------
@@ -67,8 +74,9 @@ import numpy as np
 from .merge import merge_units, unit_approach
 from .pieces import Pieces, cascade_feasible, cascade_points, cascade_residual, heat_above, shifted_offset
 from .placement import PlacedUnit, Placement, Side
-from .remainder import REMAINDER_MILP_SIDES, place_remainder
+from .remainder import REMAINDER_MILP_SIDES, as_rectangles, place_remainder
 from .solvers import SolveReport
+from .utility_tails import join_utility_tails
 
 __all__ = ["REMAINDER_MILP_SIDES", "TickOffResult", "cascade_feasible", "tick_off_placement", "tick_off_search"]
 
@@ -83,7 +91,8 @@ class TickOffResult:
     ticked : int
         Units placed by ticking off a side [-].
     remainder : int
-        Units placed interval by interval for what the tick-off steps left [-] (0 when none was left).
+        Units placed interval by interval (or by the stagewise MILP) for what the tick-off steps left and
+        that no neighbourhood move replaced [-] (0 when none was left).
     tries : int
         Searches run [-].
     reports : tuple of SolveReport
@@ -569,11 +578,14 @@ def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=f
         has them all.
     time_limit : float
         Wall-clock time for the repeated searches and the neighbourhood moves [s]; the first search always
-        runs to its end.
+        runs to its end, and the moves get what the searches and the stagewise MILP (``solve_time``) left
+        of it.
     tries : int
         Most searches [-]: the first fifteen unperturbed, the others with perturbed choices.  The searches
         stop early when one places N − 1 units or fewer without a remainder, or when none of the
-        unperturbed ones ended in a placement.
+        unperturbed ones ended in a placement.  Units are counted after the utility units at the end of
+        a split stream are joined (:func:`heatloom.network.utility_tails.join_utility_tails`), the last
+        step of the placement.
     seed : int
         Seed of the perturbations [-].
     solver : str, optional
@@ -584,7 +596,8 @@ def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=f
     neighbourhood : float
         Share of ``time_limit`` kept for moves that take out the units of a few sides of the best search
         and place them again (:func:`heatloom.network.neighbourhood.improve_units`) [-]; 0 none.  They run
-        when the best search left no remainder and has more than N − 1 units.
+        when the best search has more than N − 1 units, on its units and on those placed for what it left
+        (after the stagewise MILP, when that ran) when these cover every side as rectangles.
 
     Returns
     -------
@@ -630,7 +643,7 @@ def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=f
         extra, _ = _remainder(state, tol, forbidden)
         if extra is not None:
             have = {(u.hot, u.cold) for u in (*placed, *extra)}
-            score = (len(required - have), len(placed) + len(extra))
+            score = (len(required - have), len(join_utility_tails(sides, merged, tol)) + len(extra))
             if best is None or score < best[0]:
                 best = (score, placed, extra, state, merged)
         if time.monotonic() - start > searching or (best is not None and best[0][0] == 0 and not best[2]
@@ -642,19 +655,30 @@ def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=f
         return None
     (missing, count), placed, extra, state, merged = best
     moves = 0
-    left = time_limit - (time.monotonic() - start)
-    if neighbourhood > 0 and not extra and count > len(sides) - 1 and left > 0:
-        from .neighbourhood import improve_units
-
-        have = {(sides[i].name, sides[j].name) for i, j, _, _ in merged}
-        merged, moves = improve_units(sides, merged, allowed, required & have, tol, rng, left)
-        placed = [_unit(sides[i], sides[j], unit, q) for i, j, unit, q in merged]
     reports = []
     if extra and solve_time > 0:
         milp, reports = _remainder(state, tol, forbidden, solver, solve_time)
         if milp is not None and len(milp) < len(extra) and \
                 len(required - {(u.hot, u.cold) for u in (*placed, *milp)}) <= missing:
             extra = milp
+    left = time_limit - (time.monotonic() - start)
+    rest: set = set()
+    if neighbourhood > 0 and count > len(sides) - 1 and left > 0:
+        if extra:   # the remainder's units as rectangles too, so that the moves can re-place them
+            whole = as_rectangles(sides, merged, extra, tol)
+            if whole is not None:
+                rest = set(whole[len(merged):])
+                merged, extra = whole, []
+        if not extra:
+            from .neighbourhood import improve_units
+
+            have = {(sides[i].name, sides[j].name) for i, j, _, _ in merged}
+            merged, moves = improve_units(sides, merged, allowed, required & have, tol, rng, left)
+    # the last step: a stream's branches that each end in one utility mixed into one utility unit
+    joined = join_utility_tails(sides, merged, tol)
+    placed = [_unit(sides[i], sides[j], unit, q) for i, j, unit, q in joined if (i, j, unit, q) not in rest]
+    # the remainder's units that no move replaced are still counted as the remainder's
+    extra = [*(_unit(sides[i], sides[j], unit, q) for i, j, unit, q in joined if (i, j, unit, q) in rest), *extra]
     units = sorted([*placed, *extra], key=lambda u: (-u.hot_in, -u.cold_out))
     units = [PlacedUnit(u.hot, u.cold, k, u.duty, u.hot_in, u.hot_out, u.cold_in, u.cold_out, u.hot_fraction,
                         u.cold_fraction) for k, u in enumerate(units)]
