@@ -112,64 +112,110 @@ def _same(a: float, b: float) -> bool:
     return abs(a - b) <= FRACTION_MATCH
 
 
-def _grow(top: list[_Flow], rest: list, side: str) -> list | None:
+def _grow(top: list[_Flow], rest: list, side: str) -> list:
     """Follow a split from its first units: take the units that continue, split or merge its flows, and
-    return the units left after its mixer (None when a unit fits nowhere)."""
-    while rest and _split(rest[0][1], side):
-        x = rest[0][1]
-        t, f = _progress(x, side)[0], _fraction(x, side)
-        together = [p for p in rest if _split(p[1], side) and _near(_progress(p[1], side)[0], t)]
-        if len(together) > 1 and _same(sum(_fraction(p[1], side) for p in together), 1.0):
-            break   # a new split of the whole stream: this one has mixed
-        leaves = [g for frame in _frames(top) for g in frame if g.inner is None and _near(g.end, t)]
-        share = sum(_fraction(p[1], side) for p in together)
-        parent = next((g for g in leaves if _same(g.fraction, share)), None) if len(together) > 1 else None
-        if parent is not None and not any(_same(g.fraction, f) for g in leaves):   # a split inside a branch
-            parent.inner = [_Flow(_fraction(p[1], side), _progress(p[1], side)[1], [p[1].name]) for p in together]
-            rest = [p for p in rest if all(p is not q for q in together)]
-            continue
-        going = next((g for g in leaves if _same(g.fraction, f)), None)
-        if going is not None:   # the unit continues a flow
-            going.items.append(x.name)
-            going.end = _progress(x, side)[1]
-            rest = rest[1:]
-            continue
-        merged = False
-        for frame in _frames(top):
-            ending = [g for g in frame if g.inner is None]
-            for size in range(len(ending), 1, -1):
-                for group in itertools.combinations(ending, size):
-                    if not _same(sum(g.fraction for g in group), f) or not _mixes_to(group, f, t):
-                        continue
-                    owner = next((g for g in _all_flows(top) if g.inner is frame), None)
-                    if owner is not None and size == len(frame):   # the inner split mixes, its branch goes on
-                        owner.items.append(_as_branches(frame))
-                        owner.inner = None
-                        owner.items.append(x.name)
-                        owner.end = _progress(x, side)[1]
-                    else:   # branches of one split mix and go on together: a split inside a branch
-                        at = frame.index(group[0])
-                        joined = _Flow(f, _progress(x, side)[1], [_as_branches(list(group)), x.name])
-                        frame[:] = [g for g in frame if all(g is not h for h in group)]
-                        frame.insert(at, joined)
-                    merged = True
-                    break
-                if merged:
-                    break
-            if merged:
+    return the units left after its mixer.
+
+    The units are tried from the lowest inlet on, and after each one taken the search starts again: with
+    non-isothermal mixing a unit after the mixer (e.g. a cooler at the mixed temperature) can enter at a
+    temperature above that of a unit still on a branch, so the first unit left is not always the next."""
+    while True:
+        for k, p in enumerate(rest):
+            if _split(p[1], side) and _attach(top, rest, k, side):
+                rest = [q for q in rest if q[1].name not in _taken(top)]
                 break
-        if not merged:
-            return None
-        rest = rest[1:]
-    return rest
+        else:
+            return rest
+
+
+def _taken(top: list[_Flow]) -> set[str]:
+    return set(_names_in(_as_branches(top)))
+
+
+def _end(flow: _Flow) -> float:
+    """Where a flow ends [K, progress]: its last unit's outlet, or the flow-weighted mean of its open inner
+    flows' ends (their mixed temperature at a constant heat capacity flow rate)."""
+    if not flow.inner:
+        return flow.end
+    return sum(g.fraction * _end(g) for g in flow.inner) / sum(g.fraction for g in flow.inner)
+
+
+def _close(flow: _Flow) -> _Flow:
+    """The flow with its open inner split mixed (appended to its items as a split)."""
+    if flow.inner:
+        flow.end = _end(flow)
+        for g in flow.inner:
+            _close(g)
+        flow.items.append(_as_branches(flow.inner))
+        flow.inner = None
+    return flow
+
+
+def _mixing(top: list[_Flow], f: float, t: float):
+    """(frame, group) of flows of one frame that carry ``f`` of the stream together and mix to ``t``: the
+    largest group first; None when there is none."""
+    for frame in _frames(top):
+        for size in range(len(frame), 0, -1):
+            for group in itertools.combinations(frame, size):
+                if _same(sum(g.fraction for g in group), f) and _mixes_to(group, f, t):
+                    return frame, list(group)
+    return None
+
+
+def _attach(top: list[_Flow], rest: list, k: int, side: str) -> bool:
+    """Take unit ``rest[k]`` (and the units entering with it) into the split: continuing a flow, splitting
+    a flow (or flows that mix first) again, or after flows that mix; False when it fits nowhere or starts a
+    new split of the whole stream."""
+    x = rest[k][1]
+    t, f = _progress(x, side)[0], _fraction(x, side)
+    together = [p for p in rest if _split(p[1], side) and _near(_progress(p[1], side)[0], t)]
+    share = sum(_fraction(p[1], side) for p in together)
+    if len(together) > 1 and _same(share, 1.0):
+        return False   # a new split of the whole stream, after this one has mixed
+    leaves = [g for frame in _frames(top) for g in frame if g.inner is None and _near(g.end, t)]
+    going = next((g for g in leaves if _same(g.fraction, f)), None)
+    starts = [_Flow(_fraction(p[1], side), _progress(p[1], side)[1], [p[1].name]) for p in together]
+    found = _mixing(top, share, t) if len(together) > 1 and going is None else None
+    if going is not None:   # the unit continues a flow
+        going.items.append(x.name)
+        going.end = _progress(x, side)[1]
+        return True
+    if found is not None:   # units entering together split a flow, or flows that mix there, again
+        frame, group = found
+        if len(group) == 1 and group[0].inner is None:
+            group[0].inner = starts
+        else:
+            at = frame.index(group[0])
+            again = _Flow(share, t, [_as_branches([_close(g) for g in group])] if len(group) > 1 else
+                          _close(group[0]).items, starts)
+            frame[:] = [g for g in frame if all(g is not h for h in group)]
+            frame.insert(at, again)
+        return True
+    found = _mixing(top, f, t)
+    if found is None or (len(found[1]) == 1 and found[1][0].inner is None):
+        return False
+    frame, group = found   # flows that mix and go on together through the unit
+    owner = next((g for g in _all_flows(top) if g.inner is frame), None)
+    if owner is not None and len(group) == len(frame):   # an inner split mixes, its branch goes on
+        _close(owner).items.append(x.name)
+    else:
+        at = frame.index(group[0])
+        joined = _Flow(f, t, [_as_branches([_close(g) for g in group])] if len(group) > 1 else
+                       _close(group[0]).items, None)
+        frame[:] = [g for g in frame if all(g is not h for h in group)]
+        frame.insert(at, joined)
+        joined.items.append(x.name)
+        owner = joined
+    owner.end = _progress(x, side)[1]
+    return True
 
 
 def _mixes_to(group, f: float, t: float) -> bool:
     """Whether flows mixing can give the inlet ``t`` [K, progress]: the flow-weighted mean of their ends
     (exact for a constant heat capacity flow rate), or, on streams of several segments, any temperature
     between their ends (the enthalpy balance's mixed temperature lies there)."""
-    ends = [g.end for g in group]
-    if _near(sum(g.fraction * g.end for g in group) / f, t):
+    ends = [_end(g) for g in group]
+    if _near(sum(g.fraction * e for g, e in zip(group, ends)) / f, t):
         return True
     return min(ends) + TEMPERATURE_MATCH < t < max(ends) - TEMPERATURE_MATCH
 
@@ -198,8 +244,6 @@ def _walk(units: list[tuple[int, object]], side: str) -> list[list[list]] | None
             return None
         top = [_Flow(_fraction(p[1], side), _progress(p[1], side)[1], [p[1].name]) for p in heads]
         rest = _grow(top, [p for p in left if all(p is not q for q in heads)], side)
-        if rest is None:
-            return None
         out.append(_as_branches(top))
         left = rest
     return out
