@@ -39,6 +39,10 @@ FRACTION_MATCH = 1e-6
 """Largest difference between the fractions of two units of one branch, and of the sum of a split's
 fractions from 1 [-]."""
 
+MAX_MIXING_SEARCH = 12
+"""Most flows of one split searched for a group that mixes before a unit (all subsets: 2^n) [-]; beyond it
+only the flows ending at the unit's inlet are grouped."""
+
 _REGION_RANK = {"above": 0, "whole": 0, "below": 2}
 
 
@@ -155,8 +159,11 @@ def _mixing(top: list[_Flow], f: float, t: float):
     """(frame, group) of flows of one frame that carry ``f`` of the stream together and mix to ``t``: the
     largest group first; None when there is none."""
     for frame in _frames(top):
-        for size in range(len(frame), 0, -1):
-            for group in itertools.combinations(frame, size):
+        pool = frame
+        if len(frame) > MAX_MIXING_SEARCH:   # many branches: only those ending at t (isothermal mixing)
+            pool = [g for g in frame if _near(_end(g), t)]
+        for size in range(min(len(pool), MAX_MIXING_SEARCH), 0, -1):
+            for group in itertools.combinations(pool, size):
                 if _same(sum(g.fraction for g in group), f) and _mixes_to(group, f, t):
                     return frame, list(group)
     return None
