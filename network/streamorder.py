@@ -169,6 +169,17 @@ def _mixing(top: list[_Flow], f: float, t: float):
     return None
 
 
+def _replace(frame: list[_Flow], group: list[_Flow], fraction: float, t: float) -> _Flow:
+    """Put in ``frame``, where ``group`` was, one flow of ``fraction`` that starts at ``t`` from those flows
+    mixed (a split of them, or the one flow's items, each closed) and return it."""
+    at = frame.index(group[0])
+    items = [_as_branches([_close(g) for g in group])] if len(group) > 1 else _close(group[0]).items
+    merged = _Flow(fraction, t, items)
+    frame[:] = [g for g in frame if all(g is not h for h in group)]
+    frame.insert(at, merged)
+    return merged
+
+
 def _attach(top: list[_Flow], rest: list, k: int, side: str) -> bool:
     """Take unit ``rest[k]`` (and the units entering with it) into the split: continuing a flow, splitting
     a flow (or flows that mix first) again, or after flows that mix; False when it fits nowhere or starts a
@@ -192,11 +203,7 @@ def _attach(top: list[_Flow], rest: list, k: int, side: str) -> bool:
         if len(group) == 1 and group[0].inner is None:
             group[0].inner = starts
         else:
-            at = frame.index(group[0])
-            again = _Flow(share, t, [_as_branches([_close(g) for g in group])] if len(group) > 1 else
-                          _close(group[0]).items, starts)
-            frame[:] = [g for g in frame if all(g is not h for h in group)]
-            frame.insert(at, again)
+            _replace(frame, group, share, t).inner = starts
         return True
     found = _mixing(top, f, t)
     if found is None or (len(found[1]) == 1 and found[1][0].inner is None):
@@ -206,13 +213,8 @@ def _attach(top: list[_Flow], rest: list, k: int, side: str) -> bool:
     if owner is not None and len(group) == len(frame):   # an inner split mixes, its branch goes on
         _close(owner).items.append(x.name)
     else:
-        at = frame.index(group[0])
-        joined = _Flow(f, t, [_as_branches([_close(g) for g in group])] if len(group) > 1 else
-                       _close(group[0]).items, None)
-        frame[:] = [g for g in frame if all(g is not h for h in group)]
-        frame.insert(at, joined)
-        joined.items.append(x.name)
-        owner = joined
+        owner = _replace(frame, group, f, t)
+        owner.items.append(x.name)
     owner.end = _progress(x, side)[1]
     return True
 

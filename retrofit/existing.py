@@ -325,13 +325,12 @@ class ExistingNetwork:
                 k -= 1
         out = []
         inlets = split_inlets(units, list(streams))
+        final = {n: flow_steps(seq[-1], n, len(seq)) for n, seq in order.items() if seq}   # each stream's end
         for u in units:
-            seq_of = {n: order[n] for n in u.process_streams}
-            last = {n: u.name in {x.name for x in seq[-1]} and ends_stream(u, flow_steps(seq[-1], n, len(seq)))
-                    for n, seq in seq_of.items()}   # no unit after it in a final split too
             if u.role is UnitRole.EXCHANGER:
                 mode = OperatingMode.RATED
-            elif last[u.process_streams[0]]:
+            elif u.name in {x.name for x in order[u.process_streams[0]][-1]} and \
+                    ends_stream(u, final[u.process_streams[0]]):   # no unit after it, in a final split too
                 mode = OperatingMode.TRIM
             elif u.duty is not None:
                 mode = OperatingMode.FIXED_DUTY
