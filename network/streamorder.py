@@ -353,9 +353,10 @@ def _names_in(branches: list) -> list[str]:
     return out
 
 
-def stream_positions(network) -> dict[str, tuple[int | None, int | None]]:
+def stream_positions(network, order: dict | None = None) -> dict[str, tuple[int | None, int | None]]:
     """Unit name → (position along its hot process stream, along its cold process stream) from the
-    stream's supply end, 1, 2, ... [-]; None on a utility side (:func:`stream_order`).
+    stream's supply end, 1, 2, ... [-]; None on a utility side (:func:`stream_order`, or ``order`` when it
+    was computed already).
 
     The units of one split share one position: that is how the network table
     (:mod:`heatloom.io.network_table`) writes a split.
@@ -372,18 +373,18 @@ def stream_positions(network) -> dict[str, tuple[int | None, int | None]]:
     {'A': (1, 1), 'B': (1, 1), 'C': (2, None)}
     """
     out = {u.name: [None, None] for u in (*network.exchangers, *network.heaters, *network.coolers)}
-    for (side, _), positions in stream_order(network).items():
+    for (side, _), positions in (order or stream_order(network)).items():
         for k, branches in enumerate(positions, start=1):
             for name in _names_in(branches):
                 out[name][0 if side == "hot" else 1] = k
     return {name: (a, b) for name, (a, b) in out.items()}
 
 
-def stream_branches(network) -> dict[str, tuple[tuple | None, tuple | None]]:
+def stream_branches(network, order: dict | None = None) -> dict[str, tuple[tuple | None, tuple | None]]:
     """Unit name → (its branch on its hot stream, on its cold stream): (branch numbers, places on them),
     outer split first, 1-based [-] — ``((2,), (1,))`` is the first unit on branch 2, ``((2, 1), (1, 3))`` the
     third unit on branch 1 of the split that is the first item of branch 2; None where the unit is not
-    inside a split.
+    inside a split.  ``order``: :func:`stream_order` of the network when it was computed already.
 
     Examples
     --------
@@ -404,7 +405,7 @@ def stream_branches(network) -> dict[str, tuple[tuple | None, tuple | None]]:
                 else:
                     out[item][side] = (labels + (b,), places + (k,))
 
-    for (side, _), positions in stream_order(network).items():
+    for (side, _), positions in (order or stream_order(network)).items():
         for branches in positions:
             if len(branches) > 1:
                 mark(branches, 0 if side == "hot" else 1, (), ())

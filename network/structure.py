@@ -22,7 +22,7 @@ import numpy as np
 
 from ..errors import InfeasibleError
 from ..model import Stream, StreamTable, Utility
-from .streamorder import grid_key, stream_branches, stream_positions
+from .streamorder import grid_key, stream_branches, stream_order, stream_positions
 
 __all__ = [
     "Exchanger",
@@ -424,7 +424,8 @@ class Network:
         """
         import pandas as pd
 
-        positions, branches = stream_positions(self), stream_branches(self)
+        order = stream_order(self)
+        positions, branches = stream_positions(self, order), stream_branches(self, order)
         cost = f"cost [{self.currency or 'money'}/year]"
         rows = []
         for role, group in (("exchanger", self.exchangers), ("heater", self.heaters), ("cooler", self.coolers)):

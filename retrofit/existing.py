@@ -646,7 +646,7 @@ class ExistingNetwork:
             If a unit has no area, or the design has a split the existing network cannot represent (a branch
             with a bypass: :mod:`heatloom.retrofit.branches`).
         """
-        from ..network.streamorder import stream_branches, stream_positions
+        from ..network.streamorder import stream_branches, stream_order, stream_positions
 
         units = []
         for prefix, group in (("E", network.exchangers), ("H", network.heaters), ("C", network.coolers)):
@@ -660,10 +660,11 @@ class ExistingNetwork:
                 units.append((ExistingUnit(name, hot, cold, area=x.area, duty=x.duty, u=x.u, **shares), x))
         ours = {x.name: u.name for u, x in units}
         positions: dict[str, dict] = {}
-        for design_name, where in stream_positions(network).items():
+        order = stream_order(network)
+        for design_name, where in stream_positions(network, order).items():
             at = positions.setdefault(ours[design_name], {})
             at.update({f"{side}_position": k for side, k in zip(("hot", "cold"), where) if k is not None})
-        for design_name, where in stream_branches(network).items():
+        for design_name, where in stream_branches(network, order).items():
             for side, on in zip(("hot", "cold"), where):
                 if on is not None:
                     positions[ours[design_name]].update({f"{side}_branch": "/".join(map(str, on[0])),
