@@ -139,6 +139,32 @@ def _sides(u):
     return "x", u.hot, u.cold
 
 
+OUT_OF_ORDER_LISTED = 6
+"""Most pairs of units drawn against their stream's order that a grid diagram's footnote names [-]."""
+
+
+def _out_of_order_lines(dropped, lay, fs: float, width: float) -> list[str]:
+    """The footnote of a grid diagram whose columns could not keep every stream's order: the pairs of
+    units drawn the other way round (at most :data:`OUT_OF_ORDER_LISTED`, then how many more), wrapped to
+    ``width`` [in]; no lines when every order is kept."""
+    if not dropped:
+        return []
+    pairs = [f"{a} before {b} on {stream}" for a, b, stream in dropped[:OUT_OF_ORDER_LISTED]]
+    if len(dropped) > OUT_OF_ORDER_LISTED:
+        pairs.append(f"and {len(dropped) - OUT_OF_ORDER_LISTED} more")
+    words = ("Drawn against their stream's flow order (streams that meet in crossing orders, or the pinch "
+             "line between the two the other way round): " + "; ".join(pairs) + ".").split(" ")
+    lines, line = [], ""
+    for word in words:
+        trial = f"{line} {word}" if line else word
+        if line and lay.size(trial, fs)[0] > width:
+            lines.append(line)
+            line = word
+        else:
+            line = trial
+    return lines + [line]
+
+
 def grid_diagram(network, streams, *, title: str | None = None, approach: str = "ΔTmin",
                  changed: Collection[str] = (), removed: Mapping[str, str] | Collection[str] = (),
                  removed_label: str = "removed"):
@@ -148,7 +174,8 @@ def grid_diagram(network, streams, *, title: str | None = None, approach: str = 
     pointing up on a cold stream, coolers triangles pointing down on a hot stream; each unit carries its
     name and duty.  Units are laid out left to right from the hot end, subnetwork by subnetwork, in the
     order their temperatures give along every stream (:func:`heatloom.io.grid_layout.grid_layout`; where
-    streams meet in crossing orders a cold stream's order gives way); the pinch is a dotted vertical line
+    streams meet in crossing orders a cold stream's order gives way, and a footnote names the units drawn
+    against their stream's flow order); the pinch is a dotted vertical line
     between the subnetworks above and below it.  A split stream is drawn as branches, each with its share
     of the flow (labelled at its first unit), its units in series on its lane and a split inside it on
     sub-lanes; every stream shows its temperature between each pair of its units and at the outlet of each
@@ -175,9 +202,10 @@ def grid_diagram(network, streams, *, title: str | None = None, approach: str = 
     matplotlib.figure.Figure
         One axes whose data coordinates are inches.  Artists carry gids: ``stream:<name>``,
         ``branch:<stream>``, ``unit:<name>``, and the labels ``name:<unit>``, ``duty:<unit>``,
-        ``fraction:<unit>``, ``temperature:<stream>``, ``end:<stream>``.  A branch's fraction carries the
-        name of its first unit (of the first unit after a split inside it, or ``<unit>+<unit>`` of that
-        split's first units when the branch holds nothing else).
+        ``fraction:<unit>``, ``temperature:<stream>``, ``end:<stream>``, and the footnote ``out-of-order``.
+        A branch's fraction carries the name of its first unit (of the first unit after a split inside it, or
+        ``<unit>+<unit>`` of that split's first units when the branch holds nothing else).  The footnote
+        (figure text, not on the axes) names the units drawn against their stream's flow order, if any.
 
     Examples
     --------
@@ -241,9 +269,14 @@ def grid_diagram(network, streams, *, title: str | None = None, approach: str = 
     plot_h = top + rows_h + 0.3
     for s in y_of:
         y_of[s] += plot_h - top
-    height = plot_h + title_h + 0.3
+    foot = _out_of_order_lines(grid.dropped, lay, fs, width - 0.45)
+    foot_h = len(foot) * (th + 0.06) + (0.15 if foot else 0.0)
+    height = plot_h + title_h + 0.3 + foot_h
     fig.set_size_inches(width, height)
-    ax = fig.add_axes((0.0, 0.0, 1.0, plot_h / height))
+    ax = fig.add_axes((0.0, foot_h / height, 1.0, plot_h / height))
+    if foot:
+        fig.text(0.15 / width, (foot_h - 0.08) / height, "\n".join(foot), ha="left", va="top", fontsize=fs,
+                 color="#505050", gid="out-of-order", linespacing=1.3)
     ax.set_xlim(0.0, width)
     ax.set_ylim(0.0, plot_h)
     ax.axis("off")

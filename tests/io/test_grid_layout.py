@@ -236,3 +236,19 @@ def test_a_stagewise_design_keeps_its_stage_order(reference):
     x = {name: points[0][0] for name, points in marks(fig).items()}
     units = sorted((*net.exchangers, *net.heaters, *net.coolers), key=grid_key)
     assert all(x[a.name] <= x[b.name] for a, b in zip(units, units[1:]) if grid_key(a) < grid_key(b))
+
+
+def test_units_drawn_against_their_stream_order_are_named_under_the_figure():
+    # the network of the test above: C1's order (X before Y from its supply end, which puts X to the right)
+    # cannot be kept, so the figure says which two units are drawn the other way round on C1
+    x = Exchanger("H1", "C1", 50.0, 200, 150, 50, 80, name="X", stage=1)
+    y = Exchanger("H1", "C1", 50.0, 150, 100, 80, 120, name="Y", stage=0)
+    streams = StreamTable.from_arrays(["H1", "C1"], [200, 50], [100, 120], [1.0, 100.0 / 70.0])
+    fig = grid_diagram(Network((x, y), (), (), 10.0), streams)
+    foot = [t.get_text() for t in fig.texts if t.get_gid() == "out-of-order"]
+    assert len(foot) == 1 and "X before Y on C1" in foot[0].replace("\n", " ")
+    # nothing written under a figure whose every stream order holds
+    a = Exchanger("H1", "C1", 50.0, 200, 150, 70, 120, name="A")
+    b = Exchanger("H1", "C1", 50.0, 150, 100, 50, 70, name="B")
+    assert not [t for t in grid_diagram(Network((a, b), (), (), 10.0), streams).texts
+                if t.get_gid() == "out-of-order"]
