@@ -19,6 +19,7 @@ import numpy as np
 from .errors import InputError
 
 __all__ = [
+    "as_written",
     "as_float_array",
     "scalar_or_array",
     "require",
@@ -34,6 +35,20 @@ __all__ = [
 
 # --------------------------------------------------------------------------------------------------
 # numbers and arrays of numbers
+
+
+def as_written(value) -> str:
+    """A cell or label as the user wrote it: text stripped, whole numbers without a decimal point (a table
+    reader gives ``2.0`` for a cell holding 2).
+
+    Examples
+    --------
+    >>> as_written(" H1 "), as_written(120.0), as_written(0.25), as_written(1e20)
+    ('H1', '120', '0.25', '1e+20')
+    """
+    if isinstance(value, float):
+        return str(int(value)) if value.is_integer() and abs(value) < 1e15 else repr(value)
+    return str(value).strip()
 
 
 def as_float_array(value, what: str) -> np.ndarray:

@@ -29,6 +29,7 @@ from pathlib import Path
 
 from .. import defaults
 from ..errors import InputError
+from ..validation import as_written as cell_text  # a cell as written (the rule lives in the core)
 
 __all__ = ["Cells", "load_cells", "cell_text", "UnsavedFormula", "read_input_bytes", "FORMULA_TRIGGERS", "looks_like_formula"]
 
@@ -55,19 +56,6 @@ def looks_like_formula(text: str) -> bool:
 _XLSX_SUFFIXES = (".xlsx", ".xlsm", ".xltx", ".xltm")
 _CONTROL = re.compile(r"[\x00-\x08\x0b\x0c\x0e-\x1f\x7f-\x9f]")
 _OLE2 = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
-
-
-def cell_text(value) -> str:
-    """A cell as the user wrote it: text stripped, whole numbers without a decimal point.
-
-    Examples
-    --------
-    >>> cell_text(" H1 "), cell_text(120.0), cell_text(0.25), cell_text(1e20)
-    ('H1', '120', '0.25', '1e+20')
-    """
-    if isinstance(value, float):
-        return str(int(value)) if value.is_integer() and abs(value) < 1e15 else repr(value)
-    return str(value).strip()
 
 
 class UnsavedFormula(str):

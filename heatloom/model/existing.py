@@ -14,6 +14,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import InputError
+from ..validation import as_written
 from .exchangers import ExchangerType
 
 __all__ = ["UnitRole", "OperatingMode", "ExistingUnit", "UnitTable"]
@@ -197,7 +198,7 @@ class ExistingUnit:
         for side in ("hot", "cold"):
             label, order = getattr(self, f"{side}_branch"), getattr(self, f"{side}_branch_order")
             if label is not None:
-                parts = [x.strip() for x in _label_text(label).split("/")]
+                parts = [x.strip() for x in as_written(label).split("/")]
                 if any(not x for x in parts) and any(parts):
                     raise InputError(f"unit '{name}': {side}_branch {label!r} has an empty label in its path (labels "
                                      "separated by '/', outer branch first)", column=f"{side}_branch", **where)
@@ -267,13 +268,6 @@ def _value(e):
 
 def _listed(places):
     return None if places is None else list(places)
-
-
-def _label_text(value) -> str:
-    """A label as written: text stripped, a whole number without a decimal point (``2.0`` → ``"2"``)."""
-    if isinstance(value, float) and value.is_integer():
-        return str(int(value))
-    return str(value).strip()
 
 
 def _places(value) -> tuple[int, ...] | None:
