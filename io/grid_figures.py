@@ -149,11 +149,12 @@ def _out_of_order_lines(dropped, lay, fs: float, width: float) -> list[str]:
     ``width`` [in]; no lines when every order is kept."""
     if not dropped:
         return []
-    pairs = [f"{a} before {b} on {stream}" for a, b, stream in dropped[:OUT_OF_ORDER_LISTED]]
+    pairs = [f"on {stream}, {a} then {b}" for a, b, stream in dropped[:OUT_OF_ORDER_LISTED]]
     if len(dropped) > OUT_OF_ORDER_LISTED:
         pairs.append(f"and {len(dropped) - OUT_OF_ORDER_LISTED} more")
-    words = ("Drawn against their stream's flow order (streams that meet in crossing orders, or the pinch "
-             "line between the two the other way round): " + "; ".join(pairs) + ".").split(" ")
+    words = ("Units drawn out of their stream's flow order (streams that meet in crossing orders, or a pair on "
+             "either side of the pinch line the other way round); their flow order: " + "; ".join(pairs)
+             + ".").split(" ")
     lines, line = [], ""
     for word in words:
         trial = f"{line} {word}" if line else word

@@ -246,7 +246,7 @@ def test_units_drawn_against_their_stream_order_are_named_under_the_figure():
     streams = StreamTable.from_arrays(["H1", "C1"], [200, 50], [100, 120], [1.0, 100.0 / 70.0])
     fig = grid_diagram(Network((x, y), (), (), 10.0), streams)
     foot = [t.get_text() for t in fig.texts if t.get_gid() == "out-of-order"]
-    assert len(foot) == 1 and "X before Y on C1" in foot[0].replace("\n", " ")
+    assert len(foot) == 1 and "on C1, X then Y" in foot[0].replace("\n", " ")
     # nothing written under a figure whose every stream order holds
     a = Exchanger("H1", "C1", 50.0, 200, 150, 70, 120, name="A")
     b = Exchanger("H1", "C1", 50.0, 150, 100, 50, 70, name="B")
