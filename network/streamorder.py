@@ -43,6 +43,11 @@ MAX_MIXING_SEARCH = 12
 """Most flows of one split searched for a group that mixes before a unit (all subsets: 2^n) [-]; beyond it
 only the flows ending at the unit's inlet are grouped."""
 
+MAX_MIXING_GROUPS = 200_000
+"""Most groups of flows one search for a mixing group tries [-]: with many branches ending at one
+temperature the groups grow as C(n, 12) (a split of 36 equal branches took 12 s); beyond it the search
+gives up and the stream falls back to the grid order, with its note."""
+
 _REGION_RANK = {"above": 0, "whole": 0, "below": 2}
 
 
@@ -157,13 +162,17 @@ def _close(flow: _Flow) -> _Flow:
 
 def _mixing(top: list[_Flow], f: float, t: float):
     """(frame, group) of flows of one frame that carry ``f`` of the stream together and mix to ``t``: the
-    largest group first; None when there is none."""
+    largest group first; None when there is none, or none among the first :data:`MAX_MIXING_GROUPS` tried."""
+    tried = 0
     for frame in _frames(top):
         pool = frame
         if len(frame) > MAX_MIXING_SEARCH:   # many branches: only those ending at t (isothermal mixing)
             pool = [g for g in frame if _near(_end(g), t)]
         for size in range(min(len(pool), MAX_MIXING_SEARCH), 0, -1):
             for group in itertools.combinations(pool, size):
+                tried += 1
+                if tried > MAX_MIXING_GROUPS:
+                    return None
                 if _same(sum(g.fraction for g in group), f) and _mixes_to(group, f, t):
                     return frame, list(group)
     return None

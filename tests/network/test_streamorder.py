@@ -71,3 +71,28 @@ def test_the_recovered_tree_walks_back_to_the_design_temperatures():
     inlet = {s.unit.name: s.inlet for s in steps if s.unit is not None}
     assert temps[inlet["E"]] == pytest.approx(102.0, abs=1e-9)
     assert temps[inlet["D1"]] == pytest.approx(107.0, abs=1e-9)
+
+
+def test_a_split_of_many_equal_branches_gives_up_the_search_for_a_mixing_group(monkeypatch):
+    """30 branches of 1/30 from 115 °C, 20 of them to 102 °C and 10 to 100 °C; then E takes 2/3 of H from
+    102 to 90 °C.  Only all 20 branches ending at 102 °C carry 2/3 together, a group larger than the search
+    looks at (MAX_MIXING_SEARCH), so it tries every smaller group: about a million here, C(n, 12) in general.
+    With the number of groups capped, the search stops at the cap and the stream falls back to the grid order
+    (the network stays complete, every unit placed)."""
+    from heatloom.network import streamorder
+
+    calls = []
+    same = streamorder._same
+    monkeypatch.setattr(streamorder, "_same", lambda a, b: calls.append(1) or same(a, b))
+    monkeypatch.setattr(streamorder, "MAX_MIXING_GROUPS", 1000)
+    n, m = 30, 20
+    xs = [unit(f"B{k}", 1 / n, 115, 102 if k < m else 100, 1) for k in range(n)]
+    xs.append(unit("E", m / n, 102, 90, 2))
+    mixed = m / n * 90 + (1 - m / n) * 100   # by hand: 93.33 °C
+    cw = Cooler("H", "CW", CP * (mixed - 60), mixed, 60, 20, 30, stage=10, region="whole", name="CW")
+    net = Network(tuple(xs), (), (cw,), 10.0)
+    assert unordered_streams(net) == ["H"]
+    assert len(calls) < 5000   # the groups tried, and the few other comparisons of fractions
+    frame = net.to_frame()
+    assert set(frame["unit"]) >= {x.name for x in xs} | {"CW"}
+    assert frame["hot_order"].notna().all()   # every unit has its place along H (the grid order)
