@@ -46,7 +46,8 @@ only the flows ending at the unit's inlet are grouped."""
 MAX_MIXING_GROUPS = 200_000
 """Most groups of flows one search for a mixing group tries [-]: with many branches ending at one
 temperature the groups grow as C(n, 12) (a split of 36 equal branches took 12 s); beyond it the search
-gives up and the stream falls back to the grid order, with its note."""
+gives up and the stream falls back to the grid order (:func:`unordered_streams` names it; ``design`` says so
+in its notes)."""
 
 _REGION_RANK = {"above": 0, "whole": 0, "below": 2}
 
