@@ -123,6 +123,25 @@ class Evaluation:
         tol = 1e-6 * max((s.duty for s in self.simulation.network.streams), default=1.0)
         return abs(self.hot_utility_excess) <= tol and abs(self.cold_utility_excess) <= tol
 
+    def units_frame(self):
+        """The units table of the evaluated network (:meth:`Network.to_frame`: simulated duties and
+        temperatures, areas, costs), in the engineer's row order and with every unit's position, branch
+        and place on it as drawn, not as recovered from the temperatures (which cannot always tell the
+        order of split units, :func:`heatloom.network.streamorder.unordered_streams`): the table reads back
+        into the same network.
+        """
+        drawn = self.simulation.network.units
+        frame = self.network.to_frame().set_index("unit").loc[[u.name for u in drawn]].reset_index()
+
+        def label(order):
+            return None if order is None else "/".join(map(str, order))
+
+        for side in ("hot", "cold"):
+            frame[f"{side}_order"] = [getattr(u, f"{side}_position") for u in drawn]
+            frame[f"{side}_branch"] = [getattr(u, f"{side}_branch") for u in drawn]
+            frame[f"{side}_branch_order"] = [label(getattr(u, f"{side}_branch_order")) for u in drawn]
+        return frame.astype({"hot_order": "Int64", "cold_order": "Int64"})
+
     def to_dict(self) -> dict:
         return {"ok": self.ok, "failures": list(self.failures), "temperature_crosses": list(self.crosses),
                 "dtmin": self.dt_min, "hot_utility_target": self.hot_utility_target,

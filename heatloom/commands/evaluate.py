@@ -134,7 +134,7 @@ def run(args) -> int:
     result["safety_note"] = defaults.SAFETY_NOTE
     if out is not None:
         out.json("evaluation.json", result)
-        out.csv("evaluation_units.csv", ev.network.to_frame())
+        out.csv("evaluation_units.csv", ev.units_frame())
     code = finish(args, result, format_evaluation(ev, str(args.network), dt_note), out)
     if not ev.ok:
         if not args.quiet:

@@ -195,6 +195,42 @@ def test_a_split_inside_a_branch_reads_back_from_the_design_table(tmp_path):
         assert again.unit(u.name).duty == pytest.approx(u.duty, rel=1e-4)
 
 
+@pytest.mark.parametrize("cap", [None, 0])
+def test_evaluate_writes_the_drawn_order_even_where_temperatures_cannot_tell_it(tmp_path, capsys, monkeypatch, cap):
+    # `heatloom evaluate --out` writes the units table with the positions, branches and places the engineer
+    # gave, in the engineer's row order.  With the mixing search cut off (cap 0) the temperatures no longer
+    # give the order of H1's nested split (the design's table would write three branches and E after them,
+    # which does not read back); the evaluation's table must still read back into the same network.
+    import heatloom.network.streamorder as streamorder
+    from heatloom.cli import main
+
+    if cap is not None:
+        monkeypatch.setattr(streamorder, "MAX_MIXING_GROUPS", cap)
+    rows = ("C,H1,C4,6,0.4,1,1,0.4,,\nA,H1,C1,4,0.5,1,1,0.3,b/1,1/1\nB,H1,C2,3,0.4,1,1,0.3,b/2,1/1\n"
+            "E,H1,C3,3,0.4,1,1,0.6,b,2\n")
+    table = _write(tmp_path, HEADER + rows + TRIMS + "S4,steam,C4,,,,2,,,\n")
+    streams = tmp_path / "streams.csv"
+    streams.write_text("name,T_supply,T_target,CP,h\nH1,180,60,4,0.8\nC1,30,150,2,0.8\nC2,50,160,1.5,0.8\n"
+                       "C3,20,100,1,0.8\nC4,40,170,1.2,0.8\n")   # NESTED, with film coefficients for sizing
+    utilities = tmp_path / "utilities.csv"
+    utilities.write_text("name,T_supply,T_target,cost,h\nsteam,200,199,100,0.8\nwater,20,30,10,0.8\n")
+    code = main(["evaluate", str(streams), str(table), "--utilities", str(utilities), "--dtmin", "5",
+                 "--out", str(tmp_path / "out"), "--quiet"])
+    assert code == 0, capsys.readouterr().out
+    written = read_network(tmp_path / "out" / "evaluation_units.csv")
+    given = read_network(table)
+    assert [u.name for u in written.units] == [u.name for u in given.units]   # the engineer's row order
+    for a, b in zip(written.units, given.units):
+        for field in ("hot_position", "cold_position", "hot_fraction", "hot_branch", "hot_branch_order"):
+            assert getattr(a, field) == getattr(b, field), (a.name, field)
+    # read back at the written areas: the duties of the drawn network (checked against ht above)
+    drawn = simulate(ExistingNetwork(NESTED, nested_units(), [STEAM, WATER]))
+    again = simulate(ExistingNetwork.from_table(NESTED, read_network(tmp_path / "out" / "evaluation_units.csv"),
+                                                [STEAM, WATER]))
+    for name in ("C", "A", "B", "E", "CW"):
+        assert again.unit(name).duty == pytest.approx(drawn.unit(name).duty, rel=1e-4), name
+
+
 def test_an_inner_split_that_does_not_carry_its_branch_is_refused(tmp_path):
     rows = ("C,H1,C4,6,0.4,1,1,0.4,,\nA,H1,C1,4,0.5,1,1,0.3,b/1,1/1\nB,H1,C2,3,0.4,1,1,0.2,b/2,1/1\n"
             "E,H1,C3,3,0.4,1,1,0.6,b,2\n")
