@@ -41,7 +41,9 @@ is rated at it; the heater or cooler at the end of a stream takes what brings it
 The network is checked as every design is (energy balance of every unit and stream, ΔTmin at both ends
 and inside every unit), temperature crosses are named unit by unit, the utilities are compared with the
 energy targets at ΔTmin, and every unit is sized and costed as a new design. Exit code 3 when a check
-fails (the failures are listed).
+fails (the failures are listed). With --out: evaluation.json and evaluation_units.csv (your rows,
+positions and branches, with the simulated duties, temperatures, areas and costs; it reads back as a
+network table).
 """
 
 
