@@ -14,11 +14,13 @@ With the unit duties and the flow fractions of the branches as variables every t
 its stream: a unit on a branch of fraction f changes it by q/(f·CP), and the mixed outlet of a block is the
 block's inlet changed by the block's total duty over CP.  :func:`solve_layout` minimises the exact total
 annual cost (exact LMTD, counter-current, 1/U = 1/h_hot + 1/h_cold, the problem's cost laws) by SLSQP with
-finite-difference gradients, subject to the least approach (:meth:`TacProblem.need`) at both ends of every
-unit, every branch temperature inside its stream's range, each stream's duty and each split's fractions
-adding up to one; a start that breaks the constraints is first moved to a feasible point (least squares of
-the violations).  :func:`restructure` is a local search over layouts (move a unit to any other place on one
-of its streams, or remove it), each refined by :func:`solve_layout`.
+exact gradients, subject to the least approach (:meth:`TacProblem.need`) at both ends of every unit, every
+branch temperature inside its stream's range, each stream's duty and each split's fractions adding up to
+one; a start that breaks the constraints is first moved to a feasible point (least squares of the
+violations).  Every temperature is c + M1·q + M2·(q/f) with matrices built once per layout (the walk
+along the streams), so the temperatures and their derivatives are a few matrix products.
+:func:`restructure` is an iterated local search over layouts (move a unit to any other place on one of its
+streams, or remove it; kicks that may also add a unit), each refined by :func:`solve_layout`.
 
 Streams of several segments are not handled (their stage "temperatures" are enthalpy coordinates).
 """
@@ -36,24 +38,28 @@ from ...equipment.sizing import log_mean
 from ...errors import InfeasibleError, InputError
 from ...model.costs import CostSettings, UnitKind
 from ..structure import Cooler, Exchanger, Heater, Network, check_network
-from .nlp import TopologySolution, unit_costs
+from .nlp import TopologySolution, _log_mean_and_gradient, unit_costs
 from .problem import TacProblem
 from .starts import contracted_levels
 
 __all__ = ["Layout", "LayoutSolution", "layout_from_solution", "solve_layout", "restructure", "layout_units",
            "representable", "layout_stages", "layout_moves", "network_from_layout", "beyond_stagewise", "RESTRUCTURE_SHARE",
-           "RESTRUCTURE_STREAMS", "RESTRUCTURE_PATIENCE"]
+           "RESTRUCTURE_STREAMS", "RESTRUCTURE_PATIENCE", "RESTRUCTURE_NEW_SHARE", "layout_additions"]
 
 RESTRUCTURE_SHARE = 0.2
 """Part of the time limit :func:`heatloom.network.tac.search.design_tac` keeps for the search beyond the
 stagewise form when ``restructure`` is asked for [-]."""
 
 RESTRUCTURE_STREAMS = 12
-"""Largest problem (process streams) given that search: each layout is refined with finite-difference
-gradients [-]."""
+"""Largest problem (process streams) given that search: each layout is a dense NLP over all units'
+duties and fractions [-]."""
 
 RESTRUCTURE_PATIENCE = 400
-"""Layouts tried in a row without improvement before :func:`restructure` stops [-]."""
+"""Layouts tried in a row without improvement before a descent of :func:`restructure` stops [-]."""
+
+RESTRUCTURE_NEW_SHARE = 0.05
+"""Starting duty of a unit a kick of :func:`restructure` adds, as a share of the smaller duty of its
+streams [-]."""
 
 _KIND = {"x": UnitKind.EXCHANGER, "cool": UnitKind.COOLER, "heat": UnitKind.HEATER}
 
@@ -96,13 +102,15 @@ class LayoutSolution:
     tac: float
 
 
-def _normal(path) -> tuple:
-    """Drop empty blocks and branches (keeping one bypass in a split that still has two units' branches or
-    one unit's branch and the bypass), and turn a one-branch block of several units into units in series."""
+def _normal(path, bypass: bool = True) -> tuple:
+    """Drop empty blocks and branches (with ``bypass``, keeping one bypass in a split that still has two
+    units' branches or one unit's branch and the bypass; without, the emptied branch goes and the rest of
+    the split carries the whole flow), and turn a one-branch block of several units into units in series."""
     out = []
+    keep_bypass = bypass
     for block in path:
         full = [tuple(br) for br in block if br]
-        bypass = len(full) < len(block)
+        bypass = keep_bypass and len(full) < len(block)
         if not full:
             continue
         if len(full) == 1 and not bypass:
@@ -153,68 +161,157 @@ class _Model:
         for paths in (lay.hot, lay.cold):
             for path in paths:
                 self.members.append([x for block in path for br in block for x in br])
+        self._walk()
+        self.eq_matrix, self.eq_rhs = self._balances()
+
+    def _walk(self) -> None:
+        """Every temperature as c + M1·q + M2·(q / f_unit), once per layout: the walk along each stream
+        (a unit on a branch of fraction f changes the branch by q/(f·CP); after the mixer the stream has
+        changed by the block's total duty over CP).  Rows 0..4n−1 are the terminal temperatures (unit k's
+        hot in, hot out, cold in, cold out at rows 4k..4k+3; utility sides constant), then one row per
+        branch outlet.  ``on[side][x]`` is the fraction variable of the branch unit x sits on along its hot
+        (0) or cold (1) stream (−1: the whole stream); M2 is kept per side (a unit may sit on a branch of
+        both its streams)."""
+        p, n = self.p, self.n
+        rows_c, rows_1, rows_2, branch = [], [], [], []
+        slot: dict[int, tuple] = {}
+        self.on = np.full((2, n), -1)
+        fi = 0
+        for side, paths in (("hot", self.lay.hot), ("cold", self.lay.cold)):
+            sign, col = (-1.0, 0) if side == "hot" else (1.0, 2)
+            at = 0 if side == "hot" else 1
+            for s, path in enumerate(paths):
+                cp = (p.hot_cp if side == "hot" else p.cold_cp)[s]
+                c, m1 = float((p.hot_in if side == "hot" else p.cold_in)[s]), np.zeros(n)
+                for block in path:
+                    split = len(block) > 1
+                    for br in block:
+                        l1, l2 = m1.copy(), np.zeros(n)   # along the branch
+                        for x in br:
+                            if split:
+                                self.on[at, x] = self.n + fi
+                            inlet = (c, l1.copy(), l2.copy())
+                            (l2 if split else l1)[x] += sign / cp
+                            slot[(x, col)], slot[(x, col + 1)] = inlet, (c, l1.copy(), l2.copy())
+                            if split:   # a single unit's outlet is a mixed stream temperature
+                                branch.append(((side, s), (c, l1.copy(), l2.copy())))
+                        fi += split
+                    for x in (x for br in block for x in br):
+                        m1[x] += sign / cp
+        for k in range(n):
+            for col in range(4):
+                c, m1, m2 = slot.get((k, col), (self.const[k, col], np.zeros(n), np.zeros(n)))
+                rows_c.append(c)
+                rows_1.append(m1)
+                rows_2.append(m2)
+        self.branch_of = [b[0] for b in branch]
+        for _, (c, m1, m2) in branch:
+            rows_c.append(c)
+            rows_1.append(m1)
+            rows_2.append(m2)
+        self.c0 = np.array(rows_c)
+        self.m1 = np.array(rows_1).reshape(len(rows_c), n)
+        m2 = np.array(rows_2).reshape(len(rows_c), n)
+        hot_row = np.array([col < 2 for _ in range(n) for col in range(4)] + [side == "hot" for side, _ in self.branch_of])
+        self.m2 = (m2 * hot_row[:, None], m2 * ~hot_row[:, None])
+        # range rows: a hot branch outlet stays above its target, a cold one below
+        sign = np.array([1.0 if side == "hot" else -1.0 for side, _ in self.branch_of])
+        bound = np.array([p.hot_out[s] if side == "hot" else p.cold_out[s] for side, s in self.branch_of])
+        self.range_sign, self.range_bound = sign, bound
 
     def temperatures(self, z):
         """(n, 4) terminal temperatures (hot in, hot out, cold in, cold out) and the branch temperatures
         with their stream's (side, index), for the range constraints."""
-        p = self.p
-        q = z[:self.n] * self.scale
-        f = z[self.n:]
-        t = self.const.copy()
-        branch_t = []
-        fi = 0
-        for side, paths in (("hot", self.lay.hot), ("cold", self.lay.cold)):
-            sign, col = (-1.0, 0) if side == "hot" else (1.0, 2)
-            for s, path in enumerate(paths):
-                temp = (p.hot_in if side == "hot" else p.cold_in)[s]
-                cp = (p.hot_cp if side == "hot" else p.cold_cp)[s]
-                for block in path:
-                    if len(block) > 1:
-                        fs = f[fi:fi + len(block)]
-                        fi += len(block)
-                    else:
-                        fs = (1.0,)
-                    total = 0.0
-                    for br, fr in zip(block, fs):
-                        tt = temp
-                        for x in br:
-                            t2 = tt + sign * q[x] / (max(fr, 1e-9) * cp)
-                            t[x, col], t[x, col + 1] = tt, t2
-                            if len(block) > 1:   # a single unit's outlet is a mixed stream temperature
-                                branch_t.append((side, s, t2))
-                            tt = t2
-                            total += q[x]
-                    temp = temp + sign * total / cp
-        return t, branch_t
+        t, _, tb, _ = self._forward(z, False)
+        return t, [(side, s, float(v)) for (side, s), v in zip(self.branch_of, tb)]
 
-    def cost(self, z) -> float:
+    def _forward(self, z, grad: bool):
+        """The temperatures and, with ``grad``, their derivatives with respect to z: (t (n, 4), dt (n, 4,
+        len(z)), branch outlet temperatures, their derivatives)."""
+        n = self.n
+        q = z[:n] * self.scale
+        fs = []
+        for on in self.on:
+            f = np.ones(n)
+            split = on >= 0
+            f[split] = np.maximum(z[on[split]], 1e-9)
+            fs.append(f)
+        flat = self.c0 + self.m1 @ q + sum(m2 @ (q / f) for m2, f in zip(self.m2, fs))
+        t, tb = flat[:4 * n].reshape(n, 4), flat[4 * n:]
+        if not grad:
+            return t, None, tb, None
+        d = np.zeros((flat.size, z.size))
+        d[:, :n] = (self.m1 + sum(m2 / f for m2, f in zip(self.m2, fs))) * self.scale
+        for on, m2, f in zip(self.on, self.m2, fs):
+            for x in np.flatnonzero(on >= 0):
+                if z[on[x]] > 1e-9:
+                    d[:, on[x]] -= m2[:, x] * q[x] / f[x] ** 2
+        return t, d[:4 * n].reshape(n, 4, z.size), tb, d[4 * n:]
+
+    def _areas(self, z, grad: bool):
+        """Unit loads [kW], areas [m²] and, with ``grad``, the areas' derivatives with respect to z."""
         q = np.maximum(z[:self.n] * self.scale, 1e-12)
-        t, _ = self.temperatures(z)
+        t, dt, _, _ = self._forward(z, grad)
         a = np.maximum(t[:, 0] - t[:, 3], 1e-9)
         b = np.maximum(t[:, 1] - t[:, 2], 1e-9)
-        r = a / b
-        close = np.abs(r - 1.0) < 1e-6
-        lm = np.where(close, 0.5 * (a + b), (a - b) / np.log(np.where(close, 2.0, r)))
+        lm, ga, gb = _log_mean_and_gradient(a, b)
         area = q / (self.u * lm)
+        if not grad:
+            return q, area, None
+        da = np.where((t[:, 0] - t[:, 3] > 1e-9)[:, None], dt[:, 0] - dt[:, 3], 0.0)
+        db = np.where((t[:, 1] - t[:, 2] > 1e-9)[:, None], dt[:, 1] - dt[:, 2], 0.0)
+        dlm = ga[:, None] * da + gb[:, None] * db
+        dq = np.zeros((self.n, z.size))
+        dq[np.arange(self.n), np.arange(self.n)] = np.where(z[:self.n] * self.scale > 1e-12, self.scale, 0.0)
+        darea = area[:, None] * (dq / q[:, None] - dlm / lm[:, None])
+        return q, area, (dq, darea)
+
+    def cost(self, z) -> float:
+        q, area, _ = self._areas(z, False)
         return float((self.fixed + self.per_area * area ** self.expo).sum() + (self.price * q).sum())
 
-    def ineq(self, z) -> np.ndarray:
-        p = self.p
-        t, branch_t = self.temperatures(z)
-        rng = [(t2 - p.hot_out[s]) if side == "hot" else (p.cold_out[s] - t2) for side, s, t2 in branch_t]
-        return np.concatenate([t[:, 0] - t[:, 3] - self.need, t[:, 1] - t[:, 2] - self.need, rng])
+    def cost_gradient(self, z) -> np.ndarray:
+        """∂cost/∂z, exact (the derivative of :meth:`cost`)."""
+        q, area, (dq, darea) = self._areas(z, True)
+        slope = self.per_area * self.expo * np.maximum(area, 1e-300) ** (self.expo - 1.0)
+        return slope @ darea + self.price @ dq
 
-    def eq(self, z) -> np.ndarray:
-        p = self.p
-        q = z[:self.n] * self.scale
-        duty = np.concatenate([p.hot_duty, p.cold_duty])
-        out = [(q[m].sum() - d) / self.scale for m, d in zip(self.members, duty)]
+    def ineq(self, z) -> np.ndarray:
+        t, _, tb, _ = self._forward(z, False)
+        return np.concatenate([t[:, 0] - t[:, 3] - self.need, t[:, 1] - t[:, 2] - self.need,
+                               self.range_sign * (tb - self.range_bound)])
+
+    def ineq_jacobian(self, z) -> np.ndarray:
+        """∂ineq/∂z, exact (rows as :meth:`ineq`)."""
+        _, dt, _, db = self._forward(z, True)
+        return np.vstack([dt[:, 0] - dt[:, 3], dt[:, 1] - dt[:, 2], self.range_sign[:, None] * db])
+
+    def _balances(self) -> tuple[np.ndarray, np.ndarray]:
+        """(E, e) of the linear equalities E·z = e: each stream's duty (scaled), each split's fractions
+        adding up to 1."""
+        p, size = self.p, self.n + self.nf
+        rows, rhs = [], []
+        for m, d in zip(self.members, np.concatenate([p.hot_duty, p.cold_duty])):
+            r = np.zeros(size)
+            r[m] = 1.0
+            rows.append(r)
+            rhs.append(d / self.scale)
         fi = 0
         for sd, s, b in self.splits:
             k = len((self.lay.hot if sd == "hot" else self.lay.cold)[s][b])
-            out.append(z[self.n + fi:self.n + fi + k].sum() - 1.0)
+            r = np.zeros(size)
+            r[self.n + fi:self.n + fi + k] = 1.0
+            rows.append(r)
+            rhs.append(1.0)
             fi += k
-        return np.array(out)
+        return np.array(rows).reshape(len(rows), size), np.array(rhs)
+
+    def eq(self, z) -> np.ndarray:
+        return self.eq_matrix @ z - self.eq_rhs
+
+    def eq_jacobian(self, z) -> np.ndarray:
+        """∂eq/∂z (constant: the balances and the fraction sums are linear)."""
+        return self.eq_matrix
 
 
 def solve_layout(p: TacProblem, lay: Layout, starts, *, max_iter: int = 200) -> LayoutSolution | None:
@@ -251,12 +348,16 @@ def solve_layout(p: TacProblem, lay: Layout, starts, *, max_iter: int = 200) -> 
     n, s = m.n, m.scale
     bounds = [(1e-5, 4.0)] * n + [(1e-3, 1.0)] * m.nf
     lo, hi = np.array([b[0] for b in bounds]), np.array([b[1] for b in bounds])
-    cons = [{"type": "ineq", "fun": m.ineq}, {"type": "eq", "fun": m.eq}]
+    cons = [{"type": "ineq", "fun": m.ineq, "jac": m.ineq_jacobian}, {"type": "eq", "fun": m.eq, "jac": m.eq_jacobian}]
 
     def violation(z):
         g = np.minimum(m.ineq(z), 0.0)
         e = m.eq(z)
         return float(g @ g / 100.0 + 100.0 * e @ e)
+
+    def violation_gradient(z):
+        g = np.minimum(m.ineq(z), 0.0)
+        return g @ m.ineq_jacobian(z) / 50.0 + 200.0 * m.eq(z) @ m.eq_jacobian(z)
 
     def feasible(z):
         return np.min(m.ineq(z), initial=0.0) >= -1e-7 and np.max(np.abs(m.eq(z)), initial=0.0) <= 1e-8
@@ -267,10 +368,11 @@ def solve_layout(p: TacProblem, lay: Layout, starts, *, max_iter: int = 200) -> 
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
             if violation(z) > 1e-12:
-                z = minimize(violation, z, method="L-BFGS-B", bounds=bounds, options={"maxiter": 500}).x
+                z = minimize(violation, z, jac=violation_gradient, method="L-BFGS-B", bounds=bounds,
+                             options={"maxiter": 500}).x
             f0 = max(m.cost(z), 1.0)
-            res = minimize(lambda v, f0=f0: m.cost(v) / f0, z, method="SLSQP", bounds=bounds, constraints=cons,
-                           options={"maxiter": max_iter, "ftol": 1e-12})
+            res = minimize(lambda v, f0=f0: m.cost(v) / f0, z, jac=lambda v, f0=f0: m.cost_gradient(v) / f0,
+                           method="SLSQP", bounds=bounds, constraints=cons, options={"maxiter": max_iter, "ftol": 1e-12})
         y = np.clip(res.x, lo, hi)
         for v in (y, z):   # the optimum, else the (feasible) start
             if v is None or not feasible(v):
@@ -388,8 +490,8 @@ def _put(path, x, place) -> tuple:
     return _normal(path)
 
 
-def _take(path, x) -> tuple:
-    return _normal([[[y for y in br if y != x] for br in block] for block in path])
+def _take(path, x, bypass: bool = True) -> tuple:
+    return _normal([[[y for y in br if y != x] for br in block] for block in path], bypass)
 
 
 def _sides(key) -> list[tuple[str, int]]:
@@ -399,34 +501,66 @@ def _sides(key) -> list[tuple[str, int]]:
 
 
 def layout_moves(lay: Layout) -> list[Layout]:
-    """Every layout one move away: a unit moved to another place on one of its streams, or removed."""
+    """Every layout one move away: a unit moved to another place on one of its streams, or removed.  A unit
+    that leaves a branch of its own empty leaves either a bypass there or a split without that branch (a
+    split of two becomes the other branch's units in series)."""
     out = []
     for x, key in enumerate(lay.units):
         for side, s in _sides(key):
             paths = list(lay.hot if side == "hot" else lay.cold)
-            rest = _take(paths[s], x)
-            for place in _places(rest):
-                new = list(paths)
-                new[s] = _put(rest, x, place)
-                out.append(Layout(lay.units, tuple(new), lay.cold) if side == "hot" else
-                           Layout(lay.units, lay.hot, tuple(new)))
+            for rest in dict.fromkeys((_take(paths[s], x), _take(paths[s], x, bypass=False))):
+                for place in _places(rest):
+                    new = list(paths)
+                    new[s] = _put(rest, x, place)
+                    out.append(Layout(lay.units, tuple(new), lay.cold) if side == "hot" else
+                               Layout(lay.units, lay.hot, tuple(new)))
         keep = [k for k in range(len(lay.units)) if k != x]
         ren = {k: n for n, k in enumerate(keep)}
 
-        def drop(paths, x=x, ren=ren):
-            return tuple(_normal([[[ren[y] for y in br if y != x] for br in block] for block in path])
+        def drop(paths, bypass, x=x, ren=ren):
+            return tuple(_normal([[[ren[y] for y in br if y != x] for br in block] for block in path], bypass)
                          for path in paths)
-        out.append(Layout(tuple(lay.units[k] for k in keep), drop(lay.hot), drop(lay.cold)))
+        for bypass in (True, False):
+            removed = Layout(tuple(lay.units[k] for k in keep), drop(lay.hot, bypass), drop(lay.cold, bypass))
+            if bypass or removed != out[-1]:
+                out.append(removed)
     return out
 
 
-def _start(lay: Layout, parent: LayoutSolution) -> tuple[np.ndarray, np.ndarray]:
-    """A starting point for a neighbour: the parent's duties (re-indexed by unit), and each branch's share
-    of its split's duty as its fraction (a bypass one tenth), as with isothermal mixing."""
+def layout_additions(p: TacProblem, lay: Layout) -> list[Layout]:
+    """Every layout with one unit more: an exchanger of a pair that may match (:meth:`TacProblem.can_match`)
+    or a heater or cooler of any utility level, at every place on its streams (:func:`_places`).  The new
+    unit is the last of ``units``."""
+    n = len(lay.units)
+    out = []
+    for i in range(len(p.hot_names)):
+        for j in range(len(p.cold_names)):
+            if not p.can_match(i, j):
+                continue
+            for ph in _places(lay.hot[i]):
+                for pc in _places(lay.cold[j]):
+                    hot, cold = list(lay.hot), list(lay.cold)
+                    hot[i], cold[j] = _put(lay.hot[i], n, ph), _put(lay.cold[j], n, pc)
+                    out.append(Layout(lay.units + (("x", i, j),), tuple(hot), tuple(cold)))
+    for kind, paths, levels in (("cool", lay.hot, p.cool_levels), ("heat", lay.cold, p.heat_levels)):
+        for s, path in enumerate(paths):
+            for level in range(len(levels)):
+                for place in _places(path):
+                    new = list(paths)
+                    new[s] = _put(path, n, place)
+                    out.append(Layout(lay.units + ((kind, s, level),), tuple(new), lay.cold) if kind == "cool"
+                               else Layout(lay.units + ((kind, s, level),), lay.hot, tuple(new)))
+    return out
+
+
+def _start(lay: Layout, parent: LayoutSolution, new_duty: float = 0.1) -> tuple[np.ndarray, np.ndarray]:
+    """A starting point for a neighbour: the parent's duties (re-indexed by unit; ``new_duty`` [kW] for a
+    unit the parent lacks), and each branch's share of its split's duty as its fraction (a bypass one
+    tenth), as with isothermal mixing."""
     old = {}
     for k, key in enumerate(parent.layout.units):
         old.setdefault(key, []).append(parent.duties[k])
-    duties = np.array([old[key].pop(0) if old.get(key) else 0.1 for key in lay.units])
+    duties = np.array([old[key].pop(0) if old.get(key) else new_duty for key in lay.units])
     fr = []
     for sd, s, b in lay.splits():
         share = np.array([sum(duties[x] for x in br) for br in (lay.hot if sd == "hot" else lay.cold)[s][b]])
@@ -435,53 +569,97 @@ def _start(lay: Layout, parent: LayoutSolution) -> tuple[np.ndarray, np.ndarray]
     return duties, np.array(fr)
 
 
+def _usable(lay: Layout) -> bool:
+    """A layout the search may keep: some unit, representable, with stages (see :func:`restructure`)."""
+    return bool(lay.units) and representable(lay) and layout_stages(lay) is not None
+
+
 def restructure(p: TacProblem, sol: LayoutSolution, deadline: float, *, seed=None,
                 patience: int = RESTRUCTURE_PATIENCE, stats: dict | None = None) -> LayoutSolution:
-    """Local search over layouts from ``sol``: first improvement over the moves of :func:`layout_moves` in random
-    order (``seed``), each layout solved from the parent's duties with duty-share, equal and random
-    fractions, until no move improves, ``patience`` moves in a row fail, or
-    ``deadline`` (a ``time.monotonic`` reading [s]) would pass before another refinement as long as the
-    longest so far ends.  Returns the cheapest solution found; ``stats``,
-    when given, receives the number of layouts refined ("layouts") and whether the deadline stopped the
-    search ("timed_out").  Layouts a :class:`heatloom.network.structure.Network` cannot carry are skipped:
-    a split with a bypass or with units in series on a branch (:func:`representable`), or units that cannot
-    be put in one order along every stream with each split's branches sharing a stage (:func:`layout_stages`
-    gives None).
+    """Iterated local search over layouts from ``sol`` until ``deadline`` (a ``time.monotonic`` reading
+    [s]); returns the cheapest solution found.
+
+    Descent: first improvement over the moves of :func:`layout_moves` in random order (``seed``), each
+    layout solved from the parent's duties with duty-share, equal and random fractions, until no move
+    improves or ``patience`` moves in a row fail.  Kick (while time is left): two random moves from the
+    best layout, either of which may add a unit (:func:`layout_additions`, started at
+    :data:`RESTRUCTURE_NEW_SHARE` of the smaller duty of its streams), then a descent; its result replaces
+    the best when cheaper.  No refinement is started that would end past the deadline if it took as long
+    as the longest so far.  ``stats``, when given, receives the number of layouts refined ("layouts"),
+    of kicks ("kicks") and whether the deadline stopped the search ("timed_out").  Layouts a
+    :class:`heatloom.network.structure.Network` cannot carry are skipped: a split with a bypass or with
+    units in series on a branch (:func:`representable`), or units that cannot be put in one order along
+    every stream with each split's branches sharing a stage (:func:`layout_stages` gives None).
     """
     stats = {} if stats is None else stats
-    stats.update(layouts=0, timed_out=False)
+    stats.update(layouts=0, kicks=0, timed_out=False)
     rng = np.random.default_rng(seed)
-    seen = {sol.layout.key()}
-    best = sol
-    longest = 0.0   # the longest refinement so far [s]: none is started that would end past the deadline
-    improved = True
-    while improved and time.monotonic() < deadline:
-        improved = False
-        moves = layout_moves(best.layout)
-        fails = 0
-        for idx in rng.permutation(len(moves)):
-            if time.monotonic() + longest > deadline:   # no room for another refinement as long as the longest
-                stats["timed_out"] = True
-                break
-            if fails >= patience:
-                break
-            lay = moves[idx]
-            if lay.key() in seen or not lay.units or not representable(lay) or layout_stages(lay) is None:
-                continue
-            seen.add(lay.key())
-            d0, f0 = _start(lay, best)
+    solved: dict = {sol.layout.key(): sol}
+    longest = [0.0]   # the longest refinement so far [s]: none is started that would end past the deadline
+
+    def room() -> bool:
+        if time.monotonic() + longest[0] > deadline:
+            stats["timed_out"] = True
+            return False
+        return True
+
+    def solve(lay: Layout, parent: LayoutSolution) -> LayoutSolution | None:
+        key = lay.key()
+        if key not in solved:
+            new = RESTRUCTURE_NEW_SHARE * min(_stream_duties(p, lay.units[-1]))
+            d0, f0 = _start(lay, parent, new)
             f1 = np.array([rng.uniform(0.2, 0.8) for _ in f0])
             stats["layouts"] += 1
             began = time.monotonic()
-            cand = solve_layout(p, lay, [(d0, f0), (d0, np.full(len(f0), 0.5)),
-                                         (d0 * rng.uniform(0.7, 1.3, len(d0)), f1)])
-            longest = max(longest, time.monotonic() - began)
-            if cand is not None and cand.tac < best.tac * (1 - 1e-7):
-                best = cand
-                improved = True
-                break
-            fails += 1
+            solved[key] = solve_layout(p, lay, [(d0, f0), (d0, np.full(len(f0), 0.5)),
+                                                (d0 * rng.uniform(0.7, 1.3, len(d0)), f1)])
+            longest[0] = max(longest[0], time.monotonic() - began)
+        return solved[key]
+
+    def descent(cur: LayoutSolution) -> LayoutSolution:
+        improved = True
+        while improved and room():
+            improved = False
+            moves = layout_moves(cur.layout)
+            fails = 0
+            for idx in rng.permutation(len(moves)):
+                if fails >= patience or not room():
+                    break
+                lay = moves[idx]
+                if lay.key() in solved or not _usable(lay):
+                    continue
+                cand = solve(lay, cur)
+                if cand is not None and cand.tac < cur.tac * (1 - 1e-7):
+                    cur, improved = cand, True
+                    break
+                fails += 1
+        return cur
+
+    best = descent(sol)
+    while room():
+        stats["kicks"] += 1
+        cur = best
+        for _ in range(2):
+            options = layout_moves(cur.layout) + layout_additions(p, cur.layout)
+            for idx in rng.permutation(len(options))[:20]:
+                lay = options[idx]
+                if not _usable(lay) or not room():
+                    continue
+                cand = solve(lay, cur)
+                if cand is not None:
+                    cur = cand
+                    break
+        cand = descent(cur)
+        if cand.tac < best.tac * (1 - 1e-7):
+            best = cand
     return best
+
+
+def _stream_duties(p: TacProblem, key) -> tuple[float, ...]:
+    """Duties [kW] of the process streams of a layout unit."""
+    if key[0] == "x":
+        return float(p.hot_duty[key[1]]), float(p.cold_duty[key[2]])
+    return (float((p.hot_duty if key[0] == "cool" else p.cold_duty)[key[1]]),)
 
 
 def network_from_layout(p: TacProblem, sol: LayoutSolution, streams, utilities, costs: CostSettings, *,
@@ -564,7 +742,8 @@ def beyond_stagewise(p: TacProblem, sol: TopologySolution, streams, utilities, c
         return None
     stats: dict = {}
     best = restructure(p, start, budget.deadline, seed=int(seed), stats=stats)
-    done = f"{stats['layouts']} layouts refined" + (", stopped by the time limit" if stats["timed_out"] else "")
+    done = f"{stats['layouts']} layouts refined, {stats['kicks']} kicks" + (
+        ", stopped by the time limit" if stats["timed_out"] else "")
     if not best.tac < sol.tac * (1 - 1e-6):
         notes.append("search beyond the stagewise form (units moved anywhere along their streams, utility units "
                      f"on split branches): nothing cheaper found ({done})")

@@ -232,3 +232,65 @@ def test_design_with_restructure_is_sound_and_never_dearer():
     h = {"H": 1.0, "C": 1.0, "water": 2.0, "steam": 3.0}
     assert net.total_annual_cost == pytest.approx(recomputed_tac(net, h, {"water": 10.0, "steam": 120.0}, laws),
                                                   rel=1e-9)
+
+
+def _yee_grossmann_stagewise_layout():
+    """The layout of the no-split stagewise network of Wang et al. 2017 (see above) and its problem."""
+    data, streams, utilities, costs, h, price = yee_grossmann()
+    p = make_problem(streams, utilities, costs, 1.0)
+    top = Topology(4, frozenset({(0, 0, 0), (0, 1, 1), (1, 0, 1), (0, 0, 2), (1, 0, 3)}), frozenset(),
+                   frozenset({(1, 0)}))
+    sol = solve_topology(p, top, [{(0, 0, 0): 165.0, (0, 1, 1): 2400.0, (1, 0, 1): 1120.0, (0, 0, 2): 735.0,
+                                   (1, 0, 3): 280.0}])
+    lay, duties, fractions = layout_from_solution(p, sol)
+    return p, lay, duties
+
+
+def test_layout_gradients_agree_with_finite_differences():
+    # the analytic derivatives of the layout NLP (cost, approaches and branch ranges, balances) against
+    # scipy's forward differences, an independent computation, on layouts one move or one added unit away
+    # from a published network, among them units on split branches of both their streams
+    import numpy as np
+    from scipy.optimize import approx_fprime
+
+    from heatloom.network.tac.branches import _Model, layout_additions
+
+    p, lay, duties = _yee_grossmann_stagewise_layout()
+    layouts = [lay] + layout_moves(lay)
+    layouts += [a for m in layout_moves(lay)[:12] for a in layout_additions(p, m)[::9]]
+    both = [m for m in layouts if any(all(any(x in br for block in path if len(block) > 1 for br in block)
+                                            for path in (m.hot[k[1]], m.cold[k[2]]))
+                                        for x, k in enumerate(m.units) if k[0] == "x")]
+    assert both   # some exchanger sits on a split branch of both its streams
+    rng = np.random.default_rng(3)
+    checked = 0
+    for m in layouts:
+        model = _Model(p, m)
+        z = np.concatenate([rng.uniform(0.02, 0.3, model.n), rng.uniform(0.2, 0.8, model.nf)])
+        t, _ = model.temperatures(z)
+        if np.nanmin(np.concatenate([t[:, 0] - t[:, 3], t[:, 1] - t[:, 2]])) < 1.0:
+            continue   # the log mean's clipping at a crossed unit: no smooth point to compare
+        step = 1e-7
+        g = model.cost_gradient(z)
+        assert g == pytest.approx(approx_fprime(z, model.cost, step), rel=1e-4, abs=1e-3 * np.abs(g).max())
+        jac = model.ineq_jacobian(z)
+        fd = np.array([approx_fprime(z, lambda v, i=i, m=model: m.ineq(v)[i], step) for i in range(jac.shape[0])])
+        assert jac == pytest.approx(fd, rel=1e-4, abs=1e-4 * max(1.0, np.abs(jac).max()))
+        eq = model.eq_jacobian(z)
+        fd = np.array([approx_fprime(z, lambda v, i=i, m=model: m.eq(v)[i], step) for i in range(eq.shape[0])])
+        assert eq == pytest.approx(fd, abs=1e-6)
+        checked += 1
+    assert checked > 20
+
+
+def test_an_added_unit_is_removed_by_one_move():
+    # every layout of layout_additions has one unit more, and removing that unit (a move) gives the layout back
+    from heatloom.network.tac.branches import layout_additions
+
+    p, lay, _ = _yee_grossmann_stagewise_layout()
+    additions = layout_additions(p, lay)
+    kinds = {a.units[-1][0] for a in additions}
+    assert kinds == {"x", "cool", "heat"}
+    for a in additions:
+        assert a.units[:-1] == lay.units
+        assert lay.key() in {m.key() for m in layout_moves(a) if len(m.units) == len(lay.units)}
