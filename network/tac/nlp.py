@@ -517,8 +517,8 @@ FINAL_POLISH_STARTS = 4
 """Extra starts of that last polish: the same loads, flow fractions moved at random [-]."""
 
 FINAL_POLISH_STREAMS = 20
-"""Largest problem (process streams) given that last polish: its finite-difference gradients grow with the
-number of units [-]."""
+"""Largest problem (process streams) given that last polish: its dense NLP grows with the number of units
+and branches [-]."""
 
 
 def polish_cheapest(p: TacProblem, ranked: list, deadline: float) -> list:
@@ -563,7 +563,7 @@ def polish_splits(p: TacProblem, sol: TopologySolution, *, max_iter: int = 100, 
     The branches of a split stream may then leave a stage at different temperatures; the mixed stage
     outlet is unchanged (:math:`\\sum_b f_b(t_{in} - q_b/(f_b CP)) = t_{in} - \\sum_b q_b/CP`), so only the
     branch outlet temperatures, and with them the branch units' approaches and areas, depend on the
-    fractions.  SLSQP with finite-difference gradients over loads and fractions, the least approach (EMAT, or
+    fractions.  SLSQP with exact gradients over loads and fractions, the least approach (EMAT, or
     the sum of the sides' ΔTmin contributions) at both ends of every
     unit.  Returns ``sol`` itself when it has no split or nothing cheaper is found, and for streams of
     several segments (isothermal mixing only there).
@@ -628,6 +628,50 @@ def polish_splits(p: TacProblem, sol: TopologySolution, *, max_iter: int = 100, 
         sums = [z[n + np.array(m)].sum() - 1.0 for m in members]
         return np.concatenate([model.eq.m @ x + model.eq.c, sums])
 
+    nb = len(branches)
+    wide = {name: np.hstack([getattr(model, name).m * s, np.zeros((len(model.keys), nb))])
+            for name in ("duty", "hot_in", "hot_out", "cold_in", "cold_out")}
+    branch_rows = [(b, rows[key], side, p.hot_cp[key[0]] if side == "hot" else p.cold_cp[key[1]])
+                   for b, (side, key) in enumerate(branches)]
+
+    def derivatives(z):
+        """The duties and temperatures and their derivatives with respect to z (exact: the branch outlets
+        t_in ∓ q/(f·CP) are the only nonlinear terms)."""
+        x, fr = unpack(z)
+        q, hi, ho, ci, co = _branch_temperatures(p, model, x, fr)
+        dq, dhi, dci = wide["duty"], wide["hot_in"], wide["cold_in"]
+        dho, dco = wide["hot_out"].copy(), wide["cold_out"].copy()
+        for b, r, side, cp in branch_rows:
+            f = z[n + b]
+            if side == "hot":
+                dho[r] = dhi[r] - dq[r] / (f * cp)
+                dho[r, n + b] += q[r] / (f * f * cp)
+            else:
+                dco[r] = dci[r] + dq[r] / (f * cp)
+                dco[r, n + b] -= q[r] / (f * f * cp)
+        return (q, hi, ho, ci, co), (dq, dhi, dho, dci, dco)
+
+    def fun_gradient(z):
+        (q, hi, ho, ci, co), (dq, dhi, dho, dci, dco) = derivatives(z)
+        a, b = hi - co, ho - ci
+        lm, ga, gb = _log_mean_and_gradient(np.maximum(a, 1e-9), np.maximum(b, 1e-9))
+        qq = np.maximum(q, 1e-12)
+        area = qq / (model.u * lm)
+        dqq = np.where((q > 1e-12)[:, None], dq, 0.0)
+        dlm = ga[:, None] * np.where((a > 1e-9)[:, None], dhi - dco, 0.0) + \
+            gb[:, None] * np.where((b > 1e-9)[:, None], dho - dci, 0.0)
+        darea = area[:, None] * (dqq / qq[:, None] - dlm / lm[:, None])
+        slope = model.per_area * model.exponent * np.maximum(area, 1e-300) ** (model.exponent - 1.0)
+        return (slope @ darea + model.price @ dqq) / tac0
+
+    def ineq_jacobian(z):
+        _, (dq, dhi, dho, dci, dco) = derivatives(z)
+        lin = np.hstack([model.G * s, np.zeros((model.G.shape[0], nb))])
+        return np.vstack([dhi - dco, dho - dci, lin, dho[hot_rows], -dco[cold_rows]])
+
+    eq_jac = np.vstack([np.hstack([model.eq.m * s, np.zeros((model.eq.m.shape[0], nb))]),
+                        *[np.array([np.r_[np.zeros(n), np.isin(np.arange(nb), m).astype(float)]]) for m in members]])
+
     bounds = [(lo / s, hi / s) for lo, hi in model.bounds] + [(1e-3, 1.0)] * len(branches)
     lo_b, hi_b = [b[0] for b in bounds], [b[1] for b in bounds]
     guesses = [z0]
@@ -654,8 +698,9 @@ def polish_splits(p: TacProblem, sol: TopologySolution, *, max_iter: int = 100, 
             break
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
-            res = minimize(fun, z_start, method="SLSQP", bounds=bounds,
-                           constraints=[{"type": "ineq", "fun": ineq}, {"type": "eq", "fun": eq}],
+            res = minimize(fun, z_start, jac=fun_gradient, method="SLSQP", bounds=bounds,
+                           constraints=[{"type": "ineq", "fun": ineq, "jac": ineq_jacobian},
+                                        {"type": "eq", "fun": eq, "jac": lambda _z: eq_jac}],
                            options={"maxiter": max_iter, "ftol": 1e-12}, callback=stop_at_deadline)
         z = np.clip(res.x, lo_b, hi_b)
         if np.min(ineq(z), initial=0.0) < -1e-8 or np.max(np.abs(eq(z)), initial=0.0) > 1e-8:

@@ -635,6 +635,42 @@ def test_free_split_fractions_with_random_restarts_never_cost_more_and_keep_emat
     assert mixed == pytest.approx(h1[0].hot_in - sum(e.duty for e in h1) / cp["H1"], rel=1e-9)
 
 
+@pytest.mark.parametrize("matches", [
+    {(0, 0, 0), (0, 1, 0), (1, 0, 0), (0, 0, 1)},             # H1 split over C1 and C2, C1 over H1 and H2
+    {(0, 0, 0), (0, 1, 0), (0, 1, 2), (1, 0, 0), (1, 1, 0), (1, 1, 2)},   # both hot streams split, twice
+    {(0, 0, 2), (0, 1, 0), (0, 1, 2), (1, 0, 2), (1, 1, 2)},   # every stream split in the last stage
+])
+def test_free_split_fractions_use_exact_gradients(monkeypatch, matches):
+    # the cost and constraint gradients handed to SLSQP by polish_splits against central differences, an
+    # independent computation (step 1e-9 on loads scaled to the largest duty: units at the least load make
+    # the concave area cost sharply curved), at every feasible start;
+    # Roetzel, Luo & Chen 2020, Table 6.16 data and law
+    import heatloom.network.tac.nlp as nlp
+
+    data, streams = load_reference("synthesis_yee_grossmann_2h2c")
+    p = make_problem(streams, reference_utilities(data), cost_settings(data["cost_law"]), 1.0)
+    stages = 1 + max(k for _, _, k in matches)
+    top = Topology(stages, frozenset(matches), frozenset({(0, 0), (1, 0)}), frozenset({(0, 0), (1, 0)}))
+    iso = solve_topology(p, top, extra_vertex=True)
+    assert iso is not None
+    real, seen = nlp.minimize, []
+
+    def central(f, z, h=1e-9):
+        return np.array([(f(z + h * e) - f(z - h * e)) / (2 * h) for e in np.eye(z.size)]).T
+
+    def spy(fun, z, *, jac, constraints, **options):
+        ineq, eq = constraints
+        assert np.min(ineq["fun"](z)) >= -1e-9   # feasible starts only
+        for exact, f in ((jac, fun), (ineq["jac"], ineq["fun"]), (eq["jac"], eq["fun"])):
+            assert exact(z) == pytest.approx(central(f, z), rel=1e-4, abs=1e-5 * max(1.0, np.abs(exact(z)).max()))
+        seen.append(z)
+        return real(fun, z, jac=jac, constraints=constraints, **options)
+
+    monkeypatch.setattr(nlp, "minimize", spy)
+    nlp.polish_splits(p, iso, starts=2, seed=0)
+    assert seen
+
+
 def test_a_network_without_stagewise_form_gives_a_topology_without_its_smallest_conflicting_unit():
     # Roetzel, Luo & Chen 2020, Table 6.16 data (streams in °C).  Hand-made layout: C1 split into two
     # branches over the same C1 range, both heated by H1, one after the other along H1 (a branch carrying
