@@ -38,7 +38,7 @@ from ...equipment.sizing import log_mean
 from ...errors import InfeasibleError, InputError
 from ...model.costs import CostSettings, UnitKind
 from ..structure import Cooler, Exchanger, Heater, Network, check_network
-from .nlp import TopologySolution, _log_mean_and_gradient, unit_costs
+from .nlp import TopologySolution, log_mean_and_gradient, unit_costs
 from .problem import TacProblem
 from .starts import contracted_levels
 
@@ -254,7 +254,7 @@ class _Model:
         t, dt, _, _ = self._forward(z, grad)
         a = np.maximum(t[:, 0] - t[:, 3], 1e-9)
         b = np.maximum(t[:, 1] - t[:, 2], 1e-9)
-        lm, ga, gb = _log_mean_and_gradient(a, b)
+        lm, ga, gb = log_mean_and_gradient(a, b)
         area = q / (self.u * lm)
         if not grad:
             return q, area, None

@@ -50,7 +50,7 @@ from .problem import TacProblem, make_problem
 
 __all__ = ["TacProblem", "Topology", "TopologyModel", "TopologySolution", "make_problem", "solve_topology",
            "polish_splits", "polish_cheapest", "unit_costs", "FINAL_POLISH", "FINAL_POLISH_STARTS",
-           "FINAL_POLISH_STREAMS"]
+           "FINAL_POLISH_STREAMS", "log_mean_and_gradient"]
 
 APPROACH_MARGIN = 0.0
 """Extra approach kept by the optimiser above EMAT [K]; none: solutions are projected back onto the
@@ -127,21 +127,22 @@ class TopologyModel:
         # stage temperatures as (const, coeff)
         th = {(i, 0): (p.hot_in[i], np.zeros(n)) for i in range(n_h)}
         tc = {(j, K): (p.cold_in[j], np.zeros(n)) for j in range(n_c)}
+        on_hot: dict[tuple[int, int], list[int]] = {}   # (hot stream, stage) → its matches' columns
+        on_cold: dict[tuple[int, int], list[int]] = {}
+        for idx, (i, j, k) in enumerate(self.matches):
+            on_hot.setdefault((i, k), []).append(idx)
+            on_cold.setdefault((j, k), []).append(idx)
         for k in range(K):
             for i in range(n_h):
                 c0, m0 = th[i, k]
                 m = m0.copy()
-                for idx, (ii, _, kk) in enumerate(self.matches):
-                    if ii == i and kk == k:
-                        m[idx] -= 1.0 / p.hot_cp[i]
+                m[on_hot.get((i, k), [])] -= 1.0 / p.hot_cp[i]
                 th[i, k + 1] = (c0, m)
         for k in range(K - 1, -1, -1):
             for j in range(n_c):
                 c0, m0 = tc[j, k + 1]
                 m = m0.copy()
-                for idx, (_, jj, kk) in enumerate(self.matches):
-                    if jj == j and kk == k:
-                        m[idx] += 1.0 / p.cold_cp[j]
+                m[on_cold.get((j, k), [])] += 1.0 / p.cold_cp[j]
                 tc[j, k] = (c0, m)
         self.th, self.tc = th, tc
         rows = []  # (kind, key, duty(c, m), hot_in, hot_out, cold_in, cold_out, U, law, price, least approach)
@@ -243,7 +244,7 @@ class TopologyModel:
         b = self.d2.c + self.d2.m @ x
         a = np.maximum(a, 1e-9)
         b = np.maximum(b, 1e-9)
-        lm, ga, gb = _log_mean_and_gradient(a, b)
+        lm, ga, gb = log_mean_and_gradient(a, b)
         qp = np.maximum(q, 1e-12)
         area = qp / (self.u * lm)
         cap = self.fixed + self.per_area * area ** self.exponent
@@ -279,7 +280,7 @@ class TopologyModel:
         return v
 
 
-def _log_mean_and_gradient(a: np.ndarray, b: np.ndarray):
+def log_mean_and_gradient(a: np.ndarray, b: np.ndarray):
     """Exact log mean of positive a, b and its partial derivatives (series where a ≈ b).
 
     .. math:: \\Delta T_{lm} = \\frac{a - b}{\\ln(a/b)}, \\qquad
@@ -604,7 +605,7 @@ def polish_splits(p: TacProblem, sol: TopologySolution, *, max_iter: int = 100, 
     def fun(z):
         _, q, a, b = state(z)
         a, b = np.maximum(a, 1e-9), np.maximum(b, 1e-9)
-        lm = _log_mean_and_gradient(a, b)[0]
+        lm = log_mean_and_gradient(a, b)[0]
         area = np.maximum(q, 1e-12) / (model.u * lm)
         return float((model.fixed + model.per_area * area ** model.exponent).sum() + (model.price * q).sum()) / tac0
 
@@ -654,7 +655,7 @@ def polish_splits(p: TacProblem, sol: TopologySolution, *, max_iter: int = 100, 
     def fun_gradient(z):
         (q, hi, ho, ci, co), (dq, dhi, dho, dci, dco) = derivatives(z)
         a, b = hi - co, ho - ci
-        lm, ga, gb = _log_mean_and_gradient(np.maximum(a, 1e-9), np.maximum(b, 1e-9))
+        lm, ga, gb = log_mean_and_gradient(np.maximum(a, 1e-9), np.maximum(b, 1e-9))
         qq = np.maximum(q, 1e-12)
         area = qq / (model.u * lm)
         dqq = np.where((q > 1e-12)[:, None], dq, 0.0)

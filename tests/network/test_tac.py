@@ -21,7 +21,7 @@ from heatloom.model.costs import CostLaw, CostSettings
 from heatloom.network.design import design_mer
 from heatloom.network.solvers import Budget, SolveReport, SolveStatus
 from heatloom.network.structure import check_network
-from heatloom.network.tac.nlp import Topology, _log_mean_and_gradient, make_problem, solve_topology
+from heatloom.network.tac.nlp import Topology, log_mean_and_gradient, make_problem, solve_topology
 from heatloom.network.tac.search import design_tac
 from heatloom.network.tac.starts import stagewise_milp, topology_from_network
 
@@ -115,14 +115,14 @@ def test_log_mean_and_gradient_match_ht_and_finite_differences():
     # differences; includes a nearly balanced pair (series branch)
     a = np.array([30.0, 5.0, 5.0 + 1e-7, 100.0, 1.0])
     b = np.array([70.0, 5.0, 5.0, 1.0, 1.0001])
-    lm, ga, gb = _log_mean_and_gradient(a, b)
+    lm, ga, gb = log_mean_and_gradient(a, b)
     for ai, bi, li in zip(a, b, lm):
         # ht evaluates (a − b)/ln(a/b) directly and loses digits when a ≈ b (here 1e-9 relative): rel 1e-8
         assert li == pytest.approx(ht.LMTD(200.0, 100.0 + bi, 100.0, 200.0 - ai), rel=1e-8)
     h = 1e-6
 
     def lmtd(x, y):
-        return _log_mean_and_gradient(np.array([x]), np.array([y]))[0][0]
+        return log_mean_and_gradient(np.array([x]), np.array([y]))[0][0]
 
     for ai, bi, gai, gbi in zip(a, b, ga, gb):
         assert gai == pytest.approx((lmtd(ai + h, bi) - lmtd(ai - h, bi)) / (2 * h), rel=1e-5, abs=1e-7)
