@@ -174,7 +174,7 @@ class _Model:
         both its streams)."""
         p, n = self.p, self.n
         rows_c, rows_1, rows_2, branch = [], [], [], []
-        slot: dict[int, tuple] = {}
+        slot: dict[tuple[int, int], tuple] = {}
         self.on = np.full((2, n), -1)
         fi = 0
         for side, paths in (("hot", self.lay.hot), ("cold", self.lay.cold)):
