@@ -575,13 +575,15 @@ def _usable(lay: Layout) -> bool:
 
 
 def restructure(p: TacProblem, sol: LayoutSolution, deadline: float, *, seed=None,
-                patience: int = RESTRUCTURE_PATIENCE, stats: dict | None = None) -> LayoutSolution:
+                patience: int = RESTRUCTURE_PATIENCE, stats: dict | None = None,
+                kicks_until: float | None = None) -> LayoutSolution:
     """Iterated local search over layouts from ``sol`` until ``deadline`` (a ``time.monotonic`` reading
     [s]); returns the cheapest solution found.
 
     Descent: first improvement over the moves of :func:`layout_moves` in random order (``seed``), each
     layout solved from the parent's duties with duty-share, equal and random fractions, until no move
-    improves or ``patience`` moves in a row fail.  Kick (while time is left): two random moves from the
+    improves or ``patience`` moves in a row fail.  Kick (while time is left, and no kick begins after
+    ``kicks_until`` when given): two random moves from the
     best layout, either of which may add a unit (:func:`layout_additions`, started at
     :data:`RESTRUCTURE_NEW_SHARE` of the smaller duty of its streams), then a descent; its result replaces
     the best when cheaper.  No refinement is started that would end past the deadline if it took as long
@@ -636,7 +638,7 @@ def restructure(p: TacProblem, sol: LayoutSolution, deadline: float, *, seed=Non
         return cur
 
     best = descent(sol)
-    while room():
+    while room() and (kicks_until is None or time.monotonic() < kicks_until):
         stats["kicks"] += 1
         cur = best
         for _ in range(2):
@@ -732,7 +734,8 @@ def beyond_stagewise(p: TacProblem, sol: TopologySolution, streams, utilities, c
         As given to :func:`heatloom.network.tac.search.design_tac`.
     notes : list of str
     budget : heatloom.network.solvers.Budget
-        Its deadline ends the search [s, ``time.monotonic`` clock]; its reports go to the network.
+        Its deadline ends the search [s, ``time.monotonic`` clock], and no kick begins after
+        :data:`RESTRUCTURE_SHARE` of its total from the search's start; its reports go to the network.
     seed : int
         Seed of the order of the moves [-].
     """
@@ -741,7 +744,9 @@ def beyond_stagewise(p: TacProblem, sol: TopologySolution, streams, utilities, c
     if start is None:
         return None
     stats: dict = {}
-    best = restructure(p, start, budget.deadline, seed=int(seed), stats=stats)
+    # the kicks keep to the search's share of the time limit when the stagewise search ended early
+    best = restructure(p, start, budget.deadline, seed=int(seed), stats=stats,
+                       kicks_until=time.monotonic() + RESTRUCTURE_SHARE * budget.total)
     done = f"{stats['layouts']} layouts refined, {stats['kicks']} kicks" + (
         ", stopped by the time limit" if stats["timed_out"] else "")
     if not best.tac < sol.tac * (1 - 1e-6):

@@ -294,3 +294,20 @@ def test_an_added_unit_is_removed_by_one_move():
     for a in additions:
         assert a.units[:-1] == lay.units
         assert lay.key() in {m.key() for m in layout_moves(a) if len(m.units) == len(lay.units)}
+
+
+def test_no_kick_begins_after_its_share():
+    # the search beyond the stagewise form descends first; kicks only begin before `kicks_until`, so a run
+    # whose stagewise search ended early does not spend the rest of the time limit kicking
+    import time
+
+    from heatloom.network.tac.branches import restructure
+
+    p, lay, duties = _yee_grossmann_stagewise_layout()
+    start = solve_layout(p, lay, [(duties, [])])
+    stats: dict = {}
+    best = restructure(p, start, time.monotonic() + 60.0, seed=0, stats=stats, kicks_until=time.monotonic())
+    assert stats["kicks"] == 0 and stats["layouts"] > 0
+    # the descent alone reaches the split cooler, one move away: below the best published network without
+    # splits (79,233, Wang et al. 2017 as listed by Roetzel, Luo & Chen 2020, ch. 6) by more than 400
+    assert start.tac == pytest.approx(79233.0, abs=1.0) and best.tac < 79233.0 - 400.0
