@@ -205,13 +205,7 @@ def test_cooler_beside_an_exchanger_beats_the_best_published_network_without_spl
 
 
 def test_the_move_to_the_split_cooler_is_one_move_from_the_stagewise_network():
-    data, streams, utilities, costs, h, price = yee_grossmann()
-    p = make_problem(streams, utilities, costs, 1.0)
-    top = Topology(4, frozenset({(0, 0, 0), (0, 1, 1), (1, 0, 1), (0, 0, 2), (1, 0, 3)}), frozenset(),
-                   frozenset({(1, 0)}))
-    sol = solve_topology(p, top, [{(0, 0, 0): 165.0, (0, 1, 1): 2400.0, (1, 0, 1): 1120.0, (0, 0, 2): 735.0,
-                                   (1, 0, 3): 280.0}])
-    lay, duties, fractions = layout_from_solution(p, sol)
+    p, lay, _ = _yee_grossmann_stagewise_layout()
     x5, cooler = 4, 5   # H2's last exchanger and its cooler in the layout of the stagewise network
     assert lay.units[x5] == ("x", 1, 0) and lay.units[cooler] == ("cool", 1, 0)
     beside = Layout(lay.units, (lay.hot[0], (lay.hot[1][0], ((x5,), (cooler,)))), lay.cold)
