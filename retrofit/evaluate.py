@@ -130,17 +130,12 @@ class Evaluation:
         order of split units, :func:`heatloom.network.streamorder.unordered_streams`): the table reads back
         into the same network.
         """
-        drawn = self.simulation.network.units
-        frame = self.network.to_frame().set_index("unit").loc[[u.name for u in drawn]].reset_index()
-
-        def label(order):
-            return None if order is None else "/".join(map(str, order))
-
-        for side in ("hot", "cold"):
-            frame[f"{side}_order"] = [getattr(u, f"{side}_position") for u in drawn]
-            frame[f"{side}_branch"] = [getattr(u, f"{side}_branch") for u in drawn]
-            frame[f"{side}_branch_order"] = [label(getattr(u, f"{side}_branch_order")) for u in drawn]
-        return frame.astype({"hot_order": "Int64", "cold_order": "Int64"})
+        drawn = self.simulation.network.to_frame().set_index("unit")   # the network table as drawn
+        frame = self.network.to_frame().set_index("unit").loc[drawn.index]
+        for column in ("hot_order", "cold_order", "hot_branch", "hot_branch_order", "cold_branch",
+                       "cold_branch_order"):
+            frame[column] = drawn[column] if column in drawn else None
+        return frame.reset_index().astype({"hot_order": "Int64", "cold_order": "Int64"})
 
     def to_dict(self) -> dict:
         return {"ok": self.ok, "failures": list(self.failures), "temperature_crosses": list(self.crosses),
