@@ -520,10 +520,8 @@ def layout_moves(lay: Layout) -> list[Layout]:
         def drop(paths, bypass, x=x, ren=ren):
             return tuple(_normal([[[ren[y] for y in br if y != x] for br in block] for block in path], bypass)
                          for path in paths)
-        for bypass in (True, False):
-            removed = Layout(tuple(lay.units[k] for k in keep), drop(lay.hot, bypass), drop(lay.cold, bypass))
-            if bypass or removed != out[-1]:
-                out.append(removed)
+        out += dict.fromkeys(Layout(tuple(lay.units[k] for k in keep), drop(lay.hot, bypass), drop(lay.cold, bypass))
+                             for bypass in (True, False))
     return out
 
 
