@@ -39,7 +39,7 @@ Su, J.L., Motard, R.L. (1984) Evolutionary synthesis of heat-exchanger networks.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, replace
 
 from ..errors import InputError
@@ -314,7 +314,8 @@ def evolve(network: Network, streams: StreamTable, utilities: Sequence[Utility] 
            dt_min: float | None = None, *, min_duty: float | None = None, min_area: float | None = None,
            break_loops: bool = False, costs: CostSettings | None = None,
            default_film_coefficient: float | None = None, contributions: bool = True,
-           max_steps: int = 100, exchanger_type=None, geometry_options=None) -> Evolution:
+           max_steps: int = 100, exchanger_type=None, geometry_options=None,
+           required: Iterable[tuple[str, str]] = ()) -> Evolution:
     """Remove the units of a network below a duty or an area, breaking loops and relaxing paths.
 
     Units are taken smallest duty first.  For each, every heat-load loop and every utility path through it
@@ -353,6 +354,9 @@ def evolve(network: Network, streams: StreamTable, utilities: Sequence[Utility] 
     exchanger_type, geometry_options : optional
         Size the evolved units as this kind, as the design did (:func:`heatloom.network.sizing.size_network`);
         counter-current when omitted.
+    required : iterable of (str, str), optional
+        (hot, cold) name pairs the design was required to match: a step that would leave one of them
+        without a unit is not taken (the unit is kept, and the notes say why).
 
     Returns
     -------
@@ -415,6 +419,12 @@ def evolve(network: Network, streams: StreamTable, utilities: Sequence[Utility] 
         live = state.live()
         return {k: x.area for k, (_, x) in zip(live, unit_labels(current))}
 
+    required = {tuple(pair) for pair in required} & {state.units[k].sides for k in state.live()}
+
+    def unmatched(duties: dict[str, float]) -> list[tuple[str, str]]:
+        """Required pairs with no unit left at these duties."""
+        return sorted(required - {state.units[k].sides for k in state.live(duties)})
+
     current = sized(state.duties)
     steps: list[EvolutionStep] = []
     notes: list[str] = []
@@ -440,6 +450,9 @@ def evolve(network: Network, streams: StreamTable, utilities: Sequence[Utility] 
             break
         _, label, reason = aims[0]
         best, why = _removal(state, label, violations, violating)
+        if best is not None and unmatched(best[0]):
+            best, why = None, "it would leave the required match " + ", ".join(
+                f"{h}:{c}" for h, c in unmatched(best[0])) + " without a unit"
         if best is None:
             kept.add(label)
             notes.append(f"{_describe(label, state.units[label], state.duties[label])} kept ({reason}): {why}")

@@ -7,9 +7,11 @@ import re
 from pathlib import Path
 
 import ht
+import pytest
 
 from heatloom.model import Stream, StreamTable, Utility, UtilityKind
 from heatloom.model.costs import CostLaw, CostSettings
+from heatloom.network.structure import check_network
 
 DATA = Path(__file__).parent / "data"
 REFERENCES = DATA / "references"
@@ -86,3 +88,31 @@ def recomputed_tac(net, h: dict, price: dict, laws: dict) -> float:
         total += capital("cooler", x.duty, x.hot, x.utility, x.hot_in, x.hot_out, x.utility_in, x.utility_out)
         total += price[x.utility] * x.duty
     return total
+
+
+def tac_by_published_law(net, data, streams) -> float:
+    """TAC from the network's own temperatures (refdata.recomputed_tac: ht.LMTD, U from the film
+    coefficients) with the published law and prices of a reference file."""
+    h = {s.name: s.segments[0].film_coefficient for s in streams}
+    h.update({u["name"]: u["h"] for u in data["utilities"]})
+    price = {u["name"]: u["cost_per_kW_year"] for u in data["utilities"]}
+    return recomputed_tac(net, h, price, published_laws(data["cost_law"]))
+
+
+def end_approaches(net):
+    """(hot-end, cold-end) approach of every unit [K]."""
+    for e in net.exchangers:
+        yield e.hot_in - e.cold_out, e.hot_out - e.cold_in
+    for x in net.heaters:
+        yield x.utility_in - x.cold_out, x.utility_out - x.cold_in
+    for x in net.coolers:
+        yield x.hot_in - x.utility_out, x.hot_out - x.utility_in
+
+
+def assert_sound(net, data, streams, utilities, emat=1.0):
+    """A TAC network of a reference file passes check_network, keeps EMAT at every end, and costs what its own
+    temperatures cost by the published law (:func:`tac_by_published_law`)."""
+    check_network(net, streams, utilities, dt_min=emat)
+    assert min(min(pair) for pair in end_approaches(net)) >= emat - 1e-6
+    assert net.total_annual_cost == pytest.approx(tac_by_published_law(net, data, streams), rel=1e-9)
+    assert net.total_annual_cost == pytest.approx(net.capital_cost + net.operating_cost, rel=1e-12)

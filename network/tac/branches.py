@@ -163,6 +163,12 @@ class _Model:
                 self.members.append([x for block in path for br in block for x in br])
         self._walk()
         self.eq_matrix, self.eq_rhs = self._balances()
+        # every required unit kind's total duty >= its least load: R·z >= r
+        required = sorted(p.required & set(lay.units), key=str)
+        self.req_matrix = np.zeros((len(required), self.n + self.nf))
+        for row, kind in enumerate(required):
+            self.req_matrix[row, [k for k, key in enumerate(lay.units) if key == kind]] = 1.0
+        self.req_rhs = np.array([p.least_load(kind) / self.scale for kind in required])
 
     def _walk(self) -> None:
         """Every temperature as c + M1·q + M2·(q / f_unit), once per layout: the walk along each stream
@@ -279,12 +285,13 @@ class _Model:
     def ineq(self, z) -> np.ndarray:
         t, _, tb, _ = self._forward(z, False)
         return np.concatenate([t[:, 0] - t[:, 3] - self.need, t[:, 1] - t[:, 2] - self.need,
-                               self.range_sign * (tb - self.range_bound)])
+                               self.range_sign * (tb - self.range_bound), self.req_matrix @ z - self.req_rhs])
 
     def ineq_jacobian(self, z) -> np.ndarray:
         """∂ineq/∂z, exact (rows as :meth:`ineq`)."""
         _, dt, _, db = self._forward(z, True)
-        return np.vstack([dt[:, 0] - dt[:, 3], dt[:, 1] - dt[:, 2], self.range_sign[:, None] * db])
+        return np.vstack([dt[:, 0] - dt[:, 3], dt[:, 1] - dt[:, 2], self.range_sign[:, None] * db,
+                          self.req_matrix])
 
     def _balances(self) -> tuple[np.ndarray, np.ndarray]:
         """(E, e) of the linear equalities E·z = e: each stream's duty (scaled), each split's fractions
@@ -527,7 +534,7 @@ def layout_moves(lay: Layout) -> list[Layout]:
 
 def layout_additions(p: TacProblem, lay: Layout) -> list[Layout]:
     """Every layout with one unit more: an exchanger of a pair that may match (:meth:`TacProblem.can_match`)
-    or a heater or cooler of any utility level, at every place on its streams (:func:`_places`).  The new
+    or a heater or cooler of any utility level not forbidden, at every place on its streams (:func:`_places`).  The new
     unit is the last of ``units``."""
     n = len(lay.units)
     out = []
@@ -543,6 +550,8 @@ def layout_additions(p: TacProblem, lay: Layout) -> list[Layout]:
     for kind, paths, levels in (("cool", lay.hot, p.cool_levels), ("heat", lay.cold, p.heat_levels)):
         for s, path in enumerate(paths):
             for level in range(len(levels)):
+                if (kind, s, level) in p.forbidden:
+                    continue
                 for place in _places(path):
                     new = list(paths)
                     new[s] = _put(path, n, place)
@@ -567,9 +576,11 @@ def _start(lay: Layout, parent: LayoutSolution, new_duty: float = 0.1) -> tuple[
     return duties, np.array(fr)
 
 
-def _usable(lay: Layout) -> bool:
-    """A layout the search may keep: some unit, representable, with stages (see :func:`restructure`)."""
-    return bool(lay.units) and representable(lay) and layout_stages(lay) is not None
+def _usable(p: TacProblem, lay: Layout) -> bool:
+    """A layout the search may keep: some unit, every required one (:attr:`TacProblem.required`),
+    representable, with stages (see :func:`restructure`)."""
+    return bool(lay.units) and not (p.required and p.missing(lay.units)) and representable(lay) \
+        and layout_stages(lay) is not None
 
 
 def restructure(p: TacProblem, sol: LayoutSolution, deadline: float, *, seed=None,
@@ -626,7 +637,7 @@ def restructure(p: TacProblem, sol: LayoutSolution, deadline: float, *, seed=Non
                 if fails >= patience or not room():
                     break
                 lay = moves[idx]
-                if lay.key() in solved or not _usable(lay):
+                if lay.key() in solved or not _usable(p, lay):
                     continue
                 cand = solve(lay, cur)
                 if cand is not None and cand.tac < cur.tac * (1 - 1e-7):
@@ -643,7 +654,7 @@ def restructure(p: TacProblem, sol: LayoutSolution, deadline: float, *, seed=Non
             options = layout_moves(cur.layout) + layout_additions(p, cur.layout)
             for idx in rng.permutation(len(options))[:20]:
                 lay = options[idx]
-                if not _usable(lay) or not room():
+                if not _usable(p, lay) or not room():
                     continue
                 cand = solve(lay, cur)
                 if cand is not None:

@@ -216,11 +216,17 @@ class TopologyModel:
         self.eq = eq
         self.qmin = 1e-5 * p.scale
         # inequalities G x + g >= 0: both ends >= the unit's least approach (EMAT, or the sum of its sides'
-        # contributions; + margin), every utility unit's duty >= qmin
+        # contributions; + margin), every utility unit's duty >= qmin, every required unit kind's total
+        # load >= its least load
         need = self.need + APPROACH_MARGIN
         util_rows = [k for k, kind in enumerate(self.kinds) if kind is not UnitKind.EXCHANGER]
-        G = np.vstack([self.d1.m, self.d2.m, self.duty.m[util_rows]])
-        g = np.concatenate([self.d1.c - need, self.d2.c - need, self.duty.c[util_rows] - self.qmin])
+        kinds = [("x", key[0], key[1]) if kind is UnitKind.EXCHANGER else key for kind, key in zip(self.kinds, self.keys)]
+        required = sorted(p.required & set(kinds), key=str)
+        of = np.array([[float(k == r) for k in kinds] for r in required]).reshape(len(required), len(rows))
+        self.required_rows = (of @ self.duty.m, of @ self.duty.c - np.array([p.least_load(r) for r in required]))
+        G = np.vstack([self.d1.m, self.d2.m, self.duty.m[util_rows], self.required_rows[0]])
+        g = np.concatenate([self.d1.c - need, self.d2.c - need, self.duty.c[util_rows] - self.qmin,
+                            self.required_rows[1]])
         # rows without variables are constants: they hold, or the topology is infeasible
         const = ~np.any(G != 0.0, axis=1)
         self.constant_violation = float(np.max(-g[const], initial=0.0))

@@ -7,15 +7,19 @@ true profile (:mod:`heatloom.network.tac.profiles`).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
 from ...errors import InputError
-from ...model import StreamTable, Utility
+from ...model import MatchRules, StreamTable, Utility
 from ...model.costs import CostSettings, UnitKind
 
-__all__ = ["TacProblem", "make_problem"]
+__all__ = ["TacProblem", "make_problem", "REQUIRED_SHARE"]
+
+REQUIRED_SHARE = 0.1
+"""A required match carries at least this share of the most heat it could carry alone [-]
+(:meth:`TacProblem.least_load`), so that the lowest-cost network cannot keep it as a token unit."""
 
 
 @dataclass(frozen=True)
@@ -30,7 +34,9 @@ class TacProblem:
     (:class:`heatloom.network.tac.profiles.Profile`); ``utility_h`` holds the film coefficients of the hot
     and of the cold utility levels [kW/(m²·K)].  ``hot_shift`` / ``cold_shift`` are the streams' shifts at EMAT
     (:meth:`heatloom.model.Stream.shift`: a stream's own ΔTmin contribution where given, else EMAT/2); a
-    unit must keep :meth:`need` at both ends.
+    unit must keep :meth:`need` at both ends.  ``forbidden`` and ``required`` hold unit kinds that may not
+    appear or must appear at least once, as ("x", i, j), ("heat", j, level) and ("cool", i, level) (the
+    forbidden and required matches of :class:`heatloom.model.MatchRules`, by index).
     """
 
     hot_names: tuple[str, ...]
@@ -52,6 +58,8 @@ class TacProblem:
     hot_profiles: tuple | None = None
     cold_profiles: tuple | None = None
     utility_h: tuple | None = None
+    forbidden: frozenset = frozenset()
+    required: frozenset = frozenset()
 
     @property
     def segmented(self) -> bool:
@@ -90,22 +98,72 @@ class TacProblem:
         return float(max(self.hot_duty.max(initial=0.0), self.cold_duty.max(initial=0.0), 1.0))
 
     def can_match(self, i: int, j: int) -> bool:
-        """Whether hot i can heat cold j at all with EMAT (counter-current, any load)."""
+        """Whether hot i may heat cold j: not forbidden, and possible at all with EMAT (counter-current, any
+        load)."""
+        return ("x", i, j) not in self.forbidden and self._can_exchange(i, j)
+
+    def _can_exchange(self, i: int, j: int) -> bool:
         return self.hot_in[i] - self.cold_in[j] > self.need(i, j)
 
     def heat_level_possible(self, j: int, level: int) -> bool:
+        """Whether hot utility ``level`` may heat cold j at its cold end (not forbidden, EMAT kept)."""
+        return ("heat", j, level) not in self.forbidden and self._can_heat(j, level)
+
+    def _can_heat(self, j: int, level: int) -> bool:
         u = self.heat_levels[level]
         return u.supply_temperature - self.need(None, j) > self.cold_in[j] and \
             u.target_temperature - self.need(None, j) > self.cold_in[j]
 
     def cool_level_possible(self, i: int, level: int) -> bool:
+        """Whether cold utility ``level`` may cool hot i at its hot end (not forbidden, EMAT kept)."""
+        return ("cool", i, level) not in self.forbidden and self._can_cool(i, level)
+
+    def _can_cool(self, i: int, level: int) -> bool:
         u = self.cool_levels[level]
         return u.supply_temperature + self.need(i, None) < self.hot_in[i] and \
             u.target_temperature + self.need(i, None) < self.hot_in[i]
 
+    def least_load(self, kind) -> float:
+        """Least load of a required unit kind, over all its units [kW]: :data:`REQUIRED_SHARE` of the most
+        it could carry alone, at the supply end of its streams (an upper bound for the effective CP of a
+        stream of several segments).
+
+        An exchanger could carry at most the smaller duty, and no more than either CP times the supply
+        temperatures' difference less the approach it needs; a heater or cooler at most its stream's duty,
+        less what lies beyond the utility's supply temperature and the approach.
+        """
+        d = self.need(*_sides(kind))
+        if kind[0] == "x":
+            i, j = kind[1], kind[2]
+            gap = self.hot_in[i] - self.cold_in[j] - d
+            most = min(self.hot_duty[i], self.cold_duty[j], self.hot_cp[i] * gap, self.cold_cp[j] * gap)
+        elif kind[0] == "heat":
+            j, u = kind[1], self.heat_levels[kind[2]]
+            most = self.cold_cp[j] * (min(self.cold_out[j], u.supply_temperature - d) - self.cold_in[j])
+        else:
+            i, u = kind[1], self.cool_levels[kind[2]]
+            most = self.hot_cp[i] * (self.hot_in[i] - max(self.hot_out[i], u.supply_temperature + d))
+        return REQUIRED_SHARE * max(float(most), 0.0)
+
+    def missing(self, kinds) -> list:
+        """The required unit kinds (as in ``required``) not among ``kinds``, sorted."""
+        return sorted(self.required - set(kinds), key=str)
+
+    def unit_sides(self, kind) -> tuple[str, str]:
+        """(hot side, cold side) of a unit kind, in the names of the stream table and the utilities."""
+        if kind[0] == "x":
+            return self.hot_names[kind[1]], self.cold_names[kind[2]]
+        if kind[0] == "heat":
+            return self.heat_levels[kind[2]].name, self.cold_names[kind[1]]
+        return self.hot_names[kind[1]], self.cool_levels[kind[2]].name
+
+    def unit_name(self, kind) -> str:
+        """``HOT:COLD`` of a unit kind."""
+        return ":".join(self.unit_sides(kind))
+
 
 def make_problem(streams: StreamTable, utilities, costs: CostSettings, emat: float, *,
-                 default_film_coefficient: float | None = None) -> TacProblem:
+                 default_film_coefficient: float | None = None, rules: MatchRules | None = None) -> TacProblem:
     """Gather the data of a TAC design; reject what the stagewise model cannot represent.
 
     Parameters
@@ -119,6 +177,16 @@ def make_problem(streams: StreamTable, utilities, costs: CostSettings, emat: flo
         Exchanger minimum approach temperature [K], > 0.
     default_film_coefficient : float, optional
         [kW/(m²·K)] where a stream or utility has none.
+    rules : MatchRules, optional
+        Forbidden and required matches, by the names of the streams and utilities.  A required match must
+        be possible: an exchanger whose hot stream enters hotter than the cold one by more than its least
+        approach, a heater or cooler whose utility can serve the stream keeping it.
+
+    Raises
+    ------
+    InputError
+        Bad EMAT, a film coefficient missing, too few streams or utilities, a rule naming an unknown
+        stream or utility, or a required match that cannot exchange heat.
 
     Examples
     --------
@@ -168,7 +236,7 @@ def make_problem(streams: StreamTable, utilities, costs: CostSettings, emat: flo
         hs = [h_of(g.film_coefficient, f"stream '{s.name}'") for g in s.segments]
         return hs[0] if len(hs) == 1 else s.duty / sum(g.duty / h for g, h in zip(s.segments, hs))
 
-    return TacProblem(
+    p = TacProblem(
         tuple(s.name for s in hot), tuple(s.name for s in cold),
         arr(hot, lambda s: s.supply_temperature), arr(hot, lambda s: s.target_temperature), arr(hot, cp),
         arr(hot, h_mean), arr(cold, lambda s: s.supply_temperature), arr(cold, lambda s: s.target_temperature),
@@ -177,3 +245,49 @@ def make_problem(streams: StreamTable, utilities, costs: CostSettings, emat: flo
         tuple(stream_profile(s, h_of) for s in hot), tuple(stream_profile(s, h_of) for s in cold),
         (tuple(h_of(u.film_coefficient, u.name) for u in hot_u), tuple(h_of(u.film_coefficient, u.name)
                                                                         for u in cold_u)))
+    if not rules:
+        return p
+    return _with_rules(p, rules, streams, utilities)
+
+
+def _with_rules(p: TacProblem, rules: MatchRules, streams: StreamTable, utilities) -> TacProblem:
+    """The problem with the rules' pairs as unit kinds; a required one that cannot exchange heat refused."""
+    rules.check(streams, utilities)
+    hot = {n: k for k, n in enumerate(p.hot_names)}
+    cold = {n: k for k, n in enumerate(p.cold_names)}
+    heat = {u.name: k for k, u in enumerate(p.heat_levels)}
+    cool = {u.name: k for k, u in enumerate(p.cool_levels)}
+
+    def kind(h: str, c: str):
+        if h in hot and c in cold:
+            return ("x", hot[h], cold[c])
+        if h in heat:
+            return ("heat", cold[c], heat[h])
+        return ("cool", hot[h], cool[c])
+
+    forbidden = frozenset(kind(h, c) for h, c in rules.forbidden)
+    required = frozenset(kind(h, c) for h, c in rules.required)
+    for k in sorted(required, key=str):
+        ok = p._can_exchange(k[1], k[2]) if k[0] == "x" else \
+            p._can_heat(k[1], k[2]) if k[0] == "heat" else p._can_cool(k[1], k[2])
+        if not ok:
+            raise InputError(f"required match {p.unit_name(k)} cannot exchange heat keeping its least approach of "
+                             f"{p.need(*_sides(k)):g} K (" + _why(p, k) + ")")
+    return replace(p, forbidden=forbidden, required=required)
+
+
+def _sides(kind) -> tuple:
+    """(hot index or None, cold index or None) of a unit kind, for :meth:`TacProblem.need`."""
+    return (kind[1], kind[2]) if kind[0] == "x" else (None, kind[1]) if kind[0] == "heat" else (kind[1], None)
+
+
+def _why(p: TacProblem, k) -> str:
+    if k[0] == "x":
+        return f"{p.hot_names[k[1]]} enters at {p.hot_in[k[1]]:g} °C, {p.cold_names[k[2]]} at {p.cold_in[k[2]]:g} °C"
+    if k[0] == "heat":
+        u = p.heat_levels[k[2]]
+        return (f"{u.name} runs {u.supply_temperature:g} → {u.target_temperature:g} °C, {p.cold_names[k[1]]} enters "
+                f"at {p.cold_in[k[1]]:g} °C")
+    u = p.cool_levels[k[2]]
+    return (f"{u.name} runs {u.supply_temperature:g} → {u.target_temperature:g} °C, {p.hot_names[k[1]]} enters at "
+            f"{p.hot_in[k[1]]:g} °C")

@@ -126,8 +126,8 @@ class SegmentedModel:
             else:
                 self.sides.append((p.hot_profiles[key[1]], None, p.utility_h[1][key[2]]))
         util_rows = [r for r, kind in enumerate(self.m.kinds) if kind is not UnitKind.EXCHANGER]
-        self.G = self.m.duty.m[util_rows]
-        self.g = self.m.duty.c[util_rows] - self.m.qmin
+        self.G = np.vstack([self.m.duty.m[util_rows], self.m.required_rows[0]])
+        self.g = np.concatenate([self.m.duty.c[util_rows] - self.m.qmin, self.m.required_rows[1]])
 
     def _ends(self, x):
         m = self.m

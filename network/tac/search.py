@@ -50,16 +50,18 @@ from __future__ import annotations
 
 import os
 import time
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Iterable, Sequence
 from concurrent.futures import ProcessPoolExecutor
+from dataclasses import replace
 
 import numpy as np
 
 from ... import defaults
 from ...equipment.sizing import log_mean
 from ...errors import InfeasibleError, InputError
-from ...model import StreamTable, Utility
+from ...model import MatchRules, StreamTable, Utility
 from ...model.costs import CostSettings, UnitKind
+from ..design import match_rules
 from ..solvers import Budget
 from ..structure import Cooler, Exchanger, Heater, Network, check_network
 from .branches import RESTRUCTURE_SHARE, RESTRUCTURE_STREAMS, beyond_stagewise
@@ -73,6 +75,7 @@ from .nlp import (
     solve_topology,
     unit_costs,
 )
+from .problem import REQUIRED_SHARE
 from .starts import mer_network, stagewise_milp, topology_from_network, unit_estimates
 
 __all__ = ["design_tac", "network_from_solution"]
@@ -141,6 +144,13 @@ def canonical(top: Topology, guess: dict | None = None) -> tuple[Topology, dict 
     return out, g
 
 
+def unit_kinds(top: Topology) -> list:
+    """The kind of every unit of a topology, as in :attr:`TacProblem.required`: ("x", i, j) per match (once
+    per stage it is in), ("heat", j, level), ("cool", i, level)."""
+    return [("x", i, j) for (i, j, _) in top.matches] + [("heat", *h) for h in top.heaters] + \
+        [("cool", *c) for c in top.coolers]
+
+
 def _without(top: Topology, keys) -> Topology:
     ks = set(keys)
     return Topology(top.stages, frozenset(m for m in top.matches if m not in ks),
@@ -170,10 +180,14 @@ class _Search:
         return self.timed_out
 
     def evaluate(self, top: Topology, guess: dict | None = None) -> TopologySolution | None:
+        """The refined topology (cached), or None when it is infeasible or lacks a required match."""
         top, guess = canonical(top, guess)
         key = top.key()
         if key in self.cache:
             return self.cache[key]
+        if self.p.required and self.p.missing(unit_kinds(top)):
+            self.cache[key] = None
+            return None
         self.evals += 1
         sol = solve_topology(self.p, top, [guess] if guess else [], extra_vertex=not guess)
         if sol is not None:
@@ -194,9 +208,11 @@ class _Search:
         p, K = self.p, top.stages
         nh, nc = len(p.hot_names), len(p.cold_names)
         grow = K < self.max_stages
-        mv: list = [("remove", m) for m in sorted(top.matches)]
-        mv += [("remove", ("heat", *h)) for h in sorted(top.heaters)]
-        mv += [("remove", ("cool", *c)) for c in sorted(top.coolers)]
+        kinds = unit_kinds(top)
+        mv: list = [("remove", m) for m in sorted(top.matches)
+                    if ("x", m[0], m[1]) not in p.required or kinds.count(("x", m[0], m[1])) > 1]
+        mv += [("remove", ("heat", *h)) for h in sorted(top.heaters) if ("heat", *h) not in p.required]
+        mv += [("remove", ("cool", *c)) for c in sorted(top.coolers) if ("cool", *c) not in p.required]
         for i in range(nh):
             for j in range(nc):
                 if not p.can_match(i, j):
@@ -401,6 +417,31 @@ def network_from_solution(p: TacProblem, sol: TopologySolution, streams: StreamT
     return net
 
 
+def keeping_rules(net: Network, forbidden=(), required=(), least: dict | None = None) -> Network:
+    """The network, with a note of the duty of every required match, after checking that it has no
+    forbidden match and every required one (:class:`InfeasibleError` otherwise: never expected, the search
+    keeps to the rules).  ``least`` maps required pairs to the least load the search gave them [kW]."""
+    duties: dict = {}
+    for unit in (*net.exchangers, *net.heaters, *net.coolers):
+        duties[unit.sides] = duties.get(unit.sides, 0.0) + unit.duty
+    broken = sorted(set(forbidden) & set(duties))
+    missing = sorted(set(required) - set(duties))
+    if broken or missing:
+        raise InfeasibleError("the network breaks the match rules: " + "; ".join(
+            [f"forbidden {', '.join(f'{h}:{c}' for h, c in broken)}"] * bool(broken)
+            + [f"required {', '.join(f'{h}:{c}' for h, c in missing)} missing"] * bool(missing)))
+    if not required:
+        return net
+    least = least or {}
+    note = "required matches carry " + ", ".join(
+        f"{h}:{c} {duties[h, c]:,.4g} kW" + (f" (at least {least[h, c]:,.4g} kW)" if (h, c) in least else "")
+        for h, c in sorted(required))
+    if least:
+        note += (f"; a required match carries at least {REQUIRED_SHARE * 100:g} % of the most it could carry alone, so "
+                 "that it is a real unit")
+    return replace(net, notes=(*net.notes, note))
+
+
 def _segment_sizer(p: TacProblem, streams: StreamTable):
     """Sizing of a unit between streams of several segments: (area [m²], effective LMTD [K], mean U
     [kW/(m²·K)]) by :func:`heatloom.equipment.segments.size_segments`, as for the MER design."""
@@ -470,7 +511,8 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
                time_limit: float = 120.0, seed: int = 0, starts: int = 2, rounds: int = 40,
                workers: int | None = None, milp_iterations: int = 3, solver: str | None = None,
                default_film_coefficient: float | None = None,
-               progress: Callable[[float, int, int], None] | None = None, restructure: bool = False) -> Network:
+               progress: Callable[[float, int, int], None] | None = None, restructure: bool = False,
+               forbidden: Iterable[tuple[str, str]] = (), required: Iterable[tuple[str, str]] = ()) -> Network:
     """A network of low total annual cost: stagewise MILP topologies refined against the exact cost.
 
     Parameters
@@ -518,6 +560,13 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         (:func:`heatloom.network.tac.branches.restructure`: units moved anywhere along their streams, a
         utility unit onto a split branch beside an exchanger; problems of up to :data:`RESTRUCTURE_STREAMS`
         streams of one segment each).  Its network is returned when it is cheaper.
+    forbidden : iterable of (str, str)
+        (hot, cold) name pairs never matched, in any stage or place; a name may be a utility's (forbid
+        steam on a stream).
+    required : iterable of (str, str)
+        (hot, cold) pairs matched in at least one unit (a utility's: that utility serves the stream).
+        Every topology the search keeps has them; the notes give the duty each carries, since the
+        lowest-cost network may give a required unit very little.
 
     Returns
     -------
@@ -530,7 +579,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     InputError
         Bad EMAT, budgets, film coefficients, missing utilities.
     InfeasibleError
-        No network found (no utility can serve some stream).
+        No network found (no utility can serve some stream, or none found with the required matches).
 
     Examples
     --------
@@ -566,7 +615,15 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
                      f"isothermal cold utility at {cu.supply_temperature:g} °C with default prices and film "
                      "coefficients; give --utilities FILE")
     costs = costs or CostSettings()
-    p = make_problem(streams, utilities, costs, emat, default_film_coefficient=default_film_coefficient)
+    forbidden, required = match_rules(streams, utilities, forbidden, required)
+    rules = MatchRules(tuple(sorted(forbidden)), tuple(sorted(required)))
+    p = make_problem(streams, utilities, costs, emat, default_film_coefficient=default_film_coefficient,
+                     rules=rules)
+    least = {p.unit_sides(kind): p.least_load(kind) for kind in p.required}
+    if rules:
+        notes.append(rules.describe() + ": " + " and ".join(
+            ["no topology with a forbidden match is tried"] * bool(forbidden)
+            + ["every topology kept has the required matches"] * bool(required)))
     if p.has_contributions:
         notes.append("ΔTmin contributions of the stream table kept as lower bounds on the approach: each unit "
                      "keeps the larger of EMAT and the sum of its two sides' contributions (EMAT/2 for a side "
@@ -590,7 +647,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     keep(search.evaluate(_fallback_topology(p)), "utilities only")
     # (a) the maximum-energy-recovery network's topology (none, with a note, when it cannot be had in time)
     mer = mer_network(streams, max(MER_DT_MIN, emat), utilities, budget, costs=costs, solver=solver,
-                      default_film_coefficient=default_film_coefficient)
+                      default_film_coefficient=default_film_coefficient, forbidden=forbidden, required=required)
     top = topology_from_network(p, mer) if mer is not None else None
     if top is not None:
         keep(search.evaluate(top), f"MER network at ΔTmin {max(MER_DT_MIN, emat):g} K")
@@ -636,7 +693,13 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
             if sol is not None:
                 est.update(unit_estimates(p, sol))
         if not candidates:
-            raise InfeasibleError(f"no network keeps EMAT {emat:g} K: some stream cannot be served by any utility")
+            if required:
+                raise InfeasibleError(f"no network found with the required matches {', '.join(f'{h}:{c}' for h, c in sorted(required))} "
+                                      f"keeping EMAT {emat:g} K within the time limit (starting topologies: the MER "
+                                      "network and the stagewise MILPs; see the notes of the solves)")
+            raise InfeasibleError(f"no network keeps EMAT {emat:g} K: some stream cannot be served by any utility"
+                                  + (f" it may use (forbidden: {', '.join(f'{h}:{c}' for h, c in sorted(forbidden))})"
+                                     if forbidden else ""))
         order = sorted(range(len(candidates)), key=lambda n: candidates[n].tac)
         # start 0 from ``first`` (already under way), the others from the cheapest of the rest
         pool_order = ([first] if first is not None else []) + \
@@ -697,13 +760,16 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     if beyond:
         net = beyond_stagewise(p, ranked[0], streams, utilities, costs, notes, budget, seed)
         if net is not None:
-            return net
+            try:
+                return keeping_rules(net, forbidden, required, least)
+            except InfeasibleError as exc:
+                failures.append(str(exc))
     for sol in ranked:
         try:
             extra = [f"the {len(failures)} cheaper network(s) found failed the final check ({'; '.join(failures)}); "
                      "the cheapest that passes is given"] if failures else []
-            return network_from_solution(p, sol, streams, utilities, costs, notes=[*notes, *extra],
-                                         solves=budget.reports)
+            return keeping_rules(network_from_solution(p, sol, streams, utilities, costs, notes=[*notes, *extra],
+                                                       solves=budget.reports), forbidden, required, least)
         except (InfeasibleError, InputError) as exc:   # a failed check, or a unit the sizing refuses
             failures.append(str(exc))
     raise InfeasibleError(f"no network found passes the final check: {failures[0]}")

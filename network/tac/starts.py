@@ -63,8 +63,10 @@ def stagewise_milp(p: TacProblem, stages: int, estimates: dict, *, name: str = "
     q ≤ Ω z and approach constraints ΔT ≥ EMAT − Γ(1 − z) at both ends of every unit (the sum of the sides'
     ΔTmin contributions instead of EMAT where larger, :meth:`TacProblem.need`) (Yee & Grossmann 1990,
     constraints (1)-(12)), with utility units at the stream ends, one per utility level in series ordered
-    by temperature.  The per-kW area costs :math:`c` are secants of b·(Q/(U·θ))^c through zero at an
-    estimated load Q̂ and approach θ̂ (``estimates``), updated by the caller from refined networks.
+    by temperature.  Forbidden unit kinds have no variables (:meth:`TacProblem.can_match` and the level
+    checks); a required one carries at least :meth:`TacProblem.least_load`.  The per-kW area costs
+    :math:`c` are secants of b·(Q/(U·θ))^c through zero at an estimated load Q̂ and approach θ̂
+    (``estimates``), updated by the caller from refined networks.
 
     Parameters
     ----------
@@ -116,6 +118,8 @@ def stagewise_milp(p: TacProblem, stages: int, estimates: dict, *, name: str = "
                 prob += th[i, k + 1] - tc[j, k + 1] >= p.need(i, j) - gamma * (1 - z[key])
                 law = p.laws[UnitKind.EXCHANGER]
                 cost_terms.append(law[0] * z[key] + _unit_area_cost_per_kw(law, u, load, dt) * q[key])
+            if ("x", i, j) in p.required:   # a required match carries some load, in some stage
+                prob += pulp.lpSum(q[i, j, k] for k in range(K)) >= p.least_load(("x", i, j))
     for i in range(nh):
         for k in range(K):
             prob += p.hot_cp[i] * (th[i, k] - th[i, k + 1]) == pulp.lpSum(
@@ -145,6 +149,8 @@ def stagewise_milp(p: TacProblem, stages: int, estimates: dict, *, name: str = "
                 util_q[key] = new_variable(prob, f"q{side}_{s}_{lv}", 0, float(duty))
                 util_z[key] = new_variable(prob, f"z{side}_{s}_{lv}", cat=pulp.LpBinary)
                 prob += util_q[key] <= float(duty) * util_z[key]
+                if key in p.required:
+                    prob += util_q[key] >= p.least_load(key)
                 sign = -1.0 if side == "cool" else 1.0
                 after = before + sign * util_q[key] * (1.0 / cp)
                 need = p.need(s, None) if side == "cool" else p.need(None, s)
@@ -330,7 +336,7 @@ def _stagewise_matches(ex: list, hot_idx: dict, cold_idx: dict) -> set | None:
 
 
 def mer_network(streams, dt_min: float, utilities, budget: Budget, *, costs=None, solver=None,
-                default_film_coefficient: float | None = None) -> Network | None:
+                default_film_coefficient: float | None = None, forbidden=(), required=()) -> Network | None:
     """The maximum-energy-recovery network of :func:`heatloom.network.design.design_mer`, or None.
 
     It is given :data:`MER_SHARE` of the time left, at most :data:`MER_CAP`, as its time limit (every
@@ -346,7 +352,7 @@ def mer_network(streams, dt_min: float, utilities, budget: Budget, *, costs=None
     utilities : sequence of Utility
     budget : Budget
         The run's time budget.
-    costs, solver, default_film_coefficient
+    costs, solver, default_film_coefficient, forbidden, required
         As for :func:`heatloom.network.design.design_mer`.
     """
     from ..design import design_mer
@@ -358,7 +364,8 @@ def mer_network(streams, dt_min: float, utilities, budget: Budget, *, costs=None
         return None
     try:
         mer = design_mer(streams, dt_min, utilities, costs=costs, solver=solver, time_limit=limit,
-                         default_film_coefficient=default_film_coefficient)
+                         default_film_coefficient=default_film_coefficient, forbidden=forbidden,
+                         required=required)
     except (InfeasibleError, InputError, SolverError) as exc:
         budget.notes.append(f"no {label} as a starting topology ({exc}); the search started from the others")
         return None

@@ -13,7 +13,15 @@ the code under test.  Invented data (marked) serve only the property checks.
 import ht
 import numpy as np
 import pytest
-from refdata import cost_settings, load_reference, published_laws, recomputed_tac, reference_utilities
+from refdata import (
+    assert_sound,
+    cost_settings,
+    end_approaches,
+    load_reference,
+    published_laws,
+    reference_utilities,
+    tac_by_published_law,
+)
 
 from heatloom.errors import InputError, SolverError
 from heatloom.model import Segment, Stream, StreamTable, Utility, UtilityKind
@@ -26,36 +34,11 @@ from heatloom.network.tac.search import design_tac
 from heatloom.network.tac.starts import stagewise_milp, topology_from_network
 
 
-def tac_by_published_law(net, data, streams) -> float:
-    """TAC from the network's own temperatures (refdata.recomputed_tac: ht.LMTD, U from the film
-    coefficients) with the published law and prices of a reference file."""
-    h = {s.name: s.segments[0].film_coefficient for s in streams}
-    h.update({u["name"]: u["h"] for u in data["utilities"]})
-    price = {u["name"]: u["cost_per_kW_year"] for u in data["utilities"]}
-    return recomputed_tac(net, h, price, published_laws(data["cost_law"]))
-
-
-def end_approaches(net):
-    for e in net.exchangers:
-        yield e.hot_in - e.cold_out, e.hot_out - e.cold_in
-    for x in net.heaters:
-        yield x.utility_in - x.cold_out, x.utility_out - x.cold_in
-    for x in net.coolers:
-        yield x.hot_in - x.utility_out, x.hot_out - x.utility_in
-
-
 def design_reference(name, **options):
     data, streams = load_reference(name)
     utilities = reference_utilities(data)
     net = design_tac(streams, utilities, costs=cost_settings(data["cost_law"]), **options)
     return data, streams, utilities, net
-
-
-def assert_sound(net, data, streams, utilities, emat=1.0):
-    check_network(net, streams, utilities, dt_min=emat)
-    assert min(min(pair) for pair in end_approaches(net)) >= emat - 1e-6
-    assert net.total_annual_cost == pytest.approx(tac_by_published_law(net, data, streams), rel=1e-9)
-    assert net.total_annual_cost == pytest.approx(net.capital_cost + net.operating_cost, rel=1e-12)
 
 
 # ----------------------------------------------------------------------------------------- published
