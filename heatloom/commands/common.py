@@ -255,6 +255,30 @@ def assumed_utilities(table, streams, dt_min: float) -> tuple[tuple, str | None]
                    "design's when it was run at the same ΔTmin; give --utilities FILE for real ones)")
 
 
+def match_rules(args, streams, utilities, dt_min: float, path=None):
+    """The forbidden and required matches of the stream table's ``forbid``/``require`` columns and of the
+    command line's ``--forbid``/``--require`` (where the command has them), merged and checked against the
+    streams and utilities (the assumed ones when none are given: their names do not depend on ΔTmin).
+
+    ``path`` is the stream table (default ``args.file``); ``args.sheet`` and ``args.columns`` as read.
+    """
+    from ..io import parse_column_mapping
+    from ..io.streams import read_match_rules
+    from ..model import MatchRules
+
+    columns = parse_column_mapping(args.columns) if getattr(args, "columns", None) else None
+    rules = read_match_rules(path if path is not None else args.file, streams, sheet=getattr(args, "sheet", None),
+                             columns=columns).merged(MatchRules.from_text(getattr(args, "forbid", ()) or (),
+                                                                          getattr(args, "require", ()) or ()))
+    if rules:
+        if utilities is None:
+            from ..pinch.utilities import ideal_utilities
+
+            utilities = ideal_utilities(streams, dt_min)
+        rules.check(streams, utilities)
+    return rules
+
+
 def read_cost_settings(path, hours_per_year=None):
     """The cost settings of a run: the costs file's (when given), with ``--hours-per-year`` overriding its
     operating hours; None when neither is given (the defaults apply).  The result says where its hours come

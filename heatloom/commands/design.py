@@ -12,6 +12,7 @@ from .common import (
     dt_min_of,
     finish,
     fmt,
+    match_rules,
     note_lines,
     positive,
     read_inputs,
@@ -20,7 +21,7 @@ from .common import (
 )
 from .console import Column, text_table
 
-__all__ = ["EXCHANGER_TYPES", "register", "run", "format_network", "format_evolution", "match_rules"]
+__all__ = ["EXCHANGER_TYPES", "register", "run", "format_network", "format_evolution"]
 
 EPILOG_DESIGN = """\
 examples:
@@ -32,6 +33,7 @@ examples:
   heatloom design streams.csv --mode tac --utilities utilities.csv --time-limit 300 --restructure
   heatloom design streams.csv --dtmin 10 --min-duty 50 --min-area 5
   heatloom design streams.csv --dtmin 10 --forbid H1:C2 --forbid H2:steam --require H3:C1
+  heatloom design streams.csv --mode tac --utilities utilities.csv --forbid H1:C2 --require H3:C1
 
 --mode tac searches for the lowest total annual cost: no ΔTmin, only the exchanger minimum approach
 temperature (--emat, default 1 K) at both ends of every unit; --time-limit bounds the whole run, and the
@@ -44,7 +46,8 @@ relaxation (Linnhoff & Hindmarsh 1983); every step is printed with its energy pe
 --forbid and --require take HOT:COLD, a hot stream or hot utility and a cold stream or cold utility as named
 in the stream and utility tables (repeat the option for more pairs). A stream table may also carry the
 columns 'forbid' and 'require', listing for each stream the names it may not or must be matched with,
-separated by ';'; both sources are merged.
+separated by ';'; both sources are merged. Both modes keep them: --mode tac never tries a topology with a
+forbidden match and keeps only those with every required one (the notes give each required match's duty).
 
 Areas need a film coefficient h for every stream and utility (column h, kW/(m²·K)); --default-h assumes
 one where it is missing, and the output says so.
@@ -87,9 +90,9 @@ def register(sub) -> None:
                      help="double-pipe: length of one leg of a hairpin [m]")
     rules = p.add_argument_group("matches and evolution")
     rules.add_argument("--forbid", action="append", default=[], metavar="HOT:COLD",
-                       help="a match the design may not use (repeatable; --mode mer)")
+                       help="a match the design may not use (repeatable)")
     rules.add_argument("--require", action="append", default=[], metavar="HOT:COLD",
-                       help="a match the design must use (repeatable; --mode mer)")
+                       help="a match the design must use (repeatable)")
     rules.add_argument("--min-duty", type=positive, default=None, metavar="KW",
                        help="remove units of a smaller duty [kW] by loop breaking and path relaxation")
     rules.add_argument("--min-area", type=positive, default=None, metavar="M2",
@@ -174,25 +177,6 @@ def format_evolution(evolution) -> str:
     return "\n".join(lines)
 
 
-def match_rules(args, streams, utilities, dt_min):
-    """The forbidden and required matches of the command line and of the stream table, merged and checked
-    against the streams and utilities (the assumed ones when none are given)."""
-    from ..io import parse_column_mapping
-    from ..io.streams import read_match_rules
-    from ..model import MatchRules
-
-    columns = parse_column_mapping(args.columns) if args.columns else None
-    rules = read_match_rules(args.file, streams, sheet=args.sheet, columns=columns).merged(
-        MatchRules.from_text(args.forbid, args.require))
-    if rules:
-        if utilities is None:
-            from ..pinch.utilities import ideal_utilities
-
-            utilities = ideal_utilities(streams, dt_min)
-        rules.check(streams, utilities)
-    return rules
-
-
 def run(args) -> int:
     from ..errors import InputError
 
@@ -206,8 +190,6 @@ def run(args) -> int:
         raise InputError(f"--exchanger-type {args.exchanger_type} applies to --mode mer only: the TAC design sizes "
                          "counter-current units")
     streams, utilities, costs = read_inputs(args)
-    if tac and (args.forbid or args.require):
-        raise InputError("--forbid and --require apply to --mode mer only")
     if tac:
         dt_min, dt_note = (defaults.EMAT, "EMAT default for --mode tac; set with --emat") if args.emat is None \
             else (args.emat, "EMAT given")
@@ -220,6 +202,8 @@ def run(args) -> int:
         out = OutputDirectory(args.out, [p for p in (args.file, args.utilities, args.costs) if p],
                               force=args.force)
         out.check(["design.json", "design_units.csv", "design.xlsx", "grid_diagram.png", "grid_diagram.svg"])
+    rules = match_rules(args, streams, utilities, dt_min)
+    extra = {"forbidden": list(rules.forbidden), "required": list(rules.required)} if rules else {}
     if tac:
         from .. import defaults as network_data
         from ..network.tac.search import design_tac
@@ -231,7 +215,7 @@ def run(args) -> int:
             net = design_tac(streams, utilities, costs=costs, emat=dt_min,
                              time_limit=args.time_limit or defaults.TAC_TIME_LIMIT, seed=args.seed, starts=args.starts,
                              rounds=args.rounds, solver=args.solver, default_film_coefficient=args.default_h,
-                             progress=bar.best, restructure=args.restructure)
+                             progress=bar.best, restructure=args.restructure, **extra)
         finally:
             bar.close()
     else:
@@ -239,8 +223,6 @@ def run(args) -> int:
         from ..network import design_mer
 
         kind = ExchangerType(EXCHANGER_TYPES[args.exchanger_type])
-        rules = match_rules(args, streams, utilities, dt_min)
-        extra = {"forbidden": list(rules.forbidden), "required": list(rules.required)} if rules else {}
         net = design_mer(streams, dt_min, utilities, costs=costs, solver=args.solver,
                          time_limit=args.time_limit or 60.0, default_film_coefficient=args.default_h,
                          exchanger_type=kind, tube_diameter=args.tube_diameter,
@@ -253,7 +235,7 @@ def run(args) -> int:
             "tube_diameter": args.tube_diameter, "hairpin_length": args.hairpin_length}}
         evolution = evolve(net, streams, utilities, dt_min, min_duty=args.min_duty, min_area=args.min_area,
                            break_loops=args.break_loops, costs=costs, default_film_coefficient=args.default_h,
-                           contributions=not tac, **geometry)
+                           contributions=not tac, required=rules.required, **geometry)
         net = evolution.network
     from ..network.streamorder import unordered_streams
 
@@ -266,7 +248,7 @@ def run(args) -> int:
     result = net.to_dict()
     if evolution is not None:
         result["evolution"] = evolution.to_dict()
-    if not tac and rules:
+    if rules:
         result["matches"] = rules.to_dict()
     result["source"] = str(args.file)
     result["mode"] = args.mode

@@ -258,9 +258,25 @@ def test_unknown_or_misplaced_match_names_are_input_errors(capsys, sinnott, opti
     assert code == 2 and message in err
 
 
-def test_match_options_refused_in_tac_mode(capsys, sinnott):
-    code, _, err = run(capsys, "design", sinnott, "--mode", "tac", "--forbid", "1:4")
-    assert code == 2 and "--mode mer only" in err
+def test_match_rules_of_the_table_and_the_command_line_reach_the_tac_design(capsys, tmp_path):
+    # Sinnott's streams (above) with a 'forbid' column; assumed utilities and default costs
+    table = tmp_path / "with_rules.csv"
+    table.write_text("name,T_supply,T_target,CP,h,forbid\n1,180,60,3.0,0.5,4\n2,150,30,1.0,0.5,\n"
+                     "3,20,135,2.0,0.5,\n4,80,140,4.5,0.5,\n", encoding="utf-8")
+    code, out, _ = run(capsys, "design", table, "--mode", "tac", "--require", "2:3", "--starts", "1", "--rounds", "1",
+                       "--time-limit", "60", "--json")
+    assert code == 0
+    data = json.loads(out)
+    assert data["matches"]["forbidden"] == [["1", "4"]] and data["matches"]["required"] == [["2", "3"]]
+    duty: dict = {}
+    for e in data["exchangers"]:
+        duty[e["hot"], e["cold"]] = duty.get((e["hot"], e["cold"]), 0.0) + e["duty"]
+    assert ("1", "4") not in duty
+    # at EMAT 1 K the match 2→3 could carry at most min(1·120, 2·115, 1·(150 − 20 − 1), 2·(150 − 20 − 1))
+    # = 120 kW alone; a required match carries at least a tenth of that
+    assert duty["2", "3"] >= 12.0 - 1e-9
+    code, _, err = run(capsys, "design", table, "--mode", "tac", "--require", "3:1", "--time-limit", "10")
+    assert code == 2 and "'3' is a cold stream, not a hot side" in err
 
 
 def test_min_area_aims_at_small_areas(capsys, sinnott):
