@@ -346,7 +346,7 @@ def run_step(fn: Callable[[], object], what: str, needs: Sequence[tuple[str, obj
 def compute_study(streams: StreamTable, dt_min: float, utilities: Sequence[Utility] | None = None, costs=None, *,
                   existing=None, retrofit_costs=None, default_film_coefficient: float | None = None,
                   settings: RunSettings | None = None, progress: Callable[[str], None] | None = None,
-                  **fields) -> Study:
+                  rules=None, **fields) -> Study:
     """Run every step of a study and gather the results (each a result or a NotComputed).
 
     Parameters
@@ -368,6 +368,9 @@ def compute_study(streams: StreamTable, dt_min: float, utilities: Sequence[Utili
         Sweep range, solver, time limits, the lowest-total-annual-cost design (default :class:`RunSettings`).
     progress : callable, optional
         Called as ``progress(step_name)`` before each step.
+    rules : heatloom.model.MatchRules, optional
+        Forbidden and required matches both network designs keep (the stream table's ``forbid`` and
+        ``require`` columns).
     **fields
         Passed to :class:`Study` (title, sources, notes, dt_min_note, ...).
 
@@ -431,12 +434,13 @@ def compute_study(streams: StreamTable, dt_min: float, utilities: Sequence[Utili
         NotComputed("no ΔTmin range was given")
 
     tell("network for maximum energy recovery")
+    matches = {"forbidden": rules.forbidden, "required": rules.required} if rules else {}
 
     def mer():
         from ..network.design import design_mer
 
         return design_mer(streams, dt_min, utilities, costs=costs_in_force, solver=settings.solver,
-                          time_limit=settings.time_limit, default_film_coefficient=h)
+                          time_limit=settings.time_limit, default_film_coefficient=h, **matches)
 
     design = run_step(mer, "the maximum-energy-recovery design", [("energy targets", t)])
 
@@ -447,7 +451,7 @@ def compute_study(streams: StreamTable, dt_min: float, utilities: Sequence[Utili
 
             return design_tac(streams, utilities, costs=costs_in_force, emat=settings.emat,
                               time_limit=settings.tac_time_limit, seed=settings.tac_seed, solver=settings.solver,
-                              default_film_coefficient=h)
+                              default_film_coefficient=h, **matches)
 
         tac_net = run_step(tac, "the lowest-total-annual-cost design (heatloom.network.tac.search)")
     else:

@@ -242,7 +242,8 @@ class TargetCase:
 
     The streams; the utilities with their prices [money/(kW·year)], any price factor applied (None for the
     ideal utilities); the cost settings; ``default_h``, the film coefficient where none is given [kW/(m²·K)];
-    the capital basis; X_P [-]; ``price_factor`` [-], left on the ideal utilities' energy cost (else 1).
+    the capital basis; X_P [-]; ``price_factor`` [-], left on the ideal utilities' energy cost (else 1);
+    ``rules``, the forbidden and required matches every design keeps (:class:`heatloom.model.MatchRules`).
     """
 
     streams: StreamTable
@@ -252,6 +253,7 @@ class TargetCase:
     basis: CapitalBasis
     x_p: float | None
     price_factor: float = 1.0   # on the assumed (ideal) utilities' prices; given utilities carry theirs
+    rules: object = None        # heatloom.model.MatchRules the designs keep (the stream table's forbid/require)
 
 
 def _pinch_ends(t: Targets) -> tuple:
@@ -344,7 +346,7 @@ def sweep_point(streams: StreamTable, dt_min: float, utilities: Sequence[Utility
 def target_case(streams: StreamTable, utilities: Sequence[Utility] | None = None, costs=None,
                 default_film_coefficient: float | None = None,
                 capital_basis: CapitalBasis | str = CapitalBasis.UNITS_MER, x_p: float | None = None,
-                price_factor: float = 1.0) -> TargetCase:
+                price_factor: float = 1.0, *, rules=None) -> TargetCase:
     """Check the inputs of target tasks once and gather them in a :class:`TargetCase`.
 
     Parameters are those of :func:`sweep` (``price_factor`` [-] multiplies the given utilities' prices
@@ -386,7 +388,7 @@ def target_case(streams: StreamTable, utilities: Sequence[Utility] | None = None
         utilities = tuple(u if price_factor == 1.0 else replace(u, cost=u.cost * price_factor) for u in utilities)
         price_factor = 1.0
     return TargetCase(streams, utilities, costs, None if default_h is None else float(default_h), basis, x_p,
-                 price_factor)
+                      price_factor, rules or None)
 
 
 # --------------------------------------------------------------------------------------------------
@@ -450,8 +452,10 @@ def design_point(case: TargetCase, x: float, solver: str | None = None, time_lim
     from ..network.design import design_mer
 
     try:
+        rules = case.rules
         net = design_mer(case.streams, x, case.utilities, costs=case.costs, solver=solver, time_limit=time_limit,
-                         default_film_coefficient=case.default_h)
+                         default_film_coefficient=case.default_h,
+                         **({"forbidden": rules.forbidden, "required": rules.required} if rules else {}))
     except (InfeasibleError, SolverError) as e:
         return DesignPoint(float(x), error=f"{type(e).__name__}: {e}")
     area = float(sum(u.area for u in (*net.exchangers, *net.heaters, *net.coolers)))
@@ -560,7 +564,7 @@ def sweep(streams: StreamTable, dt_min_range: tuple[float, float], utilities: Se
           capital_basis: CapitalBasis | str = CapitalBasis.UNITS_MER, x_p: float | None = None,
           resolution: float = 1e-3, xtol: float = 0.01, refine_margin: float = 0.01,
           progress: Progress | None = None, solver: str | None = None, design_time_limit: float = 60.0,
-          price_factor: float = 1.0) -> Sweep:
+          price_factor: float = 1.0, rules=None) -> Sweep:
     """Total annual cost target against ΔTmin, its breakpoints and its optimum.
 
     .. math:: TAC(\\Delta T_{min}) = \\phi\\,N\\,[a + b\\,(A_{min}/N)^c] + \\sum_u c_u Q_u
@@ -583,6 +587,8 @@ def sweep(streams: StreamTable, dt_min_range: tuple[float, float], utilities: Se
         Grid step [K], > 0.
     designs : sequence of float, optional
         ΔTmin values [K] where a network is also designed (:func:`heatloom.network.design.design_mer`).
+    rules : heatloom.model.MatchRules, optional
+        Forbidden and required matches those designs keep.
     workers : int, optional
         Processes of the local pool; None for one per core; 1 runs serially in this process.
     cluster : str or dask.distributed.Client, optional
@@ -649,7 +655,8 @@ def sweep(streams: StreamTable, dt_min_range: tuple[float, float], utilities: Se
         if not (float(v) > 0):
             raise InputError(f"{name} must be > 0 K, got {v!r}")
     design_at = tuple(check_dt_min(x, "design ΔTmin", positive=True) for x in designs)
-    case = target_case(streams, utilities, costs, default_film_coefficient, capital_basis, x_p, price_factor)
+    case = target_case(streams, utilities, costs, default_film_coefficient, capital_basis, x_p, price_factor,
+                       rules=rules)
     xs = dt_min_grid(low, high, step)
     runner = TaskRunner(workers, cluster, progress)
     try:

@@ -33,6 +33,7 @@ from .common import (
     check_cost_target_inputs,
     dt_min_of,
     find_case_files,
+    match_rules,
     note,
     positive,
     positive_or_zero,
@@ -346,6 +347,7 @@ def run(args) -> int:
 
         existing = ExistingNetwork.from_table(streams, read_network(files["existing network"]), utilities)
     dt_min, dt_note = dt_min_of(args)
+    rules = match_rules(args, streams, utilities, dt_min, files["stream table"])   # both designs keep them
     sweep_range = args.sweep or (min(defaults.SWEEP_RANGE[0], dt_min) if dt_min > 0 else defaults.SWEEP_RANGE[0],
                                  max(defaults.SWEEP_RANGE[1], dt_min))
     emat = args.emat
@@ -363,7 +365,7 @@ def run(args) -> int:
     sources = {role: str(p) for role, p in files.items()}
     try:
         study = compute_study(streams, dt_min, utilities, costs, existing=existing, retrofit_costs=retrofit_costs,
-                              default_film_coefficient=args.default_h, settings=settings, progress=bar.step,
+                              default_film_coefficient=args.default_h, settings=settings, progress=bar.step, rules=rules,
                               title=title, dt_min_note=dt_note, costs_source=sources.get("costs"), sources=sources,
                               notes=tuple(notes), version=__version__,
                               created=datetime.datetime.now().astimezone().isoformat(timespec="seconds"))

@@ -13,6 +13,7 @@ from .common import (
     check_cost_target_inputs,
     finish,
     fmt,
+    match_rules,
     note,
     note_lines,
     number_list,
@@ -161,12 +162,14 @@ def run(args) -> int:
         out.check(OUTPUT_FILES)
     if missing:
         note(args, f"heatloom: film coefficient {args.default_h:g} kW/(m²·K) assumed for {', '.join(missing)}")
+    # the designs keep the stream table's forbidden and required matches
+    rules = match_rules(args, streams, utilities, args.designs[0]) if args.designs else None
     bars = ProgressBars("heatloom sweep", enabled=not (args.quiet or args.json))
     runner_name = describe_executor(args.workers, args.cluster)
     try:
         result = sweep(streams, rng, utilities, costs, step=args.step, designs=args.designs, workers=args.workers,
                        cluster=args.cluster, default_film_coefficient=args.default_h,
-                       capital_basis=args.capital_basis, progress=bars)
+                       capital_basis=args.capital_basis, progress=bars, rules=rules)
     finally:
         bars.close()
     data = result.to_dict()

@@ -274,6 +274,37 @@ def test_infeasible_utilities_give_a_report_and_exit_3(tmp_path, reference, caps
     assert "Not computed: energy targets." in html
 
 
+def _pairs(sheet: pd.DataFrame) -> set:
+    return set(zip(sheet["hot"], sheet["cold"])) if "hot" in sheet else set()
+
+
+@pytest.mark.slow
+def test_the_stream_tables_match_rules_reach_both_designs(tmp_path, reference, capsys):
+    # Sinnott's streams; the MER design without rules uses match 2→3 on both sides of the pinch
+    names = [s["name"] for s in reference("targeting_sinnott_four_stream")[0]["streams"]]
+    plain = tmp_path / "plain"
+    plain.mkdir()
+    (plain / "streams.csv").write_text(sinnott_csv(reference), encoding="utf-8")
+    assert run(capsys, "report", plain, "--out", tmp_path / "r0", "--quiet")[0] == 0
+    before = pd.read_excel(tmp_path / "r0" / "study.xlsx", sheet_name="network units")
+    assert (names[1], names[2]) in {(str(h), str(c)) for h, c in _pairs(before)}
+    ruled = tmp_path / "ruled"
+    ruled.mkdir()
+    lines = sinnott_csv(reference).splitlines()
+    table = [lines[0] + ",forbid"] + [row + ("," + names[2] if row.split(",")[0] == names[1] else ",")
+                                      for row in lines[1:]]
+    (ruled / "streams.csv").write_text("\n".join(table) + "\n", encoding="utf-8")
+    code, _, _ = run(capsys, "report", ruled, "--out", tmp_path / "r1", "--quiet", "--tac", "--tac-time-limit", "10")
+    assert code == 0
+    sheets = pd.read_excel(tmp_path / "r1" / "study.xlsx", sheet_name=None)
+    for name in ("network units", "tac network units"):
+        pairs = {(str(h), str(c)) for h, c in _pairs(sheets[name])}
+        assert (names[1], names[2]) not in pairs
+    assert len(sheets["tac network units"]) > 0 and "hot" in sheets["tac network units"]
+    html = (tmp_path / "r1" / "report.html").read_text(encoding="utf-8")
+    assert f"forbidden {names[1]}→{names[2]}" in html
+
+
 @pytest.mark.slow
 def test_existing_network_gives_the_retrofit_diagnosis_and_options(tmp_path, capsys):
     from heatloom.io import read_costs, read_streams, read_utilities

@@ -163,3 +163,18 @@ def test_target_without_h_omits_them_and_says_so(run, without_h):
     assert not {"area", "units", "shells"} & set(data)
     code, out, _ = run("target", without_h, "--dtmin", "10")
     assert code == 0 and "area, units and shells targets omitted: film coefficient h missing" in out
+
+
+def test_designs_keep_the_stream_tables_forbidden_matches(tmp_path, capsys, with_h):
+    # Sinnott's streams: the MER design at ΔTmin 10 K uses match 2→3; forbidden in the table's 'forbid'
+    # column, the same design either does without it or says it cannot
+    code = cli.main(["sweep", str(with_h), "--dtmin", "5:30", "--designs", "10", "--json", "--quiet"])
+    plain = json.loads(capsys.readouterr().out)["designs"][0]
+    assert code == 0 and plain["error"] == "" and plain["units"] > 0
+    ruled = tmp_path / "ruled.csv"
+    ruled.write_text(SINNOTT_H_CSV.replace("name,T_supply,T_target,CP,h\n", "name,T_supply,T_target,CP,h,forbid\n")
+                     .replace("2,150,30,1.0,0.5\n", "2,150,30,1.0,0.5,3\n").replace("0.5\n", "0.5,\n"),
+                     encoding="utf-8")
+    code = cli.main(["sweep", str(ruled), "--dtmin", "5:30", "--designs", "10", "--json", "--quiet"])
+    design = json.loads(capsys.readouterr().out)["designs"][0]
+    assert code == 0 and "forbidden matches 2→3" in design["error"]
