@@ -334,8 +334,7 @@ def evolve(network: Network, streams: StreamTable, utilities: Sequence[Utility] 
         The utilities of the design; when omitted, :func:`heatloom.pinch.utilities.ideal_utilities` at
         ``dt_min`` (as the design assumes them).
     dt_min : float, optional
-        Minimum approach every unit keeps [K] (the EMAT for a lowest-TAC design, with ``contributions``
-        False); default the network's.
+        Minimum approach every unit keeps [K] (the EMAT for a lowest-TAC design); default the network's.
     min_duty : float, optional
         Remove units of a smaller duty [kW].
     min_area : float, optional
@@ -347,8 +346,9 @@ def evolve(network: Network, streams: StreamTable, utilities: Sequence[Utility] 
     default_film_coefficient : float, optional
         h assumed where a stream or utility has none [kW/(m²·K)].
     contributions : bool, optional
-        Streams' own ΔTmin contributions in the approach each unit needs (as the MER design); False for
-        a lowest-TAC design, whose every unit needs ``dt_min`` [-].
+        Streams' own ΔTmin contributions in the approach each unit needs (the sum of its sides', a side
+        without one counting ``dt_min``/2), as both designs keep them (a lowest-TAC design: with ``dt_min``
+        its EMAT); False: every unit needs ``dt_min`` alone [-].
     max_steps : int, optional
         Most units removed [-].
     exchanger_type, geometry_options : optional

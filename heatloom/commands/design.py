@@ -235,7 +235,7 @@ def run(args) -> int:
             "tube_diameter": args.tube_diameter, "hairpin_length": args.hairpin_length}}
         evolution = evolve(net, streams, utilities, dt_min, min_duty=args.min_duty, min_area=args.min_area,
                            break_loops=args.break_loops, costs=costs, default_film_coefficient=args.default_h,
-                           contributions=not tac, required=rules.required, **geometry)
+                           required=rules.required, **geometry)
         net = evolution.network
     from ..network.streamorder import unordered_streams
 

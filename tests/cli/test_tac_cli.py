@@ -217,3 +217,27 @@ def test_restructure_flag_runs_the_search_beyond_the_stagewise_form(capsys, file
                        "1", "--rounds", "3", "--time-limit", "60")
     assert code == 0
     assert data["total_annual_cost"] <= json.loads(out)["total_annual_cost"] + 1e-6
+
+
+def test_evolution_of_a_tac_design_keeps_the_streams_contributions(capsys, tmp_path, files):
+    # Table 6.16 streams with invented ΔTmin contributions on H1 (8 K) and C2 (6 K); the evolved network's every
+    # unit keeps the larger of EMAT (1 K) and the sum of its sides' contributions (EMAT/2 for a side without),
+    # recomputed here from the JSON temperatures
+    _, u, c = files
+    contributions = {"H1": 8.0, "C2": 6.0}
+    lines = STREAMS.strip().splitlines()
+    table = [lines[0] + ",dT_min_contrib"] + [row + "," + str(contributions.get(row.split(",")[0], ""))
+                                              for row in lines[1:]]
+    s = tmp_path / "contributions.csv"
+    s.write_text("\n".join(table) + "\n", encoding="utf-8")
+    code, out, _ = run(capsys, "design", s, "--mode", "tac", "--utilities", u, "--costs", c, "--min-duty", "500",
+                       "--json", *FAST)
+    assert code == 0
+    data = json.loads(out)
+    assert data["evolution"]["steps"]                 # the evolution removed something
+
+    def need(*names):
+        return max(1.0, sum(contributions.get(n, 0.5) for n in names))
+
+    for e in data["exchangers"]:
+        assert min(e["hot_in"] - e["cold_out"], e["hot_out"] - e["cold_in"]) >= need(e["hot"], e["cold"]) - 1e-6
