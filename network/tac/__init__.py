@@ -8,10 +8,11 @@ from .branches import (
     restructure,
     solve_layout,
 )
+from .build import network_from_solution
 from .nlp import Topology, TopologySolution, polish_cheapest, polish_splits, solve_topology
 from .problem import TacProblem, make_problem
 from .profiles import solve_segmented
-from .search import design_tac, network_from_solution
+from .search import design_tac
 from .starts import mer_network, stagewise_milp, topology_from_network
 
 __all__ = [

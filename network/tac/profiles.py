@@ -21,7 +21,7 @@ boundary (:class:`Profile`).  For a fixed topology (:func:`solve_segmented`):
 * SLSQP minimises the exact TAC over the loads from the least-utility-cost vertex of the balances (and any
   guesses), and a solution is kept only if it keeps every approach exactly; none is returned otherwise.
 
-The network is built and sized by :func:`heatloom.network.tac.search.network_from_solution` with
+The network is built and sized by :func:`heatloom.network.tac.build.network_from_solution` with
 :func:`heatloom.equipment.segments.size_segments` and checked by :func:`heatloom.network.structure.
 check_network`, which checks the approach at every segment break too.
 """

@@ -122,7 +122,7 @@ def test_refined_topology_cost_matches_its_network():
                    frozenset({(0, 0), (1, 0)}))
     sol = solve_topology(p, top, extra_vertex=True)
     assert sol is not None
-    from heatloom.network.tac.search import network_from_solution
+    from heatloom.network.tac.build import network_from_solution
 
     net = network_from_solution(p, sol, streams, utilities, cost_settings(data["cost_law"]))
     assert net.total_annual_cost == pytest.approx(sol.tac, rel=1e-9)
@@ -521,7 +521,7 @@ def test_a_network_failing_the_final_check_is_never_returned(monkeypatch):
     # Roetzel, Luo & Chen 2020, Table 6.16 data; the final check is made to fail on the first (cheapest)
     # network: the run gives the next one that passes, and says so
     from heatloom.errors import InfeasibleError
-    from heatloom.network.tac import search
+    from heatloom.network.tac import build
 
     calls = []
 
@@ -531,7 +531,7 @@ def test_a_network_failing_the_final_check_is_never_returned(monkeypatch):
             raise InfeasibleError("exchanger H1→C1: smallest approach 0.5 K < 1 K (forced here)")
         return check_network(net, *args, **kw)
 
-    monkeypatch.setattr(search, "check_network", failing_once)
+    monkeypatch.setattr(build, "check_network", failing_once)
     data, streams, utilities, net = design_reference("synthesis_yee_grossmann_2h2c", seed=0, starts=1, rounds=0,
                                                      workers=1, milp_iterations=1, time_limit=120)
     assert net.total_annual_cost >= calls[0] and len(calls) >= 2
@@ -591,8 +591,8 @@ def test_free_split_fractions_with_random_restarts_never_cost_more_and_keep_emat
     # from the isothermal loads, and again from random fractions, never costs more than isothermal mixing;
     # each branch's outlet follows its own energy balance (duty = f·CP·ΔT), the branches mix to the
     # stage outlet of the stream's energy balance, and the network's TAC is recomputed with ht.LMTD.
+    from heatloom.network.tac.build import network_from_solution
     from heatloom.network.tac.nlp import polish_splits
-    from heatloom.network.tac.search import network_from_solution
 
     data, streams = load_reference("synthesis_yee_grossmann_2h2c")
     utilities = reference_utilities(data)

@@ -286,8 +286,8 @@ def test_a_tac_network_across_the_condensing_overhead_simulates_back_to_its_duti
     # its load set by the exact-cost refinement of the TAC design: no wall clock involved
     from heatloom import defaults
     from heatloom.model.costs import CostSettings
+    from heatloom.network.tac.build import network_from_solution
     from heatloom.network.tac.nlp import Topology, make_problem, solve_topology
-    from heatloom.network.tac.search import network_from_solution
 
     streams, utilities = _solvent_case()
     costs = CostSettings()
