@@ -323,8 +323,22 @@ class TopologySolution:
     fractions: dict | None = field(default=None, compare=False)
 
 
-def _refine(model: TopologyModel, x0: np.ndarray, max_iter: int) -> np.ndarray:
-    """Minimise the exact cost over the polytope from ``x0``: SLSQP, and scipy's trust-constr if it fails.
+def stop_at(deadline: float | None):
+    """A ``scipy.optimize.minimize`` callback that ends the iterations once ``deadline`` (a
+    ``time.monotonic`` reading [s]) has passed, or None without one: a refinement started just before the
+    end of a run must not run on past it."""
+    if deadline is None:
+        return None
+
+    def callback(*_args):
+        if time.monotonic() > deadline:
+            raise StopIteration
+    return callback
+
+
+def _refine(model: TopologyModel, x0: np.ndarray, max_iter: int, deadline: float | None = None) -> np.ndarray:
+    """Minimise the exact cost over the polytope from ``x0``: SLSQP, and scipy's trust-constr if it fails;
+    the iterations stop at ``deadline`` (see :func:`stop_at`).
 
     Loads are scaled by the largest stream duty, the cost by its starting value, and constraint rows to
     unit length (SLSQP's subproblem tolerances are absolute).
@@ -355,12 +369,12 @@ def _refine(model: TopologyModel, x0: np.ndarray, max_iter: int) -> np.ndarray:
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         res = minimize(fun, y0, jac=True, method="SLSQP", bounds=list(zip(lo, hi)), constraints=cons,
-                       options={"maxiter": max_iter, "ftol": 1e-10})
-        if res.status not in (0, 9) and res.nit <= 2:   # failed at once: a degenerate start
+                       options={"maxiter": max_iter, "ftol": 1e-10}, callback=stop_at(deadline))
+        if res.status not in (0, 9, 99) and res.nit <= 2:   # failed at once: a degenerate start
             lin = [LinearConstraint(G, -g, np.inf)] if len(g) else []
             lin += [LinearConstraint(E, -e, -e)] if len(e) else []
             res = minimize(fun, y0, jac=True, method="trust-constr", bounds=Bounds(lo, hi), constraints=lin,
-                           options={"maxiter": max_iter, "gtol": 1e-8, "xtol": 1e-10})
+                           options={"maxiter": max_iter, "gtol": 1e-8, "xtol": 1e-10}, callback=stop_at(deadline))
     return np.clip(res.x * s, lo * s, hi * s)
 
 
@@ -389,7 +403,7 @@ def _restore(model: TopologyModel, x: np.ndarray) -> np.ndarray | None:
 
 
 def solve_topology(p: TacProblem, top: Topology, starts=(), *, max_iter: int = 200,
-                   extra_vertex: bool = False) -> TopologySolution | None:
+                   extra_vertex: bool = False, deadline: float | None = None) -> TopologySolution | None:
     """Minimise the exact TAC of one topology; None when no loads keep every unit's least approach.
 
     Parameters
@@ -403,11 +417,16 @@ def solve_topology(p: TacProblem, top: Topology, starts=(), *, max_iter: int = 2
         Iterations of the refinement per start [-].
     extra_vertex : bool
         Also start from the LP vertex of least utility cost.
+    deadline : float, optional
+        ``time.monotonic`` reading [s] past which the refinement stops where it is: the result is a
+        feasible point (the refinement's, its projection or the start's), dearer than a full refinement
+        would give, or None where none of them is feasible yet (streams of several segments, whose
+        approaches are not linear).
     """
     if p.segmented:
         from .profiles import solve_segmented
 
-        return solve_segmented(p, top, starts, max_iter=max_iter, extra_vertex=extra_vertex)
+        return solve_segmented(p, top, starts, max_iter=max_iter, extra_vertex=extra_vertex, deadline=deadline)
     model = TopologyModel(p, top)
     if model.constant_violation > 1e-9:
         return None
@@ -446,7 +465,7 @@ def solve_topology(p: TacProblem, top: Topology, starts=(), *, max_iter: int = 2
         x0 = _restore(model, x0)
         if x0 is None:
             return None
-        x = _refine(model, x0, max_iter)
+        x = _refine(model, x0, max_iter, deadline)
         if model.violation(x) > 1e-9:
             x = _restore(model, x)
             if x is None:
@@ -695,10 +714,6 @@ def polish_splits(p: TacProblem, sol: TopologySolution, *, max_iter: int = 100, 
         if np.min(ineq(z), initial=0.0) >= 0.0:   # feasible starts only
             guesses.append(z)
 
-    def stop_at_deadline(_z):
-        if deadline is not None and time.monotonic() > deadline:
-            raise StopIteration
-
     best_z, best_f = None, np.inf
     for n_start, z_start in enumerate(guesses):
         if n_start and deadline is not None and time.monotonic() > deadline:
@@ -708,7 +723,7 @@ def polish_splits(p: TacProblem, sol: TopologySolution, *, max_iter: int = 100, 
             res = minimize(fun, z_start, jac=fun_gradient, method="SLSQP", bounds=bounds,
                            constraints=[{"type": "ineq", "fun": ineq, "jac": ineq_jacobian},
                                         {"type": "eq", "fun": eq, "jac": lambda _z: eq_jac}],
-                           options={"maxiter": max_iter, "ftol": 1e-12}, callback=stop_at_deadline)
+                           options={"maxiter": max_iter, "ftol": 1e-12}, callback=stop_at(deadline))
         z = np.clip(res.x, lo_b, hi_b)
         if np.min(ineq(z), initial=0.0) < -1e-8 or np.max(np.abs(eq(z)), initial=0.0) > 1e-8:
             continue

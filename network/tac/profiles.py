@@ -35,7 +35,7 @@ import numpy as np
 from scipy.optimize import linprog, minimize
 
 from ...model.costs import UnitKind
-from .nlp import Topology, TopologyModel, TopologySolution
+from .nlp import Topology, TopologyModel, TopologySolution, stop_at
 from .problem import TacProblem
 
 __all__ = ["Profile", "stream_profile", "SegmentedModel", "solve_segmented", "APPROACH_KEPT"]
@@ -209,7 +209,7 @@ class SegmentedModel:
 
 
 def solve_segmented(p: TacProblem, top: Topology, starts=(), *, max_iter: int = 200,
-                    extra_vertex: bool = False) -> TopologySolution | None:
+                    extra_vertex: bool = False, deadline: float | None = None) -> TopologySolution | None:
     """Minimise the exact TAC of one topology with streams of several segments; None if no loads keep every
     approach (see :func:`heatloom.network.tac.nlp.solve_topology` for the arguments)."""
     sm = SegmentedModel(p, top)
@@ -245,7 +245,7 @@ def solve_segmented(p: TacProblem, top: Topology, starts=(), *, max_iter: int = 
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
             res = minimize(lambda y: sm.cost(y * s) / f0, x0 / s, method="SLSQP", bounds=list(zip(lo / s, hi / s)),
-                           constraints=cons, options={"maxiter": max_iter, "ftol": 1e-10})
+                           constraints=cons, options={"maxiter": max_iter, "ftol": 1e-10}, callback=stop_at(deadline))
         for x in (np.clip(res.x * s, lo, hi), x0):
             if sm.feasible(x):
                 sol = _solution(sm, x)

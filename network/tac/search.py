@@ -186,7 +186,7 @@ class _Search:
             self.cache[key] = None
             return None
         self.evals += 1
-        sol = solve_topology(self.p, top, [guess] if guess else [], extra_vertex=not guess)
+        sol = solve_topology(self.p, top, [guess] if guess else [], extra_vertex=not guess, deadline=self.deadline)
         if sol is not None:
             tiny = 1e-4 * self.p.scale   # ten times the least load the refinement allows
             small = [k for k, d in zip(sol.keys, sol.duties) if d <= tiny]
