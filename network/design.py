@@ -42,6 +42,7 @@ from ..model.exchangers import ExchangerType
 from ..pinch import target
 from ..pinch.area import missing_film_coefficients
 from ..pinch.utilities import ideal_utilities
+from .merge import approach_shortfalls
 from .placement import Placement, Side, interval_placement, stage_model
 from .sizing import geometry_kind, size_network
 from .solvers import Budget, SolveReport, solve
@@ -162,13 +163,26 @@ def _place(hot: list[Side], cold: list[Side], allowed: set[tuple[str, str]], lab
     names = {s.name for s in (*hot, *cold)}
     mine = {p for p in required if p[0] in names and p[1] in names}
 
+    short: list[str] = []   # placements refused: a unit below ΔTmin at a segment break inside it
+
     def attempt(pairs, k, once, share, what, required=frozenset()):
         prob, read = stage_model(hot, cold, pairs, k, required=set(required) | (mine & set(pairs)), once=once,
                                  name="placement")
         report = budget.record(solve(prob, solver=solver, time_limit=budget.share(share), check=False,
                                      name=f"placement ({label}, {what})"))
         reports.append(report)
-        return (read(), report.optimal) if report.has_solution else (None, False)
+        if not report.has_solution:
+            return None, False
+        result = read()
+        bad = approach_shortfalls(result.units, hot, cold)
+        if bad:
+            short.append(f"{what}: {', '.join(f'{u.hot}→{u.cold}' for u in bad)}")
+            return None, False
+        return result, report.optimal
+
+    def refused() -> str:
+        return (f"; placements refused for a unit below ΔTmin at a segment break inside it ({'; '.join(short)})"
+                if short else "")
 
     if not budget.exhausted:
         result, _ = attempt(allowed, stages, True, 0.5, "one unit per match", allowed if proven else frozenset())
@@ -187,7 +201,7 @@ def _place(hot: list[Side], cold: list[Side], allowed: set[tuple[str, str]], lab
             result, _ = attempt(alt, stages, True, 0.25, "another set of matches, one unit each")
             if result is not None:
                 return result, reports, (f"subnetwork '{label}': the planned matches could not be placed one "
-                                         f"unit each; another set of {len(alt)} matches could")
+                                         f"unit each; another set of {len(alt)} matches could{refused()}")
     everything = {(i.name, j.name) for i in hot for j in cold if not (i.utility and j.utility)
                   and (i.name, j.name) not in forbidden}
     best = None
@@ -207,8 +221,9 @@ def _place(hot: list[Side], cold: list[Side], allowed: set[tuple[str, str]], lab
     if best is not None:
         return best[0], reports, (f"subnetwork '{label}': the planned matches could not be placed one unit "
                                   f"each keeping ΔTmin; {len(best[0].units)} units placed allowing "
-                                  f"{best[1]} instead")
-    why = "no time left of the budget" if not reports else "the placement models stopped without a solution"
+                                  f"{best[1]} instead{refused()}")
+    why = ("no time left of the budget" if not reports else "the placement models stopped without a solution"
+           + refused())
     ticked = tick_off_placement(hot, cold, forbidden=forbidden, required=mine,
                                 time_limit=max(0.5 * budget.remaining, 0.5), tries=20)
     try:

@@ -38,7 +38,7 @@ import numpy as np
 
 from .placement import Side
 
-__all__ = ["Rect", "merge_units", "unit_approach"]
+__all__ = ["Rect", "merge_units", "unit_approach", "approach_shortfalls"]
 
 Rect = tuple[float, float, float, float, float, float]
 """A unit on its two sides: (hot stretch start, hot stretch end, hot share, cold stretch start, cold stretch
@@ -99,6 +99,30 @@ def unit_approach(hs: Side, h0: float, h1: float, fh: float, cs: Side, c0: float
             tc = cs.temperature(c1 - x / fc)
         worst = min(worst, th - tc - need)
     return float(worst)
+
+
+def approach_shortfalls(units, hot: Sequence[Side], cold: Sequence[Side]) -> list:
+    """The placed units (:class:`heatloom.network.placement.PlacedUnit`) whose smallest approach, at the ends
+    and at every inner breakpoint of a segmented side (:func:`unit_approach`), is below what they need.
+
+    The stagewise placement model keeps the approach at the stage boundaries only, so a unit spanning a
+    segment break of a stream whose profile bends towards its partner can pass below it there.
+    """
+    by_name = {(s.name, s.hot): s for s in (*hot, *cold)}
+    out = []
+    for u in units:
+        hs, cs = by_name[u.hot, True], by_name[u.cold, False]
+        if hs.utility or cs.utility:
+            h0, h1 = (0.0, u.duty) if hs.utility else (hs.enthalpy(u.hot_in), hs.enthalpy(u.hot_out))
+            c0, c1 = (0.0, u.duty) if cs.utility else (cs.enthalpy(u.cold_in), cs.enthalpy(u.cold_out))
+        else:
+            h0, h1 = hs.enthalpy(u.hot_in), hs.enthalpy(u.hot_out)
+            c0, c1 = cs.enthalpy(u.cold_in), cs.enthalpy(u.cold_out)
+        fh = 1.0 if hs.utility else u.duty / max(h1 - h0, 1e-300)
+        fc = 1.0 if cs.utility else u.duty / max(c1 - c0, 1e-300)
+        if unit_approach(hs, h0, h1, fh, cs, c0, c1, fc) < -1e-6:   # K, the tolerance of check_network
+            out.append(u)
+    return out
 
 
 def _union(parts: list[tuple[float, float, float]], etol: float) -> tuple[float, float, float] | None:

@@ -18,7 +18,7 @@ from collections.abc import Mapping, Sequence
 
 import numpy as np
 
-from .merge import Rect, unit_approach
+from .merge import Rect, approach_shortfalls, unit_approach
 from .placement import PlacedUnit, Side, interval_placement, stage_model
 from .solvers import SolveReport, solve
 
@@ -85,7 +85,9 @@ def place_remainder(pieces: Sequence[Side], origin: Mapping[str, tuple[str, floa
         reports.append(report)
         if report.has_solution:
             milp = read().units
-            if placed is None or len(milp) < len(placed):
+            if approach_shortfalls(milp, rh, rc):   # a unit below ΔTmin at a segment break inside it
+                milp = None
+            if milp is not None and (placed is None or len(milp) < len(placed)):
                 placed = milp
     if placed is None:
         return None, reports

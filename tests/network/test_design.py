@@ -414,3 +414,54 @@ def test_independent_stream_groups_are_placed_on_their_own(reference, monkeypatc
     assert any("stream group 2 of 2" in p for p in placements)
     assert net.units == 6
     check_network(net, streams)
+
+
+def test_a_placement_below_dtmin_at_a_segment_break_is_refused_for_another():
+    # Invented (shrunk from a generated robustness case): H1 cools over four segments (a 2 K condensing
+    # stretch at 131 → 129 °C), H6 over three, C2 over two, with ΔTmin contributions.  The stagewise placement
+    # keeps the approach at the stage boundaries only; its first placement had H1 → C3 across H1's 131 °C
+    # break at 10.8 K where 10 + 4 = 14 K is needed.  The design must place it otherwise and every unit
+    # must keep its approach at every break inside it, recomputed here from the stream data alone.
+    rows = [("H1", 153.6, 131.0, 5.3, 0.4, 10), ("H1", 131.0, 129.0, 213.7, 4.0, 10), ("H1", 129.0, 110.0, 2.5, 0.4, 10),
+            ("H1", 110.0, 91.0, 15.0, 0.4, 10), ("H3", 162.8, 145.5, 27.3, 2.2, None),
+            ("H6", 224.1, 147.1, 6.7, 1.2, 10), ("H6", 147.1, 145.1, 407.7, 4.9, 10), ("H6", 145.1, 95.0, 7.8, 1.2, 10),
+            ("C2", 125.0, 126.0, 252.4, 4.4, 4), ("C2", 126.0, 208.4, 12.2, 1.2, 4), ("C3", 69.2, 124.7, 26.4, 1.7, 4)]
+    streams = StreamTable(tuple(
+        Stream(name, tuple(Segment(a, b, cp, h, dt) for n, a, b, cp, h, dt in rows if n == name))
+        for name in dict.fromkeys(r[0] for r in rows)))
+    contribution = {r[0]: (r[5] if r[5] is not None else 5.0) for r in rows}
+    net = design_mer(streams, 10.0)
+    check_network(net, streams)
+
+    def profile(name):   # (cumulative heat from the hot end [kW], temperature [°C]) at every break
+        segs = sorted(((a, b, cp) for n, a, b, cp, _, _ in rows if n == name), key=lambda s: -max(s[0], s[1]))
+        points, heat = [(0.0, max(segs[0][:2]))], 0.0
+        for a, b, cp in segs:
+            heat += cp * abs(a - b)
+            points.append((heat, min(a, b)))
+        return points
+
+    def temperature_at(points, heat):
+        for (q0, t0), (q1, t1) in zip(points, points[1:]):
+            if q0 <= heat <= q1:
+                return t0 + (t1 - t0) * (heat - q0) / (q1 - q0)
+        raise AssertionError(heat)
+
+    def heat_at(points, t):
+        for (q0, t0), (q1, t1) in zip(points, points[1:]):
+            if min(t0, t1) <= t <= max(t0, t1):
+                return q0 + (q1 - q0) * (t0 - t) / (t0 - t1)
+        raise AssertionError(t)
+
+    checked = 0
+    for e in net.exchangers:
+        hot, cold = profile(e.hot), profile(e.cold)
+        h0, c0 = heat_at(hot, e.hot_in), heat_at(cold, e.cold_out)    # hot ends, whole-stream heat
+        span_h, span_c = heat_at(hot, e.hot_out) - h0, heat_at(cold, e.cold_in) - c0
+        breaks = {0.0, 1.0} | {(q - h0) / span_h for q, _ in hot if h0 < q < h0 + span_h} | \
+            {(q - c0) / span_c for q, _ in cold if c0 < q < c0 + span_c}
+        for u in breaks:   # the share of the unit's heat from its hot end
+            gap = temperature_at(hot, h0 + u * span_h) - temperature_at(cold, c0 + u * span_c)
+            assert gap >= contribution[e.hot] + contribution[e.cold] - 1e-6
+            checked += 1
+    assert checked > 2 * len(net.exchangers)   # some unit spans a break
