@@ -33,7 +33,9 @@ The sequence (DEVELOPERS.md, "Method notes"):
    a split stream, one unit per branch) or removed, each layout refined against the exact cost; its
    network is kept when it is cheaper.
 7. The best network is built with its temperatures, sized with the exact LMTD, costed from its own
-   temperatures and checked by :func:`heatloom.network.structure.check_network` with ΔTmin = EMAT.
+   temperatures and checked by :func:`heatloom.network.structure.check_network` with ΔTmin = EMAT.  When
+   the starting MER network costs less (its utility units may sit where the stagewise form cannot put
+   them), it is returned instead, with a note.
 
 There is no ΔTmin: only the exchanger minimum approach temperature (EMAT) bounds the design.  The search is
 a heuristic: the result is the best network found within the budget, not a proven optimum.  Costs are
@@ -52,6 +54,7 @@ import os
 import time
 from collections.abc import Callable, Iterable, Sequence
 from concurrent.futures import ProcessPoolExecutor
+from dataclasses import replace
 
 import numpy as np
 
@@ -61,7 +64,7 @@ from ...model import MatchRules, StreamTable, Utility
 from ...model.costs import CostSettings
 from ..design import match_rules
 from ..solvers import Budget
-from ..structure import Network
+from ..structure import Network, check_network
 from .branches import RESTRUCTURE_SHARE, RESTRUCTURE_STREAMS, beyond_stagewise
 from .build import keeping_rules, network_from_solution
 from .nlp import (
@@ -629,19 +632,43 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     failures: list[str] = []
     ranked = sorted({id(c): c for c in (best, *current, *candidates)}.values(), key=lambda c: c.tac)
     ranked = polish_cheapest(p, ranked, budget.deadline - reserve)
+    net = None
     if beyond:
         net = beyond_stagewise(p, ranked[0], streams, utilities, costs, notes, budget, seed)
         if net is not None:
             try:
-                return keeping_rules(net, forbidden, required, least)
+                net = keeping_rules(net, forbidden, required, least)
             except InfeasibleError as exc:
                 failures.append(str(exc))
-    for sol in ranked:
+                net = None
+    for sol in ranked if net is None else ():
         try:
             extra = [f"the {len(failures)} cheaper network(s) found failed the final check ({'; '.join(failures)}); "
                      "the cheapest that passes is given"] if failures else []
-            return keeping_rules(network_from_solution(p, sol, streams, utilities, costs, notes=[*notes, *extra],
-                                                       solves=budget.reports), forbidden, required, least)
+            net = keeping_rules(network_from_solution(p, sol, streams, utilities, costs, notes=[*notes, *extra],
+                                                      solves=budget.reports), forbidden, required, least)
+            break
         except (InfeasibleError, InputError) as exc:   # a failed check, or a unit the sizing refuses
             failures.append(str(exc))
-    raise InfeasibleError(f"no network found passes the final check: {failures[0]}")
+    if mer is not None and (net is None or mer.total_annual_cost < net.total_annual_cost * (1 - 1e-9)):
+        return _mer_as_result(p, mer, net, streams, utilities, notes, budget, forbidden, required, least)
+    if net is None:
+        raise InfeasibleError(f"no network found passes the final check: {failures[0]}")
+    return net
+
+
+def _mer_as_result(p: TacProblem, mer: Network, net: Network | None, streams, utilities, notes, budget,
+                   forbidden, required, least) -> Network:
+    """The starting MER network as the result, when it costs less than every stagewise network found: its
+    utility units may sit where the stagewise form cannot put them (a heater before a process exchanger
+    on a cold stream, fed by a cheaper, cooler utility level).  Checked with EMAT and the contributions."""
+    than = (f"less than the cheapest stagewise network the search found ({net.total_annual_cost:,.0f})"
+            if net is not None else "and no stagewise network found passed the final check")
+    why = (f"the starting MER network (ΔTmin {mer.dt_min:g} K) costs {mer.total_annual_cost:,.0f} "
+           f"{mer.currency}/year, {than}: it is given as designed, with its ΔTmin kept in every unit (its "
+           "utility units sit where the stagewise form, with utility units at the stream ends, cannot put them: "
+           "the search needs a utility unit before a process exchanger on a stream)")
+    kept = [n for n in notes if not n.startswith(("isothermal mixing", "stream splits with free flow fractions"))]
+    result = replace(mer, dt_min=p.emat, notes=(*kept, why), solves=tuple(budget.reports))
+    check_network(result, streams, utilities, dt_min=p.emat, contributions=True)
+    return keeping_rules(result, forbidden, required, least)
