@@ -102,19 +102,22 @@ def key_precision(key) -> int | None:
 
 
 def rounded(value, places: int | None):
-    """A finite float rounded to ``places`` decimals (None: unchanged); anything else as it is.
+    """A finite float rounded to ``places`` decimals (None: unchanged); anything else as it is.  A value
+    that is not zero is never written as zero: below half a unit of the last place it keeps three
+    significant digits (a unit of 0.0004 m² stays a unit when its table is read back).
 
     Rounding only removes float noise: the result differs from the value by at most half a unit of the
     last place kept.
 
     Examples
     --------
-    >>> rounded(772.5000000000009, 3), rounded(0.12345, None), rounded(7, 3)
-    (772.5, 0.12345, 7)
+    >>> rounded(772.5000000000009, 3), rounded(0.12345, None), rounded(7, 3), rounded(0.000412345, 3)
+    (772.5, 0.12345, 7, 0.000412)
     """
     if places is None or isinstance(value, bool) or not isinstance(value, float) or not math.isfinite(value):
         return value
-    return round(value, places)
+    out = round(value, places)
+    return float(f"{value:.3g}") if out == 0 and value != 0 else out
 
 
 def to_jsonable(value, *, key=None):

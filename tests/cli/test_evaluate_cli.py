@@ -67,3 +67,21 @@ def test_unknown_stream_in_the_network_is_an_input_error(capsys, files):
     files["network"].write_text(NETWORK.replace("E4,2,3", "E4,2,C9"), encoding="utf-8")
     code, _, err = run(capsys, "evaluate", files["streams"], files["network"], "--utilities", files["utilities"])
     assert code == 2 and "C9" in err
+
+
+def test_a_designs_own_units_table_passes_evaluate(capsys, tmp_path):
+    # invented (shrunk from a generated robustness case): a hot stream, a cold stream boiling over 0.5 K and a
+    # second cold stream; the table rounds areas to 0.001 m², so the rated duties differ from the design's by a
+    # few watts: within the 0.1 % balance tolerance evaluate states, never a failed check
+    (tmp_path / "s.csv").write_text("name,T_supply,T_target,CP,h\nH1,153.6,60,10.0,1.0\nC1,73.3,73.8,202.5,4.0\n"
+                                    "C2,40,120,8.0,1.0\n", encoding="utf-8")
+    (tmp_path / "u.csv").write_text("name,T_supply,T_target,cost,h\nsteam,200,199,150,4.0\n"
+                                    "cooling water,20,30,12,1.5\n", encoding="utf-8")
+    code, _, _ = run(capsys, "design", tmp_path / "s.csv", "--utilities", tmp_path / "u.csv", "--out", tmp_path / "d",
+                     "--quiet")
+    assert code == 0
+    code, out, err = run(capsys, "evaluate", tmp_path / "s.csv", tmp_path / "d" / "design_units.csv", "--utilities",
+                         tmp_path / "u.csv", "--json")
+    assert code == 0, err
+    data = json.loads(out)
+    assert data["ok"] and data["failures"] == [] and data["targets_met"]
