@@ -174,3 +174,17 @@ def test_limits_must_be_positive(reference, option):
     net = design_mer(streams, 10)
     with pytest.raises(InputError, match=option):
         evolve(net, streams, **{option: 0.0})
+
+
+def test_a_network_at_dtmin_to_within_the_check_tolerance_is_evolved():
+    # Sinnott's Table 3.6 streams (C&R Vol. 6, ch. 3; h 0.5 assumed) designed at ΔTmin 10 K: its pinch units sit
+    # at exactly 10 K.  Evolved at 10 K + 5e-7 K they are below it by less than check_network's 1e-6 K, which a
+    # solver's or a float's noise gives: the network is evolved, not refused as breaking ΔTmin
+    from heatloom.model import StreamTable
+    from heatloom.network import design_mer
+    from heatloom.network.evolution import evolve
+
+    s = StreamTable.from_arrays(["1", "2", "3", "4"], [180, 150, 20, 80], [60, 30, 135, 140], [3.0, 1.0, 2.0, 4.5],
+                                film_coefficient=[0.5] * 4)
+    ev = evolve(design_mer(s, 10.0), s, dt_min=10.0 + 5e-7, min_duty=40.0)
+    assert ev.steps and not any("not evolved" in n for n in ev.notes)
