@@ -132,6 +132,20 @@ class SolveReport:
         """True when variable values can be read (optimal, or stopped with a feasible solution)."""
         return self.status.has_solution
 
+    @property
+    def outcome(self) -> str:
+        """The status in words: a solve with no solution says when its limit stopped it (a time limit, not
+        a failure).
+
+        Examples
+        --------
+        >>> SolveReport("highs", SolveStatus.ERROR, None, None, None, 1.0, 1.0, "p", "Time limit reached").outcome
+        'stopped at its limit, no solution'
+        """
+        if self.status is SolveStatus.ERROR and "limit" in self.detail.lower():
+            return "stopped at its limit, no solution"
+        return self.status.value
+
     def to_dict(self) -> dict:
         return {"solver": self.solver, "status": self.status.value, "objective": self.objective,
                 "gap": self.gap, "bound": self.bound, "wall_time": self.wall_time,

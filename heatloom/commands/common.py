@@ -352,14 +352,14 @@ def solves_summary(reports) -> str:
     """One line on the solves behind a result: how many, their statuses, total time, solver."""
     if not reports:
         return "solves: none"
-    statuses = Counter(r.status.value for r in reports)
+    statuses = Counter(r.outcome for r in reports)
     solvers = sorted({r.solver for r in reports})
     worst = [r for r in reports if not r.optimal]
     text = (f"solves: {len(reports)} ({', '.join(f'{n} {s}' for s, n in statuses.items())}), "
             f"{sum(r.wall_time for r in reports):.2f} s, solver {'/'.join(solvers)}")
     for r in worst:
         gap = f", gap {100 * r.gap:.2g} %" if r.gap is not None else ""
-        text += f"; not proven optimal: {r.problem} ({r.status.value}{gap})"
+        text += f"; not proven optimal: {r.problem} ({r.outcome}{gap})"
     return text
 
 
