@@ -312,8 +312,8 @@ def interval_placement(hot: Sequence[Side], cold: Sequence[Side], preferred: set
                        *, forbidden: set[tuple[str, str]] = frozenset()) -> Placement:
     """A placement without a solver: units interval by interval, every stream split where it must be.
 
-    The sides are cut at every shifted breakpoint (the temperature intervals of the problem table).
-    Going down the intervals, each piece of a cold side takes heat from pieces of hot sides at or above
+    The sides are cut at every shifted breakpoint (the temperature intervals of the problem table, and the
+    utilities' shifted temperatures).  Going down the intervals, each piece of a cold side takes heat from pieces of hot sides at or above
     it (pieces of the same interval or hotter ones), each pairing a unit on parallel branches of both
     pieces; the shifted grid makes every such unit keep the sum of its sides' shifts at both ends.  Pairs
     in ``preferred`` (the planned matches) and pairs already used come first; afterwards units that
@@ -347,8 +347,10 @@ def interval_placement(hot: Sequence[Side], cold: Sequence[Side], preferred: set
     sides = (*hot, *cold)
     scale = max(max(s.duty for s in sides), 1.0)
     tol = 1e-9 * scale
-    grid = sorted({round(t - s.shift if s.hot else t + s.shift, 9) for s in sides if not s.utility
-                   for t in s.temperatures}, reverse=True)
+    # the utilities' temperatures too: a cold piece is cut where one utility level stops being able to serve
+    # it and the next must take over (steam at 300 °C serves up to 290 °C, hot oil beyond)
+    grid = sorted({round(t - s.shift if s.hot else t + s.shift, 9) for s in sides for t in s.temperatures},
+                  reverse=True)
     grid_a = np.asarray(grid, dtype=float)
     hp = [p for s in hot for p in _pieces(s, grid_a, tol)]
     cp = sorted((p for s in cold for p in _pieces(s, grid_a, tol)), key=lambda p: (p.k, -p.heat))

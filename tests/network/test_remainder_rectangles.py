@@ -102,3 +102,18 @@ def test_moves_repair_a_search_that_stopped_early(monkeypatch):
     monkeypatch.setattr(tickoff, "as_rectangles", lambda *args: None)
     result = tickoff.tick_off_placement([H1, H2], [C1, C2], time_limit=1.0, neighbourhood=0.6)
     assert result.moves == 0 and result.remainder == len(result.placement.units) > 2
+
+
+def test_interval_placement_cuts_a_cold_piece_where_one_utility_level_hands_over_to_the_next():
+    # invented (shrunk from a generated robustness case): C20 heated 288.1 → 308.7 °C (9.1 kW/K), hot oil
+    # 360 → 310 °C with the 170.17 kW above 290 °C, steam at 300 → 299 °C with the 17.29 kW below; shifts
+    # 5 K each, so a unit needs 10 K.  Steam can serve C20 only up to 290 °C (300 − 10) and hot oil only from
+    # an inlet of at most 300 °C (310 − 10): the piece must be cut at 290 °C, not served as one
+    c = Side("C20", False, (288.1, 308.7), (0.0, 9.1 * 20.6), 5.0)
+    oil = Side("hot oil", True, (360.0, 310.0), (0.0, 9.1 * 18.7), 5.0, utility=True)
+    steam = Side("steam", True, (300.0, 299.0), (0.0, 9.1 * 1.9), 5.0, utility=True)
+    units = interval_placement([oil, steam], [c]).units
+    assert sum(u.duty for u in units) == pytest.approx(9.1 * 20.6)
+    for u in units:   # each utility unit runs over the utility's whole range, both ends checked here
+        assert u.hot_in - u.cold_out >= 10 - 1e-9 and u.hot_out - u.cold_in >= 10 - 1e-9
+    assert sum(u.duty for u in units if u.hot == "steam") == pytest.approx(9.1 * 1.9)
