@@ -1,4 +1,4 @@
-"""Problem sets shared by tests/network/test_transshipment.py and tests/network/test_milp.py.
+"""Problem sets shared by tests/network/test_transshipment.py, tests/network/test_milp.py and the TAC tests.
 
 Names of the published reference problems in tests/data/references/ (each file names its source, and the
 tests repeat it beside every assertion), and a hypothesis strategy of invented problems used only for
@@ -49,3 +49,16 @@ def problems(draw):
               Utility("chiller", -60, -50, prices[2] + 1000),          # dearest, cold enough for anything
               Utility("warm cooler", t_cold, t_cold + glide, prices[3], UtilityKind.COLD)]
     return table, draw(st.integers(0, 30)), levels
+
+
+def segmented_problem():
+    """Invented data: a vapour desuperheated, condensed and subcooled (three segments, each its own h), a
+    second hot stream, two cold streams; steam and cooling water."""
+    streams = StreamTable((
+        Stream("vapour", (Segment(200, 150, 2.0, 1.0), Segment(150, 149, 100.0, 2.0), Segment(149, 60, 1.5, 0.8))),
+        Stream.simple("H2", 170, 50, 1.0, film_coefficient=1.0),
+        Stream.simple("feed", 30, 160, 2.5, film_coefficient=1.0),
+        Stream.simple("C2", 80, 140, 1.5, film_coefficient=1.0)))
+    utilities = [Utility("steam", 180, 179, 120.0, UtilityKind.HOT, 3.0),
+                 Utility("water", 15, 25, 10.0, UtilityKind.COLD, 2.0)]
+    return streams, utilities

@@ -22,9 +22,10 @@ from refdata import (
     reference_utilities,
     tac_by_published_law,
 )
+from synthesis_problems import segmented_problem
 
 from heatloom.errors import InputError, SolverError
-from heatloom.model import Segment, Stream, StreamTable, Utility, UtilityKind
+from heatloom.model import Stream, StreamTable, Utility, UtilityKind
 from heatloom.model.costs import CostLaw, CostSettings
 from heatloom.network.design import design_mer
 from heatloom.network.solvers import Budget, SolveReport, SolveStatus
@@ -400,19 +401,6 @@ def test_contributions_are_lower_bounds_on_every_approach():
 
 
 # ------------------------------------------------------------------------------ streams of several segments
-
-def segmented_problem():
-    """Invented data: a vapour desuperheated, condensed and subcooled (three segments, each its own h), a
-    second hot stream, two cold streams; steam and cooling water."""
-    streams = StreamTable((
-        Stream("vapour", (Segment(200, 150, 2.0, 1.0), Segment(150, 149, 100.0, 2.0), Segment(149, 60, 1.5, 0.8))),
-        Stream.simple("H2", 170, 50, 1.0, film_coefficient=1.0),
-        Stream.simple("feed", 30, 160, 2.5, film_coefficient=1.0),
-        Stream.simple("C2", 80, 140, 1.5, film_coefficient=1.0)))
-    utilities = [Utility("steam", 180, 179, 120.0, UtilityKind.HOT, 3.0),
-                 Utility("water", 15, 25, 10.0, UtilityKind.COLD, 2.0)]
-    return streams, utilities
-
 
 def side_points(stream, t_in, t_out, fraction):
     """(heat from the unit's hot end [kW], temperature [°C], h of the piece that follows) along one side.

@@ -3,15 +3,15 @@
 Published data: the two hot / two cold problem of Yee & Grossmann (1990) as given by Roetzel, Luo & Chen 2020,
 Design and Operation of Heat Exchangers and their Networks, ch. 6, Table 6.16, with its cost law and prices;
 the networks are recomputed with that law by ht.LMTD (``refdata.assert_sound``).  The segmented problem is
-invented (``test_tac.segmented_problem``'s data, written again here).
+invented (``synthesis_problems.segmented_problem``).
 """
 
 import time
 
 import pytest
 from refdata import assert_sound, cost_settings, load_reference, reference_utilities
+from synthesis_problems import segmented_problem
 
-from heatloom.model import Segment, Stream, StreamTable, Utility, UtilityKind
 from heatloom.model.costs import CostLaw, CostSettings
 from heatloom.network.solvers import solve
 from heatloom.network.structure import check_network
@@ -55,14 +55,7 @@ def test_a_refinement_past_its_deadline_stops_at_once_and_stays_feasible(monkeyp
 
 
 def test_a_segmented_refinement_past_its_deadline_stops_at_once_and_stays_feasible(monkeypatch):
-    # invented: a vapour desuperheated, condensed and subcooled, a second hot stream, two cold streams
-    streams = StreamTable((
-        Stream("vapour", (Segment(200, 150, 2.0, 1.0), Segment(150, 149, 100.0, 2.0), Segment(149, 60, 1.5, 0.8))),
-        Stream.simple("H2", 170, 50, 1.0, film_coefficient=1.0),
-        Stream.simple("feed", 30, 160, 2.5, film_coefficient=1.0),
-        Stream.simple("C2", 80, 140, 1.5, film_coefficient=1.0)))
-    utilities = [Utility("steam", 180, 179, 120.0, UtilityKind.HOT, 3.0),
-                 Utility("water", 15, 25, 10.0, UtilityKind.COLD, 2.0)]
+    streams, utilities = segmented_problem()   # invented
     costs = CostSettings(annualised=True, exchanger=CostLaw(2000, 700, 0.8))
     p = make_problem(streams, utilities, costs, 5.0)
     prob, read = stagewise_milp(p, 2, {})
