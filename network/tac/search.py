@@ -440,8 +440,9 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         steam on a stream).
     required : iterable of (str, str)
         (hot, cold) pairs matched in at least one unit (a utility's: that utility serves the stream).
-        Every topology the search keeps has them; the notes give the duty each carries, since the
-        lowest-cost network may give a required unit very little.
+        Every topology the search keeps has them, each carrying at least
+        :data:`heatloom.network.tac.problem.REQUIRED_SHARE` of the most it could carry alone
+        (:meth:`TacProblem.least_load`); the notes give the duty of each.
 
     Returns
     -------
@@ -651,14 +652,14 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         except (InfeasibleError, InputError) as exc:   # a failed check, or a unit the sizing refuses
             failures.append(str(exc))
     if mer is not None and (net is None or mer.total_annual_cost < net.total_annual_cost * (1 - 1e-9)):
-        return _mer_as_result(p, mer, net, streams, utilities, notes, budget, forbidden, required, least)
+        return _mer_as_result(p, mer, net, streams, utilities, notes, budget, forbidden, required)
     if net is None:
         raise InfeasibleError(f"no network found passes the final check: {failures[0]}")
     return net
 
 
 def _mer_as_result(p: TacProblem, mer: Network, net: Network | None, streams, utilities, notes, budget,
-                   forbidden, required, least) -> Network:
+                   forbidden, required) -> Network:
     """The starting MER network as the result, when it costs less than every stagewise network found: its
     utility units may sit where the stagewise form cannot put them (a heater before a process exchanger
     on a cold stream, fed by a cheaper, cooler utility level).  Checked with EMAT and the contributions."""
@@ -671,4 +672,4 @@ def _mer_as_result(p: TacProblem, mer: Network, net: Network | None, streams, ut
     kept = [n for n in notes if not n.startswith(("isothermal mixing", "stream splits with free flow fractions"))]
     result = replace(mer, dt_min=p.emat, notes=(*kept, why), solves=tuple(budget.reports))
     check_network(result, streams, utilities, dt_min=p.emat, contributions=True)
-    return keeping_rules(result, forbidden, required, least)
+    return keeping_rules(result, forbidden, required)   # the MER design's own duties: no least load
