@@ -228,7 +228,8 @@ named in the notes instead."""
 OUTPUT_PRECISION = MappingProxyType({"duty": 3, "temperature": 3, "area": 3, "money": 2})
 """Decimal places of the numbers written to JSON, CSV and XLSX, by kind of quantity [-]: duties to 0.001 kW,
 temperatures and temperature differences to 0.001 °C / 0.001 K, areas to 0.001 m², money (costs, investments,
-savings, per year or once) to 0.01 of the currency.  Values are rounded only when written
+savings, per year or once) to 0.01 of the currency (a value that is not zero is never written as zero: below
+half a unit of the last place it keeps three significant digits).  Values are rounded only when written
 (:mod:`heatloom.io.export`), never inside a computation, so that float noise such as 772.5000000000009 kW is
 written as 772.5; quantities of any other kind (CP, film coefficients, prices, ratios) are written unrounded,
 and so are tables of inputs (stream and utility tables as read), which must read back exactly.
