@@ -112,12 +112,9 @@ def approach_shortfalls(units, hot: Sequence[Side], cold: Sequence[Side]) -> lis
     out = []
     for u in units:
         hs, cs = by_name[u.hot, True], by_name[u.cold, False]
-        if hs.utility or cs.utility:
-            h0, h1 = (0.0, u.duty) if hs.utility else (hs.enthalpy(u.hot_in), hs.enthalpy(u.hot_out))
-            c0, c1 = (0.0, u.duty) if cs.utility else (cs.enthalpy(u.cold_in), cs.enthalpy(u.cold_out))
-        else:
-            h0, h1 = hs.enthalpy(u.hot_in), hs.enthalpy(u.hot_out)
-            c0, c1 = cs.enthalpy(u.cold_in), cs.enthalpy(u.cold_out)
+        # stretches of each side's enthalpy at full flow; a utility's own flow spans the unit's duty
+        h0, h1 = (0.0, u.duty) if hs.utility else (hs.enthalpy(u.hot_in), hs.enthalpy(u.hot_out))
+        c0, c1 = (0.0, u.duty) if cs.utility else (cs.enthalpy(u.cold_in), cs.enthalpy(u.cold_out))
         fh = 1.0 if hs.utility else u.duty / max(h1 - h0, 1e-300)
         fc = 1.0 if cs.utility else u.duty / max(c1 - c0, 1e-300)
         if unit_approach(hs, h0, h1, fh, cs, c0, c1, fc) < -1e-6:   # K, the tolerance of check_network

@@ -313,12 +313,13 @@ def interval_placement(hot: Sequence[Side], cold: Sequence[Side], preferred: set
     """A placement without a solver: units interval by interval, every stream split where it must be.
 
     The sides are cut at every shifted breakpoint (the temperature intervals of the problem table, and the
-    utilities' shifted temperatures).  Going down the intervals, each piece of a cold side takes heat from pieces of hot sides at or above
-    it (pieces of the same interval or hotter ones), each pairing a unit on parallel branches of both
-    pieces; the shifted grid makes every such unit keep the sum of its sides' shifts at both ends.  Pairs
-    in ``preferred`` (the planned matches) and pairs already used come first; afterwards units that
-    follow each other on unsplit pieces of the same pair are merged.  Many more units than the fewest,
-    but there always is one when the sides balance at the energy targets: the last resort of the design.
+    utilities' shifted temperatures).  Going down the intervals, each piece of a cold side takes heat from
+    pieces of hot sides at or above it (pieces of the same interval or hotter ones), each pairing a unit on
+    parallel branches of both pieces; the shifted grid makes every such unit keep the sum of its sides'
+    shifts at both ends.  Pairs in ``preferred`` (the planned matches) and pairs already used come first;
+    afterwards units that follow each other on unsplit pieces of the same pair are merged.  Many more units
+    than the fewest, but there always is one when the sides balance at the energy targets: the last resort
+    of the design.
 
     Parameters
     ----------
