@@ -31,7 +31,7 @@ import os
 import re
 import zipfile
 from collections.abc import Iterable, Mapping
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..errors import InputError
@@ -39,7 +39,7 @@ from ..model import StreamTable
 from ..model.site import MainKind, SteamMain, Zone, check_mains
 from .cells import read_input_bytes
 from .points import DEFAULT_FIT_TOLERANCE
-from .streams import read_streams
+from .streams import read_match_rules, read_streams
 from .tables import read_table
 
 __all__ = ["MAINS_COLUMNS", "Site", "read_site", "read_mains", "zone_name"]
@@ -73,6 +73,9 @@ class Site:
         Zone name → file (and sheet) it was read from.
     files : tuple of str
         Every file read (zones and mains), so that writers can refuse to write over them.
+    zone_rules : dict
+        Zone name → the forbidden and required matches of its table's ``forbid``/``require`` columns
+        (:func:`heatloom.io.streams.read_match_rules`), for the zones whose table has any.
     """
 
     path: str
@@ -81,6 +84,7 @@ class Site:
     mains_source: str | None
     zone_sources: dict[str, str]
     files: tuple[str, ...] = ()
+    zone_rules: dict = field(default_factory=dict)
 
 
 def zone_name(stem: str) -> str:
@@ -254,6 +258,7 @@ def read_site(path: str | os.PathLike, *, mains: str | os.PathLike | None = None
         raise InputError("site not found: give a folder of zone stream tables, a workbook with one sheet per "
                          "zone, or one stream table", file=str(p))
     found: list[tuple[str, StreamTable, str]] = []
+    rules: dict = {}   # zone → its table's forbid/require columns
     mains_path: Path | None = None if mains is None else Path(os.fspath(mains))
     mains_sheet = None
     if p.is_dir():
@@ -266,6 +271,7 @@ def read_site(path: str | os.PathLike, *, mains: str | os.PathLike | None = None
         for f in zone_files:
             streams = read_streams(f, columns=columns, fit_tolerance=fit_tolerance)
             found.append((zone_name(f.stem), streams, str(f)))
+            rules[found[-1][0]] = read_match_rules(f, streams, columns=columns)
         if mains_path is None:
             candidates = [f for f in files if "mains" in f.name.casefold() and f not in zone_files]
             if len(candidates) > 1:
@@ -280,6 +286,7 @@ def read_site(path: str | os.PathLike, *, mains: str | os.PathLike | None = None
         for n in zone_sheets:
             streams = read_streams(p, sheet=n, columns=columns, fit_tolerance=fit_tolerance)
             found.append((n.strip(), streams, f"{p}, sheet '{n}'"))
+            rules[found[-1][0]] = read_match_rules(p, streams, sheet=n, columns=columns)
         if mains_path is None:
             named = [n for n, filled in sheets if filled and "mains" in n.casefold()]
             if len(named) > 1:
@@ -290,6 +297,7 @@ def read_site(path: str | os.PathLike, *, mains: str | os.PathLike | None = None
     else:
         streams = read_streams(p, columns=columns, fit_tolerance=fit_tolerance)
         found.append((zone_name(p.stem), streams, str(p)))
+        rules[found[-1][0]] = read_match_rules(p, streams, columns=columns)
 
     seen: dict[str, str] = {}
     for name, _, where in found:
@@ -307,4 +315,5 @@ def read_site(path: str | os.PathLike, *, mains: str | os.PathLike | None = None
     files = [str(f) for f in zone_files] if p.is_dir() else [str(p)]
     if mains_path is not None and str(mains_path) not in files:
         files.append(str(mains_path))
-    return Site(str(p), zones, site_mains, source, {name: where for name, _, where in found}, tuple(files))
+    return Site(str(p), zones, site_mains, source, {name: where for name, _, where in found}, tuple(files),
+                {name: r for name, r in rules.items() if r})

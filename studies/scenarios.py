@@ -281,7 +281,7 @@ def scenario_study(zones, dt_min_range: tuple[float, float], utilities: Sequence
                    default_film_coefficient: float | None = None,
                    capital_basis: CapitalBasis | str = CapitalBasis.UNITS_MER, x_p: float | None = None,
                    optimum_step: float = 0.5, progress: Progress | None = None, solver: str | None = None,
-                   design_time_limit: float = 30.0, max_cases: int = MAX_CASES) -> ScenarioStudy:
+                   design_time_limit: float = 30.0, max_cases: int = MAX_CASES, rules=None) -> ScenarioStudy:
     """Targets, optional designs and optimum ΔTmin for every zone × price scenario × ΔTmin.
 
     Parameters
@@ -316,6 +316,9 @@ def scenario_study(zones, dt_min_range: tuple[float, float], utilities: Sequence
         MILP solver name and time limit of each design solve [s].
     max_cases : int, optional
         Guard against a mistyped range or step.
+    rules : mapping, optional
+        Zone name → :class:`heatloom.model.MatchRules`, the forbidden and required matches its designs keep
+        (the zone table's ``forbid``/``require`` columns, :attr:`heatloom.io.site.Site.zone_rules`).
 
     Returns
     -------
@@ -368,10 +371,13 @@ def scenario_study(zones, dt_min_range: tuple[float, float], utilities: Sequence
     pairs = []
     for zone, table in zone_tables.items():
         for plan in plans:
+            mine = (rules or {}).get(zone)   # the zone's forbidden and required matches, kept by its designs
             if utilities is None:
-                case = target_case(table, None, costs, default_film_coefficient, capital_basis, x_p, plan.factor)
+                case = target_case(table, None, costs, default_film_coefficient, capital_basis, x_p, plan.factor,
+                                   rules=mine)
             else:
-                case = target_case(table, plan.apply(utilities), costs, default_film_coefficient, capital_basis, x_p)
+                case = target_case(table, plan.apply(utilities), costs, default_film_coefficient, capital_basis, x_p,
+                                   rules=mine)
             pairs.append((zone, plan, case))
     runner = TaskRunner(workers, cluster, progress)
     try:

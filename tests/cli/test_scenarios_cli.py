@@ -279,3 +279,24 @@ def test_console_names_long_zones_and_scenarios_whole_and_the_safety_note_once(r
     rows = [line for line in out.splitlines() if line.startswith("  north_bank_evaporator_train ")]
     assert any("dear steam after the 2027 contract" in line for line in rows)
     assert out.count(SAFETY_NOTE) == 1
+
+
+def test_designs_keep_each_zone_tables_forbidden_matches(run, site, tmp_path):
+    # Sinnott's streams as zone 'north' with a 'forbid' column keeping stream 2 off stream 3: its design at
+    # ΔTmin 10 K uses that match (below the pinch, as designed without the column), so the design either does
+    # without it or says it cannot; the other zone designs as before.  A name the zone lacks is refused.
+    folder = site / "site"
+    (folder / "north_streams.csv").write_text(
+        SINNOTT.replace("name,T_supply,T_target,CP,h\n", "name,T_supply,T_target,CP,h,forbid\n")
+        .replace("2,150,30,1.0,0.5\n", "2,150,30,1.0,0.5,3\n").replace("0.5\n", "0.5,\n"), encoding="utf-8")
+    code, out, _ = run("scenarios", folder, "--dtmin", "10:10", "--designs", "--workers", "1", "--json")
+    assert code == 0
+    cases = {c["zone"]: c for c in json.loads(out)["cases"]}
+    assert "forbidden matches 2→3" in cases["north"]["design_error"]
+    assert cases["south"]["design_error"] == "" and cases["south"]["design_units"] > 0
+    (folder / "north_streams.csv").write_text(SINNOTT.replace("name,T_supply,T_target,CP,h\n",
+                                                              "name,T_supply,T_target,CP,h,forbid\n")
+                                              .replace("2,150,30,1.0,0.5\n", "2,150,30,1.0,0.5,9\n")
+                                              .replace("0.5\n", "0.5,\n"), encoding="utf-8")
+    code, _, err = run("scenarios", folder, "--dtmin", "10:10", "--designs", "--workers", "1")
+    assert code == 2 and "zone 'north'" in err and "'9'" in err
