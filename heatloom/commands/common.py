@@ -270,13 +270,19 @@ def match_rules(args, streams, utilities, dt_min: float, path=None):
     rules = read_match_rules(path if path is not None else args.file, streams, sheet=getattr(args, "sheet", None),
                              columns=columns).merged(MatchRules.from_text(getattr(args, "forbid", ()) or (),
                                                                           getattr(args, "require", ()) or ()))
+    check_rules(rules, streams, utilities, dt_min)
+    return rules
+
+
+def check_rules(rules, streams, utilities, dt_min: float) -> None:
+    """Check match rules against the streams and the utilities, the assumed ones (at ``dt_min`` [K]: their
+    names do not depend on it) when none are given (:meth:`heatloom.model.MatchRules.check`)."""
     if rules:
         if utilities is None:
             from ..pinch.utilities import ideal_utilities
 
             utilities = ideal_utilities(streams, dt_min)
         rules.check(streams, utilities)
-    return rules
 
 
 def read_cost_settings(path, hours_per_year=None):

@@ -13,6 +13,7 @@ from .common import (
     add_output_options,
     add_site_table_options,
     check_cost_target_inputs,
+    check_rules,
     finish,
     fmt,
     folder_tables,
@@ -199,16 +200,11 @@ def run(args) -> int:
     if site.mains:
         note(args, "heatloom scenarios: the mains table is not used (each zone is targeted alone); see heatloom site")
     rules = site.zone_rules if args.designs else {}   # the designs keep each zone table's forbid/require
-    if rules:
-        from ..pinch.utilities import ideal_utilities
-
-        for zone in site.zones:   # against the given utilities, else the assumed ones (names free of ΔTmin)
-            if zone.name in rules:
-                try:
-                    rules[zone.name].check(zone.streams, utilities if utilities is not None
-                                           else ideal_utilities(zone.streams, 10.0))
-                except InputError as exc:
-                    raise InputError(f"zone '{zone.name}' ({site.zone_sources[zone.name]}): {exc}") from None
+    for zone in site.zones:
+        try:
+            check_rules(rules.get(zone.name), zone.streams, utilities, rng[0])
+        except InputError as exc:
+            raise InputError(f"zone '{zone.name}' ({site.zone_sources[zone.name]}): {exc}") from None
     bars = ProgressBars("heatloom scenarios", enabled=not (args.quiet or args.json))
     try:
         study = scenario_study(site.zones, rng, utilities, scenarios, costs, step=args.step, designs=args.designs,
