@@ -41,7 +41,7 @@ from ..model.costs import CostSettings
 from ..model.exchangers import ExchangerType
 from ..pinch import target
 from ..pinch.area import missing_film_coefficients
-from ..pinch.utilities import ideal_utilities
+from ..pinch.utilities import ideal_utilities, utility_shifted_range
 from .merge import approach_shortfalls
 from .placement import Placement, Side, interval_placement, stage_model
 from .sizing import geometry_kind, size_network
@@ -312,6 +312,40 @@ def _utility_side(u: Utility, duty: float, dt_min: float) -> Side:
                 utility=True)
 
 
+def _design_regions(t, plan) -> tuple[Region, ...]:
+    """The pinch regions a design places units in: cut at the process pinches (utility pinches are the
+    plan's business) where the cascade with the plan's utility duties carries no heat.  A process pinch
+    is not one with a non-isothermal utility whose even spread forces more than the least hot utility
+    (hot oil that must be pumped hard to reach the hottest demand): its surplus crosses the process pinch
+    to the cold utility, and a cut there would leave both regions unbalanced."""
+    zero = plan.transshipment.pinches
+    scale = max(abs(p.shifted) for p in t.pinches) if t.pinches else 1.0
+    return pinch_regions([p.shifted for p in t.pinches
+                          if any(abs(p.shifted - z) <= 1e-9 * max(scale, 1.0) for z in zero)])
+
+
+def _utility_part(u: Utility, duty: float, dt_min: float, region: Region) -> Side | None:
+    """The part of a non-isothermal utility of ``duty`` [kW] within a pinch region: its range cut at the
+    region's shifted ends, with the share of the duty that range holds; None when it has none there.
+
+    >>> from heatloom.model import UtilityKind
+    >>> oil = Utility("oil", 330.0, 250.0, 60.0, UtilityKind.HOT, 1.0)
+    >>> _utility_part(oil, 80.0, 10.0, Region("above", None, 288.0)).temperatures
+    (330.0, 293.0)
+    >>> round(_utility_part(oil, 80.0, 10.0, Region("below", 288.0, None)).duty, 9)
+    43.0
+    """
+    hi, lo = utility_shifted_range(u, dt_min)
+    top = hi if region.top is None else min(hi, region.top)
+    bottom = lo if region.bottom is None else max(lo, region.bottom)
+    if top - bottom <= 1e-12 * max(abs(hi), 1.0):
+        return None
+    shift = 0.5 * dt_min if u.is_hot else -0.5 * dt_min
+    share = (top - bottom) / (hi - lo)
+    temps = (top + shift, bottom + shift) if u.is_hot else (bottom + shift, top + shift)
+    return Side(u.name, u.is_hot, temps, (0.0, duty * share), 0.5 * dt_min, utility=True)
+
+
 def _region_sides(streams: StreamTable, utilities: Sequence[Utility], duties: dict, region: Region,
                   r_index: int, n_regions: int, dt_min: float, scale: float):
     """The hot and cold sides of a pinch region (None when it has none)."""
@@ -324,8 +358,14 @@ def _region_sides(streams: StreamTable, utilities: Sequence[Utility], duties: di
         d = duties.get(u.name, 0.0)
         if d <= 1e-9 * max(scale, 1.0):
             continue
-        # hot utilities serve the top region, cold utilities the bottom one (nothing crosses a pinch)
-        if (u.is_hot and r_index == 0) or (not u.is_hot and r_index == n_regions - 1):
+        if u.supply_temperature != u.target_temperature:
+            # a non-isothermal utility spreads its duty evenly over its shifted range (the problem table's
+            # and the transshipment's reading): each region gets the part of it between its pinches
+            side = _utility_part(u, d, dt_min, region)
+            if side is not None and side.duty > 1e-9 * max(scale, 1.0):
+                (hot_sides if u.is_hot else cold_sides).append(side)
+        # an isothermal hot utility serves the top region, a cold one the bottom region
+        elif (u.is_hot and r_index == 0) or (not u.is_hot and r_index == n_regions - 1):
             (hot_sides if u.is_hot else cold_sides).append(_utility_side(u, d, dt_min))
     if not hot_sides and not cold_sides:
         return None
@@ -354,18 +394,73 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
         result = tick_off_placement(hot, cold, forbidden=forbidden, required=mine,
                                     time_limit=0.6 * part.remaining, tries=500, solver=solver,
                                     solve_time=0.6 * part.remaining, neighbourhood=0.6)
+        piped = ""
+        if result is None and any(x.utility and not x.isothermal for x in (*hot, *cold)):
+            # the conservative reading counts hot oil's heat at its return temperature only; piped as a
+            # stream of the region (its target flow, the problem table's reading) the targets hold
+            hot2, cold2, banned, piped = _utilities_as_streams(hot, cold)
+            result = tick_off_placement(hot2, cold2, forbidden=set(forbidden) | banned, required=mine,
+                                        time_limit=0.6 * part.remaining, tries=500, solver=solver,
+                                        solve_time=0.6 * part.remaining, neighbourhood=0.6)
         if result is not None:
             solves += [part.record(r) for r in result.reports]
         if result is None:
             return None, [f"subnetwork '{label}': its cascade does not hold in the tick-off method's "
                           "conservative reading of the utilities, or the match rules leave no placement"]
-        notes.append(f"subnetwork '{label}': {_tick_off_words(result)}")
+        notes.append(f"subnetwork '{label}': {_tick_off_words(result)}{piped}")
         placed += [(label, p) for p in result.placement.units]
     missing = sorted(required - {(p.hot, p.cold) for _, p in placed})
     if missing:
         return None, ["required match" + ("es " if len(missing) > 1 else " ")
                       + ", ".join(f"{h}→{c}" for h, c in missing) + " not placed"]
     return placed, notes
+
+
+def _utilities_as_streams(hot: list[Side], cold: list[Side]):
+    """The region's non-isothermal utilities as streams of fixed flow (the flow of their target duty over
+    their range), so their units may take them over part of their range, in series and on parallel
+    branches; with the pairs that would match two utilities (now forbidden) and the words of the note."""
+    def conv(x: Side) -> Side:
+        return replace(x, utility=False) if x.utility and not x.isothermal else x
+
+    names = {x.name for x in (*hot, *cold) if x.utility and not x.isothermal}
+    hot2, cold2 = [conv(x) for x in hot], [conv(x) for x in cold]
+    banned = {(h.name, c.name) for h in hot for c in cold if h.utility and c.utility}
+    words = "; ".join(
+        f"'{x.name}' piped through its units as a stream of {x.duty / abs(x.temperatures[0] - x.temperatures[-1]):.6g} "
+        f"kW/K ({x.temperatures[0]:g} → {x.temperatures[-1]:g} °C overall): its units take it over parts of that "
+        "range, in series and on parallel branches, as the energy target assumes (one unit over the whole "
+        "range each could not meet the target); the heaters' utility temperatures say where each takes it. "
+        "Caution: check the utility's film-temperature, pressure and flow limits in every unit against its "
+        "supplier's data and local codes (qualified, licensed engineers)"
+        for x in (*hot, *cold) if x.name in names)
+    return hot2, cold2, banned, f"; {words}"
+
+
+def _must_pipe(hot: list[Side], cold: list[Side], forbidden) -> bool:
+    """Whether a region's non-isothermal utilities must be piped as streams (:func:`_utilities_as_streams`):
+    with every unit of a utility over its whole range, some piece has no side that can serve it."""
+    if all(x.isothermal for x in (*hot, *cold) if x.utility):
+        return False
+    try:
+        interval_placement(hot, cold, forbidden=forbidden, cut_utilities=False)
+    except ValueError:
+        return True
+    return False
+
+
+def _groups_can_close(parts) -> bool:
+    """Whether every stream group of a region has a placement when a non-isothermal utility takes part
+    (each group's share of it spread evenly over its range, as :func:`stream_groups` gives it, need not
+    serve that group's pieces where the region's whole utility could); True without one."""
+    for hs, cs, _ in parts:
+        if all(s.isothermal for s in (*hs, *cs) if s.utility):
+            continue
+        try:
+            interval_placement(hs, cs)
+        except ValueError:
+            return False
+    return True
 
 
 def _chain_design(streams, utilities, plan, regions, t, dt_min, forbidden, required, solver, budget, notes,
@@ -382,19 +477,28 @@ def _chain_design(streams, utilities, plan, regions, t, dt_min, forbidden, requi
         if got is None:
             continue
         hot_sides, cold_sides = got
+        banned: set = set()
+        if _must_pipe(hot_sides, cold_sides, forbidden):
+            hot_sides, cold_sides, banned, piped = _utilities_as_streams(hot_sides, cold_sides)
+            notes.append(f"subnetwork '{region.label}': {piped.removeprefix('; ')}")
         matches = plan.matches_within(region.top, region.bottom)
         subs = [s.subnetwork for s in plan.subnetworks if s.matches and s.matches[0] in matches]
         parts = stream_groups(hot_sides, cold_sides, matches)
+        if len(parts) > 1 and not _groups_can_close(parts):
+            notes.append(f"subnetwork '{region.label}': placed as one group: a non-isothermal utility shared by "
+                         "its independent stream groups, with its heat spread evenly over its range in each, "
+                         "could not serve every group's pieces")
+            parts = [(list(hot_sides), list(cold_sides), {(m.hot, m.cold) for m in matches})]
         for k, (hs, cs, pairs) in enumerate(parts):
             label = region.label if len(parts) == 1 else f"{region.label}, stream group {k + 1} of {len(parts)}"
             mine = [m for m in matches if (m.hot, m.cold) in pairs] if len(subs) == 1 else None
-            groups.append((label, hs, cs, pairs, (subs[0], mine) if mine else None))
+            groups.append((label, hs, cs, pairs, (subs[0], mine) if mine else None, set(forbidden) | banned))
     weights = [len(g[3]) * max(len(g[1]), len(g[2])) for g in groups]
     placed = []  # (region label, PlacedUnit)
-    for g, (label, hot_sides, cold_sides, allowed, source) in enumerate(groups):
+    for g, (label, hot_sides, cold_sides, allowed, source, banned) in enumerate(groups):
         part = budget.part(weights[g] / max(sum(weights[g:]), 1))
         result, reports, note = _place(hot_sides, cold_sides, allowed, label, plan.proven_minimum, solver, part,
-                                       source, forbidden=forbidden, required=required)
+                                       source, forbidden=banned, required=required)
         solves += reports
         if note:
             notes.append(note)
@@ -498,13 +602,13 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
             + [f"required {', '.join(f'{h}→{c}' for h, c in sorted(required))}"] * bool(required)))
     budget = Budget(time_limit)
     t = target(streams, dt_min, utilities)
-    regions = pinch_regions([p.shifted for p in t.pinches])   # process pinches (utility pinches: in the plan)
     by_utility = {u.name: u for u in utilities}
     placed, plan, solves = None, None, []
     if len(streams) > TICK_OFF_ABOVE:
         plan = plan_matches(streams, dt_min, utilities, solver=solver, budget=budget.part(0.1), fewest=False,
                             forbidden=forbidden, required=required)
         solves = list(plan.reports)
+        regions = _design_regions(t, plan)
         placed, why = _tick_off_design(streams, utilities, plan.utility_duties, regions, t, dt_min, forbidden,
                                        required, budget, solver, solves)
         if placed is not None:
@@ -519,6 +623,7 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
         plan = plan_matches(streams, dt_min, utilities, solver=solver, budget=budget.part(0.6),
                             forbidden=forbidden, required=required)
         solves += list(plan.reports)
+        regions = _design_regions(t, plan)
         placed = _chain_design(streams, utilities, plan, regions, t, dt_min, forbidden, required, solver,
                                budget, notes, solves)
     if budget.hits:

@@ -289,9 +289,11 @@ class _Piece:
     left: float
 
 
-def _pieces(side: Side, grid: np.ndarray, tol: float) -> list[_Piece]:
-    """A side cut at the shifted grid (hottest first); a utility is one piece over its whole range."""
-    if side.utility:
+def _pieces(side: Side, grid: np.ndarray, tol: float, cut_utilities: bool = False) -> list[_Piece]:
+    """A side cut at the shifted grid (hottest first); a utility is one piece over its whole range, unless
+    ``cut_utilities`` and it is non-isothermal: then it is cut like a stream, by the linear profile the
+    problem table gives it (its heat spread evenly over its range)."""
+    if side.utility and not (cut_utilities and not side.isothermal):
         return [_Piece(side, -1 if side.hot else len(grid), max(side.temperatures) if side.hot else
                        min(side.temperatures), min(side.temperatures) if side.hot else max(side.temperatures),
                        side.duty, side.duty)]
@@ -309,7 +311,8 @@ def _pieces(side: Side, grid: np.ndarray, tol: float) -> list[_Piece]:
 
 
 def interval_placement(hot: Sequence[Side], cold: Sequence[Side], preferred: set[tuple[str, str]] = frozenset(),
-                       *, forbidden: set[tuple[str, str]] = frozenset()) -> Placement:
+                       *, forbidden: set[tuple[str, str]] = frozenset(), cut_utilities: bool | None = None
+                       ) -> Placement:
     """A placement without a solver: units interval by interval, every stream split where it must be.
 
     The sides are cut at every shifted breakpoint (the temperature intervals of the problem table, and the
@@ -327,6 +330,9 @@ def interval_placement(hot: Sequence[Side], cold: Sequence[Side], preferred: set
     preferred : set of (hot name, cold name)
     forbidden : set of (hot name, cold name), optional
         Pairs never matched.
+    cut_utilities : bool, optional
+        False: every unit of a utility runs over its whole range; True: non-isothermal utilities are cut
+        at the grid (below); None (default): whole ranges where that serves every piece, else cut.
 
     Returns
     -------
@@ -344,7 +350,31 @@ def interval_placement(hot: Sequence[Side], cold: Sequence[Side], preferred: set
     >>> c = Side("C", False, (40.0, 120.0), (0.0, 200.0), 5.0)
     >>> [(u.hot, u.cold, u.duty) for u in interval_placement([h], [c]).units]
     [('H', 'C', 200.0)]
+
+    A non-isothermal utility runs over its whole range in each of its units where that serves every
+    piece; where it does not (hot oil 330 → 250 °C cannot heat a piece from 251 to 288 °C in one unit
+    that returns the oil at 250 °C), it is cut at the grid like a stream, by the linear profile of the
+    problem table that set its duty, so its units take it over part of its range: the utility passes
+    them in series, band after band (cascaded, as the energy target assumes), each band's heat shared by
+    the units of that band.
+
+    >>> oil = Side("oil", True, (330.0, 250.0), (0.0, 800.0), 5.0, utility=True)
+    >>> c1 = Side("C1", False, (100.0, 240.0), (0.0, 400.0), 5.0)
+    >>> c2 = Side("C2", False, (251.0, 288.0), (0.0, 400.0), 5.0)
+    >>> sorted((u.cold, u.hot_in, u.hot_out) for u in interval_placement([oil], [c1, c2]).units)
+    [('C1', 261.0, 250.0), ('C1', 330.0, 298.0), ('C2', 298.0, 261.0), ('C2', 330.0, 298.0)]
     """
+    if cut_utilities is not None:
+        return _interval_placement(hot, cold, preferred, forbidden, cut_utilities=cut_utilities)
+    try:
+        return _interval_placement(hot, cold, preferred, forbidden, cut_utilities=False)
+    except ValueError:
+        if all(s.isothermal for s in (*hot, *cold) if s.utility):
+            raise
+    return _interval_placement(hot, cold, preferred, forbidden, cut_utilities=True)
+
+
+def _interval_placement(hot, cold, preferred, forbidden, *, cut_utilities: bool) -> Placement:
     sides = (*hot, *cold)
     scale = max(max(s.duty for s in sides), 1.0)
     tol = 1e-9 * scale
@@ -353,8 +383,8 @@ def interval_placement(hot: Sequence[Side], cold: Sequence[Side], preferred: set
     grid = sorted({round(t - s.shift if s.hot else t + s.shift, 9) for s in sides for t in s.temperatures},
                   reverse=True)
     grid_a = np.asarray(grid, dtype=float)
-    hp = [p for s in hot for p in _pieces(s, grid_a, tol)]
-    cp = sorted((p for s in cold for p in _pieces(s, grid_a, tol)), key=lambda p: (p.k, -p.heat))
+    hp = [p for s in hot for p in _pieces(s, grid_a, tol, cut_utilities)]
+    cp = sorted((p for s in cold for p in _pieces(s, grid_a, tol, cut_utilities)), key=lambda p: (p.k, -p.heat))
     used: set[tuple[str, str]] = set()
     last: dict[tuple[str, str], int] = {}   # hot piece a pair used last: the next one that continues it wins
     raw = []
@@ -378,8 +408,8 @@ def interval_placement(hot: Sequence[Side], cold: Sequence[Side], preferred: set
             raw.append([h, c, x])
     units = []
     for h, c, x in raw:
-        hf = 1.0 if h.side.utility else min(1.0, x / h.heat)
-        cf = 1.0 if c.side.utility else min(1.0, x / c.heat)
+        hf = 1.0 if h.side.utility and h.heat == h.side.duty else min(1.0, x / h.heat)
+        cf = 1.0 if c.side.utility and c.heat == c.side.duty else min(1.0, x / c.heat)
         units.append(PlacedUnit(h.side.name, c.side.name, max(h.k, 0), x, h.t_in, h.t_out, c.t_in, c.t_out, hf, cf))
     return Placement(tuple(_merged(units, {x.name: x for x in sides})), max(grid_a.size - 1, 1))
 
@@ -397,8 +427,10 @@ def _merged(units: list[PlacedUnit], sides: dict[str, Side]) -> list[PlacedUnit]
 
     def side_join(hs: Side, a_in, a_out, a_f, b_in, b_out, b_f):
         """(inlet, outlet, share, continued) of the joined side, or None; a_* hotter for a hot side."""
-        if hs.utility:
-            return (a_in, a_out, 1.0, False) if hs.isothermal else None
+        if hs.utility and hs.isothermal:
+            return a_in, a_out, 1.0, False
+        if hs.utility and (a_in, a_out) == (max(hs.temperatures), min(hs.temperatures))[::1 if hs.hot else -1]:
+            return None   # a whole-range unit of a non-isothermal utility: the approach inside could break
         if abs(a_out - b_in) <= 1e-9 and abs(a_f - b_f) <= 1e-9:
             return a_in, b_out, a_f, True
         if abs(a_in - b_in) <= 1e-9 and abs(a_out - b_out) <= 1e-9:

@@ -1,0 +1,148 @@
+"""MER design with a non-isothermal hot utility (hot oil) that must serve cold streams above its return
+temperature.
+
+Invented data: the stream tables are the generated problems of benchmarks/bench_design.py (fixed seeds,
+no plant), written out here; the hot oil (330 → 250 °C or 300 → 200 °C) and the cooling water (10 → 15 °C)
+are ours. Before the fix every one of these designs failed ("no hot side can serve 'C12' between 251 and
+288 °C"): a unit over the oil's whole range cannot heat a stream that starts above 240 °C, while the
+energy target counts the oil's heat spread evenly over its range (Linnhoff et al. 1982, User Guide on
+Process Integration, ch. 5: utilities are streams on the shifted scale; our own LP, pinch/utilities.py).
+
+Every check below is recomputed here from the units' terminal temperatures and duties, independently of
+the design code: stream balances, ΔTmin at both ends of every unit, and the oil's use band by band: a
+flow F of oil that enters at its supply temperature cannot give more than F·(T_supply − T) of heat while
+it is hotter than T, whatever its units' order, splits and mixing (a heat balance, *common practice*).
+"""
+
+import numpy as np
+import pytest
+
+from heatloom.model import StreamTable, Utility, UtilityKind
+from heatloom.network.design import design_mer
+from heatloom.network.placement import Side, interval_placement
+from heatloom.pinch.targets import target
+
+DT = 10.0
+
+# generated(13, 2) of benchmarks/bench_design.py (invented)
+THIRTEEN = dict(
+    names=["H1", "C1", "H2", "C2", "H3", "C3", "H4", "C4", "H5", "C5", "H6", "C6", "H7"],
+    supply=[248.0, 61.0, 293.0, 175.0, 129.0, 113.0, 244.0, 90.0, 89.0, 77.0, 151.0, 118.0, 293.0],
+    target=[214.0, 180.0, 148.0, 284.0, 85.0, 274.0, 234.0, 244.0, 41.0, 93.0, 137.0, 195.0, 138.0],
+    cp=[17.9, 36.2, 39.3, 1.9, 27.2, 23.9, 18.7, 13.7, 18.5, 2.9, 45.1, 2.3, 39.0])
+
+# generated(12, 0) of benchmarks/bench_design.py (invented)
+TWELVE = dict(
+    names=["H1", "C1", "H2", "C2", "H3", "C3", "H4", "C4", "H5", "C5", "H6", "C6"],
+    supply=[285.0, 85.0, 271.0, 50.0, 280.0, 208.0, 282.0, 81.0, 238.0, 26.0, 137.0, 224.0],
+    target=[90.0, 118.0, 260.0, 92.0, 151.0, 285.0, 38.0, 134.0, 76.0, 285.0, 111.0, 276.0],
+    cp=[10.3, 33.9, 1.1, 21.4, 13.7, 46.2, 32.8, 39.9, 7.6, 7.6, 9.3, 30.4])
+
+
+def table(d) -> StreamTable:
+    return StreamTable.from_arrays(d["names"], d["supply"], d["target"], d["cp"],
+                                   film_coefficient=[0.5] * len(d["names"]))
+
+
+def utilities(oil_in: float, oil_out: float) -> list[Utility]:
+    return [Utility("oil", oil_in, oil_out, 60.0, UtilityKind.HOT, 1.0),
+            Utility("CW", 10.0, 15.0, 6.0, UtilityKind.COLD, 1.5)]
+
+
+def oil_heat_above(units, temperatures):
+    """Heat the units take from the oil while it is hotter than each temperature [kW]: each unit's duty
+    spread evenly over its own stretch of the oil (constant CP)."""
+    out = []
+    for t in temperatures:
+        q = 0.0
+        for duty, hi, lo in units:
+            if hi - lo <= 1e-12:
+                q += duty if hi > t else 0.0
+            else:
+                q += duty * float(np.clip((hi - t) / (hi - lo), 0.0, 1.0))
+        out.append(q)
+    return np.array(out)
+
+
+def assert_oil_within_its_flow(units, supply: float, ret: float, duty: float):
+    """Every stretch inside the oil's range, and no more heat above any temperature than its flow holds."""
+    flow = duty / (supply - ret)
+    for _, hi, lo in units:
+        assert ret - 1e-9 <= lo <= hi <= supply + 1e-9
+    grid = np.linspace(ret, supply, 161)
+    assert (oil_heat_above(units, grid) <= flow * (supply - grid) + 1e-6 * duty).all()
+    assert sum(u[0] for u in units) == pytest.approx(duty, rel=1e-7)
+
+
+def assert_network_sound(net, streams: StreamTable):
+    """Balances and ΔTmin recomputed from the units' own temperatures (not by check_network)."""
+    tol = 1e-6 * max(s.duty for s in streams)
+    for s in streams:
+        cp = s.segments[0].heat_capacity_flow
+        got = sum(e.duty for e in net.exchangers if s.name in (e.hot, e.cold))
+        got += sum(h.duty for h in net.heaters if h.cold == s.name)
+        got += sum(c.duty for c in net.coolers if c.hot == s.name)
+        assert got == pytest.approx(cp * abs(s.supply_temperature - s.target_temperature), abs=tol), s.name
+    for e in net.exchangers:
+        assert e.duty == pytest.approx(e.hot_fraction * by_cp(streams, e.hot) * (e.hot_in - e.hot_out), abs=tol)
+        assert e.duty == pytest.approx(e.cold_fraction * by_cp(streams, e.cold) * (e.cold_out - e.cold_in), abs=tol)
+        assert min(e.hot_in - e.cold_out, e.hot_out - e.cold_in) >= DT - 1e-6
+    for h in net.heaters:
+        assert min(h.utility_in - h.cold_out, h.utility_out - h.cold_in) >= DT - 1e-6
+    for c in net.coolers:
+        assert min(c.hot_in - c.utility_out, c.hot_out - c.utility_in) >= DT - 1e-6
+
+
+def by_cp(streams, name):
+    return next(s for s in streams if s.name == name).segments[0].heat_capacity_flow
+
+
+def test_interval_placement_takes_the_oil_band_by_band_where_one_unit_cannot():
+    oil = Side("oil", True, (330.0, 250.0), (0.0, 800.0), 5.0, utility=True)
+    c1 = Side("C1", False, (100.0, 240.0), (0.0, 400.0), 5.0)
+    c2 = Side("C2", False, (251.0, 288.0), (0.0, 400.0), 5.0)   # starts above the oil's return less ΔTmin
+    with pytest.raises(ValueError, match="C2"):
+        interval_placement([oil], [c1, c2], cut_utilities=False)
+    units = interval_placement([oil], [c1, c2]).units
+    for name, duty in (("C1", 400.0), ("C2", 400.0)):
+        assert sum(u.duty for u in units if u.cold == name) == pytest.approx(duty)
+    for u in units:
+        assert min(u.hot_in - u.cold_out, u.hot_out - u.cold_in) >= DT - 1e-9
+    assert_oil_within_its_flow([(u.duty, u.hot_in, u.hot_out) for u in units], 330.0, 250.0, 800.0)
+
+
+def test_tick_off_design_pipes_the_oil_above_the_pinch():
+    """13 streams (the tick-off path): C2 must be heated from 283 to 284 °C above the pinch (293 °C hot);
+    only the oil's part above the pinch can, and the rest of the oil's heat goes below it."""
+    streams, utils = table(THIRTEEN), utilities(330.0, 250.0)
+    t = target(streams, DT, utils)
+    oil_duty = next(d.duty for d in t.placement.duties if d.utility.name == "oil")
+    # the oil's even spread puts 37/80 of its heat above the 288 °C shifted pinch, which C2's 1.9 kW needs
+    assert oil_duty == pytest.approx(1.9 * 80.0 / 37.0, rel=1e-9)
+    net = design_mer(streams, DT, utilities=utils, time_limit=20)
+    assert_network_sound(net, streams)
+    oil_units = [(h.duty, h.utility_in, h.utility_out) for h in net.heaters if h.utility == "oil"]
+    assert_oil_within_its_flow(oil_units, 330.0, 250.0, oil_duty)
+    above = [h for h in net.heaters if h.region == "above"]
+    assert above and all(h.utility_out >= 293.0 - 1e-9 for h in above)   # the oil above the pinch only
+    assert any("piped" in n for n in net.notes)
+    assert net.units <= round(1.1 * net.unit_target)
+
+
+@pytest.mark.parametrize("oil", [(330.0, 250.0), (300.0, 200.0)])
+def test_fewest_matches_design_with_oil(oil):
+    """12 streams (the fewest-matches path). With oil 300 → 200 °C the oil's even spread needs more than the
+    least hot utility (it must reach C3 and C5 at 285 °C), the surplus crosses the process pinch to the
+    cooling water, so the design must not cut there."""
+    streams, utils = table(TWELVE), utilities(*oil)
+    t = target(streams, DT, utils)
+    oil_duty = next(d.duty for d in t.placement.duties if d.utility.name == "oil")
+    net = design_mer(streams, DT, utilities=utils, time_limit=20)
+    assert_network_sound(net, streams)
+    assert_oil_within_its_flow([(h.duty, h.utility_in, h.utility_out) for h in net.heaters], *oil, oil_duty)
+    assert sum(c.duty for c in net.coolers) == pytest.approx(
+        next(d.duty for d in t.placement.duties if d.utility.name == "CW"), rel=1e-7)
+    if oil == (300.0, 200.0):
+        assert oil_duty > t.hot_utility + 1.0   # more than the problem table's least hot utility
+        assert {u.region for u in (*net.exchangers, *net.heaters, *net.coolers)} == {"whole"}
+    assert net.units <= net.unit_target + 3
