@@ -449,20 +449,6 @@ def _must_pipe(hot: list[Side], cold: list[Side], forbidden) -> bool:
     return False
 
 
-def _groups_can_close(parts) -> bool:
-    """Whether every stream group of a region has a placement when a non-isothermal utility takes part
-    (each group's share of it spread evenly over its range, as :func:`stream_groups` gives it, need not
-    serve that group's pieces where the region's whole utility could); True without one."""
-    for hs, cs, _ in parts:
-        if all(s.isothermal for s in (*hs, *cs) if s.utility):
-            continue
-        try:
-            interval_placement(hs, cs)
-        except ValueError:
-            return False
-    return True
-
-
 def _chain_design(streams, utilities, plan, regions, t, dt_min, forbidden, required, solver, budget, notes,
                   solves):
     """Units of every region placed for the planned matches (:func:`_place`); adds notes and solves."""
@@ -484,11 +470,6 @@ def _chain_design(streams, utilities, plan, regions, t, dt_min, forbidden, requi
         matches = plan.matches_within(region.top, region.bottom)
         subs = [s.subnetwork for s in plan.subnetworks if s.matches and s.matches[0] in matches]
         parts = stream_groups(hot_sides, cold_sides, matches)
-        if len(parts) > 1 and not _groups_can_close(parts):
-            notes.append(f"subnetwork '{region.label}': placed as one group: a non-isothermal utility shared by "
-                         "its independent stream groups, with its heat spread evenly over its range in each, "
-                         "could not serve every group's pieces")
-            parts = [(list(hot_sides), list(cold_sides), {(m.hot, m.cold) for m in matches})]
         for k, (hs, cs, pairs) in enumerate(parts):
             label = region.label if len(parts) == 1 else f"{region.label}, stream group {k + 1} of {len(parts)}"
             mine = [m for m in matches if (m.hot, m.cold) in pairs] if len(subs) == 1 else None
