@@ -430,7 +430,8 @@ def _utilities_as_streams(hot: list[Side], cold: list[Side]):
         f"'{x.name}' piped through its units as a stream of {x.duty / abs(x.temperatures[0] - x.temperatures[-1]):.6g} "
         f"kW/K ({x.temperatures[0]:g} → {x.temperatures[-1]:g} °C overall): its units take it over parts of that "
         "range, in series and on parallel branches, as the energy target assumes (one unit over the whole "
-        "range each could not meet the target); the heaters' utility temperatures say where each takes it. "
+        "range each could not meet the target); the heaters' utility temperatures say where each takes it "
+        "(the network table has no column for them: evaluate reads every unit over the utility's whole range). "
         "Caution: check the utility's film-temperature, pressure and flow limits in every unit against its "
         "supplier's data and local codes (qualified, licensed engineers)"
         for x in (*hot, *cold) if x.name in names)
