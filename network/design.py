@@ -398,7 +398,9 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
         if result is None and any(x.utility and not x.isothermal for x in (*hot, *cold)):
             # the conservative reading counts hot oil's heat at its return temperature only; piped as a
             # stream of the region (its target flow, the problem table's reading) the targets hold
-            hot2, cold2, banned, piped = _utilities_as_streams(hot, cold)
+            hot2, cold2, banned, piped = _utilities_as_streams(
+                hot, cold, "the tick-off method's conservative reading, the utility's heat counted at its return "
+                "temperature, left no search")
             result = tick_off_placement(hot2, cold2, forbidden=set(forbidden) | banned, required=mine,
                                         time_limit=0.6 * part.remaining, tries=500, solver=solver,
                                         solve_time=0.6 * part.remaining, neighbourhood=0.6)
@@ -416,7 +418,7 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
     return placed, notes
 
 
-def _utilities_as_streams(hot: list[Side], cold: list[Side]):
+def _utilities_as_streams(hot: list[Side], cold: list[Side], why: str):
     """The region's non-isothermal utilities as streams of fixed flow (the flow of their target duty over
     their range), so their units may take them over part of their range, in series and on parallel
     branches; with the pairs that would match two utilities (now forbidden) and the words of the note."""
@@ -429,8 +431,8 @@ def _utilities_as_streams(hot: list[Side], cold: list[Side]):
     words = "; ".join(
         f"'{x.name}' piped through its units as a stream of {x.duty / abs(x.temperatures[0] - x.temperatures[-1]):.6g} "
         f"kW/K ({x.temperatures[0]:g} → {x.temperatures[-1]:g} °C overall): its units take it over parts of that "
-        "range, in series and on parallel branches, as the energy target assumes (one unit over the whole "
-        "range each could not meet the target); the heaters' utility temperatures say where each takes it "
+        f"range, in series and on parallel branches, as the energy target assumes ({why}); the heaters' "
+        "utility temperatures say where each takes it "
         "(the network table has no column for them: evaluate reads every unit over the utility's whole range). "
         "Caution: check the utility's film-temperature, pressure and flow limits in every unit against its "
         "supplier's data and local codes (qualified, licensed engineers)"
@@ -466,7 +468,8 @@ def _chain_design(streams, utilities, plan, regions, t, dt_min, forbidden, requi
         hot_sides, cold_sides = got
         banned: set = set()
         if _must_pipe(hot_sides, cold_sides, forbidden):
-            hot_sides, cold_sides, banned, piped = _utilities_as_streams(hot_sides, cold_sides)
+            hot_sides, cold_sides, banned, piped = _utilities_as_streams(
+                hot_sides, cold_sides, "one unit over the whole range each could not serve every piece")
             notes.append(f"subnetwork '{region.label}': {piped.removeprefix('; ')}")
         matches = plan.matches_within(region.top, region.bottom)
         subs = [s.subnetwork for s in plan.subnetworks if s.matches and s.matches[0] in matches]
