@@ -3,6 +3,8 @@
 Names of the published reference problems in tests/data/references/ (each file names its source, and the
 tests repeat it beside every assertion), and a hypothesis strategy of invented problems used only for
 property checks (importable by tests: the `pythonpath` setting of pytest puts tests/ on the path).
+THIRTEEN and TWELVE are invented stream tables (the generated problems of benchmarks/bench_design.py,
+written out) for the designs with hot oil.
 """
 
 from hypothesis import strategies as st
@@ -62,3 +64,18 @@ def segmented_problem():
     utilities = [Utility("steam", 180, 179, 120.0, UtilityKind.HOT, 3.0),
                  Utility("water", 15, 25, 10.0, UtilityKind.COLD, 2.0)]
     return streams, utilities
+
+
+# generated(13, 2) of benchmarks/bench_design.py (invented)
+THIRTEEN = dict(
+    names=["H1", "C1", "H2", "C2", "H3", "C3", "H4", "C4", "H5", "C5", "H6", "C6", "H7"],
+    supply=[248.0, 61.0, 293.0, 175.0, 129.0, 113.0, 244.0, 90.0, 89.0, 77.0, 151.0, 118.0, 293.0],
+    target=[214.0, 180.0, 148.0, 284.0, 85.0, 274.0, 234.0, 244.0, 41.0, 93.0, 137.0, 195.0, 138.0],
+    cp=[17.9, 36.2, 39.3, 1.9, 27.2, 23.9, 18.7, 13.7, 18.5, 2.9, 45.1, 2.3, 39.0])
+
+# generated(12, 0) of benchmarks/bench_design.py (invented)
+TWELVE = dict(
+    names=["H1", "C1", "H2", "C2", "H3", "C3", "H4", "C4", "H5", "C5", "H6", "C6"],
+    supply=[285.0, 85.0, 271.0, 50.0, 280.0, 208.0, 282.0, 81.0, 238.0, 26.0, 137.0, 224.0],
+    target=[90.0, 118.0, 260.0, 92.0, 151.0, 285.0, 38.0, 134.0, 76.0, 285.0, 111.0, 276.0],
+    cp=[10.3, 33.9, 1.1, 21.4, 13.7, 46.2, 32.8, 39.9, 7.6, 7.6, 9.3, 30.4])

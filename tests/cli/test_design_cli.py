@@ -350,3 +350,25 @@ def test_double_pipe_geometry_reaches_the_console_and_the_units_table(capsys, ra
     for name, row in units.iterrows():
         assert row["type"] == "double pipe"
         assert int(row["hairpins"]) == math.ceil(row["area [m²]"] / (math.pi * 0.05 * 2 * 6) - 1e-9), name
+
+
+def test_hot_oil_above_its_return_temperature_is_designed(capsys, tmp_path):
+    """Invented 13-stream table (generated(13, 2) of benchmarks/bench_design.py) with invented hot oil
+    330 → 250 °C: C2 must be heated from 283 to 284 °C (1.9 kW), above the 288 °C shifted pinch; the oil's
+    heat is spread evenly over 325 → 245 °C shifted, so 37/80 of it lies above the pinch and the oil duty is
+    1.9 × 80 / 37 kW (hand calculation). Before, the design failed: no unit over the oil's whole range can
+    heat C2."""
+    from synthesis_problems import THIRTEEN
+
+    rows = ["name,T_supply,T_target,CP,h"] + [f"{n},{a},{b},{c},0.5" for n, a, b, c in
+                                             zip(THIRTEEN["names"], THIRTEEN["supply"], THIRTEEN["target"],
+                                                 THIRTEEN["cp"])]
+    (tmp_path / "streams.csv").write_text("\n".join(rows) + "\n", encoding="utf-8")
+    (tmp_path / "utilities.csv").write_text("name,T_supply,T_target,cost,h\noil,330,250,60,1.0\nCW,10,15,6,1.5\n",
+                                            encoding="utf-8")
+    code, out, _ = run(capsys, "design", tmp_path / "streams.csv", "--dtmin", "10", "--utilities",
+                       tmp_path / "utilities.csv", "--time-limit", "20", "--json")
+    assert code == 0
+    data = json.loads(out)
+    assert sum(h["duty"] for h in data["heaters"]) == pytest.approx(1.9 * 80.0 / 37.0, abs=2e-3)   # JSON rounds
+    assert any("'oil' piped" in n for n in data["notes"])
