@@ -5,8 +5,9 @@ Invented data: the stream tables are the generated problems of benchmarks/bench_
 no plant), written out here; the hot oil (330 → 250 °C or 300 → 200 °C) and the cooling water (10 → 15 °C)
 are ours. Before the fix every one of these designs failed ("no hot side can serve 'C12' between 251 and
 288 °C"): a unit over the oil's whole range cannot heat a stream that starts above 240 °C, while the
-energy target counts the oil's heat spread evenly over its range (Linnhoff et al. 1982, User Guide on
-Process Integration, ch. 5: utilities are streams on the shifted scale; our own LP, pinch/utilities.py).
+energy target counts the oil's heat spread evenly over its range (the utility as a stream of unknown
+flow on the shifted scale, as the transshipment model of Papoulias & Grossmann 1983 and our utility
+placement LP in pinch/utilities.py read it).
 
 Every check below is recomputed here from the units' terminal temperatures and duties, independently of
 the design code: stream balances, ΔTmin at both ends of every unit, and the oil's use band by band: a
@@ -24,6 +25,7 @@ from heatloom.network.placement import Side, interval_placement
 from heatloom.pinch.targets import target
 
 DT = 10.0
+
 
 def table(d) -> StreamTable:
     return StreamTable.from_arrays(d["names"], d["supply"], d["target"], d["cp"],
