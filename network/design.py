@@ -395,12 +395,16 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
                                     time_limit=0.6 * part.remaining, tries=500, solver=solver,
                                     solve_time=0.6 * part.remaining, neighbourhood=0.6)
         piped = ""
-        if result is None and any(x.utility and not x.isothermal for x in (*hot, *cold)):
+        for hot_only in (True, False):
+            if result is not None or not any(x.utility and not x.isothermal and (x.hot or not hot_only)
+                                             for x in (*hot, *cold)):
+                continue
             # the conservative reading counts hot oil's heat at its return temperature only; piped as a
-            # stream of the region (its target flow, the problem table's reading) the targets hold
+            # stream of the region (its target flow, the problem table's reading) the targets hold; the hot
+            # utilities first (cooling water piped in series is a last resort)
             hot2, cold2, banned, piped = _utilities_as_streams(
                 hot, cold, "the tick-off method's conservative reading, the utility's heat counted at its return "
-                "temperature, left no search")
+                "temperature, left no search", hot_only=hot_only)
             result = tick_off_placement(hot2, cold2, forbidden=set(forbidden) | banned, required=mine,
                                         time_limit=0.6 * part.remaining, tries=500, solver=solver,
                                         solve_time=0.6 * part.remaining, neighbourhood=0.6)
@@ -418,20 +422,22 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
     return placed, notes
 
 
-def _utilities_as_streams(hot: list[Side], cold: list[Side], why: str):
-    """The region's non-isothermal utilities as streams of fixed flow (the flow of their target duty over
-    their range), so their units may take them over part of their range, in series and on parallel
-    branches; with the pairs that would match two utilities (now forbidden) and the words of the note."""
-    def conv(x: Side) -> Side:
-        return replace(x, utility=False) if x.utility and not x.isothermal else x
+def _utilities_as_streams(hot: list[Side], cold: list[Side], why: str, hot_only: bool = False):
+    """The region's non-isothermal utilities (with ``hot_only``, its hot ones) as streams of fixed flow (the
+    flow of their target duty over their range), so their units may take them over part of their range, in
+    series and on parallel branches; with the pairs that would match two utilities (now forbidden) and the
+    words of the note."""
+    names = {x.name for x in (*hot, *cold) if x.utility and not x.isothermal and (x.hot or not hot_only)}
 
-    names = {x.name for x in (*hot, *cold) if x.utility and not x.isothermal}
+    def conv(x: Side) -> Side:
+        return replace(x, utility=False) if x.name in names else x
+
     hot2, cold2 = [conv(x) for x in hot], [conv(x) for x in cold]
     banned = {(h.name, c.name) for h in hot for c in cold if h.utility and c.utility}
     words = "; ".join(
         f"'{x.name}' piped through its units as a stream of {x.duty / abs(x.temperatures[0] - x.temperatures[-1]):.6g} "
         f"kW/K ({x.temperatures[0]:g} → {x.temperatures[-1]:g} °C overall): its units take it over parts of that "
-        f"range, in series and on parallel branches, as the energy target assumes ({why}); the heaters' "
+        f"range, in series and on parallel branches, as the energy target assumes ({why}); the units' "
         "utility temperatures say where each takes it "
         "(the network table has no column for them: evaluate reads every unit over the utility's whole range). "
         "Caution: check the utility's film-temperature, pressure and flow limits in every unit against its "
