@@ -41,7 +41,14 @@ Columns:
   a split is a branch of its own.  A **split inside a branch** is a path of labels, outer first, with one
   place per label: ``hot_branch`` ``b/a`` and ``hot_branch_order`` ``1/2`` is the second unit on branch a
   of the split that is the first item of branch b.  A bypass (a branch without a unit) cannot be written
-  and is refused (:mod:`heatloom.retrofit.branches`).
+  and is refused (:mod:`heatloom.retrofit.branches`);
+* ``hot_in``, ``hot_out``, ``cold_in``, ``cold_out`` (optional, ``hot in [°C]`` ... in a design's table) — on
+  the side of a **non-isothermal utility** (hot oil, cooling water) of a heater or cooler, the utility's
+  inlet and outlet temperature in that unit: the part of the utility's range the unit takes, as a design
+  writes it when it pipes hot oil through its heaters in series.  Both or neither; they must lie within the
+  utility's range (supply → target, within 0.001 K, the rounding of a design's table).  Without them the
+  unit takes the utility over its whole range.  On a process side, and for an isothermal utility, they are
+  informative: the simulation finds the temperatures.
 
 A heater or cooler that is the last unit on its stream (a *trim* unit) may leave both area and duty empty:
 it takes the rest of its stream's duty (a heater brings its cold stream to target, a cooler its hot
@@ -50,10 +57,10 @@ streams (:class:`heatloom.retrofit.ExistingNetwork`), which knows which unit is 
 
 The units table that ``heatloom design`` writes (``design_units.csv``, sheet ``units`` of ``design.xlsx``,
 from :meth:`heatloom.network.Network.to_frame`) is a network table: besides the columns above it carries
-``LMTD [K]``, ``F [-]``, ``area per shell [m²]``, ``hairpins``, ``hot in``/``hot out``/``cold in``/``cold out [°C]``,
-``hot fraction``/``cold fraction [-]`` (read, see above) and ``cost [<currency>/year]``.  The others are
-*informative* (:data:`INFORMATIVE_COLUMNS`): accepted and not used, since the temperatures and costs follow
-from the streams, the areas and the costs file.  The units of one split of a design share a position, and a
+``LMTD [K]``, ``F [-]``, ``area per shell [m²]``, ``hairpins``, ``hot in``/``hot out``/``cold in``/``cold out [°C]``
+(read on utility sides, see above), ``hot fraction``/``cold fraction [-]`` (read, see above) and
+``cost [<currency>/year]``.  The others are *informative* (:data:`INFORMATIVE_COLUMNS`): accepted and not
+used, since they follow from the streams, the areas and the costs file.  The units of one split of a design share a position, and a
 design's branch with units in series carries a branch label, so a design with stream splits reads back as it
 was designed.
 
@@ -81,10 +88,10 @@ __all__ = ["NETWORK_COLUMNS", "INFORMATIVE_COLUMNS", "NETWORK_ALIASES", "read_ne
 
 NETWORK_COLUMNS = ("unit", "role", "hot", "cold", "area", "duty", "U", "hot_order", "cold_order", "type", "shells",
                    "hot_fraction", "cold_fraction", "hot_branch", "hot_branch_order", "cold_branch",
-                   "cold_branch_order")
+                   "cold_branch_order", "hot_in", "hot_out", "cold_in", "cold_out")
 """Canonical columns of a network table that are read."""
 
-INFORMATIVE_COLUMNS = ("LMTD", "F", "area_per_shell", "hairpins", "hot_in", "hot_out", "cold_in", "cold_out", "cost")
+INFORMATIVE_COLUMNS = ("LMTD", "F", "area_per_shell", "hairpins", "cost")
 """Columns of a designed network's units table that are accepted and not used."""
 
 NETWORK_ALIASES: dict[str, tuple[str, ...]] = {
@@ -232,6 +239,7 @@ def _units(table: Table) -> list[ExistingUnit]:
     roles = table.text("role") if "role" in table else [""] * len(table)
     branches = {side: table.text(f"{side}_branch") if f"{side}_branch" in table else [""] * len(table)
                 for side in ("hot", "cold")}
+    ends = {c: table.optional_numbers(c, what=c.replace("_", " ")) for c in ("hot_in", "hot_out", "cold_in", "cold_out")}
     out = []
     for i in range(len(table)):
         for column, values, what in (("unit", names, "unit name"), ("hot", hot, "hot side (a hot stream or "
@@ -266,7 +274,10 @@ def _units(table: Table) -> list[ExistingUnit]:
                                     cold_fraction=fractions["cold"][i], hot_branch=branches["hot"][i] or None,
                                     cold_branch=branches["cold"][i] or None,
                                     hot_branch_order=steps["hot"][i] or None,
-                                    cold_branch_order=steps["cold"][i] or None, row=int(table.rows[i])))
+                                    cold_branch_order=steps["cold"][i] or None,
+                                    hot_temperatures=(_or_none(ends["hot_in"][i]), _or_none(ends["hot_out"][i])),
+                                    cold_temperatures=(_or_none(ends["cold_in"][i]), _or_none(ends["cold_out"][i])),
+                                    row=int(table.rows[i])))
         except InputError as e:
             raise table.locate(e, i) from None
     return out

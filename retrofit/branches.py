@@ -302,7 +302,7 @@ def stated_temperatures(u: ExistingUnit, known: Mapping[tuple, float], streams: 
     for side in ("hot", "cold"):
         name = getattr(u, side)
         if name in utilities:
-            util = utilities[name]
+            util = u.utility_taken(utilities[name])
             out += [util.supply_temperature, util.target_temperature]
             continue
         s, k, share = streams[name], getattr(u, f"{side}_position"), u.fraction(name)

@@ -180,7 +180,7 @@ def evaluate_network(network: ExistingNetwork, dt_min: float, *, costs: CostSett
     (True, 125.0, 45.0, False)
     """
     dt = check_dt_min(dt_min)
-    sim = simulate(network, dt)
+    sim = simulate(network)   # targets below, with the utilities given
     streams = network.streams
     utilities = list(network.utilities)
     net = replace(sim.to_network(), dt_min=float(dt))
@@ -210,13 +210,55 @@ def evaluate_network(network: ExistingNetwork, dt_min: float, *, costs: CostSett
     except InfeasibleError as e:
         t = target(streams, dt)
         notes.append(f"targets with ideal utilities: the utilities given cannot meet them at ΔTmin {dt:g} K ({e})")
+    hot_target, cold_target = t.hot_utility, t.cold_utility
+    notes.append(f"targets at ΔTmin {dt:g} K by the problem table algorithm, "
+                 + ("with the utilities given (their least duties)" if t.placement is not None else "ideal utilities"))
+    if t.placement is not None:   # the least duties of the utilities given (more than the process minimum
+        hot_target = sum(d.duty for d in t.placement.duties if d.utility.is_hot)   # when hot oil must reach
+        cold_target = sum(d.duty for d in t.placement.duties if not d.utility.is_hot)   # the hottest demand)
+        if hot_target > t.hot_utility + 1e-9 * max(t.hot_process_duty, 1.0):
+            notes.append(f"targets with the utilities given: {hot_target:.6g} kW hot and {cold_target:.6g} kW cold, "
+                         f"above the process's least {t.hot_utility:.6g} kW hot at ΔTmin {dt:g} K: a non-isothermal "
+                         "utility's heat spreads over its range, so more of it is needed to reach the hottest "
+                         "demand, and the surplus leaves through the cold utilities")
     sized = True
     try:
-        net = size_network(net, streams, utilities, costs=costs, default_film_coefficient=default_film_coefficient,
-                           own_arrangements=True)
+        net = size_network(net, _covering(streams, net), utilities, costs=costs,
+                           default_film_coefficient=default_film_coefficient, own_arrangements=True)
     except (TemperatureCrossError, InputError, ValueError) as e:
         sized = False   # the checks still stand; the notes say why there are no areas and costs
         notes.append(f"not sized and not costed as a new design: {e}")
-    return Evaluation(net, sim, float(dt), tuple(dict.fromkeys(failures)), tuple(crosses), float(t.hot_utility),
-                      float(t.cold_utility), sized, tuple(notes))
+    return Evaluation(net, sim, float(dt), tuple(dict.fromkeys(failures)), tuple(crosses), float(hot_target),
+                      float(cold_target), sized, tuple(notes))
 
+
+def _covering(streams: StreamTable, net: Network) -> StreamTable:
+    """The streams, each with its end segments continued (at their CP) over the unit temperatures that lie
+    beyond its range by less than the tolerance of measured data
+    (:data:`heatloom.defaults.MEASURED_BALANCE_TOLERANCE` of the range: the rounding of a table's areas
+    leaves a rated outlet a few mK past its target), so that sizing can cut each unit's part of the profile;
+    larger overshoots are left for sizing to refuse (the checks report them)."""
+    seen: dict[str, list[float]] = {}
+    for x in net.exchangers:
+        seen.setdefault(x.hot, []).extend((x.hot_in, x.hot_out))
+        seen.setdefault(x.cold, []).extend((x.cold_in, x.cold_out))
+    for x in net.heaters:
+        seen.setdefault(x.cold, []).extend((x.cold_in, x.cold_out))
+    for x in net.coolers:
+        seen.setdefault(x.hot, []).extend((x.hot_in, x.hot_out))
+    out = []
+    for st in streams:
+        lo, hi = sorted((st.supply_temperature, st.target_temperature))
+        tol = defaults.MEASURED_BALANCE_TOLERANCE * (hi - lo)
+        temps = seen.get(st.name, [])
+        low = min((t for t in temps if lo - tol <= t < lo), default=lo)
+        high = max((t for t in temps if hi < t <= hi + tol), default=hi)
+        if low == lo and high == hi:
+            out.append(st)
+            continue
+        segs = list(st.segments)
+        first, last = (high, low) if st.is_hot else (low, high)
+        segs[0] = replace(segs[0], supply_temperature=first)
+        segs[-1] = replace(segs[-1], target_temperature=last)
+        out.append(replace(st, segments=tuple(segs)))
+    return replace(streams, streams=tuple(out))

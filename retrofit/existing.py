@@ -71,6 +71,9 @@ MAX_ISOTHERMAL_GLIDE = 1.0
 """A utility whose temperature changes by at most this much [K] (condensing steam written 250 → 249 °C) can
 rate a heater or cooler inside a stream by its area, as a constant-temperature side at its mean
 temperature."""
+UTILITY_END_TOLERANCE = 1e-3
+"""How far [K] a unit's stated utility temperatures may lie outside the utility's range (a design's units
+table rounds temperatures to 0.001 K); they are clipped into it."""
 DUTY_CONSISTENCY = 5e-3
 """Largest mismatch allowed between stated duties walked from the supply end and from the target end of
 a stream, relative to the stream's duty [-] (rounded plant data)."""
@@ -213,10 +216,41 @@ class ExistingNetwork:
                                  f"'{unit.hot}' and '{unit.cold}', which makes it {_article(role.value)} (a "
                                  f"{_ROLE_RULE}); correct the role or the hot/cold names", row=unit.row,
                                  column="role")
-            units.append(replace(unit, role=role))
+            units.append(self._utility_ends(replace(unit, role=role), utilities))
         units = resolve_positions(units, streams, notes)
         units = [self._coefficient(u, streams, utilities) for u in units]
         return self._duties(units, streams, utilities, notes)
+
+    @staticmethod
+    def _utility_ends(unit: ExistingUnit, utilities: dict) -> ExistingUnit:
+        """Check the stated temperatures on the side of a non-isothermal utility: both or neither, in its
+        flow direction, within its range (to :data:`UTILITY_END_TOLERANCE`, then clipped into it)."""
+        if unit.role is UnitRole.EXCHANGER:
+            return unit
+        side = "hot" if unit.role is UnitRole.HEATER else "cold"
+        util, pair = utilities[getattr(unit, side)], getattr(unit, f"{side}_temperatures")
+        if util.isothermal or pair is None:
+            return unit
+        where = f"{unit.role.value} '{unit.name}'"
+        if None in pair:
+            given, missing = (f"{side}_in", f"{side}_out") if pair[1] is None else (f"{side}_out", f"{side}_in")
+            raise InputError(f"{where}: {given.replace('_', ' ')} of utility '{util.name}' given without "
+                             f"{missing.replace('_', ' ')}: give both (the part of its range the unit takes) or "
+                             "neither (its whole range)", row=unit.row, column=missing)
+        lo, hi = util.coldest, util.hottest
+        for t, column in zip(pair, (f"{side}_in", f"{side}_out")):
+            if not lo - UTILITY_END_TOLERANCE <= t <= hi + UTILITY_END_TOLERANCE:
+                raise InputError(f"{where}: {column.replace('_', ' ')} {t:g} °C lies outside the range of utility "
+                                 f"'{util.name}' ({util.supply_temperature:g} → {util.target_temperature:g} °C); on a "
+                                 "utility's side the temperatures give the part of its range the unit takes",
+                                 row=unit.row, column=column)
+        t_in, t_out = (min(max(t, lo), hi) for t in pair)
+        if not (t_in > t_out if util.is_hot else t_in < t_out):
+            raise InputError(f"{where}: utility '{util.name}' ({util.supply_temperature:g} → "
+                             f"{util.target_temperature:g} °C) would run from {t_in:g} to {t_out:g} °C in it; a "
+                             f"{'hot' if util.is_hot else 'cold'} utility {'cools' if util.is_hot else 'warms'} "
+                             f"along its flow", row=unit.row, column=f"{side}_out")
+        return replace(unit, **{f"{side}_temperatures": (t_in, t_out)})
 
     def _role(self, unit: ExistingUnit, streams: dict, utilities: dict) -> UnitRole:
         kinds = {}
@@ -335,7 +369,7 @@ class ExistingNetwork:
             elif u.duty is not None:
                 mode = OperatingMode.FIXED_DUTY
             else:
-                util = utilities[u.hot if u.role is UnitRole.HEATER else u.cold]
+                util = u.utility_taken(utilities[u.hot if u.role is UnitRole.HEATER else u.cold])
                 glide = util.hottest - util.coldest
                 if glide > MAX_ISOTHERMAL_GLIDE:
                     raise InputError(f"{u.role.value} '{u.name}' is not the last unit of stream "
@@ -375,7 +409,7 @@ class ExistingNetwork:
     def _check_duty(self, u: ExistingUnit, temps, streams: dict, utilities: dict, notes: list[str]) -> ExistingUnit:
         """Check a stated duty against the driving force; compute the area from it when needed."""
         hot_in, hot_out, cold_in, cold_out = temps
-        hot, cold = self.side(u.hot), self.side(u.cold)
+        hot, cold = self.unit_side(u, u.hot), self.unit_side(u, u.cold)
         where = {"row": u.row, "column": "duty"}
         sides = f"hot {hot_in:.4g} → {hot_out:.4g} °C, cold {cold_in:.4g} → {cold_out:.4g} °C"
         if u.role is UnitRole.EXCHANGER:
@@ -442,6 +476,13 @@ class ExistingNetwork:
             if u.name == name:
                 return u
         raise KeyError(name)
+
+    def unit_side(self, unit: ExistingUnit, name: str) -> Stream | Utility:
+        """A unit's hot or cold side (``name``): the process stream, or the utility as the unit takes it
+        (:meth:`ExistingUnit.utility_taken`: the part of a non-isothermal utility's range its stated
+        temperatures give)."""
+        side = self.side(name)
+        return unit.utility_taken(side) if isinstance(side, Utility) else side
 
     def side(self, name: str) -> Stream | Utility:
         """The process stream or utility of that name, as a unit's hot or cold side names it (KeyError if
@@ -657,6 +698,8 @@ class ExistingNetwork:
                 hot = getattr(x, "hot", None) or x.utility
                 cold = getattr(x, "cold", None) or x.utility
                 shares = {f"{side}_fraction": design_share(getattr(x, f"{side}_fraction", 1.0)) for side in ("hot", "cold")}
+                if prefix != "E":   # the part of its utility's range the unit takes (hot oil piped in series)
+                    shares[f"{'hot' if prefix == 'H' else 'cold'}_temperatures"] = (x.utility_in, x.utility_out)
                 units.append((ExistingUnit(name, hot, cold, area=x.area, duty=x.duty, u=x.u, **shares), x))
         ours = {x.name: u.name for u, x in units}
         positions: dict[str, dict] = {}
@@ -692,11 +735,29 @@ class ExistingNetwork:
         if any(u.hot_branch or u.cold_branch for u in self.units):
             split.update({"hot_branch": "hot_branch", "hot_branch_order": "hot_branch_order",
                           "cold_branch": "cold_branch", "cold_branch_order": "cold_branch_order"})
+        ends = {u.name: self._utility_ends_written(u) for u in self.units}
+        keys = ("hot in [°C]", "hot out [°C]", "cold in [°C]", "cold out [°C]")
         return pd.DataFrame([{"unit": u.name, "role": u.role.value, "mode": u.mode.value, "hot": u.hot,
                               "cold": u.cold, "hot_order": u.hot_position, "cold_order": u.cold_position,
                               **{k: _written(getattr(u, a)) for k, a in split.items()},
                               "area [m²]": u.area, "duty [kW]": u.duty, "U [kW/(m²·K)]": u.u,
-                              "type": u.arrangement.value, "shells": u.shells} for u in self.units])
+                              "type": u.arrangement.value, "shells": u.shells,
+                              **(dict(zip(keys, ends[u.name])) if any(any(e) for e in ends.values()) else {})}
+                             for u in self.units])
+
+    def _utility_ends_written(self, u: ExistingUnit) -> tuple:
+        """(hot in, hot out, cold in, cold out) [°C] of the units table: the part of a non-isothermal
+        utility's range a heater or cooler takes, where it takes only a part; None elsewhere."""
+        out: list = [None] * 4
+        if u.role is not UnitRole.EXCHANGER:
+            side = "hot" if u.role is UnitRole.HEATER else "cold"
+            util = self.utility(getattr(u, side))
+            taken = u.utility_taken(util)
+            if (taken.supply_temperature, taken.target_temperature) != (util.supply_temperature,
+                                                                          util.target_temperature):
+                k = 0 if side == "hot" else 2
+                out[k:k + 2] = taken.supply_temperature, taken.target_temperature
+        return tuple(out)
 
 
 _ROLE_RULE = ("unit between two process streams is an exchanger, one with a hot utility a heater, one with a cold "

@@ -549,7 +549,7 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
                 side_temps[side] = (temperature_of(temps, lay.inlet[(u.name, side)]),
                                     temperature_of(temps, lay.outlet[(u.name, side)]))
             else:
-                util = network.utility(name)
+                util = u.utility_taken(network.utility(name))
                 side_temps[side] = (util.supply_temperature, util.target_temperature)
         (hi, ho), (ci, co) = side_temps["hot"], side_temps["cold"]
         eps = ntu = None

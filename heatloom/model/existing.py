@@ -9,13 +9,14 @@ from __future__ import annotations
 
 import enum
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
 from ..errors import InputError
 from ..validation import as_written
 from .exchangers import ExchangerType
+from .streams import Utility
 
 __all__ = ["UnitRole", "OperatingMode", "ExistingUnit", "UnitTable"]
 
@@ -97,6 +98,13 @@ class ExistingUnit:
         Place of the unit on its labelled branch from the split, 1-based [-]; for a path of labels one place
         per label (``"2/1"``: the split on branch b is its second item, the unit is the first on branch a);
         default the order of the units (one level only).  Kept as a tuple of int.
+    hot_temperatures, cold_temperatures : tuple of (float or None), optional
+        (inlet, outlet) of the hot and the cold side as stated [°C] (a network table's ``hot in``/``hot out``,
+        ``cold in``/``cold out``).  On the side of a non-isothermal utility (hot oil, cooling water) they
+        give the part of its range the unit takes, as a design that pipes hot oil through its heaters in
+        series writes them (:meth:`utility_taken`; checked against the utility's range by
+        :class:`ExistingNetwork`); without them the unit takes the utility over its whole range.  On a
+        process side, and for an isothermal utility, they are informative: the simulation finds them.
 
     A heater or cooler that is the last unit on its stream (a *trim* unit) may have neither area nor duty:
     it takes the rest of its stream's duty, bringing the stream to its target.  Every other unit needs an
@@ -128,6 +136,8 @@ class ExistingUnit:
     cold_branch: str | None = None
     hot_branch_order: tuple[int, ...] | None = None
     cold_branch_order: tuple[int, ...] | None = None
+    hot_temperatures: tuple[float | None, float | None] | None = None
+    cold_temperatures: tuple[float | None, float | None] | None = None
 
     def __post_init__(self) -> None:
         where = {"row": self.row}
@@ -196,6 +206,24 @@ class ExistingUnit:
                                  **where)
             object.__setattr__(self, attr, min(1.0, x))
         for side in ("hot", "cold"):
+            pair = getattr(self, f"{side}_temperatures")
+            if pair is None:
+                continue
+            if isinstance(pair, (str, bytes)) or len(pair) != 2:
+                raise InputError(f"unit '{name}': {side}_temperatures must be (inlet, outlet) [°C], got {pair!r}",
+                                 column=f"{side}_in", **where)
+            ends = []
+            for v, column in zip(pair, (f"{side}_in", f"{side}_out")):
+                try:
+                    x = None if v is None or v != v else float(v)
+                except (TypeError, ValueError):
+                    x = float("nan")
+                if x is not None and not math.isfinite(x):
+                    raise InputError(f"unit '{name}': {column.replace('_', ' ')} must be a temperature [°C], got "
+                                     f"{v!r}", column=column, **where)
+                ends.append(x)
+            object.__setattr__(self, f"{side}_temperatures", None if ends == [None, None] else tuple(ends))
+        for side in ("hot", "cold"):
             label, order = getattr(self, f"{side}_branch"), getattr(self, f"{side}_branch_order")
             if label is not None:
                 parts = [x.strip() for x in as_written(label).split("/")]
@@ -232,6 +260,27 @@ class ExistingUnit:
             return self.cold_branch
         raise KeyError(stream)
 
+    def utility_taken(self, utility: Utility) -> Utility:
+        """``utility`` (one of this unit's sides) as the unit takes it: over the part of its range the unit's
+        stated temperatures on that side give, when the utility is non-isothermal and both are stated;
+        otherwise the utility itself.
+
+        >>> from heatloom.model import Utility, UtilityKind
+        >>> oil = Utility("oil", 330, 250, 60.0, UtilityKind.HOT)
+        >>> u = ExistingUnit("HU-2", "oil", "C1", hot_temperatures=(293.0, 250.0))
+        >>> part = u.utility_taken(oil)
+        >>> part.supply_temperature, part.target_temperature, part.cost
+        (293.0, 250.0, 60.0)
+        >>> ExistingUnit("HU-3", "oil", "C1").utility_taken(oil) is oil
+        True
+        """
+        if utility.name not in (self.hot, self.cold):
+            raise KeyError(utility.name)
+        pair = self.hot_temperatures if utility.name == self.hot else self.cold_temperatures
+        if utility.isothermal or pair is None or None in pair:
+            return utility
+        return replace(utility, supply_temperature=pair[0], target_temperature=pair[1])
+
     @property
     def on_branch(self) -> bool:
         """True when the unit sits on a split branch of either of its streams."""
@@ -258,7 +307,9 @@ class ExistingUnit:
                 "cold_order": self.cold_position, "hot_fraction": self.hot_fraction,
                 "cold_fraction": self.cold_fraction, "hot_branch": self.hot_branch,
                 "hot_branch_order": _listed(self.hot_branch_order), "cold_branch": self.cold_branch,
-                "cold_branch_order": _listed(self.cold_branch_order), "area_from_duty": self.area_from_duty,
+                "cold_branch_order": _listed(self.cold_branch_order),
+                "hot_temperatures": _listed(self.hot_temperatures), "cold_temperatures": _listed(self.cold_temperatures),
+                "area_from_duty": self.area_from_duty,
                 "U_from_films": self.u_from_films}
 
 

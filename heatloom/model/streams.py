@@ -440,6 +440,11 @@ class Utility:
         return self.kind is UtilityKind.HOT
 
     @property
+    def isothermal(self) -> bool:
+        """Whether it condenses or evaporates at one temperature (supply = target)."""
+        return self.supply_temperature == self.target_temperature
+
+    @property
     def hottest(self) -> float:
         """[°C]"""
         return max(self.supply_temperature, self.target_temperature)

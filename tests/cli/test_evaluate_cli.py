@@ -85,3 +85,40 @@ def test_a_designs_own_units_table_passes_evaluate(capsys, tmp_path):
     assert code == 0, err
     data = json.loads(out)
     assert data["ok"] and data["failures"] == [] and data["targets_met"]
+
+
+def test_a_design_with_hot_oil_piped_through_its_heaters_reads_back(capsys, tmp_path):
+    """Invented 13-stream table (THIRTEEN of tests/synthesis_problems.py) with invented hot oil 330 → 250 °C:
+    the design pipes the oil through its heaters in series (one above its 293 °C pinch temperature, one
+    below), each taking it over part of its range, and writes those temperatures in the units table's hot
+    in/out columns.  Evaluate must read them back: with the oil over its whole range in every heater, the heater
+    of C2 (283 → 284 °C) would have no driving force at its cold end (250 °C oil against 283 °C), which is how
+    the read-back failed before.  The least oil duty is 1.9 × 80/37 kW (hand calculation: C2 needs 1.9 kW
+    above the 288 °C shifted pinch, where 37 of the oil's 80 K shifted range lies)."""
+    from synthesis_problems import THIRTEEN
+
+    rows = ["name,T_supply,T_target,CP,h"] + [f"{n},{a},{b},{c},0.5" for n, a, b, c in
+                                             zip(THIRTEEN["names"], THIRTEEN["supply"], THIRTEEN["target"],
+                                                 THIRTEEN["cp"])]
+    (tmp_path / "s.csv").write_text("\n".join(rows) + "\n", encoding="utf-8")
+    (tmp_path / "u.csv").write_text("name,T_supply,T_target,cost,h\noil,330,250,60,1.0\nCW,10,15,6,1.5\n",
+                                    encoding="utf-8")
+    code, out, err = run(capsys, "design", tmp_path / "s.csv", "--dtmin", "10", "--utilities", tmp_path / "u.csv",
+                         "--time-limit", "20", "--out", tmp_path / "d", "--json")
+    assert code == 0, err
+    design = json.loads(out)
+    heaters = [h for h in design["heaters"] if h["utility"] == "oil"]
+    assert any((h["utility_in"], h["utility_out"]) != (330.0, 250.0) for h in heaters)   # piped: parts of the range
+    code, out, err = run(capsys, "evaluate", tmp_path / "s.csv", tmp_path / "d" / "design_units.csv", "--dtmin", "10",
+                         "--utilities", tmp_path / "u.csv", "--json")
+    assert code == 0, err
+    data = json.loads(out)
+    assert data["ok"] and data["failures"] == [] and data["temperature_crosses"] == [], data["failures"]
+    assert data["sized"]
+    assert data["hot_utility_target"] == pytest.approx(1.9 * 80.0 / 37.0, rel=1e-6)
+    assert data["targets_met"]
+    back = {h["name"]: h for h in data["network"]["heaters"]}
+    for h in heaters:   # each heater takes the oil over the part of its range the design gave it
+        assert back[h["name"]]["utility_in"] == pytest.approx(h["utility_in"], abs=1e-3)
+        assert back[h["name"]]["utility_out"] == pytest.approx(h["utility_out"], abs=1e-3)
+        assert back[h["name"]]["cold_in"] - h["utility_out"] <= -10.0 + 1e-2   # ΔTmin 10 K at the cold end

@@ -262,3 +262,46 @@ def test_changes_for_retrofit(tmp_path):
     assert [u.name for u in added.on_stream("C2")] == ["E9", "E2"]
     with pytest.raises(KeyError):
         net.with_changes("nope", area=1.0)
+
+
+# -- the utility's temperatures in a heater or cooler (hot in/out, cold in/out on a utility side) -----------
+
+OIL_STREAMS = StreamTable([Stream.simple("C", 100, 150, 2.0, film_coefficient=1.0),
+                           Stream.simple("H", 120, 40, 1.0, film_coefficient=1.0)])
+OIL = [Utility("oil", 330, 250, 60.0, film_coefficient=1.0), Utility("CW", 10, 30, 6.0, film_coefficient=1.0)]
+OIL_HEADER = "unit,hot,cold,duty [kW],hot in [°C],hot out [°C],cold in [°C],cold out [°C]\n"
+
+
+def oil_network(tmp_path, body: str) -> ExistingNetwork:
+    return ExistingNetwork.from_table(OIL_STREAMS, read_network(write(tmp_path, body, OIL_HEADER)), OIL)
+
+
+def test_utility_temperatures_of_a_heater_are_read_and_other_sides_stay_informative(tmp_path):
+    net = oil_network(tmp_path, "HU,oil,C,100,300,250,100,150\nCU,H,CW,80,120,40,12,28\n")
+    heater, cooler = net.unit("HU"), net.unit("CU")
+    oil = heater.utility_taken(net.utility("oil"))
+    assert (oil.supply_temperature, oil.target_temperature) == (300.0, 250.0)
+    water = cooler.utility_taken(net.utility("CW"))
+    assert (water.supply_temperature, water.target_temperature) == (12.0, 28.0)
+    # without them a unit takes the utility over its whole range
+    whole = oil_network(tmp_path, "HU,oil,C,100,,,,\n").unit("HU").utility_taken(net.utility("oil"))
+    assert (whole.supply_temperature, whole.target_temperature) == (330.0, 250.0)
+
+
+@pytest.mark.parametrize("row, column, words", [
+    ("HU,oil,C,100,300,,100,150\n", "hot out [°C]", "given without hot out"),
+    ("HU,oil,C,100,340,250,,\n", "hot in [°C]", "outside the range of utility 'oil'"),
+    ("HU,oil,C,100,260,290,,\n", "hot out [°C]", "a hot utility cools along its flow"),
+    ("HU,oil,C,100,330,250,,\nCU,H,CW,80,,,31,12\n", "cold in [°C]", "outside the range of utility 'CW'"),
+])
+def test_bad_utility_temperatures_name_the_row_and_column(tmp_path, row, column, words):
+    with pytest.raises(InputError) as e:
+        oil_network(tmp_path, row)
+    msg = str(e.value)
+    assert f"column '{column}'" in msg and words in msg and "row " in msg
+
+
+def test_utility_temperatures_a_design_rounded_are_clipped_into_the_range(tmp_path):
+    # a design's units table writes temperatures to 0.001 K: 330.0004 is the oil's supply temperature
+    net = oil_network(tmp_path, "HU,oil,C,100,330.0004,249.9996,100,150\n")
+    assert net.unit("HU").hot_temperatures == (330.0, 250.0)

@@ -23,6 +23,8 @@ from heatloom.model import StreamTable, Utility, UtilityKind
 from heatloom.network.design import design_mer
 from heatloom.network.placement import Side, interval_placement
 from heatloom.pinch.targets import target
+from heatloom.retrofit.existing import ExistingNetwork
+from heatloom.retrofit.simulate import simulate
 
 DT = 10.0
 
@@ -115,6 +117,15 @@ def test_tick_off_design_pipes_the_oil_above_the_pinch():
     assert above and all(h.utility_out >= 293.0 - 1e-9 for h in above)   # the oil above the pinch only
     assert any("piped" in n for n in net.notes)
     assert net.units <= round(1.1 * net.unit_target)
+    # as an existing network (the start of a retrofit) each heater keeps its part of the oil's range, and the
+    # simulation at the design's areas finds no problem (over the whole range C2's heater would have none)
+    existing = ExistingNetwork.from_network(net, streams, utils)
+    sim = simulate(existing, DT)
+    assert sim.problems == ()
+    states = {u.name: u for u in sim.units}
+    for k, h in enumerate(net.heaters, start=1):
+        assert (states[f"H{k}"].hot_in, states[f"H{k}"].hot_out) == (h.utility_in, h.utility_out)
+        assert states[f"H{k}"].duty == pytest.approx(h.duty, rel=1e-6, abs=1e-6)
 
 
 @pytest.mark.parametrize("oil", [(330.0, 250.0), (300.0, 200.0)])

@@ -154,3 +154,38 @@ def test_an_approach_a_hair_below_dtmin_is_a_note_not_a_failure(duty, fails):
     assert (not ev.ok) is fails
     assert any("smallest approach" in f for f in ev.failures) is fails
     assert any("within 0.01 K below ΔTmin 10 K" in n and "H1→C1" in n for n in ev.notes) is not fails
+
+
+@pytest.mark.parametrize("oil_ends", [None, (300.0, 250.0)])
+def test_a_heater_is_sized_over_the_part_of_the_oils_range_it_takes(oil_ends):
+    """Invented: hot oil 330 → 250 °C heats C from 100 to 150 °C (2 kW/K, 100 kW); h 1 kW/(m²·K) on both sides,
+    U = 0.5.  Taking the oil over its whole range the ends are 330 − 150 and 250 − 100 K; taking it from 300 to
+    250 °C (as a design that pipes the oil through heaters in series writes it) both ends are 150 K.  Area =
+    Q / (U · LMTD), LMTD from the reference library ``ht`` (ht.LMTD)."""
+    s = StreamTable.from_arrays(["C"], [100], [150], [2.0], film_coefficient=[1.0])
+    oil = Utility("oil", 330, 250, 60.0, UtilityKind.HOT, 1.0)
+    net = ExistingNetwork(s, [ExistingUnit("HU", "oil", "C", duty=100.0, hot_temperatures=oil_ends)], [oil])
+    ev = evaluate_network(net, 10.0)
+    assert ev.ok, ev.failures
+    (heater,) = ev.network.heaters
+    t_in, t_out = oil_ends or (330.0, 250.0)
+    assert (heater.utility_in, heater.utility_out) == (t_in, t_out)
+    assert heater.area == pytest.approx(100.0 / (0.5 * ht.LMTD(t_in, t_out, 100.0, 150.0)), rel=1e-6)
+    # targets with the oil given: C needs 100 kW, all of the oil's shifted range (325 → 245 °C) lies above C's
+    # shifted range (105 → 155 °C): 100 kW of oil, no cold utility
+    assert ev.hot_utility_target == pytest.approx(100.0) and ev.cold_utility_target == pytest.approx(0.0, abs=1e-9)
+
+
+def test_the_utility_target_of_oil_that_must_reach_the_hottest_demand_is_its_least_duty():
+    """Invented: C1 260 → 290 °C (1 kW/K, 30 kW) and H1 200 → 100 °C (1 kW/K, 100 kW) against C2 40 → 140 °C
+    (1 kW/K); hot oil 330 → 250 °C, cooling water 10 → 20 °C, ΔTmin 10 K.  Hand calculation: C1 sits at 265 → 295 °C
+    shifted, where the oil (325 → 245 °C shifted) holds (325 − 265)/80 of its heat, so the oil must carry
+    30 × 80/60 = 40 kW; the 10 kW it brings below 265 °C shifted leave through the cooling water (H1 and C2
+    balance, 100 kW each): 10 kW cold.  The process alone needs 30 kW hot."""
+    s = StreamTable.from_arrays(["C1", "H1", "C2"], [260, 200, 40], [290, 100, 140], [1.0, 1.0, 1.0],
+                                film_coefficient=[1.0] * 3)
+    u = [Utility("oil", 330, 250, 60.0, UtilityKind.HOT, 1.0), Utility("CW", 10, 20, 6.0, UtilityKind.COLD, 1.0)]
+    net = ExistingNetwork(s, [ExistingUnit("X", "H1", "C2", duty=100.0), ExistingUnit("HU", "oil", "C1")], u)
+    ev = evaluate_network(net, 10.0)
+    assert ev.hot_utility_target == pytest.approx(40.0) and ev.cold_utility_target == pytest.approx(10.0)
+    assert any("non-isothermal utility's heat spreads over its range" in n for n in ev.notes)
