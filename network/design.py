@@ -358,7 +358,7 @@ def _region_sides(streams: StreamTable, utilities: Sequence[Utility], duties: di
         d = duties.get(u.name, 0.0)
         if d <= 1e-9 * max(scale, 1.0):
             continue
-        if u.supply_temperature != u.target_temperature:
+        if not u.isothermal:
             # a non-isothermal utility spreads its duty evenly over its shifted range (the problem table's
             # and the transshipment's reading): each region gets the part of it between its pinches
             side = _utility_part(u, d, dt_min, region)
@@ -395,16 +395,15 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
                                     time_limit=0.6 * part.remaining, tries=500, solver=solver,
                                     solve_time=0.6 * part.remaining, neighbourhood=0.6)
         piped = ""
-        for hot_only in (True, False):
-            if result is not None or not any(x.utility and not x.isothermal and (x.hot or not hot_only)
-                                             for x in (*hot, *cold)):
-                continue
+        for hot_only in _pipings(hot, cold):
+            if result is not None:
+                break
             # the conservative reading counts hot oil's heat at its return temperature only; piped as a
-            # stream of the region (its target flow, the problem table's reading) the targets hold; the hot
-            # utilities first (cooling water piped in series is a last resort)
+            # stream of the region (its target flow, the problem table's reading) the targets hold
             hot2, cold2, banned, piped = _utilities_as_streams(
                 hot, cold, "the tick-off method's conservative reading, the utility's heat counted at its return "
                 "temperature, left no search", hot_only=hot_only)
+            piped = f"; {piped}"
             result = tick_off_placement(hot2, cold2, forbidden=set(forbidden) | banned, required=mine,
                                         time_limit=0.6 * part.remaining, tries=500, solver=solver,
                                         solve_time=0.6 * part.remaining, neighbourhood=0.6)
@@ -438,12 +437,20 @@ def _utilities_as_streams(hot: list[Side], cold: list[Side], why: str, hot_only:
         f"'{x.name}' piped through its units as a stream of {x.duty / abs(x.temperatures[0] - x.temperatures[-1]):.6g} "
         f"kW/K ({x.temperatures[0]:g} → {x.temperatures[-1]:g} °C overall): its units take it over parts of that "
         f"range, in series and on parallel branches, as the energy target assumes ({why}); the units' "
-        "utility temperatures say where each takes it "
-        "(the network table has no column for them: evaluate reads every unit over the utility's whole range). "
+        f"utility temperatures say where each takes it (columns {'hot' if x.hot else 'cold'} in/out of the units "
+        "table, which evaluate reads back). "
         "Caution: check the utility's film-temperature, pressure and flow limits in every unit against its "
         "supplier's data and local codes (qualified, licensed engineers)"
         for x in (*hot, *cold) if x.name in names)
-    return hot2, cold2, banned, f"; {words}"
+    return hot2, cold2, banned, words
+
+
+def _pipings(hot: list[Side], cold: list[Side]) -> list[bool]:
+    """The ways to pipe a region's non-isothermal utilities as streams, in the order to try them (the
+    ``hot_only`` of :func:`_utilities_as_streams`): the hot ones alone, then all of them (cooling water
+    piped in series through coolers is a last resort); empty when the region has none."""
+    kinds = {x.hot for x in (*hot, *cold) if x.utility and not x.isothermal}
+    return [hot_only for hot_only, needs in ((True, True in kinds), (False, False in kinds)) if needs]
 
 
 def _must_pipe(hot: list[Side], cold: list[Side], forbidden) -> bool:
@@ -474,9 +481,14 @@ def _chain_design(streams, utilities, plan, regions, t, dt_min, forbidden, requi
         hot_sides, cold_sides = got
         banned: set = set()
         if _must_pipe(hot_sides, cold_sides, forbidden):
-            hot_sides, cold_sides, banned, piped = _utilities_as_streams(
-                hot_sides, cold_sides, "one unit over the whole range each could not serve every piece")
-            notes.append(f"subnetwork '{region.label}': {piped.removeprefix('; ')}")
+            for hot_only in _pipings(hot_sides, cold_sides):
+                hot2, cold2, banned, piped = _utilities_as_streams(
+                    hot_sides, cold_sides, "one unit over the whole range each could not serve every piece",
+                    hot_only=hot_only)
+                if not _must_pipe(hot2, cold2, set(forbidden) | banned):
+                    break
+            hot_sides, cold_sides = hot2, cold2
+            notes.append(f"subnetwork '{region.label}': {piped}")
         matches = plan.matches_within(region.top, region.bottom)
         subs = [s.subnetwork for s in plan.subnetworks if s.matches and s.matches[0] in matches]
         parts = stream_groups(hot_sides, cold_sides, matches)
