@@ -41,6 +41,7 @@ import functools
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, replace
 
+from .. import defaults
 from ..equipment.rating import max_effectiveness, ntu_from_effectiveness
 from ..equipment.sizing import overall_coefficient
 from ..errors import InputError, TemperatureCrossError
@@ -74,6 +75,9 @@ temperature."""
 UTILITY_END_TOLERANCE = 1e-3
 """How far [K] a unit's stated utility temperatures may lie outside the utility's range (a design's units
 table rounds temperatures to 0.001 K); they are clipped into it."""
+_WRITTEN_DUTY = 0.5 * 10.0 ** -defaults.OUTPUT_PRECISION["duty"]
+"""Half the last place a written table keeps of a duty [kW]: a design's unit that takes all of its branch
+comes back that much above the branch's duty."""
 DUTY_CONSISTENCY = 5e-3
 """Largest mismatch allowed between stated duties walked from the supply end and from the target end of
 a stream, relative to the stream's duty [-] (rounded plant data)."""
@@ -309,7 +313,7 @@ class ExistingNetwork:
             s = streams[name]
             for u in (u for group in seq for u in group):
                 share = u.fraction(name)
-                if u.duty is not None and u.duty > share * s.duty * (1 + 1e-9):
+                if u.duty is not None and u.duty > share * s.duty * (1 + 1e-9) + _WRITTEN_DUTY:
                     raise InputError(f"unit '{u.name}': stated duty {u.duty:.6g} kW is more than stream '{name}' "
                                      f"{'gives' if s.is_hot else 'takes'} between its supply and target "
                                      f"temperatures ({s.duty:.6g} kW)" + (

@@ -305,3 +305,20 @@ def test_utility_temperatures_a_design_rounded_are_clipped_into_the_range(tmp_pa
     # a design's units table writes temperatures to 0.001 K: 330.0004 is the oil's supply temperature
     net = oil_network(tmp_path, "HU,oil,C,100,330.0004,249.9996,100,150\n")
     assert net.unit("HU").hot_temperatures == (330.0, 250.0)
+
+
+@pytest.mark.parametrize("duty, ok", [(60.0004, True), (60.01, False)])
+def test_a_branch_unit_that_takes_all_of_its_branch_reads_back_from_a_rounded_table(duty, ok):
+    """A design's unit that takes all of its branch (1/3 of H1's 180 kW = 60 kW) is written with its duty
+    rounded to 0.001 kW, so it may come back up to 0.0005 kW above the branch's duty: accepted; 0.01 kW
+    above is a real overrun and refused.  (Invented network; the bound is the writing precision of
+    heatloom.defaults.OUTPUT_PRECISION.)"""
+    units = [ExistingUnit("E1", "H1", "C1", duty=duty, u=0.5, hot_position=1, cold_position=1, hot_fraction=1 / 3),
+             ExistingUnit("E3", "H1", "C2", duty=80.0, u=0.5, hot_position=1, cold_position=1, hot_fraction=2 / 3),
+             ExistingUnit("CW1", "H1", "water", hot_position=2), ExistingUnit("ST", "steam", "C1", cold_position=2)]
+    if ok:
+        net = ExistingNetwork(STREAMS, units, UTILITIES)
+        assert net.unit("E1").duty == duty
+    else:
+        with pytest.raises(InputError, match="stated duty 60.01 kW is more than stream 'H1'"):
+            ExistingNetwork(STREAMS, units, UTILITIES)
