@@ -381,6 +381,26 @@ def _fallback_topology(p: TacProblem) -> Topology:
     return Topology(1, frozenset(), frozenset(heaters), frozenset(coolers))
 
 
+def _unserved(p: TacProblem) -> str:
+    """Words naming the streams that no utility level may serve at their end in the TAC model, and why
+    (empty when every stream has one)."""
+    words = []
+    for names, ends, levels, ok, kind, where in (
+            (p.cold_names, p.cold_in, p.heat_levels, p.heat_level_possible, "cold", "above"),
+            (p.hot_names, p.hot_in, p.cool_levels, p.cool_level_possible, "hot", "below")):
+        for s, name in enumerate(names):
+            if not any(ok(s, level) for level in range(len(levels))):
+                each = ", ".join(f"'{u.name}' {u.supply_temperature:g} → {u.target_temperature:g} °C" for u in levels)
+                words.append(f"{kind} stream '{name}' (supply {ends[s]:g} °C): the TAC model runs every "
+                             f"{'heater' if kind == 'cold' else 'cooler'} over its utility's whole range, so the "
+                             f"utility must enter and leave {where} the stream's supply temperature by the approach "
+                             f"({each})")
+    if not words:
+        return ""
+    return ("; " + "; ".join(words) + ". MER design (--mode mer) takes a non-isothermal utility over parts of its "
+            "range (piped through its units in series); or give a utility level that can serve these streams")
+
+
 def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None, *,
                costs: CostSettings | None = None, emat: float = defaults.EMAT, stages: int | None = None,
                time_limit: float = 120.0, seed: int = 0, starts: int = 2, rounds: int = 40,
@@ -575,7 +595,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
                                       "network and the stagewise MILPs; see the notes of the solves)")
             raise InfeasibleError(f"no network keeps EMAT {emat:g} K: some stream cannot be served by any utility"
                                   + (f" it may use (forbidden: {', '.join(f'{h}:{c}' for h, c in sorted(forbidden))})"
-                                     if forbidden else ""))
+                                     if forbidden else "") + _unserved(p))
         order = sorted(range(len(candidates)), key=lambda n: candidates[n].tac)
         # start 0 from ``first`` (already under way), the others from the cheapest of the rest
         pool_order = ([first] if first is not None else []) + \

@@ -122,6 +122,17 @@ def test_rules_that_leave_no_network_are_an_infeasible_error():
         design_tac(s, u, forbidden=[("steam", "C")], **FAST)
 
 
+
+def test_hot_oil_that_returns_below_a_stream_s_supply_names_the_stream_and_the_way_out():
+    # invented: C must be heated from 263 to 273 °C; the only hot stream is at 200 °C, and hot oil 330 → 250 °C
+    # run over its whole range (the TAC model's heater) leaves at 250 °C, below C's supply + EMAT
+    s = StreamTable.from_arrays(["H", "C", "C2"], [200, 263, 30], [40, 273, 100], [1.0, 1.0, 1.0],
+                                film_coefficient=[1.0] * 3)
+    u = [Utility("oil", 330, 250, 60.0, UtilityKind.HOT, 1.0), Utility("water", 10, 20, 10.0, UtilityKind.COLD, 2.0)]
+    with pytest.raises(InfeasibleError, match=r"cold stream 'C' \(supply 263 °C\).*'oil' 330 → 250 °C.*--mode mer"):
+        design_tac(s, u, **FAST)
+
+
 SINNOTT = StreamTable.from_arrays(["1", "2", "3", "4"], [180, 150, 20, 80], [60, 30, 135, 140], [3.0, 1.0, 2.0, 4.5],
                                   film_coefficient=[0.5] * 4)
 
