@@ -746,7 +746,7 @@ class ExistingNetwork:
                               **{k: _written(getattr(u, a)) for k, a in split.items()},
                               "area [m²]": u.area, "duty [kW]": u.duty, "U [kW/(m²·K)]": u.u,
                               "type": u.arrangement.value, "shells": u.shells,
-                              **(dict(zip(keys, ends[u.name])) if any(any(e) for e in ends.values()) else {})}
+                              **(dict(zip(keys, ends[u.name])) if any(t is not None for e in ends.values() for t in e) else {})}
                              for u in self.units])
 
     def _utility_ends_written(self, u: ExistingUnit) -> tuple:

@@ -322,3 +322,15 @@ def test_a_branch_unit_that_takes_all_of_its_branch_reads_back_from_a_rounded_ta
     else:
         with pytest.raises(InputError, match="stated duty 60.01 kW is more than stream 'H1'"):
             ExistingNetwork(STREAMS, units, UTILITIES)
+
+
+def test_the_network_as_given_writes_the_utility_parts_and_reads_them_back(tmp_path):
+    net = oil_network(tmp_path, "HU,oil,C,100,300,250,100,150\nCU,H,CW,80,,,,\n")
+    frame = net.to_frame()
+    heater = frame.set_index("unit").loc["HU"]
+    assert (heater["hot in [°C]"], heater["hot out [°C]"]) == (300.0, 250.0)
+    assert frame.set_index("unit").loc["CU"][["cold in [°C]", "cold out [°C]"]].isna().all()   # its whole range
+    path = tmp_path / "again.csv"
+    frame.to_csv(path, index=False)
+    again = ExistingNetwork.from_table(OIL_STREAMS, read_network(path), OIL)
+    assert again.unit("HU").hot_temperatures == (300.0, 250.0) and again.unit("CU").cold_temperatures is None
