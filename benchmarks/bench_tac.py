@@ -28,6 +28,7 @@ from pathlib import Path
 
 from heatloom.model import Stream, StreamTable, Utility, UtilityKind
 from heatloom.model.costs import CostLaw, CostSettings
+from heatloom.network.streamorder import stream_order, stream_positions
 from heatloom.network.tac.search import design_tac
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
@@ -72,14 +73,16 @@ def generated_case(n: int):
 
 
 def splits(net) -> int:
-    """Stream splits: (stream, stage) pairs with more than one branch (a branch carrying units in series
-    counts once per unit)."""
+    """Stream splits: (stream, position along it) held by units on parallel branches (a branch carrying
+    units in series counts once; positions from the units' temperatures, as the units table writes them)."""
+    pos = stream_positions(net, stream_order(net))
     seen = set()
-    for e in net.exchangers:
-        if e.hot_fraction < 1 - 1e-9:
-            seen.add((e.hot, e.stage))
-        if e.cold_fraction < 1 - 1e-9:
-            seen.add((e.cold, e.stage))
+    for x in (*net.exchangers, *net.heaters, *net.coolers):
+        hot_pos, cold_pos = pos[x.name]
+        if getattr(x, "hot_fraction", 1.0) < 1 - 1e-9:
+            seen.add(("hot", x.hot, hot_pos))
+        if getattr(x, "cold_fraction", 1.0) < 1 - 1e-9:
+            seen.add(("cold", x.cold, cold_pos))
     return len(seen)
 
 
