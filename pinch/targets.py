@@ -91,6 +91,23 @@ class Targets:
         return self.table.cold_utility
 
     @property
+    def hot_utility_supplied(self) -> float:
+        """Hot utility the levels given must supply at least [kW]: the sum of their least duties, more than
+        :attr:`hot_utility` when a non-isothermal utility must reach the hottest demand (its heat spread
+        evenly over its range, the surplus leaving through the cold utilities); :attr:`hot_utility` when
+        no levels were given."""
+        if self.placement is None:
+            return self.hot_utility
+        return float(sum(d.duty for d in self.placement.duties if d.utility.is_hot))
+
+    @property
+    def cold_utility_supplied(self) -> float:
+        """Cold utility the levels given must take at least [kW] (see :attr:`hot_utility_supplied`)."""
+        if self.placement is None:
+            return self.cold_utility
+        return float(sum(d.duty for d in self.placement.duties if not d.utility.is_hot))
+
+    @property
     def pinch(self) -> Pinch | None:
         """The (hottest) pinch, or None for a threshold problem without one."""
         return self.pinches[0] if self.pinches else None

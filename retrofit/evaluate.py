@@ -32,7 +32,6 @@ from ..model import Stream, StreamTable, Utility
 from ..model.costs import CostSettings
 from ..network.sizing import size_network
 from ..network.structure import Network, approach_violations, check_network
-from ..pinch import target
 from ..validation import check_dt_min
 from .existing import ExistingNetwork
 from .simulate import Simulation, simulate
@@ -180,7 +179,7 @@ def evaluate_network(network: ExistingNetwork, dt_min: float, *, costs: CostSett
     (True, 125.0, 45.0, False)
     """
     dt = check_dt_min(dt_min)
-    sim = simulate(network)   # targets below, with the utilities given
+    sim = simulate(network, dt)   # targets with the utilities given (their least duties)
     streams = network.streams
     utilities = list(network.utilities)
     net = replace(sim.to_network(), dt_min=float(dt))
@@ -205,22 +204,6 @@ def evaluate_network(network: ExistingNetwork, dt_min: float, *, costs: CostSett
     if hair:
         notes.append(f"within {defaults.TABLE_APPROACH_TOLERANCE:g} K below ΔTmin {dt:g} K, taken as at it (the "
                      f"rounding of areas in a table): {', '.join(hair)}")
-    try:
-        t = target(streams, dt, utilities) if utilities else target(streams, dt)
-    except InfeasibleError as e:
-        t = target(streams, dt)
-        notes.append(f"targets with ideal utilities: the utilities given cannot meet them at ΔTmin {dt:g} K ({e})")
-    hot_target, cold_target = t.hot_utility, t.cold_utility
-    notes.append(f"targets at ΔTmin {dt:g} K by the problem table algorithm, "
-                 + ("with the utilities given (their least duties)" if t.placement is not None else "ideal utilities"))
-    if t.placement is not None:   # the least duties of the utilities given (more than the process minimum
-        hot_target = sum(d.duty for d in t.placement.duties if d.utility.is_hot)   # when hot oil must reach
-        cold_target = sum(d.duty for d in t.placement.duties if not d.utility.is_hot)   # the hottest demand)
-        if hot_target > t.hot_utility + 1e-9 * max(t.hot_process_duty, 1.0):
-            notes.append(f"targets with the utilities given: {hot_target:.6g} kW hot and {cold_target:.6g} kW cold, "
-                         f"above the process's least {t.hot_utility:.6g} kW hot at ΔTmin {dt:g} K: a non-isothermal "
-                         "utility's heat spreads over its range, so more of it is needed to reach the hottest "
-                         "demand, and the surplus leaves through the cold utilities")
     sized = True
     try:
         net = size_network(net, _covering(streams, net), utilities, costs=costs,
@@ -228,8 +211,8 @@ def evaluate_network(network: ExistingNetwork, dt_min: float, *, costs: CostSett
     except (TemperatureCrossError, InputError, ValueError) as e:
         sized = False   # the checks still stand; the notes say why there are no areas and costs
         notes.append(f"not sized and not costed as a new design: {e}")
-    return Evaluation(net, sim, float(dt), tuple(dict.fromkeys(failures)), tuple(crosses), float(hot_target),
-                      float(cold_target), sized, tuple(notes))
+    return Evaluation(net, sim, float(dt), tuple(dict.fromkeys(failures)), tuple(crosses),
+                      float(sim.hot_utility_target), float(sim.cold_utility_target), sized, tuple(notes))
 
 
 def _covering(streams: StreamTable, net: Network) -> StreamTable:

@@ -52,13 +52,15 @@ with qualified, licensed engineers.
 
 from __future__ import annotations
 
+from collections.abc import Sequence
 from dataclasses import asdict, dataclass
 
 import numpy as np
 
 from .. import defaults
 from ..equipment.rating import effectiveness_from_ntu
-from ..errors import InputError, SolverError
+from ..errors import InfeasibleError, InputError, SolverError
+from ..model import StreamTable, Utility
 from ..model.exchangers import ExchangerType
 from ..model.existing import OperatingMode, UnitRole
 from ..network.structure import smallest_approach
@@ -69,7 +71,7 @@ from .flowtree import flow_steps
 from .profiles import heat_between, mean_cp_between, temperature_after
 from .rating import UnitRating, rate_unit, utility_temperature
 
-__all__ = ["UnitState", "Simulation", "simulate"]
+__all__ = ["UnitState", "Simulation", "simulate", "utility_targets"]
 
 
 @dataclass(frozen=True)
@@ -397,6 +399,38 @@ def _system(network: ExistingNetwork, streams: dict, lay: _Layout, cp: dict, coe
     return a_mat, b
 
 
+def utility_targets(streams: StreamTable, dt_min: float, utilities: Sequence[Utility], notes: list[str]
+                    ) -> tuple[float, float]:
+    """The hot and cold utility a network is compared with at ΔTmin [kW]: the least duties of the utility
+    levels given (:attr:`heatloom.pinch.Targets.hot_utility_supplied`: more than the process minimum when hot
+    oil must reach the hottest demand), or the minimum utilities (ideal utilities) when none are given or
+    they cannot serve; appends a note saying which.
+
+    >>> from heatloom.model import StreamTable, Utility, UtilityKind
+    >>> s = StreamTable.from_arrays(["C1", "H1", "C2"], [260, 200, 40], [290, 100, 140], [1.0, 1.0, 1.0])
+    >>> u = [Utility("oil", 330, 250, 60.0, UtilityKind.HOT), Utility("CW", 10, 20, 6.0, UtilityKind.COLD)]
+    >>> notes = []
+    >>> [round(x, 9) for x in utility_targets(s, 10.0, u, notes)]   # 30 kW above 265 °C: 30 × 80/60 of oil
+    [40.0, 10.0]
+    >>> [round(x, 9) for x in utility_targets(s, 10.0, [], [])]
+    [30.0, 0.0]
+    """
+    try:
+        t = target(streams, dt_min, list(utilities)) if utilities else target(streams, dt_min)
+    except InfeasibleError as e:
+        t = target(streams, dt_min)
+        notes.append(f"targets with ideal utilities: the utilities given cannot meet them at ΔTmin {dt_min:g} K ({e})")
+    notes.append(f"targets at ΔTmin {dt_min:g} K by the problem table algorithm, "
+                 + ("with the utilities given (their least duties)" if t.placement is not None else "ideal utilities"))
+    hot, cold = t.hot_utility_supplied, t.cold_utility_supplied
+    if hot > t.hot_utility + 1e-9 * max(t.hot_process_duty, 1.0):
+        notes.append(f"targets with the utilities given: {hot:.6g} kW hot and {cold:.6g} kW cold, above the "
+                     f"process's least {t.hot_utility:.6g} kW hot at ΔTmin {dt_min:g} K: a non-isothermal utility's "
+                     "heat spreads over its range, so more of it is needed to reach the hottest demand, and the "
+                     "surplus leaves through the cold utilities")
+    return hot, cold
+
+
 def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance: float = 1e-9,
              max_iterations: int = 200,
              balance_tolerance: float = defaults.MEASURED_BALANCE_TOLERANCE) -> Simulation:
@@ -406,8 +440,8 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
     ----------
     network : ExistingNetwork
     dt_min : float, optional
-        ΔTmin [K] of the energy targets to compare with (:func:`heatloom.pinch.target`, ideal utilities);
-        no comparison when omitted.
+        ΔTmin [K] of the energy targets to compare with (:func:`utility_targets`: the least duties of the
+        network's utilities, ideal utilities when it has none or they cannot serve); no comparison when omitted.
     tolerance : float, optional
         Convergence of the fixed-point iteration on the mean CPs, largest temperature change between passes
         [K]; also the tolerance of the problem checks (scaled by 10⁶ there).
@@ -653,8 +687,6 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
                      "end temperatures")
     hot_target = cold_target = None
     if dt_min is not None:
-        t = target(network.streams, dt_min)
-        hot_target, cold_target = t.hot_utility, t.cold_utility
-        notes.append(f"targets at ΔTmin {dt_min:g} K by the problem table algorithm (ideal utilities)")
+        hot_target, cold_target = utility_targets(network.streams, dt_min, network.utilities, notes)
     return Simulation(network, tuple(states), temperatures, shortfalls, duties, dt_min, hot_target, cold_target,
                       tuple(problems), tuple(notes + list(network.notes)), iterations)
