@@ -79,3 +79,14 @@ TWELVE = dict(
     supply=[285.0, 85.0, 271.0, 50.0, 280.0, 208.0, 282.0, 81.0, 238.0, 26.0, 137.0, 224.0],
     target=[90.0, 118.0, 260.0, 92.0, 151.0, 285.0, 38.0, 134.0, 76.0, 285.0, 111.0, 276.0],
     cp=[10.3, 33.9, 1.1, 21.4, 13.7, 46.2, 32.8, 39.9, 7.6, 7.6, 9.3, 30.4])
+
+
+OIL_AND_WATER_CSV = "name,T_supply,T_target,cost,h\noil,330,250,60,1.0\nCW,10,15,6,1.5\n"
+"""Invented utility table: hot oil 330 → 250 °C and cooling water 10 → 15 °C."""
+
+
+def write_streams_csv(path, d, h: float = 0.5) -> None:
+    """One of the tables above (names, supply, target, cp) as a stream-table CSV with film coefficient h."""
+    rows = ["name,T_supply,T_target,CP,h"] + [f"{n},{a},{b},{c},{h}" for n, a, b, c in
+                                             zip(d["names"], d["supply"], d["target"], d["cp"])]
+    path.write_text("\n".join(rows) + "\n", encoding="utf-8")

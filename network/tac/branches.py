@@ -59,7 +59,7 @@ duties and fractions [-]."""
 RESTRUCTURE_PATIENCE = 400
 """Layouts tried in a row without improvement before a descent of :func:`restructure` stops [-]."""
 
-RESTRUCTURE_RESTART = 6
+RESTRUCTURE_RESTART = 3
 """Kicks in a row that find nothing cheaper after which :func:`restructure` starts again from a random
 layout (:func:`random_layout`) [-]: on Yee & Grossmann the cheapest basin found (78,172 per year, two units in
 series on a branch) lies many moves from the stagewise optimum (78,704)."""

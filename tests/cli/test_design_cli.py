@@ -358,14 +358,10 @@ def test_hot_oil_above_its_return_temperature_is_designed(capsys, tmp_path):
     heat is spread evenly over 325 → 245 °C shifted, so 37/80 of it lies above the pinch and the oil duty is
     1.9 × 80 / 37 kW (hand calculation). Before, the design failed: no unit over the oil's whole range can
     heat C2."""
-    from synthesis_problems import THIRTEEN
+    from synthesis_problems import OIL_AND_WATER_CSV, THIRTEEN, write_streams_csv
 
-    rows = ["name,T_supply,T_target,CP,h"] + [f"{n},{a},{b},{c},0.5" for n, a, b, c in
-                                             zip(THIRTEEN["names"], THIRTEEN["supply"], THIRTEEN["target"],
-                                                 THIRTEEN["cp"])]
-    (tmp_path / "streams.csv").write_text("\n".join(rows) + "\n", encoding="utf-8")
-    (tmp_path / "utilities.csv").write_text("name,T_supply,T_target,cost,h\noil,330,250,60,1.0\nCW,10,15,6,1.5\n",
-                                            encoding="utf-8")
+    write_streams_csv(tmp_path / "streams.csv", THIRTEEN)
+    (tmp_path / "utilities.csv").write_text(OIL_AND_WATER_CSV, encoding="utf-8")
     code, out, _ = run(capsys, "design", tmp_path / "streams.csv", "--dtmin", "10", "--utilities",
                        tmp_path / "utilities.csv", "--time-limit", "20", "--json")
     assert code == 0

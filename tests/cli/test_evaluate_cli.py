@@ -95,14 +95,10 @@ def test_a_design_with_hot_oil_piped_through_its_heaters_reads_back(capsys, tmp_
     of C2 (283 → 284 °C) would have no driving force at its cold end (250 °C oil against 283 °C), which is how
     the read-back failed before.  The least oil duty is 1.9 × 80/37 kW (hand calculation: C2 needs 1.9 kW
     above the 288 °C shifted pinch, where 37 of the oil's 80 K shifted range lies)."""
-    from synthesis_problems import THIRTEEN
+    from synthesis_problems import OIL_AND_WATER_CSV, THIRTEEN, write_streams_csv
 
-    rows = ["name,T_supply,T_target,CP,h"] + [f"{n},{a},{b},{c},0.5" for n, a, b, c in
-                                             zip(THIRTEEN["names"], THIRTEEN["supply"], THIRTEEN["target"],
-                                                 THIRTEEN["cp"])]
-    (tmp_path / "s.csv").write_text("\n".join(rows) + "\n", encoding="utf-8")
-    (tmp_path / "u.csv").write_text("name,T_supply,T_target,cost,h\noil,330,250,60,1.0\nCW,10,15,6,1.5\n",
-                                    encoding="utf-8")
+    write_streams_csv(tmp_path / "s.csv", THIRTEEN)
+    (tmp_path / "u.csv").write_text(OIL_AND_WATER_CSV, encoding="utf-8")
     code, out, err = run(capsys, "design", tmp_path / "s.csv", "--dtmin", "10", "--utilities", tmp_path / "u.csv",
                          "--time-limit", "20", "--out", tmp_path / "d", "--json")
     assert code == 0, err
