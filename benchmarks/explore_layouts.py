@@ -17,7 +17,8 @@ import sys
 import time
 from pathlib import Path
 
-from heatloom.network.tac.branches import layout_from_solution, network_from_layout, restructure, solve_layout
+from heatloom.network.tac.branches import layout_from_solution, network_from_layout, solve_layout
+from heatloom.network.tac.layout_search import restructure
 from heatloom.network.tac.nlp import Topology, make_problem, solve_topology
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))

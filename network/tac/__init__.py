@@ -5,10 +5,10 @@ from .branches import (
     LayoutSolution,
     layout_from_solution,
     network_from_layout,
-    restructure,
     solve_layout,
 )
 from .build import network_from_solution
+from .layout_search import restructure
 from .nlp import Topology, TopologySolution, polish_cheapest, polish_splits, solve_topology
 from .problem import TacProblem, make_problem
 from .profiles import solve_segmented

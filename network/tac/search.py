@@ -28,7 +28,7 @@ The sequence (DEVELOPERS.md, "Method notes"):
    non-isothermal mixing need not be the local one next to isothermal mixing.
 6. Only with ``restructure=True`` (problems of up to :data:`RESTRUCTURE_STREAMS` streams of one segment
    each): the last :data:`RESTRUCTURE_SHARE` of the time limit goes to a search beyond the stagewise form
-   (:func:`heatloom.network.tac.branches.restructure`): the best network becomes a layout of blocks along
+   (:func:`heatloom.network.tac.layout_search.restructure`): the best network becomes a layout of blocks along
    every stream, and units are moved anywhere along their streams (a utility unit beside an exchanger on
    a split stream, one unit per branch) or removed, each layout refined against the exact cost; its
    network is kept when it is cheaper.
@@ -65,8 +65,8 @@ from ...model.costs import CostSettings
 from ..design import match_rules
 from ..solvers import Budget
 from ..structure import Network, check_network
-from .branches import RESTRUCTURE_SHARE, RESTRUCTURE_STREAMS, beyond_stagewise
 from .build import keeping_rules, network_from_solution
+from .layout_search import RESTRUCTURE_SHARE, RESTRUCTURE_STREAMS, beyond_stagewise
 from .nlp import (
     TacProblem,
     Topology,
@@ -452,7 +452,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         the search (``done`` of ``total`` epochs).
     restructure : bool
         Give the last :data:`RESTRUCTURE_SHARE` of the time limit to a search beyond the stagewise form
-        (:func:`heatloom.network.tac.branches.restructure`: units moved anywhere along their streams, a
+        (:func:`heatloom.network.tac.layout_search.restructure`: units moved anywhere along their streams, a
         utility unit onto a split branch beside an exchanger; problems of up to :data:`RESTRUCTURE_STREAMS`
         streams of one segment each).  Its network is returned when it is cheaper.
     forbidden : iterable of (str, str)

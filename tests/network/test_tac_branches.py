@@ -21,13 +21,13 @@ from heatloom.network.structure import check_network
 from heatloom.network.tac.branches import (
     Layout,
     layout_from_solution,
-    layout_moves,
     layout_stages,
     layout_units,
     network_from_layout,
     representable,
     solve_layout,
 )
+from heatloom.network.tac.layout_search import layout_moves
 from heatloom.network.tac.nlp import Topology, make_problem, solve_topology
 from heatloom.network.tac.search import design_tac
 
@@ -283,7 +283,8 @@ def test_layout_gradients_agree_with_finite_differences():
     import numpy as np
     from scipy.optimize import approx_fprime
 
-    from heatloom.network.tac.branches import _Model, layout_additions
+    from heatloom.network.tac.branches import _Model
+    from heatloom.network.tac.layout_search import layout_additions
 
     p, lay, duties = _yee_grossmann_stagewise_layout()
     layouts = [lay] + layout_moves(lay)
@@ -315,7 +316,7 @@ def test_layout_gradients_agree_with_finite_differences():
 
 def test_an_added_unit_is_removed_by_one_move():
     # every layout of layout_additions has one unit more, and removing that unit (a move) gives the layout back
-    from heatloom.network.tac.branches import layout_additions
+    from heatloom.network.tac.layout_search import layout_additions
 
     p, lay, _ = _yee_grossmann_stagewise_layout()
     additions = layout_additions(p, lay)
@@ -331,7 +332,7 @@ def test_no_kick_begins_after_its_share():
     # whose stagewise search ended early does not spend the rest of the time limit kicking
     import time
 
-    from heatloom.network.tac.branches import restructure
+    from heatloom.network.tac.layout_search import restructure
 
     p, lay, duties = _yee_grossmann_stagewise_layout()
     start = solve_layout(p, lay, [(duties, [])])

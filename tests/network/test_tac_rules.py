@@ -18,7 +18,8 @@ from heatloom.model.costs import CostSettings
 from heatloom.network import design_mer
 from heatloom.network.evolution import evolve
 from heatloom.network.solvers import solve
-from heatloom.network.tac.branches import Layout, layout_additions
+from heatloom.network.tac.branches import Layout
+from heatloom.network.tac.layout_search import layout_additions
 from heatloom.network.tac.nlp import make_problem
 from heatloom.network.tac.search import design_tac
 from heatloom.network.tac.starts import stagewise_milp
