@@ -196,21 +196,23 @@ def test_restructure_flag_runs_the_search_beyond_the_stagewise_form(capsys, file
     assert code == 0
     data = json.loads(out)
     assert any(n.startswith("search beyond the stagewise form") for n in data["notes"])
-    # every split: the branches of one stream in one stage carry fractions adding up to 1 (heaters and coolers
-    # on branches included)
-    shares: dict = {}
-    for e in data["exchangers"]:
-        for side in ("hot", "cold"):
-            if e[f"{side}_fraction"] < 1:
-                shares.setdefault((e[side], e["stage"]), []).append(e[f"{side}_fraction"])
-    for x in data["coolers"]:
-        if x.get("hot_fraction", 1.0) < 1:
-            shares.setdefault((x["hot"], x["stage"]), []).append(x["hot_fraction"])
-    for h in data["heaters"]:
-        if h.get("cold_fraction", 1.0) < 1:
-            shares.setdefault((h["cold"], h["stage"]), []).append(h["cold_fraction"])
-    for fractions in shares.values():
-        assert len(fractions) > 1 and sum(fractions) == pytest.approx(1.0, abs=1e-3)
+    # every split: the branches of one stream that enter at one temperature carry fractions adding up to 1
+    # (heaters and coolers on branches included); a unit that continues a branch in series (same fraction,
+    # entering where the branch's previous unit leaves) is not a branch of its own
+    pieces: dict = {}   # stream -> [(fraction, inlet, outlet)]
+    for group, sides in (("exchangers", ("hot", "cold")), ("coolers", ("hot",)), ("heaters", ("cold",))):
+        for x in data[group]:
+            for side in sides:
+                if x.get(f"{side}_fraction", 1.0) < 1:
+                    pieces.setdefault(x[side], []).append((x[f"{side}_fraction"], x[f"{side}_in"], x[f"{side}_out"]))
+    for units in pieces.values():
+        heads = [u for u in units if not any(abs(v[0] - u[0]) < 1e-9 and abs(v[2] - u[1]) < 1e-6
+                                             for v in units if v is not u)]
+        splits: dict = {}
+        for f, t_in, _ in heads:
+            splits.setdefault(round(t_in, 4), []).append(f)
+        for fractions in splits.values():
+            assert len(fractions) > 1 and sum(fractions) == pytest.approx(1.0, abs=1e-3)
     # kept only when cheaper: never dearer than the same search without it (same seed, starts and rounds, not
     # stopped by the time limit, so the stagewise part finds the same network)
     code, out, _ = run(capsys, "design", s, "--mode", "tac", "--utilities", u, "--costs", c, "--json", "--starts",
