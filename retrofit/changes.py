@@ -332,7 +332,7 @@ def _trim_area(net: ExistingNetwork, st) -> float | None:
     if unit.u is None or not st.duty > 0:
         return None if unit.u is None else 0.0
     heater = st.role is UnitRole.HEATER
-    util = unit.utility_taken(net.utility(unit.hot if heater else unit.cold))
+    util = net.unit_side(unit, unit.hot if heater else unit.cold)
     stream = branch_stream(net.stream(unit.cold if heater else unit.hot),   # a branch: its share of the stream
                            unit.cold_fraction if heater else unit.hot_fraction)
     t_in, t_out = (st.cold_in, st.cold_out) if heater else (st.hot_in, st.hot_out)

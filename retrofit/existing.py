@@ -373,7 +373,7 @@ class ExistingNetwork:
             elif u.duty is not None:
                 mode = OperatingMode.FIXED_DUTY
             else:
-                util = u.utility_taken(utilities[u.hot if u.role is UnitRole.HEATER else u.cold])
+                util = self.unit_side(u, u.hot if u.role is UnitRole.HEATER else u.cold)
                 glide = util.hottest - util.coldest
                 if glide > MAX_ISOTHERMAL_GLIDE:
                     raise InputError(f"{u.role.value} '{u.name}' is not the last unit of stream "
@@ -755,8 +755,7 @@ class ExistingNetwork:
         out: list = [None] * 4
         if u.role is not UnitRole.EXCHANGER:
             side = "hot" if u.role is UnitRole.HEATER else "cold"
-            util = self.utility(getattr(u, side))
-            taken = u.utility_taken(util)
+            util, taken = self.utility(getattr(u, side)), self.unit_side(u, getattr(u, side))
             if (taken.supply_temperature, taken.target_temperature) != (util.supply_temperature,
                                                                           util.target_temperature):
                 k = 0 if side == "hot" else 2

@@ -132,10 +132,10 @@ def _walk(net: ExistingNetwork, duties: dict[str, float]) -> dict[str, tuple[flo
         h = ends.get((u.name, "hot"))
         c = ends.get((u.name, "cold"))
         if h is None:
-            util = u.utility_taken(net.utility(u.hot))
+            util = net.unit_side(u, u.hot)
             h = (util.supply_temperature, util.target_temperature)
         if c is None:
-            util = u.utility_taken(net.utility(u.cold))
+            util = net.unit_side(u, u.cold)
             c = (util.supply_temperature, util.target_temperature)
         out[u.name] = (h[0], h[1], c[0], c[1])
     return out

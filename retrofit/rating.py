@@ -113,7 +113,7 @@ def utility_temperature(unit: ExistingUnit, network: ExistingNetwork) -> float:
     >>> utility_temperature(net.unit("S"), net)
     179.5
     """
-    util = unit.utility_taken(network.utility(unit.hot if unit.role is UnitRole.HEATER else unit.cold))
+    util = network.unit_side(unit, unit.hot if unit.role is UnitRole.HEATER else unit.cold)
     return 0.5 * (util.supply_temperature + util.target_temperature)
 
 

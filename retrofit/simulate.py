@@ -583,7 +583,7 @@ def simulate(network: ExistingNetwork, dt_min: float | None = None, *, tolerance
                 side_temps[side] = (temperature_of(temps, lay.inlet[(u.name, side)]),
                                     temperature_of(temps, lay.outlet[(u.name, side)]))
             else:
-                util = u.utility_taken(network.utility(name))
+                util = network.unit_side(u, name)
                 side_temps[side] = (util.supply_temperature, util.target_temperature)
         (hi, ho), (ci, co) = side_temps["hot"], side_temps["cold"]
         eps = ntu = None
