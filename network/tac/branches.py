@@ -9,8 +9,8 @@ not at a stream end, a branch that keeps several units in series, a bypass.  The
 (:func:`solve_layout`) handles all of them; the search (:func:`heatloom.network.tac.layout_search.restructure`)
 keeps to the layouts a
 :class:`~heatloom.network.structure.Network` and its units table can carry (:func:`representable`: at
-least one unit on every branch of a split, no bypass; the branches start at one stage and share a position
-along the stream).
+least one unit on every branch of a split, no bypass; one order of the units along every stream,
+:func:`layout_stages`, with a split's branches starting at one stage where the orders allow it).
 
 With the unit duties and the flow fractions of the branches as variables every temperature follows along
 its stream: a unit on a branch of fraction f changes it by q/(f·CP), and the mixed outlet of a block is the
@@ -37,6 +37,7 @@ from scipy.optimize import minimize
 from ...equipment.sizing import log_mean
 from ...errors import InfeasibleError
 from ...model.costs import CostSettings, UnitKind
+from ..streamorder import unordered_streams
 from ..structure import Cooler, Exchanger, Heater, Network, check_network
 from .nlp import TopologySolution, log_mean_and_gradient, unit_costs
 from .problem import TacProblem
@@ -127,6 +128,7 @@ class _Model:
         for paths in (lay.hot, lay.cold):
             for path in paths:
                 self.members.append([x for block in path for br in block for x in br])
+        self._last: dict = {}   # the last point of _forward and its result
         self._walk()
         self.eq_matrix, self.eq_rhs = self._balances()
         # every required unit kind's total duty >= its least load: R·z >= r
@@ -199,7 +201,18 @@ class _Model:
 
     def _forward(self, z, grad: bool):
         """The temperatures and, with ``grad``, their derivatives with respect to z: (t (n, 4), dt (n, 4,
-        len(z)), branch outlet temperatures, their derivatives)."""
+        len(z)), branch outlet temperatures, their derivatives).  The last point's result is kept: the
+        optimisers ask for the cost, the constraints and their derivatives at one point in turn."""
+        key = np.asarray(z, dtype=float).tobytes()
+        hit = self._last.get(key)
+        if hit is not None and (hit[1] is not None or not grad):
+            return hit
+        out = self._compute(z, grad)
+        self._last = {key: out}
+        return out
+
+    def _compute(self, z, grad: bool):
+        """:meth:`_forward` without the kept point."""
         n = self.n
         q = z[:n] * self.scale
         fs = []
@@ -406,6 +419,8 @@ def layout_units(p: TacProblem, sol: LayoutSolution) -> list[dict]:
                 frac[sd, x] = float(sol.fractions[fi])
             fi += 1
     stages = layout_stages(sol.layout)
+    if stages is None:
+        stages = layout_stages(sol.layout, heads_together=False)
     return [{"kind": _KIND[key[0]], "key": key, "duty": float(sol.duties[k]), "hot_in": float(t[k, 0]),
              "hot_out": float(t[k, 1]), "cold_in": float(t[k, 2]), "cold_out": float(t[k, 3]), "u": float(m.u[k]),
              "hot_fraction": frac.get(("hot", k), 1.0), "cold_fraction": frac.get(("cold", k), 1.0),
@@ -423,17 +438,33 @@ def representable(lay: Layout) -> bool:
                if len(block) > 1 for br in block)
 
 
-def layout_stages(lay: Layout) -> list[int] | None:
+def layout_stages(lay: Layout, *, heads_together: bool = True) -> list[int] | None:
     """A stage per unit such that along every stream a unit met earlier from the hot end has a lower
-    stage, and the first units from the hot end of the branches of one split share a stage (the further
-    units of a branch with units in series follow it) [-]; None when the streams' orders conflict (or a
-    split's branches cannot start at one stage)."""
+    stage, and (with ``heads_together``) the first units from the hot end of the branches of one split
+    share a stage (the further units of a branch with units in series follow it) [-]; None when the
+    streams' orders conflict (or a split's branches cannot start at one stage).
+
+    Without ``heads_together`` only the orders along the streams count: a split's branches may start at
+    different stages when another stream puts one branch's first unit after a unit of the other branch
+    (the network's order along the streams then comes from its temperatures alone,
+    :func:`heatloom.network.streamorder.stream_order`; :func:`network_from_layout` checks that it does).
+
+    Examples
+    --------
+    C split between A (from H1) and B (from H2); H2 meets D before B, and D also lies on A's branch, after
+    A from C's hot end: the heads A and B cannot share a stage, the order along every stream still holds.
+
+    >>> units = (("x", 0, 0), ("x", 1, 0), ("x", 1, 0))        # A, B, D
+    >>> lay = Layout(units, ((((0,),),), (((2,),), ((1,),))), ((((2, 0), (1,)),),))
+    >>> layout_stages(lay) is None, layout_stages(lay, heads_together=False)
+    (True, [0, 2, 1])
+    """
     together, before = [], []
     for paths, reverse in ((lay.hot, False), (lay.cold, True)):
         for path in paths:
             seq = list(reversed(path)) if reverse else list(path)
             for block in path:
-                if len(block) > 1:   # the first unit from the hot end of each branch of one split
+                if len(block) > 1 and heads_together:   # the first unit from the hot end of each branch
                     together.append([br[-1] if reverse else br[0] for br in block if br])
                 for br in block:
                     br = list(reversed(br)) if reverse else list(br)
@@ -447,14 +478,16 @@ def network_from_layout(p: TacProblem, sol: LayoutSolution, streams, utilities, 
                         notes=(), solves=()) -> Network:
     """The network of a solved layout, sized with the exact LMTD and costed from its own temperatures.
 
-    Units get the stages of :func:`layout_stages` (the branches of one split start at one stage) and their
-    branch's flow fraction.
+    Units get the stages of :func:`layout_stages` (the branches of one split start at one stage where the
+    orders along the streams allow it) and their branch's flow fraction.
 
     Raises
     ------
     InfeasibleError
-        If the streams' orders conflict (no stages), or the network fails :func:`check_network` with
-        ΔTmin = EMAT (and with the streams' ΔTmin contributions where some are given).
+        If the streams' orders conflict (no stages), a split's branches start at different stages and the
+        temperatures do not give the order along its stream (:func:`heatloom.network.streamorder.unordered_streams`:
+        the units table could not be read back), or the network fails :func:`check_network` with ΔTmin = EMAT
+        (and with the streams' ΔTmin contributions where some are given).
     """
     if not representable(sol.layout):
         raise InfeasibleError("the layout has a split with a bypass, which a network's units table cannot carry")
@@ -491,6 +524,10 @@ def network_from_layout(p: TacProblem, sol: LayoutSolution, streams, utilities, 
     net = Network(tuple(exchangers), tuple(heaters), tuple(coolers), p.emat, capital_cost=capital,
                   operating_cost=operating, total_annual_cost=capital + operating, currency=costs.currency,
                   notes=tuple(notes), solves=tuple(solves))
+    if layout_stages(sol.layout) is None and unordered_streams(net):
+        raise InfeasibleError("the order of the units along stream(s) " + ", ".join(unordered_streams(net))
+                              + " follows neither from the temperatures nor from the stages (a split's branches "
+                              "start at different stages)")
     check_network(net, streams, utilities, dt_min=p.emat, contributions=False)
     if p.has_contributions:
         check_network(net, streams, utilities, dt_min=p.emat, contributions=True)

@@ -11,6 +11,7 @@ network of :func:`heatloom.network.tac.search.design_tac` and returns its networ
 from __future__ import annotations
 
 import time
+from concurrent.futures import ProcessPoolExecutor
 
 import numpy as np
 
@@ -175,9 +176,9 @@ def _start(lay: Layout, parent: LayoutSolution, new_duty: float = 0.1) -> tuple[
 
 def _usable(p: TacProblem, lay: Layout) -> bool:
     """A layout the search may keep: some unit, every required one (:attr:`TacProblem.required`),
-    representable, with stages (see :func:`restructure`)."""
+    representable, with one order of the units along every stream (see :func:`restructure`)."""
     return bool(lay.units) and not (p.required and p.missing(lay.units)) and representable(lay) \
-        and layout_stages(lay) is not None
+        and layout_stages(lay, heads_together=False) is not None
 
 
 def restructure(p: TacProblem, sol: LayoutSolution, deadline: float, *, seed=None,
@@ -198,8 +199,8 @@ def restructure(p: TacProblem, sol: LayoutSolution, deadline: float, *, seed=Non
     as the longest so far.  ``stats``, when given, receives the number of layouts refined ("layouts"),
     of kicks ("kicks"), of restarts ("restarts") and whether the deadline stopped the search ("timed_out").  Layouts a
     :class:`heatloom.network.structure.Network` cannot carry are skipped: a split with a bypass
-    (:func:`~heatloom.network.tac.branches.representable`), or units that cannot be put in one order along every stream with each split's
-    branches starting at one stage (:func:`~heatloom.network.tac.branches.layout_stages` gives None).
+    (:func:`~heatloom.network.tac.branches.representable`), or units that cannot be put in one order along every
+    stream (:func:`~heatloom.network.tac.branches.layout_stages` without ``heads_together`` gives None).
     """
     stats = {} if stats is None else stats
     stats.update(layouts=0, kicks=0, restarts=0, timed_out=False)
@@ -359,8 +360,16 @@ def _stream_duties(p: TacProblem, key) -> tuple[float, ...]:
     return (float((p.hot_duty if key[0] == "cool" else p.cold_duty)[key[1]]),)
 
 
+def _restructure_job(args) -> tuple[LayoutSolution, dict]:
+    """One search of :func:`restructure` in a worker process: (cheapest solution, its stats)."""
+    p, start, deadline, seed, kicks_until = args
+    stats: dict = {}
+    best = restructure(p, start, deadline, seed=seed, stats=stats, kicks_until=kicks_until)
+    return best, stats
+
+
 def beyond_stagewise(p: TacProblem, sol: TopologySolution, streams, utilities, costs: CostSettings, notes: list,
-                     budget, seed: int) -> Network | None:
+                     budget, seed: int, workers: int = 1) -> Network | None:
     """The network of :func:`restructure` from a stagewise solution until ``budget.deadline``, when it is
     cheaper and passes the final check (with ``notes`` and a note of its own); else None, with a note
     appended to ``notes``.
@@ -377,17 +386,28 @@ def beyond_stagewise(p: TacProblem, sol: TopologySolution, streams, utilities, c
         Its deadline ends the search [s, ``time.monotonic`` clock], and no kick begins after
         :data:`RESTRUCTURE_SHARE` of its total from the search's start; its reports go to the network.
     seed : int
-        Seed of the order of the moves [-].
+        Seed of the order of the moves [-]; with several workers, worker k searches with seed + k.
+    workers : int
+        Local processes [-]: each runs its own search (its own seed) from the same start until the deadline,
+        and the cheapest result is kept; 1 searches in this process.
     """
     lay, duties, fractions = layout_from_solution(p, sol)
     start = solve_layout(p, lay, [(duties, fractions)])
     if start is None:
         return None
-    stats: dict = {}
     # the kicks keep to the search's share of the time limit when the stagewise search ended early
-    best = restructure(p, start, budget.deadline, seed=int(seed), stats=stats,
-                       kicks_until=time.monotonic() + RESTRUCTURE_SHARE * budget.total)
+    jobs = [(p, start, budget.deadline, int(seed) + k, time.monotonic() + RESTRUCTURE_SHARE * budget.total)
+            for k in range(max(1, int(workers)))]
+    if len(jobs) == 1:
+        results = [_restructure_job(jobs[0])]
+    else:
+        with ProcessPoolExecutor(max_workers=len(jobs)) as pool:
+            results = list(pool.map(_restructure_job, jobs))
+    best = min((r[0] for r in results), key=lambda x: x.tac)
+    stats = {key: sum(r[1][key] for r in results) for key in ("layouts", "kicks", "restarts")}
+    stats["timed_out"] = any(r[1]["timed_out"] for r in results)
     done = f"{stats['layouts']} layouts refined, {stats['kicks']} kicks, {stats['restarts']} random restarts" + (
+        f" over {len(jobs)} parallel searches (seeds {int(seed)}–{int(seed) + len(jobs) - 1})" if len(jobs) > 1 else "") + (
         ", stopped by the time limit" if stats["timed_out"] else "")
     if not best.tac < sol.tac * (1 - 1e-6):
         notes.append("search beyond the stagewise form (units moved anywhere along their streams, utility units "
@@ -395,8 +415,7 @@ def beyond_stagewise(p: TacProblem, sol: TopologySolution, streams, utilities, c
         return None
     extra = [f"search beyond the stagewise form: units moved along their streams (utility units on split "
              f"branches, beside exchangers, units in series on a branch) lowered the TAC from {sol.tac:.6g} to "
-             f"{best.tac:.6g} ({done}); each unit's stage orders it along its streams, and the branches of a split "
-             "start at one stage"]
+             f"{best.tac:.6g} ({done}); each unit's stage orders it along its streams"]
     try:
         return network_from_layout(p, best, streams, utilities, costs, notes=[*notes, *extra],
                                    solves=budget.reports)

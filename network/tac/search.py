@@ -30,8 +30,9 @@ The sequence (DEVELOPERS.md, "Method notes"):
    each): the last :data:`RESTRUCTURE_SHARE` of the time limit goes to a search beyond the stagewise form
    (:func:`heatloom.network.tac.layout_search.restructure`): the best network becomes a layout of blocks along
    every stream, and units are moved anywhere along their streams (a utility unit beside an exchanger on
-   a split stream, one unit per branch) or removed, each layout refined against the exact cost; its
-   network is kept when it is cheaper.
+   a split stream, units in series on a branch) or removed, each layout refined against the exact cost;
+   with several workers each runs its own search (its own seed) and the cheapest is taken; its network
+   is kept when it is cheaper.
 7. The best network is built with its temperatures, sized with the exact LMTD, costed from its own
    temperatures and checked by :func:`heatloom.network.structure.check_network` with ΔTmin = EMAT.  When
    the starting MER network costs less (its utility units may sit where the stagewise form cannot put
@@ -454,7 +455,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         Give the last :data:`RESTRUCTURE_SHARE` of the time limit to a search beyond the stagewise form
         (:func:`heatloom.network.tac.layout_search.restructure`: units moved anywhere along their streams, a
         utility unit onto a split branch beside an exchanger; problems of up to :data:`RESTRUCTURE_STREAMS`
-        streams of one segment each).  Its network is returned when it is cheaper.
+        streams of one segment each), one search per worker.  Its network is returned when it is cheaper.
     forbidden : iterable of (str, str)
         (hot, cold) name pairs never matched, in any stage or place; a name may be a utility's (forbid
         steam on a stream).
@@ -655,7 +656,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     ranked = polish_cheapest(p, ranked, budget.deadline - reserve)
     net = None
     if beyond:
-        net = beyond_stagewise(p, ranked[0], streams, utilities, costs, notes, budget, seed)
+        net = beyond_stagewise(p, ranked[0], streams, utilities, costs, notes, budget, seed, workers=n_workers)
         if net is not None:
             try:
                 net = keeping_rules(net, forbidden, required, least)
