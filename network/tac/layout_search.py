@@ -16,6 +16,7 @@ from concurrent.futures import ProcessPoolExecutor
 import numpy as np
 
 from ...errors import InfeasibleError, InputError
+from ...tasks import one_numeric_thread
 from ...model.costs import CostSettings
 from ..structure import Network
 from .branches import (
@@ -401,7 +402,7 @@ def beyond_stagewise(p: TacProblem, sol: TopologySolution, streams, utilities, c
     if len(jobs) == 1:
         results = [_restructure_job(jobs[0])]
     else:
-        with ProcessPoolExecutor(max_workers=len(jobs)) as pool:
+        with ProcessPoolExecutor(max_workers=len(jobs), initializer=one_numeric_thread) as pool:
             results = list(pool.map(_restructure_job, jobs))
     best = min((r[0] for r in results), key=lambda x: x.tac)
     stats = {key: sum(r[1][key] for r in results) for key in ("layouts", "kicks", "restarts")}

@@ -63,6 +63,7 @@ from ... import defaults
 from ...errors import InfeasibleError, InputError
 from ...model import MatchRules, StreamTable, Utility
 from ...model.costs import CostSettings
+from ...tasks import one_numeric_thread
 from ..design import match_rules
 from ..solvers import Budget
 from ..structure import Network, check_network
@@ -550,7 +551,8 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         keep(search.evaluate(top), f"MER network at ΔTmin {max(MER_DT_MIN, emat):g} K")
     epochs = max(1, -(-rounds // ROUNDS_PER_EPOCH)) if rounds else 0
     n_workers = workers if workers is not None else min(starts, os.cpu_count() or 1)
-    pool = ProcessPoolExecutor(max_workers=n_workers) if n_workers > 1 and starts > 1 and epochs else None
+    pool = ProcessPoolExecutor(max_workers=n_workers, initializer=one_numeric_thread) \
+        if n_workers > 1 and starts > 1 and epochs else None
 
     def job(s, c, epoch):
         todo = min(ROUNDS_PER_EPOCH, rounds - epoch * ROUNDS_PER_EPOCH)
