@@ -32,7 +32,8 @@ The sequence (DEVELOPERS.md, "Method notes"):
    every stream, and units are moved anywhere along their streams (a utility unit beside an exchanger on
    a split stream, units in series on a branch) or removed, each layout refined against the exact cost;
    with several workers each runs its own search (its own seed) and the cheapest is taken; its network
-   is kept when it is cheaper.
+   is kept when it is cheaper.  When the stagewise search has found nothing cheaper for
+   :data:`RESTRUCTURE_STALL` of the time limit it stops and the search beyond it gets all the time left.
 7. The best network is built with its temperatures, sized with the exact LMTD, costed from its own
    temperatures and checked by :func:`heatloom.network.structure.check_network` with ΔTmin = EMAT.  When
    the starting MER network costs less (its utility units may sit where the stagewise form cannot put
@@ -68,7 +69,7 @@ from ..design import match_rules
 from ..solvers import Budget
 from ..structure import Network, check_network
 from .build import keeping_rules, network_from_solution
-from .layout_search import RESTRUCTURE_SHARE, RESTRUCTURE_STREAMS, beyond_stagewise
+from .layout_search import RESTRUCTURE_SHARE, RESTRUCTURE_STALL, RESTRUCTURE_STREAMS, beyond_stagewise
 from .nlp import (
     TacProblem,
     Topology,
@@ -456,7 +457,9 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         Give the last :data:`RESTRUCTURE_SHARE` of the time limit to a search beyond the stagewise form
         (:func:`heatloom.network.tac.layout_search.restructure`: units moved anywhere along their streams, a
         utility unit onto a split branch beside an exchanger; problems of up to :data:`RESTRUCTURE_STREAMS`
-        streams of one segment each), one search per worker.  Its network is returned when it is cheaper.
+        streams of one segment each), one search per worker, and all the time left once the stagewise
+        search has found nothing cheaper for :data:`RESTRUCTURE_STALL` of the time limit.  Its network is
+        returned when it is cheaper.
     forbidden : iterable of (str, str)
         (hot, cold) name pairs never matched, in any stage or place; a name may be a utility's (forbid
         steam on a stream).
@@ -560,6 +563,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
                 epoch > 0)
 
     evals, timed_out = 0, False
+    handed_over = None   # when the stagewise search handed its time to the search beyond it [s from the start]
     try:
         # with local processes, start 0 searches from the best topology so far while the MILPs are solved
         # (start 0 begins there in any case, so that the result does not depend on the number of processes)
@@ -608,9 +612,13 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         if progress is not None:
             progress(best.tac, 0, epochs)
         evals, timed_out = search.evals, search.timed_out
+        last_gain = time.monotonic()   # when the search last found a cheaper network
         for epoch in range(epochs):
             if time.monotonic() > deadline and not (epoch == 0 and early is not None):
                 timed_out = True
+                break
+            if beyond and time.monotonic() - last_gain > RESTRUCTURE_STALL * time_limit:
+                handed_over = budget.elapsed
                 break
             pending = []
             for s, c in enumerate(current):
@@ -625,6 +633,8 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
                 timed_out |= out
                 if sol is not None and sol.tac < current[s].tac:
                     current[s] = sol
+            if min(c.tac for c in current) < best.tac * (1 - 1e-9):
+                last_gain = time.monotonic()
             best = min(current, key=lambda s: s.tac)
             if progress is not None:
                 progress(best.tac, epoch + 1, epochs)
@@ -639,6 +649,10 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     if timed_out:
         notes.append(f"the time limit of {time_limit:g} s stopped the search: the network is the best found in time "
                      "and may differ from run to run (raise --time-limit for a reproducible result)")
+    if handed_over is not None:
+        notes.append(f"the stagewise search found nothing cheaper for {RESTRUCTURE_STALL * time_limit:g} s and handed "
+                     f"the rest of the time limit to the search beyond the stagewise form at {handed_over:.0f} s "
+                     "(the network depends on the time it had)")
     if best.fractions:
         notes.append("stream splits with free flow fractions: the branches of a split stream may leave a stage at "
                      "different temperatures before they mix (non-isothermal mixing)")
@@ -658,7 +672,8 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     ranked = polish_cheapest(p, ranked, budget.deadline - reserve)
     net = None
     if beyond:
-        net = beyond_stagewise(p, ranked[0], streams, utilities, costs, notes, budget, seed, workers=n_workers)
+        net = beyond_stagewise(p, ranked[0], streams, utilities, costs, notes, budget, seed, workers=n_workers,
+                               to_deadline=handed_over is not None)
         if net is not None:
             try:
                 net = keeping_rules(net, forbidden, required, least)

@@ -324,6 +324,22 @@ def test_restructure_on_two_workers_runs_two_searches_and_keeps_a_sound_network(
                                                   rel=1e-9)
 
 
+def test_a_stalled_stagewise_search_hands_its_time_to_the_search_beyond_it(monkeypatch):
+    import heatloom.network.tac.search as search
+
+    monkeypatch.setattr(search, "RESTRUCTURE_STALL", 0.1)   # 1.5 s of the 15 s limit without a cheaper network
+    streams, utilities, costs, laws = small_case()
+    net = design_tac(streams, utilities, costs=costs, emat=5.0, seed=0, starts=1, rounds=10 ** 6, workers=1,
+                     milp_iterations=1, time_limit=15, restructure=True)
+    handed = [n for n in net.notes if n.startswith("the stagewise search found nothing cheaper for 1.5 s")]
+    assert len(handed) == 1
+    check_network(net, streams, utilities, dt_min=5.0)
+    assert_balances_and_approaches(net, streams, 5.0)
+    h = {"H": 1.0, "C": 1.0, "water": 2.0, "steam": 3.0}
+    assert net.total_annual_cost == pytest.approx(recomputed_tac(net, h, {"water": 10.0, "steam": 120.0}, laws),
+                                                  rel=1e-9)
+
+
 def _yee_grossmann_stagewise_layout():
     """The layout of the no-split stagewise network of Wang et al. 2017 (see above) and its problem."""
     data, streams, utilities, costs, h, price = yee_grossmann()
