@@ -123,7 +123,7 @@ def main() -> None:
         print(row, flush=True)
         rows.append(row)
         for note in net.notes:
-            if note.startswith(("TAC search", "the time limit", "search beyond")):
+            if note.startswith(("TAC search", "the time limit", "search beyond", "the stagewise search")):
                 print(f"    {note}", file=sys.stderr)
     for n in args.generated or ():
         streams, utilities, costs = generated_case(n)
