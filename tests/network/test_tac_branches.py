@@ -204,33 +204,21 @@ def test_cooler_beside_an_exchanger_beats_the_best_published_network_without_spl
     assert not net.heaters
 
 
-def test_two_units_in_series_on_a_branch_make_a_five_unit_network_that_reads_back(tmp_path):
-    """C1 split: one branch takes all of H2 (H2–C1), the other meets H1 twice in series; H1 split between C2
-    and the hotter of its C1 units, mixed, then the colder C1 unit and the cooler.  A network's units table
-    carries it (the branch with two units gets a branch label), and it reads back into the same network."""
+def built_and_read_back(p, lay, start, tmp_path):
+    """Solve a Yee & Grossmann layout from ``start``, build its network and check it (ΔTmin = EMAT 1 K, the
+    balances, the TAC recomputed with ht.LMTD and the published cost law), then write its units table, read
+    it back and evaluate it: (solution, network, recomputed TAC)."""
     from heatloom.io.network_table import read_network
     from heatloom.retrofit.evaluate import evaluate_network
     from heatloom.retrofit.existing import ExistingNetwork
 
     data, streams, utilities, costs, h, price = yee_grossmann()
-    p = make_problem(streams, utilities, costs, 1.0)
-    units = (("x", 0, 1), ("x", 0, 0), ("x", 1, 0), ("cool", 0, 0), ("x", 0, 0))
-    lay = Layout(units, ((((0,), (4,)), ((1,),), ((3,),)), (((2,),),)), ((((2,), (1, 4)),), (((0,),),)))
-    assert representable(lay)
-    assert layout_stages(lay) == [0, 1, 0, 2, 0]   # the branches start at one stage; unit 1 follows unit 4
-    sol = solve_layout(p, lay, [((2400.0, 250.0, 1800.0, 400.0, 250.0), (0.9, 0.1, 0.78, 0.22))])
+    sol = solve_layout(p, lay, [start])
     net = network_from_layout(p, sol, streams, utilities, costs)
     check_network(net, streams, utilities, dt_min=1.0)
     assert_balances_and_approaches(net, streams, 1.0)
     tac = recomputed_tac(net, h, price, published_laws(data["cost_law"]))
     assert net.total_annual_cost == pytest.approx(tac, rel=1e-9)
-    # below the best published network without splits, 79,233 per year (Wang et al. 2017, as listed by
-    # Roetzel, Luo & Chen 2020, ch. 6), with 5 units
-    assert tac < 79233.0 and net.units == 5
-    # the two H1–C1 units sit in series on one branch of C1: the colder one's cold outlet is the hotter one's inlet
-    h1c1 = sorted((e for e in net.exchangers if (e.hot, e.cold) == ("H1", "C1")), key=lambda e: e.cold_in)
-    assert h1c1[0].cold_out == pytest.approx(h1c1[1].cold_in, abs=1e-9)
-    assert h1c1[0].cold_fraction == pytest.approx(h1c1[1].cold_fraction) and h1c1[0].cold_fraction < 1
     # written as a units table and read back, the simulation at the written areas gives the same network
     path = tmp_path / "units.csv"
     net.to_frame().to_csv(path, index=False)
@@ -238,6 +226,28 @@ def test_two_units_in_series_on_a_branch_make_a_five_unit_network_that_reads_bac
     ev = evaluate_network(existing, 1.0, costs=costs)
     assert ev.ok, ev.failures
     assert ev.network.total_annual_cost == pytest.approx(tac, rel=1e-4)   # areas written to 0.001 m²
+    return sol, net, tac
+
+
+def test_two_units_in_series_on_a_branch_make_a_five_unit_network_that_reads_back(tmp_path):
+    """C1 split: one branch takes all of H2 (H2–C1), the other meets H1 twice in series; H1 split between C2
+    and the hotter of its C1 units, mixed, then the colder C1 unit and the cooler.  A network's units table
+    carries it (the branch with two units gets a branch label), and it reads back into the same network."""
+    data, streams, utilities, costs, h, price = yee_grossmann()
+    p = make_problem(streams, utilities, costs, 1.0)
+    units = (("x", 0, 1), ("x", 0, 0), ("x", 1, 0), ("cool", 0, 0), ("x", 0, 0))
+    lay = Layout(units, ((((0,), (4,)), ((1,),), ((3,),)), (((2,),),)), ((((2,), (1, 4)),), (((0,),),)))
+    assert representable(lay)
+    assert layout_stages(lay) == [0, 1, 0, 2, 0]   # the branches start at one stage; unit 1 follows unit 4
+    sol, net, tac = built_and_read_back(p, lay, ((2400.0, 250.0, 1800.0, 400.0, 250.0), (0.9, 0.1, 0.78, 0.22)),
+                                        tmp_path)
+    # below the best published network without splits, 79,233 per year (Wang et al. 2017, as listed by
+    # Roetzel, Luo & Chen 2020, ch. 6), with 5 units
+    assert tac < 79233.0 and net.units == 5
+    # the two H1–C1 units sit in series on one branch of C1: the colder one's cold outlet is the hotter one's inlet
+    h1c1 = sorted((e for e in net.exchangers if (e.hot, e.cold) == ("H1", "C1")), key=lambda e: e.cold_in)
+    assert h1c1[0].cold_out == pytest.approx(h1c1[1].cold_in, abs=1e-9)
+    assert h1c1[0].cold_fraction == pytest.approx(h1c1[1].cold_fraction) and h1c1[0].cold_fraction < 1
 
 
 def test_a_split_whose_branches_start_at_different_stages_builds_and_reads_back(tmp_path, monkeypatch):
@@ -245,10 +255,6 @@ def test_a_split_whose_branches_start_at_different_stages_builds_and_reads_back(
     the branch's unit before the other branch's, so the split's heads (the hot H1–C1 unit and the big H2–C1
     unit) cannot share a stage.  The network is built with the orders along the streams alone, its units
     table says the order, and it reads back into the same network."""
-    from heatloom.io.network_table import read_network
-    from heatloom.retrofit.evaluate import evaluate_network
-    from heatloom.retrofit.existing import ExistingNetwork
-
     data, streams, utilities, costs, h, price = yee_grossmann()
     p = make_problem(streams, utilities, costs, 1.0)
     units = (("cool", 0, 0), ("x", 1, 0), ("x", 0, 1), ("x", 0, 0), ("x", 0, 0), ("x", 1, 0))
@@ -258,12 +264,8 @@ def test_a_split_whose_branches_start_at_different_stages_builds_and_reads_back(
     assert layout_stages(lay) is None   # H2 puts unit 5 before unit 1; C1's branch puts unit 3 before unit 5
     stages = layout_stages(lay, heads_together=False)
     assert stages is not None and stages[3] < stages[5] < stages[1]
-    sol = solve_layout(p, lay, [((400.0, 1746.0, 2400.0, 208.0, 292.0, 54.0), (0.24, 0.76))])
-    net = network_from_layout(p, sol, streams, utilities, costs)
-    check_network(net, streams, utilities, dt_min=1.0)
-    assert_balances_and_approaches(net, streams, 1.0)
-    tac = recomputed_tac(net, h, price, published_laws(data["cost_law"]))
-    assert net.total_annual_cost == pytest.approx(tac, rel=1e-9)
+    sol, net, tac = built_and_read_back(p, lay, ((400.0, 1746.0, 2400.0, 208.0, 292.0, 54.0), (0.24, 0.76)),
+                                        tmp_path)
     # below the best published network without splits, 79,233 per year (Wang et al. 2017, as listed by
     # Roetzel, Luo & Chen 2020, ch. 6), with 6 units; 78,050 is a regression value of this layout
     assert tac < 79233.0 and net.units == 6
@@ -273,12 +275,6 @@ def test_a_split_whose_branches_start_at_different_stages_builds_and_reads_back(
     assert [(e.hot, e.cold) for e in branch] == [("H1", "C1"), ("H2", "C1"), ("H1", "C1")]
     for a, b in zip(branch, branch[1:]):
         assert a.cold_out == pytest.approx(b.cold_in, abs=1e-9) and a.cold_fraction == pytest.approx(b.cold_fraction)
-    path = tmp_path / "units.csv"
-    net.to_frame().to_csv(path, index=False)
-    existing = ExistingNetwork.from_table(streams, read_network(path), utilities)
-    ev = evaluate_network(existing, 1.0, costs=costs)
-    assert ev.ok, ev.failures
-    assert ev.network.total_annual_cost == pytest.approx(tac, rel=1e-4)   # areas written to 0.001 m²
     # were the order along C1 not to follow from the temperatures, the stages could not stand in for it
     import heatloom.network.tac.branches as branches
     monkeypatch.setattr(branches, "unordered_streams", lambda network: ["C1"])
