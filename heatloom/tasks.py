@@ -22,7 +22,7 @@ from concurrent.futures import ProcessPoolExecutor, as_completed
 
 from .errors import InputError
 
-__all__ = ["Progress", "PRELOAD", "TaskRunner", "describe_executor", "pool_context", "one_numeric_thread"]
+__all__ = ["Progress", "PRELOAD", "TaskRunner", "describe_executor", "pool_context", "one_numeric_thread", "numeric_threads"]
 
 Progress = Callable[[str, int, int], None]
 """``progress(phase, done, total)``, called while tasks complete (for progress bars)."""
@@ -59,6 +59,16 @@ def one_numeric_thread() -> None:
     from threadpoolctl import threadpool_limits
 
     threadpool_limits(limits=1)
+
+
+def numeric_threads(limit: int = 1):
+    """Context manager: the native thread pools of this process (numpy's BLAS, OpenMP) run at most ``limit``
+    threads inside the block, as in a worker started with :func:`one_numeric_thread`.  A search that runs
+    either in a pool worker or in this process (``workers=1``) takes its steps inside it, so that both do the
+    same arithmetic (a BLAS sum split over two threads rounds differently) and give the same result."""
+    from threadpoolctl import threadpool_limits
+
+    return threadpool_limits(limits=limit)
 
 
 class TaskRunner:

@@ -4,7 +4,7 @@ from concurrent.futures import ProcessPoolExecutor
 
 from threadpoolctl import threadpool_info
 
-from heatloom.tasks import TaskRunner, one_numeric_thread
+from heatloom.tasks import TaskRunner, numeric_threads, one_numeric_thread
 
 
 def blas_threads() -> list[int]:
@@ -28,3 +28,10 @@ def test_task_runner_workers_have_one_blas_thread():
     finally:
         runner.close()
     assert len(out) == 2 and all(threads and set(threads) == {1} for threads in out)
+
+
+def test_numeric_threads_limits_this_process_inside_the_block_only():
+    before = blas_threads()
+    with numeric_threads(1):
+        assert set(blas_threads()) == {1}
+    assert blas_threads() == before

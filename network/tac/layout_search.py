@@ -17,7 +17,7 @@ import numpy as np
 
 from ...errors import InfeasibleError, InputError
 from ...model.costs import CostSettings
-from ...tasks import one_numeric_thread
+from ...tasks import numeric_threads, one_numeric_thread
 from ..structure import Network
 from .branches import (
     Layout,
@@ -373,7 +373,8 @@ def _restructure_job(args) -> tuple[LayoutSolution, dict]:
     """One search of :func:`restructure` in a worker process: (cheapest solution, its stats)."""
     p, start, deadline, seed, kicks_until = args
     stats: dict = {}
-    best = restructure(p, start, deadline, seed=seed, stats=stats, kicks_until=kicks_until)
+    with numeric_threads(1):   # the same arithmetic in a worker and in this process
+        best = restructure(p, start, deadline, seed=seed, stats=stats, kicks_until=kicks_until)
     return best, stats
 
 

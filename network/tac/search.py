@@ -64,7 +64,7 @@ from ... import defaults
 from ...errors import InfeasibleError, InputError
 from ...model import MatchRules, StreamTable, Utility
 from ...model.costs import CostSettings
-from ...tasks import one_numeric_thread
+from ...tasks import numeric_threads, one_numeric_thread
 from ..design import match_rules
 from ..solvers import Budget
 from ..structure import Network, check_network
@@ -354,13 +354,14 @@ class _Search:
 def _run_start(args) -> tuple[TopologySolution, int, bool]:
     """One start of the search in a worker process: (best solution, refinements, timed out)."""
     p, top, loads, seed, rounds, deadline, max_stages, polished = args
-    s = _Search(p, max_stages, seed, deadline)
-    sol = s.evaluate(top, loads)
-    if sol is None:
-        sol = s.evaluate(top)
-    if sol is None:
-        return None, s.evals, s.timed_out
-    best = s.iterate(sol, rounds, polished and sol.topology == top)
+    with numeric_threads(1):   # the same arithmetic in a worker and in this process
+        s = _Search(p, max_stages, seed, deadline)
+        sol = s.evaluate(top, loads)
+        if sol is None:
+            sol = s.evaluate(top)
+        if sol is None:
+            return None, s.evals, s.timed_out
+        best = s.iterate(sol, rounds, polished and sol.topology == top)
     return best, s.evals, s.timed_out
 
 
