@@ -524,10 +524,10 @@ def network_from_layout(p: TacProblem, sol: LayoutSolution, streams, utilities, 
     net = Network(tuple(exchangers), tuple(heaters), tuple(coolers), p.emat, capital_cost=capital,
                   operating_cost=operating, total_annual_cost=capital + operating, currency=costs.currency,
                   notes=tuple(notes), solves=tuple(solves))
-    if layout_stages(sol.layout) is None and unordered_streams(net):
-        raise InfeasibleError("the order of the units along stream(s) " + ", ".join(unordered_streams(net))
-                              + " follows neither from the temperatures nor from the stages (a split's branches "
-                              "start at different stages)")
+    lost = unordered_streams(net) if layout_stages(sol.layout) is None else []
+    if lost:
+        raise InfeasibleError("the order of the units along stream(s) " + ", ".join(lost) + " follows neither from "
+                              "the temperatures nor from the stages (a split's branches start at different stages)")
     check_network(net, streams, utilities, dt_min=p.emat, contributions=False)
     if p.has_contributions:
         check_network(net, streams, utilities, dt_min=p.emat, contributions=True)
