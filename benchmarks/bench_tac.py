@@ -28,7 +28,7 @@ from pathlib import Path
 
 from heatloom.model import Stream, StreamTable, Utility, UtilityKind
 from heatloom.model.costs import CostLaw, CostSettings
-from heatloom.network.streamorder import stream_order, stream_positions
+from heatloom.network.streamorder import stream_positions
 from heatloom.network.tac.search import design_tac
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
@@ -75,7 +75,7 @@ def generated_case(n: int):
 def splits(net) -> int:
     """Stream splits: (stream, position along it) held by units on parallel branches (a branch carrying
     units in series counts once; positions from the units' temperatures, as the units table writes them)."""
-    pos = stream_positions(net, stream_order(net))
+    pos = stream_positions(net)
     seen = set()
     for x in (*net.exchangers, *net.heaters, *net.coolers):
         hot_pos, cold_pos = pos[x.name]

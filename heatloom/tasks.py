@@ -56,9 +56,7 @@ def one_numeric_thread() -> None:
     layouts each in 20 s where one worker alone refined 461 (the layout search of ``design --mode tac
     --restructure``; 414 and 466 with one BLAS thread per worker).
     """
-    from threadpoolctl import threadpool_limits
-
-    threadpool_limits(limits=1)
+    numeric_threads(1)   # not used as a context: the limit holds for the worker's life
 
 
 def numeric_threads(limit: int = 1):

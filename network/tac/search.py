@@ -634,9 +634,10 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
                 timed_out |= out
                 if sol is not None and sol.tac < current[s].tac:
                     current[s] = sol
-            if min(c.tac for c in current) < best.tac * (1 - 1e-9):
+            cheapest = min(current, key=lambda s: s.tac)
+            if cheapest.tac < best.tac * (1 - 1e-9):
                 last_gain = time.monotonic()
-            best = min(current, key=lambda s: s.tac)
+            best = cheapest
             if progress is not None:
                 progress(best.tac, epoch + 1, epochs)
     finally:
