@@ -17,7 +17,7 @@ import numpy as np
 
 from ...errors import InfeasibleError, InputError
 from ...model.costs import CostSettings
-from ...tasks import numeric_threads, one_numeric_thread
+from ...tasks import numeric_threads, one_numeric_thread, pool_context
 from ..structure import Network
 from .branches import (
     Layout,
@@ -414,7 +414,8 @@ def beyond_stagewise(p: TacProblem, sol: TopologySolution, streams, utilities, c
     if len(jobs) == 1:
         results = [_restructure_job(jobs[0])]
     else:
-        with ProcessPoolExecutor(max_workers=len(jobs), initializer=one_numeric_thread) as pool:
+        with ProcessPoolExecutor(max_workers=len(jobs), mp_context=pool_context(),
+                                 initializer=one_numeric_thread) as pool:
             results = list(pool.map(_restructure_job, jobs))
     best = min((r[0] for r in results), key=lambda x: x.tac)
     stats = {key: sum(r[1][key] for r in results) for key in ("layouts", "kicks", "restarts")}

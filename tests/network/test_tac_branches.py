@@ -320,6 +320,30 @@ def test_restructure_on_two_workers_runs_two_searches_and_keeps_a_sound_network(
                                                   rel=1e-9)
 
 
+def test_the_search_pools_start_their_workers_from_a_fork_server(monkeypatch):
+    """Neither the stagewise starts' pool nor the parallel layout searches fork this process plainly (a forked
+    child inherits solver thread pools without their threads; Python 3.14 makes forkserver the default)."""
+    from concurrent.futures import ProcessPoolExecutor
+
+    import heatloom.network.tac.layout_search as layout_search
+    import heatloom.network.tac.search as search
+
+    methods = []
+
+    class Recording(ProcessPoolExecutor):
+        def __init__(self, *args, mp_context=None, **kwargs):
+            methods.append(None if mp_context is None else mp_context.get_start_method())
+            super().__init__(*args, mp_context=mp_context, **kwargs)
+
+    monkeypatch.setattr(search, "ProcessPoolExecutor", Recording)
+    monkeypatch.setattr(layout_search, "ProcessPoolExecutor", Recording)
+    streams, utilities, costs, laws = small_case()
+    net = design_tac(streams, utilities, costs=costs, emat=5.0, seed=0, starts=2, rounds=4, workers=2,
+                     milp_iterations=1, time_limit=20, restructure=True)
+    check_network(net, streams, utilities, dt_min=5.0)
+    assert len(methods) == 2 and set(methods) <= {"forkserver", "spawn"}
+
+
 def test_a_stalled_stagewise_search_hands_its_time_to_the_search_beyond_it(monkeypatch):
     import heatloom.network.tac.search as search
 
