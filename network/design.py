@@ -43,6 +43,7 @@ from ..pinch import target
 from ..pinch.area import missing_film_coefficients
 from ..pinch.utilities import ideal_utilities, utility_shifted_range
 from .merge import approach_shortfalls
+from .parallel_supply import header_words, parallel_sides, with_returns
 from .placement import Placement, Side, interval_placement, stage_model
 from .sizing import geometry_kind, size_network
 from .solvers import Budget, SolveReport, solve
@@ -394,7 +395,17 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
         result = tick_off_placement(hot, cold, forbidden=forbidden, required=mine,
                                     time_limit=0.6 * part.remaining, tries=500, solver=solver,
                                     solve_time=0.6 * part.remaining, neighbourhood=0.6)
-        piped = ""
+        piped, units = "", None
+        if result is None:
+            # cooling water and hot oil from a header: every unit takes the utility at its supply temperature
+            hot2, cold2, parallel = parallel_sides(hot, cold, utilities)
+            if parallel:
+                result = tick_off_placement(hot2, cold2, forbidden=forbidden, required=mine,
+                                            time_limit=0.6 * part.remaining, tries=500, solver=solver,
+                                            solve_time=0.6 * part.remaining, neighbourhood=0.6)
+                if result is not None:
+                    units = with_returns(result.placement.units, hot2, cold2, parallel)
+                    piped = "; " + "; ".join(header_words(units, parallel))
         for hot_only in _pipings(hot, cold):
             if result is not None:
                 break
@@ -413,7 +424,7 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
             return None, [f"subnetwork '{label}': its cascade does not hold in the tick-off method's "
                           "conservative reading of the utilities, or the match rules leave no placement"]
         notes.append(f"subnetwork '{label}': {_tick_off_words(result)}{piped}")
-        placed += [(label, p) for p in result.placement.units]
+        placed += [(label, p) for p in (result.placement.units if units is None else units)]
     missing = sorted(required - {(p.hot, p.cold) for _, p in placed})
     if missing:
         return None, ["required match" + ("es " if len(missing) > 1 else " ")
