@@ -90,7 +90,7 @@ def with_returns(units: Sequence[PlacedUnit], hot: Sequence[Side], cold: Sequenc
     >>> cw = Utility("CW", 10.0, 15.0, 6.0, UtilityKind.COLD, 1.5)
     >>> hot = [Side("H", True, (80.0, 18.0), (0.0, 124.0), 5.0)]
     >>> cold = [Side("CW", False, (10.0, 10.0), (0.0, 124.0), 5.0, utility=True)]
-    >>> u = PlacedUnit("H", "CW", 0, 124.0, 80.0, 20.0, 10.0, 10.0, 1.0, 1.0)
+    >>> u = PlacedUnit("H", "CW", 0, 120.0, 80.0, 20.0, 10.0, 10.0, 1.0, 1.0)
     >>> [(x.cold_in, x.cold_out) for x in with_returns([u], hot, cold, {"CW": cw})]   # design return kept
     [(10.0, 15.0)]
     >>> u = PlacedUnit("H", "CW", 0, 4.0, 22.0, 20.0, 10.0, 10.0, 1.0, 1.0)
