@@ -22,7 +22,8 @@ from concurrent.futures import ProcessPoolExecutor, as_completed
 
 from .errors import InputError
 
-__all__ = ["Progress", "PRELOAD", "TaskRunner", "describe_executor", "pool_context", "one_numeric_thread", "numeric_threads"]
+__all__ = ["Progress", "PRELOAD", "TaskRunner", "describe_executor", "pool_context", "local_pool", "one_numeric_thread",
+           "numeric_threads"]
 
 Progress = Callable[[str, int, int], None]
 """``progress(phase, done, total)``, called while tasks complete (for progress bars)."""
@@ -45,6 +46,12 @@ def pool_context():
         ctx.set_forkserver_preload(list(PRELOAD))
         return ctx
     return multiprocessing.get_context("spawn")
+
+
+def local_pool(workers: int) -> ProcessPoolExecutor:
+    """A local process pool of ``workers`` processes as every pool of heatloom starts one: from the fork server
+    (:func:`pool_context`), each worker with one BLAS thread (:func:`one_numeric_thread`)."""
+    return ProcessPoolExecutor(max_workers=workers, mp_context=pool_context(), initializer=one_numeric_thread)
 
 
 def one_numeric_thread() -> None:
@@ -143,8 +150,7 @@ class TaskRunner:
                     self.progress(phase, i + 1, n)
             return out
         if self._pool is None:
-            self._pool = ProcessPoolExecutor(max_workers=self._workers, mp_context=pool_context(),
-                                             initializer=one_numeric_thread)
+            self._pool = local_pool(self._workers)
         futures = {self._pool.submit(fn, *args): i for i, args in enumerate(arglists)}
         for done, f in enumerate(as_completed(futures), start=1):
             out[futures[f]] = f.result()

@@ -11,13 +11,12 @@ network of :func:`heatloom.network.tac.search.design_tac` and returns its networ
 from __future__ import annotations
 
 import time
-from concurrent.futures import ProcessPoolExecutor
 
 import numpy as np
 
 from ...errors import InfeasibleError, InputError
 from ...model.costs import CostSettings
-from ...tasks import numeric_threads, one_numeric_thread, pool_context
+from ...tasks import local_pool, numeric_threads
 from ..structure import Network
 from .branches import (
     Layout,
@@ -414,8 +413,7 @@ def beyond_stagewise(p: TacProblem, sol: TopologySolution, streams, utilities, c
     if len(jobs) == 1:
         results = [_restructure_job(jobs[0])]
     else:
-        with ProcessPoolExecutor(max_workers=len(jobs), mp_context=pool_context(),
-                                 initializer=one_numeric_thread) as pool:
+        with local_pool(len(jobs)) as pool:
             results = list(pool.map(_restructure_job, jobs))
     best = min((r[0] for r in results), key=lambda x: x.tac)
     stats = {key: sum(r[1][key] for r in results) for key in ("layouts", "kicks", "restarts")}

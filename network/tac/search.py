@@ -17,8 +17,8 @@ The sequence (DEVELOPERS.md, "Method notes"):
 3. **Topology search** (iterated local search): remove a unit, add a match (in an existing stage or a new
    one), move a match to another stage, add or remove a utility unit, each neighbour refined by step 2;
    local optima are kicked by a few random moves, more as the walk stalls.  Several starts run in
-   parallel in local processes (``concurrent.futures``, started from a fork server:
-   :func:`heatloom.tasks.pool_context`), each with its own random stream derived from ``seed``; start 0
+   parallel in local processes (:func:`heatloom.tasks.local_pool`: from a fork server, one BLAS thread each;
+   see :func:`heatloom.tasks.pool_context`), each with its own random stream derived from ``seed``; start 0
    begins while the MILPs are being solved.
 4. One wall-clock budget (:class:`heatloom.network.solvers.Budget`): the time limit is the whole run's; each
    solve gets a share of what is left, and one that stops without a solution leaves the run to its other
@@ -56,7 +56,6 @@ from __future__ import annotations
 import os
 import time
 from collections.abc import Callable, Iterable, Sequence
-from concurrent.futures import ProcessPoolExecutor
 from dataclasses import replace
 
 import numpy as np
@@ -65,7 +64,7 @@ from ... import defaults
 from ...errors import InfeasibleError, InputError
 from ...model import MatchRules, StreamTable, Utility
 from ...model.costs import CostSettings
-from ...tasks import numeric_threads, one_numeric_thread, pool_context
+from ...tasks import local_pool, numeric_threads
 from ..design import match_rules
 from ..solvers import Budget
 from ..structure import Network, check_network
@@ -556,8 +555,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         keep(search.evaluate(top), f"MER network at ΔTmin {max(MER_DT_MIN, emat):g} K")
     epochs = max(1, -(-rounds // ROUNDS_PER_EPOCH)) if rounds else 0
     n_workers = workers if workers is not None else min(starts, os.cpu_count() or 1)
-    pool = ProcessPoolExecutor(max_workers=n_workers, mp_context=pool_context(), initializer=one_numeric_thread) \
-        if n_workers > 1 and starts > 1 and epochs else None
+    pool = local_pool(n_workers) if n_workers > 1 and starts > 1 and epochs else None
 
     def job(s, c, epoch):
         todo = min(ROUNDS_PER_EPOCH, rounds - epoch * ROUNDS_PER_EPOCH)

@@ -325,8 +325,7 @@ def test_the_search_pools_start_their_workers_from_a_fork_server(monkeypatch):
     child inherits solver thread pools without their threads; Python 3.14 makes forkserver the default)."""
     from concurrent.futures import ProcessPoolExecutor
 
-    import heatloom.network.tac.layout_search as layout_search
-    import heatloom.network.tac.search as search
+    import heatloom.tasks as tasks
 
     methods = []
 
@@ -335,8 +334,7 @@ def test_the_search_pools_start_their_workers_from_a_fork_server(monkeypatch):
             methods.append(None if mp_context is None else mp_context.get_start_method())
             super().__init__(*args, mp_context=mp_context, **kwargs)
 
-    monkeypatch.setattr(search, "ProcessPoolExecutor", Recording)
-    monkeypatch.setattr(layout_search, "ProcessPoolExecutor", Recording)
+    monkeypatch.setattr(tasks, "ProcessPoolExecutor", Recording)   # every pool is made by tasks.local_pool
     streams, utilities, costs, laws = small_case()
     net = design_tac(streams, utilities, costs=costs, emat=5.0, seed=0, starts=2, rounds=4, workers=2,
                      milp_iterations=1, time_limit=20, restructure=True)
