@@ -392,17 +392,19 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
         part = budget.part(weights[k] / max(sum(weights[k:]), 1))
         names = {x.name for x in (*hot, *cold)}
         mine = {p for p in required if p[0] in names and p[1] in names}
-        result = tick_off_placement(hot, cold, forbidden=forbidden, required=mine,
-                                    time_limit=0.6 * part.remaining, tries=500, solver=solver,
-                                    solve_time=0.6 * part.remaining, neighbourhood=0.6)
+
+        def place(h, c, banned=frozenset(), part=part, mine=mine):
+            return tick_off_placement(h, c, forbidden=set(forbidden) | banned, required=mine,
+                                      time_limit=0.6 * part.remaining, tries=500, solver=solver,
+                                      solve_time=0.6 * part.remaining, neighbourhood=0.6)
+
+        result = place(hot, cold)
         piped, units = "", None
         if result is None:
             # cooling water and hot oil from a header: every unit takes the utility at its supply temperature
             hot2, cold2, parallel = parallel_sides(hot, cold, utilities)
             if parallel:
-                result = tick_off_placement(hot2, cold2, forbidden=forbidden, required=mine,
-                                            time_limit=0.6 * part.remaining, tries=500, solver=solver,
-                                            solve_time=0.6 * part.remaining, neighbourhood=0.6)
+                result = place(hot2, cold2)
                 if result is not None:
                     units = with_returns(result.placement.units, hot2, cold2, parallel)
                     piped = "; " + "; ".join(header_words(units, parallel))
@@ -415,9 +417,7 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
                 hot, cold, "the tick-off method's conservative reading, the utility's heat counted at its return "
                 "temperature, left no search", hot_only=hot_only)
             piped = f"; {piped}"
-            result = tick_off_placement(hot2, cold2, forbidden=set(forbidden) | banned, required=mine,
-                                        time_limit=0.6 * part.remaining, tries=500, solver=solver,
-                                        solve_time=0.6 * part.remaining, neighbourhood=0.6)
+            result = place(hot2, cold2, banned)
         if result is not None:
             solves += [part.record(r) for r in result.reports]
         if result is None:
