@@ -377,9 +377,9 @@ def _region_sides(streams: StreamTable, utilities: Sequence[Utility], duties: di
 
 
 def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, required, budget, solver,
-                     solves):
+                     solves, least_utility_flow=False):
     """Units of every region by :func:`tick_off_placement`; (None, reasons) when a region has none or a
-    required pair is left out."""
+    required pair is left out.  With ``least_utility_flow`` the supply-header reading is not tried."""
     sides = []
     for r_index, region in enumerate(regions):
         got = _region_sides(streams, utilities, duties, region, r_index, len(regions), dt_min,
@@ -399,11 +399,15 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
                                       solve_time=0.6 * part.remaining, neighbourhood=0.6)
 
         result = place(hot, cold)
-        piped, units = "", None
+        piped, skipped, units = "", "", None
         if result is None:
             # cooling water and hot oil from a header: every unit takes the utility at its supply temperature
             hot2, cold2, parallel = parallel_sides(hot, cold, utilities)
-            if parallel:
+            if parallel and least_utility_flow:
+                skipped = (f"; {', '.join(sorted(parallel))} kept at the least flow of the energy target and "
+                         "returned at the design temperature (a supply-header reading, which may use more flow, "
+                         "not tried as asked)")
+            elif parallel:
                 result = place(hot2, cold2)
                 if result is not None:
                     units = with_returns(result.placement.units, hot2, cold2, parallel)
@@ -413,17 +417,17 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
                 break
             # the conservative reading counts hot oil's heat at its return temperature only; piped as a
             # stream of the region (its target flow, the problem table's reading) the targets hold
-            hot2, cold2, banned, piped = _utilities_as_streams(
+            hot2, cold2, banned, words = _utilities_as_streams(
                 hot, cold, "the tick-off method's conservative reading, the utility's heat counted at its return "
                 "temperature, left no search", hot_only=hot_only)
-            piped = f"; {piped}"
+            piped = f"{skipped}; {words}"
             result = place(hot2, cold2, banned)
         if result is not None:
             solves += [part.record(r) for r in result.reports]
         if result is None:
             return None, [f"subnetwork '{label}': its cascade does not hold in the tick-off method's "
                           "conservative reading of the utilities, or the match rules leave no placement"]
-        notes.append(f"subnetwork '{label}': {_tick_off_words(result)}{piped}")
+        notes.append(f"subnetwork '{label}': {_tick_off_words(result)}{piped or skipped}")
         placed += [(label, p) for p in (result.placement.units if units is None else units)]
     missing = sorted(required - {(p.hot, p.cold) for _, p in placed})
     if missing:
@@ -527,7 +531,8 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
                costs: CostSettings | None = None, solver: str | None = None, time_limit: float = 60.0,
                default_film_coefficient: float | None = None, exchanger_type: ExchangerType | None = None,
                tube_diameter: float | None = None, hairpin_length: float | None = None,
-               forbidden: Iterable[tuple[str, str]] = (), required: Iterable[tuple[str, str]] = ()) -> Network:
+               forbidden: Iterable[tuple[str, str]] = (), required: Iterable[tuple[str, str]] = (),
+               least_utility_flow: bool = False) -> Network:
     """A maximum-energy-recovery network with the fewest units, sized and costed.
 
     Parameters
@@ -562,6 +567,13 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
         placement, the tick-off method).
     required : iterable of (str, str)
         (hot, cold) name pairs that must appear in the network with a positive duty.
+    least_utility_flow : bool
+        Keep every non-isothermal utility (hot oil, cooling water) at the least flow of its energy target,
+        returned at its design temperature.  By default, above :data:`TICK_OFF_ABOVE` process streams, a
+        pinch region that the tick-off method cannot place as read is searched again with such a utility
+        fed from a supply header (:mod:`heatloom.network.parallel_supply`): each unit then returns it at its
+        own temperature, which may take more flow (a hotter oil return to a fired heater, more cooling
+        water), and the notes give the flow and the returns.  Set this when the plant cannot take that.
 
     Above :data:`TICK_OFF_ABOVE` process streams the units of each pinch region come from the tick-off
     method (:func:`heatloom.network.tickoff.tick_off_placement`) and the fewest-matches MILP is not run;
@@ -624,7 +636,7 @@ def design_mer(streams: StreamTable, dt_min: float, utilities: Sequence[Utility]
         solves = list(plan.reports)
         regions = _design_regions(t, plan)
         placed, why = _tick_off_design(streams, utilities, plan.utility_duties, regions, t, dt_min, forbidden,
-                                       required, budget, solver, solves)
+                                       required, budget, solver, solves, least_utility_flow)
         if placed is not None:
             notes.append(f"heat-load distribution and placement by the tick-off method for {len(streams)} "
                          f"process streams (the fewest-matches MILP is not run above {TICK_OFF_ABOVE}); "

@@ -100,6 +100,11 @@ def register(sub) -> None:
     rules.add_argument("--break-loops", action="store_true",
                        help="also remove the smallest unit of every heat-load loop while one can go (fewer units, "
                             "each step's energy penalty printed)")
+    p.add_argument("--least-utility-flow", action="store_true",
+                   help="mer, above 12 streams: keep hot oil and cooling water at the least flow of their energy "
+                        "targets, returned at their design temperatures (by default a region may be fed from a "
+                        "supply header, each unit returning the utility at its own temperature; the notes say "
+                        "so)")
     tac = p.add_argument_group("--mode tac")
     tac.add_argument("--emat", type=positive, default=None, metavar="K",
                      help=f"exchanger minimum approach temperature at both ends of every unit [K] "
@@ -189,6 +194,9 @@ def run(args) -> int:
     if tac and args.exchanger_type != "counter-current":
         raise InputError(f"--exchanger-type {args.exchanger_type} applies to --mode mer only: the TAC design sizes "
                          "counter-current units")
+    if tac and args.least_utility_flow:
+        raise InputError("--least-utility-flow applies to --mode mer only: the TAC design always takes a utility "
+                         "over its whole range")
     streams, utilities, costs = read_inputs(args)
     if tac:
         dt_min, dt_note = (defaults.EMAT, "EMAT default for --mode tac; set with --emat") if args.emat is None \
@@ -226,7 +234,7 @@ def run(args) -> int:
         net = design_mer(streams, dt_min, utilities, costs=costs, solver=args.solver,
                          time_limit=args.time_limit or 60.0, default_film_coefficient=args.default_h,
                          exchanger_type=kind, tube_diameter=args.tube_diameter,
-                         hairpin_length=args.hairpin_length, **extra)
+                         hairpin_length=args.hairpin_length, least_utility_flow=args.least_utility_flow, **extra)
     evolution = None
     if args.min_duty is not None or args.min_area is not None or args.break_loops:
         from ..network.evolution import evolve

@@ -121,6 +121,7 @@ def test_same_seed_same_network(capsys, files):
     (["--mode", "tac", "--dtmin", "5"], "--dtmin does not apply to --mode tac"),
     (["--mode", "mer", "--emat", "2"], "--emat applies to --mode tac only"),
     (["--mode", "tac", "--exchanger-type", "double-pipe"], "applies to --mode mer only"),
+    (["--mode", "tac", "--least-utility-flow"], "--least-utility-flow applies to --mode mer only"),
 ])
 def test_refusals(capsys, files, args, message):
     s, u, c = files

@@ -84,15 +84,24 @@ def test_a_heater_is_sized_on_its_own_return(designed):
     assert h.area == pytest.approx(h.duty / (u * lmtd), rel=1e-6)
 
 
-def test_piping_the_utilities_instead_places_no_fewer_units(monkeypatch, designed):
-    """Without the header reading the design pipes both utilities through their units as streams (the
-    fallback it keeps for a utility cut by a pinch): on this case not fewer units."""
+def test_least_utility_flow_pipes_the_utilities_and_places_no_fewer_units(designed):
+    """Asked to keep the utilities at their least flow, the design pipes both through their units as streams
+    (the fallback it keeps for a utility cut by a pinch) and says so: on this case not fewer units."""
     streams, utilities, net = designed
-    monkeypatch.setattr(design_module, "parallel_sides", lambda hot, cold, u: (hot, cold, {}))
-    piped = design_mer(streams, DT, utilities=utilities, time_limit=30)
+    piped = design_mer(streams, DT, utilities=utilities, time_limit=30, least_utility_flow=True)
     assert any("piped through its units" in n for n in piped.notes)
+    assert any("kept at the least flow" in n and "not tried as asked" in n for n in piped.notes)
     assert not any("fed to its" in n for n in piped.notes)
     assert net.units <= piped.units
+    duties = {d.utility.name: d.duty for d in target(streams, DT, utilities).placement.duties}
+    for name, units, lo, hi in (("oil", piped.heaters, 250.0, 330.0), ("CW", piped.coolers, 10.0, 15.0)):
+        assert sum(u.duty for u in units) == pytest.approx(duties[name], rel=1e-7)
+        for u in units:   # every unit takes the utility inside its design range
+            assert lo - 1e-9 <= min(u.utility_in, u.utility_out) and max(u.utility_in, u.utility_out) <= hi + 1e-9
+    for h in piped.heaters:
+        assert h.utility_in - h.cold_out >= DT - 1e-9 and h.utility_out - h.cold_in >= DT - 1e-9
+    for c in piped.coolers:
+        assert c.hot_out - c.utility_in >= DT - 1e-9 and c.hot_in - c.utility_out >= DT - 1e-9
 
 
 def test_an_inner_breakpoint_sets_the_return():
