@@ -16,6 +16,7 @@ the fewest-matches MILP and the stagewise placement). Asserts nothing; run:
     python benchmarks/bench_design.py --sizes 100 --notes   # and where the units come from, region by region
     python benchmarks/bench_design.py --seed 12             # another set of generated problems
     python benchmarks/bench_design.py --hot-oil             # with hot oil 330 -> 250 °C (invented utilities)
+    python benchmarks/bench_design.py --hot-oil --least-utility-flow   # utilities piped, no supply header
 
 The tick-off units are merged (a stream's staircase of partial units becomes one branch per partner,
 heatloom.network.merge) and improved by neighbourhood moves (heatloom.network.neighbourhood); --notes
@@ -68,6 +69,8 @@ def main() -> None:
     ap.add_argument("--hot-oil", action="store_true",
                     help="design with hot oil 330 -> 250 °C (60 per kW·year, h 1) and cooling water 10 -> 15 °C "
                          "(6 per kW·year, h 1.5), both invented, instead of the assumed isothermal utilities")
+    ap.add_argument("--least-utility-flow", action="store_true",
+                    help="keep non-isothermal utilities at their least flow (design_mer's least_utility_flow)")
     ap.add_argument("--notes", action="store_true",
                     help="print each region's note: units, those for what the tick-off steps left, searches")
     args = ap.parse_args()
@@ -80,7 +83,8 @@ def main() -> None:
         t0 = time.perf_counter()
         try:
             net = design_mer(table, args.dtmin, utilities=HOT_OIL if args.hot_oil else None, solver=args.solver,
-                             time_limit=limit, default_film_coefficient=1.0)
+                             time_limit=limit, default_film_coefficient=1.0,
+                             least_utility_flow=args.least_utility_flow)
         except HeatloomError as e:
             print(f"{n:>8} {'-':>6} {'-':>7} {'-':>7} {'-':>8} {limit:>7g} {time.perf_counter() - t0:>9.2f} "
                   f"{'-':>6} {'-':>9} {'-':>9}  failed: {e}")
