@@ -405,8 +405,8 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
             hot2, cold2, parallel = parallel_sides(hot, cold, utilities)
             if parallel and least_utility_flow:
                 skipped = (f"; {', '.join(sorted(parallel))} kept at the least flow of the energy target and "
-                         "returned at the design temperature (a supply-header reading, which may use more flow, "
-                         "not tried as asked)")
+                           "returned at the design temperature (a supply-header reading, which may use more flow, "
+                           "not tried as asked)")
             elif parallel:
                 result = place(hot2, cold2)
                 if result is not None:
