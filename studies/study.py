@@ -74,7 +74,10 @@ class RunSettings:
     solver : str or None
         MILP solver of the designs ("highs", "cbc"; None: the preferred installed one).
     time_limit : float
-        Limit of each solve of the maximum-energy-recovery design [s].
+        Wall-clock budget of the maximum-energy-recovery design, shared by its solves [s].
+    least_utility_flow : bool
+        Keep non-isothermal utilities of that design at their least flow and design return
+        (:func:`heatloom.network.design_mer`'s ``least_utility_flow``).
     tac : bool
         Whether the lowest-total-annual-cost design was asked for.
     emat : float or None
@@ -92,6 +95,7 @@ class RunSettings:
     capital_basis: str = "units_mer"
     solver: str | None = None
     time_limit: float = 60.0
+    least_utility_flow: bool = False
     tac: bool = False
     emat: float | None = None
     tac_time_limit: float | None = None
@@ -247,8 +251,10 @@ class Study:
             rows.append(("ΔTmin sweep", f"{s.sweep_range[0]:g} to {s.sweep_range[1]:g} K by {s.sweep_step:g} K; "
                          f"capital target: the target area shared among {basis}", s.sweep_note))
         rows.append(("maximum-energy-recovery design",
-                     f"solver {s.solver or 'preferred installed (HiGHS, else CBC)'}, {s.time_limit:g} s per design (one budget for all its solves)",
-                     "default" if s.solver is None else "given"))
+                     f"solver {s.solver or 'preferred installed (HiGHS, else CBC)'}, {s.time_limit:g} s per design (one budget for all its solves)"
+                     + ("; hot oil and cooling water kept at their least flow and design return"
+                        if s.least_utility_flow else ""),
+                     "default" if s.solver is None and not s.least_utility_flow else "given"))
         if s.tac:
             rows.append(("lowest-total-annual-cost design",
                          f"EMAT {s.emat:g} K at both ends of every unit, {s.tac_time_limit:g} s for the whole "
@@ -440,7 +446,8 @@ def compute_study(streams: StreamTable, dt_min: float, utilities: Sequence[Utili
         from ..network.design import design_mer
 
         return design_mer(streams, dt_min, utilities, costs=costs_in_force, solver=settings.solver,
-                          time_limit=settings.time_limit, default_film_coefficient=h, **matches)
+                          time_limit=settings.time_limit, default_film_coefficient=h,
+                          least_utility_flow=settings.least_utility_flow, **matches)
 
     design = run_step(mer, "the maximum-energy-recovery design", [("energy targets", t)])
 

@@ -105,7 +105,11 @@ def register(sub) -> None:
     p.add_argument("--solver", choices=["highs", "cbc"], default=None,
                    help="MILP solver (default: HiGHS when installed, else CBC)")
     p.add_argument("--time-limit", type=positive, default=60.0, metavar="S",
-                   help="time limit of each solve of the maximum-energy-recovery design [s] (default 60 s)")
+                   help="wall-clock budget of the maximum-energy-recovery design, shared by its solves [s] "
+                        "(default 60 s)")
+    p.add_argument("--least-utility-flow", action="store_true",
+                   help="keep hot oil and cooling water of the maximum-energy-recovery design at their least flow "
+                        "and design return (as `design --least-utility-flow`)")
     p.add_argument("--tac", action="store_true",
                    help="also search for the network of lowest total annual cost (takes up to --tac-time-limit)")
     p.add_argument("--emat", type=positive, default=None, metavar="K",
@@ -356,7 +360,7 @@ def run(args) -> int:
     sweep_note = "given (--sweep)" if args.sweep else \
         "default range (that of the sweep command), widened to hold the ΔTmin of the study; set with --sweep"
     settings = RunSettings(sweep_range=sweep_range, sweep_step=defaults.SWEEP_STEP, sweep_note=sweep_note, solver=args.solver,
-                           time_limit=args.time_limit, tac=args.tac, emat=emat, tac_time_limit=args.tac_time_limit,
+                           time_limit=args.time_limit, least_utility_flow=args.least_utility_flow, tac=args.tac, emat=emat, tac_time_limit=args.tac_time_limit,
                            command=_command_line(args))
     steps = 5 + 2 * (existing is not None) + 2
     bar = ProgressBars("heatloom report", enabled=not (args.quiet or args.json), unit="step", steps=steps)

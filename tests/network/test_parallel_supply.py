@@ -116,3 +116,18 @@ def test_an_inner_breakpoint_sets_the_return():
     (out,) = with_returns([unit], hot, cold, {"oil": oil})
     assert (out.hot_in, out.hot_out) == (220.0, pytest.approx(145.0, abs=1e-9))
     assert out.hot_in - 0.8 * (out.hot_in - out.hot_out) - 150.0 == pytest.approx(DT, abs=1e-9)
+
+
+def test_a_study_passes_least_utility_flow_to_its_design_and_states_it():
+    """`heatloom report --least-utility-flow`: the study's MER design pipes the utilities (its notes say the
+    header reading was not tried as asked) and the assumptions table says so."""
+    from heatloom.studies.study import RunSettings, compute_study
+
+    streams, utilities = case()
+    study = compute_study(streams, DT, utilities, settings=RunSettings(time_limit=20.0, least_utility_flow=True),
+                          version="test")
+    assert any("not tried as asked" in n for n in study.design.notes)
+    assert not any("fed to its" in n for n in study.design.notes)
+    rows = {a: (v, b) for a, v, b in study.assumption_rows()}
+    value, basis = rows["maximum-energy-recovery design"]
+    assert "least flow and design return" in value and basis == "given"
