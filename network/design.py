@@ -427,7 +427,7 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
         if result is None:
             return None, [f"subnetwork '{label}': its cascade does not hold in the tick-off method's "
                           "conservative reading of the utilities, or the match rules leave no placement"]
-        notes.append(f"subnetwork '{label}': {_tick_off_words(result)}{piped or skipped}")
+        notes.append(f"subnetwork '{label}': {_tick_off_words(result)}{piped}")
         placed += [(label, p) for p in (result.placement.units if units is None else units)]
     missing = sorted(required - {(p.hot, p.cold) for _, p in placed})
     if missing:

@@ -360,8 +360,8 @@ def run(args) -> int:
     sweep_note = "given (--sweep)" if args.sweep else \
         "default range (that of the sweep command), widened to hold the ΔTmin of the study; set with --sweep"
     settings = RunSettings(sweep_range=sweep_range, sweep_step=defaults.SWEEP_STEP, sweep_note=sweep_note, solver=args.solver,
-                           time_limit=args.time_limit, least_utility_flow=args.least_utility_flow, tac=args.tac, emat=emat, tac_time_limit=args.tac_time_limit,
-                           command=_command_line(args))
+                           time_limit=args.time_limit, least_utility_flow=args.least_utility_flow, tac=args.tac,
+                           emat=emat, tac_time_limit=args.tac_time_limit, command=_command_line(args))
     steps = 5 + 2 * (existing is not None) + 2
     bar = ProgressBars("heatloom report", enabled=not (args.quiet or args.json), unit="step", steps=steps)
     path = Path(args.path)
