@@ -372,7 +372,7 @@ def solve_layout(p: TacProblem, lay: Layout, starts, *, max_iter: int = 200) -> 
 def layout_from_solution(p: TacProblem, sol: TopologySolution) -> tuple[Layout, np.ndarray, np.ndarray]:
     """The layout of a stagewise solution, with its duties [kW] and branch fractions [-] (those of
     isothermal mixing where the solution has none): stages in order along each stream, utility units at the
-    stream ends in the order of their levels."""
+    stream ends in the order of their levels (preheaters and precoolers at the supply ends)."""
     rows = unit_costs(p, sol.topology, sol.x, sol.fractions)
     units = []
     index = {}
@@ -380,19 +380,21 @@ def layout_from_solution(p: TacProblem, sol: TopologySolution) -> tuple[Layout, 
         key = r["key"]
         index[key] = len(units)
         units.append(("x", key[0], key[1]) if len(key) == 3 and not isinstance(key[0], str) else
-                     ("cool" if key[0] == "cool" else "heat", key[1], key[2]))
+                     ("cool" if key[0] in ("cool", "precool") else "heat", key[1], key[2]))
     duties = np.array([r["duty"] for r in rows])
     frac_of = {("hot", index[r["key"]]): r["hot_fraction"] for r in rows}
     frac_of.update({("cold", index[r["key"]]): r["cold_fraction"] for r in rows})
     K = sol.topology.stages
     hot, cold = [], []
     for i in range(len(p.hot_names)):
-        path = [tuple((index[m],) for m in sorted(sol.topology.matches) if m[0] == i and m[2] == k) for k in range(K)]
+        path = [((index["precool", i, lv],),) for (ii, lv) in sorted(sol.topology.precoolers) if ii == i]
+        path += [tuple((index[m],) for m in sorted(sol.topology.matches) if m[0] == i and m[2] == k) for k in range(K)]
         path += [((index["cool", i, lv],),) for (ii, lv) in sorted(sol.topology.coolers) if ii == i]
         hot.append(tuple(b for b in path if b))
     for j in range(len(p.cold_names)):
-        path = [tuple((index[m],) for m in sorted(sol.topology.matches) if m[1] == j and m[2] == k)
-                for k in range(K - 1, -1, -1)]
+        path = [((index["preheat", j, lv],),) for (jj, lv) in sorted(sol.topology.preheaters) if jj == j]
+        path += [tuple((index[m],) for m in sorted(sol.topology.matches) if m[1] == j and m[2] == k)
+                 for k in range(K - 1, -1, -1)]
         path += [((index["heat", j, lv],),) for (jj, lv) in sorted(sol.topology.heaters) if jj == j]
         cold.append(tuple(b for b in path if b))
     lay = Layout(tuple(units), tuple(hot), tuple(cold))

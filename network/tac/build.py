@@ -58,14 +58,14 @@ def network_from_solution(p: TacProblem, sol: TopologySolution, streams: StreamT
             operating += d["duty"] * util.cost
             heaters.append(Heater(p.cold_names[j], util.name, cold_in=d["cold_in"], cold_out=d["cold_out"],
                                   utility_in=util.supply_temperature, utility_out=util.target_temperature,
-                                  stage=-1, **common))
+                                  stage=sol.topology.stages if key[0] == "preheat" else -1, **common))
         else:
             _, i, lv = key
             util = p.cool_levels[lv]
             operating += d["duty"] * util.cost
             coolers.append(Cooler(p.hot_names[i], util.name, hot_in=d["hot_in"], hot_out=d["hot_out"],
                                   utility_in=util.supply_temperature, utility_out=util.target_temperature,
-                                  stage=sol.topology.stages, **common))
+                                  stage=-1 if key[0] == "precool" else sol.topology.stages, **common))
     exchangers.sort(key=lambda e: (e.stage, e.hot, e.cold))
     net = Network(tuple(exchangers), tuple(heaters), tuple(coolers), p.emat, capital_cost=capital,
                   operating_cost=operating, total_annual_cost=capital + operating, currency=costs.currency,

@@ -3,10 +3,11 @@
 A topology of the stagewise superstructure of Yee & Grossmann (1990) says which hot/cold pairs exchange
 heat in which stage and which utility units sit at the stream ends (one heater per cold stream and hot
 utility level at its hot end, one cooler per hot stream and cold utility level at its cold end, levels in
-series ordered by temperature).  With isothermal mixing every stream leaves each stage at one temperature,
+series ordered by temperature; and, beyond Yee & Grossmann's form, preheaters and precoolers at the supply
+ends, before the first stage).  With isothermal mixing every stream leaves each stage at one temperature,
 so once the topology is fixed all stage temperatures, utility duties and end temperature differences are
 *affine* functions of the exchanger loads (and of the duties of all but the last utility level of a
-stream).  The feasible set is therefore a polytope:
+stream at its target end, and of every supply-end unit).  The feasible set is therefore a polytope:
 
 .. math::
 
@@ -48,7 +49,7 @@ from scipy.optimize import Bounds, LinearConstraint, linprog, minimize
 from ...model.costs import UnitKind
 from .problem import TacProblem, make_problem
 
-__all__ = ["TacProblem", "Topology", "TopologyModel", "TopologySolution", "make_problem", "solve_topology",
+__all__ = ["SUPPLY_END_LEVELS", "TacProblem", "Topology", "TopologyModel", "TopologySolution", "make_problem", "solve_topology",
            "polish_splits", "polish_cheapest", "unit_costs", "FINAL_POLISH", "FINAL_POLISH_STARTS",
            "FINAL_POLISH_STREAMS", "log_mean_and_gradient"]
 
@@ -58,27 +59,52 @@ constraints to within 1e-7 K, well inside the 1e-6 K tolerance of the network ch
 make problems whose utility just meets EMAT at a fixed end infeasible."""
 
 
+SUPPLY_END_LEVELS = 2
+"""Utility levels on a side from which the topology search, and the start from a MER network, use utility
+units at the streams' supply ends (:attr:`Topology.preheaters`, :attr:`Topology.precoolers`) [-].  With one
+level a supply-end unit rarely pays (the same utility serves the target end, where the stagewise form
+already has it) and would only widen every neighbourhood; problems of up to ``RESTRUCTURE_STREAMS`` streams
+of one segment put utility units anywhere in the search beyond the stagewise form (``restructure=True``,
+:mod:`heatloom.network.tac.layout_search`)."""
+
+
 @dataclass(frozen=True)
 class Topology:
-    """Which units exist: matches (hot i, cold j, stage k), heaters (cold j, level), coolers (hot i, level)."""
+    """Which units exist: matches (hot i, cold j, stage k), heaters (cold j, level) and coolers (hot i, level)
+    at the target ends, and *preheaters* (cold j, level) and *precoolers* (hot i, level) at the supply ends,
+    before the first stage a stream meets (levels in series ordered by temperature at either end: a cold
+    stream meets its hot utilities coolest first, a hot stream its cold utilities warmest first).
+
+    A utility unit at the supply end is what a site with several utility levels needs where the cheap level
+    can only serve the cool part of a cold stream (low-pressure steam raising a feed before a process
+    exchanger, dearer steam after it), or a hot stream gives its hottest part to a utility that values it
+    (steam raised from a hot reactor effluent) before meeting the process.
+    """
 
     stages: int
     matches: frozenset
     heaters: frozenset
     coolers: frozenset
+    preheaters: frozenset = frozenset()
+    precoolers: frozenset = frozenset()
 
     @property
     def units(self) -> int:
-        return len(self.matches) + len(self.heaters) + len(self.coolers)
+        return len(self.matches) + len(self.heaters) + len(self.coolers) + len(self.preheaters) + \
+            len(self.precoolers)
 
     def key(self) -> tuple:
-        return (self.stages, tuple(sorted(self.matches)), tuple(sorted(self.heaters)), tuple(sorted(self.coolers)))
+        return (self.stages, tuple(sorted(self.matches)), tuple(sorted(self.heaters)), tuple(sorted(self.coolers)),
+                tuple(sorted(self.preheaters)), tuple(sorted(self.precoolers)))
 
-    def replace(self, *, matches=None, heaters=None, coolers=None, stages=None) -> Topology:
+    def replace(self, *, matches=None, heaters=None, coolers=None, stages=None, preheaters=None,
+                precoolers=None) -> Topology:
         return Topology(self.stages if stages is None else stages,
                         frozenset(self.matches if matches is None else matches),
                         frozenset(self.heaters if heaters is None else heaters),
-                        frozenset(self.coolers if coolers is None else coolers))
+                        frozenset(self.coolers if coolers is None else coolers),
+                        frozenset(self.preheaters if preheaters is None else preheaters),
+                        frozenset(self.precoolers if precoolers is None else precoolers))
 
 
 @dataclass
@@ -115,6 +141,11 @@ class TopologyModel:
         for j in range(n_c):
             for lv in heat_by[j][:-1]:
                 extra.append(("heat", j, lv))
+        # every unit at a supply end is a variable (its duty): the stages begin where they leave the stream
+        precool_by = {i: sorted(lv for (ii, lv) in top.precoolers if ii == i) for i in range(n_h)}
+        preheat_by = {j: sorted(lv for (jj, lv) in top.preheaters if jj == j) for j in range(n_c)}
+        extra += [("precool", i, lv) for i in range(n_h) for lv in precool_by[i]]
+        extra += [("preheat", j, lv) for j in range(n_c) for lv in preheat_by[j]]
         n += len(extra)
         self.n = n
         var_of = {u: len(self.matches) + k for k, u in enumerate(extra)}
@@ -124,9 +155,28 @@ class TopologyModel:
             v[k] = 1.0
             return v
 
+        rows = []  # (kind, key, duty(c, m), hot_in, hot_out, cold_in, cold_out, U, law, price, least approach)
+
+        def supply_chain(cooling: bool, s: int, start: float, cp: float, h: float):
+            """Rows of a stream's utility units at its supply end, in series from ``start``; returns the
+            (const, coeff) temperature at which the stream enters its first stage."""
+            at = (start, np.zeros(n))
+            side, kind = ("precool", UnitKind.COOLER) if cooling else ("preheat", UnitKind.HEATER)
+            for lv in (precool_by if cooling else preheat_by)[s]:
+                util = (p.cool_levels if cooling else p.heat_levels)[lv]
+                var = unit_vec(var_of[side, s, lv])
+                stop = (at[0], at[1] - var / cp) if cooling else (at[0], at[1] + var / cp)
+                u = 1.0 / (1.0 / h + 1.0 / util.film_coefficient)
+                ends = ((util.supply_temperature, np.zeros(n)), (util.target_temperature, np.zeros(n)))
+                sides = (at, stop, *ends) if cooling else (*ends, at, stop)
+                need = p.need(s, None) if cooling else p.need(None, s)
+                rows.append((kind, (side, s, lv), (0.0, var), *sides, u, p.laws[kind], util.cost, need))
+                at = stop
+            return at
+
         # stage temperatures as (const, coeff)
-        th = {(i, 0): (p.hot_in[i], np.zeros(n)) for i in range(n_h)}
-        tc = {(j, K): (p.cold_in[j], np.zeros(n)) for j in range(n_c)}
+        th = {(i, 0): supply_chain(True, i, p.hot_in[i], p.hot_cp[i], p.hot_h[i]) for i in range(n_h)}
+        tc = {(j, K): supply_chain(False, j, p.cold_in[j], p.cold_cp[j], p.cold_h[j]) for j in range(n_c)}
         on_hot: dict[tuple[int, int], list[int]] = {}   # (hot stream, stage) → its matches' columns
         on_cold: dict[tuple[int, int], list[int]] = {}
         for idx, (i, j, k) in enumerate(self.matches):
@@ -145,7 +195,6 @@ class TopologyModel:
                 m[on_cold.get((j, k), [])] += 1.0 / p.cold_cp[j]
                 tc[j, k] = (c0, m)
         self.th, self.tc = th, tc
-        rows = []  # (kind, key, duty(c, m), hot_in, hot_out, cold_in, cold_out, U, law, price, least approach)
         for idx, (i, j, k) in enumerate(self.matches):
             u = 1.0 / (1.0 / p.hot_h[i] + 1.0 / p.cold_h[j])
             rows.append((UnitKind.EXCHANGER, (i, j, k), (0.0, unit_vec(idx)), th[i, k], th[i, k + 1], tc[j, k + 1],
@@ -238,7 +287,7 @@ class TopologyModel:
             G, g = G[keep], g[keep]
         self.G, self.g = G, g
         upper = [min(p.hot_duty[i], p.cold_duty[j]) for (i, j, _) in self.matches] + \
-            [p.hot_duty[key[1]] if key[0] == "cool" else p.cold_duty[key[1]] for key in extra]
+            [p.hot_duty[key[1]] if key[0] in ("cool", "precool") else p.cold_duty[key[1]] for key in extra]
         # generous upper bounds: the balances bound every load already, and bounds that coincide with an
         # equality (a stream's only unit) make the refinement's subproblems degenerate
         self.bounds = [(self.qmin, 4.0 * max(ub, self.qmin)) for ub in upper]

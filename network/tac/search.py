@@ -15,7 +15,9 @@ The sequence (DEVELOPERS.md, "Method notes"):
    have their split fractions freed (:func:`heatloom.network.tac.nlp.polish_splits`: branches may then
    leave a stage at different temperatures, non-isothermal mixing), and keep that only when it is cheaper.
 3. **Topology search** (iterated local search): remove a unit, add a match (in an existing stage or a new
-   one), move a match to another stage, add or remove a utility unit, each neighbour refined by step 2;
+   one), move a match to another stage, add or remove a utility unit (at a stream's target end, or at its
+   supply end where the side has two or more utility levels: a cheap, cool steam level preheating a cold
+   stream before its process exchangers), each neighbour refined by step 2;
    local optima are kicked by a few random moves, more as the walk stalls.  Several starts run in
    parallel in local processes (:func:`heatloom.tasks.local_pool`: from a fork server, one BLAS thread each;
    see :func:`heatloom.tasks.pool_context`), each with its own random stream derived from ``seed``; start 0
@@ -71,6 +73,7 @@ from ..structure import Network, check_network
 from .build import keeping_rules, network_from_solution
 from .layout_search import RESTRUCTURE_SHARE, RESTRUCTURE_STALL, RESTRUCTURE_STREAMS, beyond_stagewise
 from .nlp import (
+    SUPPLY_END_LEVELS,
     TacProblem,
     Topology,
     TopologySolution,
@@ -134,8 +137,7 @@ def canonical(top: Topology, guess: dict | None = None) -> tuple[Topology, dict 
     """Drop the stages with no match (renumbering the rest) and re-key a guess of loads to match."""
     used = sorted({k for (_, _, k) in top.matches})
     remap = {k: n for n, k in enumerate(used)}
-    out = Topology(max(len(used), 1), frozenset((i, j, remap[k]) for (i, j, k) in top.matches), top.heaters,
-                   top.coolers)
+    out = top.replace(stages=max(len(used), 1), matches=((i, j, remap[k]) for (i, j, k) in top.matches))
     if guess is None:
         return out, None
     g = {}
@@ -149,16 +151,19 @@ def canonical(top: Topology, guess: dict | None = None) -> tuple[Topology, dict 
 
 def unit_kinds(top: Topology) -> list:
     """The kind of every unit of a topology, as in :attr:`TacProblem.required`: ("x", i, j) per match (once
-    per stage it is in), ("heat", j, level), ("cool", i, level)."""
-    return [("x", i, j) for (i, j, _) in top.matches] + [("heat", *h) for h in top.heaters] + \
-        [("cool", *c) for c in top.coolers]
+    per stage it is in), ("heat", j, level) per heater or preheater, ("cool", i, level) per cooler or
+    precooler."""
+    return [("x", i, j) for (i, j, _) in top.matches] + [("heat", *h) for h in (*top.heaters, *top.preheaters)] + \
+        [("cool", *c) for c in (*top.coolers, *top.precoolers)]
 
 
 def _without(top: Topology, keys) -> Topology:
     ks = set(keys)
-    return Topology(top.stages, frozenset(m for m in top.matches if m not in ks),
-                    frozenset(h for h in top.heaters if ("heat", *h) not in ks),
-                    frozenset(c for c in top.coolers if ("cool", *c) not in ks))
+    return top.replace(matches=(m for m in top.matches if m not in ks),
+                       heaters=(h for h in top.heaters if ("heat", *h) not in ks),
+                       coolers=(c for c in top.coolers if ("cool", *c) not in ks),
+                       preheaters=(h for h in top.preheaters if ("preheat", *h) not in ks),
+                       precoolers=(c for c in top.precoolers if ("precool", *c) not in ks))
 
 
 class _Search:
@@ -214,8 +219,14 @@ class _Search:
         kinds = unit_kinds(top)
         mv: list = [("remove", m) for m in sorted(top.matches)
                     if ("x", m[0], m[1]) not in p.required or kinds.count(("x", m[0], m[1])) > 1]
-        mv += [("remove", ("heat", *h)) for h in sorted(top.heaters) if ("heat", *h) not in p.required]
-        mv += [("remove", ("cool", *c)) for c in sorted(top.coolers) if ("cool", *c) not in p.required]
+        mv += [("remove", ("heat", *h)) for h in sorted(top.heaters) if ("heat", *h) not in p.required
+               or kinds.count(("heat", *h)) > 1]
+        mv += [("remove", ("cool", *c)) for c in sorted(top.coolers) if ("cool", *c) not in p.required
+               or kinds.count(("cool", *c)) > 1]
+        mv += [("remove", ("preheat", *h)) for h in sorted(top.preheaters) if ("heat", *h) not in p.required
+               or kinds.count(("heat", *h)) > 1]
+        mv += [("remove", ("precool", *c)) for c in sorted(top.precoolers) if ("cool", *c) not in p.required
+               or kinds.count(("cool", *c)) > 1]
         for i in range(nh):
             for j in range(nc):
                 if not p.can_match(i, j):
@@ -232,6 +243,12 @@ class _Search:
                if (j, lv) not in top.heaters and p.heat_level_possible(j, lv)]
         mv += [("add_cooler", (i, lv)) for i in range(nh) for lv in range(len(p.cool_levels))
                if (i, lv) not in top.coolers and p.cool_level_possible(i, lv)]
+        if len(p.heat_levels) >= SUPPLY_END_LEVELS:
+            mv += [("add_preheater", (j, lv)) for j in range(nc) for lv in range(len(p.heat_levels))
+                   if (j, lv) not in top.preheaters and p.heat_level_possible(j, lv)]
+        if len(p.cool_levels) >= SUPPLY_END_LEVELS:
+            mv += [("add_precooler", (i, lv)) for i in range(nh) for lv in range(len(p.cool_levels))
+                   if (i, lv) not in top.precoolers and p.cool_level_possible(i, lv)]
         return mv
 
     def _new_load(self, i: int, j: int, utility: dict) -> float:
@@ -244,20 +261,23 @@ class _Search:
         utility = utility or {}
         kind, arg = move[0], move[1]
         matches, heaters, coolers = set(top.matches), set(top.heaters), set(top.coolers)
+        preheaters, precoolers = set(top.preheaters), set(top.precoolers)
         loads = dict(loads)
         K = top.stages
         if kind == "remove":
             if _is_match(arg):
                 matches.discard(arg)
                 loads.pop(arg, None)
-            elif arg[0] == "heat":
-                heaters.discard(arg[1:])
             else:
-                coolers.discard(arg[1:])
+                {"heat": heaters, "cool": coolers, "preheat": preheaters, "precool": precoolers}[arg[0]].discard(arg[1:])
         elif kind == "add_heater":
             heaters.add(arg)
         elif kind == "add_cooler":
             coolers.add(arg)
+        elif kind == "add_preheater":
+            preheaters.add(arg)
+        elif kind == "add_precooler":
+            precoolers.add(arg)
         elif kind in ("add", "move"):
             if kind == "move":
                 matches.discard(arg)
@@ -287,7 +307,8 @@ class _Search:
             if q is not None:
                 loads[i, j, pos] = q
             K += 1
-        return Topology(K, frozenset(matches), frozenset(heaters), frozenset(coolers)), loads
+        return Topology(K, frozenset(matches), frozenset(heaters), frozenset(coolers), frozenset(preheaters),
+                        frozenset(precoolers)), loads
 
     def local_search(self, sol: TopologySolution) -> TopologySolution:
         """First improvement over the neighbours in random order, until ``patience`` of them in a row (or all)
@@ -700,14 +721,15 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
 def _mer_as_result(p: TacProblem, mer: Network, net: Network | None, streams, utilities, notes, budget,
                    forbidden, required) -> Network:
     """The starting MER network as the result, when it costs less than every stagewise network found: its
-    utility units may sit where the stagewise form cannot put them (a heater before a process exchanger
-    on a cold stream, fed by a cheaper, cooler utility level).  Checked with EMAT and the contributions."""
+    utility units may sit where the stagewise form cannot put them (a heater between two process exchangers
+    on a cold stream, fed by a cheaper, cooler utility level; the stagewise form has utility units at the
+    stream ends only, supply or target).  Checked with EMAT and the contributions."""
     than = (f"less than the cheapest stagewise network the search found ({net.total_annual_cost:,.0f})"
             if net is not None else "and no stagewise network found passed the final check")
     why = (f"the starting MER network (ΔTmin {mer.dt_min:g} K) costs {mer.total_annual_cost:,.0f} "
            f"{mer.currency}/year, {than}: it is given as designed, with its ΔTmin kept in every unit (its "
-           "utility units sit where the stagewise form, with utility units at the stream ends, cannot put them: "
-           "the search needs a utility unit before a process exchanger on a stream)")
+           "utility units may sit where the stagewise form, with utility units at the supply and target ends of "
+           "the streams only, cannot put them: between two process exchangers on a stream)")
     kept = [n for n in notes if not n.startswith(("isothermal mixing", "stream splits with free flow fractions"))]
     result = replace(mer, dt_min=p.emat, notes=(*kept, why), solves=tuple(budget.reports))
     check_network(result, streams, utilities, dt_min=p.emat, contributions=True)

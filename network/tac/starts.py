@@ -30,7 +30,7 @@ from ...errors import InfeasibleError, InputError, SolverError
 from ...model.costs import UnitKind
 from ..solvers import Budget, new_variable
 from ..structure import Network
-from .nlp import TacProblem, Topology, TopologySolution, unit_costs
+from .nlp import SUPPLY_END_LEVELS, TacProblem, Topology, TopologySolution, unit_costs
 
 __all__ = ["stagewise_milp", "unit_estimates", "topology_from_network", "mer_network", "contracted_levels",
            "MER_SHARE", "MER_CAP"]
@@ -218,15 +218,33 @@ def topology_from_network(p: TacProblem, net: Network) -> Topology | None:
     units of one stream at different temperatures) has no stagewise form: then its smallest exchangers are
     left out one by one until the rest has one, and the streams that lost an exchanger get a utility unit
     at their end where a utility can serve them (the search may add matches back).  Utility units are put
-    at the stream ends, one per stream that uses any.
+    at the stream ends, one per stream and level that uses any: at the supply end
+    (:attr:`Topology.preheaters`, :attr:`Topology.precoolers`) where the network has them before every
+    exchanger of their stream and the side has :data:`heatloom.network.tac.nlp.SUPPLY_END_LEVELS` levels
+    or more, else at the target end.
     """
     hot_idx = {n: k for k, n in enumerate(p.hot_names)}
     cold_idx = {n: k for k, n in enumerate(p.cold_names)}
     ex = [e for e in net.exchangers if e.hot in hot_idx and e.cold in cold_idx]
-    heaters = {(cold_idx[h.cold], lv) for h in net.heaters if h.cold in cold_idx
-               for lv, u in enumerate(p.heat_levels) if u.name == h.utility}
-    coolers = {(hot_idx[c.hot], lv) for c in net.coolers if c.hot in hot_idx
-               for lv, u in enumerate(p.cool_levels) if u.name == c.utility}
+    tol = 1e-6
+
+    def supply_end_heater(h) -> bool:   # below every exchanger of its cold stream
+        below = [e.cold_in for e in ex if e.cold == h.cold]
+        return len(p.heat_levels) >= SUPPLY_END_LEVELS and bool(below) and h.cold_out <= min(below) + tol
+
+    def supply_end_cooler(c) -> bool:   # above every exchanger of its hot stream
+        above = [e.hot_in for e in ex if e.hot == c.hot]
+        return len(p.cool_levels) >= SUPPLY_END_LEVELS and bool(above) and c.hot_out >= max(above) - tol
+
+    heaters, preheaters, coolers, precoolers = set(), set(), set(), set()
+    for h in net.heaters:
+        for lv, u in enumerate(p.heat_levels):
+            if h.cold in cold_idx and u.name == h.utility:
+                (preheaters if supply_end_heater(h) else heaters).add((cold_idx[h.cold], lv))
+    for c in net.coolers:
+        for lv, u in enumerate(p.cool_levels):
+            if c.hot in hot_idx and u.name == c.utility:
+                (precoolers if supply_end_cooler(c) else coolers).add((hot_idx[c.hot], lv))
     left_out: list = []
     while True:
         matches = _stagewise_matches(ex, hot_idx, cold_idx)
@@ -243,7 +261,8 @@ def topology_from_network(p: TacProblem, net: Network) -> Topology | None:
         if not any(h[0] == j for h in heaters):
             heaters.update((j, lv) for lv in range(len(p.heat_levels))[-1:] if p.heat_level_possible(j, lv))
     stages = max((k for (_, _, k) in matches), default=0) + 1
-    return Topology(stages, frozenset(matches), frozenset(heaters), frozenset(coolers))
+    return Topology(stages, frozenset(matches), frozenset(heaters), frozenset(coolers), frozenset(preheaters),
+                    frozenset(precoolers))
 
 
 def contracted_levels(count: int, together, before) -> list[int] | None:
