@@ -8,11 +8,13 @@ up to 10 streams, <= 1.01 on 15-40 streams, each run under 5 minutes.
 
 Then generated problems of 20 and 40 streams (--generated; invented data, fixed seed, made by a copy of the
 generator of benchmarks/bench_design.py, with invented utilities and cost law, see :func:`generated_case`)
-get a row each with their TAC, units, splits and wall time (there is no published TAC to compare with).
+get a row each with their TAC, units, splits and wall time (there is no published TAC to compare with);
+--steam-levels gives them three steam levels, steam raising and cooling water instead (utility units at
+the streams' supply ends come into play: compare with an older checkout for what they are worth).
 Asserts nothing; run:
 
     python benchmarks/bench_tac.py [--time-limit 290] [--seed 0] [--starts 2] [--rounds N] [--only NAME]
-                                   [--generated 20 40] [--no-published] [--restructure]
+                                   [--generated 20 40] [--no-published] [--restructure] [--steam-levels]
 
 Without --rounds the search runs until the time limit (results then depend on the machine's speed).
 """
@@ -65,10 +67,22 @@ def problem(path: Path):
     return data, streams, utilities, costs
 
 
-def generated_case(n: int):
+def generated_case(n: int, steam_levels: bool = False):
     """Invented TAC case of n streams: the generated streams, steam at 320 °C (80 per kW·year, h 3), cooling
-    water 10 → 15 °C (10 per kW·year, h 1.5), every unit 8000 + 500·A^0.75 per year (annualised)."""
-    utilities = [Utility("HU", 320, 320, 80.0, UtilityKind.HOT, 3.0), Utility("CU", 10, 15, 10.0, UtilityKind.COLD, 1.5)]
+    water 10 → 15 °C (10 per kW·year, h 1.5), every unit 8000 + 500·A^0.75 per year (annualised).
+
+    With ``steam_levels`` (also invented): a site's utilities instead, HP steam at 320 °C (80), MP steam
+    at 210 °C (60), LP steam at 150 °C (40), all h 3; steam raised at 140 °C from boiler feed water as a
+    cold utility (2 per kW·year, h 3) and the same cooling water."""
+    if steam_levels:
+        utilities = [Utility("HP steam", 320, 319, 80.0, UtilityKind.HOT, 3.0),
+                     Utility("MP steam", 210, 209, 60.0, UtilityKind.HOT, 3.0),
+                     Utility("LP steam", 150, 149, 40.0, UtilityKind.HOT, 3.0),
+                     Utility("steam raising", 140, 141, 2.0, UtilityKind.COLD, 3.0),
+                     Utility("CU", 10, 15, 10.0, UtilityKind.COLD, 1.5)]
+    else:
+        utilities = [Utility("HU", 320, 320, 80.0, UtilityKind.HOT, 3.0),
+                     Utility("CU", 10, 15, 10.0, UtilityKind.COLD, 1.5)]
     return generated(n), utilities, CostSettings(annualised=True, exchanger=CostLaw(8000.0, 500.0, 0.75))
 
 
@@ -96,6 +110,9 @@ def main() -> None:
     ap.add_argument("--generated", type=int, nargs="*", default=[20, 40],
                     help="sizes of the generated (invented) problems to run after the published ones")
     ap.add_argument("--no-published", action="store_true", help="run only the generated problems")
+    ap.add_argument("--steam-levels", action="store_true",
+                    help="give the generated problems a site's utilities (three steam levels, steam raising and "
+                         "cooling water, invented) instead of one steam level and cooling water")
     ap.add_argument("--restructure", action="store_true",
                     help="give the last part of the time limit to the search beyond the stagewise form "
                          "(design_tac(restructure=True): units moved along their streams, utility units on "
@@ -126,14 +143,15 @@ def main() -> None:
             if note.startswith(("TAC search", "the time limit", "search beyond", "the stagewise search")):
                 print(f"    {note}", file=sys.stderr)
     for n in args.generated or ():
-        streams, utilities, costs = generated_case(n)
+        streams, utilities, costs = generated_case(n, args.steam_levels)
         t0 = time.perf_counter()
         net = design_tac(streams, utilities, costs=costs, emat=1.0, time_limit=args.time_limit, seed=args.seed,
                          starts=args.starts, rounds=args.rounds if args.rounds is not None else 10 ** 6,
                          restructure=args.restructure)
         wall = time.perf_counter() - t0
         hot = sum(s.is_hot for s in streams)
-        row = (f"{f'generated {n} ({hot}h{n - hot}c, invented)':<34} {n:>7} {net.total_annual_cost:>12,.0f} "
+        label = f"generated {n} ({hot}h{n - hot}c{', steam levels' * args.steam_levels})"
+        row = (f"{label:<34} {n:>7} {net.total_annual_cost:>12,.0f} "
                f"{'-':>14} {'-':>7} {'-':>6} {net.units:>5} {splits(net):>6} {wall:>8.1f} {args.seed:>4}  "
                "(no published value: invented data)")
         print(row, flush=True)
