@@ -269,7 +269,9 @@ class TopologyModel:
         # load >= its least load
         need = self.need + APPROACH_MARGIN
         util_rows = [k for k, kind in enumerate(self.kinds) if kind is not UnitKind.EXCHANGER]
-        kinds = [("x", key[0], key[1]) if kind is UnitKind.EXCHANGER else key for kind, key in zip(self.kinds, self.keys)]
+        supply_end = {"preheat": "heat", "precool": "cool"}   # the same unit kind for the match rules
+        kinds = [("x", key[0], key[1]) if kind is UnitKind.EXCHANGER else (supply_end.get(key[0], key[0]), *key[1:])
+                 for kind, key in zip(self.kinds, self.keys)]
         required = sorted(p.required & set(kinds), key=str)
         of = np.array([[float(k == r) for k in kinds] for r in required]).reshape(len(required), len(rows))
         self.required_rows = (of @ self.duty.m, of @ self.duty.c - np.array([p.least_load(r) for r in required]))

@@ -202,3 +202,23 @@ def test_a_boiling_feed_is_preheated_by_two_steam_levels_and_costs_less_than_the
     assert {h.utility for h in net.heaters} == {"LP steam", "MP steam"}
     assert all(h.cold_out <= x.cold_in + 1e-6 for h in net.heaters)
     assert min(h.cold_in for h in net.heaters) == 125.0
+
+
+def test_match_rules_hold_for_supply_end_units():
+    """With LP steam dearer than HP steam (125 against 120 per kW·year) nothing asks for it; required, it
+    is the preheater (below the exchanger it cannot serve C) and carries at least the required least load,
+    a tenth of the most LP steam could give C alone: 10 kW/K × (149 − 100) K × 0.1 = 49 kW.  Forbidden
+    (at its usual price), it appears nowhere on the stream."""
+    streams, utilities = preheat_case()
+    kw = {"costs": COSTS, "emat": EMAT, "seed": 0, "starts": 1, "rounds": 3, "workers": 1, "time_limit": 60}
+    dear = [Utility(u.name, u.supply_temperature, u.target_temperature, 125.0, u.kind, u.film_coefficient)
+            if u.name == "LP steam" else u for u in utilities]
+    assert not any(h.utility == "LP steam" for h in design_tac(streams, dear, **kw).heaters)
+    net = design_tac(streams, dear, required=[("LP steam", "C")], **kw)
+    lp = [h for h in net.heaters if h.utility == "LP steam"]
+    assert sum(h.duty for h in lp) >= 49.0 - 1e-6
+    x = next(e for e in net.exchangers if e.cold == "C")
+    assert all(h.cold_out <= x.cold_in + 1e-6 for h in lp)
+    net = design_tac(streams, utilities, forbidden=[("LP steam", "C")], **kw)
+    assert not any(h.utility == "LP steam" for h in net.heaters)
+    check_network(net, streams, utilities, dt_min=EMAT)
