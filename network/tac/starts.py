@@ -63,7 +63,9 @@ def stagewise_milp(p: TacProblem, stages: int, estimates: dict, *, name: str = "
     q ≤ Ω z and approach constraints ΔT ≥ EMAT − Γ(1 − z) at both ends of every unit (the sum of the sides'
     ΔTmin contributions instead of EMAT where larger, :meth:`TacProblem.need`) (Yee & Grossmann 1990,
     constraints (1)-(12)), with utility units at the stream ends, one per utility level in series ordered
-    by temperature.  Forbidden unit kinds have no variables (:meth:`TacProblem.can_match` and the level
+    by temperature: at the target ends, and at the supply ends too (preheaters, precoolers, before the
+    first stage) where a side has :data:`heatloom.network.tac.nlp.SUPPLY_END_LEVELS` levels or more.
+    Forbidden unit kinds have no variables (:meth:`TacProblem.can_match` and the level
     checks); a required one carries at least :meth:`TacProblem.least_load`.  The per-kW area costs
     :math:`c` are secants of b·(Q/(U·θ))^c through zero at an estimated load Q̂ and approach θ̂
     (``estimates``), updated by the caller from refined networks.
@@ -84,8 +86,59 @@ def stagewise_milp(p: TacProblem, stages: int, estimates: dict, *, name: str = "
                             [u.supply_temperature for u in (*p.heat_levels, *p.cool_levels)]])
     needs = [p.need(i, j) for i in (*range(nh), None) for j in (*range(nc), None)]
     gamma = float(temps.max() - temps.min() + 2 * max(needs))   # EMAT without contributions
-    th = {(i, 0): float(p.hot_in[i]) for i in range(nh)}
-    tc = {(j, K): float(p.cold_in[j]) for j in range(nc)}
+    util_q, util_z = {}, {}
+    cost_terms = []
+
+    def guess(key, default_load, default_dt):
+        return estimates.get(key, (default_load, default_dt))
+
+    def utility_chain(side: str, s: int, start, levels_used):
+        """Utility units of one stream in series from ``start`` (a temperature or an expression); their
+        variables, rows and cost terms; returns (the temperature after them, their duties)."""
+        nonlocal prob
+        cooling = side in ("cool", "precool")
+        levels = p.cool_levels if cooling else p.heat_levels
+        cp = p.hot_cp[s] if cooling else p.cold_cp[s]
+        duty = p.hot_duty[s] if cooling else p.cold_duty[s]
+        h_s = p.hot_h[s] if cooling else p.cold_h[s]
+        before, total = start, []
+        for lv in levels_used:
+            util = levels[lv]
+            key = (side, s, lv)
+            util_q[key] = new_variable(prob, f"q{side}_{s}_{lv}", 0, float(duty))
+            util_z[key] = new_variable(prob, f"z{side}_{s}_{lv}", cat=pulp.LpBinary)
+            prob += util_q[key] <= float(duty) * util_z[key]
+            after = before + (-1.0 if cooling else 1.0) * util_q[key] * (1.0 / cp)
+            need = p.need(s, None) if cooling else p.need(None, s)
+            if cooling:   # hot end: stream before − utility outlet; cold end: after − utility inlet
+                prob += before - util.target_temperature >= need - gamma * (1 - util_z[key])
+                prob += after - util.supply_temperature >= need - gamma * (1 - util_z[key])
+                dt0 = max(0.5 * (p.hot_out[s] + p.hot_in[s]) - util.target_temperature, 2 * p.emat)
+            else:
+                prob += util.supply_temperature - after >= need - gamma * (1 - util_z[key])
+                prob += util.target_temperature - before >= need - gamma * (1 - util_z[key])
+                dt0 = max(util.target_temperature - 0.5 * (p.cold_out[s] + p.cold_in[s]), 2 * p.emat)
+            u = 1.0 / (1.0 / h_s + 1.0 / util.film_coefficient)
+            load, dt = guess(key, 0.5 * duty, dt0)
+            law = p.laws[UnitKind.COOLER if cooling else UnitKind.HEATER]
+            cost_terms.append(law[0] * util_z[key] + (_unit_area_cost_per_kw(law, u, load, dt) + util.cost)
+                              * util_q[key])
+            total.append(util_q[key])
+            before = after
+        return before, total
+
+    def possible(cooling: bool, s: int) -> list:
+        levels = p.cool_levels if cooling else p.heat_levels
+        return [lv for lv in range(len(levels))
+                if (p.cool_level_possible(s, lv) if cooling else p.heat_level_possible(s, lv))]
+
+    # utility units at the supply ends (several levels on a side only), then the stages
+    pre_cool = len(p.cool_levels) >= SUPPLY_END_LEVELS
+    pre_heat = len(p.heat_levels) >= SUPPLY_END_LEVELS
+    th = {(i, 0): utility_chain("precool", i, float(p.hot_in[i]), possible(True, i) if pre_cool else [])[0]
+          for i in range(nh)}
+    tc = {(j, K): utility_chain("preheat", j, float(p.cold_in[j]), possible(False, j) if pre_heat else [])[0]
+          for j in range(nc)}
     for i in range(nh):
         for k in range(1, K + 1):
             th[i, k] = new_variable(prob, f"th_{i}_{k}", float(p.hot_out[i]), float(p.hot_in[i]))
@@ -93,11 +146,6 @@ def stagewise_milp(p: TacProblem, stages: int, estimates: dict, *, name: str = "
         for k in range(K):
             tc[j, k] = new_variable(prob, f"tc_{j}_{k}", float(p.cold_in[j]), float(p.cold_out[j]))
     q, z = {}, {}
-    cost_terms = []
-
-    def guess(key, default_load, default_dt):
-        return estimates.get(key, (default_load, default_dt))
-
     for i in range(nh):
         for j in range(nc):
             if not p.can_match(i, j):
@@ -128,57 +176,31 @@ def stagewise_milp(p: TacProblem, stages: int, estimates: dict, *, name: str = "
         for k in range(K):
             prob += p.cold_cp[j] * (tc[j, k] - tc[j, k + 1]) == pulp.lpSum(
                 q[i, j, k] for i in range(nh) if (i, j, k) in q)
-    util_q, util_z = {}, {}
-    # utility units in series at the stream ends
-    for side in ("cool", "heat"):
-        count = nh if side == "cool" else nc
-        levels = p.cool_levels if side == "cool" else p.heat_levels
+    # utility units in series at the target ends; a required heater or cooler carries its least load in all
+    # its units together (target and supply ends)
+    for cooling, count in ((True, nh), (False, nc)):
+        side = "cool" if cooling else "heat"
         for s in range(count):
-            possible = [lv for lv in range(len(levels))
-                        if (p.cool_level_possible(s, lv) if side == "cool" else p.heat_level_possible(s, lv))]
-            cp = p.hot_cp[s] if side == "cool" else p.cold_cp[s]
-            duty = p.hot_duty[s] if side == "cool" else p.cold_duty[s]
-            end = th[s, K] if side == "cool" else tc[s, 0]
-            target = p.hot_out[s] if side == "cool" else p.cold_out[s]
-            h_s = p.hot_h[s] if side == "cool" else p.cold_h[s]
-            before = end
-            total = []
-            for lv in possible:
-                util = levels[lv]
-                key = (side, s, lv)
-                util_q[key] = new_variable(prob, f"q{side}_{s}_{lv}", 0, float(duty))
-                util_z[key] = new_variable(prob, f"z{side}_{s}_{lv}", cat=pulp.LpBinary)
-                prob += util_q[key] <= float(duty) * util_z[key]
-                if key in p.required:
-                    prob += util_q[key] >= p.least_load(key)
-                sign = -1.0 if side == "cool" else 1.0
-                after = before + sign * util_q[key] * (1.0 / cp)
-                need = p.need(s, None) if side == "cool" else p.need(None, s)
-                if side == "cool":   # hot end: stream before − utility outlet; cold end: after − utility inlet
-                    prob += before - util.target_temperature >= need - gamma * (1 - util_z[key])
-                    prob += after - util.supply_temperature >= need - gamma * (1 - util_z[key])
-                    dt0 = max(0.5 * (p.hot_out[s] + p.hot_in[s]) - util.target_temperature, 2 * p.emat)
-                else:
-                    prob += util.supply_temperature - after >= need - gamma * (1 - util_z[key])
-                    prob += util.target_temperature - before >= need - gamma * (1 - util_z[key])
-                    dt0 = max(util.target_temperature - 0.5 * (p.cold_out[s] + p.cold_in[s]), 2 * p.emat)
-                u = 1.0 / (1.0 / h_s + 1.0 / util.film_coefficient)
-                load, dt = guess(key, 0.5 * duty, dt0)
-                law = p.laws[UnitKind.COOLER if side == "cool" else UnitKind.HEATER]
-                cost_terms.append(law[0] * util_z[key] + (_unit_area_cost_per_kw(law, u, load, dt) + util.cost)
-                                  * util_q[key])
-                total.append(util_q[key])
-                before = after
-            sign = 1.0 if side == "cool" else -1.0
+            cp = p.hot_cp[s] if cooling else p.cold_cp[s]
+            end = th[s, K] if cooling else tc[s, 0]
+            target = p.hot_out[s] if cooling else p.cold_out[s]
+            _, total = utility_chain(side, s, end, possible(cooling, s))
+            sign = 1.0 if cooling else -1.0
             prob += cp * sign * (end - target) == pulp.lpSum(total)
+    for kind in sorted(p.required, key=str):
+        units = [v for key, v in util_q.items() if key[0].endswith(kind[0]) and key[1:] == kind[1:]]
+        if kind[0] in ("heat", "cool") and units:
+            prob += pulp.lpSum(units) >= p.least_load(kind)
     prob += pulp.lpSum(cost_terms)
 
     def read() -> Topology:
         tol = 1e-6 * p.scale
         matches = frozenset(k for k, v in q.items() if (v.varValue or 0.0) > tol)
-        heaters = frozenset((s, lv) for (side, s, lv), v in util_q.items() if side == "heat" and (v.varValue or 0) > tol)
-        coolers = frozenset((s, lv) for (side, s, lv), v in util_q.items() if side == "cool" and (v.varValue or 0) > tol)
-        return Topology(K, matches, heaters, coolers)
+
+        def kept(side):
+            return frozenset((s, lv) for (sd, s, lv), v in util_q.items() if sd == side and (v.varValue or 0) > tol)
+
+        return Topology(K, matches, kept("heat"), kept("cool"), kept("preheat"), kept("precool"))
 
     return prob, read
 

@@ -17,8 +17,11 @@ import pytest
 from heatloom.model import Segment, Stream, StreamTable, Utility, UtilityKind
 from heatloom.model.costs import CostLaw, CostSettings
 from heatloom.network.design import design_mer
+from heatloom.network.solvers import solve
 from heatloom.network.structure import check_network
+from heatloom.network.tac.problem import make_problem
 from heatloom.network.tac.search import design_tac
+from heatloom.network.tac.starts import stagewise_milp
 
 LAW = (1000.0, 300.0, 0.8)   # money/year = 1000 + 300·A^0.8, A in m² (invented, annualised)
 COSTS = CostSettings(annualised=True, exchanger=CostLaw(*LAW))
@@ -222,3 +225,19 @@ def test_match_rules_hold_for_supply_end_units():
     net = design_tac(streams, utilities, forbidden=[("LP steam", "C")], **kw)
     assert not any(h.utility == "LP steam" for h in net.heaters)
     check_network(net, streams, utilities, dt_min=EMAT)
+
+
+def test_the_stagewise_milp_proposes_supply_end_units():
+    """The starting MILP (Yee & Grossmann's stagewise model with a linearised area cost) holds supply-end
+    utility units too: in the first case LP steam can serve the feed only below the exchanger (it condenses
+    at 150 °C, the exchanger leaves the feed above 148 °C), in the second the steam raised at 150 °C can only
+    take the effluent's hot end; both are worth far more than their area costs (30 against 120 per kW·year,
+    1 against 20)."""
+    for case, side, level in ((preheat_case, "preheaters", "LP steam"), (precool_case, "precoolers", "steam raising")):
+        streams, utilities = case()
+        p = make_problem(streams, utilities, COSTS, EMAT)
+        prob, read = stagewise_milp(p, 2, {})
+        solve(prob, time_limit=30)
+        top = read()
+        levels = p.heat_levels if side == "preheaters" else p.cool_levels
+        assert [levels[lv].name for _, lv in getattr(top, side)] == [level]
