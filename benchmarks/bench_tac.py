@@ -75,10 +75,10 @@ def generated_case(n: int, steam_levels: bool = False):
     at 210 °C (60), LP steam at 150 °C (40), all h 3; steam raised at 140 °C from boiler feed water as a
     cold utility (2 per kW·year, h 3) and the same cooling water."""
     if steam_levels:
-        utilities = [Utility("HP steam", 320, 319, 80.0, UtilityKind.HOT, 3.0),
-                     Utility("MP steam", 210, 209, 60.0, UtilityKind.HOT, 3.0),
-                     Utility("LP steam", 150, 149, 40.0, UtilityKind.HOT, 3.0),
-                     Utility("steam raising", 140, 141, 2.0, UtilityKind.COLD, 3.0),
+        utilities = [Utility("HP steam", 320, 320, 80.0, UtilityKind.HOT, 3.0),
+                     Utility("MP steam", 210, 210, 60.0, UtilityKind.HOT, 3.0),
+                     Utility("LP steam", 150, 150, 40.0, UtilityKind.HOT, 3.0),
+                     Utility("steam raising", 140, 140, 2.0, UtilityKind.COLD, 3.0),
                      Utility("CU", 10, 15, 10.0, UtilityKind.COLD, 1.5)]
     else:
         utilities = [Utility("HU", 320, 320, 80.0, UtilityKind.HOT, 3.0),

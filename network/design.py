@@ -31,6 +31,7 @@ every solve takes its share of what is left, and the notes name the solves that 
 
 from __future__ import annotations
 
+import time
 from collections.abc import Iterable, Sequence
 from dataclasses import replace
 
@@ -226,7 +227,8 @@ def _place(hot: list[Side], cold: list[Side], allowed: set[tuple[str, str]], lab
     why = ("no time left of the budget" if not reports else "the placement models stopped without a solution"
            + refused())
     ticked = tick_off_placement(hot, cold, forbidden=forbidden, required=mine,
-                                time_limit=max(0.5 * budget.remaining, 0.5), tries=20)
+                                time_limit=max(0.5 * budget.remaining, 0.5), tries=20,
+                                deadline=time.monotonic() + max(budget.root.remaining, 0.5))
     try:
         result = interval_placement(hot, cold, preferred=allowed, forbidden=forbidden)
     except ValueError as exc:
@@ -396,7 +398,8 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
         def place(h, c, banned=frozenset(), part=part, mine=mine):
             return tick_off_placement(h, c, forbidden=set(forbidden) | banned, required=mine,
                                       time_limit=0.6 * part.remaining, tries=500, solver=solver,
-                                      solve_time=0.6 * part.remaining, neighbourhood=0.6)
+                                      solve_time=0.6 * part.remaining, neighbourhood=0.6,
+                                      deadline=time.monotonic() + budget.root.remaining)
 
         result = place(hot, cold)
         piped, skipped, units = "", "", None

@@ -563,7 +563,8 @@ _PLAIN = ((0, 1, 2), (7, 1, 1), (0, 1, 0), (5, 1, 0), (2, 1, 2), (4, 1, 2), (3, 
 
 def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=frozenset(),
                        required=frozenset(), time_limit: float = 10.0, tries: int = 50, seed: int = 0,
-                       solver=None, solve_time: float = 0.0, neighbourhood: float = 0.0) -> TickOffResult | None:
+                       solver=None, solve_time: float = 0.0, neighbourhood: float = 0.0,
+                       deadline: float | None = None) -> TickOffResult | None:
     """Place the units of one pinch region by the tick-off rule, checking the leftover targets each step.
 
     Parameters
@@ -598,6 +599,11 @@ def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=f
         and place them again (:func:`heatloom.network.neighbourhood.improve_units`) [-]; 0 none.  They run
         when the best search has more than N − 1 units, on its units and on those placed for what it left
         (after the stagewise MILP, when that ran) when these cover every side as rectangles.
+    deadline : float, optional
+        A :func:`time.monotonic` reading [s] (the end of the whole design's budget) at which every search
+        stops, the first one too, leaving what it has not placed to the interval-by-interval placement of
+        the remainder; no search starts and no move is made after it.  None: the first search runs to its
+        end.
 
     Returns
     -------
@@ -636,7 +642,8 @@ def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=f
         rule, ahead, first = _PLAIN[n] if n < len(_PLAIN) else (int(rng.integers(8)), int(rng.choice([1, 4])),
                                                                  int(rng.integers(4)))
         noise = 0.0 if n < len(_PLAIN) else 0.5 * rng.random()
-        steps, state = tick_off_search(sides, allowed, required, tol, rng, noise, rule, ahead, first)
+        steps, state = tick_off_search(sides, allowed, required, tol, rng, noise, rule, ahead, first,
+                                       deadline=deadline)
         n += 1
         merged = merge_units(sides, [(i, j, unit, q) for i, j, unit, q, _ in steps])
         placed = [_unit(sides[i], sides[j], unit, q) for i, j, unit, q in merged]
@@ -648,6 +655,8 @@ def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=f
                 best = (score, placed, extra, state, merged)
         if time.monotonic() - start > searching or (best is not None and best[0][0] == 0 and not best[2]
                                                      and best[0][1] <= len(sides) - 1):
+            break
+        if deadline is not None and time.monotonic() >= deadline:
             break
         if best is None and n >= len(_PLAIN):   # no unperturbed search ended in a placement: none will
             break
@@ -662,6 +671,8 @@ def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=f
                 len(required - {(u.hot, u.cold) for u in (*placed, *milp)}) <= missing:
             extra = milp
     left = time_limit - (time.monotonic() - start)
+    if deadline is not None:
+        left = min(left, deadline - time.monotonic())
     rest: set = set()
     if neighbourhood > 0 and count > len(sides) - 1 and left > 0:
         if extra:   # the remainder's units as rectangles too, so that the moves can re-place them
