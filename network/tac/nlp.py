@@ -49,8 +49,8 @@ from scipy.optimize import Bounds, LinearConstraint, linprog, minimize
 from ...model.costs import UnitKind
 from .problem import TacProblem, make_problem
 
-__all__ = ["SUPPLY_END_LEVELS", "TacProblem", "Topology", "TopologyModel", "TopologySolution", "make_problem", "solve_topology",
-           "polish_splits", "polish_cheapest", "unit_costs", "FINAL_POLISH", "FINAL_POLISH_STARTS",
+__all__ = ["SUPPLY_END_LEVELS", "TacProblem", "Topology", "TopologyModel", "TopologySolution", "make_problem",
+           "solve_topology", "polish_splits", "polish_cheapest", "unit_costs", "FINAL_POLISH", "FINAL_POLISH_STARTS",
            "FINAL_POLISH_STREAMS", "log_mean_and_gradient"]
 
 APPROACH_MARGIN = 0.0

@@ -269,7 +269,8 @@ class _Search:
                 matches.discard(arg)
                 loads.pop(arg, None)
             else:
-                {"heat": heaters, "cool": coolers, "preheat": preheaters, "precool": precoolers}[arg[0]].discard(arg[1:])
+                units = {"heat": heaters, "cool": coolers, "preheat": preheaters, "precool": precoolers}
+                units[arg[0]].discard(arg[1:])
         elif kind == "add_heater":
             heaters.add(arg)
         elif kind == "add_cooler":
