@@ -554,12 +554,15 @@ def test_two_hot_utilities_on_a_published_problem_keep_the_energy_targets():
     least = {d.utility.name: d.duty for d in goal.placement.duties}
     assert sum(duty.values()) >= goal.hot_utility - 1e-6
     assert duty["HU"] >= least["HU"] - 1e-6
-    # the utility levels of a stream in series, cooler steam first
+    # a stream meets its utility levels cooler steam first: in series at its target end, or the cooler
+    # one at its supply end, below every process exchanger of the stream (a preheater)
     for s in {x.cold for x in net.heaters}:
         units = sorted((x for x in net.heaters if x.cold == s), key=lambda x: x.cold_in)
+        process = [x for x in net.exchangers if x.cold == s]
         for a, b in zip(units, units[1:]):
-            assert a.cold_out == pytest.approx(b.cold_in)
             assert {a.utility, b.utility} == {"MP", "HU"} and a.utility == "MP"
+            assert a.cold_out == pytest.approx(b.cold_in) or \
+                all(a.cold_out <= x.cold_in + 1e-6 and x.cold_out <= b.cold_in + 1e-6 for x in process)
     h = {s.name: s.segments[0].film_coefficient for s in streams}
     hu = {u.name: u for u in utilities}
     a, b, c = published_laws(data["cost_law"])["heater"]
