@@ -157,21 +157,31 @@ class TopologyModel:
 
         rows = []  # (kind, key, duty(c, m), hot_in, hot_out, cold_in, cold_out, U, law, price, least approach)
 
+        def utility_unit(side: str, s: int, lv: int, duty, start, cp: float, h: float):
+            """The row of one utility unit of stream s (``side`` "cool"/"precool" on a hot stream,
+            "heat"/"preheat" on a cold one) of (const, coeff) ``duty`` from ``start``; returns where the
+            stream leaves it."""
+            cooling = side in ("cool", "precool")
+            kind = UnitKind.COOLER if cooling else UnitKind.HEATER
+            util = (p.cool_levels if cooling else p.heat_levels)[lv]
+            if cooling:
+                stop = (start[0] - duty[0] / cp, start[1] - duty[1] / cp)
+            else:
+                stop = (start[0] + duty[0] / cp, start[1] + duty[1] / cp)
+            u = 1.0 / (1.0 / h + 1.0 / util.film_coefficient)
+            ends = ((util.supply_temperature, np.zeros(n)), (util.target_temperature, np.zeros(n)))
+            sides = (start, stop, *ends) if cooling else (*ends, start, stop)
+            need = p.need(s, None) if cooling else p.need(None, s)
+            rows.append((kind, (side, s, lv), duty, *sides, u, p.laws[kind], util.cost, need))
+            return stop
+
         def supply_chain(cooling: bool, s: int, start: float, cp: float, h: float):
             """Rows of a stream's utility units at its supply end, in series from ``start``; returns the
             (const, coeff) temperature at which the stream enters its first stage."""
             at = (start, np.zeros(n))
-            side, kind = ("precool", UnitKind.COOLER) if cooling else ("preheat", UnitKind.HEATER)
+            side = "precool" if cooling else "preheat"
             for lv in (precool_by if cooling else preheat_by)[s]:
-                util = (p.cool_levels if cooling else p.heat_levels)[lv]
-                var = unit_vec(var_of[side, s, lv])
-                stop = (at[0], at[1] - var / cp) if cooling else (at[0], at[1] + var / cp)
-                u = 1.0 / (1.0 / h + 1.0 / util.film_coefficient)
-                ends = ((util.supply_temperature, np.zeros(n)), (util.target_temperature, np.zeros(n)))
-                sides = (at, stop, *ends) if cooling else (*ends, at, stop)
-                need = p.need(s, None) if cooling else p.need(None, s)
-                rows.append((kind, (side, s, lv), (0.0, var), *sides, u, p.laws[kind], util.cost, need))
-                at = stop
+                at = utility_unit(side, s, lv, (0.0, unit_vec(var_of[side, s, lv])), at, cp, h)
             return at
 
         # stage temperatures as (const, coeff)
@@ -211,25 +221,15 @@ class TopologyModel:
                 eq_c.append(gap[0])
                 eq_m.append(gap[1])
                 return
-            side, kind = ("cool", UnitKind.COOLER) if cooling else ("heat", UnitKind.HEATER)
+            side = "cool" if cooling else "heat"
             start, remaining = end, (cp * gap[0], cp * gap[1])
             for pos, lv in enumerate(levels):
-                util = (p.cool_levels if cooling else p.heat_levels)[lv]
                 if pos < len(levels) - 1:
                     duty = (0.0, unit_vec(var_of[side, s, lv]))
                     remaining = (remaining[0], remaining[1] - duty[1])
                 else:
                     duty = remaining
-                if cooling:
-                    stop = (start[0] - duty[0] / cp, start[1] - duty[1] / cp)
-                else:
-                    stop = (start[0] + duty[0] / cp, start[1] + duty[1] / cp)
-                u = 1.0 / (1.0 / h + 1.0 / util.film_coefficient)
-                ends = ((util.supply_temperature, np.zeros(n)), (util.target_temperature, np.zeros(n)))
-                sides = (start, stop, *ends) if cooling else (*ends, start, stop)
-                need = p.need(s, None) if cooling else p.need(None, s)
-                rows.append((kind, (side, s, lv), duty, *sides, u, p.laws[kind], util.cost, need))
-                start = stop
+                start = utility_unit(side, s, lv, duty, start, cp, h)
 
         for i in range(n_h):
             utility_chain(True, i, th[i, K], p.hot_out[i], p.hot_cp[i], p.hot_h[i])

@@ -219,14 +219,11 @@ class _Search:
         kinds = unit_kinds(top)
         mv: list = [("remove", m) for m in sorted(top.matches)
                     if ("x", m[0], m[1]) not in p.required or kinds.count(("x", m[0], m[1])) > 1]
-        mv += [("remove", ("heat", *h)) for h in sorted(top.heaters) if ("heat", *h) not in p.required
-               or kinds.count(("heat", *h)) > 1]
-        mv += [("remove", ("cool", *c)) for c in sorted(top.coolers) if ("cool", *c) not in p.required
-               or kinds.count(("cool", *c)) > 1]
-        mv += [("remove", ("preheat", *h)) for h in sorted(top.preheaters) if ("heat", *h) not in p.required
-               or kinds.count(("heat", *h)) > 1]
-        mv += [("remove", ("precool", *c)) for c in sorted(top.precoolers) if ("cool", *c) not in p.required
-               or kinds.count(("cool", *c)) > 1]
+        # a utility unit, at either end; the last one of a required kind stays
+        for units, tag, kind in ((top.heaters, "heat", "heat"), (top.coolers, "cool", "cool"),
+                                 (top.preheaters, "preheat", "heat"), (top.precoolers, "precool", "cool")):
+            mv += [("remove", (tag, *u)) for u in sorted(units)
+                   if (kind, *u) not in p.required or kinds.count((kind, *u)) > 1]
         for i in range(nh):
             for j in range(nc):
                 if not p.can_match(i, j):
