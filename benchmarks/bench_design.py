@@ -17,6 +17,7 @@ the fewest-matches MILP and the stagewise placement). Asserts nothing; run:
     python benchmarks/bench_design.py --seed 12             # another set of generated problems
     python benchmarks/bench_design.py --hot-oil             # with hot oil 330 -> 250 °C (invented utilities)
     python benchmarks/bench_design.py --hot-oil --least-utility-flow   # utilities piped, no supply header
+    python benchmarks/bench_design.py --steam-levels        # a site's steam levels (invented utilities)
 
 The tick-off units are merged (a stream's staircase of partial units becomes one branch per partner,
 heatloom.network.merge) and improved by neighbourhood moves (heatloom.network.neighbourhood); --notes
@@ -39,6 +40,15 @@ from heatloom.network.structure import check_network
 HOT_OIL = (Utility("oil", 330.0, 250.0, 60.0, UtilityKind.HOT, 1.0),
            Utility("CW", 10.0, 15.0, 6.0, UtilityKind.COLD, 1.5))
 """Invented utilities of ``--hot-oil``: a hot oil whose range reaches above the cold streams' starts."""
+
+STEAM_LEVELS = (Utility("HP steam", 320, 320, 80.0, UtilityKind.HOT, 3.0),
+                Utility("MP steam", 210, 210, 60.0, UtilityKind.HOT, 3.0),
+                Utility("LP steam", 150, 150, 40.0, UtilityKind.HOT, 3.0),
+                Utility("steam raising", 140, 140, 2.0, UtilityKind.COLD, 3.0),
+                Utility("CU", 10, 15, 10.0, UtilityKind.COLD, 1.5))
+"""Invented utilities of ``--steam-levels`` (and of benchmarks/bench_tac.py): a site's HP, MP and LP steam
+(isothermal, 80, 60 and 40 per kW·year), steam raised at 140 °C from boiler feed water (2 per kW·year) and
+cooling water 10 -> 15 °C (10 per kW·year): with utility pinches inside the pinch regions."""
 
 
 def generated(n: int, seed: int = 11) -> StreamTable:
@@ -69,11 +79,17 @@ def main() -> None:
     ap.add_argument("--hot-oil", action="store_true",
                     help="design with hot oil 330 -> 250 °C (60 per kW·year, h 1) and cooling water 10 -> 15 °C "
                          "(6 per kW·year, h 1.5), both invented, instead of the assumed isothermal utilities")
+    ap.add_argument("--steam-levels", action="store_true",
+                    help="design with three steam levels, steam raising and cooling water (STEAM_LEVELS, "
+                         "invented) instead of the assumed isothermal utilities")
     ap.add_argument("--least-utility-flow", action="store_true",
                     help="keep non-isothermal utilities at their least flow (design_mer's least_utility_flow)")
     ap.add_argument("--notes", action="store_true",
                     help="print each region's note: units, those for what the tick-off steps left, searches")
     args = ap.parse_args()
+    if args.hot_oil and args.steam_levels:
+        ap.error("--hot-oil and --steam-levels are two different sets of utilities: give one")
+    utilities = HOT_OIL if args.hot_oil else STEAM_LEVELS if args.steam_levels else None
     sizes = [10, 20] if args.quick else args.sizes
     print(f"{'streams':>8} {'units':>6} {'target':>7} {'excess':>7} {'matches':>8} {'budget':>7} "
           f"{'time [s]':>9} {'check':>6} {'fallbacks':>9} {'method':>9}  statuses")
@@ -82,7 +98,7 @@ def main() -> None:
         limit = args.time_limit if args.time_limit is not None else (60.0 if n <= 40 else 300.0)
         t0 = time.perf_counter()
         try:
-            net = design_mer(table, args.dtmin, utilities=HOT_OIL if args.hot_oil else None, solver=args.solver,
+            net = design_mer(table, args.dtmin, utilities=utilities, solver=args.solver,
                              time_limit=limit, default_film_coefficient=1.0,
                              least_utility_flow=args.least_utility_flow)
         except HeatloomError as e:
@@ -91,7 +107,7 @@ def main() -> None:
             continue
         wall = time.perf_counter() - t0
         try:
-            check_network(net, table, HOT_OIL if args.hot_oil else ())
+            check_network(net, table, utilities or ())
             checked = "yes"
         except HeatloomError:
             checked = "NO"

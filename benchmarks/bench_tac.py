@@ -34,7 +34,7 @@ from heatloom.network.streamorder import stream_positions
 from heatloom.network.tac.search import design_tac
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
-from bench_design import generated  # noqa: E402  (the invented problems of the MER benchmark, same seed)
+from bench_design import STEAM_LEVELS, generated  # noqa: E402  (the invented problems of the MER benchmark, same seed)
 
 REFERENCES = Path(__file__).resolve().parents[1] / "tests" / "data" / "references"
 LAW = re.compile(r"\s*(?:(?P<fixed>[\d.]+)\s*\+\s*)?(?P<per_area>[\d.]+)\s*\*\s*A(?:\s*\*\*\s*(?P<exp>[\d.]+))?"
@@ -75,11 +75,7 @@ def generated_case(n: int, steam_levels: bool = False):
     at 210 °C (60), LP steam at 150 °C (40), all h 3; steam raised at 140 °C from boiler feed water as a
     cold utility (2 per kW·year, h 3) and the same cooling water."""
     if steam_levels:
-        utilities = [Utility("HP steam", 320, 320, 80.0, UtilityKind.HOT, 3.0),
-                     Utility("MP steam", 210, 210, 60.0, UtilityKind.HOT, 3.0),
-                     Utility("LP steam", 150, 150, 40.0, UtilityKind.HOT, 3.0),
-                     Utility("steam raising", 140, 140, 2.0, UtilityKind.COLD, 3.0),
-                     Utility("CU", 10, 15, 10.0, UtilityKind.COLD, 1.5)]
+        utilities = list(STEAM_LEVELS)
     else:
         utilities = [Utility("HU", 320, 320, 80.0, UtilityKind.HOT, 3.0),
                      Utility("CU", 10, 15, 10.0, UtilityKind.COLD, 1.5)]

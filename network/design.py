@@ -315,16 +315,56 @@ def _utility_side(u: Utility, duty: float, dt_min: float) -> Side:
                 utility=True)
 
 
-def _design_regions(t, plan) -> tuple[Region, ...]:
-    """The pinch regions a design places units in: cut at the process pinches (utility pinches are the
-    plan's business) where the cascade with the plan's utility duties carries no heat.  A process pinch
-    is not one with a non-isothermal utility whose even spread forces more than the least hot utility
-    (hot oil that must be pumped hard to reach the hottest demand): its surplus crosses the process pinch
-    to the cold utility, and a cut there would leave both regions unbalanced."""
+def _design_regions(t, plan) -> tuple[tuple[Region, tuple[Region, ...]], ...]:
+    """The pinch regions a design places units in, each with its parts between the plan's utility pinches.
+
+    The cuts are where the cascade with the plan's utility duties carries no heat (the fewest-matches
+    plan's subnetworks, :attr:`Transshipment.pinches`).  The regions are cut at the process pinches among
+    them; each region's parts are cut at the utility pinches inside it too, so that a site with several
+    steam levels can be designed level by level (the parts, one region when it holds no utility pinch).
+    A process pinch is not a cut with a non-isothermal utility whose even spread forces more than the least
+    hot utility (hot oil that must be pumped hard to reach the hottest demand): its surplus crosses the
+    process pinch to the cold utility, the plan's cascade carries heat there, and a cut would leave both
+    regions unbalanced.
+
+    The labels are those of the finest cut (:func:`pinch_regions` of every cut, hottest first); a region of
+    several parts takes ``above``, ``below`` or ``whole`` where it reaches an end of the scale, else its top
+    part's label, so that no two regions of a design share a label."""
     zero = plan.transshipment.pinches
-    scale = max(abs(p.shifted) for p in t.pinches) if t.pinches else 1.0
-    return pinch_regions([p.shifted for p in t.pinches
-                          if any(abs(p.shifted - z) <= 1e-9 * max(scale, 1.0) for z in zero)])
+    scale = max((abs(p.shifted) for p in t.pinches), default=1.0)
+    process = [z for z in zero if any(abs(p.shifted - z) <= 1e-9 * max(scale, 1.0) for p in t.pinches)]
+    parts = pinch_regions(zero)
+    out = []
+    for region in pinch_regions(process):
+        mine = tuple(r for r in parts if (region.top is None or (r.top is not None and r.top <= region.top))
+                     and (region.bottom is None or (r.bottom is not None and r.bottom >= region.bottom)))
+        if len(mine) == 1:
+            out.append((mine[0], mine))
+            continue
+        label = {(True, True): "whole", (True, False): "above", (False, True): "below"}.get(
+            (region.top is None, region.bottom is None), mine[0].label)
+        out.append((Region(label, region.top, region.bottom), mine))
+    return tuple(out)
+
+
+def _isothermal_region(u: Utility, dt_min: float, region: Region) -> bool:
+    """Whether an isothermal utility belongs to a region: a hot one releases its heat just below its
+    shifted temperature, a cold one takes it from just above (the cascade's reading,
+    :func:`heatloom.network.transshipment.transshipment`), so a level that sits on a cut belongs to the
+    region below it (hot) or above it (cold).
+
+    >>> from heatloom.model import UtilityKind
+    >>> lp = Utility("LP steam", 150.0, 150.0, 40.0, UtilityKind.HOT, 3.0)
+    >>> [_isothermal_region(lp, 10.0, r) for r in pinch_regions([211.0, 145.0])]
+    [False, False, True]
+    >>> raising = Utility("steam raising", 140.0, 140.0, 2.0, UtilityKind.COLD, 3.0)
+    >>> [_isothermal_region(raising, 10.0, r) for r in pinch_regions([211.0, 145.0])]
+    [False, True, False]
+    """
+    level = utility_shifted_range(u, dt_min)[0]
+    if u.is_hot:
+        return (region.bottom is None or region.bottom < level) and (region.top is None or level <= region.top)
+    return (region.bottom is None or region.bottom <= level) and (region.top is None or level < region.top)
 
 
 def _utility_part(u: Utility, duty: float, dt_min: float, region: Region) -> Side | None:
@@ -350,7 +390,7 @@ def _utility_part(u: Utility, duty: float, dt_min: float, region: Region) -> Sid
 
 
 def _region_sides(streams: StreamTable, utilities: Sequence[Utility], duties: dict, region: Region,
-                  r_index: int, n_regions: int, dt_min: float, scale: float):
+                  dt_min: float, scale: float):
     """The hot and cold sides of a pinch region (None when it has none)."""
     hot_sides, cold_sides = [], []
     for s in streams:
@@ -367,8 +407,7 @@ def _region_sides(streams: StreamTable, utilities: Sequence[Utility], duties: di
             side = _utility_part(u, d, dt_min, region)
             if side is not None and side.duty > 1e-9 * max(scale, 1.0):
                 (hot_sides if u.is_hot else cold_sides).append(side)
-        # an isothermal hot utility serves the top region, a cold one the bottom region
-        elif (u.is_hot and r_index == 0) or (not u.is_hot and r_index == n_regions - 1):
+        elif _isothermal_region(u, dt_min, region):
             (hot_sides if u.is_hot else cold_sides).append(_utility_side(u, d, dt_min))
     if not hot_sides and not cold_sides:
         return None
@@ -378,60 +417,110 @@ def _region_sides(streams: StreamTable, utilities: Sequence[Utility], duties: di
     return hot_sides, cold_sides
 
 
+def _tick_off_region(label, hot, cold, utilities, forbidden, required, part, deadline, solver,
+                     least_utility_flow):
+    """Units of one region by :func:`tick_off_placement`, searched until ``deadline`` (a
+    ``time.monotonic`` reading) at the latest: (units, words of the note, solve reports), or None when it
+    finds none.  Non-isothermal utilities are tried as read, from a supply header (unless
+    ``least_utility_flow``), then piped as streams of the region."""
+    names = {x.name for x in (*hot, *cold)}
+    mine = {p for p in required if p[0] in names and p[1] in names}
+
+    def place(h, c, banned=frozenset()):
+        return tick_off_placement(h, c, forbidden=set(forbidden) | banned, required=mine,
+                                  time_limit=0.6 * part.remaining, tries=500, solver=solver,
+                                  solve_time=0.6 * part.remaining, neighbourhood=0.6, deadline=deadline)
+
+    result = place(hot, cold)
+    piped, skipped, units = "", "", None
+    if result is None:
+        # cooling water and hot oil from a header: every unit takes the utility at its supply temperature
+        hot2, cold2, parallel = parallel_sides(hot, cold, utilities)
+        if parallel and least_utility_flow:
+            skipped = (f"; {', '.join(sorted(parallel))} kept at the least flow of the energy target and "
+                       "returned at the design temperature (a supply-header reading, which may use more flow, "
+                       "not tried as asked)")
+        elif parallel:
+            result = place(hot2, cold2)
+            if result is not None:
+                units = with_returns(result.placement.units, hot2, cold2, parallel)
+                piped = "; " + "; ".join(header_words(units, parallel))
+    for hot_only in _pipings(hot, cold):
+        if result is not None:
+            break
+        # the conservative reading counts hot oil's heat at its return temperature only; piped as a
+        # stream of the region (its target flow, the problem table's reading) the targets hold
+        hot2, cold2, banned, words = _utilities_as_streams(
+            hot, cold, "the tick-off method's conservative reading, the utility's heat counted at its return "
+            "temperature, left no search", hot_only=hot_only)
+        piped = f"{skipped}; {words}"
+        result = place(hot2, cold2, banned)
+    if result is None:
+        return None
+    units = list(result.placement.units if units is None else units)
+    return units, f"{_tick_off_words(result)}{piped}", [part.record(r) for r in result.reports]
+
+
 def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, required, budget, solver,
                      solves, least_utility_flow=False):
     """Units of every region by :func:`tick_off_placement`; (None, reasons) when a region has none or a
-    required pair is left out.  With ``least_utility_flow`` the supply-header reading is not tried."""
-    sides = []
-    for r_index, region in enumerate(regions):
-        got = _region_sides(streams, utilities, duties, region, r_index, len(regions), dt_min,
-                            t.table.duty_scale)
-        if got is not None:
-            sides.append((region.label, *got))
-    weights = [len(h) + len(c) for _, h, c in sides]
+    required pair is left out.  With ``least_utility_flow`` the supply-header reading is not tried.
+
+    A region that holds utility pinches (``regions`` from :func:`_design_regions`) is placed part by part
+    first (each part one steam level's share: reliable, Euler's N − 1 units per part at best) and then, with
+    what is left of its share of the budget, as a whole (fewer units where a match spans two parts, but the
+    search may find nothing); the one with fewer units is kept."""
+    def sides(region):
+        return _region_sides(streams, utilities, duties, region, dt_min, t.table.duty_scale)
+
+    groups = [(region, parts, got, [(r.label, *g) for r in parts if (g := sides(r)) is not None]
+               if len(parts) > 1 else None) for region, parts in regions if (got := sides(region)) is not None]
+    weights = [len(h) + len(c) for _, _, (h, c), _ in groups]
     placed, notes = [], []
-    for k, (label, hot, cold) in enumerate(sides):
+
+    def fail(label):
+        return None, [f"subnetwork '{label}': its cascade does not hold in the tick-off method's "
+                      "conservative reading of the utilities, or the match rules leave no placement"]
+
+    for k, (region, parts, (hot, cold), pieces) in enumerate(groups):
         part = budget.part(weights[k] / max(sum(weights[k:]), 1))
-        names = {x.name for x in (*hot, *cold)}
-        mine = {p for p in required if p[0] in names and p[1] in names}
-
-        def place(h, c, banned=frozenset(), part=part, mine=mine):
-            return tick_off_placement(h, c, forbidden=set(forbidden) | banned, required=mine,
-                                      time_limit=0.6 * part.remaining, tries=500, solver=solver,
-                                      solve_time=0.6 * part.remaining, neighbourhood=0.6,
-                                      deadline=time.monotonic() + budget.root.remaining)
-
-        result = place(hot, cold)
-        piped, skipped, units = "", "", None
-        if result is None:
-            # cooling water and hot oil from a header: every unit takes the utility at its supply temperature
-            hot2, cold2, parallel = parallel_sides(hot, cold, utilities)
-            if parallel and least_utility_flow:
-                skipped = (f"; {', '.join(sorted(parallel))} kept at the least flow of the energy target and "
-                           "returned at the design temperature (a supply-header reading, which may use more flow, "
-                           "not tried as asked)")
-            elif parallel:
-                result = place(hot2, cold2)
-                if result is not None:
-                    units = with_returns(result.placement.units, hot2, cold2, parallel)
-                    piped = "; " + "; ".join(header_words(units, parallel))
-        for hot_only in _pipings(hot, cold):
-            if result is not None:
-                break
-            # the conservative reading counts hot oil's heat at its return temperature only; piped as a
-            # stream of the region (its target flow, the problem table's reading) the targets hold
-            hot2, cold2, banned, words = _utilities_as_streams(
-                hot, cold, "the tick-off method's conservative reading, the utility's heat counted at its return "
-                "temperature, left no search", hot_only=hot_only)
-            piped = f"{skipped}; {words}"
-            result = place(hot2, cold2, banned)
-        if result is not None:
-            solves += [part.record(r) for r in result.reports]
-        if result is None:
-            return None, [f"subnetwork '{label}': its cascade does not hold in the tick-off method's "
-                          "conservative reading of the utilities, or the match rules leave no placement"]
-        notes.append(f"subnetwork '{label}': {_tick_off_words(result)}{piped}")
-        placed += [(label, p) for p in (result.placement.units if units is None else units)]
+        end = time.monotonic() + budget.root.remaining
+        if pieces is None:
+            got = _tick_off_region(region.label, hot, cold, utilities, forbidden, required, part, end, solver,
+                                   least_utility_flow)
+            if got is None:
+                return fail(region.label)
+            solves += got[2]
+            notes.append(f"subnetwork '{region.label}': {got[1]}")
+            placed += [(region.label, p) for p in got[0]]
+            continue
+        first, cut, cut_notes = part.part(0.5), [], []
+        sizes = [len(h) + len(c) for _, h, c in pieces]
+        for m, (label, h, c) in enumerate(pieces):
+            got = _tick_off_region(label, h, c, utilities, forbidden, required,
+                                   first.part(sizes[m] / max(sum(sizes[m:]), 1)), end, solver, least_utility_flow)
+            if got is None:
+                return fail(label)
+            solves += got[2]
+            cut_notes.append(f"subnetwork '{label}': {got[1]}")
+            cut += [(label, p) for p in got[0]]
+        whole = None
+        if part.remaining > part.floor:
+            whole = _tick_off_region(region.label, hot, cold, utilities, forbidden, required, part,
+                                     time.monotonic() + part.remaining, solver, least_utility_flow)
+        cuts = " and ".join(f"{r.bottom:g}" for r in parts[:-1])
+        words = (f"{region.description}, with utility pinches at {cuts} °C shifted inside: placed part by part "
+                 f"between them ({len(cut)} units, the parts' subnetworks below)"
+                 + (f" and as one subnetwork ({len(whole[0])} units)" if whole is not None else ""))
+        if whole is not None and len(whole[0]) < len(cut):
+            solves += whole[2]
+            notes.append(f"{words}: kept as one, subnetwork '{region.label}': {whole[1]}")
+            placed += [(region.label, p) for p in whole[0]]
+        else:
+            notes += [f"{words}: kept part by part"
+                      + ("" if whole is not None else " (no placement as one subnetwork within its share of "
+                         "the budget)"), *cut_notes]
+            placed += cut
     missing = sorted(required - {(p.hot, p.cold) for _, p in placed})
     if missing:
         return None, ["required match" + ("es " if len(missing) > 1 else " ")
@@ -485,15 +574,16 @@ def _must_pipe(hot: list[Side], cold: list[Side], forbidden) -> bool:
 
 def _chain_design(streams, utilities, plan, regions, t, dt_min, forbidden, required, solver, budget, notes,
                   solves):
-    """Units of every region placed for the planned matches (:func:`_place`); adds notes and solves."""
+    """Units of every part of every region (``regions`` from :func:`_design_regions`: the plan's
+    subnetworks, cut at the process and utility pinches alike) placed for the planned matches
+    (:func:`_place`); adds notes and solves."""
     notes.append(f"minimum matches {plan.number_of_matches} "
                  f"({'proven minimal' if plan.proven_minimum else 'best found within the time limit'}); "
                  f"minimum-units target {plan.unit_target} (N − 1 per pinch subnetwork)")
     notes += plan.notes
     groups = []   # (label, hot sides, cold sides, planned pairs, (subnetwork, its matches in the group) or None)
-    for r_index, region in enumerate(regions):
-        got = _region_sides(streams, utilities, plan.utility_duties, region, r_index, len(regions), dt_min,
-                            t.table.duty_scale)
+    for region in (r for _, parts in regions for r in parts):
+        got = _region_sides(streams, utilities, plan.utility_duties, region, dt_min, t.table.duty_scale)
         if got is None:
             continue
         hot_sides, cold_sides = got

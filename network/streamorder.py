@@ -49,13 +49,23 @@ temperature the groups grow as C(n, 12) (a split of 36 equal branches took 12 s)
 gives up and the stream falls back to the grid order (:func:`unordered_streams` names it; ``design`` says so
 in its notes)."""
 
-_REGION_RANK = {"above": 0, "whole": 0, "below": 2}
+
+def _region_rank(label: str) -> int:
+    """Place of a pinch region from the hot end [-]: above or whole 0, between pinches k (hottest first,
+    :func:`heatloom.network.transshipment.pinch_regions`) k, below after every one of them; any other
+    label (a network read from a table) between above and below."""
+    if label in ("above", "whole"):
+        return 0
+    if label == "below":
+        return 1_000_000
+    tail = label.rsplit(" ", 1)[-1]
+    return int(tail) if label.startswith("between pinches ") and tail.isdigit() else 1
 
 
 def grid_key(unit) -> tuple[int, int]:
-    """Left-to-right place of a unit on the grid diagram [-]: pinch region (above or whole, then below)
-    and stage of the placement, hot end first; a lower key comes first from every hot stream's supply end
-    and last from every cold stream's supply end.
+    """Left-to-right place of a unit on the grid diagram [-]: pinch region (above or whole, the regions
+    between pinches hottest first, then below) and stage of the placement, hot end first; a lower key
+    comes first from every hot stream's supply end and last from every cold stream's supply end.
 
     Examples
     --------
@@ -64,7 +74,7 @@ def grid_key(unit) -> tuple[int, int]:
     ...     Cooler("H", "water", 80.0, 60, 40, 20, 30, stage=0, region="below"))
     True
     """
-    return (_REGION_RANK.get(unit.region, 1), unit.stage)
+    return (_region_rank(unit.region), unit.stage)
 
 
 def _sides(unit) -> tuple[str, ...]:

@@ -112,10 +112,17 @@ class TickOffResult:
 # A step: (hot piece, cold piece, kind, load, excess, both off); kind (hot end, cold end) with end 0 the
 # inlet and 1 the outlet, or "split hot" / "split cold" (a branch of that piece over its whole stretch
 # ticks the other piece off).
+_CHUNK_CELLS = 2_000_000
+"""Largest (candidate pairs × cascade points) array :func:`_candidates` builds at once [-]: 16 MB of
+floats; the pairs are checked in chunks of that size."""
+
+
 def _candidates(state: Pieces, hot: list[int], cold: list[int], allowed, tol: float, points: np.ndarray,
-                residual: np.ndarray, mode: str):
+                residual: np.ndarray, mode: str, deadline: float | None = None):
     """Every step of a mode ("ends", "split" or a partial share) that keeps ΔTmin at the unit's ends and
-    the cascade at the current points."""
+    the cascade at the current points.  The pairs are checked in chunks (:data:`_CHUNK_CELLS`); past
+    ``deadline`` (a ``time.monotonic`` reading) the steps found so far are returned (a search whose pieces
+    have multiplied can have millions of pairs: one call took 44 s on 40 streams)."""
     hot = [i for i in hot if state.left(i) > tol]
     cold = [j for j in cold if state.left(j) > tol]
     if not hot or not cold:
@@ -152,13 +159,19 @@ def _candidates(state: Pieces, hot: list[int], cold: list[int], allowed, tol: fl
         mask = mask & (d1 >= -1e-9) & (d2 >= -1e-9)
         if not mask.any():
             return
-        rows, cols = np.nonzero(mask)
-        new = residual[None, :] - take_h(rows, cols) + take_c(rows, cols)
-        good = new.min(axis=1) >= -tol
-        loss = (residual.sum() - new.sum(axis=1)) / (points.size * heat)
-        ratio = ((residual[None, :] - new) / (residual[None, :] + 1e-3 * heat)).max(axis=1)
-        for k, r, c in zip(np.flatnonzero(good), rows[good], cols[good]):
-            out.append((hot[r], cold[c], kind, float(Q[r, c]), (float(d1[r, c] + d2[r, c]), float(max(d1[r, c], d2[r, c])), float(loss[k]), float(ratio[k])), bool(both[r, c])))
+        all_rows, all_cols = np.nonzero(mask)
+        step = max(1, _CHUNK_CELLS // max(points.size, 1))
+        for start in range(0, all_rows.size, step):
+            if start and deadline is not None and time.monotonic() >= deadline:
+                return
+            rows, cols = all_rows[start:start + step], all_cols[start:start + step]
+            new = residual[None, :] - take_h(rows, cols) + take_c(rows, cols)
+            good = new.min(axis=1) >= -tol
+            loss = (residual.sum() - new.sum(axis=1)) / (points.size * heat)
+            ratio = ((residual[None, :] - new) / (residual[None, :] + 1e-3 * heat)).max(axis=1)
+            for k, r, c in zip(np.flatnonzero(good), rows[good], cols[good]):
+                out.append((hot[r], cold[c], kind, float(Q[r, c]), (float(d1[r, c] + d2[r, c]),
+                            float(max(d1[r, c], d2[r, c])), float(loss[k]), float(ratio[k])), bool(both[r, c])))
 
     a_h = np.array([state.a[i] for i in hot])
     b_h = np.array([state.b[i] for i in hot])
@@ -186,6 +199,8 @@ def _candidates(state: Pieces, hot: list[int], cold: list[int], allowed, tol: fl
     both = (share == 1.0) & (np.abs(lh[:, None] - lc[None, :]) <= tol)
     for eh in (0, 1):
         for ec in (0, 1):
+            if deadline is not None and time.monotonic() >= deadline:
+                return out
             mask = ok_pair & ~(uh[:, None] & (eh == 1)) & ~(uc[None, :] & (ec == 1))
             if not mask.any():
                 continue
@@ -483,12 +498,14 @@ def tick_off_search(sides: list[Side], allowed, required, tol: float, rng, noise
 
         cut = None
         for mode in ("ends", "split", "cut", "branch", "0.9", "0.75", "0.5", "0.25", "0.1"):
+            if deadline is not None and time.monotonic() >= deadline:
+                break
             if mode == "cut":   # stuck at a pinch of what is left: cut the pieces there, then tick off again
                 cut = _cut_at_pinches(state, points, residual, tol) if cuts else None
                 if cut is not None:
                     break
                 continue
-            cands = _candidates(state, hot, cold, allowed, tol, points, residual, mode)
+            cands = _candidates(state, hot, cold, allowed, tol, points, residual, mode, deadline)
             if mode[0].isdigit():
                 cands = [(*c[:2], ("part", *c[2]), *c[3:]) for c in cands]
             good = []
@@ -665,6 +682,8 @@ def tick_off_placement(hot: Sequence[Side], cold: Sequence[Side], *, forbidden=f
     (missing, count), placed, extra, state, merged = best
     moves = 0
     reports = []
+    if deadline is not None:   # the remainder's MILP stops at the deadline too
+        solve_time = min(solve_time, deadline - time.monotonic())
     if extra and solve_time > 0:
         milp, reports = _remainder(state, tol, forbidden, solver, solve_time)
         if milp is not None and len(milp) < len(extra) and \
