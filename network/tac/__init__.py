@@ -9,7 +9,8 @@ from .branches import (
 )
 from .build import network_from_solution
 from .layout_search import restructure
-from .nlp import Topology, TopologySolution, polish_cheapest, polish_splits, solve_topology
+from .nlp import Topology, TopologySolution, solve_topology
+from .polish import polish_cheapest, polish_splits
 from .problem import TacProblem, make_problem
 from .profiles import solve_segmented
 from .search import design_tac

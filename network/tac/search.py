@@ -12,7 +12,7 @@ The sequence (DEVELOPERS.md, "Method notes"):
    stage temperatures and utility duties by SLSQP (trust-constr when SLSQP fails at once) against the exact
    TAC with the exact LMTD and EMAT at both ends of every unit, isothermal mixing; units whose load
    vanishes are removed.  Topologies with stream splits that come within :data:`POLISH_WITHIN` of the best
-   have their split fractions freed (:func:`heatloom.network.tac.nlp.polish_splits`: branches may then
+   have their split fractions freed (:func:`heatloom.network.tac.polish.polish_splits`: branches may then
    leave a stage at different temperatures, non-isothermal mixing), and keep that only when it is cheaper.
 3. **Topology search** (iterated local search): remove a unit, add a match (in an existing stage or a new
    one), move a match to another stage, add or remove a utility unit (at a stream's target end, or at its
@@ -25,7 +25,7 @@ The sequence (DEVELOPERS.md, "Method notes"):
 4. One wall-clock budget (:class:`heatloom.network.solvers.Budget`): the time limit is the whole run's; each
    solve gets a share of what is left, and one that stops without a solution leaves the run to its other
    starts (the utilities-only network is always one), with a note.
-5. A last polish (:func:`heatloom.network.tac.nlp.polish_cheapest`, in the last :data:`FINAL_RESERVE` of
+5. A last polish (:func:`heatloom.network.tac.polish.polish_cheapest`, in the last :data:`FINAL_RESERVE` of
    the time limit, problems of up to 20 streams): the split fractions of the cheapest networks with stream
    splits are freed again from their own and from random fractions: the optimum of a split network with
    non-isothermal mixing need not be the local one next to isothermal mixing.
@@ -78,10 +78,9 @@ from .nlp import (
     Topology,
     TopologySolution,
     make_problem,
-    polish_cheapest,
-    polish_splits,
     solve_topology,
 )
+from .polish import polish_cheapest, polish_splits
 from .starts import mer_network, stagewise_milp, topology_from_network, unit_estimates
 
 __all__ = ["design_tac", "network_from_solution"]
@@ -107,7 +106,7 @@ RESTART = 8
 
 POLISH_WITHIN = 0.003
 """Topologies with stream splits whose isothermal-mixing cost is within this of the best found [-] have their
-split fractions freed (:func:`heatloom.network.tac.nlp.polish_splits`)."""
+split fractions freed (:func:`heatloom.network.tac.polish.polish_splits`)."""
 
 FINAL_RESERVE = 0.03
 """Part of the time limit kept from the search for that last polish [-]."""

@@ -583,7 +583,7 @@ def test_free_split_fractions_with_random_restarts_never_cost_more_and_keep_emat
     # each branch's outlet follows its own energy balance (duty = f·CP·ΔT), the branches mix to the
     # stage outlet of the stream's energy balance, and the network's TAC is recomputed with ht.LMTD.
     from heatloom.network.tac.build import network_from_solution
-    from heatloom.network.tac.nlp import polish_splits
+    from heatloom.network.tac.polish import polish_splits
 
     data, streams = load_reference("synthesis_yee_grossmann_2h2c")
     utilities = reference_utilities(data)
@@ -619,7 +619,7 @@ def test_free_split_fractions_use_exact_gradients(monkeypatch, matches):
     # independent computation (step 1e-9 on loads scaled to the largest duty: units at the least load make
     # the concave area cost sharply curved), at every feasible start;
     # Roetzel, Luo & Chen 2020, Table 6.16 data and law
-    import heatloom.network.tac.nlp as nlp
+    import heatloom.network.tac.polish as polish
 
     data, streams = load_reference("synthesis_yee_grossmann_2h2c")
     p = make_problem(streams, reference_utilities(data), cost_settings(data["cost_law"]), 1.0)
@@ -627,7 +627,7 @@ def test_free_split_fractions_use_exact_gradients(monkeypatch, matches):
     top = Topology(stages, frozenset(matches), frozenset({(0, 0), (1, 0)}), frozenset({(0, 0), (1, 0)}))
     iso = solve_topology(p, top, extra_vertex=True)
     assert iso is not None
-    real, seen = nlp.minimize, []
+    real, seen = polish.minimize, []
 
     def central(f, z, h=1e-9):
         return np.array([(f(z + h * e) - f(z - h * e)) / (2 * h) for e in np.eye(z.size)]).T
@@ -640,8 +640,8 @@ def test_free_split_fractions_use_exact_gradients(monkeypatch, matches):
         seen.append(z)
         return real(fun, z, jac=jac, constraints=constraints, **options)
 
-    monkeypatch.setattr(nlp, "minimize", spy)
-    nlp.polish_splits(p, iso, starts=2, seed=0)
+    monkeypatch.setattr(polish, "minimize", spy)
+    polish.polish_splits(p, iso, starts=2, seed=0)
     assert seen
 
 
