@@ -241,9 +241,10 @@ def topology_from_network(p: TacProblem, net: Network) -> Topology | None:
     left out one by one until the rest has one, and the streams that lost an exchanger get a utility unit
     at their end where a utility can serve them (the search may add matches back).  Utility units are put
     at the stream ends, one per stream and level that uses any: at the supply end
-    (:attr:`Topology.preheaters`, :attr:`Topology.precoolers`) where the network has them before every
-    exchanger of their stream and the side has :data:`heatloom.network.tac.nlp.SUPPLY_END_LEVELS` levels
-    or more, else at the target end.
+    (:attr:`Topology.preheaters`, :attr:`Topology.precoolers`) where the side has
+    :data:`heatloom.network.tac.nlp.SUPPLY_END_LEVELS` levels or more and the network has them before every
+    exchanger of their stream, or their level cannot take the stream to its target (a cool steam level
+    between two exchangers of a stream heated beyond it); else at the target end.
     """
     hot_idx = {n: k for k, n in enumerate(p.hot_names)}
     cold_idx = {n: k for k, n in enumerate(p.cold_names)}
@@ -258,15 +259,29 @@ def topology_from_network(p: TacProblem, net: Network) -> Topology | None:
         above = [e.hot_in for e in ex if e.hot == c.hot]
         return len(p.cool_levels) >= SUPPLY_END_LEVELS and bool(above) and c.hot_out >= max(above) - tol
 
+    def heat_at_target(j, lv) -> bool:   # the level can take cold j to its target
+        return p.heat_levels[lv].supply_temperature - p.need(None, j) >= p.cold_out[j] - tol
+
+    def cool_at_target(i, lv) -> bool:   # the level can take hot i to its target
+        return p.cool_levels[lv].supply_temperature + p.need(i, None) <= p.hot_out[i] + tol
+
     heaters, preheaters, coolers, precoolers = set(), set(), set(), set()
     for h in net.heaters:
         for lv, u in enumerate(p.heat_levels):
             if h.cold in cold_idx and u.name == h.utility:
-                (preheaters if supply_end_heater(h) else heaters).add((cold_idx[h.cold], lv))
+                j = cold_idx[h.cold]
+                # a level that cannot reach the target (LP steam between two exchangers of a stream heated to
+                # 225 °C) goes to the supply end, where the search can give it any duty
+                at_supply = supply_end_heater(h) or (len(p.heat_levels) >= SUPPLY_END_LEVELS
+                                                     and not heat_at_target(j, lv))
+                (preheaters if at_supply else heaters).add((j, lv))
     for c in net.coolers:
         for lv, u in enumerate(p.cool_levels):
             if c.hot in hot_idx and u.name == c.utility:
-                (precoolers if supply_end_cooler(c) else coolers).add((hot_idx[c.hot], lv))
+                i = hot_idx[c.hot]
+                at_supply = supply_end_cooler(c) or (len(p.cool_levels) >= SUPPLY_END_LEVELS
+                                                     and not cool_at_target(i, lv))
+                (precoolers if at_supply else coolers).add((i, lv))
     left_out: list = []
     while True:
         matches = _stagewise_matches(ex, hot_idx, cold_idx)
