@@ -501,7 +501,9 @@ def pinch_regions(pinches: Sequence[float]) -> tuple[Region, ...]:
     Heat never crosses a pinch in a network that meets the targets, so each region can be matched and
     designed on its own (Linnhoff & Hindmarsh 1983).  The fewest-matches MILP cuts at the pinches of
     :attr:`Transshipment.pinches` (process and utility pinches,
-    :func:`heatloom.network.milp.subnetworks`), the design step at the process pinches of the targets.
+    :func:`heatloom.network.milp.subnetworks`); the design step at the same cuts, its regions at the
+    process pinches among them and each region's parts at the utility pinches inside it
+    (:func:`heatloom.network.design.design_mer`).
 
     Parameters
     ----------

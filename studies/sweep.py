@@ -443,18 +443,20 @@ def _task_refine(case: TargetCase, low: float, high: float, xtol: float) -> Swee
     return _evaluate(case, float(res.x), "optimum")
 
 
-def design_point(case: TargetCase, x: float, solver: str | None = None, time_limit: float = 60.0) -> DesignPoint:
+def design_point(case: TargetCase, x: float, solver: str | None = None, time_limit: float = 60.0,
+                 least_utility_flow: bool = False) -> DesignPoint:
     """Design a maximum-energy-recovery network of a case at ΔTmin ``x`` [K] and cost it (a task of its own).
 
-    ``time_limit`` [s] is the wall-clock budget of the whole :func:`heatloom.network.design.design_mer` run; a design that
-    is infeasible or whose solver fails gives a point with its ``error``.
+    ``time_limit`` [s] is the wall-clock budget of the whole :func:`heatloom.network.design.design_mer` run and
+    ``least_utility_flow`` its option of that name (non-isothermal utilities kept at the least flow of their
+    targets); a design that is infeasible or whose solver fails gives a point with its ``error``.
     """
     from ..network.design import design_mer
 
     try:
         rules = case.rules
         net = design_mer(case.streams, x, case.utilities, costs=case.costs, solver=solver, time_limit=time_limit,
-                         default_film_coefficient=case.default_h,
+                         default_film_coefficient=case.default_h, least_utility_flow=least_utility_flow,
                          **({"forbidden": rules.forbidden, "required": rules.required} if rules else {}))
     except (InfeasibleError, SolverError) as e:
         return DesignPoint(float(x), error=f"{type(e).__name__}: {e}")
@@ -564,7 +566,7 @@ def sweep(streams: StreamTable, dt_min_range: tuple[float, float], utilities: Se
           capital_basis: CapitalBasis | str = CapitalBasis.UNITS_MER, x_p: float | None = None,
           resolution: float = 1e-3, xtol: float = 0.01, refine_margin: float = 0.01,
           progress: Progress | None = None, solver: str | None = None, design_time_limit: float = 60.0,
-          price_factor: float = 1.0, rules=None) -> Sweep:
+          price_factor: float = 1.0, rules=None, least_utility_flow: bool = False) -> Sweep:
     """Total annual cost target against ΔTmin, its breakpoints and its optimum.
 
     .. math:: TAC(\\Delta T_{min}) = \\phi\\,N\\,[a + b\\,(A_{min}/N)^c] + \\sum_u c_u Q_u
@@ -611,6 +613,9 @@ def sweep(streams: StreamTable, dt_min_range: tuple[float, float], utilities: Se
     price_factor : float, optional
         Multiplies every utility price [-] (the given utilities', else the assumed ones'), for price
         scenarios (:mod:`heatloom.studies.scenarios`); default 1.
+    least_utility_flow : bool, optional
+        The designs keep hot oil and cooling water at the least flow of their energy targets, returned at
+        their design temperatures (``design_mer``'s option of that name; no supply-header reading).
 
     Returns
     -------
@@ -693,11 +698,14 @@ def sweep(streams: StreamTable, dt_min_range: tuple[float, float], utilities: Se
         optimum = min([*(p for p in refined if p.feasible), best], key=lambda p: (p.total_annual_cost, p.dt_min))
         if optimum is best:
             optimum = replace(best, kind="optimum")
-        design_points = tuple(runner.map(design_point, [(case, x, solver, design_time_limit) for x in design_at],
-                                         "designs"))
+        design_points = tuple(runner.map(design_point, [(case, x, solver, design_time_limit, least_utility_flow)
+                                                        for x in design_at], "designs"))
     finally:
         runner.close()
     notes = []
+    if design_at and least_utility_flow:
+        notes.append("designs: non-isothermal utilities kept at the least flow of their energy targets, returned at "
+                     "their design temperatures (no supply-header reading), as asked")
     n_bad = sum(1 for p in points if not p.feasible)
     if n_bad:
         notes.append(f"{n_bad} of {len(points)} points cannot be served by the utilities given (not feasible)")

@@ -86,6 +86,9 @@ def register(sub) -> None:
     p.add_argument("--costs", metavar="FILE", help="cost laws and annualisation (JSON, YAML or .xlsx)")
     p.add_argument("--designs", type=parse_designs, default=(), metavar="LIST",
                    help="also design a network at these ΔTmin values [K], e.g. 10,20")
+    p.add_argument("--least-utility-flow", action="store_true",
+                   help="with --designs: keep hot oil and cooling water at the least flow of their energy targets, "
+                        "returned at their design temperatures (as `design --least-utility-flow`)")
     add_cost_target_options(p)
     add_output_options(p)
     add_table_options(p)
@@ -147,9 +150,12 @@ def format_sweep(result, source: str, range_note: str, runner: str) -> str:
 
 
 def run(args) -> int:
+    from ..errors import InputError
     from ..pinch.area import missing_film_coefficients
     from ..studies.sweep import describe_executor, sweep
 
+    if args.least_utility_flow and not args.designs:
+        raise InputError("--least-utility-flow applies to the designs of --designs only (give --designs LIST)")
     streams, utilities, costs = read_inputs(args)
     rng, range_note = (args.dtmin, "given") if args.dtmin is not None else (defaults.SWEEP_RANGE, "default; set with --dtmin LO:HI")
     missing = missing_film_coefficients(streams, utilities or ())
@@ -169,7 +175,8 @@ def run(args) -> int:
     try:
         result = sweep(streams, rng, utilities, costs, step=args.step, designs=args.designs, workers=args.workers,
                        cluster=args.cluster, default_film_coefficient=args.default_h,
-                       capital_basis=args.capital_basis, progress=bars, rules=rules)
+                       capital_basis=args.capital_basis, progress=bars, rules=rules,
+                       least_utility_flow=args.least_utility_flow)
     finally:
         bars.close()
     data = result.to_dict()

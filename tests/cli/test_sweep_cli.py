@@ -96,6 +96,12 @@ def test_missing_film_coefficients_exit_2_and_default_h(run, without_h):
     assert any("assumed for stream '1'" in n for n in json.loads(out)["notes"])
 
 
+def test_least_utility_flow_without_designs_is_refused(run, with_h):
+    code, out, err = run("sweep", with_h, "--dtmin", "5:10", "--workers", "1", "--least-utility-flow")
+    assert code == 2 and out == ""
+    assert "--least-utility-flow applies to the designs of --designs only" in err
+
+
 def test_bad_range_is_refused(run, with_h):
     for bad in ("40:5", "0:10", "5-40", "a:b"):
         with pytest.raises(SystemExit) as e:

@@ -131,3 +131,24 @@ def test_a_study_passes_least_utility_flow_to_its_design_and_states_it():
     rows = {a: (v, b) for a, v, b in study.assumption_rows()}
     value, basis = rows["maximum-energy-recovery design"]
     assert "least flow and design return" in value and basis == "given"
+
+
+def test_a_sweep_passes_least_utility_flow_to_its_designs(monkeypatch):
+    """`heatloom sweep --designs 10 --least-utility-flow`: each design is asked for the least flow (the option
+    reaches design_mer) and the sweep's notes say so; without the option the designs may use a header."""
+    from heatloom.studies.sweep import sweep
+
+    streams, utilities = case()
+    asked = []
+
+    def spy(*args, **kwargs):
+        asked.append(kwargs["least_utility_flow"])
+        return design_mer(*args, **{**kwargs, "time_limit": 5.0})
+
+    monkeypatch.setattr(design_module, "design_mer", spy)
+    for flag in (True, False):
+        result = sweep(streams, (9.0, 11.0), utilities, step=1.0, designs=[10.0], workers=1,
+                       least_utility_flow=flag)
+        assert not result.designs[0].error and result.designs[0].units > 0
+        assert any("kept at the least flow" in n for n in result.notes) is flag
+    assert asked == [True, False]
