@@ -494,13 +494,14 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
             notes.append(f"subnetwork '{region.label}': {got[1]}")
             placed += [(region.label, p) for p in got[0]]
             continue
-        first, cut, cut_notes = part.part(0.5), [], []
+        first, cut, cut_notes, failed = part.part(0.5), [], [], None
         sizes = [len(h) + len(c) for _, h, c in pieces]
         for m, (label, h, c) in enumerate(pieces):
             got = _tick_off_region(label, h, c, utilities, forbidden, required,
                                    first.part(sizes[m] / max(sum(sizes[m:]), 1)), end, solver, least_utility_flow)
             if got is None:
-                return fail(label)
+                failed = label
+                break
             solves += got[2]
             cut_notes.append(f"subnetwork '{label}': {got[1]}")
             cut += [(label, p) for p in got[0]]
@@ -508,11 +509,14 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
         if part.remaining > part.floor:
             whole = _tick_off_region(region.label, hot, cold, utilities, forbidden, required, part,
                                      time.monotonic() + part.remaining, solver, least_utility_flow)
+        if failed is not None and whole is None:
+            return fail(failed)
         cuts = " and ".join(f"{r.bottom:g}" for r in parts[:-1])
-        words = (f"{region.description}, with utility pinches at {cuts} °C shifted inside: placed part by part "
-                 f"between them ({len(cut)} units, the parts' subnetworks below)"
-                 + (f" and as one subnetwork ({len(whole[0])} units)" if whole is not None else ""))
-        if whole is not None and len(whole[0]) < len(cut):
+        words = f"{region.description}, with utility pinches at {cuts} °C shifted inside: " + (
+            f"placed part by part between them ({len(cut)} units, the parts' subnetworks below)" if failed is None
+            else f"no placement of part '{failed}' on its own")
+        words += f" and as one subnetwork ({len(whole[0])} units)" if whole is not None else ""
+        if whole is not None and (failed is not None or len(whole[0]) < len(cut)):
             solves += whole[2]
             notes.append(f"{words}: kept as one, subnetwork '{region.label}': {whole[1]}")
             placed += [(region.label, p) for p in whole[0]]
