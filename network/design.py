@@ -482,29 +482,31 @@ def _tick_off_design(streams, utilities, duties, regions, t, dt_min, forbidden, 
         return None, [f"subnetwork '{label}': its cascade does not hold in the tick-off method's "
                       "conservative reading of the utilities, or the match rules leave no placement"]
 
+    def by_parts(pieces, share, end):
+        """Units of the pieces one after the other, each with its share of ``share`` by size: (units, notes,
+        label of the first piece without a placement or None)."""
+        units, words, sizes = [], [], [len(h) + len(c) for _, h, c in pieces]
+        for m, (label, h, c) in enumerate(pieces):
+            got = _tick_off_region(label, h, c, utilities, forbidden, required,
+                                   share.part(sizes[m] / max(sum(sizes[m:]), 1)), end, solver, least_utility_flow)
+            if got is None:
+                return units, words, label
+            solves.extend(got[2])
+            words.append(f"subnetwork '{label}': {got[1]}")
+            units += [(label, p) for p in got[0]]
+        return units, words, None
+
     for k, (region, parts, (hot, cold), pieces) in enumerate(groups):
         part = budget.part(weights[k] / max(sum(weights[k:]), 1))
         end = time.monotonic() + budget.root.remaining
         if pieces is None:
-            got = _tick_off_region(region.label, hot, cold, utilities, forbidden, required, part, end, solver,
-                                   least_utility_flow)
-            if got is None:
-                return fail(region.label)
-            solves += got[2]
-            notes.append(f"subnetwork '{region.label}': {got[1]}")
-            placed += [(region.label, p) for p in got[0]]
+            cut, cut_notes, failed = by_parts([(region.label, hot, cold)], part, end)
+            if failed is not None:
+                return fail(failed)
+            notes += cut_notes
+            placed += cut
             continue
-        first, cut, cut_notes, failed = part.part(0.5), [], [], None
-        sizes = [len(h) + len(c) for _, h, c in pieces]
-        for m, (label, h, c) in enumerate(pieces):
-            got = _tick_off_region(label, h, c, utilities, forbidden, required,
-                                   first.part(sizes[m] / max(sum(sizes[m:]), 1)), end, solver, least_utility_flow)
-            if got is None:
-                failed = label
-                break
-            solves += got[2]
-            cut_notes.append(f"subnetwork '{label}': {got[1]}")
-            cut += [(label, p) for p in got[0]]
+        cut, cut_notes, failed = by_parts(pieces, part.part(0.5), end)
         whole = None
         if part.remaining > part.floor:
             whole = _tick_off_region(region.label, hot, cold, utilities, forbidden, required, part,
