@@ -45,6 +45,9 @@ __all__ = [
     "SWEEP_STEP",
     "EMAT",
     "TAC_TIME_LIMIT",
+    "TICK_OFF_ABOVE",
+    "RESTRUCTURE_STREAMS",
+    "RESTRUCTURE_SHARE",
     "MAX_INPUT_BYTES",
     "max_input_bytes",
     "input_size_limit",
@@ -163,6 +166,19 @@ by most published TAC benchmarks; stated in every output)."""
 
 TAC_TIME_LIMIT = 120.0
 """Wall-clock limit of a lowest-total-annual-cost design when none is given [s]."""
+
+TICK_OFF_ABOVE = 12
+"""Process streams above which the MER design places units by the tick-off method without the
+fewest-matches MILP [-] (why: :data:`heatloom.network.design.TICK_OFF_ABOVE`; here so that the command
+line's help states the same number without importing the solvers)."""
+
+RESTRUCTURE_STREAMS = 12
+"""Largest problem (process streams) given the search beyond the stagewise form [-]
+(:data:`heatloom.network.tac.layout_search.RESTRUCTURE_STREAMS`)."""
+
+RESTRUCTURE_SHARE = 0.2
+"""Share of the time limit given to the search beyond the stagewise form [-]
+(:data:`heatloom.network.tac.layout_search.RESTRUCTURE_SHARE`)."""
 
 MAX_TEMPERATURE = 5000.0
 """Hottest temperature a stream table may give [°C] (a sanity bound, *common practice*: fired

@@ -54,7 +54,7 @@ from .transshipment import Region, pinch_regions
 
 __all__ = ["TICK_OFF_ABOVE", "design_mer", "stream_groups", "match_rules"]
 
-TICK_OFF_ABOVE = 12
+TICK_OFF_ABOVE = defaults.TICK_OFF_ABOVE
 """Above this many process streams [-] the design places units by the tick-off method
 (:mod:`heatloom.network.tickoff`) without the fewest-matches MILP; at or below it the MILP chain runs and
 the tick-off method is one of its fallbacks.  Our choice from benchmarks/bench_design.py (generated

@@ -14,6 +14,7 @@ import time
 
 import numpy as np
 
+from ... import defaults
 from ...errors import InfeasibleError, InputError
 from ...model.costs import CostSettings
 from ...tasks import local_pool, numeric_threads
@@ -34,7 +35,7 @@ __all__ = ["restructure", "layout_moves", "layout_additions", "random_layout", "
            "RESTRUCTURE_SHARE", "RESTRUCTURE_STALL", "RESTRUCTURE_STREAMS", "RESTRUCTURE_PATIENCE", "RESTRUCTURE_RESTART",
            "RESTRUCTURE_NEW_SHARE"]
 
-RESTRUCTURE_SHARE = 0.2
+RESTRUCTURE_SHARE = defaults.RESTRUCTURE_SHARE
 """Part of the time limit :func:`heatloom.network.tac.search.design_tac` keeps for the search beyond the
 stagewise form when ``restructure`` is asked for [-]."""
 
@@ -46,7 +47,7 @@ search's random restarts find cheaper networks with more time; on the aromatics 
 stagewise network after 166 s without one (at 300 s: 25.7 s, then 192 s), and 0.25 handed over before it
 (one run each; set from these, not tuned further)."""
 
-RESTRUCTURE_STREAMS = 12
+RESTRUCTURE_STREAMS = defaults.RESTRUCTURE_STREAMS
 """Largest problem (process streams) given that search: each layout is a dense NLP over all units'
 duties and fractions [-]."""
 
