@@ -81,7 +81,7 @@ from .nlp import (
     solve_topology,
 )
 from .polish import polish_cheapest, polish_splits
-from .starts import mer_network, stagewise_milp, topology_from_network, unit_estimates
+from .starts import mer_network, stagewise_milp, start_from_network, unit_estimates
 
 __all__ = ["design_tac", "network_from_solution"]
 
@@ -186,8 +186,11 @@ class _Search:
             self.timed_out = True
         return self.timed_out
 
-    def evaluate(self, top: Topology, guess: dict | None = None) -> TopologySolution | None:
-        """The refined topology (cached), or None when it is infeasible or lacks a required match."""
+    def evaluate(self, top: Topology, guess: dict | None = None, *, vertex: bool | None = None
+                 ) -> TopologySolution | None:
+        """The refined topology (cached), or None when it is infeasible or lacks a required match.  It is
+        refined from ``guess`` (loads by unit key) and, with ``vertex`` (by default when there is no
+        guess), from the LP vertex too."""
         top, guess = canonical(top, guess)
         key = top.key()
         if key in self.cache:
@@ -196,7 +199,8 @@ class _Search:
             self.cache[key] = None
             return None
         self.evals += 1
-        sol = solve_topology(self.p, top, [guess] if guess else [], extra_vertex=not guess, deadline=self.deadline)
+        sol = solve_topology(self.p, top, [guess] if guess else [], extra_vertex=not guess if vertex is None else vertex,
+                             deadline=self.deadline)
         if sol is not None:
             tiny = 1e-4 * self.p.scale   # ten times the least load the refinement allows
             small = [k for k, d in zip(sol.keys, sol.duties) if d <= tiny]
@@ -389,6 +393,34 @@ ROUNDS_PER_EPOCH = 4
 """Kicks of the iterated local search between two reports of progress [-]."""
 
 
+def _mer_start(search: _Search, p: TacProblem, top: Topology, loads: dict, notes: list) -> TopologySolution | None:
+    """The MER network's topology refined from its own duties and from the LP vertex; when no loads of it
+    keep the approaches, the same with a heater and a cooler at the end of every stream a utility can serve
+    alone (:func:`_fallback_topology`; the refinement drops the ones it does not need), with a note.
+
+    Its own duties matter where the vertex is no feasible start (streams of several segments, whose
+    approaches are not linear in the loads).  The utility units matter where the MER design passes hot oil
+    through several heaters in series (a header above :data:`heatloom.defaults.TICK_OFF_ABOVE` streams):
+    a heater of the TAC model takes the utility over its whole range, so a heater that raised a stream
+    from 275 to 295 °C with oil 330 → 327 °C cannot be laid out as one, and the heat it leaves to process
+    exchangers needs somewhere else to go.
+    """
+    sol = search.evaluate(top, loads, vertex=True)
+    if sol is not None:
+        return sol
+    ends = _fallback_topology(p)
+    wider = top.replace(heaters=top.heaters | ends.heaters, coolers=top.coolers | ends.coolers)
+    if wider.key() == top.key():
+        return None
+    sol = search.evaluate(wider, loads, vertex=True)
+    if sol is not None:
+        notes.append("no loads of the MER network's topology keep every approach in the stagewise form (a "
+                     "heater or cooler of the MER network may use only part of its utility's range); it "
+                     "started the search with a heater and a cooler added at the end of every stream a "
+                     "utility can serve alone")
+    return sol
+
+
 def _fallback_topology(p: TacProblem) -> Topology:
     """No exchanger: every stream served by the utility levels that can serve it alone."""
     heaters = set()
@@ -568,9 +600,9 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     # (a) the maximum-energy-recovery network's topology (none, with a note, when it cannot be had in time)
     mer = mer_network(streams, max(MER_DT_MIN, emat), utilities, budget, costs=costs, solver=solver,
                       default_film_coefficient=default_film_coefficient, forbidden=forbidden, required=required)
-    top = topology_from_network(p, mer) if mer is not None else None
-    if top is not None:
-        keep(search.evaluate(top), f"MER network at ΔTmin {max(MER_DT_MIN, emat):g} K")
+    start = start_from_network(p, mer) if mer is not None else None
+    if start is not None:
+        keep(_mer_start(search, p, *start, notes), f"MER network at ΔTmin {max(MER_DT_MIN, emat):g} K")
     epochs = max(1, -(-rounds // ROUNDS_PER_EPOCH)) if rounds else 0
     n_workers = workers if workers is not None else min(starts, os.cpu_count() or 1)
     pool = local_pool(n_workers) if n_workers > 1 and starts > 1 and epochs else None

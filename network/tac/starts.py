@@ -4,8 +4,9 @@
   stream ends and isothermal mixing, whose area cost is linearised as a fixed charge per unit plus a cost
   per kW estimated from loads and approach temperatures (:func:`unit_estimates` updates them from a
   refined network);
-* :func:`topology_from_network`, the exchangers of a network (the maximum-energy-recovery design) laid
-  into stages along every stream;
+* :func:`start_from_network` (:func:`topology_from_network` without the loads), the exchangers of a
+  network (the maximum-energy-recovery design) laid into stages along every stream, their duties a
+  starting guess of the topology's loads;
 * :func:`mer_network`, that maximum-energy-recovery design within its share of the run's time budget, or
   None (with a note) when it cannot be had, so that the search falls back on its other starts.
 
@@ -32,8 +33,8 @@ from ..solvers import Budget, new_variable
 from ..structure import Network
 from .nlp import SUPPLY_END_LEVELS, TacProblem, Topology, TopologySolution, unit_costs
 
-__all__ = ["stagewise_milp", "unit_estimates", "topology_from_network", "mer_network", "contracted_levels",
-           "MER_SHARE", "MER_CAP"]
+__all__ = ["stagewise_milp", "unit_estimates", "topology_from_network", "start_from_network", "mer_network",
+           "contracted_levels", "MER_SHARE", "MER_CAP"]
 
 MER_SHARE = 0.1
 """Part of the remaining time given to the starting MER design [-], as its ``time_limit`` (which
@@ -232,7 +233,15 @@ def unit_estimates(p: TacProblem, sol: TopologySolution) -> dict:
 # ------------------------------------------------------------------------------------ MER topology
 
 def topology_from_network(p: TacProblem, net: Network) -> Topology | None:
-    """Lay the exchangers of a network into stages along every stream (None if no part of it can be).
+    """Lay the exchangers of a network into stages along every stream (None if no part of it can be):
+    the topology of :func:`start_from_network`."""
+    start = start_from_network(p, net)
+    return None if start is None else start[0]
+
+
+def start_from_network(p: TacProblem, net: Network) -> tuple[Topology, dict] | None:
+    """Lay the exchangers of a network into stages along every stream, with their duties as a starting guess
+    of the topology's loads ((hot, cold, stage) → kW); None if no part of it can be laid out.
 
     Units of a stream are ordered from its hot end; units with the same temperatures on a stream are its
     parallel branches and share a stage.  Each unit's stage is the length of the longest chain of units
@@ -284,13 +293,14 @@ def topology_from_network(p: TacProblem, net: Network) -> Topology | None:
                 (precoolers if at_supply else coolers).add((i, lv))
     left_out: list = []
     while True:
-        matches = _stagewise_matches(ex, hot_idx, cold_idx)
-        if matches is not None or not ex:
+        laid = _stagewise_matches(ex, hot_idx, cold_idx)
+        if laid is not None or not ex:
             break
         smallest = min(range(len(ex)), key=lambda n: ex[n].duty)
         left_out.append(ex.pop(smallest))
-    if matches is None:
+    if laid is None:
         return None
+    matches = set(laid)
     for e in left_out:
         i, j = hot_idx[e.hot], cold_idx[e.cold]
         if not any(c[0] == i for c in coolers):
@@ -298,8 +308,9 @@ def topology_from_network(p: TacProblem, net: Network) -> Topology | None:
         if not any(h[0] == j for h in heaters):
             heaters.update((j, lv) for lv in range(len(p.heat_levels))[-1:] if p.heat_level_possible(j, lv))
     stages = max((k for (_, _, k) in matches), default=0) + 1
-    return Topology(stages, frozenset(matches), frozenset(heaters), frozenset(coolers), frozenset(preheaters),
-                    frozenset(precoolers))
+    return (Topology(stages, frozenset(matches), frozenset(heaters), frozenset(coolers), frozenset(preheaters),
+                     frozenset(precoolers)),
+            {key: ex[n].duty for key, n in laid.items()})
 
 
 def contracted_levels(count: int, together, before) -> list[int] | None:
@@ -365,8 +376,9 @@ def contracted_levels(count: int, together, before) -> list[int] | None:
     return [level[find(n)] for n in range(count)]
 
 
-def _stagewise_matches(ex: list, hot_idx: dict, cold_idx: dict) -> set | None:
-    """(hot, cold, stage) of every exchanger of ``ex`` laid into stages, or None when their orders conflict."""
+def _stagewise_matches(ex: list, hot_idx: dict, cold_idx: dict) -> dict | None:
+    """(hot, cold, stage) → index in ``ex`` of every exchanger laid into stages, or None when their orders
+    conflict."""
     together, before = [], set()
     for side in ("hot", "cold"):
         by_stream: dict = {}
@@ -382,12 +394,12 @@ def _stagewise_matches(ex: list, hot_idx: dict, cold_idx: dict) -> set | None:
     levels = contracted_levels(len(ex), together, before)
     if levels is None:
         return None
-    matches = set()
+    matches: dict = {}
     for n, e in enumerate(ex):
         key = (hot_idx[e.hot], cold_idx[e.cold], levels[n])
         if key in matches:
             return None
-        matches.add(key)
+        matches[key] = n
     return matches
 
 

@@ -277,3 +277,47 @@ def test_a_steam_level_between_two_exchangers_that_cannot_reach_the_target_start
     check_network(net, streams, utilities, dt_min=EMAT)
     lp = [h for h in net.heaters if h.utility == "LP steam"]
     assert lp and all(h.cold_in == pytest.approx(60.0) and h.cold_out <= 150.0 - EMAT + 1e-9 for h in lp)
+
+
+def test_the_mer_start_carries_the_duties_of_its_exchangers():
+    """The MER network drawn above (invented): the feed meets H2 (400 kW) at its hot end and H1 (500 kW)
+    below it, so laid into stages H2's exchanger comes first.  The start gives the search those duties as
+    its guess of the topology's loads (before, only the topology: the refinement began at the LP vertex,
+    which on streams of several segments is often no feasible start, and otherwise a poorer one)."""
+    from heatloom.network.structure import Exchanger, Heater, Network
+    from heatloom.network.tac.starts import start_from_network
+
+    streams = StreamTable([Stream.simple("H1", 120.0, 70.0, 10.0, film_coefficient=1.0),
+                           Stream.simple("H2", 180.0, 140.0, 10.0, film_coefficient=1.0),
+                           Stream.simple("feed", 60.0, 200.0, 10.0, film_coefficient=1.0)])
+    utilities = [Utility("HP steam", 250.0, 250.0, 80.0, UtilityKind.HOT, 3.0),
+                 Utility("LP steam", 150.0, 150.0, 40.0, UtilityKind.HOT, 3.0),
+                 Utility("CW", 20.0, 30.0, 10.0, UtilityKind.COLD, 1.5)]
+    mer = Network((Exchanger("H1", "feed", 500.0, 120.0, 70.0, 60.0, 110.0),
+                   Exchanger("H2", "feed", 400.0, 180.0, 140.0, 130.0, 170.0)),
+                  (Heater("feed", "LP steam", 200.0, 110.0, 130.0, 150.0, 150.0),
+                   Heater("feed", "HP steam", 300.0, 170.0, 200.0, 250.0, 250.0)), (), 10.0)
+    p = make_problem(streams, utilities, COSTS, EMAT)
+    top, loads = start_from_network(p, mer)
+    h1, h2, feed = p.hot_names.index("H1"), p.hot_names.index("H2"), p.cold_names.index("feed")
+    assert loads == {(h2, feed, 0): pytest.approx(400.0), (h1, feed, 1): pytest.approx(500.0)}
+    assert set(loads) == set(top.matches)
+
+
+def test_a_mer_heater_over_part_of_its_oil_range_still_starts_the_search():
+    """Invented: H1 340 → 250 °C and a feed 200 → 295 °C (10 kW/K each), hot oil 330 → 250 °C.  The MER
+    design preheats the feed with oil from 200 to 205 °C and H1 takes it to 295 °C.  Laid into the stagewise
+    form the heater sits at the feed's target end, where oil returning at 250 °C cannot heat it from 290 °C,
+    and H1 has no cooler to leave its heat to: no loads of that topology keep the approaches, and the search
+    lost its MER start (only "utilities only" was left).  It now starts from that topology with a heater and
+    a cooler at every stream end, with a note; the result passes check_network at EMAT."""
+    streams = StreamTable.from_arrays(["H1", "feed"], [340.0, 200.0], [250.0, 295.0], [10.0, 10.0],
+                                      film_coefficient=[1.0, 1.0])
+    utilities = [Utility("oil", 330.0, 250.0, 60.0, UtilityKind.HOT, 1.0),
+                 Utility("CW", 20.0, 30.0, 10.0, UtilityKind.COLD, 1.0)]
+    net = design_tac(streams, utilities, costs=COSTS, emat=EMAT, time_limit=30, seed=0, starts=1, workers=1,
+                     rounds=2)
+    starts = next(n for n in net.notes if n.startswith("TAC search:"))
+    assert "MER network at ΔTmin 10 K" in starts
+    assert any(n.startswith("no loads of the MER network's topology keep every approach") for n in net.notes)
+    check_network(net, streams, utilities, dt_min=EMAT)
