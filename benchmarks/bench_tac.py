@@ -10,11 +10,13 @@ Then generated problems of 20 and 40 streams (--generated; invented data, fixed 
 generator of benchmarks/bench_design.py, with invented utilities and cost law, see :func:`generated_case`)
 get a row each with their TAC, units, splits and wall time (there is no published TAC to compare with);
 --steam-levels gives them three steam levels, steam raising and cooling water instead (utility units at
-the streams' supply ends come into play: compare with an older checkout for what they are worth).
+the streams' supply ends come into play: compare with an older checkout for what they are worth);
+--hot-oil gives them hot oil 330 -> 250 °C and cooling water, --segments two segments on every other stream.
 Asserts nothing; run:
 
     python benchmarks/bench_tac.py [--time-limit 290] [--seed 0] [--starts 2] [--rounds N] [--only NAME]
                                    [--generated 20 40] [--no-published] [--restructure] [--steam-levels]
+                                   [--hot-oil] [--segments]
 
 Without --rounds the search runs until the time limit (results then depend on the machine's speed).
 """
@@ -28,13 +30,13 @@ import sys
 import time
 from pathlib import Path
 
-from heatloom.model import Stream, StreamTable, Utility, UtilityKind
+from heatloom.model import Segment, Stream, StreamTable, Utility, UtilityKind
 from heatloom.model.costs import CostLaw, CostSettings
 from heatloom.network.streamorder import stream_positions
 from heatloom.network.tac.search import design_tac
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
-from bench_design import STEAM_LEVELS, generated  # noqa: E402  (the invented problems of the MER benchmark, same seed)
+from bench_design import HOT_OIL, STEAM_LEVELS, generated  # noqa: E402  (the invented problems of the MER benchmark, same seed)
 
 REFERENCES = Path(__file__).resolve().parents[1] / "tests" / "data" / "references"
 LAW = re.compile(r"\s*(?:(?P<fixed>[\d.]+)\s*\+\s*)?(?P<per_area>[\d.]+)\s*\*\s*A(?:\s*\*\*\s*(?P<exp>[\d.]+))?"
@@ -67,19 +69,41 @@ def problem(path: Path):
     return data, streams, utilities, costs
 
 
-def generated_case(n: int, steam_levels: bool = False):
+def two_segments(streams: StreamTable) -> StreamTable:
+    """Every other stream (the first, third, ...) cut at its middle temperature into two segments, the second
+    with 1.5 times the CP of the first (invented: a stream whose heat capacity changes along it)."""
+    out = []
+    for k, st in enumerate(streams):
+        g = st.segments[0]
+        if k % 2:
+            out.append(st)
+            continue
+        mid = 0.5 * (g.supply_temperature + g.target_temperature)
+        out.append(Stream(st.name, (Segment(g.supply_temperature, mid, g.heat_capacity_flow, g.film_coefficient),
+                                    Segment(mid, g.target_temperature, 1.5 * g.heat_capacity_flow,
+                                            g.film_coefficient))))
+    return StreamTable(tuple(out))
+
+
+def generated_case(n: int, steam_levels: bool = False, hot_oil: bool = False, segments: bool = False):
     """Invented TAC case of n streams: the generated streams, steam at 320 °C (80 per kW·year, h 3), cooling
     water 10 → 15 °C (10 per kW·year, h 1.5), every unit 8000 + 500·A^0.75 per year (annualised).
 
     With ``steam_levels`` (also invented): a site's utilities instead, HP steam at 320 °C (80), MP steam
     at 210 °C (60), LP steam at 150 °C (40), all h 3; steam raised at 140 °C from boiler feed water as a
-    cold utility (2 per kW·year, h 3) and the same cooling water."""
+    cold utility (2 per kW·year, h 3) and the same cooling water.
+
+    With ``hot_oil`` (invented): hot oil 330 -> 250 °C and cooling water instead (``HOT_OIL`` of
+    benchmarks/bench_design.py).  With ``segments``: every other stream in two segments (:func:`two_segments`)."""
+    streams = two_segments(generated(n)) if segments else generated(n)
     if steam_levels:
         utilities = list(STEAM_LEVELS)
+    elif hot_oil:
+        utilities = list(HOT_OIL)
     else:
         utilities = [Utility("HU", 320, 320, 80.0, UtilityKind.HOT, 3.0),
                      Utility("CU", 10, 15, 10.0, UtilityKind.COLD, 1.5)]
-    return generated(n), utilities, CostSettings(annualised=True, exchanger=CostLaw(8000.0, 500.0, 0.75))
+    return streams, utilities, CostSettings(annualised=True, exchanger=CostLaw(8000.0, 500.0, 0.75))
 
 
 def splits(net) -> int:
@@ -109,6 +133,10 @@ def main() -> None:
     ap.add_argument("--steam-levels", action="store_true",
                     help="give the generated problems a site's utilities (three steam levels, steam raising and "
                          "cooling water, invented) instead of one steam level and cooling water")
+    ap.add_argument("--hot-oil", action="store_true",
+                    help="give the generated problems hot oil 330 -> 250 °C and cooling water (invented) instead")
+    ap.add_argument("--segments", action="store_true",
+                    help="cut every other generated stream into two segments of different CP (invented)")
     ap.add_argument("--restructure", action="store_true",
                     help="give the last part of the time limit to the search beyond the stagewise form "
                          "(design_tac(restructure=True): units moved along their streams, utility units on "
@@ -139,14 +167,15 @@ def main() -> None:
             if note.startswith(("TAC search", "the time limit", "search beyond", "the stagewise search")):
                 print(f"    {note}", file=sys.stderr)
     for n in args.generated or ():
-        streams, utilities, costs = generated_case(n, args.steam_levels)
+        streams, utilities, costs = generated_case(n, args.steam_levels, args.hot_oil, args.segments)
         t0 = time.perf_counter()
         net = design_tac(streams, utilities, costs=costs, emat=1.0, time_limit=args.time_limit, seed=args.seed,
                          starts=args.starts, rounds=args.rounds if args.rounds is not None else 10 ** 6,
                          restructure=args.restructure)
         wall = time.perf_counter() - t0
         hot = sum(s.is_hot for s in streams)
-        label = f"generated {n} ({hot}h{n - hot}c{', steam levels' * args.steam_levels})"
+        label = (f"generated {n} ({hot}h{n - hot}c{', steam levels' * args.steam_levels}{', oil' * args.hot_oil}"
+                 f"{', segments' * args.segments})")
         row = (f"{label:<34} {n:>7} {net.total_annual_cost:>12,.0f} "
                f"{'-':>14} {'-':>7} {'-':>6} {net.units:>5} {splits(net):>6} {wall:>8.1f} {args.seed:>4}  "
                "(no published value: invented data)")
