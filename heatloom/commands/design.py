@@ -101,10 +101,10 @@ def register(sub) -> None:
                        help="also remove the smallest unit of every heat-load loop while one can go (fewer units, "
                             "each step's energy penalty printed)")
     p.add_argument("--least-utility-flow", action="store_true",
-                   help=f"mer, above {defaults.TICK_OFF_ABOVE} streams: keep hot oil and cooling water at the least flow of their energy "
-                        "targets, returned at their design temperatures (by default a region may be fed from a "
-                        "supply header, each unit returning the utility at its own temperature; the notes say "
-                        "so)")
+                   help=f"mer, above {defaults.TICK_OFF_ABOVE} streams: keep hot oil and cooling water at the "
+                        "least flow of their energy targets, returned at their design temperatures (by default a "
+                        "region may be fed from a supply header, each unit returning the utility at its own "
+                        "temperature; the notes say so)")
     tac = p.add_argument_group("--mode tac")
     tac.add_argument("--emat", type=positive, default=None, metavar="K",
                      help=f"exchanger minimum approach temperature at both ends of every unit [K] "
@@ -115,9 +115,9 @@ def register(sub) -> None:
     tac.add_argument("--rounds", type=whole_number(0), default=40, metavar="N",
                      help="kicks of the iterated local search per start (default 40)")
     tac.add_argument("--restructure", action="store_true",
-                     help=f"give the last {defaults.RESTRUCTURE_SHARE * 100:g}%% of the time limit to a search beyond the "
-                          "stagewise form: units moved along their streams, a heater or cooler onto a split "
-                          f"branch beside an exchanger (up to {defaults.RESTRUCTURE_STREAMS} streams of one "
+                     help=f"give the last {defaults.RESTRUCTURE_SHARE * 100:g}%% of the time limit to a search "
+                          "beyond the stagewise form: units moved along their streams, a heater or cooler onto a "
+                          f"split branch beside an exchanger (up to {defaults.RESTRUCTURE_STREAMS} streams of one "
                           "segment each; kept only when cheaper)")
     p.set_defaults(handler=run)
 

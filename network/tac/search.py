@@ -199,8 +199,8 @@ class _Search:
             self.cache[key] = None
             return None
         self.evals += 1
-        sol = solve_topology(self.p, top, [guess] if guess else [], extra_vertex=not guess if vertex is None else vertex,
-                             deadline=self.deadline)
+        sol = solve_topology(self.p, top, [guess] if guess else [],
+                             extra_vertex=not guess if vertex is None else vertex, deadline=self.deadline)
         if sol is not None:
             tiny = 1e-4 * self.p.scale   # ten times the least load the refinement allows
             small = [k for k, d in zip(sol.keys, sol.duties) if d <= tiny]
@@ -393,7 +393,8 @@ ROUNDS_PER_EPOCH = 4
 """Kicks of the iterated local search between two reports of progress [-]."""
 
 
-def _mer_start(search: _Search, p: TacProblem, top: Topology, loads: dict, notes: list) -> TopologySolution | None:
+def _mer_start(search: _Search, p: TacProblem, top: Topology, loads: dict, notes: list
+               ) -> TopologySolution | None:
     """The MER network's topology refined from its own duties and from the LP vertex; when no loads of it
     keep the approaches, the same with a heater and a cooler at the end of every stream a utility can serve
     alone (:func:`_fallback_topology`; the refinement drops the ones it does not need), with a note.
