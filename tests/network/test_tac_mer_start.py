@@ -243,17 +243,10 @@ def test_the_stagewise_milp_proposes_supply_end_units():
         assert [levels[lv].name for _, lv in getattr(top, side)] == [level]
 
 
-def test_a_steam_level_between_two_exchangers_that_cannot_reach_the_target_starts_at_the_supply_end():
-    """A MER network (drawn here, invented) heats a feed 60 → 200 °C: H1 takes it to 110 °C, LP steam at
-    150 °C to 130 °C, H2 to 170 °C, HP steam at 250 °C to 200 °C.  LP steam cannot take the feed to its 200 °C
-    target, so at the target end (the only place the stagewise form had) the topology was infeasible and the
-    TAC search lost its MER start (found on generated 20 streams with three steam levels).  It now starts at
-    the supply end, and the topology's loads are feasible: checked by building the network of its optimum
-    and checking it at EMAT (check_network, independent of the NLP)."""
+def _drawn_feed_network():
+    """Streams, utilities and a MER network drawn by hand (invented): a feed heated 60 → 200 °C by H1 to
+    110 °C, LP steam at 150 °C to 130 °C, H2 to 170 °C and HP steam at 250 °C to 200 °C."""
     from heatloom.network.structure import Exchanger, Heater, Network
-    from heatloom.network.tac.build import network_from_solution
-    from heatloom.network.tac.nlp import solve_topology
-    from heatloom.network.tac.starts import topology_from_network
 
     streams = StreamTable([Stream.simple("H1", 120.0, 70.0, 10.0, film_coefficient=1.0),
                            Stream.simple("H2", 180.0, 140.0, 10.0, film_coefficient=1.0),
@@ -265,6 +258,21 @@ def test_a_steam_level_between_two_exchangers_that_cannot_reach_the_target_start
                    Exchanger("H2", "feed", 400.0, 180.0, 140.0, 130.0, 170.0)),
                   (Heater("feed", "LP steam", 200.0, 110.0, 130.0, 150.0, 150.0),
                    Heater("feed", "HP steam", 300.0, 170.0, 200.0, 250.0, 250.0)), (), 10.0)
+    return streams, utilities, mer
+
+
+def test_a_steam_level_between_two_exchangers_that_cannot_reach_the_target_starts_at_the_supply_end():
+    """A MER network (drawn here, invented) heats a feed 60 → 200 °C: H1 takes it to 110 °C, LP steam at
+    150 °C to 130 °C, H2 to 170 °C, HP steam at 250 °C to 200 °C.  LP steam cannot take the feed to its 200 °C
+    target, so at the target end (the only place the stagewise form had) the topology was infeasible and the
+    TAC search lost its MER start (found on generated 20 streams with three steam levels).  It now starts at
+    the supply end, and the topology's loads are feasible: checked by building the network of its optimum
+    and checking it at EMAT (check_network, independent of the NLP)."""
+    from heatloom.network.tac.build import network_from_solution
+    from heatloom.network.tac.nlp import solve_topology
+    from heatloom.network.tac.starts import topology_from_network
+
+    streams, utilities, mer = _drawn_feed_network()
     check_network(mer, streams, utilities)   # the drawn network itself is sound
     p = make_problem(streams, utilities, COSTS, EMAT)
     top = topology_from_network(p, mer)
@@ -284,19 +292,9 @@ def test_the_mer_start_carries_the_duties_of_its_exchangers():
     below it, so laid into stages H2's exchanger comes first.  The start gives the search those duties as
     its guess of the topology's loads (before, only the topology: the refinement began at the LP vertex,
     which on streams of several segments is often no feasible start, and otherwise a poorer one)."""
-    from heatloom.network.structure import Exchanger, Heater, Network
     from heatloom.network.tac.starts import start_from_network
 
-    streams = StreamTable([Stream.simple("H1", 120.0, 70.0, 10.0, film_coefficient=1.0),
-                           Stream.simple("H2", 180.0, 140.0, 10.0, film_coefficient=1.0),
-                           Stream.simple("feed", 60.0, 200.0, 10.0, film_coefficient=1.0)])
-    utilities = [Utility("HP steam", 250.0, 250.0, 80.0, UtilityKind.HOT, 3.0),
-                 Utility("LP steam", 150.0, 150.0, 40.0, UtilityKind.HOT, 3.0),
-                 Utility("CW", 20.0, 30.0, 10.0, UtilityKind.COLD, 1.5)]
-    mer = Network((Exchanger("H1", "feed", 500.0, 120.0, 70.0, 60.0, 110.0),
-                   Exchanger("H2", "feed", 400.0, 180.0, 140.0, 130.0, 170.0)),
-                  (Heater("feed", "LP steam", 200.0, 110.0, 130.0, 150.0, 150.0),
-                   Heater("feed", "HP steam", 300.0, 170.0, 200.0, 250.0, 250.0)), (), 10.0)
+    streams, utilities, mer = _drawn_feed_network()
     p = make_problem(streams, utilities, COSTS, EMAT)
     top, loads = start_from_network(p, mer)
     h1, h2, feed = p.hot_names.index("H1"), p.hot_names.index("H2"), p.cold_names.index("feed")
