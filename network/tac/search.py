@@ -186,14 +186,14 @@ class _Search:
             self.timed_out = True
         return self.timed_out
 
-    def evaluate(self, top: Topology, guess: dict | None = None, *, vertex: bool | None = None
-                 ) -> TopologySolution | None:
+    def evaluate(self, top: Topology, guess: dict | None = None, *, vertex: bool | None = None,
+                 again: bool = False) -> TopologySolution | None:
         """The refined topology (cached), or None when it is infeasible or lacks a required match.  It is
         refined from ``guess`` (loads by unit key) and, with ``vertex`` (by default when there is no
-        guess), from the LP vertex too."""
+        guess), from the LP vertex too; ``again`` refines it even when the cache has it."""
         top, guess = canonical(top, guess)
         key = top.key()
-        if key in self.cache:
+        if key in self.cache and not again:
             return self.cache[key]
         if self.p.required and self.p.missing(unit_kinds(top)):
             self.cache[key] = None
@@ -395,17 +395,17 @@ ROUNDS_PER_EPOCH = 4
 
 def _mer_start(search: _Search, p: TacProblem, top: Topology, loads: dict, notes: list
                ) -> TopologySolution | None:
-    """The MER network's topology refined (from the LP vertex; with streams of several segments from the
-    MER network's own duties too); when no loads of it keep the approaches, the same with a heater and a
-    cooler at the end of every stream a utility can serve alone (:func:`_fallback_topology`; the refinement
-    drops the ones it does not need), with a note.
+    """The MER network's topology refined from the LP vertex; with streams of several segments, where that
+    finds no feasible loads, from the MER network's own duties; when none keep the approaches, the same
+    with a heater and a cooler at the end of every stream a utility can serve alone
+    (:func:`_fallback_topology`; the refinement drops the ones it does not need), with a note.
 
     Its own duties matter with streams of several segments, whose approaches are not linear in the loads:
-    the vertex is often no feasible start there, or a poor one (on generated cases of 4 to 12 streams,
-    two segments on every other one: 832,390 against 365,267 per year from the MER duties).  With streams
-    of one segment the LP projection of the vertex is as good a start (the published problems: the MER
-    duties as a second start made the aromatics plant's 300 s result 0.1 % dearer, another basin), and an
-    infeasible vertex proves the topology infeasible.  The utility units matter where the MER design
+    the vertex can be no feasible start there.  They are not a second start where the vertex gives one:
+    on the shipped solvent-recovery case that took the time of two MILP iterations (120 s: 154,522 per
+    year and 12 units against 151,995 and 10), and with streams of one segment it led the aromatics plant
+    to another basin (0.1 % dearer in 300 s); with one segment an infeasible vertex proves the topology
+    infeasible.  The utility units matter where the MER design
     passes hot oil through several heaters in series (a header above :data:`heatloom.defaults.TICK_OFF_ABOVE`
     streams):
     a heater of the TAC model takes the utility over its whole range, so a heater that raised a stream
@@ -413,7 +413,9 @@ def _mer_start(search: _Search, p: TacProblem, top: Topology, loads: dict, notes
     exchangers needs somewhere else to go.
     """
     guess = loads if p.segmented else None
-    sol = search.evaluate(top, guess, vertex=True)
+    sol = search.evaluate(top)
+    if sol is None and guess is not None:
+        sol = search.evaluate(top, guess, vertex=False, again=True)
     if sol is not None:
         return sol
     ends = _fallback_topology(p)
