@@ -78,7 +78,8 @@ from .remainder import REMAINDER_MILP_SIDES, as_rectangles, place_remainder
 from .solvers import SolveReport
 from .utility_tails import join_utility_tails
 
-__all__ = ["MAX_PIECE_PAIRS", "REMAINDER_MILP_SIDES", "TickOffResult", "cascade_feasible", "tick_off_placement", "tick_off_search"]
+__all__ = ["MAX_PIECE_PAIRS", "REMAINDER_MILP_SIDES", "TickOffResult", "cascade_feasible", "tick_off_placement",
+           "tick_off_search"]
 
 
 @dataclass(frozen=True)
@@ -109,9 +110,6 @@ class TickOffResult:
     moves: int = 0
 
 
-# A step: (hot piece, cold piece, kind, load, excess, both off); kind (hot end, cold end) with end 0 the
-# inlet and 1 the outlet, or "split hot" / "split cold" (a branch of that piece over its whole stretch
-# ticks the other piece off).
 MAX_PIECE_PAIRS = 1_000_000
 """Most (hot piece × cold piece) pairs a tick-off search steps over [-]; beyond it the search stops and
 leaves the rest to the remainder placement.  Cuts at the inner pinches of what is left multiply the pieces:
@@ -124,6 +122,9 @@ _CHUNK_CELLS = 2_000_000
 floats; the pairs are checked in chunks of that size."""
 
 
+# A step: (hot piece, cold piece, kind, load, excess, both off); kind (hot end, cold end) with end 0 the
+# inlet and 1 the outlet, or "split hot" / "split cold" (a branch of that piece over its whole stretch
+# ticks the other piece off).
 def _candidates(state: Pieces, hot: list[int], cold: list[int], allowed, tol: float, points: np.ndarray,
                 residual: np.ndarray, mode: str, deadline: float | None = None):
     """Every step of a mode ("ends", "split" or a partial share) that keeps ΔTmin at the unit's ends and

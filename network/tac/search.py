@@ -393,8 +393,7 @@ ROUNDS_PER_EPOCH = 4
 """Kicks of the iterated local search between two reports of progress [-]."""
 
 
-def _mer_start(search: _Search, p: TacProblem, top: Topology, loads: dict, notes: list
-               ) -> TopologySolution | None:
+def _mer_start(search: _Search, top: Topology, loads: dict, notes: list) -> TopologySolution | None:
     """The MER network's topology refined from the LP vertex; with streams of several segments, where that
     finds no feasible loads, from the MER network's own duties; when none keep the approaches, the same
     with a heater and a cooler at the end of every stream a utility can serve alone
@@ -405,17 +404,17 @@ def _mer_start(search: _Search, p: TacProblem, top: Topology, loads: dict, notes
     on the shipped solvent-recovery case that took the time of two MILP iterations (120 s: 154,522 per
     year and 12 units against 151,995 and 10), and with streams of one segment it led the aromatics plant
     to another basin (0.1 % dearer in 300 s); with one segment an infeasible vertex proves the topology
-    infeasible.  The utility units matter where the MER design
-    passes hot oil through several heaters in series (a header above :data:`heatloom.defaults.TICK_OFF_ABOVE`
-    streams):
-    a heater of the TAC model takes the utility over its whole range, so a heater that raised a stream
-    from 275 to 295 °C with oil 330 → 327 °C cannot be laid out as one, and the heat it leaves to process
-    exchangers needs somewhere else to go.
+    infeasible.  The utility units matter where the MER design passes hot oil through several heaters in
+    series (a header above :data:`heatloom.defaults.TICK_OFF_ABOVE` streams): a heater of the TAC model
+    takes the utility over its whole range, so a heater that raised a stream from 275 to 295 °C with oil
+    330 → 327 °C cannot be laid out as one, and the heat it leaves to process exchangers needs somewhere
+    else to go.
     """
+    p = search.p
     guess = loads if p.segmented else None
     sol = search.evaluate(top)
     if sol is None and guess is not None:
-        sol = search.evaluate(top, guess, vertex=False, again=True)
+        sol = search.evaluate(top, guess, again=True)
     if sol is not None:
         return sol
     ends = _fallback_topology(p)
@@ -612,7 +611,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
                       default_film_coefficient=default_film_coefficient, forbidden=forbidden, required=required)
     start = start_from_network(p, mer) if mer is not None else None
     if start is not None:
-        keep(_mer_start(search, p, *start, notes), f"MER network at ΔTmin {max(MER_DT_MIN, emat):g} K")
+        keep(_mer_start(search, *start, notes), f"MER network at ΔTmin {max(MER_DT_MIN, emat):g} K")
     epochs = max(1, -(-rounds // ROUNDS_PER_EPOCH)) if rounds else 0
     n_workers = workers if workers is not None else min(starts, os.cpu_count() or 1)
     pool = local_pool(n_workers) if n_workers > 1 and starts > 1 and epochs else None
