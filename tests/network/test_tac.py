@@ -454,6 +454,32 @@ def piecewise_area(hot_pts, cold_pts):
     return area, smallest
 
 
+def test_segmented_cost_gradient_and_approach_jacobian_match_numerical_differences():
+    # invented data (synthesis_problems.segmented_problem); the refinement's gradient of the exact cost and
+    # Jacobian of the approaches (each unit differenced in its own end values, chained through the affine
+    # maps) against scipy's numerical differentiation of the whole cost and approaches, computed here
+    from scipy.optimize._numdiff import approx_derivative
+
+    from heatloom.network.tac.profiles import SegmentedModel
+
+    streams, utilities = segmented_problem()
+    costs = CostSettings(annualised=True, exchanger=CostLaw(2000, 700, 0.8))
+    p = make_problem(streams, utilities, costs, 5.0)
+    top = topology_from_network(p, design_mer(streams, 10.0, utilities, time_limit=60))
+    sm = SegmentedModel(p, top)
+    assert any(len(hot.inner) for hot, _ in sm.sides)          # some unit meets the vapour's segment breaks
+    vertex = sm.vertex()
+    assert vertex is not None
+    rng = np.random.default_rng(0)
+    for x in [vertex] + [vertex * rng.uniform(0.9, 1.1, size=vertex.shape) for _ in range(4)]:
+        cost, grad = sm.cost_and_gradient(x)
+        assert cost == pytest.approx(sm.cost(x), rel=1e-12)
+        numerical = approx_derivative(sm.cost, x, method="3-point")
+        np.testing.assert_allclose(grad, numerical, rtol=1e-5, atol=1e-6 * np.max(np.abs(numerical)))
+        jac = approx_derivative(sm.approaches, x, method="3-point")
+        np.testing.assert_allclose(sm.approaches_jacobian(x), jac, rtol=1e-5, atol=1e-7)
+
+
 @pytest.mark.slow
 def test_segmented_streams_are_designed_and_sized_segment_by_segment():
     # invented data; each unit's area is recomputed here as the sum over the segments it spans (the log mean
