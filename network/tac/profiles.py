@@ -22,7 +22,7 @@ boundary (:class:`Profile`).  For a fixed topology (:func:`solve_segmented`):
   guesses), and a solution is kept only if it keeps every approach exactly; none is returned otherwise.
   The gradient of the cost and the Jacobian of the approaches are each unit's central differences in its
   own five end values (duty, four end coordinates), chained through the affine maps
-  (:meth:`SegmentedModel.cost_and_gradient`); until 2026-12-05 SLSQP differenced the whole cost in every
+  (:meth:`SegmentedModel.cost_gradient`; closed forms for a unit whose sides have no segment break); until 2026-12-05 SLSQP differenced the whole cost in every
   load, which on 40 generated streams took 0.54 s per gradient against 4 ms now.
 
 The network is built and sized by :func:`heatloom.network.tac.build.network_from_solution` with
@@ -32,9 +32,7 @@ check_network`, which checks the approach at every segment break too.
 
 from __future__ import annotations
 
-import math
 import warnings
-from bisect import bisect_right
 from dataclasses import dataclass
 
 import numpy as np
@@ -112,175 +110,194 @@ def stream_profile(stream, h_of) -> Profile:
     return Profile(np.ascontiguousarray(tau), np.ascontiguousarray(temp), np.ascontiguousarray(h))
 
 
-def _log_mean(a: float, b: float) -> float:
-    """Log mean of two temperature differences [K] (each floored at 1e-9 K; the mean when they are equal)."""
-    a, b = max(a, 1e-9), max(b, 1e-9)
-    if abs(a - b) < 1e-6 * max(a, b):
-        return 0.5 * (a + b)
-    return (a - b) / math.log(a / b)
-
-
-class _Side:
-    """One side of a unit as plain floats: its profile's knots (or none: a utility, or a stream of one
-    segment, whose coordinate is its temperature) and film coefficients."""
-
-    __slots__ = ("tau", "temp", "slope", "h", "inner")
-
-    def __init__(self, prof: Profile | None, h_util: float | None):
-        if prof is None or len(prof.tau) == 2 and prof.temp[0] == prof.tau[0] and prof.temp[1] == prof.tau[1]:
-            self.tau, self.temp, self.slope = None, None, None
-            self.h = [float(h_util if prof is None else prof.h[0])]
-            self.inner = []
-        else:
-            self.tau, self.temp = [float(v) for v in prof.tau], [float(v) for v in prof.temp]
-            self.slope = [(self.temp[k + 1] - self.temp[k]) / (self.tau[k + 1] - self.tau[k])
-                          for k in range(len(self.tau) - 1)]
-            self.h = [float(v) for v in prof.h]
-            self.inner = self.tau[1:-1]
-
-    def temperature(self, t: float) -> float:
-        """φ(τ) [°C] (:meth:`Profile.temperature` on one value)."""
-        if self.tau is None:
-            return t
-        k = min(max(bisect_right(self.tau, t) - 1, 0), len(self.slope) - 1)
-        return self.temp[k] + self.slope[k] * (t - self.tau[k])
-
-    def film(self, t: float) -> float:
-        """Film coefficient of the piece at τ [kW/(m²·K)] (:meth:`Profile.piece_h` on one value)."""
-        if len(self.h) == 1:
-            return self.h[0]
-        return self.h[min(max(bisect_right(self.tau, t) - 1, 0), len(self.h) - 1)]
+def _log_means(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """Log means of temperature differences [K], each floored at 1e-9 K; the mean where they are equal."""
+    a, b = np.maximum(a, 1e-9), np.maximum(b, 1e-9)
+    close = np.abs(a - b) < 1e-6 * np.maximum(a, b)
+    return np.where(close, 0.5 * (a + b), (a - b) / np.log(np.where(close, 2.0, a / np.where(close, 1.0, b))))
 
 
 FD_STEP = 6e-6
-"""Relative step of the central differences of a unit's area and approaches in its own end values [-]
-(about the cube root of the double-precision epsilon, the usual choice for central differences)."""
+"""Relative step of the central differences of the units' areas and approaches in their own end values
+[-] (about the cube root of the double-precision epsilon, the usual choice for central differences)."""
+
+
+class _Sides:
+    """One side (hot or cold) of every unit as padded arrays, for evaluating all units at once.
+
+    Row r holds the knots of unit r's stream on that side (τ ascending, padded with +inf), their
+    temperatures, the slopes and film coefficients of the pieces, and the number of pieces; a utility side
+    is the identity φ(τ) = τ with its film coefficient (one piece).
+    """
+
+    def __init__(self, profiles: list[Profile | None], h_util: list[float | None]):
+        width = max(len(pr.tau) if pr is not None else 2 for pr in profiles)
+        n = len(profiles)
+        self.tau = np.full((n, width), np.inf)
+        self.temp = np.zeros((n, width))
+        self.slope = np.zeros((n, width - 1))
+        self.h = np.ones((n, width - 1))
+        self.pieces = np.ones(n, dtype=int)
+        self.inner: list[np.ndarray] = []
+        for r, (pr, hu) in enumerate(zip(profiles, h_util)):
+            tau, temp, h = (np.array([0.0, 1.0]), np.array([0.0, 1.0]), np.array([hu])) if pr is None else \
+                (pr.tau, pr.temp, pr.h)
+            k = len(tau)
+            self.tau[r, :k], self.temp[r, :k], self.h[r, :k - 1] = tau, temp, h
+            self.slope[r, :k - 1] = np.diff(temp) / np.diff(tau)
+            self.pieces[r] = k - 1
+            self.inner.append(np.asarray(tau[1:-1], dtype=float))
+
+    def _piece(self, t: np.ndarray) -> np.ndarray:
+        """Index of the piece of each row's profile at τ = t[..., r, :] [-] (the end pieces beyond the ends)."""
+        k = np.sum(self.tau[:, None, :] <= t[..., None], axis=-1) - 1
+        return np.clip(k, 0, self.pieces[:, None] - 1)
+
+    def temperature(self, t: np.ndarray) -> np.ndarray:
+        """φ(τ) of every row at t (... × rows × points) [°C] (as :meth:`Profile.temperature`)."""
+        k = self._piece(t)
+        rows = np.arange(self.tau.shape[0])[:, None]
+        return self.temp[rows, k] + self.slope[rows, k] * (t - self.tau[rows, k])
+
+    def film(self, t: np.ndarray) -> np.ndarray:
+        """Film coefficient of the piece at τ = t (... × rows × points) [kW/(m²·K)] (as
+        :meth:`Profile.piece_h`)."""
+        return self.h[np.arange(self.tau.shape[0])[:, None], self._piece(t)]
 
 
 class SegmentedModel:
     """A topology in enthalpy coordinates with its exact approaches and segment-wise areas.
 
     Each unit's area and approaches depend on five values only (its duty and the coordinates of its four
-    ends), all affine in the loads; they are computed unit by unit in plain floats, and the gradient of the
-    cost and the Jacobian of the approaches come from central differences of each unit in those values
-    (exact in the duty, on which the area depends linearly), chained through the affine maps: some ten
-    evaluations of each unit per gradient instead of one evaluation of every unit per load.
+    ends), all affine in the loads.  All units are evaluated at once on padded arrays; the gradient of the
+    cost and the Jacobian of the approaches come from central differences of every unit in each of its end
+    values (all units perturbed together: a unit's area depends on its own end values only), exact in the
+    duty (on which the area depends linearly), chained through the affine maps: nine evaluations of the
+    units per gradient instead of one evaluation of the whole cost per load.
     """
 
     def __init__(self, p: TacProblem, top: Topology):
         self.p, self.m = p, TopologyModel(p, top)
-        self.sides = []   # per unit: (hot side, cold side) as _Side
-        for kind, key in zip(self.m.kinds, self.m.keys):
-            if kind is UnitKind.EXCHANGER:
-                self.sides.append((_Side(p.hot_profiles[key[0]], None), _Side(p.cold_profiles[key[1]], None)))
-            elif kind is UnitKind.HEATER:
-                self.sides.append((_Side(None, p.utility_h[0][key[2]]), _Side(p.cold_profiles[key[1]], None)))
-            else:
-                self.sides.append((_Side(p.hot_profiles[key[1]], None), _Side(None, p.utility_h[1][key[2]])))
-        util_rows = [r for r, kind in enumerate(self.m.kinds) if kind is not UnitKind.EXCHANGER]
-        self.G = np.vstack([self.m.duty.m[util_rows], self.m.required_rows[0]])
-        self.g = np.concatenate([self.m.duty.c[util_rows] - self.m.qmin, self.m.required_rows[1]])
         m = self.m
+        hot, cold, hot_h, cold_h = [], [], [], []
+        for kind, key in zip(m.kinds, m.keys):
+            if kind is UnitKind.EXCHANGER:
+                hot.append(p.hot_profiles[key[0]]), cold.append(p.cold_profiles[key[1]])
+                hot_h.append(None), cold_h.append(None)
+            elif kind is UnitKind.HEATER:
+                hot.append(None), cold.append(p.cold_profiles[key[1]])
+                hot_h.append(p.utility_h[0][key[2]]), cold_h.append(None)
+            else:
+                hot.append(p.hot_profiles[key[1]]), cold.append(None)
+                hot_h.append(None), cold_h.append(p.utility_h[1][key[2]])
+        self.hot, self.cold = _Sides(hot, hot_h), _Sides(cold, cold_h)
+        util_rows = [r for r, kind in enumerate(m.kinds) if kind is not UnitKind.EXCHANGER]
+        self.G = np.vstack([m.duty.m[util_rows], m.required_rows[0]])
+        self.g = np.concatenate([m.duty.c[util_rows] - m.qmin, m.required_rows[1]])
         self._maps = (m.duty, m.hot_in, m.hot_out, m.cold_in, m.cold_out)
-        # per unit, the end values (1 hot in, 2 hot out, 3 cold in, 4 cold out) that depend on the loads
-        self._live = [[e for e in range(1, 5) if np.any(self._maps[e].m[r] != 0.0)] for r in range(len(self.sides))]
-        sizes = [2 + len(hot.inner) + len(cold.inner) for hot, cold in self.sides]
-        self._rows = np.concatenate([[0], np.cumsum(sizes)]).astype(int)
+        # points of unit r: columns 0 and 1 its ends, then its hot knots, then its cold knots, then padding
+        # (the cold end again: no width in the area, left out of the approaches)
+        n_units = len(m.kinds)
+        nh = np.array([len(k) for k in self.hot.inner], dtype=int)
+        nc = np.array([len(k) for k in self.cold.inner], dtype=int)
+        width = 2 + int(np.max(nh + nc, initial=0))
+        self._hot_knots = np.full((n_units, width), np.nan)
+        self._cold_knots = np.full((n_units, width), np.nan)
+        for r in range(n_units):
+            self._hot_knots[r, 2:2 + nh[r]] = self.hot.inner[r]
+            self._cold_knots[r, 2 + nh[r]:2 + nh[r] + nc[r]] = self.cold.inner[r]
+        self._valid = np.arange(width)[None, :] < (2 + nh + nc)[:, None]
+        self._unit_of_row = np.nonzero(self._valid)[0]      # the unit of each approach row, in row order
+        self.knotted = [r for r in range(n_units) if nh[r] + nc[r]]
 
-    def _ends(self, x):
-        return tuple(a.c + a.m @ x for a in self._maps)
+    def _ends(self, x) -> np.ndarray:
+        """Duty and end coordinates of every unit (units × 5: q, hot in, hot out, cold in, cold out)."""
+        return np.column_stack([a.c + a.m @ x for a in self._maps])
 
-    def _points(self, r, hi, ho, ci, co):
-        """Positions s (0 at the hot end, 1 at the cold end) of the ends and knots of unit r, clamped to
-        [0, 1] [-]."""
-        hot, cold = self.sides[r]
-        s = [0.0, 1.0]
+    def _points(self, ends: np.ndarray) -> np.ndarray:
+        """Positions s (0 at the hot end, 1 at the cold end) of the ends and knots of every unit, clamped to
+        [0, 1] (units × points) [-]."""
+        hi, ho, ci, co = (ends[..., k:k + 1] for k in range(1, 5))
         dh, dc = hi - ho, co - ci
-        s += [min(max((hi - k) / dh, 0.0), 1.0) if dh > 1e-12 else 0.0 for k in hot.inner]
-        s += [min(max((co - k) / dc, 0.0), 1.0) if dc > 1e-12 else 0.0 for k in cold.inner]
-        return s
+        with np.errstate(divide="ignore", invalid="ignore"):
+            sh = np.where(dh > 1e-12, (hi - self._hot_knots) / np.where(dh > 1e-12, dh, 1.0), 0.0)
+            sc = np.where(dc > 1e-12, (co - self._cold_knots) / np.where(dc > 1e-12, dc, 1.0), 0.0)
+        s = np.where(np.isnan(self._hot_knots), np.where(np.isnan(self._cold_knots), 1.0, sc), sh)
+        s[..., 0] = 0.0
+        return np.clip(s, 0.0, 1.0)
 
-    def _approach(self, r, hi, ho, ci, co) -> list[float]:
-        """Approach minus the least approach at the ends and knots of unit r [K]."""
-        hot, cold = self.sides[r]
-        need = float(self.m.need[r])
-        dh, dc = hi - ho, co - ci
-        return [hot.temperature(hi - s * dh) - cold.temperature(co - s * dc) - need
-                for s in self._points(r, hi, ho, ci, co)]
+    def _differences(self, ends: np.ndarray, s: np.ndarray) -> np.ndarray:
+        """Hot minus cold temperature at positions s of every unit [K]."""
+        hi, ho, ci, co = (ends[..., k:k + 1] for k in range(1, 5))
+        return self.hot.temperature(hi - s * (hi - ho)) - self.cold.temperature(co - s * (co - ci))
 
-    def _area(self, r, q, hi, ho, ci, co) -> float:
-        """Area of unit r [m²]: Σ Q_k / (U_k ΔT_lm,k) over the pieces between its knots."""
-        hot, cold = self.sides[r]
-        s = sorted(set(self._points(r, hi, ho, ci, co)))
-        dh, dc = hi - ho, co - ci
-        dt = [hot.temperature(hi - v * dh) - cold.temperature(co - v * dc) for v in s]
-        total = 0.0
-        for k in range(len(s) - 1):
-            mid = 0.5 * (s[k] + s[k + 1])
-            u = 1.0 / (1.0 / hot.film(hi - mid * dh) + 1.0 / cold.film(co - mid * dc))
-            total += (s[k + 1] - s[k]) / (u * _log_mean(dt[k], dt[k + 1]))
-        return max(q, 1e-12) * total
+    def _approaches(self, ends: np.ndarray) -> np.ndarray:
+        """Approach minus least approach at every point (units × points; padding included) [K]."""
+        return self._differences(ends, self._points(ends)) - self.m.need[:, None]
+
+    def _areas(self, ends: np.ndarray) -> np.ndarray:
+        """Area of every unit [m²]: Σ Q_k / (U_k ΔT_lm,k) over the pieces between its knots (ends: ... ×
+        units × 5)."""
+        hi, ho, ci, co = (ends[..., k:k + 1] for k in range(1, 5))
+        s = np.sort(self._points(ends), axis=-1)
+        dt = self._differences(ends, s)
+        mid = 0.5 * (s[..., 1:] + s[..., :-1])
+        u = 1.0 / (1.0 / self.hot.film(hi - mid * (hi - ho)) + 1.0 / self.cold.film(co - mid * (co - ci)))
+        return np.maximum(ends[..., 0], 1e-12) * np.sum(
+            np.diff(s, axis=-1) / (u * _log_means(dt[..., :-1], dt[..., 1:])), axis=-1)
+
+    @staticmethod
+    def _steps(ends: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """The end values with each end coordinate e = 1..4 raised and lowered by each unit's step, stacked
+        (8 × units × 5: e = 1 up, e = 1 down, e = 2 up, ...), and the steps (units × 5) [K]."""
+        h = FD_STEP * np.maximum(1.0, np.abs(ends))
+        out = np.repeat(ends[None], 8, axis=0)
+        for e in range(1, 5):
+            out[2 * e - 2, :, e] += h[:, e]
+            out[2 * e - 1, :, e] -= h[:, e]
+        return out, h
 
     def approaches(self, x: np.ndarray) -> np.ndarray:
         """Approach minus the unit's least approach at the ends and every knot of every unit [K] (>= 0)."""
-        _, hi, ho, ci, co = self._ends(x)
-        out = [a for r in range(len(self.sides)) for a in self._approach(r, hi[r], ho[r], ci[r], co[r])]
-        return np.array(out, dtype=float)
+        return self._approaches(self._ends(x))[self._valid]
 
     def approaches_jacobian(self, x: np.ndarray) -> np.ndarray:
-        """d approaches / d x [K/kW]: central differences of each unit in its end values, chained."""
-        ends = np.column_stack(self._ends(x))
-        jac = np.zeros((int(self._rows[-1]), self.m.n))
-        for r in range(len(self.sides)):
-            block = slice(self._rows[r], self._rows[r + 1])
-            for e in self._live[r]:
-                v = ends[r].copy()
-                h = FD_STEP * max(1.0, abs(v[e]))
-                v[e] += h
-                up = self._approach(r, *v[1:])
-                v[e] -= 2.0 * h
-                down = self._approach(r, *v[1:])
-                jac[block] += np.outer((np.array(up) - np.array(down)) / (2.0 * h), self._maps[e].m[r])
+        """d approaches / d x [K/kW]: central differences of every unit in its end values, chained."""
+        moved, h = self._steps(self._ends(x))
+        app = self._approaches(moved)
+        jac = np.zeros((len(self._unit_of_row), self.m.n))
+        for e in range(1, 5):
+            d = ((app[2 * e - 2] - app[2 * e - 1]) / (2.0 * h[:, e:e + 1]))[self._valid]
+            jac += d[:, None] * self._maps[e].m[self._unit_of_row]
         return jac
 
     def areas(self, x: np.ndarray) -> np.ndarray:
         """Segment-wise area of every unit [m²]: Σ Q_k / (U_k ΔT_lm,k) over the pieces between knots."""
-        ends = self._ends(x)
-        return np.array([self._area(r, *(float(a[r]) for a in ends)) for r in range(len(self.sides))])
+        return self._areas(self._ends(x))
 
-    def cost_and_gradient(self, x: np.ndarray) -> tuple[float, np.ndarray]:
-        """Exact total annual cost [money/year] and its gradient in the loads [money/(year·kW)]."""
+    def cost_gradient(self, x: np.ndarray) -> np.ndarray:
+        """Gradient of the exact total annual cost in the loads [money/(year·kW)]: central differences of
+        every unit in its end coordinates, exact in its duty, chained through the affine maps."""
         m = self.m
-        ends = np.column_stack(self._ends(x))
-        area = np.array([self._area(r, *ends[r]) for r in range(len(self.sides))])
+        ends = self._ends(x)
+        area = self._areas(ends)
         a = np.maximum(area, 0.0)
-        cost = float((m.fixed + m.per_area * a ** m.exponent).sum() + (m.price * ends[:, 0]).sum())
         # d cost / d area (none at zero area, where the power law has no finite slope)
         slope = np.where(a > 0.0, m.per_area * m.exponent * np.where(a > 0.0, a, 1.0) ** (m.exponent - 1.0), 0.0)
-        local = np.zeros_like(ends)
-        local[:, 0] = np.where(ends[:, 0] > 1e-12, area / np.maximum(ends[:, 0], 1e-12), 0.0)   # linear in q
-        for r in range(len(self.sides)):
-            if slope[r] == 0.0:
-                continue
-            for e in self._live[r]:
-                v = ends[r].copy()
-                h = FD_STEP * max(1.0, abs(v[e]))
-                v[e] += h
-                up = self._area(r, *v)
-                v[e] -= 2.0 * h
-                local[r, e] = (up - self._area(r, *v)) / (2.0 * h)
-        weights = slope[:, None] * local
-        grad = m.duty.m.T @ m.price
-        for e, aff in enumerate(self._maps):
-            grad = grad + aff.m.T @ weights[:, e]
-        return cost, grad
+        q = ends[:, 0]
+        grad = m.duty.m.T @ (m.price + slope * np.where(q > 1e-12, area / np.maximum(q, 1e-12), 0.0))
+        moved, h = self._steps(ends)
+        moved_areas = self._areas(moved)
+        for e in range(1, 5):
+            grad += self._maps[e].m.T @ (slope * (moved_areas[2 * e - 2] - moved_areas[2 * e - 1]) / (2.0 * h[:, e]))
+        return grad
 
     def cost(self, x: np.ndarray) -> float:
         """Exact total annual cost of the loads x [money/year]."""
         m = self.m
-        q = m.duty.c + m.duty.m @ x
-        area = self.areas(x)
-        return float((m.fixed + m.per_area * np.maximum(area, 0.0) ** m.exponent).sum() + (m.price * q).sum())
+        ends = self._ends(x)
+        area = self._areas(ends)
+        return float((m.fixed + m.per_area * np.maximum(area, 0.0) ** m.exponent).sum() + (m.price * ends[:, 0]).sum())
 
     def balance_violation(self, x: np.ndarray) -> float:
         """Largest miss of a stream target, or of a utility unit's least duty [K or kW]."""
@@ -341,14 +358,16 @@ def solve_segmented(p: TacProblem, top: Topology, starts=(), *, max_iter: int = 
         cons.append({"type": "eq", "fun": lambda y: E @ y + e, "jac": lambda y: E})
 
     def objective(y):
-        f, g = sm.cost_and_gradient(y * s)
-        return f / f0, g * (s / f0)
+        return sm.cost(y * s) / f0
+
+    def gradient(y):
+        return sm.cost_gradient(y * s) * (s / f0)
 
     best = None
     for x0 in candidates:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
-            res = minimize(objective, x0 / s, jac=True, method="SLSQP", bounds=list(zip(lo / s, hi / s)),
+            res = minimize(objective, x0 / s, jac=gradient, method="SLSQP", bounds=list(zip(lo / s, hi / s)),
                            constraints=cons, options={"maxiter": max_iter, "ftol": 1e-10}, callback=stop_at(deadline))
         for x in (np.clip(res.x * s, lo, hi), x0):
             if sm.feasible(x):

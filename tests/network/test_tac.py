@@ -467,13 +467,12 @@ def test_segmented_cost_gradient_and_approach_jacobian_match_numerical_differenc
     p = make_problem(streams, utilities, costs, 5.0)
     top = topology_from_network(p, design_mer(streams, 10.0, utilities, time_limit=60))
     sm = SegmentedModel(p, top)
-    assert any(len(hot.inner) for hot, _ in sm.sides)          # some unit meets the vapour's segment breaks
+    assert 0 < len(sm.knotted) < len(sm.m.kinds)      # some units meet the vapour's segment breaks, some do not
     vertex = sm.vertex()
     assert vertex is not None
     rng = np.random.default_rng(0)
     for x in [vertex] + [vertex * rng.uniform(0.9, 1.1, size=vertex.shape) for _ in range(4)]:
-        cost, grad = sm.cost_and_gradient(x)
-        assert cost == pytest.approx(sm.cost(x), rel=1e-12)
+        grad = sm.cost_gradient(x)
         numerical = approx_derivative(sm.cost, x, method="3-point")
         np.testing.assert_allclose(grad, numerical, rtol=1e-5, atol=1e-6 * np.max(np.abs(numerical)))
         jac = approx_derivative(sm.approaches, x, method="3-point")
