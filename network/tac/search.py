@@ -68,7 +68,7 @@ from ...model import MatchRules, StreamTable, Utility
 from ...model.costs import CostSettings
 from ...tasks import local_pool, numeric_threads
 from ..design import match_rules
-from ..solvers import Budget
+from ..solvers import Budget, SolveStatus
 from ..structure import Network, check_network
 from .build import keeping_rules, network_from_solution
 from .layout_search import RESTRUCTURE_SHARE, RESTRUCTURE_STALL, RESTRUCTURE_STREAMS, beyond_stagewise
@@ -652,8 +652,17 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
             seen.add(top.key())
             sol = search.evaluate(top)
             keep(sol, f"MILP iteration {it + 1}")
-            if sol is not None:
-                est.update(unit_estimates(p, sol))
+            if sol is None:   # no new estimates: the next MILP would be this one again
+                break
+            est.update(unit_estimates(p, sol))
+            cheapest = min(c.tac for c in candidates)
+            if report.status is SolveStatus.TIME_LIMIT and report.objective is not None and \
+                    report.objective > cheapest and it + 1 < milp_iterations:
+                budget.notes.append(
+                    f"'{label}' stopped at its share with a topology its own estimate puts at "
+                    f"{report.objective:,.0f} per year, above the cheapest network already found ({cheapest:,.0f}): "
+                    "no further MILP iterations, their time went to the search")
+                break
         if not candidates:
             if required:
                 raise InfeasibleError(f"no network found with the required matches {', '.join(f'{h}:{c}' for h, c in sorted(required))} "

@@ -339,6 +339,41 @@ def test_every_solve_gets_at_most_what_is_left_and_the_notes_name_those_that_hit
     assert_sound(net, data, streams, utilities)
 
 
+@pytest.mark.parametrize("inflated", [True, False])
+def test_a_stopped_milp_worse_than_a_known_network_ends_the_milp_iterations(monkeypatch, inflated):
+    # Roetzel, Luo & Chen 2020, Table 6.16 data (Yee & Grossmann 1990).  The first stagewise MILP is
+    # reported as stopped at its share (the solve itself runs normally); when its objective (its own
+    # estimate of its topology's TAC) is above the cheapest network already refined, the next MILPs would
+    # only take the search's time: none is solved, and a note says so.  With its objective set below every
+    # network's TAC (1 per year) the iterations go on.
+    import dataclasses
+
+    from heatloom.network import solvers as budget_module
+
+    names = []
+    real_solve = budget_module.solve
+
+    def solve(problem, solver=None, *, time_limit, name=None, **kw):
+        names.append(name)
+        report = real_solve(problem, solver, time_limit=time_limit, name=name, **kw)
+        if name.endswith("iteration 1"):
+            report = dataclasses.replace(report, status=SolveStatus.TIME_LIMIT,
+                                         objective=1e9 if inflated else 1.0)
+        return report
+
+    monkeypatch.setattr(budget_module, "solve", solve)
+    data, streams, utilities, net = design_reference("synthesis_yee_grossmann_2h2c", seed=0, starts=1, rounds=0,
+                                                     workers=1, milp_iterations=3, time_limit=60)
+    milps = [n for n in names if n.startswith("TAC stagewise MILP")]
+    stopped = [n for n in net.notes if "no further MILP iterations" in n]
+    if inflated:
+        assert milps == ["TAC stagewise MILP, iteration 1"]
+        assert len(stopped) == 1 and "1,000,000,000 per year" in stopped[0]
+    else:
+        assert len(milps) >= 2 and not stopped
+    assert_sound(net, data, streams, utilities)
+
+
 def test_budget_shares_never_exceed_what_is_left():
     # a fake clock: 100 s budget, 90 s used
     now = [0.0]
