@@ -183,31 +183,42 @@ class TopologyModel:
                 at = utility_unit(side, s, lv, (0.0, unit_vec(var_of[side, s, lv])), at, cp, h)
             return at
 
-        # stage temperatures as (const, coeff)
-        th = {(i, 0): supply_chain(True, i, p.hot_in[i], p.hot_cp[i], p.hot_h[i]) for i in range(n_h)}
-        tc = {(j, K): supply_chain(False, j, p.cold_in[j], p.cold_cp[j], p.cold_h[j]) for j in range(n_c)}
-        on_hot: dict[tuple[int, int], list[int]] = {}   # (hot stream, stage) → its matches' columns
-        on_cold: dict[tuple[int, int], list[int]] = {}
+        # stage temperatures as (const, coeff), built only where a unit needs them: hot stream i enters
+        # stage k having given the loads of its matches of the stages before; cold stream j leaves stage k
+        # (boundary k) having taken those of stages k to K - 1
+        hot_start = {i: supply_chain(True, i, p.hot_in[i], p.hot_cp[i], p.hot_h[i]) for i in range(n_h)}
+        cold_start = {j: supply_chain(False, j, p.cold_in[j], p.cold_cp[j], p.cold_h[j]) for j in range(n_c)}
+        on_hot: dict[int, list[tuple[int, int]]] = {}   # hot stream → (stage, column) of its matches
+        on_cold: dict[int, list[tuple[int, int]]] = {}
         for idx, (i, j, k) in enumerate(self.matches):
-            on_hot.setdefault((i, k), []).append(idx)
-            on_cold.setdefault((j, k), []).append(idx)
-        for k in range(K):
-            for i in range(n_h):
-                c0, m0 = th[i, k]
+            on_hot.setdefault(i, []).append((k, idx))
+            on_cold.setdefault(j, []).append((k, idx))
+        th_memo: dict[tuple[int, int], tuple] = {}
+        tc_memo: dict[tuple[int, int], tuple] = {}
+
+        def th(i: int, k: int):
+            if (i, k) not in th_memo:
+                c0, m0 = hot_start[i]
                 m = m0.copy()
-                m[on_hot.get((i, k), [])] -= 1.0 / p.hot_cp[i]
-                th[i, k + 1] = (c0, m)
-        for k in range(K - 1, -1, -1):
-            for j in range(n_c):
-                c0, m0 = tc[j, k + 1]
+                for kk, idx in on_hot.get(i, ()):
+                    if kk < k:
+                        m[idx] -= 1.0 / p.hot_cp[i]
+                th_memo[i, k] = (c0, m)
+            return th_memo[i, k]
+
+        def tc(j: int, k: int):
+            if (j, k) not in tc_memo:
+                c0, m0 = cold_start[j]
                 m = m0.copy()
-                m[on_cold.get((j, k), [])] += 1.0 / p.cold_cp[j]
-                tc[j, k] = (c0, m)
-        self.th, self.tc = th, tc
+                for kk, idx in on_cold.get(j, ()):
+                    if kk >= k:
+                        m[idx] += 1.0 / p.cold_cp[j]
+                tc_memo[j, k] = (c0, m)
+            return tc_memo[j, k]
         for idx, (i, j, k) in enumerate(self.matches):
             u = 1.0 / (1.0 / p.hot_h[i] + 1.0 / p.cold_h[j])
-            rows.append((UnitKind.EXCHANGER, (i, j, k), (0.0, unit_vec(idx)), th[i, k], th[i, k + 1], tc[j, k + 1],
-                         tc[j, k], u, p.laws[UnitKind.EXCHANGER], 0.0, p.need(i, j)))
+            rows.append((UnitKind.EXCHANGER, (i, j, k), (0.0, unit_vec(idx)), th(i, k), th(i, k + 1), tc(j, k + 1),
+                         tc(j, k), u, p.laws[UnitKind.EXCHANGER], 0.0, p.need(i, j)))
         eq_c, eq_m = [], []
 
         def utility_chain(cooling: bool, s: int, end, target: float, cp: float, h: float) -> None:
@@ -231,9 +242,9 @@ class TopologyModel:
                 start = utility_unit(side, s, lv, duty, start, cp, h)
 
         for i in range(n_h):
-            utility_chain(True, i, th[i, K], p.hot_out[i], p.hot_cp[i], p.hot_h[i])
+            utility_chain(True, i, th(i, K), p.hot_out[i], p.hot_cp[i], p.hot_h[i])
         for j in range(n_c):
-            utility_chain(False, j, tc[j, 0], p.cold_out[j], p.cold_cp[j], p.cold_h[j])
+            utility_chain(False, j, tc(j, 0), p.cold_out[j], p.cold_cp[j], p.cold_h[j])
         self.rows = rows
         self.kinds = [r[0] for r in rows]
         self.keys = [r[1] for r in rows]
