@@ -20,10 +20,11 @@ boundary (:class:`Profile`).  For a fixed topology (:func:`solve_segmented`):
   with its own segments' film coefficients (as :func:`heatloom.equipment.segments.size_segments`);
 * SLSQP minimises the exact TAC over the loads from the least-utility-cost vertex of the balances (and any
   guesses), and a solution is kept only if it keeps every approach exactly; none is returned otherwise.
-  The gradient of the cost and the Jacobian of the approaches are each unit's central differences in its
-  own five end values (duty, four end coordinates), chained through the affine maps
-  (:meth:`SegmentedModel.cost_gradient`; closed forms for a unit whose sides have no segment break); until 2026-12-05 SLSQP differenced the whole cost in every
-  load, which on 40 generated streams took 0.54 s per gradient against 4 ms now.
+  All units are evaluated at once on padded arrays; the gradient of the cost and the Jacobian of the
+  approaches are every unit's central differences in its own four end coordinates (exact in its duty),
+  chained through the affine maps (:meth:`SegmentedModel.cost_gradient`); until 2026-12-05 SLSQP
+  differenced the whole cost in every load, which on 40 generated streams took 0.51 s per gradient
+  against 0.8 ms now.
 
 The network is built and sized by :func:`heatloom.network.tac.build.network_from_solution` with
 :func:`heatloom.equipment.segments.size_segments` and checked by :func:`heatloom.network.structure.
