@@ -41,6 +41,7 @@ from __future__ import annotations
 import time
 import warnings
 from dataclasses import dataclass, field
+from functools import cache
 
 import numpy as np
 from scipy.linalg import qr
@@ -193,28 +194,24 @@ class TopologyModel:
         for idx, (i, j, k) in enumerate(self.matches):
             on_hot.setdefault(i, []).append((k, idx))
             on_cold.setdefault(j, []).append((k, idx))
-        th_memo: dict[tuple[int, int], tuple] = {}
-        tc_memo: dict[tuple[int, int], tuple] = {}
 
+        @cache
         def th(i: int, k: int):
-            if (i, k) not in th_memo:
-                c0, m0 = hot_start[i]
-                m = m0.copy()
-                for kk, idx in on_hot.get(i, ()):
-                    if kk < k:
-                        m[idx] -= 1.0 / p.hot_cp[i]
-                th_memo[i, k] = (c0, m)
-            return th_memo[i, k]
+            c0, m0 = hot_start[i]
+            m = m0.copy()
+            for kk, idx in on_hot.get(i, ()):
+                if kk < k:
+                    m[idx] -= 1.0 / p.hot_cp[i]
+            return c0, m
 
+        @cache
         def tc(j: int, k: int):
-            if (j, k) not in tc_memo:
-                c0, m0 = cold_start[j]
-                m = m0.copy()
-                for kk, idx in on_cold.get(j, ()):
-                    if kk >= k:
-                        m[idx] += 1.0 / p.cold_cp[j]
-                tc_memo[j, k] = (c0, m)
-            return tc_memo[j, k]
+            c0, m0 = cold_start[j]
+            m = m0.copy()
+            for kk, idx in on_cold.get(j, ()):
+                if kk >= k:
+                    m[idx] += 1.0 / p.cold_cp[j]
+            return c0, m
         for idx, (i, j, k) in enumerate(self.matches):
             u = 1.0 / (1.0 / p.hot_h[i] + 1.0 / p.cold_h[j])
             rows.append((UnitKind.EXCHANGER, (i, j, k), (0.0, unit_vec(idx)), th(i, k), th(i, k + 1), tc(j, k + 1),

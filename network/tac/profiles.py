@@ -75,11 +75,6 @@ class Profile:
         out = np.where(t < self.tau[0], self.temp[0] + lo * (t - self.tau[0]), out)
         return np.where(t > self.tau[-1], self.temp[-1] + hi * (t - self.tau[-1]), out)
 
-    def piece_h(self, tau) -> np.ndarray:
-        """Film coefficient of the piece at τ [kW/(m²·K)]."""
-        k = np.clip(np.searchsorted(self.tau, tau, side="right") - 1, 0, len(self.h) - 1)
-        return self.h[k]
-
 
 def stream_profile(stream, h_of) -> Profile:
     """The :class:`Profile` of a stream; ``h_of(value, what)`` gives a segment's film coefficient.
