@@ -454,7 +454,11 @@ FRAME_COLUMNS = ("unit", "role", "hot", "cold", "duty [kW]", "area [m²]", "U [k
 
 
 def _side_duty(stream: Stream, t_in: float, t_out: float, fraction: float) -> float:
-    return fraction * abs(stream_enthalpy(stream, t_out) - stream_enthalpy(stream, t_in))
+    # a split branch (fraction < 1) may pass its stream's target before it mixes back
+    # (design_tac(branch_overshoot=True)): its enthalpy is continued beyond the range; a whole stream's is not
+    beyond = fraction < 1.0
+    return fraction * abs(stream_enthalpy(stream, t_out, extrapolate=beyond) -
+                          stream_enthalpy(stream, t_in, extrapolate=beyond))
 
 
 def smallest_approach(hot: Stream | Utility | None, cold: Stream | Utility | None, hot_in: float, hot_out: float,

@@ -219,23 +219,27 @@ def _covering(streams: StreamTable, net: Network) -> StreamTable:
     """The streams, each with its end segments continued (at their CP) over the unit temperatures that lie
     beyond its range by less than the tolerance of measured data
     (:data:`heatloom.defaults.MEASURED_BALANCE_TOLERANCE` of the range: the rounding of a table's areas
-    leaves a rated outlet a few mK past its target), so that sizing can cut each unit's part of the profile;
-    larger overshoots are left for sizing to refuse (the checks report them)."""
-    seen: dict[str, list[float]] = {}
+    leaves a rated outlet a few mK past its target), and over the temperatures of split branches that pass
+    the stream's target by any amount before they mix back (a lowest-TAC design with branch overshoot), so
+    that sizing can cut each unit's part of the profile; other overshoots are left for sizing to refuse (the
+    checks report them)."""
+    seen: dict[str, list[tuple[float, bool]]] = {}   # stream -> (temperature, on a split branch of it)
     for x in net.exchangers:
-        seen.setdefault(x.hot, []).extend((x.hot_in, x.hot_out))
-        seen.setdefault(x.cold, []).extend((x.cold_in, x.cold_out))
+        seen.setdefault(x.hot, []).extend((t, x.hot_fraction < 1.0) for t in (x.hot_in, x.hot_out))
+        seen.setdefault(x.cold, []).extend((t, x.cold_fraction < 1.0) for t in (x.cold_in, x.cold_out))
     for x in net.heaters:
-        seen.setdefault(x.cold, []).extend((x.cold_in, x.cold_out))
+        seen.setdefault(x.cold, []).extend((t, x.cold_fraction < 1.0) for t in (x.cold_in, x.cold_out))
     for x in net.coolers:
-        seen.setdefault(x.hot, []).extend((x.hot_in, x.hot_out))
+        seen.setdefault(x.hot, []).extend((t, x.hot_fraction < 1.0) for t in (x.hot_in, x.hot_out))
     out = []
     for st in streams:
         lo, hi = sorted((st.supply_temperature, st.target_temperature))
         tol = defaults.MEASURED_BALANCE_TOLERANCE * (hi - lo)
         temps = seen.get(st.name, [])
-        low = min((t for t in temps if lo - tol <= t < lo), default=lo)
-        high = max((t for t in temps if hi < t <= hi + tol), default=hi)
+        # a branch may pass the target end: below lo for a hot stream, above hi for a cold one
+        low = min((t for t, branch in temps if lo - tol <= t < lo or (branch and st.is_hot and t < lo)), default=lo)
+        high = max((t for t, branch in temps if hi < t <= hi + tol or (branch and not st.is_hot and t > hi)),
+                   default=hi)
         if low == lo and high == hi:
             out.append(st)
             continue

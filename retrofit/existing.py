@@ -308,17 +308,17 @@ class ExistingNetwork:
     def _duties(self, units: list[ExistingUnit], streams: dict, utilities: dict,
                 notes: list[str]) -> list[ExistingUnit]:
         order = {name: stages(units, name) for name in streams}
-        # stream duty of every unit, one stream at a time (a branch's share of it on a split)
+        # stream duty of every unit, one stream at a time: no unit carries more than its whole stream gives or
+        # takes between its supply and target temperatures (a unit on a split branch may carry more than the
+        # branch's share of it: the branch may pass the stream's target before it mixes back, as a lowest-TAC
+        # design with branch overshoot does; the approaches are checked at the temperatures that follow)
         for name, seq in order.items():
             s = streams[name]
             for u in (u for group in seq for u in group):
-                share = u.fraction(name)
-                if u.duty is not None and u.duty > share * s.duty * (1 + 1e-9) + _WRITTEN_DUTY:
+                if u.duty is not None and u.duty > s.duty * (1 + 1e-9) + _WRITTEN_DUTY:
                     raise InputError(f"unit '{u.name}': stated duty {u.duty:.6g} kW is more than stream '{name}' "
                                      f"{'gives' if s.is_hot else 'takes'} between its supply and target "
-                                     f"temperatures ({s.duty:.6g} kW)" + (
-                                         f" on its branch, which carries {share:.4g} of the stream "
-                                         f"({share * s.duty:.6g} kW)" if share < 1 else ""), row=u.row, column="duty")
+                                     f"temperatures ({s.duty:.6g} kW)", row=u.row, column="duty")
         # temperatures at the stated operating point: (stream, position) -> temperature after that position
         # (mixed after a split); (stream, position, unit) -> a branch's outlet
         known: dict[tuple, float] = {}

@@ -31,6 +31,7 @@ examples:
   heatloom design streams.csv --mode tac --utilities utilities.csv --costs costs.json --time-limit 300
   heatloom design streams.csv --mode tac --emat 2 --seed 7 --starts 2 --rounds 40 --json
   heatloom design streams.csv --mode tac --utilities utilities.csv --time-limit 300 --restructure
+  heatloom design streams.csv --mode tac --utilities utilities.csv --restructure --branch-overshoot
   heatloom design streams.csv --dtmin 10 --min-duty 50 --min-area 5
   heatloom design streams.csv --dtmin 10 --forbid H1:C2 --forbid H2:steam --require H3:C1
   heatloom design streams.csv --mode tac --utilities utilities.csv --forbid H1:C2 --require H3:C1
@@ -119,6 +120,11 @@ def register(sub) -> None:
                           "beyond the stagewise form: units moved along their streams, a heater or cooler onto a "
                           f"split branch beside an exchanger (up to {defaults.RESTRUCTURE_STREAMS} streams of one "
                           "segment each; kept only when cheaper)")
+    tac.add_argument("--branch-overshoot", action="store_true",
+                     help="let the branches of a split stream pass the stream's target temperature before they "
+                          "mix back to it (a cold branch hotter than its target, a hot branch colder); off by "
+                          "default, every branch stays inside its stream's range; the notes name each branch "
+                          "that passes its target")
     p.set_defaults(handler=run)
 
 
@@ -192,6 +198,10 @@ def run(args) -> int:
                          "minimum approach (give --emat K)")
     if not tac and args.emat is not None:
         raise InputError("--emat applies to --mode tac only (--mode mer uses --dtmin)")
+    for flag, given in (("--restructure", args.restructure), ("--branch-overshoot", args.branch_overshoot)):
+        if not tac and given:
+            raise InputError(f"{flag} applies to --mode tac only (the MER design mixes split branches at one "
+                             "temperature)")
     if tac and args.exchanger_type != "counter-current":
         raise InputError(f"--exchanger-type {args.exchanger_type} applies to --mode mer only: the TAC design sizes "
                          "counter-current units")
@@ -224,7 +234,8 @@ def run(args) -> int:
             net = design_tac(streams, utilities, costs=costs, emat=dt_min,
                              time_limit=args.time_limit or defaults.TAC_TIME_LIMIT, seed=args.seed, starts=args.starts,
                              rounds=args.rounds, solver=args.solver, default_film_coefficient=args.default_h,
-                             progress=bar.best, restructure=args.restructure, **extra)
+                             progress=bar.best, restructure=args.restructure,
+                             branch_overshoot=args.branch_overshoot, **extra)
         finally:
             bar.close()
     else:

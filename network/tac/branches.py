@@ -188,9 +188,11 @@ class _Model:
         m2 = np.array(rows_2).reshape(len(rows_c), n)
         hot_row = np.array([col < 2 for _ in range(n) for col in range(4)] + [side == "hot" for side, _ in self.branch_of])
         self.m2 = (m2 * hot_row[:, None], m2 * ~hot_row[:, None])
-        # range rows: a hot branch outlet stays above its target, a cold one below
+        # range rows: a hot branch outlet stays above its floor, a cold one below its ceiling (the stream's
+        # target, or with branch overshoot the problem's limits: TacProblem.branch_limits)
         sign = np.array([1.0 if side == "hot" else -1.0 for side, _ in self.branch_of])
-        bound = np.array([p.hot_out[s] if side == "hot" else p.cold_out[s] for side, s in self.branch_of])
+        floor, ceiling = p.branch_limits()
+        bound = np.array([floor[s] if side == "hot" else ceiling[s] for side, s in self.branch_of])
         self.range_sign, self.range_bound = sign, bound
 
     def temperatures(self, z):

@@ -1,5 +1,6 @@
 """The network of a refined topology: temperatures, exact sizing (segment by segment on streams of several
-segments), costs, the final check, and the match rules (:func:`network_from_solution`, :func:`keeping_rules`).
+segments), costs, the final check, the match rules (:func:`network_from_solution`, :func:`keeping_rules`) and
+the branches that pass their stream's target (:func:`overshoot_notes`).
 
 Used by :func:`heatloom.network.tac.search.design_tac` on every network it returns.
 """
@@ -19,7 +20,7 @@ from ..structure import Cooler, Exchanger, Heater, Network, check_network
 from .nlp import TacProblem, TopologySolution, unit_costs
 from .problem import REQUIRED_SHARE
 
-__all__ = ["network_from_solution", "keeping_rules"]
+__all__ = ["network_from_solution", "keeping_rules", "overshoot_notes"]
 
 
 def network_from_solution(p: TacProblem, sol: TopologySolution, streams: StreamTable, utilities: Sequence[Utility],
@@ -74,6 +75,51 @@ def network_from_solution(p: TacProblem, sol: TopologySolution, streams: StreamT
     if p.has_contributions:   # and every unit keeps the sum of its sides' ΔTmin contributions
         check_network(net, streams, utilities, dt_min=p.emat, contributions=True)
     return net
+
+
+OVERSHOOT_CAUTION = (
+    "a split branch beyond its stream's target must be acceptable to the process and the equipment: no thermal "
+    "degradation, vaporisation, freezing, wax or hydrate formation, extra fouling or corrosion, and every part "
+    "within its design temperature; check the design against local codes and have it reviewed by qualified, "
+    "licensed engineers")
+"""The caution given with every branch that passes its stream's target (:func:`overshoot_notes`)."""
+
+
+def overshoot_notes(net: Network, streams: StreamTable, tol: float = 1e-6) -> list[str]:
+    """Notes on every split branch whose temperature passes its stream's target before it mixes back (a hot
+    branch colder than the target, a cold branch hotter), with :data:`OVERSHOOT_CAUTION`; none when no
+    branch does.
+
+    Examples
+    --------
+    Invented data: a cold stream 20 -> 100 °C split in two; one branch leaves its exchanger at 104 °C.
+
+    >>> from heatloom.model import StreamTable
+    >>> s = StreamTable.from_arrays(["H", "C"], [150, 20], [60, 100], [2.0, 2.0])
+    >>> x = Exchanger("H", "C", 100.0, 150, 100, 20, 104, cold_fraction=0.5 * 100 / 84)
+    >>> net = Network((x,), (), (), 5.0)
+    >>> overshoot_notes(net, s)[0]
+    "split branch of C through the exchanger X1 (H→C) leaves at 104 °C, 4 K above the stream's target 100 °C, before it mixes back"
+    """
+    by_name = {st.name: st for st in streams}
+    found = []
+    for unit in (*net.exchangers, *net.heaters, *net.coolers):
+        for side in ("hot", "cold"):
+            name = getattr(unit, side, None)
+            fraction = getattr(unit, f"{side}_fraction", None)
+            if name not in by_name or fraction is None or fraction >= 1.0:
+                continue
+            target = by_name[name].target_temperature
+            leaves = getattr(unit, f"{side}_out")
+            beyond = (target - leaves) if side == "hot" else (leaves - target)
+            if beyond > tol:
+                kind = "exchanger" if isinstance(unit, Exchanger) else "heater" if isinstance(unit, Heater) else "cooler"
+                sides = f"{unit.hot}→{unit.cold}" if isinstance(unit, Exchanger) else f"{unit.utility} on {name}"
+                what = f"the {kind} {unit.name} ({sides})" if unit.name else f"the {kind} {sides}"
+                found.append(f"split branch of {name} through {what} leaves at {leaves:.4g} °C, {beyond:.3g} K "
+                             f"{'below' if side == 'hot' else 'above'} the stream's target {target:.4g} °C, before it "
+                             "mixes back")
+    return found + [OVERSHOOT_CAUTION] * bool(found)
 
 
 def keeping_rules(net: Network, forbidden=(), required=(), least: dict | None = None) -> Network:

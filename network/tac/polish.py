@@ -138,11 +138,12 @@ def polish_splits(p: TacProblem, sol: TopologySolution, *, max_iter: int = 100, 
     rows = {key: r for r, key in enumerate(model.keys)}
     hot_rows = np.array([rows[key] for side, key in branches if side == "hot"], dtype=int)
     cold_rows = np.array([rows[key] for side, key in branches if side == "cold"], dtype=int)
-    hot_floor = np.array([p.hot_out[key[0]] for side, key in branches if side == "hot"])
-    cold_ceiling = np.array([p.cold_out[key[1]] for side, key in branches if side == "cold"])
+    floor, ceiling = p.branch_limits()   # the targets, or with branch overshoot the problem's limits
+    hot_floor = np.array([floor[key[0]] for side, key in branches if side == "hot"])
+    cold_ceiling = np.array([ceiling[key[1]] for side, key in branches if side == "cold"])
 
     def ineq(z):
-        # approaches, the linear constraints, and every branch outlet inside its stream's temperature range
+        # approaches, the linear constraints, and every branch outlet inside its limits
         x, fr = unpack(z)
         q, hi, ho, ci, co = branch_temperatures(p, model, x, fr)
         return np.concatenate([hi - co - need, ho - ci - need, model.G @ x + model.g, ho[hot_rows] - hot_floor,

@@ -36,7 +36,10 @@ class TacProblem:
     (:meth:`heatloom.model.Stream.shift`: a stream's own ΔTmin contribution where given, else EMAT/2); a
     unit must keep :meth:`need` at both ends.  ``forbidden`` and ``required`` hold unit kinds that may not
     appear or must appear at least once, as ("x", i, j), ("heat", j, level) and ("cool", i, level) (the
-    forbidden and required matches of :class:`heatloom.model.MatchRules`, by index).
+    forbidden and required matches of :class:`heatloom.model.MatchRules`, by index).  With
+    ``branch_overshoot`` a split branch may leave its last unit beyond its stream's target temperature (a
+    cold branch hotter, a hot branch colder) as long as the branches mix back to the stream's own
+    temperature (:meth:`branch_limits`); without it every branch stays inside its stream's range.
     """
 
     hot_names: tuple[str, ...]
@@ -60,6 +63,7 @@ class TacProblem:
     utility_h: tuple | None = None
     forbidden: frozenset = frozenset()
     required: frozenset = frozenset()
+    branch_overshoot: bool = False
 
     @property
     def segmented(self) -> bool:
@@ -78,6 +82,20 @@ class TacProblem:
         a = half if i is None or self.hot_shift is None else float(self.hot_shift[i])
         b = half if j is None or self.cold_shift is None else float(self.cold_shift[j])
         return max(self.emat, a + b)
+
+    def branch_limits(self) -> tuple[np.ndarray, np.ndarray]:
+        """(floor per hot stream, ceiling per cold stream) [°C] of the temperature a split branch may reach.
+
+        The stream's own target temperature; with ``branch_overshoot`` the coldest temperature any cold
+        side of the problem starts at (cold streams' and cold utilities' supply) and the hottest any hot
+        side starts at: bounds no unit could pass anyway, so that only the units' approaches limit a
+        branch.
+        """
+        if not self.branch_overshoot:
+            return self.hot_out.copy(), self.cold_out.copy()
+        floor = min(float(self.cold_in.min()), *(u.supply_temperature for u in self.cool_levels))
+        ceiling = max(float(self.hot_in.max()), *(u.supply_temperature for u in self.heat_levels))
+        return np.full(self.hot_out.shape, floor), np.full(self.cold_out.shape, ceiling)
 
     @property
     def has_contributions(self) -> bool:
@@ -163,7 +181,8 @@ class TacProblem:
 
 
 def make_problem(streams: StreamTable, utilities, costs: CostSettings, emat: float, *,
-                 default_film_coefficient: float | None = None, rules: MatchRules | None = None) -> TacProblem:
+                 default_film_coefficient: float | None = None, rules: MatchRules | None = None,
+                 branch_overshoot: bool = False) -> TacProblem:
     """Gather the data of a TAC design; reject what the stagewise model cannot represent.
 
     Parameters
@@ -181,6 +200,8 @@ def make_problem(streams: StreamTable, utilities, costs: CostSettings, emat: flo
         Forbidden and required matches, by the names of the streams and utilities.  A required match must
         be possible: an exchanger whose hot stream enters hotter than the cold one by more than its least
         approach, a heater or cooler whose utility can serve the stream keeping it.
+    branch_overshoot : bool
+        Let split branches pass their stream's target before they mix (:meth:`TacProblem.branch_limits`).
 
     Raises
     ------
@@ -244,7 +265,8 @@ def make_problem(streams: StreamTable, utilities, costs: CostSettings, emat: flo
         arr(hot, lambda s: s.shift(emat)), arr(cold, lambda s: s.shift(emat)),
         tuple(stream_profile(s, h_of) for s in hot), tuple(stream_profile(s, h_of) for s in cold),
         (tuple(h_of(u.film_coefficient, u.name) for u in hot_u), tuple(h_of(u.film_coefficient, u.name)
-                                                                        for u in cold_u)))
+                                                                        for u in cold_u)),
+        branch_overshoot=bool(branch_overshoot))
     if not rules:
         return p
     return _with_rules(p, rules, streams, utilities)

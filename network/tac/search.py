@@ -70,7 +70,7 @@ from ...tasks import local_pool, numeric_threads
 from ..design import match_rules
 from ..solvers import Budget, SolveStatus
 from ..structure import Network, check_network
-from .build import keeping_rules, network_from_solution
+from .build import keeping_rules, network_from_solution, overshoot_notes
 from .layout_search import RESTRUCTURE_SHARE, RESTRUCTURE_STALL, RESTRUCTURE_STREAMS, beyond_stagewise
 from .nlp import (
     SUPPLY_END_LEVELS,
@@ -470,7 +470,8 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
                workers: int | None = None, milp_iterations: int = 3, solver: str | None = None,
                default_film_coefficient: float | None = None,
                progress: Callable[[float, int, int], None] | None = None, restructure: bool = False,
-               forbidden: Iterable[tuple[str, str]] = (), required: Iterable[tuple[str, str]] = ()) -> Network:
+               forbidden: Iterable[tuple[str, str]] = (), required: Iterable[tuple[str, str]] = (),
+               branch_overshoot: bool = False) -> Network:
     """A network of low total annual cost: stagewise MILP topologies refined against the exact cost.
 
     Parameters
@@ -528,6 +529,12 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         Every topology the search keeps has them, each carrying at least
         :data:`heatloom.network.tac.problem.REQUIRED_SHARE` of the most it could carry alone
         (:meth:`TacProblem.least_load`); the notes give the duty of each.
+    branch_overshoot : bool
+        Let the branches of a split stream pass the stream's target temperature before they mix back to it
+        (a cold branch hotter than the target, a hot branch colder; :meth:`TacProblem.branch_limits`): only
+        the units' approaches limit them.  Off by default: every branch stays inside its stream's range.  The
+        notes name every branch of the result that passes its target, with the usual cautions
+        (:func:`heatloom.network.tac.build.overshoot_notes`).
 
     Returns
     -------
@@ -579,7 +586,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     forbidden, required = match_rules(streams, utilities, forbidden, required)
     rules = MatchRules(tuple(sorted(forbidden)), tuple(sorted(required)))
     p = make_problem(streams, utilities, costs, emat, default_film_coefficient=default_film_coefficient,
-                     rules=rules)
+                     rules=rules, branch_overshoot=branch_overshoot)
     least = {p.unit_sides(kind): p.least_load(kind) for kind in p.required}
     if rules:
         notes.append(rules.describe() + ": " + " and ".join(
@@ -591,6 +598,9 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
                      "without one)")
     if default_film_coefficient is not None:
         notes.append(f"film coefficient {default_film_coefficient:g} kW/(m²·K) assumed where none was given")
+    if branch_overshoot:
+        notes.append("branch overshoot allowed: the branches of a split stream may pass the stream's target "
+                     "temperature before they mix back to it (only the units' approaches limit them)")
     K = int(stages) if stages is not None else max(len(p.hot_names), len(p.cold_names))
     if K < 1:
         raise InputError(f"stages must be >= 1, got {stages!r}")
@@ -762,7 +772,10 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         return _mer_as_result(p, mer, net, streams, utilities, notes, budget, forbidden, required)
     if net is None:
         raise InfeasibleError(f"no network found passes the final check: {failures[0]}")
-    return net
+    beyond_target = overshoot_notes(net, streams)
+    if branch_overshoot and not beyond_target:
+        beyond_target = ["no split branch of this network passes its stream's target"]
+    return replace(net, notes=(*net.notes, *beyond_target)) if beyond_target else net
 
 
 def _mer_as_result(p: TacProblem, mer: Network, net: Network | None, streams, utilities, notes, budget,

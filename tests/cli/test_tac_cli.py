@@ -122,6 +122,8 @@ def test_same_seed_same_network(capsys, files):
     (["--mode", "mer", "--emat", "2"], "--emat applies to --mode tac only"),
     (["--mode", "tac", "--exchanger-type", "double-pipe"], "applies to --mode mer only"),
     (["--mode", "tac", "--least-utility-flow"], "--least-utility-flow applies to --mode mer only"),
+    (["--mode", "mer", "--dtmin", "10", "--restructure"], "--restructure applies to --mode tac only"),
+    (["--mode", "mer", "--dtmin", "10", "--branch-overshoot"], "--branch-overshoot applies to --mode tac only"),
 ])
 def test_refusals(capsys, files, args, message):
     s, u, c = files
@@ -244,3 +246,30 @@ def test_evolution_of_a_tac_design_keeps_the_streams_contributions(capsys, tmp_p
 
     for e in data["exchangers"]:
         assert min(e["hot_in"] - e["cold_out"], e["hot_out"] - e["cold_in"]) >= need(e["hot"], e["cold"]) - 1e-6
+
+
+@pytest.mark.slow
+def test_branch_overshoot_flag_is_stated_and_every_branch_beyond_its_target_is_named(capsys, files):
+    """With --branch-overshoot the notes say it is allowed; a branch that passes its stream's target is named
+    with the cautions, and the branches of each split still mix back to the stream's own target (mixing
+    recomputed here from the printed fractions and temperatures)."""
+    s, u, c = files
+    code, out, err = run(capsys, "design", s, "--mode", "tac", "--utilities", u, "--costs", c, "--json", "--starts",
+                         "1", "--rounds", "3", "--time-limit", "60", "--restructure", "--branch-overshoot")
+    assert code == 0, err
+    data = json.loads(out)
+    assert any(n.startswith("branch overshoot allowed") for n in data["notes"])
+    target = {"H1": 333 - K, "H2": 303 - K, "C1": 408 - K, "C2": 413 - K}
+    beyond = [(x[side], x[f"{side}_out"]) for group, sides in (("exchangers", ("hot", "cold")), ("coolers", ("hot",)),
+                                                               ("heaters", ("cold",)))
+              for x in data[group] for side in sides
+              if x.get(f"{side}_fraction", 1.0) < 1 and
+              (x[f"{side}_out"] - target[x[side]]) * (1 if side == "cold" else -1) > 1e-3]
+    named = [n for n in data["notes"] if n.startswith("split branch of")]
+    assert len(named) == len(beyond)
+    for stream, leaves in beyond:
+        assert any(n.startswith(f"split branch of {stream} ") and f"leaves at {leaves:.4g} °C" in n for n in named)
+    if beyond:
+        assert any("qualified, licensed engineers" in n for n in data["notes"])
+    else:
+        assert "no split branch of this network passes its stream's target" in data["notes"]

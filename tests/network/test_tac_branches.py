@@ -436,3 +436,40 @@ def test_no_kick_begins_after_its_share():
     # the descent alone reaches the split cooler, one move away: below the best published network without
     # splits (79,233, Wang et al. 2017 as listed by Roetzel, Luo & Chen 2020, ch. 6) by more than 400
     assert start.tac == pytest.approx(79233.0, abs=1.0) and best.tac < 79233.0 - 400.0
+
+
+def test_branch_overshoot_lets_a_branch_pass_its_target_and_mix_back(tmp_path):
+    """The five-unit layout above with branch overshoot allowed: C1's branch through H2 leaves above C1's
+    target and mixes back with the colder branch through H1 to the target exactly.  The network is checked as
+    every other (balances from its own temperatures, EMAT, the TAC recomputed with ht.LMTD and the published
+    cost law; its units table read back and simulated), the mixing is recomputed here, and it costs less than
+    the same layout with every branch inside its stream's range and less than the best published network
+    (77,964 per year, the book's own with stream splits; Roetzel, Luo & Chen 2020, ch. 6, TAC table after
+    Table 6.16)."""
+    from heatloom.network.tac.build import OVERSHOOT_CAUTION, overshoot_notes
+
+    data, streams, utilities, costs, h, price = yee_grossmann()
+    units = (("x", 0, 1), ("x", 0, 0), ("x", 1, 0), ("cool", 0, 0), ("x", 0, 0))
+    lay = Layout(units, ((((0,), (4,)), ((1,),), ((3,),)), (((2,),),)), ((((2,), (1, 4)),), (((0,),),)))
+    start = ((2400.0, 250.0, 1800.0, 400.0, 250.0), (0.9, 0.1, 0.78, 0.22))
+    inside = solve_layout(make_problem(streams, utilities, costs, 1.0), lay, [start])
+    p = make_problem(streams, utilities, costs, 1.0, branch_overshoot=True)
+    sol, net, tac = built_and_read_back(p, lay, start, tmp_path)
+    assert tac < inside.tac - 1000.0 and tac < min(v for _, v in data["published_tac"])
+    c1 = next(s for s in streams if s.name == "C1")
+    branches = [u for u in (*net.exchangers, *net.heaters) if u.cold == "C1"]
+    ends = {}   # the hottest unit of each branch: its outlet is the branch's
+    for u in branches:
+        if u.cold_fraction not in ends or u.cold_out > ends[u.cold_fraction].cold_out:
+            ends[u.cold_fraction] = u
+    assert sum(ends) == pytest.approx(1.0)
+    assert sum(f * u.cold_out for f, u in ends.items()) == pytest.approx(c1.target_temperature, abs=1e-6)
+    above = [u for u in ends.values() if u.cold_out > c1.target_temperature + 1e-3]
+    assert len(above) == 1 and above[0].hot == "H2"
+    notes = overshoot_notes(net, streams)
+    assert len(notes) == 2 and notes[0].startswith("split branch of C1 through the exchanger ") and "(H2→C1)" in notes[0]
+    assert notes[-1] == OVERSHOOT_CAUTION
+    # without overshoot every branch stays inside its stream's range, and no note is given
+    net_inside = network_from_layout(make_problem(streams, utilities, costs, 1.0), inside, streams, utilities, costs)
+    assert all(u.cold_out <= c1.target_temperature + 1e-6 for u in net_inside.exchangers if u.cold == "C1")
+    assert overshoot_notes(net_inside, streams) == []

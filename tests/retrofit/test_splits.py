@@ -14,6 +14,8 @@ written here are invented for the tests.
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 import ht
 import pytest
 from refdata import load_reference, reference_utilities
@@ -132,11 +134,14 @@ def test_stated_duties_walk_through_a_split_only_with_every_branch():
                                          r"without simulating the network \(a unit without a stated duty, or a split "
                                          r"with such a branch"):
         ExistingNetwork(s, units, [STEAM, WATER])
-    # a branch cannot state more than its share of the stream
+    # a branch may state more than its share of the stream (it may pass the stream's target, 60 °C, before it
+    # mixes back: 150 - 200 / (0.5 * 4) = 50 °C), never more than the whole stream gives (4 * 90 = 360 kW)
     units = [ExistingUnit("A", "H1", "C1", duty=200.0, hot_position=1, cold_position=1, hot_fraction=0.5),
              ExistingUnit("B", "H1", "C2", area=2.0, hot_position=1, cold_position=1, hot_fraction=0.5)]
-    with pytest.raises(InputError, match=r"stated duty 200 kW is more than .* on its branch, which carries 0\.5 of "
-                                         r"the stream \(180 kW\)"):
+    ExistingNetwork(s, units, [STEAM, WATER])
+    units[0] = replace(units[0], duty=400.0)
+    with pytest.raises(InputError, match=r"stated duty 400 kW is more than stream 'H1' gives between its supply and "
+                                         r"target temperatures \(360 kW\)"):
         ExistingNetwork(s, units, [STEAM, WATER])
 
 
