@@ -169,7 +169,8 @@ def main() -> None:
         print(row, flush=True)
         rows.append(row)
         for note in net.notes:
-            if note.startswith(("TAC search", "the time limit", "search beyond", "the stagewise search")):
+            if note.startswith(("TAC search", "the time limit", "search beyond", "the stagewise search",
+                                "split branch of")):
                 print(f"    {note}", file=sys.stderr)
     for n in args.generated or ():
         streams, utilities, costs = generated_case(n, args.steam_levels, args.hot_oil, args.segments)

@@ -600,7 +600,9 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         notes.append(f"film coefficient {default_film_coefficient:g} kW/(m²·K) assumed where none was given")
     if branch_overshoot:
         notes.append("branch overshoot allowed: the branches of a split stream may pass the stream's target "
-                     "temperature before they mix back to it (only the units' approaches limit them)")
+                     "temperature before they mix back to it (only the units' approaches limit them)" +
+                     ("; not on this problem, whose streams of several segments mix their split branches at one "
+                      "temperature" if p.segmented else ""))
     K = int(stages) if stages is not None else max(len(p.hot_names), len(p.cold_names))
     if K < 1:
         raise InputError(f"stages must be >= 1, got {stages!r}")
