@@ -464,6 +464,11 @@ def _unserved(p: TacProblem) -> str:
             "range (piped through its units in series); or give a utility level that can serve these streams")
 
 
+ISOTHERMAL_NOTE = "isothermal mixing: the branches of a split stream leave a stage at one temperature"
+NONISOTHERMAL_NOTE = ("stream splits with free flow fractions: the branches of a split stream may leave a stage at "
+                      "different temperatures before they mix (non-isothermal mixing)")
+
+
 def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None, *,
                costs: CostSettings | None = None, emat: float = defaults.EMAT, stages: int | None = None,
                time_limit: float = 120.0, seed: int = 0, starts: int = 2, rounds: int = 40,
@@ -734,11 +739,7 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
         notes.append(f"the stagewise search found nothing cheaper for {RESTRUCTURE_STALL * time_limit:g} s and handed "
                      f"the rest of the time limit to the search beyond the stagewise form at {handed_over:.0f} s "
                      "(the network depends on the time it had)")
-    if best.fractions:
-        notes.append("stream splits with free flow fractions: the branches of a split stream may leave a stage at "
-                     "different temperatures before they mix (non-isothermal mixing)")
-    else:
-        notes.append("isothermal mixing: the branches of a split stream leave a stage at one temperature")
+    notes.append(NONISOTHERMAL_NOTE if best.fractions else ISOTHERMAL_NOTE)
     notes.append("heuristic search: the lowest cost found, not a proven optimum")
     notes.append(costs.describe())
     if p.segmented:
@@ -755,6 +756,10 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     if beyond:
         net = beyond_stagewise(p, ranked[0], streams, utilities, costs, notes, budget, seed, workers=n_workers,
                                to_deadline=handed_over is not None)
+        if net is not None and ISOTHERMAL_NOTE in net.notes and any(
+                getattr(u, f"{side}_fraction", 1.0) < 1.0 for u in (*net.exchangers, *net.heaters, *net.coolers)
+                for side in ("hot", "cold")):   # its splits' fractions are free: branches mix at their own temperatures
+            net = replace(net, notes=tuple(NONISOTHERMAL_NOTE if n == ISOTHERMAL_NOTE else n for n in net.notes))
         if net is not None:
             try:
                 net = keeping_rules(net, forbidden, required, least)

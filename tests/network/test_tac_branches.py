@@ -473,3 +473,30 @@ def test_branch_overshoot_lets_a_branch_pass_its_target_and_mix_back(tmp_path):
     net_inside = network_from_layout(make_problem(streams, utilities, costs, 1.0), inside, streams, utilities, costs)
     assert all(u.cold_out <= c1.target_temperature + 1e-6 for u in net_inside.exchangers if u.cold == "C1")
     assert overshoot_notes(net_inside, streams) == []
+
+
+def test_a_network_from_beyond_the_stagewise_form_gets_the_mixing_note_of_its_own_splits(monkeypatch):
+    """When the search beyond the stagewise form returns a network whose split branches leave at their own
+    temperatures, the notes say non-isothermal mixing even if the stagewise network it began from mixed
+    isothermally.  The search itself is replaced here by the five-unit Yee & Grossmann network above."""
+    from heatloom.network.tac import search
+
+    data, streams, utilities, costs, h, price = yee_grossmann()
+    p = make_problem(streams, utilities, costs, 1.0)
+    units = (("x", 0, 1), ("x", 0, 0), ("x", 1, 0), ("cool", 0, 0), ("x", 0, 0))
+    lay = Layout(units, ((((0,), (4,)), ((1,),), ((3,),)), (((2,),),)), ((((2,), (1, 4)),), (((0,),),)))
+    sol = solve_layout(p, lay, [((2400.0, 250.0, 1800.0, 400.0, 250.0), (0.9, 0.1, 0.78, 0.22))])
+    given = []
+
+    def beyond(p_, best, streams_, utilities_, costs_, notes, *args, **kwargs):
+        given.append(list(notes))
+        return network_from_layout(p_, sol, streams_, utilities_, costs_, notes=notes)
+
+    monkeypatch.setattr(search, "beyond_stagewise", beyond)
+    net = search.design_tac(streams, utilities, costs=costs, emat=1.0, seed=0, starts=1, rounds=0, workers=1,
+                            milp_iterations=1, time_limit=20, restructure=True)
+    assert search.ISOTHERMAL_NOTE in given[0]   # the stagewise network had no free fractions
+    c1 = {round(e.cold_out, 6) for e in net.exchangers if e.cold == "C1" and e.cold_fraction < 1}
+    assert len(c1) >= 2   # C1's branches leave at different temperatures
+    mixing = [n for n in net.notes if n in (search.ISOTHERMAL_NOTE, search.NONISOTHERMAL_NOTE)]
+    assert mixing == [search.NONISOTHERMAL_NOTE]
