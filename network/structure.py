@@ -14,7 +14,7 @@ from __future__ import annotations
 
 import functools
 import string
-from collections.abc import Sequence
+from collections.abc import Iterator, Sequence
 from dataclasses import dataclass, field, fields, replace
 from typing import ClassVar
 
@@ -42,6 +42,7 @@ __all__ = [
     "smallest_approach",
     "check_network",
     "approach_violations",
+    "process_sides",
 ]
 
 
@@ -451,6 +452,26 @@ FRAME_COLUMNS = ("unit", "role", "hot", "cold", "duty [kW]", "area [m²]", "U [k
                  "cold in [°C]", "cold out [°C]", "hot fraction [-]", "cold fraction [-]", "hot_branch",
                  "hot_branch_order", "cold_branch", "cold_branch_order", "cost [money/year]")
 """Columns of :meth:`Network.to_frame`, in order (the cost header carries the network's currency)."""
+
+
+def process_sides(network: Network) -> Iterator[tuple[object, str, bool, float, float, float]]:
+    """Every process-stream side of every unit: (unit, stream name, hot side?, flow fraction of the stream
+    the side carries [-], inlet and outlet temperatures of that side [°C]); utility sides are left out.
+
+    Examples
+    --------
+    >>> a = Exchanger("H1", "C1", 60.0, 150, 100, 40, 100, hot_fraction=0.6, name="A")
+    >>> c = Cooler("H1", "CW", 50.0, 100, 75, 20, 30, name="C")
+    >>> [(u.name, s, hot, f) for u, s, hot, f, _, _ in process_sides(Network((a,), (), (c,), 10.0))]
+    [('A', 'H1', True, 0.6), ('A', 'C1', False, 1.0), ('C', 'H1', True, 1.0)]
+    """
+    for e in network.exchangers:
+        yield e, e.hot, True, e.hot_fraction, e.hot_in, e.hot_out
+        yield e, e.cold, False, e.cold_fraction, e.cold_in, e.cold_out
+    for h in network.heaters:
+        yield h, h.cold, False, h.cold_fraction, h.cold_in, h.cold_out
+    for c in network.coolers:
+        yield c, c.hot, True, c.hot_fraction, c.hot_in, c.hot_out
 
 
 def _side_duty(stream: Stream, t_in: float, t_out: float, fraction: float) -> float:

@@ -31,7 +31,7 @@ from ..errors import InfeasibleError, InputError, TemperatureCrossError
 from ..model import Stream, StreamTable, Utility
 from ..model.costs import CostSettings
 from ..network.sizing import size_network
-from ..network.structure import Network, approach_violations, check_network
+from ..network.structure import Network, approach_violations, check_network, process_sides
 from ..validation import check_dt_min
 from .existing import ExistingNetwork
 from .simulate import Simulation, simulate
@@ -224,13 +224,8 @@ def _covering(streams: StreamTable, net: Network) -> StreamTable:
     that sizing can cut each unit's part of the profile; other overshoots are left for sizing to refuse (the
     checks report them)."""
     seen: dict[str, list[tuple[float, bool]]] = {}   # stream -> (temperature, on a split branch of it)
-    for x in net.exchangers:
-        seen.setdefault(x.hot, []).extend((t, x.hot_fraction < 1.0) for t in (x.hot_in, x.hot_out))
-        seen.setdefault(x.cold, []).extend((t, x.cold_fraction < 1.0) for t in (x.cold_in, x.cold_out))
-    for x in net.heaters:
-        seen.setdefault(x.cold, []).extend((t, x.cold_fraction < 1.0) for t in (x.cold_in, x.cold_out))
-    for x in net.coolers:
-        seen.setdefault(x.hot, []).extend((t, x.hot_fraction < 1.0) for t in (x.hot_in, x.hot_out))
+    for _, name, _, fraction, t_in, t_out in process_sides(net):
+        seen.setdefault(name, []).extend(((t_in, fraction < 1.0), (t_out, fraction < 1.0)))
     out = []
     for st in streams:
         lo, hi = sorted((st.supply_temperature, st.target_temperature))

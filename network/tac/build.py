@@ -16,7 +16,7 @@ from ...equipment.sizing import log_mean
 from ...errors import InfeasibleError
 from ...model import StreamTable, Utility
 from ...model.costs import CostSettings, UnitKind
-from ..structure import Cooler, Exchanger, Heater, Network, check_network
+from ..structure import Cooler, Exchanger, Heater, Network, check_network, process_sides
 from .nlp import TacProblem, TopologySolution, unit_costs
 from .problem import REQUIRED_SHARE
 
@@ -101,24 +101,19 @@ def overshoot_notes(net: Network, streams: StreamTable, tol: float = 1e-6) -> li
     >>> overshoot_notes(net, s)[0]
     "split branch of C through the exchanger X1 (H→C) leaves at 104 °C, 4 K above the stream's target 100 °C, before it mixes back"
     """
-    by_name = {st.name: st for st in streams}
+    targets = {st.name: st.target_temperature for st in streams}
     found = []
-    for unit in (*net.exchangers, *net.heaters, *net.coolers):
-        for side in ("hot", "cold"):
-            name = getattr(unit, side, None)
-            fraction = getattr(unit, f"{side}_fraction", None)
-            if name not in by_name or fraction is None or fraction >= 1.0:
-                continue
-            target = by_name[name].target_temperature
-            leaves = getattr(unit, f"{side}_out")
-            beyond = (target - leaves) if side == "hot" else (leaves - target)
-            if beyond > tol:
-                kind = "exchanger" if isinstance(unit, Exchanger) else "heater" if isinstance(unit, Heater) else "cooler"
-                sides = f"{unit.hot}→{unit.cold}" if isinstance(unit, Exchanger) else f"{unit.utility} on {name}"
-                what = f"the {kind} {unit.name} ({sides})" if unit.name else f"the {kind} {sides}"
-                found.append(f"split branch of {name} through {what} leaves at {leaves:.4g} °C, {beyond:.3g} K "
-                             f"{'below' if side == 'hot' else 'above'} the stream's target {target:.4g} °C, before it "
-                             "mixes back")
+    for unit, name, hot, fraction, _, leaves in process_sides(net):
+        if fraction >= 1.0 or name not in targets:
+            continue
+        beyond = (targets[name] - leaves) if hot else (leaves - targets[name])
+        if beyond > tol:
+            kind = "exchanger" if isinstance(unit, Exchanger) else "heater" if isinstance(unit, Heater) else "cooler"
+            sides = f"{unit.hot}→{unit.cold}" if isinstance(unit, Exchanger) else f"{unit.utility} on {name}"
+            what = f"the {kind} {unit.name} ({sides})" if unit.name else f"the {kind} {sides}"
+            found.append(f"split branch of {name} through {what} leaves at {leaves:.4g} °C, {beyond:.3g} K "
+                         f"{'below' if hot else 'above'} the stream's target {targets[name]:.4g} °C, before it "
+                         "mixes back")
     return found + [OVERSHOOT_CAUTION] * bool(found)
 
 
