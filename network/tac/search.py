@@ -69,7 +69,7 @@ from ...model.costs import CostSettings
 from ...tasks import local_pool, numeric_threads
 from ..design import match_rules
 from ..solvers import Budget, SolveStatus
-from ..structure import Network, check_network
+from ..structure import Network, check_network, process_sides
 from .build import keeping_rules, network_from_solution, overshoot_notes
 from .layout_search import RESTRUCTURE_SHARE, RESTRUCTURE_STALL, RESTRUCTURE_STREAMS, beyond_stagewise
 from .nlp import (
@@ -756,10 +756,8 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     if beyond:
         net = beyond_stagewise(p, ranked[0], streams, utilities, costs, notes, budget, seed, workers=n_workers,
                                to_deadline=handed_over is not None)
-        if net is not None and ISOTHERMAL_NOTE in net.notes and any(
-                getattr(u, f"{side}_fraction", 1.0) < 1.0 for u in (*net.exchangers, *net.heaters, *net.coolers)
-                for side in ("hot", "cold")):   # its splits' fractions are free: branches mix at their own temperatures
-            net = replace(net, notes=tuple(NONISOTHERMAL_NOTE if n == ISOTHERMAL_NOTE else n for n in net.notes))
+        if net is not None:   # a layout's split fractions are free: its branches mix at their own temperatures
+            net = _with_mixing_note(net, any(f < 1.0 for _, _, _, f, _, _ in process_sides(net)))
         if net is not None:
             try:
                 net = keeping_rules(net, forbidden, required, least)
@@ -772,6 +770,9 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
                      "the cheapest that passes is given"] if failures else []
             net = keeping_rules(network_from_solution(p, sol, streams, utilities, costs, notes=[*notes, *extra],
                                                       solves=budget.reports), forbidden, required, least)
+            # the note of this solution's mixing (the final polish may have freed the fractions of a network
+            # whose search mixed isothermally, and the cheapest may fail the check)
+            net = _with_mixing_note(net, bool(sol.fractions))
             break
         except (InfeasibleError, InputError) as exc:   # a failed check, or a unit the sizing refuses
             failures.append(str(exc))
@@ -783,6 +784,13 @@ def design_tac(streams: StreamTable, utilities: Sequence[Utility] | None = None,
     if branch_overshoot and not beyond_target:
         beyond_target = ["no split branch of this network passes its stream's target"]
     return replace(net, notes=(*net.notes, *beyond_target)) if beyond_target else net
+
+
+def _with_mixing_note(net: Network, nonisothermal: bool) -> Network:
+    """The network with the mixing note (:data:`ISOTHERMAL_NOTE` or :data:`NONISOTHERMAL_NOTE`) that fits it, in
+    the place of the one the search's notes gave."""
+    want = NONISOTHERMAL_NOTE if nonisothermal else ISOTHERMAL_NOTE
+    return replace(net, notes=tuple(want if n in (ISOTHERMAL_NOTE, NONISOTHERMAL_NOTE) else n for n in net.notes))
 
 
 def _mer_as_result(p: TacProblem, mer: Network, net: Network | None, streams, utilities, notes, budget,
